@@ -1,0 +1,49 @@
+/** The Express app, built by a function so tests can create one per file on a fresh database. */
+import express from 'express';
+import cookieParser from 'cookie-parser';
+import path from 'node:path';
+import fs from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import type { AppContext } from './context.js';
+import { authenticate } from './auth/session.js';
+import { errorMiddleware, notFoundApi } from './http/errors.js';
+import authRoutes from './routes/auth.js';
+import usersRoutes from './routes/users.js';
+import studiesRoutes from './routes/studies.js';
+import fieldsRoutes from './routes/fields.js';
+import cellsRoutes from './routes/cells.js';
+import recipesRoutes from './routes/recipes.js';
+import runsRoutes from './routes/runs.js';
+import measurementsRoutes from './routes/measurements.js';
+import reportsRoutes from './routes/reports.js';
+import sharesRoutes from './routes/shares.js';
+import outboxRoutes from './routes/outbox.js';
+
+const CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
+
+export function createApp(ctx: AppContext) {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', ctx.env.TRUST_PROXY === '1');
+  app.use(cookieParser());
+  app.use('/api', express.json({ limit: '2mb' }));
+  app.use('/api', authenticate(ctx));
+
+  app.get('/api/health', (_req, res) => {
+    res.json({ ok: true });
+  });
+  const api = express.Router();
+  for (const r of [authRoutes, usersRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, measurementsRoutes, reportsRoutes, sharesRoutes, outboxRoutes]) {
+    api.use(r(ctx));
+  }
+  app.use('/api', api);
+  app.use('/api', notFoundApi);
+
+  // the built client (npm start builds it first); any non-API path serves index.html
+  if (fs.existsSync(path.join(CLIENT_DIR, 'index.html'))) {
+    app.use(express.static(CLIENT_DIR, { index: false, maxAge: '1h' }));
+    app.get(/^(?!\/api\/).*/, (_req, res) => res.sendFile(path.join(CLIENT_DIR, 'index.html')));
+  }
+  app.use(errorMiddleware);
+  return app;
+}

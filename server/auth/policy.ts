@@ -1,0 +1,95 @@
+/**
+ * Every permission decision lives here. Rules (PRODUCT.md "People and roles"):
+ * - facility managers see every study (read) and manage accounts, labs and recipe reviews;
+ * - lab members see their lab's studies; microscopists and biologists of the lab may change study content;
+ *   biologists (and the owner) manage conditions, coverslips, exclusions, reports and share links;
+ * - collaborators see only studies they were added to (study_members), read-only;
+ * - a user who may not see a study gets 404; one who may see but not change it gets 403.
+ */
+import { and, eq } from 'drizzle-orm';
+import type { AppContext } from '../context.js';
+import { labMembers, studies, studyMembers, type Role } from '../db/schema.js';
+import { forbidden, notFound, unauthorized } from '../http/errors.js';
+import type { SessionUser } from './session.js';
+
+export type StudyAction =
+  | 'read' // see the study, its fields, cells, measurements, reports
+  | 'edit_structure' // conditions, coverslips, study name
+  | 'edit_images' // upload fields, outline cells
+  | 'run' // start analysis runs
+  | 'exclude' // exclude / restore cells
+  | 'report' // create reports and share links
+  | 'delete'; // delete the study
+
+export const hasRole = (u: SessionUser | undefined, r: Role) => !!u && u.roles.includes(r);
+
+export type Study = typeof studies.$inferSelect;
+
+/** What the user may do in this study (empty set: may not even see it). */
+export function studyPermissions(ctx: AppContext, user: SessionUser, study: Study): Set<StudyAction> {
+  const p = new Set<StudyAction>();
+  const inLab = !!ctx.db
+    .select()
+    .from(labMembers)
+    .where(and(eq(labMembers.labId, study.labId), eq(labMembers.userId, user.id)))
+    .get();
+  const member = ctx.db
+    .select()
+    .from(studyMembers)
+    .where(and(eq(studyMembers.studyId, study.id), eq(studyMembers.userId, user.id)))
+    .get();
+  const isOwner = study.ownerId === user.id;
+  if (inLab || member || isOwner || hasRole(user, 'facility_manager')) p.add('read');
+  const canWrite = isOwner || (inLab && (hasRole(user, 'microscopist') || hasRole(user, 'biologist'))) || member?.access === 'write';
+  if (canWrite && (hasRole(user, 'microscopist') || hasRole(user, 'biologist') || isOwner)) {
+    p.add('edit_images');
+    p.add('run');
+  }
+  if (isOwner || (inLab && hasRole(user, 'biologist'))) {
+    p.add('edit_structure');
+    p.add('exclude');
+    p.add('report');
+  }
+  if (isOwner) p.add('delete');
+  return p;
+}
+
+/** Loads the study and checks the action: 404 when the user may not see it, 403 when they may see but not act. */
+export function requireStudy(ctx: AppContext, user: SessionUser | undefined, studyId: number, action: StudyAction): Study {
+  if (!user) throw unauthorized();
+  const study = Number.isInteger(studyId) ? ctx.db.select().from(studies).where(eq(studies.id, studyId)).get() : undefined;
+  if (!study) throw notFound(`no study with id ${studyId}`);
+  const perms = studyPermissions(ctx, user, study);
+  if (!perms.has('read')) throw notFound(`no study with id ${studyId}`);
+  if (!perms.has(action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow "${action}" in this study`);
+  return study;
+}
+
+/** Global (non-study) permissions. */
+export type GlobalAction =
+  | 'create_study' // biologists
+  | 'manage_users' // facility managers
+  | 'read_outbox' // facility managers
+  | 'propose_recipe' // anyone but collaborators
+  | 'review_recipe' // facility managers
+  | 'read_recipes'; // anyone but collaborators
+
+export function can(user: SessionUser | undefined, action: GlobalAction): boolean {
+  if (!user) return false;
+  switch (action) {
+    case 'create_study':
+      return hasRole(user, 'biologist');
+    case 'manage_users':
+    case 'read_outbox':
+    case 'review_recipe':
+      return hasRole(user, 'facility_manager');
+    case 'propose_recipe':
+    case 'read_recipes':
+      return user.roles.some((r) => r !== 'collaborator');
+  }
+}
+
+export function requireCan(user: SessionUser | undefined, action: GlobalAction) {
+  if (!user) throw unauthorized();
+  if (!can(user, action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow "${action}"`);
+}

@@ -1,0 +1,72 @@
+/** Session JWTs (jose, HS256) carried in an httpOnly SameSite=Lax cookie. */
+import { SignJWT, jwtVerify } from 'jose';
+import type { Request, Response, RequestHandler } from 'express';
+import { eq } from 'drizzle-orm';
+import type { AppContext } from '../context.js';
+import { users, type Role } from '../db/schema.js';
+import { unauthorized } from '../http/errors.js';
+
+export const SESSION_COOKIE = 'syntopy_session';
+
+export interface SessionUser {
+  id: number;
+  email: string;
+  name: string;
+  roles: Role[];
+}
+
+declare global {
+  // eslint-disable-next-line @typescript-eslint/no-namespace
+  namespace Express {
+    interface Request {
+      user?: SessionUser;
+    }
+  }
+}
+
+const key = (secret: string) => new TextEncoder().encode(secret);
+
+export async function signSession(ctx: AppContext, userId: number, sessionVersion: number): Promise<string> {
+  return new SignJWT({ sv: sessionVersion, typ: 'session' })
+    .setProtectedHeader({ alg: 'HS256' })
+    .setSubject(String(userId))
+    .setIssuedAt()
+    .setJti(crypto.randomUUID())
+    .setExpirationTime(`${ctx.env.SESSION_HOURS}h`)
+    .sign(key(ctx.env.SESSION_SECRET));
+}
+
+export function setSessionCookie(ctx: AppContext, req: Request, res: Response, token: string) {
+  res.cookie(SESSION_COOKIE, token, {
+    httpOnly: true,
+    sameSite: 'lax',
+    secure: req.secure,
+    path: '/',
+    maxAge: ctx.env.SESSION_HOURS * 3600 * 1000,
+  });
+}
+
+export function clearSessionCookie(req: Request, res: Response) {
+  res.clearCookie(SESSION_COOKIE, { httpOnly: true, sameSite: 'lax', secure: req.secure, path: '/' });
+}
+
+/** Reads the cookie when present; sets req.user for a valid, current session of an enabled user. */
+export function authenticate(ctx: AppContext): RequestHandler {
+  return async (req, _res, next) => {
+    const token = req.cookies?.[SESSION_COOKIE];
+    if (!token) return next();
+    try {
+      const { payload } = await jwtVerify(token, key(ctx.env.SESSION_SECRET), { algorithms: ['HS256'] });
+      if (payload.typ !== 'session') return next();
+      const u = ctx.db.select().from(users).where(eq(users.id, Number(payload.sub))).get();
+      if (u && !u.disabled && u.sessionVersion === payload.sv) {
+        req.user = { id: u.id, email: u.email, name: u.name, roles: u.roles };
+      }
+    } catch {
+      /* expired or tampered: treated as signed out */
+    }
+    next();
+  };
+}
+
+export const requireUser: RequestHandler = (req, _res, next) => (req.user ? next() : next(unauthorized()));

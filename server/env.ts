@@ -1,0 +1,58 @@
+/** Configuration from the environment, validated once with zod; a bad value is named in one line. */
+import { z } from 'zod';
+import fs from 'node:fs';
+import path from 'node:path';
+import crypto from 'node:crypto';
+
+const EnvSchema = z.object({
+  PORT: z.coerce.number().int().min(0).max(65535).default(3000),
+  HOST: z.string().min(1).default('0.0.0.0'),
+  DATA_DIR: z.string().min(1).default('data'),
+  SESSION_SECRET: z.string().min(32, 'SESSION_SECRET must be at least 32 characters').optional(),
+  SESSION_HOURS: z.coerce.number().positive().max(24 * 90).default(12),
+  PUBLIC_URL: z.string().url().optional(),
+  SMTP_URL: z.string().url().optional(),
+  MAIL_FROM: z.string().min(3).default('Syntopy <no-reply@syntopy.local>'),
+  QUEUE_URL: z.string().regex(/^rediss?:\/\//, 'QUEUE_URL must start with redis://').optional(),
+  STORE_URL: z.string().regex(/^(s3|file):\/\//, 'STORE_URL must start with s3:// or file://').optional(),
+  S3_ENDPOINT: z.string().url().optional(),
+  MAX_UPLOAD_BYTES: z.coerce.number().int().positive().default(2 * 1024 ** 3),
+  MAX_FILES_PER_REQUEST: z.coerce.number().int().positive().default(100),
+  PIXEL_BUDGET: z.coerce.number().int().positive().default(2 ** 28),
+  WORKERS: z.coerce.number().int().min(1).max(64).default(Math.max(1, Math.min(4, (globalThis as any).navigator?.hardwareConcurrency ?? 2) - 1)),
+  SEED_DEMO: z.enum(['auto', 'never']).default('auto'),
+  TRUST_PROXY: z.enum(['0', '1']).default('0'),
+  NODE_ENV: z.string().default('development'),
+});
+
+export type Env = z.infer<typeof EnvSchema> & { SESSION_SECRET: string; DATA_DIR: string };
+
+export class ConfigError extends Error {}
+
+/** Parse env; throws ConfigError with one clear line naming the variable. */
+export function loadEnv(source: NodeJS.ProcessEnv = process.env): Env {
+  const parsed = EnvSchema.safeParse(source);
+  if (!parsed.success) {
+    const i = parsed.error.issues[0];
+    const name = String(i.path[0] ?? '?');
+    throw new ConfigError(`configuration error: ${name}=${JSON.stringify(source[name] ?? null)}: ${i.message}`);
+  }
+  const env = parsed.data;
+  const dataDir = path.resolve(env.DATA_DIR);
+  try {
+    fs.mkdirSync(dataDir, { recursive: true });
+    fs.accessSync(dataDir, fs.constants.W_OK);
+  } catch (e) {
+    throw new ConfigError(`configuration error: DATA_DIR=${JSON.stringify(dataDir)} is not a writable folder (${(e as NodeJS.ErrnoException).code ?? 'error'})`);
+  }
+  let secret = env.SESSION_SECRET;
+  if (!secret) {
+    const file = path.join(dataDir, 'session-secret');
+    if (fs.existsSync(file)) secret = fs.readFileSync(file, 'utf8').trim();
+    else {
+      secret = crypto.randomBytes(48).toString('base64url');
+      fs.writeFileSync(file, secret, { mode: 0o600 });
+    }
+  }
+  return { ...env, DATA_DIR: dataDir, SESSION_SECRET: secret };
+}

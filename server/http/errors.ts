@@ -1,0 +1,58 @@
+/** HTTP errors and the one error middleware that turns every thrown error into a 4xx/5xx JSON body. */
+import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { ZodError, type ZodType } from 'zod';
+
+export class HttpError extends Error {
+  constructor(public readonly status: number, message: string, public readonly details?: Record<string, unknown>) {
+    super(message);
+    this.name = 'HttpError';
+  }
+}
+export const badRequest = (m: string, d?: Record<string, unknown>) => new HttpError(400, m, d);
+export const unauthorized = (m = 'sign in first') => new HttpError(401, m);
+export const forbidden = (m = 'you may not do this') => new HttpError(403, m);
+export const notFound = (m = 'not found') => new HttpError(404, m);
+export const conflict = (m: string) => new HttpError(409, m);
+export const gone = (m: string) => new HttpError(410, m);
+
+/** Parse with a zod schema; a failure becomes a 400 naming the field and the value received. */
+export function parse<T>(schema: ZodType<T>, value: unknown, where = 'request'): T {
+  const r = schema.safeParse(value);
+  if (r.success) return r.data;
+  throw r.error;
+}
+
+function describeZod(err: ZodError, input?: unknown) {
+  const issues = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
+  const first = issues[0];
+  return { error: first ? `${first.path || 'body'}: ${first.message}` : 'invalid request', issues };
+}
+
+export const notFoundApi: RequestHandler = (req, _res, next) => next(notFound(`no API route ${req.method} ${req.path}`));
+
+export const errorMiddleware: ErrorRequestHandler = (err, req, res, _next) => {
+  if (res.headersSent) return;
+  if (err instanceof ZodError) return res.status(400).json(describeZod(err));
+  if (err instanceof HttpError) return res.status(err.status).json({ error: err.message, ...(err.details ?? {}) });
+  const e = err as { name?: string; status?: number; statusCode?: number; message?: string; type?: string; code?: string };
+  if (e?.name === 'ImageInputError') return res.status(e.status ?? 422).json({ error: e.message });
+  if (e?.name === 'MulterError') {
+    const status = e.code === 'LIMIT_FILE_SIZE' ? 413 : 400;
+    return res.status(status).json({ error: `upload refused: ${e.message}` });
+  }
+  if (e?.type === 'entity.parse.failed') return res.status(400).json({ error: 'the request body is not valid JSON' });
+  if (e?.type === 'entity.too.large') return res.status(413).json({ error: 'the request body is too large' });
+  const status = e?.status ?? e?.statusCode;
+  if (typeof status === 'number' && status >= 400 && status < 500) return res.status(status).json({ error: e.message ?? 'bad request' });
+  console.error('[syntopy] unexpected error', err);
+  return res.status(500).json({ error: 'something went wrong on the server; the error was logged' });
+};
+
+declare global {
+  // eslint-disable-next-line @typescript-eslint/no-namespace
+  namespace Express {
+    interface Request {
+      log?: (e: unknown) => void;
+    }
+  }
+}

@@ -1,0 +1,8 @@
+/** API routes for outbox. (placeholder until its owner fills it) */
+import { Router } from 'express';
+import type { AppContext } from '../context.js';
+
+export default function outboxRoutes(_ctx: AppContext) {
+  const r = Router();
+  return r;
+}

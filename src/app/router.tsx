@@ -1,0 +1,33 @@
+/** Routes compose features; each route module is loaded lazily (src/app/routes/<Name>.tsx exports `Component`). */
+import { createBrowserRouter } from 'react-router';
+import { Shell } from './Shell';
+
+const lazy = (load: () => Promise<{ Component: React.ComponentType }>) => async () => ({ Component: (await load()).Component });
+
+export const router = createBrowserRouter([
+  { path: '/signin', lazy: lazy(() => import('./routes/SignIn')) },
+  { path: '/invite/:token', lazy: lazy(() => import('./routes/AcceptInvite')) },
+  { path: '/shared/:token', lazy: lazy(() => import('./routes/SharedReport')) },
+  {
+    path: '/',
+    Component: Shell,
+    children: [
+      { index: true, lazy: lazy(() => import('./routes/Home')) },
+      { path: 'studies', lazy: lazy(() => import('./routes/Studies')) },
+      { path: 'studies/:studyId', lazy: lazy(() => import('./routes/Study')) },
+      { path: 'studies/:studyId/fields/:fieldId', lazy: lazy(() => import('./routes/FieldWorkspace')) },
+      { path: 'studies/:studyId/cells', lazy: lazy(() => import('./routes/CellTable')) },
+      { path: 'studies/:studyId/compare', lazy: lazy(() => import('./routes/Compare')) },
+      { path: 'studies/:studyId/reports', lazy: lazy(() => import('./routes/Reports')) },
+      { path: 'reports/:reportId', lazy: lazy(() => import('./routes/Report')) },
+      { path: 'recipes', lazy: lazy(() => import('./routes/Recipes')) },
+      { path: 'recipes/:recipeId', lazy: lazy(() => import('./routes/RecipeEditor')) },
+      { path: 'review', lazy: lazy(() => import('./routes/ReviewQueue')) },
+      { path: 'runs', lazy: lazy(() => import('./routes/Runs')) },
+      { path: 'account', lazy: lazy(() => import('./routes/Account')) },
+      { path: 'people', lazy: lazy(() => import('./routes/People')) },
+      { path: 'outbox', lazy: lazy(() => import('./routes/Outbox')) },
+      { path: '*', lazy: lazy(() => import('./routes/NotFound')) },
+    ],
+  },
+]);

@@ -1,0 +1,35 @@
+/** Fetch wrapper: JSON in/out, zod-validated responses, errors carry the server's message and field issues. */
+import type { ZodType } from 'zod';
+
+export class ApiError extends Error {
+  constructor(public status: number, message: string, public issues: { path: string; message: string }[] = [], public body: unknown = null) {
+    super(message);
+  }
+  /** message for one form field, from the server's zod issues */
+  fieldError(path: string) {
+    return this.issues.find((i) => i.path === path)?.message;
+  }
+}
+
+export async function api<T>(path: string, opts: { method?: string; body?: unknown; schema?: ZodType<T>; signal?: AbortSignal } = {}): Promise<T> {
+  const isForm = typeof FormData !== 'undefined' && opts.body instanceof FormData;
+  const res = await fetch(`/api${path}`, {
+    method: opts.method ?? (opts.body === undefined ? 'GET' : 'POST'),
+    headers: opts.body === undefined || isForm ? undefined : { 'content-type': 'application/json' },
+    body: opts.body === undefined ? undefined : isForm ? (opts.body as FormData) : JSON.stringify(opts.body),
+    credentials: 'same-origin',
+    signal: opts.signal,
+  });
+  const text = await res.text();
+  let data: unknown = null;
+  try {
+    data = text ? JSON.parse(text) : null;
+  } catch {
+    data = null;
+  }
+  if (!res.ok) {
+    const d = (data ?? {}) as { error?: string; issues?: { path: string; message: string }[] };
+    throw new ApiError(res.status, d.error ?? `request failed (${res.status})`, d.issues ?? [], data);
+  }
+  return opts.schema ? opts.schema.parse(data) : (data as T);
+}
