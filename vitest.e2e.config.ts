@@ -7,6 +7,7 @@ export default defineConfig({
   resolve: { alias: { '@shared': r('./shared'), '@': r('./src') } },
   test: {
     include: ['tests/e2e/**/*.test.ts'],
+    globalSetup: ['tests/e2e/global-setup.ts'],
     setupFiles: ['tests/utils/setup.ts'],
     pool: 'forks',
     fileParallelism: false,

@@ -7,6 +7,7 @@ import { fileURLToPath } from 'node:url';
 import type { AppContext } from './context.js';
 import { authenticate } from './auth/session.js';
 import { errorMiddleware, notFoundApi } from './http/errors.js';
+import { sameOriginWrites, securityHeaders } from './http/security.js';
 import authRoutes from './routes/auth.js';
 import usersRoutes from './routes/users.js';
 import studiesRoutes from './routes/studies.js';
@@ -19,13 +20,15 @@ import reportsRoutes from './routes/reports.js';
 import sharesRoutes from './routes/shares.js';
 import outboxRoutes from './routes/outbox.js';
 
-const CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
+const DEFAULT_CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
 
 export function createApp(ctx: AppContext) {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', ctx.env.TRUST_PROXY === '1');
+  app.use(securityHeaders());
   app.use(cookieParser());
+  app.use('/api', sameOriginWrites(ctx));
   app.use('/api', express.json({ limit: '2mb' }));
   app.use('/api', authenticate(ctx));
 
@@ -40,6 +43,7 @@ export function createApp(ctx: AppContext) {
   app.use('/api', notFoundApi);
 
   // the built client (npm start builds it first); any non-API path serves index.html
+  const CLIENT_DIR = ctx.env.CLIENT_DIR ? path.resolve(ctx.env.CLIENT_DIR) : DEFAULT_CLIENT_DIR;
   if (fs.existsSync(path.join(CLIENT_DIR, 'index.html'))) {
     app.use(express.static(CLIENT_DIR, { index: false, maxAge: '1h' }));
     app.get(/^(?!\/api\/).*/, (_req, res) => res.sendFile(path.join(CLIENT_DIR, 'index.html')));

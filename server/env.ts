@@ -23,6 +23,8 @@ const EnvSchema = z.object({
   SEED_DEMO: z.enum(['auto', 'never']).default('auto'),
   TRUST_PROXY: z.enum(['0', '1']).default('0'),
   NODE_ENV: z.string().default('development'),
+  /** folder of the built client (vite build output) */
+  CLIENT_DIR: z.string().min(1).optional(),
 });
 
 export type Env = z.infer<typeof EnvSchema> & { SESSION_SECRET: string; DATA_DIR: string };

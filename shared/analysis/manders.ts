@@ -1,0 +1,37 @@
+/**
+ * Manders' split coefficients (Manders, Verbeek & Aten 1993, "Measurement of co-localization of objects in
+ * dual-colour confocal images", J. Microsc. 169:375, doi:10.1111/j.1365-2818.1993.tb03313.x), with
+ * thresholds as in Costes et al. (2004), Biophys. J. 86:3993, doi:10.1529/biophysj.103.038422:
+ *   M1 = Σ x_i [x_i > T1 and y_i > T2] / Σ x_i [x_i > T1],   M2 = Σ y_i [x_i > T1 and y_i > T2] / Σ y_i [y_i > T2].
+ * "Above" is strictly greater. Raw intensities (no shift); compensated sums.
+ *
+ * Degenerate cases: a denominator of 0 (no pixel above threshold, or all of them zero) → null; a null
+ * threshold (e.g. Costes undefined) → null.
+ */
+import { NeumaierSum } from './numeric';
+import type { Pairs } from './pairs';
+
+export interface MandersResult {
+  m1: number | null;
+  m2: number | null;
+}
+
+export function manders(p: Pairs, t1: number | null, t2: number | null): MandersResult {
+  if (t1 === null || t2 === null || !Number.isFinite(t1) || !Number.isFinite(t2)) return { m1: null, m2: null };
+  const { x, y, n } = p;
+  const num1 = new NeumaierSum(), den1 = new NeumaierSum(), num2 = new NeumaierSum(), den2 = new NeumaierSum();
+  for (let i = 0; i < n; i++) {
+    const a = x[i], b = y[i];
+    const ax = a > t1, by = b > t2;
+    if (ax) {
+      den1.add(a);
+      if (by) num1.add(a);
+    }
+    if (by) {
+      den2.add(b);
+      if (ax) num2.add(b);
+    }
+  }
+  const d1 = den1.value(), d2 = den2.value();
+  return { m1: d1 !== 0 ? num1.value() / d1 : null, m2: d2 !== 0 ? num2.value() / d2 : null };
+}

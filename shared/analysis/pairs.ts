@@ -1,0 +1,212 @@
+/**
+ * Collecting the (x, y) intensity pairs of a region and the level structure the exact rank-based and
+ * distance-based coefficients share.
+ *
+ * Integer channels (8/16-bit, or any integer data within 0..65535) keep their values in a Uint16Array and
+ * get their levels by counting (O(n + L), L ≤ 65,536); other data (32-bit float, wide integers) is stored
+ * as Float64 and gets its levels by sorting (O(n log n)). Pairs where either value is NaN are dropped
+ * (decided here: a NaN pixel carries no intensity). ±Infinity is rejected with a RangeError.
+ */
+import type { ChannelArray, RegionSpec } from './types';
+
+export type PairArray = Uint16Array | Float64Array;
+export type RankArray = Uint16Array | Uint32Array;
+
+export interface Pairs {
+  n: number;
+  x: PairArray;
+  y: PairArray;
+  /** true when both arrays hold integers in 0..65535 (Uint16Array storage) */
+  integer: boolean;
+}
+
+/** Dense levels of one variable: the distinct values in ascending order, their counts, each item's level. */
+export interface LevelIndex {
+  /** number of distinct values */
+  L: number;
+  /** level (0..L−1) of each item */
+  rank: RankArray;
+  /** the distinct values, ascending */
+  values: Float64Array;
+  /** how many items take each value */
+  counts: Int32Array;
+}
+
+/** Items ordered by level with a counting sort: items of level k are order[start[k] .. start[k+1]). */
+export interface LevelOrder {
+  order: Uint32Array;
+  start: Int32Array;
+}
+
+function isSmallUnsigned(a: ChannelArray): boolean {
+  return a instanceof Uint8Array || a instanceof Uint8ClampedArray || a instanceof Uint16Array;
+}
+
+/** Pairs from plain arrays (tests, previews). Integer storage is chosen when every value fits. */
+export function pairsFromArrays(x: ArrayLike<number>, y: ArrayLike<number>): Pairs {
+  if (x.length !== y.length) throw new RangeError(`x and y differ in length: ${x.length} vs ${y.length}`);
+  const n = x.length;
+  let integer = true;
+  for (let i = 0; i < n && integer; i++) {
+    const a = x[i];
+    const b = y[i];
+    if (!(Number.isInteger(a) && a >= 0 && a <= 65535 && Number.isInteger(b) && b >= 0 && b <= 65535)) integer = false;
+  }
+  if (integer) return { n, x: Uint16Array.from(x), y: Uint16Array.from(y), integer };
+  const xs = new Float64Array(n);
+  const ys = new Float64Array(n);
+  let m = 0;
+  for (let i = 0; i < n; i++) {
+    const a = x[i];
+    const b = y[i];
+    if (Number.isNaN(a) || Number.isNaN(b)) continue;
+    if (!Number.isFinite(a) || !Number.isFinite(b)) throw new RangeError(`infinite intensity at item ${i}: (${a}, ${b})`);
+    xs[m] = a;
+    ys[m] = b;
+    m++;
+  }
+  return { n: m, x: m === n ? xs : xs.slice(0, m), y: m === n ? ys : ys.slice(0, m), integer: false };
+}
+
+/**
+ * The (x, y) pairs of a region of two same-sized channels. `region` null means the whole image.
+ * Indices out of range throw a RangeError quoting the index.
+ */
+export function collectPairs(ch1: ChannelArray, ch2: ChannelArray, region: RegionSpec): Pairs {
+  if (ch1.length !== ch2.length) throw new RangeError(`channels differ in size: ${ch1.length} vs ${ch2.length} pixels`);
+  const N = ch1.length;
+  let idx: ArrayLike<number> | null = null;
+  let n: number;
+  if (region === null) n = N;
+  else if (region.kind === 'mask') {
+    const mask = region.mask;
+    if (mask.length !== N) throw new RangeError(`mask has ${mask.length} pixels, the image ${N}`);
+    let c = 0;
+    for (let i = 0; i < N; i++) if (mask[i] !== 0) c++;
+    const ix = new Uint32Array(c);
+    c = 0;
+    for (let i = 0; i < N; i++) if (mask[i] !== 0) ix[c++] = i;
+    idx = ix;
+    n = c;
+  } else {
+    idx = region.indices;
+    n = idx.length;
+    for (let k = 0; k < n; k++) {
+      const i = idx[k];
+      if (!(Number.isInteger(i) && i >= 0 && i < N)) throw new RangeError(`pixel index out of range: ${i} (image has ${N} pixels)`);
+    }
+  }
+  const wide = !(isSmallUnsigned(ch1) && isSmallUnsigned(ch2));
+  if (!wide) {
+    const x = new Uint16Array(n);
+    const y = new Uint16Array(n);
+    if (idx === null) {
+      x.set(ch1 as ArrayLike<number>);
+      y.set(ch2 as ArrayLike<number>);
+    } else {
+      for (let k = 0; k < n; k++) {
+        const i = idx[k];
+        x[k] = ch1[i];
+        y[k] = ch2[i];
+      }
+    }
+    return { n, x, y, integer: true };
+  }
+  const xs: number[] | Float64Array = new Float64Array(n);
+  const ys = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const i = idx === null ? k : idx[k];
+    xs[k] = ch1[i];
+    ys[k] = ch2[i];
+  }
+  // wide integer data that fits 0..65535 takes the integer paths too
+  return pairsFromArrays(xs, ys);
+}
+
+/** Levels of one variable: counting for Uint16 storage, sorting otherwise. */
+export function levelIndex(v: PairArray, n = v.length): LevelIndex {
+  if (v instanceof Uint16Array) {
+    let max = 0;
+    for (let i = 0; i < n; i++) if (v[i] > max) max = v[i];
+    const cnt = new Int32Array(max + 1);
+    for (let i = 0; i < n; i++) cnt[v[i]]++;
+    const map = new Uint16Array(max + 1);
+    let L = 0;
+    for (let k = 0; k <= max; k++) if (cnt[k] > 0) map[k] = L++;
+    const values = new Float64Array(L);
+    const counts = new Int32Array(L);
+    for (let k = 0; k <= max; k++) {
+      if (cnt[k] > 0) {
+        values[map[k]] = k;
+        counts[map[k]] = cnt[k];
+      }
+    }
+    const rank = new Uint16Array(n);
+    for (let i = 0; i < n; i++) rank[i] = map[v[i]];
+    return { L, rank, values, counts };
+  }
+  const sorted = Float64Array.prototype.slice.call(v, 0, n).sort();
+  let L = 0;
+  for (let i = 0; i < n; i++) if (i === 0 || sorted[i] !== sorted[i - 1]) sorted[L++] = sorted[i];
+  const values = sorted.slice(0, L);
+  const counts = new Int32Array(L);
+  const rank: RankArray = L <= 65536 ? new Uint16Array(n) : new Uint32Array(n);
+  for (let i = 0; i < n; i++) {
+    const t = v[i];
+    let lo = 0;
+    let hi = L - 1;
+    while (lo < hi) {
+      const mid = (lo + hi) >>> 1;
+      if (values[mid] < t) lo = mid + 1;
+      else hi = mid;
+    }
+    rank[i] = lo;
+    counts[lo]++;
+  }
+  return { L, rank, values, counts };
+}
+
+/** Counting sort of items by level: O(n + L). Stable. */
+export function levelOrder(li: LevelIndex): LevelOrder {
+  const { L, rank, counts } = li;
+  const n = rank.length;
+  const start = new Int32Array(L + 1);
+  for (let k = 0; k < L; k++) start[k + 1] = start[k] + counts[k];
+  const pos = start.slice(0, L);
+  const order = new Uint32Array(n);
+  for (let i = 0; i < n; i++) order[pos[rank[i]]++] = i;
+  return { order, start };
+}
+
+/**
+ * Pairs with lazily computed, cached level structures so that the coefficients of one region share
+ * one pass of counting (measureRegion computes each piece at most once).
+ */
+export class PreparedPairs implements Pairs {
+  readonly n: number;
+  readonly x: PairArray;
+  readonly y: PairArray;
+  readonly integer: boolean;
+  private _lx?: LevelIndex;
+  private _ly?: LevelIndex;
+  private _ox?: LevelOrder;
+  constructor(p: Pairs) {
+    this.n = p.n;
+    this.x = p.x;
+    this.y = p.y;
+    this.integer = p.integer;
+  }
+  get levelsX(): LevelIndex {
+    return (this._lx ??= levelIndex(this.x, this.n));
+  }
+  get levelsY(): LevelIndex {
+    return (this._ly ??= levelIndex(this.y, this.n));
+  }
+  get orderX(): LevelOrder {
+    return (this._ox ??= levelOrder(this.levelsX));
+  }
+}
+
+export function prepare(p: Pairs | PreparedPairs): PreparedPairs {
+  return p instanceof PreparedPairs ? p : new PreparedPairs(p);
+}

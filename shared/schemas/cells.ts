@@ -1,0 +1,120 @@
+/**
+ * Cells (regions of interest) of a field: request and response shapes shared by server/routes/cells.ts and
+ * the workspace client (src/features/workspace). Coordinates are image pixels; the pixel (x, y) covers
+ * [x, x+1) × [y, y+1) and belongs to an outline when its centre (x+0.5, y+0.5) is inside by the even-odd
+ * rule (shared/analysis/rasterize.ts is the one implementation).
+ */
+import { z } from 'zod';
+
+/** Largest vertex count accepted for one outline (freehand strokes are thinned on the client). */
+export const MAX_VERTICES = 20000;
+/** Longest cell name. */
+export const MAX_CELL_NAME = 120;
+
+const coord = z.number().finite().gte(-1e6).lte(1e6);
+const Point = z.tuple([coord, coord]);
+
+export const PolygonGeometry = z.object({ kind: z.literal('polygon'), points: z.array(Point).min(3, 'an outline needs at least 3 points').max(MAX_VERTICES) });
+export const FreehandGeometry = z.object({ kind: z.literal('freehand'), points: z.array(Point).min(3, 'an outline needs at least 3 points').max(MAX_VERTICES) });
+export const RectGeometry = z.object({
+  kind: z.literal('rect'),
+  x: coord,
+  y: coord,
+  width: z.number().finite().positive('width must be > 0'),
+  height: z.number().finite().positive('height must be > 0'),
+});
+export const EllipseGeometry = z.object({
+  kind: z.literal('ellipse'),
+  cx: coord,
+  cy: coord,
+  rx: z.number().finite().positive('rx must be > 0'),
+  ry: z.number().finite().positive('ry must be > 0'),
+});
+/**
+ * A cell imported from a label image: `rle` is the run-length code of its mask over the field in row-major
+ * order, flat pairs [start, length, start, length, …] where start is the linear index y·width + x; runs are
+ * sorted, non-overlapping and never empty. Exact by construction (no outline tracing).
+ */
+export const LabelGeometry = z.object({
+  kind: z.literal('label'),
+  label: z.number().int().positive(),
+  rle: z.array(z.number().int().nonnegative()).max(4_000_000),
+});
+
+export const CellGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry, LabelGeometry]);
+export type CellGeometry = z.infer<typeof CellGeometrySchema>;
+/** Geometries a user can draw (label masks only come from an import). */
+export const DrawnGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry]);
+export type DrawnGeometry = z.infer<typeof DrawnGeometrySchema>;
+
+export const CellRole = z.enum(['cell', 'background']);
+export type CellRole = z.infer<typeof CellRole>;
+export const CellSource = z.enum(['drawn', 'label_image', 'automatic', 'seed']);
+
+export const Cell = z.object({
+  id: z.number().int(),
+  fieldId: z.number().int(),
+  name: z.string(),
+  role: CellRole,
+  geometry: CellGeometrySchema,
+  source: CellSource,
+  pixelCount: z.number().int(),
+  excluded: z.boolean(),
+  exclusionReason: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type Cell = z.infer<typeof Cell>;
+
+export const CellList = z.object({ cells: z.array(Cell) });
+export type CellList = z.infer<typeof CellList>;
+
+export const CreateCellRequest = z.object({
+  name: z.string().trim().min(1, 'give the cell a name').max(MAX_CELL_NAME).optional(),
+  role: CellRole.default('cell'),
+  geometry: DrawnGeometrySchema,
+});
+export type CreateCellRequest = z.input<typeof CreateCellRequest>;
+
+export const UpdateCellRequest = z
+  .object({
+    name: z.string().trim().min(1, 'give the cell a name').max(MAX_CELL_NAME).optional(),
+    role: CellRole.optional(),
+    geometry: DrawnGeometrySchema.optional(),
+  })
+  .refine((v) => v.name !== undefined || v.role !== undefined || v.geometry !== undefined, 'nothing to change: send name, role or geometry');
+export type UpdateCellRequest = z.infer<typeof UpdateCellRequest>;
+
+export const CellResponse = z.object({ cell: Cell });
+export const DeleteCellResponse = z.object({ ok: z.literal(true), soft: z.boolean() });
+
+/** Automatic outlines (shared/analysis/segment.ts). Every parameter is stated so a result can be repeated. */
+export const AutoOutlineRequest = z.object({
+  /** which intensities to threshold */
+  channel: z.enum(['ch1', 'ch2', 'sum']).default('sum'),
+  /** 'otsu' (Otsu 1979) or a manual level; foreground is value > level */
+  threshold: z.discriminatedUnion('method', [z.object({ method: z.literal('otsu') }), z.object({ method: z.literal('manual'), level: z.number().finite() })]).default({ method: 'otsu' }),
+  /** z slice or maximum-intensity projection for stacks */
+  z: z.union([z.number().int().nonnegative(), z.literal('mip')]).optional(),
+  fillHoles: z.boolean().default(true),
+  /** split touching cells by a distance-transform watershed */
+  split: z.boolean().default(true),
+  /** minimum distance (pixels) between two seeds of the watershed: smaller splits more */
+  seedDistance: z.number().finite().min(1).max(500).default(5),
+  minPixels: z.number().int().min(1).default(30),
+  maxPixels: z.number().int().min(1).nullable().default(null),
+  /** when true, existing automatic outlines of the field are replaced (deleted or soft-deleted) */
+  replace: z.boolean().default(false),
+});
+export type AutoOutlineRequest = z.input<typeof AutoOutlineRequest>;
+
+export const AutoOutlineResponse = z.object({
+  cells: z.array(Cell),
+  level: z.number().nullable(),
+  found: z.number().int(),
+  droppedSmall: z.number().int(),
+  droppedLarge: z.number().int(),
+});
+export type AutoOutlineResponse = z.infer<typeof AutoOutlineResponse>;
+
+export const ImportLabelsResponse = z.object({ cells: z.array(Cell), labels: z.number().int() });
+export type ImportLabelsResponse = z.infer<typeof ImportLabelsResponse>;

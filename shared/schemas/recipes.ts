@@ -1,0 +1,257 @@
+/**
+ * Recipes: the one shape of quantification settings (`RecipeSettings`), read by the server runs, the
+ * `analyze` command, the recipe editor (one explaining sentence per setting, `describeSetting`) and the
+ * methods paragraph of reports.
+ *
+ * Method references (for the sentences and the methods paragraph):
+ * - Otsu N. (1979) A threshold selection method from gray-level histograms. IEEE Trans. Syst. Man Cybern.
+ *   9:62–66. doi:10.1109/TSMC.1979.4310076
+ * - Costes S.V. et al. (2004) Automatic and quantitative measurement of protein-protein colocalization in
+ *   live cells. Biophys. J. 86:3993–4003. doi:10.1529/biophysj.103.038422
+ * - Manders E.M.M., Verbeek F.J., Aten J.A. (1993) Measurement of co-localization of objects in dual-colour
+ *   confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x
+ */
+import { z } from 'zod';
+
+// ---------------------------------------------------------------- settings
+
+export const BackgroundSetting = z.discriminatedUnion('method', [
+  z.object({ method: z.literal('none') }),
+  /** subtract a fixed value per channel (values below it become 0) */
+  z.object({ method: z.literal('constant'), ch1: z.number().finite().min(0), ch2: z.number().finite().min(0) }),
+  /** subtract the mean of the field's regions marked 'background' (cells with role 'background') */
+  z.object({ method: z.literal('region') }),
+]);
+export type BackgroundSetting = z.infer<typeof BackgroundSetting>;
+
+export const CostesStoppingRule = z.object({
+  /** stop at the first (highest) threshold where Pearson's r of the below-threshold pixels is ≤ r */
+  kind: z.literal('r_at_most'),
+  r: z.number().min(-1).max(1).default(0),
+});
+
+export const ThresholdSetting = z.discriminatedUnion('method', [
+  z.object({ method: z.literal('none') }),
+  z.object({ method: z.literal('manual'), t1: z.number().finite(), t2: z.number().finite() }),
+  z.object({ method: z.literal('otsu') }),
+  z.object({
+    method: z.literal('costes'),
+    regression: z.enum(['orthogonal', 'ols']).default('orthogonal'),
+    /** which pixels count as "below" while stepping: x ≤ T1 or y ≤ T2 ('either'), or both */
+    belowSet: z.enum(['either', 'both']).default('either'),
+    stoppingRule: CostesStoppingRule.default({ kind: 'r_at_most', r: 0 }),
+  }),
+]);
+export type ThresholdSetting = z.infer<typeof ThresholdSetting>;
+
+export const BlockSizeSetting = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('pixels'), pixels: z.number().int().min(1).max(256) }),
+  /** block edge = round(psfWidthUm / pixel size); pixel size from the recipe, or the field's when null */
+  z.object({ kind: z.literal('psf'), psfWidthUm: z.number().positive().max(100), pixelSizeUm: z.number().positive().max(100).nullable().default(null) }),
+]);
+export type BlockSizeSetting = z.infer<typeof BlockSizeSetting>;
+
+export const RandomizationSetting = z.object({
+  enabled: z.boolean().default(false),
+  count: z.number().int().min(1).max(10_000).default(200),
+  blockSize: BlockSizeSetting.default({ kind: 'pixels', pixels: 3 }),
+});
+export type RandomizationSetting = z.infer<typeof RandomizationSetting>;
+
+export const ZSetting = z.discriminatedUnion('mode', [
+  /** one slice, 0-based */
+  z.object({ mode: z.literal('slice'), slice: z.number().int().min(0).default(0) }),
+  /** maximum-intensity projection of slices from..to (0-based, inclusive) */
+  z.object({ mode: z.literal('range'), from: z.number().int().min(0), to: z.number().int().min(0) }),
+  /** maximum-intensity projection of all slices */
+  z.object({ mode: z.literal('mip') }),
+]).refine((z) => z.mode !== 'range' || z.from <= z.to, { message: 'z range: "from" must not be after "to"' });
+export type ZSetting = z.infer<typeof ZSetting>;
+
+export const COEFFICIENTS = ['pearson', 'spearman', 'kendallTauB', 'distanceCorrelation', 'manders', 'overlap', 'icq'] as const;
+export const Coefficient = z.enum(COEFFICIENTS);
+export type Coefficient = z.infer<typeof Coefficient>;
+export const COEFFICIENT_LABELS: Record<Coefficient, string> = {
+  pearson: "Pearson's r",
+  spearman: "Spearman's ρ",
+  kendallTauB: "Kendall's τ-b",
+  distanceCorrelation: 'distance correlation (dCor, bias-corrected dCor² and its t-test)',
+  manders: "Manders' M1 and M2",
+  overlap: "Manders' overlap coefficient with k1 and k2",
+  icq: "Li's intensity correlation quotient (ICQ)",
+};
+
+export const RecipeSettings = z.object({
+  background: BackgroundSetting.default({ method: 'none' }),
+  saturation: z.enum(['keep', 'exclude']).default('keep'),
+  threshold: ThresholdSetting.default({ method: 'costes', regression: 'orthogonal', belowSet: 'either', stoppingRule: { kind: 'r_at_most', r: 0 } }),
+  randomization: RandomizationSetting.default({ enabled: false, count: 200, blockSize: { kind: 'pixels', pixels: 3 } }),
+  z: ZSetting.default({ mode: 'slice', slice: 0 }),
+  /** cells with fewer measured pixels get a measurement row with every coefficient null */
+  minCellPixels: z.number().int().min(0).max(100_000_000).default(20),
+  coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...COEFFICIENTS])
+    .transform((a) => COEFFICIENTS.filter((c) => a.includes(c))),
+  /** seed of the randomization test's generator (a run with the same seed repeats exactly) */
+  seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
+});
+export type RecipeSettings = z.infer<typeof RecipeSettings>;
+export type RecipeSettingsInput = z.input<typeof RecipeSettings>;
+
+export const DEFAULT_RECIPE_SETTINGS: RecipeSettings = RecipeSettings.parse({});
+
+export const SETTING_KEYS = ['background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'seed'] as const;
+export type SettingKey = (typeof SETTING_KEYS)[number];
+export const SETTING_LABELS: Record<SettingKey, string> = {
+  background: 'Background',
+  saturation: 'Saturated pixels',
+  threshold: 'Threshold',
+  randomization: 'Randomization test',
+  z: 'Z slices',
+  minCellPixels: 'Smallest cell',
+  coefficients: 'Coefficients',
+  seed: 'Seed',
+};
+
+const fmt = (n: number) => (Number.isInteger(n) ? String(n) : String(Number(n.toPrecision(6))));
+
+/** One plain sentence explaining the current value of one setting (the editor shows it; reports reuse it). */
+export function describeSetting(key: SettingKey, s: RecipeSettings): string {
+  switch (key) {
+    case 'background': {
+      const b = s.background;
+      if (b.method === 'none') return 'Raw intensities are used; no background is subtracted.';
+      if (b.method === 'constant')
+        return `A constant background of ${fmt(b.ch1)} (channel 1) and ${fmt(b.ch2)} (channel 2) is subtracted from every pixel; values below it become 0.`;
+      return "The mean intensity of the field's marked background region is subtracted from every pixel, per channel; values below it become 0.";
+    }
+    case 'saturation':
+      return s.saturation === 'keep'
+        ? 'Saturated pixels (at the maximum value of the bit depth) are kept in the measurement and reported as a fraction.'
+        : 'Pixels saturated in either channel (at the maximum value of the bit depth) are left out before anything is computed.';
+    case 'threshold': {
+      const t = s.threshold;
+      if (t.method === 'none') return "No threshold: every pixel of the cell counts as foreground for Manders' M1 and M2.";
+      if (t.method === 'manual')
+        return `Fixed thresholds: channel 1 counts as foreground above ${fmt(t.t1)} and channel 2 above ${fmt(t.t2)}.`;
+      if (t.method === 'otsu') return "Each channel's threshold is chosen per cell by Otsu's method (Otsu 1979) on the full intensity histogram; foreground is above it.";
+      return (
+        `Thresholds are found per cell by the Costes method (Costes et al. 2004): along the ${t.regression === 'orthogonal' ? 'orthogonal (total least squares)' : 'ordinary least squares'} regression line, ` +
+        `stepping down until Pearson's r of the pixels below ${t.belowSet === 'either' ? 'either' : 'both'} threshold${t.belowSet === 'either' ? '' : 's'} is at most ${fmt(t.stoppingRule.r)}.`
+      );
+    }
+    case 'randomization': {
+      const r = s.randomization;
+      if (!r.enabled) return 'No randomization test is run.';
+      const block =
+        r.blockSize.kind === 'pixels'
+          ? `${r.blockSize.pixels} × ${r.blockSize.pixels}-pixel blocks`
+          : `blocks as wide as the point-spread function (${fmt(r.blockSize.psfWidthUm)} µm at ${r.blockSize.pixelSizeUm == null ? "the field's pixel size" : `${fmt(r.blockSize.pixelSizeUm)} µm per pixel`})`;
+      return `Channel 1 is scrambled in ${block} ${r.count} times and the fraction of scrambles with Pearson's r at least the observed one is reported (Costes et al. 2004).`;
+    }
+    case 'z': {
+      const z = s.z;
+      if (z.mode === 'slice') return `Slice ${z.slice + 1} of each stack is measured (the only slice for single-plane fields).`;
+      if (z.mode === 'range') return `The maximum-intensity projection of slices ${z.from + 1} to ${z.to + 1} is measured.`;
+      return 'The maximum-intensity projection of all slices is measured.';
+    }
+    case 'minCellPixels':
+      return s.minCellPixels > 0
+        ? `Cells with fewer than ${s.minCellPixels} measured pixels are listed without coefficients.`
+        : 'Every cell is measured, however small.';
+    case 'coefficients':
+      return `Computed: ${s.coefficients.map((c) => COEFFICIENT_LABELS[c]).join(', ')}.`;
+    case 'seed':
+      return `The random generator starts from seed ${s.seed}, so the same run gives the same numbers again.`;
+  }
+}
+
+/** Every setting's sentence, in editor order. */
+export const describeSettings = (s: RecipeSettings) => SETTING_KEYS.map((k) => ({ key: k, label: SETTING_LABELS[k], sentence: describeSetting(k, s) }));
+
+// ---------------------------------------------------------------- API shapes
+
+export const RECIPE_STATUSES = ['draft', 'submitted', 'approved', 'returned', 'retired'] as const;
+export const RecipeStatus = z.enum(RECIPE_STATUSES);
+export type RecipeStatus = z.infer<typeof RecipeStatus>;
+
+export const UserRef = z.object({ id: z.number().int(), name: z.string() }).nullable();
+
+export const RecipeSummary = z.object({
+  id: z.number().int(),
+  familyId: z.number().int(),
+  name: z.string(),
+  version: z.number().int(),
+  status: RecipeStatus,
+  description: z.string(),
+  proposer: UserRef,
+  reviewer: UserRef,
+  reviewNote: z.string().nullable(),
+  submittedAt: z.string().nullable(),
+  reviewedAt: z.string().nullable(),
+  createdAt: z.string(),
+});
+export type RecipeSummary = z.infer<typeof RecipeSummary>;
+
+export const RecipeHistoryEvent = z.object({
+  at: z.string(),
+  action: z.string(),
+  actor: UserRef,
+  note: z.string().nullable(),
+});
+
+export const RecipeDetail = RecipeSummary.extend({
+  settings: RecipeSettings,
+  /** other versions of the same family, newest first */
+  versions: z.array(z.object({ id: z.number().int(), version: z.number().int(), status: RecipeStatus })),
+  history: z.array(RecipeHistoryEvent),
+  /** what the signed-in user may do now */
+  allowed: z.array(z.enum(['edit', 'submit', 'approve', 'return', 'retire', 'new_version'])),
+});
+export type RecipeDetail = z.infer<typeof RecipeDetail>;
+
+export const RecipeListQuery = z.object({
+  status: z.union([RecipeStatus, z.array(RecipeStatus)]).optional().transform((s) => (s === undefined ? undefined : Array.isArray(s) ? s : [s])),
+  familyId: z.coerce.number().int().positive().optional(),
+});
+export const RecipeListResponse = z.object({ recipes: z.array(RecipeSummary) });
+
+export const CreateRecipeRequest = z.object({
+  name: z.string().trim().min(1, 'give the recipe a name').max(120),
+  description: z.string().max(4000).default(''),
+  settings: RecipeSettings.default(DEFAULT_RECIPE_SETTINGS),
+});
+export type CreateRecipeRequest = z.input<typeof CreateRecipeRequest>;
+
+/** Editing a draft/returned version in place (approved/submitted/retired: 409; use new-version). */
+export const UpdateRecipeRequest = z.object({
+  name: z.string().trim().min(1).max(120).optional(),
+  description: z.string().max(4000).optional(),
+  settings: RecipeSettings.optional(),
+});
+export type UpdateRecipeRequest = z.input<typeof UpdateRecipeRequest>;
+
+/** submit / approve / return / retire; a note is required to return */
+export const RecipeTransitionRequest = z.object({ note: z.string().trim().max(4000).optional() });
+
+export const RecipeDiffEntry = z.object({
+  key: z.string(),
+  label: z.string(),
+  a: z.string(),
+  b: z.string(),
+  changed: z.boolean(),
+});
+export const RecipeDiffResponse = z.object({
+  a: RecipeSummary,
+  b: RecipeSummary,
+  entries: z.array(RecipeDiffEntry),
+});
+export type RecipeDiffResponse = z.infer<typeof RecipeDiffResponse>;
+
+/** Setting-by-setting comparison of two settings objects (the editor's side-by-side view). */
+export function diffSettings(a: RecipeSettings, b: RecipeSettings) {
+  return SETTING_KEYS.map((key) => {
+    const sa = describeSetting(key, a);
+    const sb = describeSetting(key, b);
+    return { key, label: SETTING_LABELS[key], a: sa, b: sb, changed: JSON.stringify(a[key]) !== JSON.stringify(b[key]) };
+  });
+}

@@ -1,0 +1,290 @@
+/**
+ * Reports: a frozen snapshot of a study's comparison. Shared by server/routes/reports.ts and src/features/reports.
+ *
+ * Routes (under /api, session cookie required):
+ *   GET  /studies/:studyId/reports          → ReportListResponse (newest first; 'read')
+ *   POST /studies/:studyId/reports          CreateReportRequest → ReportDetail (201; 'report')
+ *   GET  /reports/:id                        → ReportDetail ('read' on its study)
+ *   GET  /reports/:id/csv/:table             → text/csv (table: cells | coverslips | conditions | statistics | exclusions)
+ * The shared (token) variants live in shared/schemas/shares.ts.
+ *
+ * The snapshot is written once at creation and never updated: later runs, exclusions or recipe versions do not
+ * change it (a newer report can be made). JSON carries null for undefined values, never NaN.
+ */
+import { z } from 'zod';
+import { Id, IsoDate } from './common.js';
+
+/** Per-cell values a report can carry (the measurement columns of server/db/schema.ts). */
+export const REPORT_COEFFICIENTS = [
+  'pearson',
+  'spearman',
+  'kendallTauB',
+  'distanceCorrelation',
+  'dcorBiasCorrectedSq',
+  'mandersM1',
+  'mandersM2',
+  'overlap',
+  'k1',
+  'k2',
+  'icq',
+] as const;
+export const ReportCoefficient = z.enum(REPORT_COEFFICIENTS);
+export type ReportCoefficient = z.infer<typeof ReportCoefficient>;
+
+/** Screen labels (trade terms). */
+export const COEFFICIENT_LABELS: Record<ReportCoefficient, string> = {
+  pearson: "Pearson's r",
+  spearman: "Spearman's ρ",
+  kendallTauB: "Kendall's τ-b",
+  distanceCorrelation: 'distance correlation (dCor)',
+  dcorBiasCorrectedSq: 'bias-corrected dCor²',
+  mandersM1: "Manders' M1",
+  mandersM2: "Manders' M2",
+  overlap: 'overlap coefficient',
+  k1: 'k1',
+  k2: 'k2',
+  icq: 'ICQ',
+};
+
+/** Correlation-type coefficients are averaged through Fisher's z (atanh) at the coverslip level. */
+export const CORRELATION_COEFFICIENTS: ReadonlySet<ReportCoefficient> = new Set(['pearson', 'spearman', 'kendallTauB']);
+
+export const CreateReportRequest = z.object({
+  title: z.string({ message: 'enter a title' }).trim().min(1, 'enter a title').max(200, 'a title has at most 200 characters'),
+  notes: z.string().max(10000, 'notes have at most 10000 characters').default(''),
+  coefficients: z.array(ReportCoefficient).min(1, 'choose at least one coefficient').max(REPORT_COEFFICIENTS.length),
+  /** only measurements of runs with this recipe version (default: each cell's latest measurement) */
+  recipeId: Id.optional(),
+  /** restrict to these conditions (default: all, in study order) */
+  conditionIds: z.array(Id).min(1).optional(),
+  /** the cell whose pixel scatter the report shows (default: the first cell of the first representative field) */
+  scatterCellId: Id.optional(),
+});
+export type CreateReportRequest = z.input<typeof CreateReportRequest>;
+
+const Num = z.number().nullable();
+
+export const SnapshotRecipe = z.object({
+  id: Id,
+  familyId: z.number().int().nullable(),
+  name: z.string(),
+  version: z.number().int(),
+  status: z.string(),
+  settings: z.record(z.string(), z.unknown()),
+  /** true when any run used for the report was provisional (recipe not approved at run time) */
+  provisional: z.boolean(),
+  runIds: z.array(Id),
+});
+export type SnapshotRecipe = z.infer<typeof SnapshotRecipe>;
+
+export const SnapshotRun = z.object({
+  id: Id,
+  recipeId: Id,
+  status: z.string(),
+  provisional: z.boolean(),
+  seed: z.number().int(),
+  engineVersion: z.string().nullable(),
+  finishedAt: z.string().nullable(),
+  /** z handling from the measurements' provenance ('mip', a plane number, …), null when not recorded */
+  zHandling: z.string().nullable(),
+});
+
+export const SnapshotCoverslip = z.object({
+  id: Id,
+  name: z.string(),
+  replicate: z.number().int(),
+  fields: z.number().int(),
+  cellsIncluded: z.number().int(),
+  cellsExcluded: z.number().int(),
+});
+export const SnapshotCondition = z.object({
+  id: Id,
+  name: z.string(),
+  coverslips: z.array(SnapshotCoverslip),
+  cellsIncluded: z.number().int(),
+  cellsExcluded: z.number().int(),
+  /** coverslips with at least one included measured cell (the replicates the tests use) */
+  coverslipsUsed: z.number().int(),
+});
+export type SnapshotCondition = z.infer<typeof SnapshotCondition>;
+
+export const SnapshotField = z.object({
+  id: Id,
+  name: z.string(),
+  conditionId: Id,
+  coverslipId: Id,
+  width: z.number().int(),
+  height: z.number().int(),
+  sizeZ: z.number().int(),
+  bitDepth: z.number().int(),
+  pixelSizeUm: Num,
+  saturatedFraction1: Num,
+  saturatedFraction2: Num,
+  channelNames: z.tuple([z.string().nullable(), z.string().nullable()]),
+});
+
+export const SnapshotCell = z.object({
+  cellId: Id,
+  name: z.string(),
+  fieldId: Id,
+  coverslipId: Id,
+  conditionId: Id,
+  excluded: z.boolean(),
+  exclusionReason: z.string().nullable(),
+  runId: z.number().int().nullable(),
+  pixels: z.number().int().nullable(),
+  values: z.record(z.string(), Num),
+  threshold1: Num,
+  threshold2: Num,
+  thresholdMethod: z.string().nullable(),
+  background1: Num,
+  background2: Num,
+  saturatedFraction1: Num,
+  saturatedFraction2: Num,
+  randomizationP: Num,
+});
+export type SnapshotCell = z.infer<typeof SnapshotCell>;
+
+export const SnapshotExclusion = z.object({
+  cellId: Id,
+  cellName: z.string(),
+  fieldName: z.string(),
+  coverslipName: z.string(),
+  conditionName: z.string(),
+  reason: z.string(),
+  excludedBy: z.string().nullable(),
+  excludedAt: z.string().nullable(),
+});
+
+export const CoverslipSummary = z.object({
+  coefficient: ReportCoefficient,
+  conditionId: Id,
+  coverslipId: Id,
+  coverslipName: z.string(),
+  n: z.number().int(),
+  /** mean of cells (through Fisher's z for correlation coefficients), null with no defined values */
+  mean: Num,
+  median: Num,
+});
+export type CoverslipSummary = z.infer<typeof CoverslipSummary>;
+
+export const ConditionSummary = z.object({
+  coefficient: ReportCoefficient,
+  conditionId: Id,
+  conditionName: z.string(),
+  cells: z.number().int(),
+  coverslips: z.number().int(),
+  /** mean of coverslip means (Fisher's z averaged for correlation coefficients) */
+  mean: Num,
+  sd: Num,
+  median: Num,
+  min: Num,
+  max: Num,
+});
+export type ConditionSummary = z.infer<typeof ConditionSummary>;
+
+export const StatisticRow = z.object({
+  coefficient: ReportCoefficient,
+  test: z.string(),
+  statistic: Num,
+  df: Num,
+  p: Num,
+  effect: Num,
+  effectLabel: z.string().nullable(),
+  ciLow: Num,
+  ciHigh: Num,
+  /** plain-English result */
+  sentence: z.string(),
+  /** 'compare' = from the comparison module (server/compare); 'report' = the report's own coverslip-level test */
+  source: z.enum(['compare', 'report']),
+});
+export type StatisticRow = z.infer<typeof StatisticRow>;
+
+export const Outline = z.object({
+  cellId: Id,
+  name: z.string(),
+  excluded: z.boolean(),
+  /** CellGeometry of server/db/schema.ts in full-resolution image pixels */
+  geometry: z.record(z.string(), z.unknown()),
+});
+export const Composite = z.object({
+  fieldId: Id,
+  fieldName: z.string(),
+  conditionId: Id,
+  coverslipName: z.string(),
+  width: z.number().int(),
+  height: z.number().int(),
+  /** small PNG (data URL) of the two-channel composite, or null when the pixels could not be read */
+  png: z.string().nullable(),
+  /** display ranges used for the PNG */
+  ranges: z.object({ lo1: z.number(), hi1: z.number(), lo2: z.number(), hi2: z.number() }).nullable(),
+  outlines: z.array(Outline),
+});
+export type Composite = z.infer<typeof Composite>;
+
+/** A 2-D histogram of one cell's (ch1, ch2) pixel pairs: counts[row * bins + col], row 0 = lowest ch2. */
+export const CellScatter = z.object({
+  cellId: Id,
+  cellName: z.string(),
+  fieldName: z.string(),
+  bins: z.number().int(),
+  max1: z.number(),
+  max2: z.number(),
+  counts: z.array(z.number().int()),
+  threshold1: Num,
+  threshold2: Num,
+  pixels: z.number().int(),
+});
+export type CellScatter = z.infer<typeof CellScatter>;
+
+export const ReportSnapshot = z.object({
+  schemaVersion: z.literal(1),
+  createdAt: IsoDate,
+  study: z.object({ id: Id, name: z.string(), description: z.string() }),
+  coefficients: z.array(ReportCoefficient),
+  engineVersions: z.array(z.string()),
+  anyProvisional: z.boolean(),
+  recipes: z.array(SnapshotRecipe),
+  runs: z.array(SnapshotRun),
+  conditions: z.array(SnapshotCondition),
+  fields: z.array(SnapshotField),
+  cells: z.array(SnapshotCell),
+  exclusions: z.array(SnapshotExclusion),
+  coverslipSummaries: z.array(CoverslipSummary),
+  conditionSummaries: z.array(ConditionSummary),
+  statistics: z.array(StatisticRow),
+  /** the comparison module's full result per coefficient (shape: Comparison of shared/schemas/compare.ts), null if unavailable */
+  comparisons: z.record(z.string(), z.unknown().nullable()),
+  composites: z.array(Composite),
+  scatter: CellScatter.nullable(),
+  saturation: z.object({ maxFraction1: Num, maxFraction2: Num, fieldsWithSaturation: z.number().int() }),
+  methods: z.string(),
+  cautions: z.array(z.string()),
+});
+export type ReportSnapshot = z.infer<typeof ReportSnapshot>;
+
+export const ReportSummary = z.object({
+  id: Id,
+  studyId: Id,
+  title: z.string(),
+  notes: z.string(),
+  coefficients: z.array(z.string()),
+  createdAt: IsoDate,
+  createdBy: z.string().nullable(),
+  cells: z.number().int(),
+  anyProvisional: z.boolean(),
+});
+export type ReportSummary = z.infer<typeof ReportSummary>;
+export const ReportListResponse = z.object({ reports: z.array(ReportSummary) });
+export type ReportListResponse = z.infer<typeof ReportListResponse>;
+
+export const ReportDetail = ReportSummary.extend({
+  snapshot: ReportSnapshot,
+  /** whether the signed-in user may share this report (false on the shared page) */
+  canShare: z.boolean(),
+});
+export type ReportDetail = z.infer<typeof ReportDetail>;
+
+export const CSV_TABLES = ['cells', 'coverslips', 'conditions', 'statistics', 'exclusions'] as const;
+export const CsvTable = z.enum(CSV_TABLES, { message: `table must be one of ${CSV_TABLES.join(', ')}` });
+export type CsvTable = z.infer<typeof CsvTable>;

@@ -1,0 +1,11 @@
+export { Button, ButtonLink, buttonClass } from './Button';
+export { TextField, TextArea, FieldShell, inputClass } from './TextField';
+export { Dialog, ConfirmDialog } from './Dialog';
+export { Card } from './Card';
+export { EmptyState } from './EmptyState';
+export { Badge } from './Badge';
+export { PageHeader } from './PageHeader';
+export { Caution, ErrorNotice } from './Caution';
+export { Spinner, Loading } from './Spinner';
+export { cx, focusRing } from './cx';
+export { validate, serverErrors, type FieldErrors } from './form';

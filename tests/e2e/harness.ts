@@ -1,0 +1,141 @@
+/**
+ * Browser-test harness: the real server (server/index.ts, child process) on a random loopback port with a
+ * fresh seeded DATA_DIR, and Debian's Chromium driven by playwright-core.
+ *
+ *   const srv = await startServer();            // { url, dataDir, stop() }
+ *   const browser = await launchBrowser();
+ *   const page = await newPage(browser, srv);   // page errors are collected: page.errors
+ *   await signIn(page, srv, 'microscopist@demo.test');
+ *   await shot(page, 'workspace-01-open');      // test-results/workspace-01-open.png
+ */
+import { spawn, type ChildProcess } from 'node:child_process';
+import fs from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { inject } from 'vitest';
+import { chromium, type Browser, type Page } from 'playwright-core';
+
+export const DEMO_PASSWORD = 'syntopy-demo';
+export const CHROMIUM = process.env.CHROMIUM_PATH ?? '/usr/bin/chromium';
+export const CHROMIUM_ARGS = [
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--disable-quic',
+  '--no-first-run',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
+];
+
+export interface RunningServer {
+  url: string;
+  port: number;
+  dataDir: string;
+  proc: ChildProcess;
+  output: () => string;
+  stop(signal?: NodeJS.Signals): Promise<void>;
+}
+
+export async function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+    s.on('error', reject);
+  });
+}
+
+/** Starts server/index.ts with tsx. `env` overrides (e.g. { SEED_DEMO: 'never' }); `dataDir` reuses a folder. */
+export async function startServer(opts: { env?: Record<string, string>; dataDir?: string; timeoutMs?: number } = {}): Promise<RunningServer> {
+  const port = await freePort();
+  const dataDir = opts.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'syntopy-e2e-data-'));
+  let clientDir: string | undefined;
+  try {
+    clientDir = inject('clientDir');
+  } catch {
+    clientDir = undefined;
+  }
+  const proc = spawn(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
+    cwd: path.resolve(import.meta.dirname, '../..'),
+    env: {
+      ...process.env,
+      NODE_ENV: 'production',
+      PORT: String(port),
+      HOST: '127.0.0.1',
+      DATA_DIR: dataDir,
+      ...(clientDir ? { CLIENT_DIR: clientDir } : {}),
+      ...opts.env,
+    },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  });
+  let out = '';
+  proc.stdout!.on('data', (d) => (out += d));
+  proc.stderr!.on('data', (d) => (out += d));
+  const url = `http://127.0.0.1:${port}`;
+  const deadline = Date.now() + (opts.timeoutMs ?? 90_000);
+  for (;;) {
+    if (proc.exitCode !== null) throw new Error(`server exited (${proc.exitCode}):\n${out}`);
+    try {
+      const r = await fetch(`${url}/api/health`);
+      if (r.ok) break;
+    } catch {
+      /* not up yet */
+    }
+    if (Date.now() > deadline) {
+      proc.kill('SIGKILL');
+      throw new Error(`server did not answer within ${opts.timeoutMs ?? 90_000} ms:\n${out}`);
+    }
+    await new Promise((r) => setTimeout(r, 200));
+  }
+  return {
+    url,
+    port,
+    dataDir,
+    proc,
+    output: () => out,
+    async stop(signal: NodeJS.Signals = 'SIGTERM') {
+      if (proc.exitCode !== null) return;
+      const done = new Promise<void>((r) => proc.once('exit', () => r()));
+      proc.kill(signal);
+      const t = setTimeout(() => proc.kill('SIGKILL'), 5000);
+      await done;
+      clearTimeout(t);
+    },
+  };
+}
+
+export async function launchBrowser(): Promise<Browser> {
+  return chromium.launch({ executablePath: CHROMIUM, headless: true, args: CHROMIUM_ARGS });
+}
+
+export type TrackedPage = Page & { errors: string[] };
+
+/** A page whose uncaught errors and console errors are collected in `page.errors`. */
+export async function newPage(browser: Browser, srv: RunningServer): Promise<TrackedPage> {
+  const context = await browser.newContext({ baseURL: srv.url, viewport: { width: 1400, height: 900 } });
+  const page = (await context.newPage()) as TrackedPage;
+  page.errors = [];
+  page.on('pageerror', (e) => page.errors.push(`pageerror: ${e.message}`));
+  page.on('console', (m) => {
+    // HTTP 4xx answers the app handles (e.g. 401 from /api/auth/me when signed out) are not page errors
+    if (m.type() === 'error' && !m.text().startsWith('Failed to load resource')) page.errors.push(`console: ${m.text()}`);
+  });
+  return page;
+}
+
+export async function signIn(page: Page, srv: RunningServer, email: string, password = DEMO_PASSWORD) {
+  await page.goto(`${srv.url}/signin`);
+  await page.getByLabel(/e-?mail/i).fill(email);
+  await page.getByLabel(/password/i).fill(password);
+  await page.getByRole('button', { name: /sign in/i }).click();
+  await page.waitForURL((u) => !u.pathname.startsWith('/signin'));
+}
+
+export async function shot(page: Page, name: string) {
+  fs.mkdirSync('test-results', { recursive: true });
+  await page.screenshot({ path: path.join('test-results', `${name}.png`), fullPage: true });
+}
