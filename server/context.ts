@@ -29,7 +29,7 @@ export async function createContext(env: Env): Promise<AppContext> {
   ctx.mail = await createMailer(ctx);
   ctx.store = await createFileStore(ctx);
   ctx.runs = await createRunQueue(ctx);
-  ctx.closers.push(() => ctx.runs.close(), () => ctx.mail.close(), () => db.$client.close());
+  ctx.closers.push(() => ctx.runs.close(), () => ctx.mail.close(), () => void db.$client.close());
   return ctx;
 }
 

@@ -38,7 +38,7 @@ export function sameOriginWrites(ctx: AppContext): RequestHandler {
   return (req, _res, next) => {
     if (!UNSAFE.has(req.method)) return next();
     const raw = req.get('origin') ?? (req.get('referer') ? safeOrigin(req.get('referer')!) : undefined);
-    if (!raw || raw === 'null' && !req.get('origin')) return next();
+    if (!raw) return next();
     const own = `${req.protocol}://${req.get('host')}`;
     if (raw === own || allowed.has(raw)) return next();
     // the Vite dev server proxies /api from another port on the same host

@@ -66,5 +66,11 @@ export class LocalFileStore implements FileStore {
 export const keyForSha = (sha: string) => `${sha.slice(0, 2)}/${sha}.tif`;
 
 export async function createFileStore(ctx: Pick<AppContext, 'env'>): Promise<FileStore> {
+  const url = ctx.env.STORE_URL;
+  if (url?.startsWith('s3://')) {
+    const { S3FileStore } = await import('./store-s3.js');
+    return S3FileStore.fromUrl(url, ctx.env.S3_ENDPOINT);
+  }
+  if (url?.startsWith('file://')) return new LocalFileStore(new URL(url).pathname);
   return new LocalFileStore(path.join(ctx.env.DATA_DIR, 'store'));
 }

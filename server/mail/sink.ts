@@ -15,7 +15,13 @@ export interface SmtpSink {
 }
 
 const addressText = (a: AddressObject | AddressObject[] | undefined) =>
-  a === undefined ? '' : (Array.isArray(a) ? a : [a]).flatMap((x) => x.value.map((v) => v.address ?? v.name)).filter(Boolean).join(', ');
+  a === undefined
+    ? ''
+    : (Array.isArray(a) ? a : [a])
+        .flatMap((x) => x.value)
+        .map((v) => (v.name && v.address ? `${v.name} <${v.address}>` : (v.address ?? v.name ?? '')))
+        .filter(Boolean)
+        .join(', ');
 
 export async function startSmtpSink(ctx: AppContext, opts: { maxBytes?: number } = {}): Promise<SmtpSink> {
   const server = new SMTPServer({

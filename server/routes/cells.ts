@@ -1,8 +1,300 @@
-/** API routes for cells. (placeholder until its owner fills it) */
+/**
+ * Cells (regions of interest) of a field:
+ *   GET    /api/fields/:id/cells            list (read)
+ *   POST   /api/fields/:id/cells            create a drawn outline or a background region (edit_images)
+ *   PATCH  /api/cells/:id                   rename, change role, move vertices → new geometry (edit_images)
+ *   DELETE /api/cells/:id                   delete; soft delete when measurements refer to the cell
+ *   POST   /api/fields/:id/cells/import     label TIFF (multipart field "file"): one cell per positive label
+ *   POST   /api/fields/:id/cells/auto       automatic outlines (shared/analysis/segment.ts)
+ * pixelCount is always computed here with the shared rasterizer (shared/schemas/cells.ts cellIndices).
+ * Every change writes an audit event in the same transaction.
+ */
 import { Router } from 'express';
+import multer from 'multer';
+import { and, asc, eq, isNull, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
+import { auditEvents, cells, conditions, coverslips, fields, measurements } from '../db/schema.js';
+import { requireStudy, type StudyAction } from '../auth/policy.js';
+import type { SessionUser } from '../auth/session.js';
+import { badRequest, notFound, parse, unauthorized, HttpError } from '../http/errors.js';
+import {
+  AutoOutlineRequest,
+  CreateCellRequest,
+  UpdateCellRequest,
+  cellIndices,
+  type Cell,
+  type CellGeometry,
+} from '../../shared/schemas/cells.js';
+import { labelRegions } from '../../shared/analysis/labels.js';
+import { otsuThreshold } from '../../shared/analysis/otsu.js';
+import { segmentCells } from '../../shared/analysis/segment.js';
 
-export default function cellsRoutes(_ctx: AppContext) {
+type CellRow = typeof cells.$inferSelect;
+type FieldRow = typeof fields.$inferSelect;
+
+/** Most cells one import or automatic run may create (a guard against a wrong file, not a science limit). */
+export const MAX_CELLS_PER_REQUEST = 5000;
+
+const idOf = (v: unknown, what: string) => {
+  const n = Number(v);
+  if (!Number.isInteger(n) || n <= 0) throw badRequest(`${what} id must be a positive integer, got ${JSON.stringify(v)}`);
+  return n;
+};
+
+export function toCell(r: CellRow): Cell {
+  return {
+    id: r.id,
+    fieldId: r.fieldId,
+    name: r.name,
+    role: r.role,
+    geometry: r.geometry as Cell['geometry'],
+    source: r.source,
+    pixelCount: r.pixelCount,
+    excluded: r.excluded,
+    exclusionReason: r.exclusionReason,
+    createdAt: r.createdAt,
+  };
+}
+
+/** The field and its study id, after the permission check (404 when not visible, 403 when not allowed). */
+export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fieldId: number, action: StudyAction): { field: FieldRow; studyId: number } {
+  if (!user) throw unauthorized();
+  const row = ctx.db
+    .select({ field: fields, studyId: conditions.studyId })
+    .from(fields)
+    .innerJoin(coverslips, eq(coverslips.id, fields.coverslipId))
+    .innerJoin(conditions, eq(conditions.id, coverslips.conditionId))
+    .where(eq(fields.id, fieldId))
+    .get();
+  if (!row || row.field.status === 'deleted') throw notFound(`no field with id ${fieldId}`);
+  requireStudy(ctx, user, row.studyId, action);
+  return row;
+}
+
+function loadCellFor(ctx: AppContext, user: SessionUser | undefined, cellId: number, action: StudyAction) {
+  const cell = ctx.db.select().from(cells).where(eq(cells.id, cellId)).get();
+  if (!cell || cell.deletedAt) throw notFound(`no cell with id ${cellId}`);
+  const { field, studyId } = loadFieldFor(ctx, user, cell.fieldId, action);
+  return { cell, field, studyId };
+}
+
+/** Pixel count under the one rasterization rule; an outline covering no pixel centre is refused. */
+function pixelCountOf(g: CellGeometry, field: FieldRow): number {
+  let n: number;
+  try {
+    n = cellIndices(g, field.width, field.height).length;
+  } catch (e) {
+    throw badRequest(`geometry: ${(e as Error).message}`);
+  }
+  if (n === 0) throw badRequest(`the outline covers no pixel centre of the ${field.width} × ${field.height} field; draw it over the image`);
+  return n;
+}
+
+const hasMeasurements = (ctx: AppContext, cellId: number) => !!ctx.db.select({ id: measurements.id }).from(measurements).where(eq(measurements.cellId, cellId)).limit(1).get();
+
+function nextName(ctx: AppContext, fieldId: number, role: 'cell' | 'background', prefix?: string) {
+  const n = ctx.db.select({ n: sql<number>`count(*)` }).from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.role, role))).get()?.n ?? 0;
+  return `${prefix ?? (role === 'background' ? 'Background' : 'Cell')} ${n + 1}`;
+}
+
+/** Deletes a cell: soft (deletedAt) when measurements refer to it, otherwise removes the row. */
+function removeCell(ctx: AppContext, tx: AppContext['db'], cell: CellRow): boolean {
+  if (hasMeasurements(ctx, cell.id)) {
+    tx.update(cells).set({ deletedAt: new Date().toISOString() }).where(eq(cells.id, cell.id)).run();
+    return true;
+  }
+  tx.delete(cells).where(eq(cells.id, cell.id)).run();
+  return false;
+}
+
+const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 512 * 1024 * 1024, files: 1 } });
+
+export default function cellsRoutes(ctx: AppContext) {
   const r = Router();
+
+  r.get('/fields/:id/cells', (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    loadFieldFor(ctx, req.user, fieldId, 'read');
+    const rows = ctx.db.select().from(cells).where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt))).orderBy(asc(cells.id)).all();
+    res.json({ cells: rows.map(toCell) });
+  });
+
+  r.post('/fields/:id/cells', (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    const body = parse(CreateCellRequest, req.body);
+    const pixelCount = pixelCountOf(body.geometry, field);
+    const row = ctx.db.transaction((tx) => {
+      const c = tx
+        .insert(cells)
+        .values({ fieldId, name: body.name ?? nextName(ctx, fieldId, body.role), role: body.role, geometry: body.geometry, source: 'drawn', pixelCount, createdBy: req.user!.id })
+        .returning()
+        .get();
+      tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'cell.create', entity: 'cell', entityId: c.id, studyId, details: { fieldId, role: c.role, kind: body.geometry.kind, pixelCount } }).run();
+      return c;
+    });
+    res.status(201).json({ cell: toCell(row) });
+  });
+
+  r.patch('/cells/:id', (req, res) => {
+    const cellId = idOf(req.params.id, 'cell');
+    const { cell, field, studyId } = loadCellFor(ctx, req.user, cellId, 'edit_images');
+    const body = parse(UpdateCellRequest, req.body);
+    const patch: Partial<CellRow> = {};
+    if (body.name !== undefined) patch.name = body.name;
+    if (body.role !== undefined) patch.role = body.role;
+    if (body.geometry) {
+      patch.geometry = body.geometry;
+      patch.pixelCount = pixelCountOf(body.geometry, field);
+    }
+    const row = ctx.db.transaction((tx) => {
+      let out: CellRow;
+      // a new geometry for a measured cell keeps the measured one intact: the old row is soft-deleted and the
+      // new outline becomes a new cell (measurements always describe the outline they were made on)
+      if (body.geometry && hasMeasurements(ctx, cell.id)) {
+        tx.update(cells).set({ deletedAt: new Date().toISOString() }).where(eq(cells.id, cell.id)).run();
+        const { id: _old, createdAt: _c, deletedAt: _d, ...rest } = cell;
+        out = tx.insert(cells).values({ ...rest, ...patch, source: 'drawn', createdBy: req.user!.id }).returning().get();
+        tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'cell.replace', entity: 'cell', entityId: out.id, studyId, details: { replaces: cell.id, fieldId: cell.fieldId } }).run();
+      } else {
+        out = tx.update(cells).set(patch).where(eq(cells.id, cell.id)).returning().get();
+        tx.insert(auditEvents)
+          .values({ actorId: req.user!.id, action: 'cell.update', entity: 'cell', entityId: cell.id, studyId, details: { fieldId: cell.fieldId, changed: Object.keys(patch) } })
+          .run();
+      }
+      return out;
+    });
+    res.json({ cell: toCell(row) });
+  });
+
+  r.delete('/cells/:id', (req, res) => {
+    const cellId = idOf(req.params.id, 'cell');
+    const { cell, studyId } = loadCellFor(ctx, req.user, cellId, 'edit_images');
+    const soft = ctx.db.transaction((tx) => {
+      const s = removeCell(ctx, tx as unknown as AppContext['db'], cell);
+      tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'cell.delete', entity: 'cell', entityId: cell.id, studyId, details: { fieldId: cell.fieldId, soft: s, name: cell.name } }).run();
+      return s;
+    });
+    res.json({ ok: true, soft });
+  });
+
+  r.post('/fields/:id/cells/import', upload.single('file'), async (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (!req.file) throw badRequest('attach the label image as the form field "file"');
+    const { decodeChannel, ImageInputError } = await import('../images/decode.js');
+    const { info, slices } = await decodeChannel(new Uint8Array(req.file.buffer.buffer, req.file.buffer.byteOffset, req.file.buffer.byteLength), 1, { pixelBudget: ctx.env.PIXEL_BUDGET });
+    if (info.width !== field.width || info.height !== field.height)
+      throw new ImageInputError(`the label image is ${info.width} × ${info.height} pixels but the field is ${field.width} × ${field.height}; they must match`, 422);
+    if (slices.length !== 1) throw new ImageInputError(`the label image has ${slices.length} slices; give one 2-D label image`, 422);
+    if (info.channelCount > 1) throw new ImageInputError(`the label image has ${info.channelCount} channels; give a single-channel label image`, 422);
+    let regions;
+    try {
+      regions = labelRegions(slices[0]);
+    } catch (e) {
+      throw new ImageInputError(`not a label image: ${(e as Error).message}`, 422);
+    }
+    if (regions.length === 0) throw new ImageInputError('the label image has no positive labels (0 is background); nothing to import', 422);
+    if (regions.length > MAX_CELLS_PER_REQUEST) throw new ImageInputError(`the label image has ${regions.length} labels; at most ${MAX_CELLS_PER_REQUEST} can be imported at once`, 422);
+    const replace = req.query.replace === '1' || req.query.replace === 'true';
+    const created = ctx.db.transaction((tx) => {
+      if (replace) {
+        const old = tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'label_image'), isNull(cells.deletedAt))).all();
+        for (const c of old) removeCell(ctx, tx as unknown as AppContext['db'], c);
+      }
+      const out: CellRow[] = [];
+      for (const reg of regions) {
+        const rle = indicesToRle(reg.indices);
+        out.push(
+          tx
+            .insert(cells)
+            .values({ fieldId, name: `Label ${reg.label}`, role: 'cell', geometry: { kind: 'label', label: reg.label, rle }, source: 'label_image', pixelCount: reg.indices.length, createdBy: req.user!.id })
+            .returning()
+            .get(),
+        );
+      }
+      tx.insert(auditEvents)
+        .values({ actorId: req.user!.id, action: 'cell.import_labels', entity: 'field', entityId: fieldId, studyId, details: { labels: regions.length, file: req.file!.originalname, replace } })
+        .run();
+      return out;
+    });
+    res.status(201).json({ cells: created.map(toCell), labels: regions.length });
+  });
+
+  r.post('/fields/:id/cells/auto', async (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    const body = parse(AutoOutlineRequest, req.body ?? {});
+    if (body.maxPixels != null && body.maxPixels < body.minPixels) throw badRequest(`maxPixels (${body.maxPixels}) must be at least minPixels (${body.minPixels})`);
+    const { loadFieldPixels } = await import('../images/intake.js');
+    const px = await loadFieldPixels(ctx, fieldId, { z: body.z });
+    const n = px.width * px.height;
+    let values: ArrayLike<number>;
+    if (body.channel === 'ch1') values = px.ch1;
+    else if (body.channel === 'ch2') values = px.ch2;
+    else {
+      const integer = px.sampleFormat !== 'float' && px.bitDepth <= 16;
+      const s = integer ? new Uint32Array(n) : new Float64Array(n);
+      for (let i = 0; i < n; i++) s[i] = px.ch1[i] + px.ch2[i];
+      values = s;
+    }
+    const level = body.threshold.method === 'manual' ? body.threshold.level : otsuThreshold(values as Float64Array);
+    if (level === null) throw new HttpError(422, `the ${body.channel === 'sum' ? 'summed channels are' : body.channel + ' is'} constant over the field; no Otsu level exists — give a manual level`);
+    const seg = segmentCells(values, px.width, px.height, {
+      level,
+      fillHoles: body.fillHoles,
+      split: body.split,
+      seedDistance: body.seedDistance,
+      minPixels: body.minPixels,
+      maxPixels: body.maxPixels,
+    });
+    if (seg.objects.length > MAX_CELLS_PER_REQUEST)
+      throw new HttpError(422, `${seg.objects.length} objects found; at most ${MAX_CELLS_PER_REQUEST} at once — raise the threshold or the minimum size`);
+    const created = ctx.db.transaction((tx) => {
+      if (body.replace) {
+        const old = tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'automatic'), isNull(cells.deletedAt))).all();
+        for (const c of old) removeCell(ctx, tx as unknown as AppContext['db'], c);
+      }
+      const start = tx.select({ n: sql<number>`count(*)` }).from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'automatic'))).get()?.n ?? 0;
+      const out: CellRow[] = [];
+      seg.objects.forEach((o, k) => {
+        const geometry: CellGeometry = { kind: 'polygon', points: o.points };
+        out.push(
+          tx
+            .insert(cells)
+            .values({ fieldId, name: `Auto ${start + k + 1}`, role: 'cell', geometry, source: 'automatic', pixelCount: pixelCountOf(geometry, field), createdBy: req.user!.id })
+            .returning()
+            .get(),
+        );
+      });
+      tx.insert(auditEvents)
+        .values({
+          actorId: req.user!.id,
+          action: 'cell.auto_outline',
+          entity: 'field',
+          entityId: fieldId,
+          studyId,
+          details: { params: body, level, found: seg.found, kept: seg.objects.length, droppedSmall: seg.droppedSmall, droppedLarge: seg.droppedLarge },
+        })
+        .run();
+      return out;
+    });
+    res.status(201).json({ cells: created.map(toCell), level, found: seg.found, droppedSmall: seg.droppedSmall, droppedLarge: seg.droppedLarge });
+  });
+
   return r;
+}
+
+/** Ascending linear indices → run-length code [start, length, …]. */
+export function indicesToRle(idx: ArrayLike<number>): number[] {
+  const rle: number[] = [];
+  let i = 0;
+  while (i < idx.length) {
+    const s = idx[i];
+    let len = 1;
+    while (i + len < idx.length && idx[i + len] === s + len) len++;
+    rle.push(s, len);
+    i += len;
+  }
+  return rle;
 }

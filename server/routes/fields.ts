@@ -1,8 +1,383 @@
-/** API routes for fields. (placeholder until its owner fills it) */
-import { Router } from 'express';
+/**
+ * Fields (two-channel images) of coverslips:
+ *   POST   /api/coverslips/:id/fields        multipart upload: parts "files" (TIFF files) + "plan" (JSON, see
+ *                                             shared/schemas/fields.ts UploadPlan); per-field results (edit_images)
+ *   GET    /api/coverslips/:id/fields        fields of a coverslip (read)
+ *   GET    /api/studies/:studyId/fields      fields of a study (read)
+ *   GET    /api/fields/:id                   FieldDetail (read)
+ *   DELETE /api/fields/:id                   delete; soft delete while measurements refer to it (edit_images)
+ *   GET    /api/fields/:id/preview.png       composite / single-channel preview (read)
+ *   GET    /api/fields/:id/pixels?z=         raw pixels for the browser's pixel scatter (read):
+ *          body = ch1 then ch2, little-endian Uint16 (8/16-bit fields) or Float32 (float and 32-bit integer
+ *          fields), header x-syntopy-shape: width,height,bitDepth,format (format 'uint' → Uint16 body, 'float' → Float32 body).
+ */
+import crypto from 'node:crypto';
+import fs from 'node:fs';
+import fsp from 'node:fs/promises';
+import path from 'node:path';
+import { Router, type Request } from 'express';
+import multer, { type StorageEngine } from 'multer';
+import { and, asc, eq, inArray, isNull, ne, or, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, measurements, runFields } from '../db/schema.js';
+import { requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
+import type { SessionUser } from '../auth/session.js';
+import { badRequest, HttpError, notFound, parse, unauthorized } from '../http/errors.js';
+import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
+import { ImageInputError } from '../images/decode.js';
+import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
+import { renderPreview } from '../images/preview.js';
+import { keyForSha } from '../images/store.js';
 
-export default function fieldsRoutes(_ctx: AppContext) {
+type Db = AppContext['db'];
+
+const idOf = (v: unknown, what: string) => {
+  const n = Number(v);
+  if (!Number.isInteger(n) || n <= 0) throw badRequest(`${what} id must be a positive integer, got ${JSON.stringify(v)}`);
+  return n;
+};
+
+export function toFieldSummary(f: FieldRow): FieldSummary {
+  const flag = (c: FieldRow['facts']['ch1']) => c.saturatedFraction > SATURATION_FLAG_FRACTION || (c.plateauFraction ?? 0) > SATURATION_FLAG_FRACTION;
+  return {
+    id: f.id,
+    coverslipId: f.coverslipId,
+    name: f.name,
+    width: f.width,
+    height: f.height,
+    sizeZ: f.sizeZ,
+    bitDepth: f.bitDepth,
+    sampleFormat: f.sampleFormat,
+    channelNames: f.channelNames,
+    pixelSizeUm: f.pixelSizeUm ?? null,
+    facts: f.facts,
+    saturated: flag(f.facts.ch1) || flag(f.facts.ch2),
+    status: f.status,
+    fileSize: f.fileSize,
+    createdAt: f.createdAt,
+  };
+}
+
+/** coverslip → condition → study, or 404 */
+function coverslipStudy(ctx: AppContext, coverslipId: number) {
+  const row = ctx.db
+    .select({ coverslipId: coverslips.id, conditionId: conditions.id, studyId: conditions.studyId })
+    .from(coverslips)
+    .innerJoin(conditions, eq(conditions.id, coverslips.conditionId))
+    .where(eq(coverslips.id, coverslipId))
+    .get();
+  if (!row) throw notFound(`no coverslip with id ${coverslipId}`);
+  return row;
+}
+
+/** Loads a field and checks the action in its study (404 when the user may not see it). */
+export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fieldId: number, action: StudyAction) {
+  if (!user) throw unauthorized();
+  const field = ctx.db.select().from(fields).where(eq(fields.id, fieldId)).get();
+  if (!field) throw notFound(`no field with id ${fieldId}`);
+  const cs = coverslipStudy(ctx, field.coverslipId);
+  try {
+    requireStudy(ctx, user, cs.studyId, action);
+  } catch (e) {
+    if (e instanceof HttpError && e.status === 404) throw notFound(`no field with id ${fieldId}`);
+    throw e;
+  }
+  return { field, studyId: cs.studyId, conditionId: cs.conditionId };
+}
+
+// ---------------------------------------------------------------- upload storage: temp file + SHA-256 while streaming
+
+interface HashedFile {
+  path: string;
+  size: number;
+  sha256: string;
+}
+
+function tempDir(ctx: AppContext) {
+  return path.join(ctx.env.DATA_DIR, 'tmp', 'uploads');
+}
+
+function hashingStorage(ctx: AppContext): StorageEngine {
+  return {
+    _handleFile(req, file, cb) {
+      const dir = tempDir(ctx);
+      fs.mkdirSync(dir, { recursive: true });
+      const p = path.join(dir, `up-${crypto.randomUUID()}`);
+      ((req as Request & { tempFiles?: string[] }).tempFiles ??= []).push(p);
+      const hash = crypto.createHash('sha256');
+      const out = fs.createWriteStream(p);
+      let size = 0;
+      let failed = false;
+      const fail = (e: Error) => {
+        if (failed) return;
+        failed = true;
+        out.destroy();
+        fs.rm(p, { force: true }, () => cb(e));
+      };
+      file.stream.on('data', (chunk: Buffer) => {
+        size += chunk.length;
+        hash.update(chunk);
+      });
+      file.stream.on('error', fail);
+      out.on('error', fail);
+      out.on('finish', () => {
+        if (!failed) cb(null, { path: p, size, sha256: hash.digest('hex') } as Partial<Express.Multer.File>);
+      });
+      file.stream.pipe(out);
+    },
+    _removeFile(_req, file, cb) {
+      fs.rm((file as unknown as HashedFile).path, { force: true }, () => cb(null));
+    },
+  };
+}
+
+async function removeTemps(req: Request) {
+  for (const p of (req as Request & { tempFiles?: string[] }).tempFiles ?? []) await fsp.rm(p, { force: true }).catch(() => {});
+}
+
+// ---------------------------------------------------------------- delete
+
+function deleteField(ctx: AppContext, f: FieldRow, userId: number, studyId: number): { soft: boolean; orphans: string[] } {
+  return ctx.db.transaction((tx) => {
+    const measured = tx.select({ id: measurements.id }).from(measurements).where(eq(measurements.fieldId, f.id)).limit(1).get();
+    const inRun = tx.select({ r: runFields.runId }).from(runFields).where(eq(runFields.fieldId, f.id)).limit(1).get();
+    const soft = !!measured || !!inRun;
+    let orphans: string[] = [];
+    if (soft) {
+      tx.update(fields).set({ status: 'deleted', deletedAt: new Date().toISOString() }).where(eq(fields.id, f.id)).run();
+    } else {
+      tx.delete(cells).where(eq(cells.fieldId, f.id)).run();
+      tx.delete(fields).where(eq(fields.id, f.id)).run();
+      for (const sha of new Set([f.file1Sha, f.file2Sha])) {
+        const still = tx
+          .select({ id: fields.id })
+          .from(fields)
+          .where(or(eq(fields.file1Sha, sha), eq(fields.file2Sha, sha)))
+          .limit(1)
+          .get();
+        if (!still && !inFlightShas.has(sha)) {
+          tx.delete(files).where(eq(files.sha256, sha)).run();
+          orphans.push(sha);
+        }
+      }
+    }
+    tx.insert(auditEvents).values({ actorId: userId, action: soft ? 'field.soft_delete' : 'field.delete', entity: 'field', entityId: f.id, studyId, details: { name: f.name, coverslipId: f.coverslipId } }).run();
+    return { soft, orphans };
+  });
+}
+
+// ---------------------------------------------------------------- routes
+
+export default function fieldsRoutes(ctx: AppContext) {
   const r = Router();
+  const upload = multer({
+    storage: hashingStorage(ctx),
+    limits: { fileSize: ctx.env.MAX_UPLOAD_BYTES, files: ctx.env.MAX_FILES_PER_REQUEST, fields: 20, fieldSize: 1024 * 1024 },
+  });
+
+  r.post(
+    '/coverslips/:id/fields',
+    (req, _res, next) => {
+      // permission first: nothing is streamed to disk for a coverslip the user may not change
+      const coverslipId = idOf(req.params.id, 'coverslip');
+      const cs = coverslipStudy(ctx, coverslipId);
+      try {
+        requireStudy(ctx, req.user, cs.studyId, 'edit_images');
+      } catch (e) {
+        if (e instanceof HttpError && e.status === 404) throw notFound(`no coverslip with id ${coverslipId}`);
+        throw e;
+      }
+      if (!String(req.headers['content-type'] ?? '').startsWith('multipart/form-data')) {
+        throw badRequest('send the files as multipart/form-data (parts "files" and "plan")');
+      }
+      next();
+    },
+    (req, res, next) => {
+      upload.array('files', ctx.env.MAX_FILES_PER_REQUEST)(req, res, (err: unknown) => {
+        if (err) {
+          void removeTemps(req).then(() => {
+            const e = err as { name?: string; code?: string; message?: string };
+            if (e?.name === 'MulterError' && e.code === 'LIMIT_FILE_SIZE') {
+              return next(new HttpError(413, `a file is larger than the ${ctx.env.MAX_UPLOAD_BYTES}-byte upload limit`));
+            }
+            if (e?.name === 'MulterError' && e.code === 'LIMIT_FILE_COUNT') {
+              return next(new HttpError(413, `too many files in one upload; at most ${ctx.env.MAX_FILES_PER_REQUEST}`));
+            }
+            next(err);
+          });
+          return;
+        }
+        next();
+      });
+    },
+    async (req, res) => {
+      try {
+        const coverslipId = idOf(req.params.id, 'coverslip');
+        const up = ((req.files as Express.Multer.File[] | undefined) ?? []) as unknown as (Express.Multer.File & HashedFile)[];
+        if (up.length === 0) throw badRequest('no files were uploaded; attach TIFF files as the form part "files"');
+        let planRaw: unknown;
+        if (typeof req.body?.plan === 'string' && req.body.plan.trim()) {
+          try {
+            planRaw = JSON.parse(req.body.plan);
+          } catch {
+            throw badRequest(`the "plan" part is not valid JSON: ${JSON.stringify(String(req.body.plan).slice(0, 80))}`);
+          }
+        } else {
+          planRaw = up.map((_, i) => ({ ch1: { file: i, channel: 1 }, ch2: { file: i, channel: 2 } }));
+        }
+        const plan = parse(UploadPlan, planRaw);
+        for (const [i, p] of plan.entries()) {
+          for (const ref of [p.ch1, p.ch2]) {
+            if (ref.file >= up.length) throw badRequest(`field ${i + 1} of the plan refers to file ${ref.file}, but only ${up.length} file(s) were uploaded`);
+          }
+        }
+        const uses = new Map<number, number>();
+        for (const p of plan) for (const i of new Set([p.ch1.file, p.ch2.file])) uses.set(i, (uses.get(i) ?? 0) + 1);
+        const results: UploadResult[] = [];
+        for (const [i, p] of plan.entries()) {
+          const f1 = up[p.ch1.file];
+          const f2 = up[p.ch2.file];
+          const name = p.name || (p.ch1.file === p.ch2.file ? path.parse(f1.originalname).name : `${path.parse(f1.originalname).name} + ${path.parse(f2.originalname).name}`);
+          try {
+            const field = await ingestField(
+              ctx,
+              {
+                coverslipId,
+                userId: req.user!.id,
+                name,
+                sources: [
+                  { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
+                  { path: f2.path, originalName: f2.originalname, channel: p.ch2.channel, sha256: f2.sha256 },
+                ],
+              },
+              // a file used by one field only is moved into the store; shared ones are copied
+              { moveSources: [p.ch1.file, p.ch2.file].every((k) => uses.get(k) === 1) },
+            );
+            results.push({ index: i, name, ok: true, field: toFieldSummary(field) });
+          } catch (e) {
+            const err = e as { name?: string; status?: number; message?: string };
+            if (err?.name === 'ImageInputError' || e instanceof HttpError) {
+              results.push({ index: i, name, ok: false, status: err.status ?? 422, error: err.message ?? 'the file was refused' });
+            } else {
+              console.error('[syntopy] field intake failed', e);
+              results.push({ index: i, name, ok: false, status: 500, error: 'the file could not be stored because of a server error; it was logged' });
+            }
+          } finally {
+            for (const k of new Set([p.ch1.file, p.ch2.file])) uses.set(k, (uses.get(k) ?? 1) - 1);
+          }
+        }
+        await removeTemps(req);
+        const failed = results.filter((x) => !x.ok) as Extract<UploadResult, { ok: false }>[];
+        if (failed.length === results.length) {
+          const status = failed[0].status;
+          res.status(status).json({ error: failed.length === 1 ? failed[0].error : `no field was stored: ${failed[0].error}`, results });
+        } else res.status(failed.length ? 207 : 201).json({ results });
+      } finally {
+        await removeTemps(req);
+      }
+    },
+  );
+
+  r.get('/coverslips/:id/fields', (req, res) => {
+    const coverslipId = idOf(req.params.id, 'coverslip');
+    const cs = coverslipStudy(ctx, coverslipId);
+    try {
+      requireStudy(ctx, req.user, cs.studyId, 'read');
+    } catch (e) {
+      if (e instanceof HttpError && e.status === 404) throw notFound(`no coverslip with id ${coverslipId}`);
+      throw e;
+    }
+    const rows = ctx.db
+      .select()
+      .from(fields)
+      .where(and(eq(fields.coverslipId, coverslipId), eq(fields.status, 'ready')))
+      .orderBy(asc(fields.id))
+      .all();
+    res.json({ fields: rows.map(toFieldSummary) });
+  });
+
+  r.get('/studies/:studyId/fields', (req, res) => {
+    const studyId = idOf(req.params.studyId, 'study');
+    requireStudy(ctx, req.user, studyId, 'read');
+    const rows = ctx.db
+      .select({ f: fields, conditionId: conditions.id })
+      .from(fields)
+      .innerJoin(coverslips, eq(coverslips.id, fields.coverslipId))
+      .innerJoin(conditions, eq(conditions.id, coverslips.conditionId))
+      .where(and(eq(conditions.studyId, studyId), eq(fields.status, 'ready')))
+      .orderBy(asc(conditions.position), asc(coverslips.position), asc(fields.id))
+      .all();
+    res.json({ fields: rows.map((r) => ({ ...toFieldSummary(r.f), conditionId: r.conditionId })) });
+  });
+
+  r.get('/fields/:id', (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field, studyId, conditionId } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    const study = requireStudy(ctx, req.user, studyId, 'read');
+    const perms = studyPermissions(ctx, req.user!, study);
+    const fileRows = ctx.db.select().from(files).where(inArray(files.sha256, [field.file1Sha, field.file2Sha])).all();
+    const fileOf = (sha: string, channel: number) => {
+      const fr = fileRows.find((x) => x.sha256 === sha);
+      return { sha256: sha, originalName: fr?.originalName ?? '', size: fr?.size ?? 0, channel };
+    };
+    const detail: FieldDetail = {
+      ...toFieldSummary(field),
+      studyId,
+      conditionId,
+      files: [fileOf(field.file1Sha, field.channel1), fileOf(field.file2Sha, field.channel2)],
+      uploadedBy: field.uploadedBy ?? null,
+      canEdit: perms.has('edit_images'),
+    };
+    res.json(detail);
+  });
+
+  r.delete('/fields/:id', async (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (field.status === 'deleted') throw notFound(`no field with id ${fieldId}`);
+    const { soft, orphans } = deleteField(ctx, field, req.user!.id, studyId);
+    for (const sha of orphans) await ctx.store.delete(keyForSha(sha)).catch(() => {});
+    res.json({ ok: true, soft });
+  });
+
+  r.get('/fields/:id/preview.png', async (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    const q = parse(PreviewQuery, req.query);
+    if (q.z !== undefined && q.z !== 'mip' && q.z >= field.sizeZ) throw badRequest(`z=${q.z} is not a slice of this field (0–${field.sizeZ - 1})`);
+    const p = await renderPreview(ctx, field, q);
+    res.setHeader('content-type', 'image/png');
+    res.setHeader('cache-control', 'private, max-age=3600');
+    res.setHeader('x-syntopy-range', p.ranges.map((r) => `${r.lo},${r.hi}`).join(';'));
+    res.setHeader('x-syntopy-preview-size', `${p.width},${p.height}`);
+    res.end(p.png);
+  });
+
+  r.get('/fields/:id/pixels', async (req, res) => {
+    const fieldId = idOf(req.params.id, 'field');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    const q = parse(PixelsQuery, req.query);
+    const px = await loadFieldPixels(ctx, field.id, { z: q.z });
+    const n = px.width * px.height;
+    const asFloat = px.sampleFormat === 'float' || px.bitDepth === 32;
+    let body: Buffer;
+    if (asFloat) {
+      const out = new Float32Array(2 * n);
+      out.set(px.ch1 as ArrayLike<number>, 0);
+      out.set(px.ch2 as ArrayLike<number>, n);
+      body = Buffer.from(out.buffer);
+    } else {
+      const out = new Uint16Array(2 * n);
+      out.set(px.ch1 as ArrayLike<number>, 0);
+      out.set(px.ch2 as ArrayLike<number>, n);
+      body = Buffer.from(out.buffer); // typed arrays are little-endian on every platform Node supports here
+    }
+    res.setHeader('content-type', 'application/octet-stream');
+    res.setHeader('x-syntopy-shape', `${px.width},${px.height},${px.bitDepth},${asFloat ? 'float' : 'uint'}`);
+    res.setHeader('x-syntopy-z', px.zLabel);
+    res.setHeader('access-control-expose-headers', 'x-syntopy-shape, x-syntopy-z');
+    res.end(body);
+  });
+
   return r;
 }

@@ -1,8 +1,196 @@
-/** API routes for measurements. (placeholder until its owner fills it) */
+/**
+ * The Cell table, exclusions and comparisons of a study (issue 7). Shapes: shared/schemas/measurements.ts
+ * and shared/schemas/compare.ts.
+ *
+ *   GET    /api/studies/:studyId/measurement-sources         recipes and runs that produced measurements
+ *   GET    /api/studies/:studyId/cell-table                  one page of the grid (filters, sort, paging)
+ *   GET    /api/studies/:studyId/cells.csv                   every filtered row as CSV (column choice)
+ *   POST   /api/cells/:cellId/exclusion   { reason }         exclude a cell (biologist: 'exclude')
+ *   DELETE /api/cells/:cellId/exclusion   { reason? }        undo the exclusion
+ *   GET    /api/cells/:cellId/exclusion-history              audited exclusion events of the cell
+ *   GET    /api/studies/:studyId/compare                     Comparison (shared/schemas/compare.ts)
+ *   GET    /api/studies/:studyId/compare/coverslips.csv      per-coverslip table of a comparison
+ *   GET    /api/studies/:studyId/compare/cells.csv           per-cell values of a comparison
+ */
 import { Router } from 'express';
 import type { AppContext } from '../context.js';
+import { requireUser } from '../auth/session.js';
+import { requireStudy, studyPermissions, type Study } from '../auth/policy.js';
+import { badRequest, conflict, notFound, parse } from '../http/errors.js';
+import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/measurements.js';
+import { CompareQuery } from '../../shared/schemas/compare.js';
+import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
+import { computeComparison } from '../compare/compute.js';
+import { csvLine, fileSafe } from '../compare/csv.js';
 
-export default function measurementsRoutes(_ctx: AppContext) {
+const idOf = (v: unknown, name: string) => {
+  const s = String(v);
+  if (!/^[1-9][0-9]{0,14}$/.test(s)) throw badRequest(`${name}: expected a positive integer id, received ${JSON.stringify(s)}`);
+  return Number(s);
+};
+
+export default function measurementsRoutes(ctx: AppContext) {
   const r = Router();
+  const sqlite = ctx.db.$client;
+
+  r.get('/studies/:studyId/measurement-sources', requireUser, (req, res) => {
+    const studyId = idOf(req.params.studyId, 'studyId');
+    requireStudy(ctx, req.user, studyId, 'read');
+    const runs = sqlite
+      .prepare(
+        `SELECT r.id, r.status, r.created_at AS createdAt, r.provisional, r.recipe_id AS recipeId, rc.name, rc.version,
+           (SELECT count(*) FROM measurements m WHERE m.run_id = r.id) AS measurements
+         FROM runs r JOIN recipes rc ON rc.id = r.recipe_id WHERE r.study_id = ? ORDER BY r.id DESC`,
+      )
+      .all(studyId) as { id: number; status: string; createdAt: string; provisional: number; recipeId: number; name: string; version: number; measurements: number }[];
+    const recipes = new Map<number, MeasurementSources['recipes'][number]>();
+    for (const x of runs) {
+      if (!recipes.has(x.recipeId)) recipes.set(x.recipeId, { recipeId: x.recipeId, name: x.name, version: x.version, runs: [] });
+      recipes.get(x.recipeId)!.runs.push({ id: x.id, status: x.status, createdAt: x.createdAt, provisional: !!x.provisional, measurements: x.measurements });
+    }
+    const body: MeasurementSources = { recipes: [...recipes.values()], defaultRecipeId: runs.find((x) => x.measurements > 0)?.recipeId ?? null };
+    res.json(body);
+  });
+
+  r.get('/studies/:studyId/cell-table', requireUser, (req, res) => {
+    const studyId = idOf(req.params.studyId, 'studyId');
+    const study = requireStudy(ctx, req.user, studyId, 'read');
+    const q = parse(GridQuery, req.query);
+    const src = resolveSource(ctx, studyId, q);
+    const g = gridFrom(studyId, src, q);
+    const total = (sqlite.prepare(`${g.with} SELECT count(*) AS n ${g.from}`).get(g.params) as { n: number }).n;
+    const rows = sqlite
+      .prepare(`${g.with} ${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)} LIMIT @limit OFFSET @offset`)
+      .all({ ...g.params, limit: q.pageSize, offset: q.page * q.pageSize }) as Record<string, unknown>[];
+    const body: GridResponse = {
+      rows: rows.map(toGridRow),
+      total,
+      page: q.page,
+      pageSize: q.pageSize,
+      source: { runId: src.runId, recipeId: src.recipeId, recipeName: src.recipeName, recipeVersion: src.recipeVersion },
+      canExclude: studyPermissions(ctx, req.user!, study).has('exclude'),
+    };
+    res.json(body);
+  });
+
+  r.get('/studies/:studyId/cells.csv', requireUser, (req, res) => {
+    const studyId = idOf(req.params.studyId, 'studyId');
+    const study = requireStudy(ctx, req.user, studyId, 'read');
+    const q = parse(CsvQuery, req.query);
+    const src = resolveSource(ctx, studyId, q);
+    const g = gridFrom(studyId, src, q);
+    const stmt = sqlite.prepare(`${g.with} ${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)}`);
+    res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-cells.csv"`);
+    const out: string[] = [csvLine(q.columns)];
+    for (const row of stmt.iterate(g.params) as Iterable<Record<string, unknown>>) {
+      const r2 = toGridRow(row) as unknown as Record<string, unknown>;
+      out.push(csvLine(q.columns.map((c) => r2[c])));
+      if (out.length >= 2000) res.write(out.splice(0).join(''));
+    }
+    res.end(out.join(''));
+  });
+
+  // ---- exclusions ---------------------------------------------------------------------------------------
+  function cellStudy(cellId: number) {
+    const row = sqlite
+      .prepare(
+        `SELECT c.id, c.excluded, c.exclusion_reason AS reason, cd.study_id AS studyId FROM cells c
+         JOIN fields f ON f.id = c.field_id JOIN coverslips cs ON cs.id = f.coverslip_id JOIN conditions cd ON cd.id = cs.condition_id
+         WHERE c.id = ? AND c.deleted_at IS NULL`,
+      )
+      .get(cellId) as { id: number; excluded: number; reason: string | null; studyId: number } | undefined;
+    if (!row) throw notFound(`no cell with id ${cellId}`);
+    return row;
+  }
+  function state(cellId: number): ExclusionState {
+    const s = sqlite
+      .prepare('SELECT c.id AS cellId, c.excluded, c.exclusion_reason AS exclusionReason, c.excluded_at AS excludedAt, u.name AS excludedBy FROM cells c LEFT JOIN users u ON u.id = c.excluded_by WHERE c.id = ?')
+      .get(cellId) as Omit<ExclusionState, 'excluded'> & { excluded: number };
+    return { ...s, excluded: !!s.excluded };
+  }
+  const audit = sqlite.prepare('INSERT INTO audit_events (actor_id, action, entity, entity_id, study_id, details) VALUES (?, ?, ?, ?, ?, ?)');
+
+  r.post('/cells/:cellId/exclusion', requireUser, (req, res) => {
+    const cellId = idOf(req.params.cellId, 'cellId');
+    const cell = cellStudy(cellId);
+    requireStudy(ctx, req.user, cell.studyId, 'exclude');
+    const body = parse(ExcludeRequest, req.body ?? {});
+    if (cell.excluded) throw conflict(`cell ${cellId} is already excluded (reason: ${JSON.stringify(cell.reason)})`);
+    sqlite.transaction(() => {
+      sqlite
+        .prepare("UPDATE cells SET excluded = 1, exclusion_reason = ?, excluded_by = ?, excluded_at = strftime('%Y-%m-%dT%H:%M:%fZ','now') WHERE id = ?")
+        .run(body.reason, req.user!.id, cellId);
+      audit.run(req.user!.id, 'cell.exclude', 'cell', cellId, cell.studyId, JSON.stringify({ reason: body.reason }));
+    })();
+    res.json(state(cellId));
+  });
+
+  r.delete('/cells/:cellId/exclusion', requireUser, (req, res) => {
+    const cellId = idOf(req.params.cellId, 'cellId');
+    const cell = cellStudy(cellId);
+    requireStudy(ctx, req.user, cell.studyId, 'exclude');
+    const body = parse(RestoreRequest, req.body ?? {});
+    if (!cell.excluded) throw conflict(`cell ${cellId} is not excluded`);
+    sqlite.transaction(() => {
+      sqlite.prepare('UPDATE cells SET excluded = 0, exclusion_reason = NULL, excluded_by = NULL, excluded_at = NULL WHERE id = ?').run(cellId);
+      audit.run(req.user!.id, 'cell.restore', 'cell', cellId, cell.studyId, JSON.stringify({ previousReason: cell.reason, ...(body.reason ? { reason: body.reason } : {}) }));
+    })();
+    res.json(state(cellId));
+  });
+
+  r.get('/cells/:cellId/exclusion-history', requireUser, (req, res) => {
+    const cellId = idOf(req.params.cellId, 'cellId');
+    const cell = cellStudy(cellId);
+    requireStudy(ctx, req.user, cell.studyId, 'read');
+    const events = sqlite
+      .prepare(
+        `SELECT a.id, a.at, a.action, u.name AS actor, a.details FROM audit_events a LEFT JOIN users u ON u.id = a.actor_id
+         WHERE a.entity = 'cell' AND a.entity_id = ? AND a.action IN ('cell.exclude', 'cell.restore') ORDER BY a.id`,
+      )
+      .all(cellId) as { id: number; at: string; action: string; actor: string | null; details: string }[];
+    res.json({
+      events: events.map((e) => {
+        const d = JSON.parse(e.details || '{}') as { reason?: string; previousReason?: string };
+        return { id: e.id, at: e.at, action: e.action, actor: e.actor, reason: d.reason ?? null };
+      }),
+    });
+  });
+
+  // ---- comparison ---------------------------------------------------------------------------------------
+  const compareFor = async (req: import('express').Request) => {
+    const studyId = idOf(req.params.studyId, 'studyId');
+    const study: Study = requireStudy(ctx, req.user, studyId, 'read');
+    const q = parse(CompareQuery, req.query);
+    return { study, comparison: await computeComparison(ctx, studyId, q) };
+  };
+
+  r.get('/studies/:studyId/compare', requireUser, async (req, res) => {
+    res.json((await compareFor(req)).comparison);
+  });
+
+  r.get('/studies/:studyId/compare/coverslips.csv', requireUser, async (req, res) => {
+    const { study, comparison: c } = await compareFor(req);
+    const condName = new Map(c.conditions.map((x) => [x.id, x.name]));
+    res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-coverslips.csv"`);
+    res.end(
+      csvLine(['condition', 'coverslip', 'replicate', 'coverslipId', 'cells', `mean_${c.coefficient}`, `median_${c.coefficient}`, `sd_${c.coefficient}`, 'averaging']) +
+        c.coverslips.map((s) => csvLine([condName.get(s.conditionId), s.name, s.replicate, s.id, s.nCells, s.mean, s.median, s.sd, c.averaging])).join(''),
+    );
+  });
+
+  r.get('/studies/:studyId/compare/cells.csv', requireUser, async (req, res) => {
+    const { study, comparison: c } = await compareFor(req);
+    const condName = new Map(c.conditions.map((x) => [x.id, x.name]));
+    const slip = new Map(c.coverslips.map((x) => [x.id, x]));
+    res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-cells.csv"`);
+    res.end(
+      csvLine(['condition', 'coverslip', 'replicate', 'fieldId', 'cellId', c.coefficient]) +
+        c.points.map((p) => csvLine([condName.get(p.conditionId), slip.get(p.coverslipId)?.name, slip.get(p.coverslipId)?.replicate, p.fieldId, p.cellId, p.value])).join(''),
+    );
+  });
+
   return r;
 }

@@ -1,8 +1,171 @@
-/** API routes for runs. (placeholder until its owner fills it) */
+/**
+ * Runs: `POST /api/runs { recipeId, scope: { kind, id } }` applies one recipe version to a field, coverslip,
+ * condition or whole study; `GET /api/runs?studyId=` lists; `GET /api/runs/:id` shows progress per field.
+ * A run whose recipe version is not approved is provisional (and so is every measurement it writes).
+ */
 import { Router } from 'express';
+import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
+import { auditEvents, conditions, coverslips, fields, measurements, recipes, runFields, runs, studies, users } from '../db/schema.js';
+import { requireStudy, studyPermissions } from '../auth/policy.js';
+import { badRequest, conflict, notFound, parse, unauthorized } from '../http/errors.js';
+import { CreateRunRequest, RunListQuery, type RunDetail, type RunSummary } from '../../shared/schemas/runs.js';
+import { RecipeSettings } from '../../shared/schemas/recipes.js';
+import { ENGINE_VERSION } from '../../shared/analysis/index.js';
+import { resolveScope } from '../runs/records.js';
 
-export default function runsRoutes(_ctx: AppContext) {
+type RunRow = typeof runs.$inferSelect;
+
+function scopeName(ctx: AppContext, r: RunRow): string {
+  const db = ctx.db;
+  switch (r.scopeKind) {
+    case 'field':
+      return db.select({ n: fields.name }).from(fields).where(eq(fields.id, r.scopeId)).get()?.n ?? `field ${r.scopeId}`;
+    case 'coverslip': {
+      const c = db.select({ cs: coverslips.name, cond: conditions.name }).from(coverslips).innerJoin(conditions, eq(coverslips.conditionId, conditions.id)).where(eq(coverslips.id, r.scopeId)).get();
+      return c ? `${c.cond} / ${c.cs}` : `coverslip ${r.scopeId}`;
+    }
+    case 'condition':
+      return db.select({ n: conditions.name }).from(conditions).where(eq(conditions.id, r.scopeId)).get()?.n ?? `condition ${r.scopeId}`;
+    case 'study':
+      return db.select({ n: studies.name }).from(studies).where(eq(studies.id, r.scopeId)).get()?.n ?? `study ${r.scopeId}`;
+  }
+}
+
+export function runSummary(ctx: AppContext, r: RunRow): RunSummary {
+  const db = ctx.db;
+  const recipe = db.select().from(recipes).where(eq(recipes.id, r.recipeId)).get()!;
+  const study = db.select({ name: studies.name }).from(studies).where(eq(studies.id, r.studyId)).get();
+  const failed = db.select({ n: sql<number>`count(*)` }).from(runFields).where(and(eq(runFields.runId, r.id), eq(runFields.status, 'failed'))).get()?.n ?? 0;
+  const by = r.startedBy ? db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, r.startedBy)).get() ?? null : null;
+  return {
+    id: r.id,
+    studyId: r.studyId,
+    studyName: study?.name ?? '',
+    recipe: { id: recipe.id, name: recipe.name, version: recipe.version, status: recipe.status },
+    scope: { kind: r.scopeKind, id: r.scopeId, name: scopeName(ctx, r) },
+    status: r.status,
+    provisional: r.provisional,
+    fieldsTotal: r.fieldsTotal,
+    fieldsDone: r.fieldsDone,
+    fieldsFailed: Number(failed),
+    currentField: r.currentField,
+    error: r.error,
+    engineVersion: r.engineVersion,
+    seed: r.seed,
+    startedBy: by,
+    startedAt: r.startedAt,
+    finishedAt: r.finishedAt,
+    createdAt: r.createdAt,
+  };
+}
+
+export function runDetail(ctx: AppContext, r: RunRow): RunDetail {
+  const db = ctx.db;
+  const rows = db
+    .select({ fieldId: runFields.fieldId, name: fields.name, status: runFields.status, error: runFields.error, attempts: runFields.attempts, finishedAt: runFields.finishedAt })
+    .from(runFields)
+    .innerJoin(fields, eq(runFields.fieldId, fields.id))
+    .where(eq(runFields.runId, r.id))
+    .orderBy(runFields.fieldId)
+    .all();
+  const perField = new Map(
+    db
+      .select({ fieldId: measurements.fieldId, n: sql<number>`count(*)` })
+      .from(measurements)
+      .where(eq(measurements.runId, r.id))
+      .groupBy(measurements.fieldId)
+      .all()
+      .map((x) => [x.fieldId, Number(x.n)]),
+  );
+  const recipe = db.select({ settings: recipes.settings }).from(recipes).where(eq(recipes.id, r.recipeId)).get()!;
+  return {
+    ...runSummary(ctx, r),
+    settings: RecipeSettings.parse(recipe.settings),
+    fields: rows.map((f) => ({ ...f, measurements: perField.get(f.fieldId) ?? 0 })),
+    measurements: [...perField.values()].reduce((a, b) => a + b, 0),
+  };
+}
+
+export default function runsRoutes(ctx: AppContext) {
   const r = Router();
+
+  r.post('/runs', async (req, res) => {
+    if (!req.user) throw unauthorized();
+    const body = parse(CreateRunRequest, req.body);
+    const recipe = ctx.db.select().from(recipes).where(eq(recipes.id, body.recipeId)).get();
+    if (!recipe) throw notFound(`no recipe with id ${body.recipeId}`);
+    const scope = resolveScope(ctx.db, body.scope.kind, body.scope.id);
+    requireStudy(ctx, req.user, scope.studyId, 'run');
+    if (recipe.status === 'retired') throw conflict(`recipe ${recipe.name} v${recipe.version} is retired; choose a current version`);
+    if (!scope.fieldIds.length) throw conflict(`nothing to measure: ${body.scope.kind} "${scope.name}" has no fields`);
+    const settings = RecipeSettings.parse(recipe.settings);
+    const u = req.user;
+    const run = ctx.db.transaction((tx) => {
+      const created = tx
+        .insert(runs)
+        .values({
+          studyId: scope.studyId,
+          recipeId: recipe.id,
+          scopeKind: body.scope.kind,
+          scopeId: body.scope.id,
+          status: 'queued',
+          fieldsTotal: scope.fieldIds.length,
+          provisional: recipe.status !== 'approved',
+          seed: settings.seed,
+          engineVersion: ENGINE_VERSION,
+          startedBy: u.id,
+        })
+        .returning()
+        .get();
+      for (let i = 0; i < scope.fieldIds.length; i += 200)
+        tx.insert(runFields).values(scope.fieldIds.slice(i, i + 200).map((fieldId) => ({ runId: created.id, fieldId }))).run();
+      tx.insert(auditEvents)
+        .values({
+          actorId: u.id,
+          action: 'run.start',
+          entity: 'run',
+          entityId: created.id,
+          studyId: scope.studyId,
+          details: { recipeId: recipe.id, recipeVersion: recipe.version, recipeStatus: recipe.status, scope: body.scope, fields: scope.fieldIds.length },
+        })
+        .run();
+      return created;
+    });
+    await ctx.runs.enqueue(run.id);
+    const fresh = ctx.db.select().from(runs).where(eq(runs.id, run.id)).get()!;
+    res.status(201).json(runDetail(ctx, fresh));
+  });
+
+  r.get('/runs', (req, res) => {
+    if (!req.user) throw unauthorized();
+    const q = parse(RunListQuery, req.query);
+    const u = req.user;
+    if (q.studyId) requireStudy(ctx, u, q.studyId, 'read');
+    const conds = [];
+    if (q.studyId) conds.push(eq(runs.studyId, q.studyId));
+    if (q.status) conds.push(eq(runs.status, q.status));
+    const rows = ctx.db.select().from(runs).where(conds.length ? and(...conds) : undefined).orderBy(desc(runs.id)).limit(500).all();
+    const studyIds = [...new Set(rows.map((x) => x.studyId))];
+    const readable = new Set<number>();
+    if (studyIds.length)
+      for (const s of ctx.db.select().from(studies).where(inArray(studies.id, studyIds)).all()) if (studyPermissions(ctx, u, s).has('read')) readable.add(s.id);
+    res.json({ runs: rows.filter((x) => readable.has(x.studyId)).map((x) => runSummary(ctx, x)) });
+  });
+
+  r.get('/runs/:id', (req, res) => {
+    const id = Number(req.params.id);
+    if (!Number.isInteger(id) || id <= 0) throw badRequest(`run id must be a positive integer, got ${JSON.stringify(req.params.id)}`);
+    const row = ctx.db.select().from(runs).where(eq(runs.id, id)).get();
+    if (!row) throw notFound(`no run with id ${id}`);
+    try {
+      requireStudy(ctx, req.user, row.studyId, 'read');
+    } catch (e) {
+      if ((e as { status?: number }).status === 404) throw notFound(`no run with id ${id}`);
+      throw e;
+    }
+    res.json(runDetail(ctx, row));
+  });
+
   return r;
 }

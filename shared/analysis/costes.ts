@@ -14,7 +14,7 @@
  * One bucketed sweep instead of a scan of all pixels per step: because a > 0 the below set only shrinks as
  * T1 falls, so each pixel has an entry step e_i (the lowest candidate at which it is below threshold); the
  * sums (count, Σx, Σy, Σx², Σy², Σxy of shifted values) are bucketed by e_i and accumulated from the bottom:
- * O(n + K) for K candidates (O(n log K) for float data). e_i is found with the very comparison
+ * O(n + K·log K) for K candidates. e_i is found with the very comparison
  * `y ≤ a·t + b` the definition uses, so the result equals the step-by-step scan exactly.
  *
  * Degenerate cases: fewer than 2 pixels, a constant channel, or a slope that is not positive → thresholds
@@ -22,10 +22,10 @@
  */
 import { roundedMean } from './numeric';
 import { centeredMoments } from './pearson';
-import type { Pairs } from './pairs';
+import { prepare, type Pairs, type PreparedPairs } from './pairs';
 import type { CostesOptions, ThresholdInfo } from './types';
 
-export function costesThresholds(p: Pairs, options: CostesOptions = {}): ThresholdInfo {
+export function costesThresholds(p: Pairs | PreparedPairs, options: CostesOptions = {}): ThresholdInfo {
   const regression = options.regression ?? 'orthogonal';
   const belowSet = options.belowSet ?? 'either';
   const stopAt = options.stopAt ?? 0;
@@ -47,57 +47,61 @@ export function costesThresholds(p: Pairs, options: CostesOptions = {}): Thresho
   const b = m.meanY - a * m.meanX;
 
   // candidates, ascending
-  let min = Infinity, max = -Infinity;
-  for (let i = 0; i < n; i++) {
-    const v = x[i];
-    if (v < min) min = v;
-    if (v > max) max = v;
-  }
+  const pp = prepare(p);
+  const lx = pp.levelsX, ly = pp.levelsY;
+  const min = lx.values[0], max = lx.values[lx.L - 1];
   let cand: Float64Array;
   if (p.integer) {
     cand = new Float64Array(max - min + 1);
     for (let k = 0; k < cand.length; k++) cand[k] = min + k;
-  } else {
-    const s = Float64Array.prototype.slice.call(x, 0, n).sort();
-    let L = 0;
-    for (let i = 0; i < n; i++) if (i === 0 || s[i] !== s[i - 1]) s[L++] = s[i];
-    cand = s.slice(0, L);
-  }
+  } else cand = lx.values;
   const K = cand.length;
-  const firstAtLeast = (t: number): number => {
-    // smallest k with cand[k] >= t (K if none)
+  // entry step of each y level: smallest k with y ≤ a·cand[k] + b (monotone in k), K if none
+  const eyLevel = new Int32Array(ly.L);
+  for (let j = 0; j < ly.L; j++) {
+    const v = ly.values[j];
+    const tq = (v - b) / a;
     let lo = 0, hi = K;
     while (lo < hi) {
       const mid = (lo + hi) >>> 1;
-      if (cand[mid] < t) lo = mid + 1;
+      if (cand[mid] < tq) lo = mid + 1;
       else hi = mid;
     }
-    return lo;
-  };
-  // smallest k with y ≤ a·cand[k] + b (monotone in k), K if none
-  const yEntry = (v: number): number => {
-    let k = firstAtLeast((v - b) / a);
+    let k = lo;
     while (k > 0 && v <= a * cand[k - 1] + b) k--;
     while (k < K && !(v <= a * cand[k] + b)) k++;
-    return k;
-  };
+    eyLevel[j] = k;
+  }
+  // entry step of each x level
+  const exLevel = new Int32Array(lx.L);
+  for (let j = 0; j < lx.L; j++) exLevel[j] = p.integer ? lx.values[j] - min : j;
   const mx = roundedMean(m.meanX * n, n, p.integer);
   const my = roundedMean(m.meanY * n, n, p.integer);
-  const bc = new Float64Array(K), bx = new Float64Array(K), by = new Float64Array(K);
-  const bxx = new Float64Array(K), byy = new Float64Array(K), bxy = new Float64Array(K);
-  for (let i = 0; i < n; i++) {
-    const xv = x[i], yv = y[i];
-    const ex = p.integer ? xv - min : firstAtLeast(xv);
-    const ey = yEntry(yv);
-    const e = belowSet === 'either' ? (ex < ey ? ex : ey) : ex > ey ? ex : ey;
-    if (e >= K) continue;
-    const dx = xv - mx, dy = yv - my;
-    bc[e]++;
-    bx[e] += dx;
-    by[e] += dy;
-    bxx[e] += dx * dx;
-    byy[e] += dy * dy;
-    bxy[e] += dx * dy;
+  // per-step sums, interleaved (one cache line per step): count, Σdx, Σdy, Σdx², Σdy², Σdxy.
+  // Visiting the pairs in x order keeps most updates on the same step (sequential memory access).
+  const bk = new Float64Array(K * 8);
+  const either = belowSet === 'either';
+  const { start, yRank } = pp.sortedByX;
+  const dyLevel = new Float64Array(ly.L);
+  for (let j = 0; j < ly.L; j++) dyLevel[j] = ly.values[j] - my;
+  for (let g = 0; g < lx.L; g++) {
+    const ex = exLevel[g];
+    const dx = lx.values[g] - mx;
+    const dxx = dx * dx;
+    for (let q = start[g], qe = start[g + 1]; q < qe; q++) {
+      const r = yRank[q];
+      const ey = eyLevel[r];
+      const e = either ? (ex < ey ? ex : ey) : ex > ey ? ex : ey;
+      if (e >= K) continue;
+      const dy = dyLevel[r];
+      const o = e << 3;
+      bk[o]++;
+      bk[o + 1] += dx;
+      bk[o + 2] += dy;
+      bk[o + 3] += dxx;
+      bk[o + 4] += dy * dy;
+      bk[o + 5] += dx * dy;
+    }
   }
   // r at each step from prefix sums (compensated)
   const r = new Float64Array(K).fill(NaN);
@@ -108,7 +112,8 @@ export function costesThresholds(p: Pairs, options: CostesOptions = {}): Thresho
     s[j] = t;
   };
   for (let k = 0; k < K; k++) {
-    add(0, bc[k]); add(1, bx[k]); add(2, by[k]); add(3, bxx[k]); add(4, byy[k]); add(5, bxy[k]);
+    const o = k << 3;
+    for (let j = 0; j < 6; j++) add(j, bk[o + j]);
     const N = s[0] + c[0];
     if (N < 2) continue;
     const sx = s[1] + c[1], sy = s[2] + c[2];

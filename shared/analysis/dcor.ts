@@ -14,23 +14,18 @@
  *   doi:10.1016/j.jmva.2013.02.012; inner product (Székely & Rizzo 2014, Ann. Statist. 42:2382,
  *   doi:10.1214/14-AOS1255): Ω = S1/(n(n−3)) − 2·S2/(n(n−2)(n−3)) + a··b··/(n(n−1)(n−2)(n−3)).
  *   ν = n(n−3)/2, T = √(ν−1)·R* / √(1−R*²), df = ν − 1, p = P(t_df > T) (one-sided, as in R energy's
- *   dcorT.test). The Student-t tail comes from jStat; beyond df = 1e7 the normal tail is used (the two
- *   differ by less than 1e-7 there and jStat's incomplete beta does not converge for such df).
+ *   dcorT.test). The Student-t tail comes from @stdlib/stats-base-dists-t-cdf (pure JS, browser-safe;
+ *   agrees with R's pt to ~1e-15 including df ~ 1e13; jStat's was off by ~1e-8 at df ~ 2e4).
  *
  * Numerics: values are shifted by their rounded mean (dCor is translation invariant), sums are compensated.
  *
  * Degenerate cases: n < 2 or a constant channel → dCor null; n < 4 (or a constant channel) → the
- * bias-corrected value, T, df and p null. R*² = 1 → T null (infinite) and p = 0 (R* = 1) or 1 (R* = −1).
+ * bias-corrected value, T, df and p null;
+ * so is a channel whose U-centred distance matrix is 0 (Ω(x, x) = 0, possible for n ≥ 4 without x constant). R*² = 1 → T null (infinite) and p = 0 (R* = 1) or 1 (R* = −1).
  */
-// @ts-ignore -- jstat ships no type declarations
-import jStatModule from 'jstat';
+import tCdf from '@stdlib/stats-base-dists-t-cdf';
 import { Fenwick4, NeumaierSum, roundedMean } from './numeric';
 import { prepare, type LevelIndex, type Pairs, type PreparedPairs } from './pairs';
-
-const jStat = jStatModule as unknown as {
-  studentt: { cdf(x: number, df: number): number };
-  normal: { cdf(x: number, mean: number, sd: number): number };
-};
 
 export interface DcorResult {
   /** dCor, V-statistic, not squared */
@@ -100,56 +95,68 @@ function rowSums(li: LevelIndex, n: number, integer: boolean): RowSums {
   return { u, row, total: total.value(), rowSq: rowSq.value(), sq: 2 * n * sxx };
 }
 
-/** Σ_ij |x_i − x_j||y_i − y_j| by one Fenwick sweep (Huo & Székely 2016). */
+/**
+ * Σ_ij |x_i − x_j||y_i − y_j| by one Fenwick sweep (Huo & Székely 2016). Items are visited in x order a
+ * whole x group at a time (queries before inserts): pairs within a group have x_i − x_j = 0 and add
+ * nothing, and the same sweep yields Kendall's C − D from the count slot (cached for kendall.ts).
+ */
 function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number {
-  const ly = p.levelsY;
-  const rx = p.levelsX.rank;
-  const ry = ly.rank;
-  const { order } = p.orderX;
-  const n = p.n;
-  const fw = new Fenwick4(ly.L);
-  const t = fw.tree;
-  const size = ly.L;
+  const size = p.levelsY.L;
+  const { start, yRank } = p.sortedByX;
+  const t = new Fenwick4(size).tree;
+  const eqCount = new Int32Array(size);
   let C = 0, SX = 0, SY = 0, SXY = 0;
   let acc = 0, accC = 0;
-  for (let q = 0; q < n; q++) {
-    const i = order[q];
-    const r = ry[i];
-    const u = ux[rx[i]];
-    const w = uy[r];
-    let c = 0, sx = 0, sy = 0, sxy = 0;
-    for (let k = r; k > 0; k -= k & -k) {
-      const o = k << 2;
-      c += t[o];
-      sx += t[o + 1];
-      sy += t[o + 2];
-      sxy += t[o + 3];
+  let S = 0;
+  const Lx = start.length - 1;
+  for (let g = 0; g < Lx; g++) {
+    const a = start[g], b = start[g + 1];
+    const u = ux[g];
+    let gS = 0;
+    for (let q = a; q < b; q++) {
+      const r = yRank[q];
+      const w = uy[r];
+      let c = 0, sx = 0, sy = 0, sxy = 0;
+      for (let k = r; k > 0; k -= k & -k) {
+        const o = k << 2;
+        c += t[o];
+        sx += t[o + 1];
+        sy += t[o + 2];
+        sxy += t[o + 3];
+      }
+      gS += 2 * c + eqCount[r] - C;
+      // Σ_{j seen} (u − u_j)|w − w_j| = Σ_below (u−u_j)(w−w_j) − Σ_rest (u−u_j)(w−w_j)
+      const v = (2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY);
+      const tt = acc + v;
+      if (Math.abs(acc) >= Math.abs(v)) accC += acc - tt + v; else accC += v - tt + acc;
+      acc = tt;
     }
-    // Σ_{j seen} (u − u_j)|w − w_j| = Σ_below (u−u_j)(w−w_j) − Σ_rest (u−u_j)(w−w_j)
-    const v = (2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY);
-    const tt = acc + v;
-    if (Math.abs(acc) >= Math.abs(v)) accC += acc - tt + v; else accC += v - tt + acc;
-    acc = tt;
-    const uw = u * w;
-    for (let k = r + 1; k <= size; k += k & -k) {
-      const o = k << 2;
-      t[o] += 1;
-      t[o + 1] += u;
-      t[o + 2] += w;
-      t[o + 3] += uw;
+    for (let q = a; q < b; q++) {
+      const r = yRank[q];
+      const w = uy[r];
+      const uw = u * w;
+      for (let k = r + 1; k <= size; k += k & -k) {
+        const o = k << 2;
+        t[o] += 1;
+        t[o + 1] += u;
+        t[o + 2] += w;
+        t[o + 3] += uw;
+      }
+      eqCount[r]++;
+      SY += w;
+      SXY += uw;
     }
-    C += 1;
-    SX += u;
-    SY += w;
-    SXY += uw;
+    C += b - a;
+    SX += u * (b - a);
+    S += gS;
   }
+  p.kendallS = S;
   return 2 * (acc + accC);
 }
 
-/** upper tail P(T_df > t) */
+/** upper tail P(T_df > t), computed as the lower tail at −t (no cancellation in 1 − F) */
 export function studentTUpper(t: number, df: number): number {
-  if (df > 1e7) return jStat.normal.cdf(-t, 0, 1);
-  return jStat.studentt.cdf(-t, df);
+  return tCdf(-t, df);
 }
 
 /** dCor, bias-corrected dCor², and the t-test of independence, exact. */
@@ -182,12 +189,15 @@ export function distanceCorrelation(pairs: Pairs | PreparedPairs): DcorResult {
     dcor = d2 <= 0 ? 0 : d2 >= 1 ? 1 : Math.sqrt(d2);
   }
   if (n < 4) return { ...none, dcor };
-  // U-statistics scaled by n(n−3)
-  const u = (s1: number, s2: number, a: number, b: number) => s1 - (2 * s2) / (n - 2) + (a * b) / ((n - 1) * (n - 2));
+  // U-statistics scaled by n(n−3)(n−1)(n−2): integer arithmetic for small integer data. Ω(x, x) can be 0
+  // for a non-constant x (e.g. x = [3,2,1,2,2]: every U-centred distance is 0); values within rounding of
+  // 0 relative to the largest term count as 0.
+  const u = (s1: number, s2: number, a: number, b: number) => (n - 1) * (n - 2) * s1 - 2 * (n - 1) * s2 + a * b;
   const uxy = u(S1, S2, A.total, B.total);
   const uxx = u(A.sq, A.rowSq, A.total, A.total);
   const uyy = u(B.sq, B.rowSq, B.total, B.total);
-  if (!(uxx > 0 && uyy > 0)) return { ...none, dcor };
+  const tiny = 1e-13 * (n - 1) * (n - 2);
+  if (!(uxx > tiny * A.sq && uyy > tiny * B.sq)) return { ...none, dcor };
   let R = uxy / Math.sqrt(uxx * uyy);
   R = R > 1 ? 1 : R < -1 ? -1 : R;
   const nu = (n * (n - 3)) / 2;

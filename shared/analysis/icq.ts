@@ -21,9 +21,21 @@ export function icq(p: Pairs): number | null {
     if (y[i] !== y0) constY = false;
   }
   if (constX || constY) return null;
-  const sx = neumaierSum(x, n), sy = neumaierSum(y, n);
+  let sx: number, sy: number;
+  if (p.integer && n <= 2 ** 37) {
+    // exact: every partial sum of values ≤ 65535 stays below 2^53
+    sx = 0;
+    sy = 0;
+    for (let i = 0; i < n; i++) {
+      sx += x[i];
+      sy += y[i];
+    }
+  } else {
+    sx = neumaierSum(x, n);
+    sy = neumaierSum(y, n);
+  }
   let pos = 0;
-  if (p.integer && n <= 2 ** 32) {
+  if (p.integer && n <= 2 ** 37) {
     for (let i = 0; i < n; i++) {
       const a = x[i] * n - sx, b = y[i] * n - sy;
       if ((a > 0 && b > 0) || (a < 0 && b < 0)) pos++;

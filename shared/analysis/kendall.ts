@@ -24,16 +24,15 @@ function tiedPairs(li: LevelIndex): number {
   return s;
 }
 
-/** C − D over all pairs (exact integer). */
+/** C − D over all pairs (exact integer). Cached on the prepared pairs (the dCor sweep also fills it). */
 export function kendallS(pairs: Pairs | PreparedPairs): number {
   const p = prepare(pairs);
+  if (p.kendallS !== undefined) return p.kendallS;
   const ly = p.levelsY;
-  const ry = ly.rank;
-  const { order, start } = p.orderX;
-  const fw = new FenwickCount(ly.L);
-  const tree = fw.tree;
+  const { start, yRank } = p.sortedByX;
   const size = ly.L;
-  const eqCount = new Int32Array(ly.L);
+  const tree = new FenwickCount(size).tree;
+  const eqCount = new Int32Array(size);
   let S = 0;
   let inserted = 0;
   const Lx = start.length - 1;
@@ -41,19 +40,20 @@ export function kendallS(pairs: Pairs | PreparedPairs): number {
     const a = start[g], b = start[g + 1];
     let groupS = 0;
     for (let q = a; q < b; q++) {
-      const r = ry[order[q]];
+      const r = yRank[q];
       let less = 0;
       for (let k = r; k > 0; k -= k & -k) less += tree[k];
       groupS += 2 * less + eqCount[r] - inserted;
     }
     for (let q = a; q < b; q++) {
-      const r = ry[order[q]];
+      const r = yRank[q];
       for (let k = r + 1; k <= size; k += k & -k) tree[k]++;
       eqCount[r]++;
     }
     inserted += b - a;
     S += groupS;
   }
+  p.kendallS = S;
   return S;
 }
 

@@ -20,17 +20,24 @@ export function manders(p: Pairs, t1: number | null, t2: number | null): Manders
   if (t1 === null || t2 === null || !Number.isFinite(t1) || !Number.isFinite(t2)) return { m1: null, m2: null };
   const { x, y, n } = p;
   const num1 = new NeumaierSum(), den1 = new NeumaierSum(), num2 = new NeumaierSum(), den2 = new NeumaierSum();
-  for (let i = 0; i < n; i++) {
-    const a = x[i], b = y[i];
-    const ax = a > t1, by = b > t2;
-    if (ax) {
-      den1.add(a);
-      if (by) num1.add(a);
+  // integer data: block sums of at most 2^20 values ≤ 65535 are exact; float data: compensated per block of 1
+  const block = p.integer ? 1 << 20 : 1;
+  for (let b0 = 0; b0 < n; b0 += block) {
+    const e = Math.min(n, b0 + block);
+    let n1 = 0, d1 = 0, n2 = 0, d2 = 0;
+    for (let i = b0; i < e; i++) {
+      const a = x[i], b = y[i];
+      const ax = a > t1, by = b > t2;
+      if (ax) {
+        d1 += a;
+        if (by) {
+          n1 += a;
+          n2 += b;
+        }
+      }
+      if (by) d2 += b;
     }
-    if (by) {
-      den2.add(b);
-      if (ax) num2.add(b);
-    }
+    num1.add(n1); den1.add(d1); num2.add(n2); den2.add(d2);
   }
   const d1 = den1.value(), d2 = den2.value();
   return { m1: d1 !== 0 ? num1.value() / d1 : null, m2: d2 !== 0 ? num2.value() / d2 : null };

@@ -38,6 +38,15 @@ export interface LevelOrder {
   start: Int32Array;
 }
 
+/**
+ * The y levels of the items in x order (stable counting sort on x levels): items of x level k occupy
+ * positions start[k] .. start[k+1] of `yRank`. Sequential memory access for the sweeps of kendall/dcor.
+ */
+export interface XSorted {
+  start: Int32Array;
+  yRank: RankArray;
+}
+
 function isSmallUnsigned(a: ChannelArray): boolean {
   return a instanceof Uint8Array || a instanceof Uint8ClampedArray || a instanceof Uint16Array;
 }
@@ -125,9 +134,10 @@ export function collectPairs(ch1: ChannelArray, ch2: ChannelArray, region: Regio
 
 /** Levels of one variable: counting for Uint16 storage, sorting otherwise. */
 export function levelIndex(v: PairArray, n = v.length): LevelIndex {
-  if (v instanceof Uint16Array) {
-    let max = 0;
-    for (let i = 0; i < n; i++) if (v[i] > max) max = v[i];
+  let max = 0;
+  if (v instanceof Uint16Array) for (let i = 0; i < n; i++) if (v[i] > max) max = v[i];
+  // counting pays off unless the value range is much wider than the number of items
+  if (v instanceof Uint16Array && max < 16 * n + 256) {
     const cnt = new Int32Array(max + 1);
     for (let i = 0; i < n; i++) cnt[v[i]]++;
     const map = new Uint16Array(max + 1);
@@ -145,7 +155,7 @@ export function levelIndex(v: PairArray, n = v.length): LevelIndex {
     for (let i = 0; i < n; i++) rank[i] = map[v[i]];
     return { L, rank, values, counts };
   }
-  const sorted = Float64Array.prototype.slice.call(v, 0, n).sort();
+  const sorted = Float64Array.from(v.subarray(0, n)).sort();
   let L = 0;
   for (let i = 0; i < n; i++) if (i === 0 || sorted[i] !== sorted[i - 1]) sorted[L++] = sorted[i];
   const values = sorted.slice(0, L);
@@ -178,6 +188,19 @@ export function levelOrder(li: LevelIndex): LevelOrder {
   return { order, start };
 }
 
+/** y levels in x order, O(n + L). */
+export function sortByX(lx: LevelIndex, ly: LevelIndex): XSorted {
+  const { L, rank: rx, counts } = lx;
+  const ry = ly.rank;
+  const n = rx.length;
+  const start = new Int32Array(L + 1);
+  for (let k = 0; k < L; k++) start[k + 1] = start[k] + counts[k];
+  const pos = start.slice(0, L);
+  const yRank: RankArray = ry instanceof Uint16Array ? new Uint16Array(n) : new Uint32Array(n);
+  for (let i = 0; i < n; i++) yRank[pos[rx[i]]++] = ry[i];
+  return { start, yRank };
+}
+
 /**
  * Pairs with lazily computed, cached level structures so that the coefficients of one region share
  * one pass of counting (measureRegion computes each piece at most once).
@@ -190,6 +213,9 @@ export class PreparedPairs implements Pairs {
   private _lx?: LevelIndex;
   private _ly?: LevelIndex;
   private _ox?: LevelOrder;
+  private _sx?: XSorted;
+  /** C − D of Kendall's τ, filled by whichever sweep computes it first (kendall.ts or dcor.ts) */
+  kendallS?: number;
   constructor(p: Pairs) {
     this.n = p.n;
     this.x = p.x;
@@ -204,6 +230,9 @@ export class PreparedPairs implements Pairs {
   }
   get orderX(): LevelOrder {
     return (this._ox ??= levelOrder(this.levelsX));
+  }
+  get sortedByX(): XSorted {
+    return (this._sx ??= sortByX(this.levelsX, this.levelsY));
   }
 }
 

@@ -29,6 +29,17 @@ export class Xoshiro128 {
     this.s3 = next();
   }
 
+  /** a generator with an explicit 128-bit state (four 32-bit words, not all 0) — for reference checks */
+  static fromState(s0: number, s1: number, s2: number, s3: number): Xoshiro128 {
+    if ((s0 | s1 | s2 | s3) === 0) throw new RangeError('xoshiro128** state must not be all zero');
+    const g = new Xoshiro128(0);
+    g.s0 = s0 | 0;
+    g.s1 = s1 | 0;
+    g.s2 = s2 | 0;
+    g.s3 = s3 | 0;
+    return g;
+  }
+
   /** next unsigned 32-bit integer */
   nextUint32(): number {
     const result = Math.imul(rotl(Math.imul(this.s1, 5), 7), 9) >>> 0;

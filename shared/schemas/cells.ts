@@ -5,6 +5,8 @@
  * rule (shared/analysis/rasterize.ts is the one implementation).
  */
 import { z } from 'zod';
+import { rasterize, maskToIndices, type Shape } from '../analysis/rasterize';
+import { rleToIndices } from '../analysis/segment';
 
 /** Largest vertex count accepted for one outline (freehand strokes are thinned on the client). */
 export const MAX_VERTICES = 20000;
@@ -118,3 +120,31 @@ export type AutoOutlineResponse = z.infer<typeof AutoOutlineResponse>;
 
 export const ImportLabelsResponse = z.object({ cells: z.array(Cell), labels: z.number().int() });
 export type ImportLabelsResponse = z.infer<typeof ImportLabelsResponse>;
+
+// ---------------------------------------------------------------------------------------------------------
+// The one mapping from a stored cell geometry to its pixels, used by the server (pixelCount, runs) and the
+// browser (overlay, scatter, live preview). Drawn outlines go through shared/analysis/rasterize.ts (the one
+// pixel-centre rule); label cells decode their run-length code.
+
+
+/** The rasterizer's shape for a drawn geometry (null for label masks). */
+export function shapeOfGeometry(g: CellGeometry): Shape | null {
+  switch (g.kind) {
+    case 'polygon':
+    case 'freehand':
+      return { kind: 'polygon', points: g.points };
+    case 'rect':
+      return { kind: 'rectangle', x: g.x, y: g.y, width: g.width, height: g.height };
+    case 'ellipse':
+      return { kind: 'ellipse', cx: g.cx, cy: g.cy, rx: g.rx, ry: g.ry };
+    case 'label':
+      return null;
+  }
+}
+
+/** Linear pixel indices (y·width + x, ascending) of a cell in a width × height field. */
+export function cellIndices(g: CellGeometry, width: number, height: number): Uint32Array {
+  const shape = shapeOfGeometry(g);
+  if (shape) return maskToIndices(rasterize(shape, width, height));
+  return rleToIndices((g as { rle: number[] }).rle, width * height);
+}

@@ -53,7 +53,11 @@ export const CreateReportRequest = z.object({
   title: z.string({ message: 'enter a title' }).trim().min(1, 'enter a title').max(200, 'a title has at most 200 characters'),
   notes: z.string().max(10000, 'notes have at most 10000 characters').default(''),
   coefficients: z.array(ReportCoefficient).min(1, 'choose at least one coefficient').max(REPORT_COEFFICIENTS.length),
-  /** only measurements of runs with this recipe version (default: each cell's latest measurement) */
+  /**
+   * which measurements: one run, or each cell's latest measurement with this recipe version; default the recipe
+   * of the study's latest run with measurements (the same rule as the Compare screen)
+   */
+  runId: Id.optional(),
   recipeId: Id.optional(),
   /** restrict to these conditions (default: all, in study order) */
   conditionIds: z.array(Id).min(1).optional(),
@@ -193,6 +197,8 @@ export const StatisticRow = z.object({
   effectLabel: z.string().nullable(),
   ciLow: Num,
   ciHigh: Num,
+  /** further tests on the same coverslip-level data (e.g. Mann–Whitney beside Welch's t) */
+  alsoTests: z.array(z.object({ test: z.string(), statistic: Num, df: Num, p: Num })).default([]),
   /** plain-English result */
   sentence: z.string(),
   /** 'compare' = from the comparison module (server/compare); 'report' = the report's own coverslip-level test */

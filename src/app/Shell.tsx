@@ -2,6 +2,7 @@
 import { Navigate, NavLink, Outlet, useLocation } from 'react-router';
 import { useMe } from '@/features/auth/api/useMe';
 import type { Role } from '@shared/schemas/auth';
+import { SignOutButton } from '@/features/auth/components/SignOutButton';
 
 const NAV: { to: string; label: string; roles?: Role[] }[] = [
   { to: '/', label: 'Home' },
@@ -23,6 +24,9 @@ export function Shell() {
   const user = me.data;
   return (
     <div className="min-h-screen flex">
+      <a href="#main" className="sr-only focus:not-sr-only focus:absolute focus:left-2 focus:top-2 focus:z-50 focus:rounded focus:bg-white focus:px-3 focus:py-2">
+        Skip to the page
+      </a>
       <nav className="no-print w-52 shrink-0 border-r border-ink/10 bg-white/60 px-3 py-4 flex flex-col gap-1" aria-label="Main">
         <div className="px-2 pb-4">
           <div className="text-xl font-bold tracking-tight text-accent-dark">Syntopy</div>
@@ -34,7 +38,7 @@ export function Shell() {
             to={n.to}
             end={n.to === '/'}
             className={({ isActive }) =>
-              `rounded-md px-2 py-1.5 text-sm ${isActive ? 'bg-accent-soft text-accent-dark font-medium' : 'text-ink-soft hover:bg-ink/5'}`
+              `rounded-md px-2 py-1.5 text-sm focus-visible:outline-2 focus-visible:outline-offset-1 focus-visible:outline-accent ${isActive ? 'bg-accent-soft text-accent-dark font-medium' : 'text-ink-soft hover:bg-ink/5'}`
             }
           >
             {n.label}
@@ -43,10 +47,11 @@ export function Shell() {
         <div className="mt-auto px-2 pt-4 text-xs text-ink-faint">
           <div className="font-medium text-ink-soft">{user.name}</div>
           <div>{user.roles.map((r) => r.replace('_', ' ')).join(' · ')}</div>
+          <SignOutButton />
           <p className="mt-3 leading-snug">Research use only; not for diagnosis.</p>
         </div>
       </nav>
-      <main className="flex-1 min-w-0 p-6">
+      <main id="main" tabIndex={-1} className="flex-1 min-w-0 p-6 outline-none">
         <Outlet />
       </main>
     </div>

@@ -4,7 +4,7 @@ import { Link, type LinkProps } from 'react-router';
 import { cx, focusRing } from './cx';
 import { Spinner } from './Spinner';
 
-export type ButtonVariant = 'primary' | 'secondary' | 'ghost' | 'danger';
+export type ButtonVariant = 'primary' | 'secondary' | 'ghost' | 'danger' | 'quietDanger';
 export type ButtonSize = 'sm' | 'md';
 
 const base = 'inline-flex items-center justify-center gap-1.5 rounded-md font-medium transition-colors disabled:cursor-not-allowed disabled:opacity-55 whitespace-nowrap';
@@ -13,6 +13,8 @@ const variants: Record<ButtonVariant, string> = {
   secondary: 'border border-ink/20 bg-white text-ink hover:bg-ink/5',
   ghost: 'text-ink-soft hover:bg-ink/5 hover:text-ink',
   danger: 'bg-danger text-white hover:bg-danger/90 shadow-sm',
+  /** a destructive action that opens a confirmation (the red button is inside the dialog) */
+  quietDanger: 'text-danger hover:bg-danger-soft',
 };
 const sizes: Record<ButtonSize, string> = { sm: 'px-2.5 py-1 text-sm', md: 'px-3.5 py-2 text-sm' };
 

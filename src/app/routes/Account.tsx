@@ -1,4 +1,40 @@
-/** Route module: Account (placeholder until its feature lands). */
+/** Route module: Account: who you are here, and your password. */
+import { useMe } from '@/features/auth/api/useMe';
+import { ChangePasswordForm } from '@/features/auth/components/ChangePasswordForm';
+import { ROLE_DUTIES, RoleBadges } from '@/features/auth/components/roles';
+import { Card } from '@/components/Card';
+import { PageHeader } from '@/components/PageHeader';
+import { Loading } from '@/components/Spinner';
+
 export function Component() {
-  return <div className="text-ink-soft">Account: not built yet.</div>;
+  const me = useMe();
+  if (!me.data) return <Loading />;
+  const u = me.data;
+  return (
+    <>
+      <PageHeader title="Account" description="Your name and roles are set by your facility manager." />
+      <div className="grid max-w-4xl gap-4 lg:grid-cols-2">
+        <Card title="You">
+          <dl className="grid grid-cols-[auto_1fr] gap-x-4 gap-y-2 text-sm">
+            <dt className="text-ink-soft">Name</dt>
+            <dd className="font-medium">{u.name}</dd>
+            <dt className="text-ink-soft">E-mail</dt>
+            <dd className="font-mono text-xs leading-5">{u.email}</dd>
+            <dt className="text-ink-soft">Roles</dt>
+            <dd>
+              <RoleBadges roles={u.roles} />
+            </dd>
+          </dl>
+          <ul className="mt-4 list-disc pl-5 text-xs text-ink-soft">
+            {u.roles.map((r) => (
+              <li key={r}>{ROLE_DUTIES[r]}</li>
+            ))}
+          </ul>
+        </Card>
+        <Card title="Password">
+          <ChangePasswordForm email={u.email} />
+        </Card>
+      </div>
+    </>
+  );
 }

@@ -1,4 +1,270 @@
-/** Route module: FieldWorkspace (placeholder until its feature lands). */
+/**
+ * Route module: the field workspace (/studies/:studyId/fields/:fieldId). The image with its outlines, the
+ * Cells list, the Pixel scatter with live coefficients (preview), per-cell results and the cautions.
+ * Keys: V P B O F tools · M background mode · Ctrl+Z / Ctrl+Shift+Z undo/redo · Delete removes the selected
+ * outline · arrows nudge it (Shift: 10 px) · + − 0 1 zoom · Esc deselects.
+ */
+import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
+import { useParams } from 'react-router';
+import { Button, Caution, ErrorNotice, Loading, PageHeader } from '@/components';
+import { useFieldDetail } from '@/features/workspace/api/useFieldDetail';
+import { useStudy } from '@/features/studies/api/useStudy';
+import { useCells } from '@/features/workspace/api/useCells';
+import { useFieldPixels } from '@/features/workspace/api/useFieldPixels';
+import { useFieldResults } from '@/features/workspace/api/useFieldResults';
+import { initialOutlineState, outlineReducer } from '@/features/workspace/outline-state';
+import { useOutlineSync } from '@/features/workspace/useOutlineSync';
+import { useScatter } from '@/features/workspace/useScatter';
+import { Viewer, isTyping, type DisplaySettings, type Tool } from '@/features/workspace/components/Viewer';
+import { ToolBar, TOOLS } from '@/features/workspace/components/ToolBar';
+import { CellsPanel } from '@/features/workspace/components/CellsPanel';
+import { DisplayPanel, channelNames } from '@/features/workspace/components/DisplayPanel';
+import { PixelScatter } from '@/features/workspace/components/PixelScatter';
+import { LivePreview } from '@/features/workspace/components/LivePreview';
+import { ResultsTable } from '@/features/workspace/components/ResultsTable';
+import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace/components/OutlineActions';
+
 export function Component() {
-  return <div className="text-ink-soft">FieldWorkspace: not built yet.</div>;
+  const params = useParams();
+  const studyId = Number(params.studyId);
+  const fieldId = Number(params.fieldId);
+  const field = useFieldDetail(fieldId);
+  if (field.isPending) return <Loading label="Opening the field…" />;
+  if (field.isError) return <ErrorNotice error={field.error} />;
+  return <Workspace key={fieldId} studyId={studyId} field={field.data} />;
+}
+
+function Workspace({ studyId, field }: { studyId: number; field: NonNullable<ReturnType<typeof useFieldDetail>['data']> }) {
+  const fieldId = field.id;
+  const canEdit = field.canEdit;
+  const names = channelNames(field);
+  const cells = useCells(fieldId);
+  const results = useFieldResults(studyId, fieldId);
+  const study = useStudy(studyId);
+  const [state, dispatch] = useReducer(outlineReducer, undefined, () => initialOutlineState());
+  const [tool, setTool] = useState<Tool>(canEdit ? 'polygon' : 'select');
+  const [background, setBackground] = useState(false);
+  const [gesture, setGesture] = useState(false);
+  const [display, setDisplay] = useState<DisplaySettings>({ view: 'composite', z: undefined, range1: null, range2: null });
+  const [autoRanges, setAutoRanges] = useState<[number, number][] | null>(null);
+  const [command, setCommand] = useState<{ kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null>(null);
+  const [dialog, setDialog] = useState<null | 'labels' | 'auto'>(null);
+  const [notice, setNotice] = useState<string | null>(null);
+  const [manual, setManual] = useState<{ t1: number; t2: number } | null>(null);
+  const loaded = useRef(false);
+
+  useEffect(() => {
+    if (cells.data) {
+      dispatch({ type: 'load', cells: cells.data.cells });
+      loaded.current = true;
+    }
+  }, [cells.data]);
+
+  const sync = useOutlineSync(fieldId, state, dispatch, gesture, canEdit && !!cells.data);
+
+  // pixels for the scatter and the live preview (the slice the display shows)
+  const pixels = useFieldPixels(fieldId, display.z);
+  const saturationLevel = field.sampleFormat === 'float' ? null : 2 ** field.bitDepth - 1;
+  const scatter = useScatter(pixels.data, saturationLevel);
+  const selectedOutline = state.outlines.find((o) => o.key === state.selected) ?? null;
+  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : 'field';
+  const regionName = selectedOutline ? selectedOutline.name : 'the whole field';
+  const geometry = selectedOutline?.geometry ?? null;
+  useEffect(() => {
+    if (!scatter.ready || gesture) return;
+    scatter.request(regionKey, geometry, manual?.t1 ?? null, manual?.t2 ?? null, true);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [scatter.ready, regionKey, gesture, manual]);
+  const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false), [scatter, regionKey, geometry]);
+  const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
+
+  // keyboard
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      if (isTyping(e.target) || document.querySelector('[role="dialog"],[role="alertdialog"]')) return;
+      const mod = e.ctrlKey || e.metaKey;
+      const k = e.key.toLowerCase();
+      if (mod && k === 'z') {
+        e.preventDefault();
+        dispatch({ type: e.shiftKey ? 'redo' : 'undo' });
+        return;
+      }
+      if (mod && k === 'y') {
+        e.preventDefault();
+        dispatch({ type: 'redo' });
+        return;
+      }
+      if (mod || e.altKey) return;
+      const t = TOOLS.find((x) => x.key.toLowerCase() === k);
+      if (t && (canEdit || t.tool === 'select')) return setTool(t.tool);
+      if (k === 'm' && canEdit) return setBackground((b) => !b);
+      if (e.key === '+' || e.key === '=') return setCommand((c) => ({ kind: 'in', n: (c?.n ?? 0) + 1 }));
+      if (e.key === '-') return setCommand((c) => ({ kind: 'out', n: (c?.n ?? 0) + 1 }));
+      if (e.key === '0') return setCommand((c) => ({ kind: 'fit', n: (c?.n ?? 0) + 1 }));
+      if (e.key === '1') return setCommand((c) => ({ kind: 'one', n: (c?.n ?? 0) + 1 }));
+      if (e.key === 'Escape' && state.selected) return dispatch({ type: 'select', key: null });
+      if ((e.key === 'Delete' || e.key === 'Backspace') && state.selected && canEdit && tool === 'select') {
+        e.preventDefault();
+        return dispatch({ type: 'delete', key: state.selected });
+      }
+      if (e.key.startsWith('Arrow') && state.selected && canEdit && (e.target as HTMLElement)?.dataset?.testid === 'field-viewer') {
+        e.preventDefault();
+        const d = e.shiftKey ? 10 : 1;
+        const dx = e.key === 'ArrowLeft' ? -d : e.key === 'ArrowRight' ? d : 0;
+        const dy = e.key === 'ArrowUp' ? -d : e.key === 'ArrowDown' ? d : 0;
+        dispatch({ type: 'translate', key: state.selected, dx, dy });
+      }
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, [canEdit, state.selected, tool]);
+
+  const savedCells = useMemo(() => Object.values(state.saved).sort((a, b) => a.id - b.id), [state.saved]);
+  const selectedCellId = state.selected ? (state.saved[state.selected]?.id ?? null) : null;
+  const live = scatter.live;
+  const liveStale = !!scatter.live && scatter.live.regionKey !== regionKey;
+  const regionSaturated = scatter.view && scatter.view.regionKey === regionKey ? (scatter.view.saturated.ch1 ?? 0) > 0 || (scatter.view.saturated.ch2 ?? 0) > 0 : false;
+
+  const status =
+    sync.status.kind === 'error' ? (
+      <span className="text-danger" role="alert">
+        Not saved: {sync.status.message}
+      </span>
+    ) : sync.busy || sync.status.kind === 'saving' ? (
+      'Saving…'
+    ) : sync.status.kind === 'saved' ? (
+      'All changes saved'
+    ) : canEdit ? (
+      'Outlines save as you draw'
+    ) : (
+      'Read only'
+    );
+
+  return (
+    <div className="flex flex-col">
+      <PageHeader
+        title={field.name}
+        trail={[
+          { to: '/studies', label: 'Studies' },
+          { to: `/studies/${studyId}`, label: study.data?.name ?? 'Study' },
+        ]}
+        description={`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''}${field.pixelSizeUm ? ` · ${field.pixelSizeUm} µm/px` : ''} · ${names[0]} and ${names[1]}`}
+        actions={
+          canEdit ? (
+            <>
+              <Button onClick={() => setDialog('labels')}>Import label image</Button>
+              <Button onClick={() => setDialog('auto')}>Find cells…</Button>
+            </>
+          ) : undefined
+        }
+      />
+      {notice && (
+        <Caution tone="info" className="mb-3">
+          {notice}{' '}
+          <button type="button" className="ml-2 underline" onClick={() => setNotice(null)}>
+            dismiss
+          </button>
+        </Caution>
+      )}
+      <div className="grid gap-4 xl:grid-cols-[minmax(0,1fr)_22rem]">
+        <div className="min-w-0 space-y-3">
+          <ToolBar
+            tool={tool}
+            onTool={setTool}
+            canEdit={canEdit}
+            canUndo={state.past.length > 0}
+            canRedo={state.future.length > 0}
+            onUndo={() => dispatch({ type: 'undo' })}
+            onRedo={() => dispatch({ type: 'redo' })}
+            background={background}
+            onBackground={setBackground}
+            status={status}
+          />
+          <div className="h-[68vh] min-h-[420px]">
+            <Viewer
+              field={field}
+              display={display}
+              outlines={state.outlines}
+              selected={state.selected}
+              tool={tool}
+              canEdit={canEdit}
+              newRole={background ? 'background' : 'cell'}
+              dispatch={dispatch}
+              onAutoRanges={setAutoRanges}
+              onGesture={setGesture}
+              command={command}
+            />
+          </div>
+          <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
+            <section aria-label="Display" className="rounded-md border border-ink/10 bg-white/70 p-3">
+              <h3 className="mb-2 text-sm font-semibold">Display</h3>
+              <DisplayPanel field={field} display={display} onChange={setDisplay} autoRanges={autoRanges} />
+            </section>
+            <div className="rounded-md border border-ink/10 bg-white/70 p-3">
+              <ResultsTable
+                results={results.data}
+                loadError={results.isError}
+                cells={savedCells}
+                selectedCellId={selectedCellId}
+                fieldSaturated={field.saturated}
+                onSelect={(id) => dispatch({ type: 'select', key: Object.entries(state.saved).find(([, c]) => c.id === id)?.[0] ?? null })}
+              />
+            </div>
+          </div>
+        </div>
+        <aside className="space-y-3" aria-label="Cells and measurements">
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3">
+            <div className="mb-1 flex items-center justify-between">
+              <h2 className="text-base font-semibold">Cells</h2>
+              <span className="text-xs text-ink-soft">{state.outlines.filter((o) => o.role === 'cell').length} cells · {state.outlines.filter((o) => o.role === 'background').length} background</span>
+            </div>
+            <div className="max-h-64 overflow-auto">
+              {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} />}
+            </div>
+          </section>
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">
+            <h2 className="mb-1 text-base font-semibold">Pixel scatter</h2>
+            {pixels.isError ? (
+              <ErrorNotice error={pixels.error} />
+            ) : scatter.error ? (
+              <ErrorNotice error={scatter.error} />
+            ) : (
+              <PixelScatter
+                data={scatter.view}
+                names={names}
+                regionName={regionName}
+                onThresholds={onThresholds}
+                onThresholdsDone={onThresholdsDone}
+                onReset={() => setManual(null)}
+                manual={!!manual}
+              />
+            )}
+          </section>
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3">
+            <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
+          </section>
+          <div className="space-y-2" aria-label="Cautions">
+            {(field.saturated || regionSaturated) && (
+              <Caution title="Saturated pixels present">
+                {regionSaturated ? `${regionName} has pixels at the detector's ceiling` : 'This field has pixels at the ceiling or a clipping plateau'}; clipped intensities bias every coefficient. Flagged in results and reports.
+              </Caution>
+            )}
+            <Caution tone="info" title="What these numbers mean">
+              Display range and view change only the picture, never the numbers. Co-localization at light-microscope resolution (about 200 nm) shows that two labels share the same places, not that the molecules interact.
+            </Caution>
+          </div>
+        </aside>
+      </div>
+      <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
+      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} />
+    </div>
+  );
+}
+
+/** A short signature of a geometry (region cache key in the worker). */
+function hashGeometry(g: unknown): string {
+  const s = JSON.stringify(g);
+  let h = 2166136261;
+  for (let i = 0; i < s.length; i++) h = Math.imul(h ^ s.charCodeAt(i), 16777619);
+  return (h >>> 0).toString(36) + s.length;
 }

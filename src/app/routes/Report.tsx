@@ -1,4 +1,47 @@
-/** Route module: Report (placeholder until its feature lands). */
+/** Route module: one report, with printing, CSV downloads and (for those who may) sharing by e-mail. */
+import { useState } from 'react';
+import { Link, useParams } from 'react-router';
+import { Button, Card, ErrorNotice, Loading } from '@/components';
+import { useReport } from '@/features/reports/api/useReport';
+import { reportCsvUrl } from '@/features/reports/api/csvUrl';
+import { ReportView } from '@/features/reports/components/ReportView';
+import { ShareDialog } from '@/features/share/components/ShareDialog';
+import { ShareLinksTable } from '@/features/share/components/ShareLinksTable';
+
 export function Component() {
-  return <div className="text-ink-soft">Report: not built yet.</div>;
+  const id = Number(useParams().reportId);
+  const q = useReport(id);
+  const [sharing, setSharing] = useState(false);
+  if (q.isPending) return <Loading label="Loading report…" />;
+  if (q.isError) return <ErrorNotice error={q.error} />;
+  const r = q.data;
+  return (
+    <div>
+      <nav className="no-print mb-3 text-sm text-ink-soft">
+        <Link to={`/studies/${r.studyId}/reports`} className="hover:underline">
+          ← Reports of “{r.snapshot.study.name}”
+        </Link>
+      </nav>
+      <ReportView
+        report={r}
+        csvHref={(t) => reportCsvUrl(r.id, t)}
+        actions={
+          <>
+            <Button onClick={() => window.print()}>Print / PDF</Button>
+            {r.canShare && (
+              <Button variant="primary" onClick={() => setSharing(true)}>
+                Share by e-mail
+              </Button>
+            )}
+          </>
+        }
+      />
+      {r.canShare && (
+        <Card title="Share links" className="no-print mx-auto mt-2 max-w-5xl">
+          <ShareLinksTable reportId={r.id} />
+        </Card>
+      )}
+      {sharing && <ShareDialog reportId={r.id} open onClose={() => setSharing(false)} />}
+    </div>
+  );
 }

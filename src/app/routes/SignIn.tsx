@@ -1,4 +1,22 @@
-/** Route module: SignIn (placeholder until its feature lands). */
+/** Route module: sign-in. `?next=/path` says where to go afterwards (paths inside this site only). */
+import { Navigate, useNavigate, useSearchParams } from 'react-router';
+import { useMe } from '@/features/auth/api/useMe';
+import { AuthFrame } from '@/features/auth/components/AuthFrame';
+import { SignInForm } from '@/features/auth/components/SignInForm';
+import { safeNext } from '@/features/auth/components/safeNext';
+import { Loading } from '@/components/Spinner';
+
 export function Component() {
-  return <div className="text-ink-soft">SignIn: not built yet.</div>;
+  const [params] = useSearchParams();
+  const next = safeNext(params.get('next'));
+  const navigate = useNavigate();
+  const me = useMe();
+  if (me.isPending) return <Loading />;
+  if (me.data) return <Navigate to={next} replace />;
+  return (
+    <AuthFrame title="Sign in">
+      <SignInForm onSignedIn={() => navigate(next, { replace: true })} />
+      <p className="mt-4 text-xs text-ink-soft">No account yet? Your facility manager sends an invitation by e-mail.</p>
+    </AuthFrame>
+  );
 }

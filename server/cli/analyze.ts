@@ -1,0 +1,308 @@
+/**
+ * `npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j)
+ *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]`
+ *
+ * A contract other tools rely on (issue 3): option names, JSON shape and exit codes stay as they are.
+ *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels).
+ *  - `--mask`: label image (0 = background, each positive value one region, `label` = the value).
+ *  - `--rois`: JSON array of { "name": string, "points": [[x, y], ...] } polygons in pixel coordinates
+ *    (x right, y down, origin at the top-left corner of pixel (0, 0)); pixel-centre even-odd rule.
+ *  - Thresholds are computed once over the pixels of all regions (the whole image when there are none);
+ *    the default `none` means T1 = T2 = 0.
+ *  - z-stacks: every slice of a region takes part (a label image or ROI applies to each slice).
+ *  - Exit 0 on success; 2 with one `error:` line on stderr for bad input; 1 for an internal failure
+ *    (also one line). Never a stack trace.
+ */
+import { readFile, stat } from 'node:fs/promises';
+import { parseArgs } from 'node:util';
+import { z } from 'zod';
+import {
+  collectPairs,
+  computeThresholds,
+  ENGINE_VERSION,
+  labelRegions,
+  maskToIndices,
+  measurePairs,
+  prepare,
+  rasterize,
+  REGION_RESULT_KEYS,
+  type ChannelArray,
+  type RegionResult,
+  type ThresholdInfo,
+  type ThresholdOptions,
+} from '../../shared/analysis/index';
+import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
+import { readLabelImage } from '../images/mask';
+
+/** Bad input: exit code 2 and the message on one line. */
+export class UsageError extends Error {}
+
+const USAGE =
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]';
+
+const RoiFile = z.array(
+  z.object({
+    name: z.string().min(1),
+    points: z.array(z.tuple([z.number().finite(), z.number().finite()])).min(3),
+  }),
+);
+
+export interface CliOptions {
+  ch1?: string;
+  ch2?: string;
+  image?: string;
+  channels?: [number, number];
+  mask?: string;
+  rois?: string;
+  threshold: ThresholdOptions;
+  json: boolean;
+}
+
+function parseNumber(v: string, what: string): number {
+  const n = Number(v);
+  if (v.trim() === '' || !Number.isFinite(n)) throw new UsageError(`${what} must be a number, received ${JSON.stringify(v)}`);
+  return n;
+}
+
+export function parseCli(argv: string[]): CliOptions {
+  let values: Record<string, string | boolean | undefined>;
+  try {
+    ({ values } = parseArgs({
+      args: argv,
+      strict: true,
+      allowPositionals: false,
+      options: {
+        ch1: { type: 'string' },
+        ch2: { type: 'string' },
+        image: { type: 'string' },
+        channels: { type: 'string' },
+        mask: { type: 'string' },
+        rois: { type: 'string' },
+        threshold: { type: 'string' },
+        t1: { type: 'string' },
+        t2: { type: 'string' },
+        json: { type: 'boolean' },
+      },
+    }));
+  } catch (e) {
+    throw new UsageError(`${(e as Error).message.split('\n')[0]}; ${USAGE}`);
+  }
+  const s = (k: string) => values[k] as string | undefined;
+  const pairForm = s('ch1') !== undefined || s('ch2') !== undefined;
+  const imageForm = s('image') !== undefined || s('channels') !== undefined;
+  if (pairForm && imageForm) throw new UsageError('give either --ch1 and --ch2, or --image and --channels, not both');
+  if (!pairForm && !imageForm) throw new UsageError(`no image given; ${USAGE}`);
+  const out: CliOptions = { threshold: { method: 'none' }, json: values.json === true };
+  if (pairForm) {
+    if (!s('ch1') || !s('ch2')) throw new UsageError(`--ch1 and --ch2 go together; received only ${s('ch1') ? '--ch1' : '--ch2'}`);
+    out.ch1 = s('ch1');
+    out.ch2 = s('ch2');
+  } else {
+    if (!s('image')) throw new UsageError('--channels needs --image');
+    const c = s('channels');
+    if (c === undefined) throw new UsageError('--image needs --channels i,j (1-based channel numbers)');
+    const m = /^\s*(\d+)\s*,\s*(\d+)\s*$/.exec(c);
+    if (!m || Number(m[1]) < 1 || Number(m[2]) < 1) throw new UsageError(`--channels must be two 1-based channel numbers like 1,2, received ${JSON.stringify(c)}`);
+    out.image = s('image');
+    out.channels = [Number(m[1]), Number(m[2])];
+  }
+  if (s('mask') !== undefined && s('rois') !== undefined) throw new UsageError('give either --mask or --rois, not both');
+  out.mask = s('mask');
+  out.rois = s('rois');
+  const method = s('threshold') ?? 'none';
+  if (!['none', 'manual', 'otsu', 'costes'].includes(method))
+    throw new UsageError(`--threshold must be none, manual, otsu or costes, received ${JSON.stringify(method)}`);
+  const t1 = s('t1'), t2 = s('t2');
+  if (method === 'manual') {
+    if (t1 === undefined || t2 === undefined) throw new UsageError('--threshold manual needs both --t1 and --t2');
+    out.threshold = { method: 'manual', t1: parseNumber(t1, '--t1'), t2: parseNumber(t2, '--t2') };
+  } else {
+    if (t1 !== undefined || t2 !== undefined) throw new UsageError(`--t1 and --t2 apply to --threshold manual only, received --threshold ${method}`);
+    out.threshold = { method } as ThresholdOptions;
+  }
+  return out;
+}
+
+async function mustExist(path: string, opt: string): Promise<void> {
+  try {
+    const st = await stat(path);
+    if (!st.isFile()) throw new UsageError(`${opt} ${path}: not a file`);
+  } catch (e) {
+    if (e instanceof UsageError) throw e;
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(`${opt} ${path}: ${code === 'ENOENT' ? 'no such file' : `cannot be read (${code ?? 'error'})`}`);
+  }
+}
+
+/** Runs `what`, prefixing image errors with the option and path they concern. */
+async function about<T>(opt: string, path: string, what: () => Promise<T>): Promise<T> {
+  try {
+    return await what();
+  } catch (e) {
+    if (e instanceof ImageInputError) throw new UsageError(`${opt} ${path}: ${e.message}`);
+    throw e;
+  }
+}
+
+function concat(slices: PixelArray[]): ChannelArray {
+  if (slices.length === 1) return slices[0];
+  const total = slices.reduce((s, a) => s + a.length, 0);
+  const Ctor = slices[0].constructor as new (n: number) => PixelArray;
+  const out = new Ctor(total);
+  let o = 0;
+  for (const a of slices) {
+    out.set(a as never, o);
+    o += a.length;
+  }
+  return out;
+}
+
+export interface AnalyzeOutput {
+  engineVersion: string;
+  width: number;
+  height: number;
+  slices: number;
+  thresholds: ThresholdInfo;
+  regions: (Omit<RegionResult, 'thresholds'> & { label: number | string })[];
+}
+
+export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
+  let width: number, height: number, s1: PixelArray[], s2: PixelArray[];
+  if (o.image) {
+    const path = o.image;
+    await mustExist(path, '--image');
+    const d = await about('--image', path, () => decodeChannels(path, o.channels!));
+    ({ width, height } = d);
+    s1 = d.ch1;
+    s2 = d.ch2;
+  } else {
+    const p1 = o.ch1!, p2 = o.ch2!;
+    await mustExist(p1, '--ch1');
+    await mustExist(p2, '--ch2');
+    const a = await about('--ch1', p1, () => decodeChannel(p1, 1));
+    const b = await about('--ch2', p2, () => decodeChannel(p2, 1));
+    if (a.width !== b.width || a.height !== b.height)
+      throw new UsageError(`--ch2 ${p2} is ${b.width}×${b.height} but --ch1 ${p1} is ${a.width}×${a.height}; both channels must have the same size`);
+    if (a.slices.length !== b.slices.length)
+      throw new UsageError(`--ch2 ${p2} has ${b.slices.length} z slices but --ch1 ${p1} has ${a.slices.length}`);
+    ({ width, height } = a);
+    s1 = a.slices;
+    s2 = b.slices;
+  }
+  const ch1 = concat(s1), ch2 = concat(s2);
+  const plane = width * height;
+  const nz = s1.length;
+  // regions as plane indices, then repeated over the z slices
+  let planeRegions: { label: number | string; indices: Uint32Array }[] | null = null;
+  if (o.mask) {
+    const path = o.mask;
+    await mustExist(path, '--mask');
+    const lab = await about('--mask', path, () => readLabelImage(path, { width, height }));
+    planeRegions = labelRegions(lab.labels);
+  } else if (o.rois) {
+    const path = o.rois;
+    await mustExist(path, '--rois');
+    let parsed: unknown;
+    try {
+      parsed = JSON.parse(await readFile(path, 'utf8'));
+    } catch (e) {
+      throw new UsageError(`--rois ${path}: not valid JSON (${(e as Error).message.split('\n')[0]})`);
+    }
+    const r = RoiFile.safeParse(parsed);
+    if (!r.success) {
+      const is = r.error.issues[0];
+      throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...] } with at least 3 points; at ${is.path.length ? is.path.join('.') : 'the top level'}: ${is.message}`);
+    }
+    planeRegions = r.data.map((roi) => ({ label: roi.name, indices: maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height)) }));
+  }
+  const regions =
+    planeRegions === null
+      ? [{ label: 0 as number | string, indices: null as Uint32Array | null }]
+      : planeRegions.map((r) => {
+          if (nz === 1) return r;
+          const out = new Uint32Array(r.indices.length * nz);
+          for (let z = 0; z < nz; z++) for (let k = 0; k < r.indices.length; k++) out[z * r.indices.length + k] = r.indices[k] + z * plane;
+          return { label: r.label, indices: out };
+        });
+  // thresholds once over the union of all regions
+  let union: Uint32Array | null = null;
+  if (planeRegions !== null) {
+    const m = new Uint8Array(ch1.length);
+    for (const r of regions) for (const i of r.indices!) m[i] = 1;
+    union = maskToIndices(m);
+  }
+  const thresholds = computeThresholds(prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })), o.threshold);
+  const results = regions.map((r) => {
+    const pairs = collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
+    const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
+    return { label: r.label, ...rest };
+  });
+  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, regions: results };
+}
+
+const fmt = (v: number | null, digits = 4) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : v.toFixed(digits));
+
+export function formatTable(out: AnalyzeOutput): string {
+  const t = out.thresholds;
+  const lines = [
+    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices` : ''} · thresholds ${t.method}: ch1 > ${fmt(t.ch1, 3)}, ch2 > ${fmt(t.ch2, 3)}`,
+  ];
+  const cols: [string, (r: AnalyzeOutput['regions'][number]) => string][] = [
+    ['region', (r) => String(r.label)],
+    ['pixels', (r) => String(r.pixels)],
+    ['r', (r) => fmt(r.pearson)],
+    ['rho', (r) => fmt(r.spearman)],
+    ['tau-b', (r) => fmt(r.kendallTauB)],
+    ['dCor', (r) => fmt(r.distanceCorrelation)],
+    ['dCor p', (r) => (r.dcorPValue === null ? 'n/a' : r.dcorPValue.toExponential(2))],
+    ['M1', (r) => fmt(r.mandersM1)],
+    ['M2', (r) => fmt(r.mandersM2)],
+    ['overlap', (r) => fmt(r.overlap)],
+    ['k1', (r) => fmt(r.k1)],
+    ['k2', (r) => fmt(r.k2)],
+    ['ICQ', (r) => fmt(r.icq)],
+  ];
+  const rows = [cols.map((c) => c[0]), ...out.regions.map((r) => cols.map((c) => c[1](r)))];
+  const widths = cols.map((_, k) => Math.max(...rows.map((row) => row[k].length)));
+  for (const row of rows) lines.push(row.map((v, k) => (k === 0 ? v.padEnd(widths[k]) : v.padStart(widths[k]))).join('  '));
+  if (out.regions.length === 0) lines.push('(the label image has no regions)');
+  return lines.join('\n');
+}
+
+function oneLine(s: string): string {
+  return s.replace(/\s*\n\s*/g, ' ').trim();
+}
+
+export async function main(argv: string[]): Promise<number> {
+  try {
+    const o = parseCli(argv);
+    const out = await analyze(o);
+    process.stdout.write(o.json ? JSON.stringify(out) + '\n' : formatTable(out) + '\n');
+    return 0;
+  } catch (e) {
+    if (e instanceof UsageError || e instanceof ImageInputError || e instanceof RangeError) {
+      process.stderr.write(`error: ${oneLine(e.message)}\n`);
+      return 2;
+    }
+    process.stderr.write(`error: internal failure: ${oneLine(String((e as Error)?.message ?? e))}\n`);
+    return 1;
+  }
+}
+
+// run when executed directly (not when imported by tests)
+const isMain = (() => {
+  try {
+    return import.meta.url === new URL(`file://${process.argv[1]}`).href || /analyze\.ts$/.test(process.argv[1] ?? '');
+  } catch {
+    return false;
+  }
+})();
+if (isMain) {
+  process.on('uncaughtException', (e) => {
+    process.stderr.write(`error: internal failure: ${oneLine(String((e as Error)?.message ?? e))}\n`);
+    process.exit(1);
+  });
+  main(process.argv.slice(2)).then((code) => {
+    process.exitCode = code;
+  });
+}

@@ -1,0 +1,469 @@
+/**
+ * Freezing a report: everything the report page shows is computed now and stored in `reports.snapshot`, so
+ * later runs, exclusions, recipe versions or deleted fields never change a report (a newer one can be made).
+ *
+ * Which measurement a cell contributes: its latest measurement (highest run id) among the study's runs, or
+ * among runs of `recipeId` when one is given. Excluded cells are listed (with reasons) but left out of every
+ * summary and test. Coverslips are the unit of replication (Lord et al. 2020, J. Cell Biol. 219:e202001064,
+ * doi:10.1083/jcb.202001064): coverslip means first (Fisher's z for correlation coefficients), then tests on
+ * coverslip means.
+ */
+import { and, eq, inArray, isNull } from 'drizzle-orm';
+import type { AppContext } from '../context.js';
+import { cells, conditions, coverslips, fields, measurements, recipes, runs, studies, users, type CellGeometry } from '../db/schema.js';
+import { badRequest, notFound } from '../http/errors.js';
+import {
+  CORRELATION_COEFFICIENTS,
+  COEFFICIENT_LABELS,
+  type CellScatter,
+  type Composite,
+  type ConditionSummary,
+  type CoverslipSummary,
+  type ReportCoefficient,
+  type ReportSnapshot,
+  type SnapshotCell,
+  type StatisticRow,
+} from '../../shared/schemas/reports.js';
+import { CAUTIONS, methodsParagraph } from '../../shared/reports/methods.js';
+import { fisherZ, fisherZInverse, fisherZMean, kruskalWallis, mean, median, sd, welchT } from '../../shared/stats/index.js';
+import { rasterize, type Shape } from '../../shared/analysis/rasterize.js';
+import { optionalModule } from './optional.js';
+import { adaptComparison } from './compare-adapter.js';
+import { renderComposite } from './composite.js';
+
+export interface SnapshotOptions {
+  coefficients: ReportCoefficient[];
+  runId?: number;
+  recipeId?: number;
+  conditionIds?: number[];
+  scatterCellId?: number;
+  /** the clock (tests) */
+  now?: Date;
+}
+
+const finite = (v: number | null | undefined): v is number => typeof v === 'number' && Number.isFinite(v);
+const nn = (v: number | null | undefined) => (finite(v) ? v : null);
+
+/** mean of cell values: through Fisher's z for correlation coefficients */
+function centre(coef: ReportCoefficient, vals: number[]): number | null {
+  if (!vals.length) return null;
+  if (CORRELATION_COEFFICIENTS.has(coef)) return nn(fisherZMean(vals.map((v) => Math.max(-1, Math.min(1, v)))));
+  return nn(mean(vals));
+}
+
+export async function buildSnapshot(ctx: AppContext, studyId: number, opts: SnapshotOptions): Promise<ReportSnapshot> {
+  const db = ctx.db;
+  const study = db.select().from(studies).where(eq(studies.id, studyId)).get();
+  if (!study) throw notFound(`no study with id ${studyId}`);
+  const coefs = [...new Set(opts.coefficients)];
+
+  // ---- structure
+  let conds = db.select().from(conditions).where(eq(conditions.studyId, studyId)).all().sort((a, b) => a.position - b.position || a.id - b.id);
+  if (opts.conditionIds) {
+    const unknown = opts.conditionIds.filter((id) => !conds.some((c) => c.id === id));
+    if (unknown.length) throw badRequest(`conditionIds: ${unknown.join(', ')} ${unknown.length === 1 ? 'is not a condition' : 'are not conditions'} of this study`);
+    conds = conds.filter((c) => opts.conditionIds!.includes(c.id));
+  }
+  const condIds = conds.map((c) => c.id);
+  const slips = condIds.length ? db.select().from(coverslips).where(inArray(coverslips.conditionId, condIds)).all().sort((a, b) => a.position - b.position || a.replicate - b.replicate || a.id - b.id) : [];
+  const slipById = new Map(slips.map((s) => [s.id, s]));
+  const condById = new Map(conds.map((c) => [c.id, c]));
+  const fieldRows = slips.length
+    ? db.select().from(fields).where(and(inArray(fields.coverslipId, slips.map((s) => s.id)), eq(fields.status, 'ready'))).all().sort((a, b) => a.id - b.id)
+    : [];
+  const fieldById = new Map(fieldRows.map((f) => [f.id, f]));
+  const cellRows = fieldRows.length
+    ? db.select().from(cells).where(and(inArray(cells.fieldId, fieldRows.map((f) => f.id)), eq(cells.role, 'cell'), isNull(cells.deletedAt))).all().sort((a, b) => a.fieldId - b.fieldId || a.id - b.id)
+    : [];
+  if (opts.recipeId !== undefined && !db.select({ id: recipes.id }).from(recipes).where(eq(recipes.id, opts.recipeId)).get())
+    throw badRequest(`recipeId: no recipe version with id ${opts.recipeId}`);
+
+  // ---- which measurements: one run; or each cell's latest with one recipe version (default: the recipe of the
+  // study's latest run that has measurements, the rule of the Compare screen, so both show the same numbers)
+  const studyRuns = db.select().from(runs).where(eq(runs.studyId, studyId)).all();
+  const runById = new Map(studyRuns.map((r) => [r.id, r]));
+  if (opts.runId !== undefined && !runById.has(opts.runId)) throw badRequest(`runId: no run ${opts.runId} in this study`);
+  let recipeId = opts.recipeId;
+  if (opts.runId === undefined && recipeId === undefined) {
+    const withRows = new Set(
+      studyRuns.length ? db.selectDistinct({ runId: measurements.runId }).from(measurements).where(inArray(measurements.runId, studyRuns.map((r) => r.id))).all().map((x) => x.runId) : [],
+    );
+    recipeId = studyRuns.filter((r) => withRows.has(r.id)).sort((a, b) => b.id - a.id)[0]?.recipeId;
+  }
+  const eligibleRunIds = studyRuns.filter((r) => (opts.runId !== undefined ? r.id === opts.runId : r.recipeId === recipeId)).map((r) => r.id);
+  const latest = new Map<number, typeof measurements.$inferSelect>();
+  if (eligibleRunIds.length && cellRows.length) {
+    const cellIdSet = new Set(cellRows.map((c) => c.id));
+    const rows = db.select().from(measurements).where(inArray(measurements.runId, eligibleRunIds)).all();
+    for (const m of rows) {
+      if (!cellIdSet.has(m.cellId)) continue;
+      const prev = latest.get(m.cellId);
+      if (!prev || m.runId > prev.runId) latest.set(m.cellId, m);
+    }
+  }
+
+  const snapCells: SnapshotCell[] = [];
+  for (const c of cellRows) {
+    const f = fieldById.get(c.fieldId)!;
+    const slip = slipById.get(f.coverslipId)!;
+    const m = latest.get(c.id);
+    const values: Record<string, number | null> = {};
+    for (const k of coefs) values[k] = m ? nn(m[k]) : null;
+    snapCells.push({
+      cellId: c.id,
+      name: c.name,
+      fieldId: f.id,
+      coverslipId: slip.id,
+      conditionId: slip.conditionId,
+      excluded: c.excluded,
+      exclusionReason: c.excluded ? (c.exclusionReason ?? '') : null,
+      runId: m?.runId ?? null,
+      pixels: m?.pixels ?? null,
+      values,
+      threshold1: nn(m?.threshold1),
+      threshold2: nn(m?.threshold2),
+      thresholdMethod: m?.thresholdMethod ?? null,
+      background1: nn(m?.background1),
+      background2: nn(m?.background2),
+      saturatedFraction1: nn(m?.saturatedFraction1),
+      saturatedFraction2: nn(m?.saturatedFraction2),
+      randomizationP: nn(m?.randomizationP),
+    });
+  }
+  const used = snapCells.filter((c) => !c.excluded && c.runId !== null);
+
+  // ---- recipes and runs actually used
+  const usedRunIds = [...new Set(used.map((c) => c.runId!))].sort((a, b) => a - b);
+  const provisionalByRun = new Map<number, boolean>();
+  const zByRun = new Map<number, string | null>();
+  const engineByRun = new Map<number, string | null>();
+  for (const m of latest.values()) {
+    if (m.provisional) provisionalByRun.set(m.runId, true);
+    if (!zByRun.has(m.runId)) {
+      const p = m.provenance ?? {};
+      const z = (p as Record<string, unknown>).z ?? (p as Record<string, unknown>).zHandling ?? null;
+      zByRun.set(m.runId, z === null || z === undefined ? null : typeof z === 'object' ? JSON.stringify(z) : String(z));
+      const e = (p as Record<string, unknown>).engineVersion;
+      engineByRun.set(m.runId, typeof e === 'string' ? e : null);
+    }
+  }
+  const snapRuns = usedRunIds.map((id) => {
+    const r = runById.get(id)!;
+    return {
+      id,
+      recipeId: r.recipeId,
+      status: r.status,
+      provisional: r.provisional || !!provisionalByRun.get(id),
+      seed: r.seed,
+      engineVersion: r.engineVersion ?? engineByRun.get(id) ?? null,
+      finishedAt: r.finishedAt,
+      zHandling: zByRun.get(id) ?? null,
+    };
+  });
+  const recipeIds = [...new Set(snapRuns.map((r) => r.recipeId))];
+  const recipeRows = recipeIds.length ? db.select().from(recipes).where(inArray(recipes.id, recipeIds)).all().sort((a, b) => a.id - b.id) : [];
+  const snapRecipes = recipeRows.map((r) => {
+    const rr = snapRuns.filter((x) => x.recipeId === r.id);
+    return {
+      id: r.id,
+      familyId: r.familyId,
+      name: r.name,
+      version: r.version,
+      status: r.status,
+      settings: structuredClone(r.settings ?? {}),
+      provisional: rr.some((x) => x.provisional),
+      runIds: rr.map((x) => x.id),
+    };
+  });
+
+  // ---- conditions, coverslips
+  const snapConds = conds.map((c) => {
+    const cs = slips.filter((s) => s.conditionId === c.id);
+    const cc = snapCells.filter((x) => x.conditionId === c.id);
+    return {
+      id: c.id,
+      name: c.name,
+      coverslips: cs.map((s) => ({
+        id: s.id,
+        name: s.name,
+        replicate: s.replicate,
+        fields: fieldRows.filter((f) => f.coverslipId === s.id).length,
+        cellsIncluded: cc.filter((x) => x.coverslipId === s.id && !x.excluded && x.runId !== null).length,
+        cellsExcluded: cc.filter((x) => x.coverslipId === s.id && x.excluded).length,
+      })),
+      cellsIncluded: cc.filter((x) => !x.excluded && x.runId !== null).length,
+      cellsExcluded: cc.filter((x) => x.excluded).length,
+      coverslipsUsed: new Set(cc.filter((x) => !x.excluded && x.runId !== null).map((x) => x.coverslipId)).size,
+    };
+  });
+
+  // ---- exclusions with reasons
+  const excluders = new Map<number, string>();
+  const exIds = [...new Set(cellRows.filter((c) => c.excluded && c.excludedBy).map((c) => c.excludedBy!))];
+  if (exIds.length) for (const u of db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, exIds)).all()) excluders.set(u.id, u.name);
+  const exclusions = cellRows
+    .filter((c) => c.excluded)
+    .map((c) => {
+      const f = fieldById.get(c.fieldId)!;
+      const s = slipById.get(f.coverslipId)!;
+      return {
+        cellId: c.id,
+        cellName: c.name,
+        fieldName: f.name,
+        coverslipName: s.name,
+        conditionName: condById.get(s.conditionId)!.name,
+        reason: c.exclusionReason ?? '',
+        excludedBy: c.excludedBy ? (excluders.get(c.excludedBy) ?? null) : null,
+        excludedAt: c.excludedAt,
+      };
+    });
+
+  // ---- summaries
+  const coverslipSummaries: CoverslipSummary[] = [];
+  const conditionSummaries: ConditionSummary[] = [];
+  for (const k of coefs) {
+    for (const c of snapConds) {
+      const slipMeans: number[] = [];
+      const allVals: number[] = [];
+      for (const s of c.coverslips) {
+        const vals = used.filter((x) => x.coverslipId === s.id).map((x) => x.values[k]).filter(finite);
+        const m = centre(k, vals);
+        if (vals.length) coverslipSummaries.push({ coefficient: k, conditionId: c.id, coverslipId: s.id, coverslipName: s.name, n: vals.length, mean: m, median: nn(median(vals)) });
+        if (m !== null) slipMeans.push(m);
+        allVals.push(...vals);
+      }
+      conditionSummaries.push({
+        coefficient: k,
+        conditionId: c.id,
+        conditionName: c.name,
+        cells: allVals.length,
+        coverslips: slipMeans.length,
+        mean: centre(k, slipMeans),
+        sd: slipMeans.length >= 2 ? nn(sd(slipMeans)) : null,
+        median: allVals.length ? nn(median(allVals)) : null,
+        min: allVals.length ? Math.min(...allVals) : null,
+        max: allVals.length ? Math.max(...allVals) : null,
+      });
+    }
+  }
+
+  // ---- comparison module (issue 7) when present; otherwise the report's own coverslip-level test
+  const comparisons: Record<string, unknown> = {};
+  const statistics: StatisticRow[] = [];
+  const compare = await optionalModule('compare');
+  for (const k of coefs) {
+    let row: StatisticRow | null = null;
+    comparisons[k] = null;
+    if (compare && typeof compare.computeComparison === 'function') {
+      try {
+        const result = await (compare.computeComparison as (c: AppContext, s: number, o: Record<string, unknown>) => Promise<unknown>)(ctx, studyId, {
+          coefficient: k,
+          ...(opts.runId !== undefined ? { runId: opts.runId } : recipeId !== undefined ? { recipeId } : {}),
+          ...(opts.conditionIds ? { conditionIds: opts.conditionIds } : {}),
+        });
+        comparisons[k] = JSON.parse(JSON.stringify(result ?? null));
+        row = adaptComparison(k, comparisons[k]);
+      } catch {
+        comparisons[k] = null; // e.g. the coefficient is not offered by the comparison module: fall back below
+      }
+    }
+    statistics.push(row ?? ownTest(k, snapConds, coverslipSummaries));
+  }
+
+  // ---- representative composites (one field per condition: the one with most included cells)
+  const composites: Composite[] = [];
+  for (const c of snapConds) {
+    const counts = new Map<number, number>();
+    for (const x of used) if (x.conditionId === c.id) counts.set(x.fieldId, (counts.get(x.fieldId) ?? 0) + 1);
+    const best = [...counts.entries()].sort((a, b) => b[1] - a[1] || a[0] - b[0])[0];
+    const fieldId = best?.[0] ?? fieldRows.find((f) => slipById.get(f.coverslipId)?.conditionId === c.id)?.id;
+    if (fieldId === undefined) continue;
+    const f = fieldById.get(fieldId)!;
+    const rendered = await renderComposite(ctx, f);
+    composites.push({
+      fieldId: f.id,
+      fieldName: f.name,
+      conditionId: c.id,
+      coverslipName: slipById.get(f.coverslipId)!.name,
+      width: f.width,
+      height: f.height,
+      png: rendered?.png ?? null,
+      ranges: rendered?.ranges ?? null,
+      outlines: cellRows.filter((x) => x.fieldId === f.id).map((x) => ({ cellId: x.id, name: x.name, excluded: x.excluded, geometry: structuredClone(x.geometry) as Record<string, unknown> })),
+    });
+  }
+
+  // ---- the scatter of one chosen cell
+  let scatterCell = opts.scatterCellId !== undefined ? snapCells.find((x) => x.cellId === opts.scatterCellId) : undefined;
+  if (opts.scatterCellId !== undefined && !scatterCell) throw badRequest(`scatterCellId: cell ${opts.scatterCellId} is not a measured cell of this report`);
+  if (!scatterCell && used.length) {
+    // default: a typical cell of the first representative field (value of the first coefficient nearest its condition's median)
+    const k = coefs[0];
+    const inField = used.filter((x) => x.fieldId === composites[0]?.fieldId && x.values[k] !== null);
+    const condVals = used.filter((x) => x.conditionId === inField[0]?.conditionId).map((x) => x.values[k]).filter(finite);
+    const mid = condVals.length ? median(condVals) : 0;
+    scatterCell = inField.sort((a, b) => Math.abs((a.values[k] as number) - mid) - Math.abs((b.values[k] as number) - mid) || a.cellId - b.cellId)[0] ?? used[0];
+  }
+  const scatter = scatterCell ? await cellScatter(ctx, fieldById.get(scatterCell.fieldId)!, cellRows.find((x) => x.id === scatterCell!.cellId)!, scatterCell) : null;
+
+  // ---- saturation
+  const sat1 = fieldRows.map((f) => f.facts?.ch1?.saturatedFraction).filter(finite);
+  const sat2 = fieldRows.map((f) => f.facts?.ch2?.saturatedFraction).filter(finite);
+  const saturation = {
+    maxFraction1: sat1.length ? Math.max(...sat1) : null,
+    maxFraction2: sat2.length ? Math.max(...sat2) : null,
+    fieldsWithSaturation: fieldRows.filter((f) => (f.facts?.ch1?.saturatedFraction ?? 0) > 0 || (f.facts?.ch2?.saturatedFraction ?? 0) > 0).length,
+  };
+
+  const engineVersions = [...new Set(snapRuns.map((r) => r.engineVersion).filter((e): e is string => !!e))];
+  const snap: ReportSnapshot = {
+    schemaVersion: 1,
+    createdAt: (opts.now ?? new Date()).toISOString(),
+    study: { id: study.id, name: study.name, description: study.description },
+    coefficients: coefs,
+    engineVersions,
+    anyProvisional: snapRuns.some((r) => r.provisional),
+    recipes: snapRecipes,
+    runs: snapRuns,
+    conditions: snapConds,
+    fields: fieldRows.map((f) => ({
+      id: f.id,
+      name: f.name,
+      conditionId: slipById.get(f.coverslipId)!.conditionId,
+      coverslipId: f.coverslipId,
+      width: f.width,
+      height: f.height,
+      sizeZ: f.sizeZ,
+      bitDepth: f.bitDepth,
+      pixelSizeUm: nn(f.pixelSizeUm),
+      saturatedFraction1: nn(f.facts?.ch1?.saturatedFraction),
+      saturatedFraction2: nn(f.facts?.ch2?.saturatedFraction),
+      channelNames: [f.channelNames?.[0] ?? null, f.channelNames?.[1] ?? null],
+    })),
+    cells: snapCells,
+    exclusions,
+    coverslipSummaries,
+    conditionSummaries,
+    statistics,
+    comparisons,
+    composites,
+    scatter,
+    saturation,
+    methods: '',
+    cautions: [...CAUTIONS],
+  };
+  snap.methods = methodsParagraph(snap);
+  return snap;
+}
+
+const fmt = (v: number | null, d = 3) => (v === null ? '—' : Number(v.toFixed(d)).toString());
+const fmtP = (p: number | null) => (p === null ? 'not defined' : p < 0.001 ? '< 0.001' : `= ${p.toFixed(3)}`);
+
+/**
+ * The report's own test on coverslip means (used when the comparison module is absent or has no result):
+ * two conditions → Welch's t (Welch 1947); more → Kruskal–Wallis (Kruskal & Wallis 1952). Correlation
+ * coefficients are tested on Fisher's z of the coverslip means.
+ */
+export function ownTest(k: ReportCoefficient, conds: { id: number; name: string }[], slips: CoverslipSummary[]): StatisticRow {
+  const label = COEFFICIENT_LABELS[k];
+  const groups = conds.map((c) => ({
+    name: c.name,
+    values: slips.filter((s) => s.coefficient === k && s.conditionId === c.id && s.mean !== null).map((s) => s.mean as number),
+  }));
+  const tz = (v: number) => (CORRELATION_COEFFICIENTS.has(k) ? fisherZ(Math.max(-1, Math.min(1, v))) : v);
+  const base = { coefficient: k, statistic: null, df: null, p: null, effect: null, effectLabel: null, ciLow: null, ciHigh: null, alsoTests: [], source: 'report' as const };
+  const usable = groups.filter((g) => g.values.length > 0);
+  if (usable.length < 2) return { ...base, test: 'none', sentence: `${label}: no comparison (fewer than two conditions with measured coverslips).` };
+  if (usable.some((g) => g.values.length < 2))
+    return { ...base, test: 'none', sentence: `${label}: no test (every condition needs at least two coverslips; coverslips are the replicates).` };
+  const back = (v: number) => (CORRELATION_COEFFICIENTS.has(k) ? fisherZInverse(v) : v);
+  if (usable.length === 2) {
+    const [a, b] = usable;
+    const za = a.values.map(tz);
+    const zb = b.values.map(tz);
+    const t = welchT(zb, za);
+    const ma = back(mean(za));
+    const mb = back(mean(zb));
+    const diff = mb - ma;
+    const sig = t.p !== null && t.p < 0.05;
+    return {
+      ...base,
+      test: "Welch's t-test",
+      statistic: nn(t.statistic),
+      df: nn(t.df[0]),
+      p: nn(t.p),
+      effect: nn(diff),
+      effectLabel: `difference of coverslip means (${b.name} − ${a.name})`,
+      sentence:
+        `${label} averaged ${fmt(mb)} in ${b.name} (${b.values.length} coverslips) and ${fmt(ma)} in ${a.name} (${a.values.length} coverslips); ` +
+        (sig ? `the difference is statistically significant (Welch's t, p ${fmtP(t.p)}).` : `the difference is not statistically significant (Welch's t, p ${fmtP(t.p)}).`),
+    };
+  }
+  const kw = kruskalWallis(usable.map((g) => g.values.map(tz)));
+  const sig = kw.p !== null && kw.p < 0.05;
+  return {
+    ...base,
+    test: 'Kruskal–Wallis test',
+    statistic: nn(kw.statistic),
+    df: nn(kw.df[0]),
+    p: nn(kw.p),
+    sentence: `${label} ${sig ? 'differs' : 'does not differ significantly'} between the ${usable.length} conditions (Kruskal–Wallis on coverslip means, p ${fmtP(kw.p)}).`,
+  };
+}
+
+/** CellGeometry (schema.ts) → rasterizer shape; label-image cells carry their own run-length mask. */
+function geometryShape(g: CellGeometry): Shape | null {
+  switch (g.kind) {
+    case 'polygon':
+    case 'freehand':
+      return { kind: 'polygon', points: g.points };
+    case 'rect':
+      return { kind: 'rectangle', x: g.x, y: g.y, width: g.width, height: g.height };
+    case 'ellipse':
+      return { kind: 'ellipse', cx: g.cx, cy: g.cy, rx: g.rx, ry: g.ry };
+    default:
+      return null;
+  }
+}
+
+/** Run-length mask of a label cell: [start, length, start, length, …] over linear indices (common practice). */
+function labelMask(g: CellGeometry, n: number): Uint8Array | null {
+  if (g.kind !== 'label' || !Array.isArray(g.rle)) return null;
+  const m = new Uint8Array(n);
+  for (let i = 0; i + 1 < g.rle.length; i += 2) for (let j = g.rle[i]; j < Math.min(n, g.rle[i] + g.rle[i + 1]); j++) m[j] = 1;
+  return m;
+}
+
+const SCATTER_BINS = 64;
+
+async function cellScatter(ctx: AppContext, f: typeof fields.$inferSelect, cell: typeof cells.$inferSelect, sc: SnapshotCell): Promise<CellScatter | null> {
+  const intake = await optionalModule('intake');
+  if (!intake || typeof intake.loadFieldPixels !== 'function') return null;
+  try {
+    const px = await (intake.loadFieldPixels as (c: AppContext, id: number, o: object) => Promise<{ width: number; height: number; ch1: ArrayLike<number>; ch2: ArrayLike<number> }>)(ctx, f.id, {});
+    const shape = geometryShape(cell.geometry);
+    const mask = shape ? rasterize(shape, px.width, px.height) : labelMask(cell.geometry, px.width * px.height);
+    if (!mask) return null;
+    let max1 = 0;
+    let max2 = 0;
+    let n = 0;
+    for (let i = 0; i < mask.length; i++)
+      if (mask[i]) {
+        n++;
+        if (px.ch1[i] > max1) max1 = px.ch1[i];
+        if (px.ch2[i] > max2) max2 = px.ch2[i];
+      }
+    const counts = new Array<number>(SCATTER_BINS * SCATTER_BINS).fill(0);
+    const b1 = max1 > 0 ? SCATTER_BINS / (max1 * (1 + 1e-9)) : 0;
+    const b2 = max2 > 0 ? SCATTER_BINS / (max2 * (1 + 1e-9)) : 0;
+    for (let i = 0; i < mask.length; i++)
+      if (mask[i]) {
+        const c = Math.min(SCATTER_BINS - 1, Math.floor(px.ch1[i] * b1));
+        const r = Math.min(SCATTER_BINS - 1, Math.floor(px.ch2[i] * b2));
+        counts[r * SCATTER_BINS + c]++;
+      }
+    return { cellId: cell.id, cellName: cell.name, fieldName: f.name, bins: SCATTER_BINS, max1, max2, counts, threshold1: sc.threshold1, threshold2: sc.threshold2, pixels: n };
+  } catch {
+    return null; // pixels unreadable (file missing from the store): the report shows no scatter
+  }
+}

@@ -1,0 +1,107 @@
+/**
+ * The run queue across machines: BullMQ on Redis (QUEUE_URL=redis://…). The web server puts one job per field
+ * on `syntopy-fields` (everything a stateless worker needs: file store keys, outlines, recipe settings);
+ * `npm run worker` processes (server/runs/worker-main.ts) compute and put the measurements on
+ * `syntopy-results`; the web server alone consumes that queue and writes SQLite, one transaction per field.
+ * Durable: the database holds run state; results wait in Redis while the server is down; job ids
+ * (`r<run>-f<field>`) make re-adding after a restart harmless, and a result for a finished field is ignored.
+ */
+import { Queue, QueueEvents, Worker, type ConnectionOptions } from 'bullmq';
+import { inArray } from 'drizzle-orm';
+import type { AppContext } from '../context.js';
+import { runs } from '../db/schema.js';
+import type { RunQueue } from './queue.js';
+import type { FieldJob, FieldJobResult } from './job.js';
+import { buildJob, fieldName, markFieldStarted, queuedFieldsOf, recordFieldResult, refreshRun, unfinishedWork } from './records.js';
+
+export const FIELDS_QUEUE = 'syntopy-fields';
+export const RESULTS_QUEUE = 'syntopy-results';
+export const jobIdOf = (runId: number, fieldId: number) => `r${runId}-f${fieldId}`;
+const parseJobId = (id: string) => {
+  const m = /^r(\d+)-f(\d+)$/.exec(id);
+  return m ? { runId: Number(m[1]), fieldId: Number(m[2]) } : null;
+};
+
+export const connectionOf = (url: string): ConnectionOptions => ({ url, maxRetriesPerRequest: null });
+
+export class BullRunQueue implements RunQueue {
+  readonly kind = 'bullmq' as const;
+  private fields!: Queue<FieldJob>;
+  private results!: Worker<FieldJobResult>;
+  private events!: QueueEvents;
+
+  private constructor(private ctx: AppContext) {}
+
+  static async create(ctx: AppContext) {
+    const q = new BullRunQueue(ctx);
+    const connection = connectionOf(ctx.env.QUEUE_URL!);
+    q.fields = new Queue<FieldJob>(FIELDS_QUEUE, { connection });
+    q.results = new Worker<FieldJobResult>(
+      RESULTS_QUEUE,
+      async (job) => {
+        recordFieldResult(ctx.db, job.data);
+      },
+      { connection, concurrency: 1, removeOnComplete: { count: 0 }, removeOnFail: { count: 1000 } },
+    );
+    q.results.on('error', (e) => console.warn(`[runs] results queue: ${e.message}`));
+    q.events = new QueueEvents(FIELDS_QUEUE, { connection });
+    q.events.on('active', ({ jobId }) => {
+      const ids = parseJobId(jobId);
+      if (ids) {
+        try {
+          markFieldStarted(ctx.db, ids.runId, ids.fieldId, fieldName(ctx.db, ids.fieldId));
+        } catch {
+          /* progress is best-effort */
+        }
+      }
+    });
+    q.events.on('error', (e) => console.warn(`[runs] queue events: ${e.message}`));
+    await Promise.all([q.fields.waitUntilReady(), q.results.waitUntilReady(), q.events.waitUntilReady()]);
+    return q;
+  }
+
+  private async add(work: { runId: number; fieldId: number }[]) {
+    const jobs: { name: string; data: FieldJob; opts: { jobId: string; removeOnComplete: boolean | number; removeOnFail: boolean | number; attempts: number } }[] = [];
+    for (const w of work) {
+      let data: FieldJob;
+      try {
+        data = buildJob(this.ctx.db, w.runId, w.fieldId);
+      } catch (e) {
+        recordFieldResult(this.ctx.db, { runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
+        continue;
+      }
+      jobs.push({ name: 'field', data, opts: { jobId: jobIdOf(w.runId, w.fieldId), removeOnComplete: 1000, removeOnFail: 1000, attempts: 2 } });
+    }
+    for (let i = 0; i < jobs.length; i += 100) await this.fields.addBulk(jobs.slice(i, i + 100));
+  }
+
+  async enqueue(runId: number) {
+    refreshRun(this.ctx.db, runId);
+    await this.add(queuedFieldsOf(this.ctx.db, runId));
+  }
+
+  async resume() {
+    // Fields left unfinished: jobs BullMQ still holds as waiting/active stay (re-adding the same id is a
+    // no-op); finished (completed or failed) jobs are removed and added again, because their result may
+    // have been lost with the previous process. A duplicate result is ignored by recordFieldResult.
+    const work = unfinishedWork(this.ctx.db);
+    for (const w of work) {
+      const job = await this.fields.getJob(jobIdOf(w.runId, w.fieldId));
+      if (job && ((await job.isFailed()) || (await job.isCompleted()))) await job.remove().catch(() => undefined);
+    }
+    await this.add(work);
+  }
+
+  /** Resolves when no run is queued or running (tests). */
+  async idle() {
+    for (;;) {
+      const active = this.ctx.db.select({ id: runs.id }).from(runs).where(inArray(runs.status, ['queued', 'running'])).all();
+      if (!active.length) return;
+      await new Promise((r) => setTimeout(r, 50));
+    }
+  }
+
+  async close() {
+    await Promise.allSettled([this.results.close(), this.events.close(), this.fields.close()]);
+  }
+}

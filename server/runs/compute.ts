@@ -1,0 +1,265 @@
+/**
+ * Computing one field of a run: read both channels from the file store, apply the recipe's z handling,
+ * background and saturation rules, and measure every cell with the analysis engine (shared/analysis).
+ * Used alike by the in-process pool threads (pool-worker.ts) and the BullMQ worker (worker-main.ts).
+ *
+ * Decisions (2026-12-01), stated in each setting's sentence (shared/schemas/recipes.ts describeSetting):
+ * - z 'range' and 'mip' are maximum-intensity projections over the chosen slices.
+ * - saturation: a value equal to the largest representable value of the bit depth (integer data) is
+ *   saturated; float data has no saturation level (fractions null). 'exclude' drops pixels saturated in
+ *   either channel before thresholds and coefficients.
+ * - background: max(0, v − b) per channel; b = constant, or the mean over the union of the field's
+ *   'background' regions (raw values, saturated pixels included). Integer data with an integer b stays
+ *   integer (the engine's exact integer paths apply); otherwise the channel becomes Float64.
+ * - thresholds are computed per cell over its measured pixels (Otsu / Costes) or taken from the recipe.
+ * - a cell with fewer measured pixels than minCellPixels gets a row with every coefficient null.
+ */
+import { measureRegion, ENGINE_VERSION, type ChannelArray, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { cellIndices } from '../../shared/schemas/cells.js';
+import type { RecipeSettings } from '../../shared/schemas/recipes.js';
+import type { FileStore } from '../images/store.js';
+import { decodeChannel } from '../images/decode.js';
+import type { FieldJob, FieldJobResult, MeasurementValues } from './job.js';
+
+export { ENGINE_VERSION };
+
+export interface FieldPixels {
+  width: number;
+  height: number;
+  ch1: ChannelArray;
+  ch2: ChannelArray;
+}
+
+export class FieldJobError extends Error {
+  override name = 'FieldJobError';
+}
+
+/** Maximum-intensity projection (or the slice itself when there is one). */
+function project(slices: ArrayLike<number>[], from: number, to: number): ChannelArray {
+  const first = slices[from] as ChannelArray;
+  if (from === to) return first;
+  const out = (first as Uint16Array).slice();
+  for (let z = from + 1; z <= to; z++) {
+    const s = slices[z];
+    for (let i = 0; i < out.length; i++) if (s[i] > out[i]) out[i] = s[i];
+  }
+  return out;
+}
+
+export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] {
+  const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1];
+  if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${sizeZ} slice${sizeZ === 1 ? '' : 's'}`);
+  return [a, b];
+}
+
+export const describeZ = (z: RecipeSettings['z']) => (z.mode === 'slice' ? `slice ${z.slice}` : z.mode === 'range' ? `mip ${z.from}-${z.to}` : 'mip all');
+
+/** Reads and decodes both channels of a job's field from the file store, applying the z handling. */
+export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<FieldPixels> {
+  const [from, to] = zRange(job.settings.z, job.sizeZ);
+  const bufs = new Map<string, Buffer>();
+  const out: ChannelArray[] = [];
+  for (const src of job.sources) {
+    let buf = bufs.get(src.key);
+    if (!buf) {
+      buf = await store.get(src.key);
+      bufs.set(src.key, buf);
+    }
+    const d = await decodeChannel(new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength), src.channel);
+    if (d.width !== job.width || d.height !== job.height)
+      throw new FieldJobError(`stored file ${src.key} is ${d.width}×${d.height}, the field record says ${job.width}×${job.height}`);
+    out.push(project(d.slices, from, Math.min(to, d.slices.length - 1)));
+  }
+  return { width: job.width, height: job.height, ch1: out[0], ch2: out[1] };
+}
+
+const isIntegerArray = (a: ChannelArray) => !(a instanceof Float32Array || a instanceof Float64Array);
+
+function subtract(a: ChannelArray, b: number): ChannelArray {
+  if (b === 0) return a;
+  if (isIntegerArray(a) && Number.isInteger(b)) {
+    const out = (a as Uint16Array).slice();
+    for (let i = 0; i < out.length; i++) out[i] = out[i] > b ? out[i] - b : 0;
+    return out;
+  }
+  const out = new Float64Array(a.length);
+  for (let i = 0; i < a.length; i++) out[i] = a[i] > b ? a[i] - b : 0;
+  return out;
+}
+
+function meanOver(a: ChannelArray, idx: ArrayLike<number>): number {
+  let s = 0;
+  for (let k = 0; k < idx.length; k++) s += a[idx[k]];
+  return s / idx.length;
+}
+
+function thresholdOptions(t: RecipeSettings['threshold']): ThresholdOptions {
+  switch (t.method) {
+    case 'none':
+      return { method: 'none' };
+    case 'manual':
+      return { method: 'manual', t1: t.t1, t2: t.t2 };
+    case 'otsu':
+      return { method: 'otsu' };
+    case 'costes':
+      return { method: 'costes', costes: { regression: t.regression, belowSet: t.belowSet, stopAt: t.stoppingRule.r } };
+  }
+}
+
+/** Block edge of the randomization test in pixels (null when the test is off). */
+export function blockPixels(s: RecipeSettings, fieldPixelSizeUm: number | null): number | null {
+  if (!s.randomization.enabled) return null;
+  const b = s.randomization.blockSize;
+  if (b.kind === 'pixels') return b.pixels;
+  const px = b.pixelSizeUm ?? fieldPixelSizeUm;
+  if (!px) throw new FieldJobError('the randomization block size comes from the point-spread width, but neither the recipe nor the field gives a pixel size');
+  return Math.max(1, Math.round(b.psfWidthUm / px));
+}
+
+const nullCoefficients = {
+  pearson: null,
+  spearman: null,
+  kendallTauB: null,
+  distanceCorrelation: null,
+  dcorBiasCorrectedSq: null,
+  dcorTStat: null,
+  dcorPValue: null,
+  mandersM1: null,
+  mandersM2: null,
+  overlap: null,
+  k1: null,
+  k2: null,
+  icq: null,
+  randomizationP: null,
+  randomizationFractionBelow: null,
+};
+
+/** Measures every 'cell' region of a field. Throws FieldJobError for a problem with this field. */
+export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): MeasurementValues[] {
+  const s = job.settings;
+  const { width, height } = px;
+  const raw1 = px.ch1;
+  const raw2 = px.ch2;
+  const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
+
+  // background
+  let bg1: number | null = null;
+  let bg2: number | null = null;
+  if (s.background.method === 'constant') {
+    bg1 = s.background.ch1;
+    bg2 = s.background.ch2;
+  } else if (s.background.method === 'region') {
+    const regions = job.cells.filter((c) => c.role === 'background');
+    const seen = new Uint8Array(width * height);
+    const idx: number[] = [];
+    for (const r of regions) for (const i of cellIndices(r.geometry, width, height)) if (!seen[i]) (seen[i] = 1), idx.push(i);
+    if (idx.length === 0) throw new FieldJobError(`the recipe subtracts the mean of a marked background region, but field "${job.fieldName}" has none marked`);
+    bg1 = meanOver(raw1, idx);
+    bg2 = meanOver(raw2, idx);
+  }
+  const ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
+  const ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
+
+  const block = blockPixels(s, job.pixelSizeUm);
+  const want = new Set(s.coefficients);
+  const slow = want.has('kendallTauB') || want.has('distanceCorrelation');
+  const threshold = thresholdOptions(s.threshold);
+  const z = describeZ(s.z);
+
+  const rows: MeasurementValues[] = [];
+  for (const cell of job.cells) {
+    if (cell.role !== 'cell') continue;
+    const all = cellIndices(cell.geometry, width, height);
+    let s1 = 0, s2 = 0;
+    if (sat != null)
+      for (let k = 0; k < all.length; k++) {
+        if (raw1[all[k]] >= sat) s1++;
+        if (raw2[all[k]] >= sat) s2++;
+      }
+    let idx: Uint32Array = all;
+    if (s.saturation === 'exclude' && sat != null) {
+      const keep: number[] = [];
+      for (let k = 0; k < all.length; k++) if (raw1[all[k]] < sat && raw2[all[k]] < sat) keep.push(all[k]);
+      idx = Uint32Array.from(keep);
+    }
+    const n = idx.length;
+    const provenance = {
+      recipeId: job.recipe.id,
+      recipeName: job.recipe.name,
+      recipeVersion: job.recipe.version,
+      recipeStatus: job.recipe.status,
+      engineVersion: ENGINE_VERSION,
+      inputSha256: [job.sources[0].sha256, job.sources[1].sha256] as [string, string],
+      channels: [job.sources[0].channel, job.sources[1].channel] as [number, number],
+      thresholds: { method: s.threshold.method, ch1: null as number | null, ch2: null as number | null },
+      background: [bg1, bg2] as [number | null, number | null],
+      seed: s.seed,
+      z,
+      randomizationBlock: block,
+      randomizationCount: 0,
+      note: null as string | null,
+      computedAt,
+    };
+    const base = {
+      cellId: cell.id,
+      pixels: n,
+      background1: bg1,
+      background2: bg2,
+      saturatedFraction1: sat == null || all.length === 0 ? null : s1 / all.length,
+      saturatedFraction2: sat == null || all.length === 0 ? null : s2 / all.length,
+      thresholdMethod: s.threshold.method,
+    };
+    if (n < Math.max(1, s.minCellPixels)) {
+      provenance.note = n === 0 ? 'no measurable pixels' : `fewer than ${s.minCellPixels} measured pixels`;
+      rows.push({ ...base, ...nullCoefficients, threshold1: null, threshold2: null, mean1: null, mean2: null, provenance });
+      continue;
+    }
+    const r = measureRegion(ch1, ch2, idx, {
+      width,
+      height,
+      threshold,
+      randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed } : undefined,
+      skipSlow: !slow,
+    });
+    provenance.thresholds = { method: r.thresholds.method, ch1: r.thresholds.ch1, ch2: r.thresholds.ch2 };
+    provenance.randomizationCount = r.randomizationCount;
+    const pick = (c: (typeof s.coefficients)[number], v: number | null) => (want.has(c) ? v : null);
+    rows.push({
+      ...base,
+      pearson: pick('pearson', r.pearson),
+      spearman: pick('spearman', r.spearman),
+      kendallTauB: pick('kendallTauB', r.kendallTauB),
+      distanceCorrelation: pick('distanceCorrelation', r.distanceCorrelation),
+      dcorBiasCorrectedSq: pick('distanceCorrelation', r.dcorBiasCorrectedSq),
+      dcorTStat: pick('distanceCorrelation', r.dcorTStat),
+      dcorPValue: pick('distanceCorrelation', r.dcorPValue),
+      mandersM1: pick('manders', r.mandersM1),
+      mandersM2: pick('manders', r.mandersM2),
+      overlap: pick('overlap', r.overlap),
+      k1: pick('overlap', r.k1),
+      k2: pick('overlap', r.k2),
+      icq: pick('icq', r.icq),
+      randomizationP: r.randomizationP,
+      randomizationFractionBelow: r.randomizationFractionBelow,
+      threshold1: r.thresholds.ch1,
+      threshold2: r.thresholds.ch2,
+      mean1: meanOver(ch1, idx),
+      mean2: meanOver(ch2, idx),
+      provenance,
+    });
+  }
+  return rows;
+}
+
+/** Load + compute, never throwing: a failure becomes `{ ok: false, error }` with a one-line message. */
+export async function runFieldJob(store: FileStore, job: FieldJob): Promise<FieldJobResult> {
+  const t0 = performance.now();
+  try {
+    const px = await loadJobPixels(store, job);
+    const measurements = computeField(job, px);
+    return { runId: job.runId, fieldId: job.fieldId, ok: true, measurements, ms: performance.now() - t0 };
+  } catch (e) {
+    const msg = e instanceof Error ? e.message : String(e);
+    return { runId: job.runId, fieldId: job.fieldId, ok: false, error: msg.split('\n')[0].slice(0, 500), ms: performance.now() - t0 };
+  }
+}

@@ -1,0 +1,67 @@
+/**
+ * The unit of work of a run: one field. A job carries everything a stateless worker needs (file store keys,
+ * outlines, recipe settings); the result carries the measurements back. Only the web server writes SQLite.
+ */
+import type { CellGeometry } from '../db/schema.js';
+import type { RecipeSettings, RecipeStatus } from '../../shared/schemas/recipes.js';
+
+export interface FieldJob {
+  runId: number;
+  fieldId: number;
+  fieldName: string;
+  /** channel 1 and channel 2 sources: file store key, SHA-256 and the 1-based channel inside the file */
+  sources: [{ key: string; sha256: string; channel: number }, { key: string; sha256: string; channel: number }];
+  width: number;
+  height: number;
+  sizeZ: number;
+  bitDepth: number;
+  sampleFormat: 'uint' | 'float';
+  pixelSizeUm: number | null;
+  /** role 'cell' regions are measured; role 'background' regions feed the 'region' background method */
+  cells: { id: number; role: 'cell' | 'background'; geometry: CellGeometry }[];
+  settings: RecipeSettings;
+  recipe: { id: number; name: string; version: number; status: RecipeStatus };
+  provisional: boolean;
+}
+
+/** One measurement row's values (the columns of `measurements` besides ids). */
+export interface MeasurementValues {
+  cellId: number;
+  pixels: number;
+  pearson: number | null;
+  spearman: number | null;
+  kendallTauB: number | null;
+  distanceCorrelation: number | null;
+  dcorBiasCorrectedSq: number | null;
+  dcorTStat: number | null;
+  dcorPValue: number | null;
+  mandersM1: number | null;
+  mandersM2: number | null;
+  overlap: number | null;
+  k1: number | null;
+  k2: number | null;
+  icq: number | null;
+  randomizationP: number | null;
+  randomizationFractionBelow: number | null;
+  threshold1: number | null;
+  threshold2: number | null;
+  thresholdMethod: string;
+  background1: number | null;
+  background2: number | null;
+  saturatedFraction1: number | null;
+  saturatedFraction2: number | null;
+  mean1: number | null;
+  mean2: number | null;
+  provenance: import('../../shared/schemas/runs.js').MeasurementProvenance;
+}
+
+export type FieldJobResult =
+  | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; ms: number }
+  | { runId: number; fieldId: number; ok: false; error: string; ms: number };
+
+/** Where a worker finds the file store (passed to pool threads and read from the environment by worker-main). */
+export interface StoreEnv {
+  DATA_DIR: string;
+  STORE_URL?: string;
+  S3_ENDPOINT?: string;
+}

@@ -1,0 +1,180 @@
+/**
+ * The database side of runs (only the web server writes SQLite): scope → fields, building a field job,
+ * recording a field's result in one transaction (measurements + run_fields done + run counters), and the
+ * run's final status. Idempotent: a result for a field already done is ignored, so no field counts twice.
+ */
+import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
+import type { AppContext } from '../context.js';
+import { cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, studies } from '../db/schema.js';
+import { RecipeSettings } from '../../shared/schemas/recipes.js';
+import type { RunScopeKind } from '../../shared/schemas/runs.js';
+import { notFound } from '../http/errors.js';
+import type { FieldJob, FieldJobResult } from './job.js';
+
+type Db = AppContext['db'];
+
+/** The study of a scope and its ready fields (in study order), or 404. */
+export function resolveScope(db: Db, kind: RunScopeKind, id: number): { studyId: number; name: string; fieldIds: number[] } {
+  const base = db
+    .select({ fieldId: fields.id, fieldName: fields.name, coverslipId: coverslips.id, coverslipName: coverslips.name, conditionId: conditions.id, conditionName: conditions.name, studyId: conditions.studyId })
+    .from(fields)
+    .innerJoin(coverslips, eq(fields.coverslipId, coverslips.id))
+    .innerJoin(conditions, eq(coverslips.conditionId, conditions.id));
+  const ready = eq(fields.status, 'ready');
+  const order = [conditions.position, conditions.id, coverslips.position, coverslips.id, fields.id] as const;
+  if (kind === 'field') {
+    const f = db.select().from(fields).innerJoin(coverslips, eq(fields.coverslipId, coverslips.id)).innerJoin(conditions, eq(coverslips.conditionId, conditions.id)).where(eq(fields.id, id)).get();
+    if (!f || f.fields.status !== 'ready') throw notFound(`no field with id ${id}`);
+    return { studyId: f.conditions.studyId, name: f.fields.name, fieldIds: [id] };
+  }
+  if (kind === 'coverslip') {
+    const c = db.select().from(coverslips).innerJoin(conditions, eq(coverslips.conditionId, conditions.id)).where(eq(coverslips.id, id)).get();
+    if (!c) throw notFound(`no coverslip with id ${id}`);
+    const rows = base.where(and(ready, eq(coverslips.id, id))).orderBy(...order).all();
+    return { studyId: c.conditions.studyId, name: `${c.conditions.name} / ${c.coverslips.name}`, fieldIds: rows.map((r) => r.fieldId) };
+  }
+  if (kind === 'condition') {
+    const c = db.select().from(conditions).where(eq(conditions.id, id)).get();
+    if (!c) throw notFound(`no condition with id ${id}`);
+    const rows = base.where(and(ready, eq(conditions.id, id))).orderBy(...order).all();
+    return { studyId: c.studyId, name: c.name, fieldIds: rows.map((r) => r.fieldId) };
+  }
+  const s = db.select().from(studies).where(eq(studies.id, id)).get();
+  if (!s) throw notFound(`no study with id ${id}`);
+  const rows = base.where(and(ready, eq(conditions.studyId, id))).orderBy(...order).all();
+  return { studyId: id, name: s.name, fieldIds: rows.map((r) => r.fieldId) };
+}
+
+/** Everything a stateless worker needs for one field of a run. */
+export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
+  const run = db.select().from(runs).where(eq(runs.id, runId)).get();
+  if (!run) throw new Error(`run ${runId} vanished`);
+  const recipe = db.select().from(recipes).where(eq(recipes.id, run.recipeId)).get()!;
+  const f = db.select().from(fields).where(eq(fields.id, fieldId)).get();
+  if (!f) throw new Error(`field ${fieldId} vanished`);
+  const fileRows = db.select().from(files).where(inArray(files.sha256, [f.file1Sha, f.file2Sha])).all();
+  const key = (sha: string) => {
+    const r = fileRows.find((x) => x.sha256 === sha);
+    if (!r) throw new Error(`field ${f.name}: stored file ${sha.slice(0, 12)}… is missing`);
+    return r.storeKey;
+  };
+  const cellRows = db
+    .select({ id: cells.id, role: cells.role, geometry: cells.geometry })
+    .from(cells)
+    .where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt)))
+    .orderBy(cells.id)
+    .all();
+  return {
+    runId,
+    fieldId,
+    fieldName: f.name,
+    sources: [
+      { key: key(f.file1Sha), sha256: f.file1Sha, channel: f.channel1 },
+      { key: key(f.file2Sha), sha256: f.file2Sha, channel: f.channel2 },
+    ],
+    width: f.width,
+    height: f.height,
+    sizeZ: f.sizeZ,
+    bitDepth: f.bitDepth,
+    sampleFormat: f.sampleFormat,
+    pixelSizeUm: f.pixelSizeUm,
+    cells: cellRows,
+    settings: RecipeSettings.parse(recipe.settings),
+    recipe: { id: recipe.id, name: recipe.name, version: recipe.version, status: recipe.status },
+    provisional: run.provisional,
+  };
+}
+
+/** Marks a field as handed to a worker (and the run as running). */
+export function markFieldStarted(db: Db, runId: number, fieldId: number, fieldName: string) {
+  db.transaction((tx) => {
+    tx.update(runFields)
+      .set({ status: 'running', attempts: sql`${runFields.attempts} + 1` })
+      .where(and(eq(runFields.runId, runId), eq(runFields.fieldId, fieldId), inArray(runFields.status, ['queued', 'running'])))
+      .run();
+    tx.update(runs)
+      .set({ status: 'running', currentField: fieldName, startedAt: sql`coalesce(${runs.startedAt}, strftime('%Y-%m-%dT%H:%M:%fZ','now'))` })
+      .where(and(eq(runs.id, runId), inArray(runs.status, ['queued', 'running'])))
+      .run();
+  });
+}
+
+/**
+ * Writes a field's result in one transaction. Returns false when the field was already finished
+ * (a duplicate delivery), so nothing is written twice.
+ */
+export function recordFieldResult(db: Db, result: FieldJobResult): boolean {
+  const wrote = db.transaction((tx) => {
+    const rf = tx.select().from(runFields).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).get();
+    if (!rf || rf.status === 'done' || rf.status === 'failed') return false;
+    const run = tx.select().from(runs).where(eq(runs.id, result.runId)).get();
+    if (!run) return false;
+    const at = new Date().toISOString();
+    if (result.ok) {
+      // cells deleted meanwhile are skipped (their ids would still be valid rows; keep them: the cell existed at compute time)
+      const chunk = 200;
+      for (let i = 0; i < result.measurements.length; i += chunk) {
+        const part = result.measurements.slice(i, i + chunk).map((m) => ({ ...m, runId: result.runId, fieldId: result.fieldId, provisional: run.provisional }));
+        if (part.length) tx.insert(measurements).values(part).onConflictDoNothing().run();
+      }
+      tx.update(runFields).set({ status: 'done', error: null, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
+    } else {
+      tx.update(runFields).set({ status: 'failed', error: result.error, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
+    }
+    refreshRun(tx as unknown as Db, result.runId);
+    return true;
+  });
+  return wrote;
+}
+
+/** Recomputes a run's counters and, when no field is left, its final status. */
+export function refreshRun(db: Db, runId: number) {
+  const counts = db
+    .select({ status: runFields.status, n: sql<number>`count(*)` })
+    .from(runFields)
+    .where(eq(runFields.runId, runId))
+    .groupBy(runFields.status)
+    .all();
+  const c = { queued: 0, running: 0, done: 0, failed: 0 } as Record<string, number>;
+  for (const r of counts) c[r.status] = Number(r.n);
+  const total = c.queued + c.running + c.done + c.failed;
+  const finished = c.queued + c.running === 0;
+  const status = !finished ? undefined : c.failed === 0 ? 'done' : c.done === 0 ? 'failed' : 'partial';
+  let error: string | null = null;
+  if (finished && c.failed > 0) error = `${c.failed} of ${total} field${total === 1 ? '' : 's'} failed`;
+  db.update(runs)
+    .set({
+      fieldsTotal: total,
+      fieldsDone: c.done + c.failed,
+      ...(finished ? { status: status as 'done' | 'failed' | 'partial', finishedAt: new Date().toISOString(), currentField: null, error } : {}),
+    })
+    .where(eq(runs.id, runId))
+    .run();
+}
+
+/** Unfinished fields of unfinished runs (after a restart: 'running' fields were interrupted → queued). */
+export function unfinishedWork(db: Db): { runId: number; fieldId: number }[] {
+  const active = db.select({ id: runs.id }).from(runs).where(inArray(runs.status, ['queued', 'running'])).all().map((r) => r.id);
+  if (!active.length) return [];
+  db.update(runFields).set({ status: 'queued' }).where(and(inArray(runFields.runId, active), eq(runFields.status, 'running'))).run();
+  for (const id of active) refreshRun(db, id);
+  return db
+    .select({ runId: runFields.runId, fieldId: runFields.fieldId })
+    .from(runFields)
+    .where(and(inArray(runFields.runId, active), eq(runFields.status, 'queued')))
+    .orderBy(runFields.runId, runFields.fieldId)
+    .all();
+}
+
+export function queuedFieldsOf(db: Db, runId: number) {
+  return db
+    .select({ runId: runFields.runId, fieldId: runFields.fieldId })
+    .from(runFields)
+    .where(and(eq(runFields.runId, runId), eq(runFields.status, 'queued')))
+    .orderBy(runFields.fieldId)
+    .all();
+}
+
+export function fieldName(db: Db, fieldId: number) {
+  return db.select({ name: fields.name }).from(fields).where(eq(fields.id, fieldId)).get()?.name ?? `field ${fieldId}`;
+}

@@ -1,0 +1,210 @@
+/**
+ * The auto-written methods paragraph of a report: a pure function of the frozen snapshot (no I/O, no clock),
+ * so the same snapshot always yields the same text (server writes it into the snapshot; the client can re-render).
+ *
+ * It states every parameter of every recipe version used. Known settings get a sentence; every setting
+ * (known or not) is also listed in full as `path = value`, so a setting added to RecipeSettings later is never
+ * silently left out. It gives cells and coverslips per condition, the statistical tests, and cites each
+ * method's paper.
+ *
+ * References (authors, year, journal, DOI; DOIs from memory, checked against the journals' citation formats):
+ * see CITATIONS below.
+ */
+import { COEFFICIENT_LABELS, type ReportCoefficient, type ReportSnapshot } from '../schemas/reports.js';
+import { RecipeSettings, SETTING_KEYS, describeSetting } from '../schemas/recipes.js';
+
+export interface Citation {
+  key: string;
+  text: string;
+}
+
+/** Each method's paper. */
+export const CITATIONS: Record<string, Citation> = {
+  pearson: { key: 'Pearson 1896', text: 'Pearson K (1896) Mathematical contributions to the theory of evolution. III. Regression, heredity, and panmixia. Phil. Trans. R. Soc. Lond. A 187:253–318. doi:10.1098/rsta.1896.0007' },
+  spearman: { key: 'Spearman 1904', text: 'Spearman C (1904) The proof and measurement of association between two things. Am. J. Psychol. 15:72–101. doi:10.2307/1412159' },
+  kendall: { key: 'Kendall 1945', text: 'Kendall MG (1945) The treatment of ties in ranking problems. Biometrika 33:239–251. doi:10.1093/biomet/33.3.239' },
+  knight: { key: 'Knight 1966', text: "Knight WR (1966) A computer method for calculating Kendall's tau with ungrouped data. J. Am. Stat. Assoc. 61:436–439. doi:10.1080/01621459.1966.10480879" },
+  dcor: { key: 'Székely, Rizzo & Bakirov 2007', text: 'Székely GJ, Rizzo ML, Bakirov NK (2007) Measuring and testing dependence by correlation of distances. Ann. Statist. 35:2769–2794. doi:10.1214/009053607000000505' },
+  dcorT: { key: 'Székely & Rizzo 2013', text: 'Székely GJ, Rizzo ML (2013) The distance correlation t-test of independence in high dimension. J. Multivariate Anal. 117:193–213. doi:10.1016/j.jmva.2013.02.012' },
+  dcorFast: { key: 'Huo & Székely 2016', text: 'Huo X, Székely GJ (2016) Fast computing for distance covariance. Technometrics 58:435–447. doi:10.1080/00401706.2015.1054435' },
+  manders: { key: 'Manders et al. 1993', text: 'Manders EMM, Verbeek FJ, Aten JA (1993) Measurement of co-localization of objects in dual-colour confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x' },
+  costes: { key: 'Costes et al. 2004', text: 'Costes SV, Daelemans D, Cho EH, Dobbin Z, Pavlakis G, Lockett S (2004) Automatic and quantitative measurement of protein-protein colocalization in live cells. Biophys. J. 86:3993–4003. doi:10.1529/biophysj.103.038422' },
+  li: { key: 'Li et al. 2004', text: 'Li Q, Lau A, Morris TJ, Guo L, Fordyce CB, Stanley EF (2004) A syntaxin 1, Gαo, and N-type calcium channel complex at a presynaptic nerve terminal: analysis by quantitative immunocolocalization. J. Neurosci. 24:4070–4081. doi:10.1523/JNEUROSCI.0346-04.2004' },
+  otsu: { key: 'Otsu 1979', text: 'Otsu N (1979) A threshold selection method from gray-level histograms. IEEE Trans. Syst. Man Cybern. 9:62–66. doi:10.1109/TSMC.1979.4310076' },
+  lord: { key: 'Lord et al. 2020', text: 'Lord SJ, Velle KB, Mullins RD, Fritz-Laylin LK (2020) SuperPlots: communicating reproducibility and variability in cell biology. J. Cell Biol. 219:e202001064. doi:10.1083/jcb.202001064' },
+  fisherZ: { key: 'Fisher 1915', text: 'Fisher RA (1915) Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population. Biometrika 10:507–521. doi:10.2307/2331838' },
+  welch: { key: 'Welch 1947', text: 'Welch BL (1947) The generalization of "Student\'s" problem when several different population variances are involved. Biometrika 34:28–35. doi:10.1093/biomet/34.1-2.28' },
+  mannWhitney: { key: 'Mann & Whitney 1947', text: 'Mann HB, Whitney DR (1947) On a test of whether one of two random variables is stochastically larger than the other. Ann. Math. Statist. 18:50–60. doi:10.1214/aoms/1177730491' },
+  kruskal: { key: 'Kruskal & Wallis 1952', text: 'Kruskal WH, Wallis WA (1952) Use of ranks in one-criterion variance analysis. J. Am. Stat. Assoc. 47:583–621. doi:10.1080/01621459.1952.10483441' },
+  anova: { key: 'Welch 1951', text: 'Welch BL (1951) On the comparison of several mean values: an alternative approach. Biometrika 38:330–336. doi:10.1093/biomet/38.3-4.330' },
+  bootstrap: { key: 'Efron 1979', text: 'Efron B (1979) Bootstrap methods: another look at the jackknife. Ann. Statist. 7:1–26. doi:10.1214/aos/1176344552' },
+};
+
+export const CAUTIONS = [
+  'Co-localization at light-microscope resolution (about 200 nm laterally, more along the optical axis) shows that two labels occupy the same diffraction-limited volume; it is not evidence of molecular interaction.',
+  'Saturated pixels, channel bleed-through (crosstalk), chromatic shift between channels and unequal image adjustment all bias the coefficients.',
+  'Cells are not independent observations: the coverslip is the unit of replication, and the tests use coverslip-level summaries.',
+  'Research use only; not for diagnosis.',
+];
+
+// ---------------------------------------------------------------------------------------------------------
+// settings helpers (RecipeSettings is read defensively so a renamed or added key still appears in full)
+
+type Obj = Record<string, unknown>;
+const isObj = (v: unknown): v is Obj => !!v && typeof v === 'object' && !Array.isArray(v);
+
+/** Every leaf of the settings as [dotted path, value]; arrays of scalars are one leaf. */
+export function settingLeaves(settings: unknown, prefix = ''): [string, unknown][] {
+  if (!isObj(settings)) return prefix ? [[prefix, settings]] : [];
+  const out: [string, unknown][] = [];
+  for (const k of Object.keys(settings).sort()) {
+    const v = settings[k];
+    const p = prefix ? `${prefix}.${k}` : k;
+    if (isObj(v)) out.push(...settingLeaves(v, p));
+    else if (Array.isArray(v) && v.some(isObj)) v.forEach((x, i) => out.push(...settingLeaves(x, `${p}[${i}]`)));
+    else out.push([p, v]);
+  }
+  return out;
+}
+
+/** How a setting value is written in the paragraph (the test reads values back with this function). */
+export function formatSettingValue(v: unknown): string {
+  if (v === null || v === undefined) return 'none';
+  if (typeof v === 'number') return Number.isFinite(v) ? String(v) : 'none';
+  if (typeof v === 'boolean') return v ? 'yes' : 'no';
+  if (typeof v === 'string') return v === '' ? '(empty)' : v;
+  if (Array.isArray(v)) return `[${v.map(formatSettingValue).join(', ')}]`;
+  return JSON.stringify(v);
+}
+
+const fmt = (v: unknown) => formatSettingValue(v);
+
+/**
+ * One sentence per recipe setting. Settings that parse as H6's RecipeSettings reuse its `describeSetting`
+ * sentences (the same words as the recipe editor) with numbered citations added; anything else falls back
+ * to the full `path = value` list alone.
+ */
+function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => string): string[] {
+  const parsed = RecipeSettings.safeParse(settings);
+  if (!parsed.success) return [];
+  const s = parsed.data;
+  const out: string[] = [];
+  for (const key of SETTING_KEYS) {
+    if (key === 'coefficients') continue; // stated with citations in the coefficient paragraph
+    let sentence = describeSetting(key, s);
+    const cited = (k: keyof typeof CITATIONS) => (sentence = sentence.replace(/\.$/, ` ${ref(k)}.`));
+    if (key === 'threshold' && s.threshold.method === 'otsu') cited('otsu');
+    if (key === 'threshold' && s.threshold.method === 'costes') cited('costes');
+    if (key === 'threshold' && s.threshold.method !== 'none') sentence += ' Pixels strictly above a threshold count as foreground.';
+    if (key === 'randomization' && s.randomization.enabled) {
+      cited('costes');
+      sentence += ' The p-value counts the observed image among the scrambles.';
+    }
+    out.push(sentence);
+  }
+  return out;
+}
+
+function joinList(a: string[]): string {
+  if (a.length <= 1) return a.join('');
+  return `${a.slice(0, -1).join(', ')} and ${a[a.length - 1]}`;
+}
+
+/** The methods paragraph (plain text, paragraphs separated by a blank line; references numbered at the end). */
+export function methodsParagraph(snap: ReportSnapshot): string {
+  const used: string[] = [];
+  const cite = (k: keyof typeof CITATIONS) => {
+    let i = used.indexOf(k);
+    if (i < 0) {
+      used.push(k);
+      i = used.length - 1;
+    }
+    return `${CITATIONS[k].key} [${i + 1}]`;
+  };
+  const ref = (k: keyof typeof CITATIONS) => cite(k).slice(CITATIONS[k].key.length + 1);
+  const parts: string[] = [];
+
+  // 1. data
+  const condText = snap.conditions.map(
+    (c) => `${c.name}: ${c.cellsIncluded} cell${c.cellsIncluded === 1 ? '' : 's'} on ${c.coverslipsUsed} coverslip${c.coverslipsUsed === 1 ? '' : 's'}${c.cellsExcluded ? ` (${c.cellsExcluded} excluded)` : ''}`,
+  );
+  const excl = snap.exclusions.length
+    ? ` ${snap.exclusions.length} cell${snap.exclusions.length === 1 ? ' was' : 's were'} excluded before analysis, each with a recorded reason (listed in the exclusions table).`
+    : ' No cells were excluded.';
+  parts.push(
+    `Two-channel fields (${snap.fields.length} in total) of the study "${snap.study.name}" were analysed cell by cell; each cell is a region of interest outlined in image pixel coordinates, and a pixel belongs to a cell when its centre lies inside the outline (even-odd rule). Cells and coverslips per condition — ${condText.join('; ')}.${excl}`,
+  );
+
+  // 2. recipes
+  for (const r of snap.recipes) {
+    const s = isObj(r.settings) ? r.settings : {};
+    const runs = snap.runs.filter((x) => r.runIds.includes(x.id));
+    const seeds = [...new Set(runs.map((x) => x.seed))];
+    const engines = [...new Set(runs.map((x) => x.engineVersion).filter((e): e is string => !!e))];
+    const zs = [...new Set(runs.map((x) => x.zHandling).filter((e): e is string => !!e))];
+    const leaves = settingLeaves(s);
+    parts.push(
+      [
+        `Quantification used the recipe "${r.name}" version ${r.version} (${r.provisional ? 'PROVISIONAL: run before the recipe was approved' : `status ${r.status}`}; analysis engine ${engines.length ? engines.join(', ') : 'version not recorded'}; run${runs.length === 1 ? '' : 's'} ${runs.map((x) => `#${x.id}`).join(', ')}${seeds.length ? `, random seed ${seeds.join(', ')}` : ''}${zs.length ? `, z handling ${zs.join(', ')}` : ''}).`,
+        ...recipeSentences(s, ref),
+        leaves.length ? `Recipe settings in full: ${leaves.map(([p, v]) => `${p} = ${fmt(v)}`).join('; ')}.` : 'The recipe recorded no settings.',
+      ].join(' '),
+    );
+  }
+  if (!snap.recipes.length) parts.push('No measurements were available when the report was made; no recipe was used.');
+
+  // 3. coefficients
+  const coefText: string[] = [];
+  const c = new Set<ReportCoefficient>(snap.coefficients);
+  if (c.has('pearson')) coefText.push(`Pearson's correlation coefficient r (${cite('pearson')})`);
+  if (c.has('spearman')) coefText.push(`Spearman's rank correlation ρ, computed as Pearson's r of average ranks so that ties are handled (${cite('spearman')})`);
+  if (c.has('kendallTauB')) coefText.push(`Kendall's τ-b with the tie correction of ${cite('kendall')}, computed exactly in O(n log n) (${cite('knight')})`);
+  if (c.has('distanceCorrelation') || c.has('dcorBiasCorrectedSq'))
+    coefText.push(
+      `distance correlation dCor (V-statistic, not squared; ${cite('dcor')}), computed exactly on every pixel in O(n log n) (${cite('dcorFast')})${c.has('dcorBiasCorrectedSq') ? `, and its bias-corrected square with the t-test of independence (${cite('dcorT')})` : ''}`,
+    );
+  if (c.has('mandersM1') || c.has('mandersM2')) coefText.push(`Manders' split coefficients M1 and M2 over pixels above the thresholds (${cite('manders')})`);
+  if (c.has('overlap') || c.has('k1') || c.has('k2')) coefText.push(`Manders' overlap coefficient${c.has('k1') || c.has('k2') ? ' and the k1/k2 coefficients' : ''} (${cite('manders')})`);
+  if (c.has('icq')) coefText.push(`Li's intensity correlation quotient ICQ (${cite('li')})`);
+  parts.push(
+    `Per cell, the report shows ${joinList(coefText)} (${snap.coefficients.map((k) => COEFFICIENT_LABELS[k]).join(', ')}). Undefined values (an empty cell, a constant channel) are reported as missing, not as zero.`,
+  );
+
+  // 4. statistics
+  const tests = new Set(snap.statistics.flatMap((s) => [s.test, ...(s.alsoTests ?? []).map((x) => x.test)]).map((t) => t.toLowerCase()));
+  const has = (re: RegExp) => [...tests].some((t) => re.test(t));
+  const testText: string[] = [];
+  if (has(/welch/)) testText.push(`Welch's unequal-variance t-test (${cite('welch')})`);
+  if (has(/mann|whitney|wilcoxon/)) testText.push(`the Mann–Whitney U test (${cite('mannWhitney')})`);
+  if (has(/kruskal/)) testText.push(`the Kruskal–Wallis test (${cite('kruskal')})`);
+  if (has(/anova/)) testText.push(`one-way ANOVA (Welch's form for unequal variances, ${cite('anova')})`);
+  const boot = snap.statistics.some((s) => s.ciLow !== null) || has(/bootstrap/);
+  const corrCoefs = snap.coefficients.filter((k) => k === 'pearson' || k === 'spearman' || k === 'kendallTauB');
+  parts.push(
+    [
+      `Conditions were compared with coverslips as the unit of replication: every cell is shown, coloured by coverslip, with coverslip means on top (${cite('lord')}).`,
+      corrCoefs.length ? `Correlation coefficients (${corrCoefs.map((k) => COEFFICIENT_LABELS[k]).join(', ')}) were averaged through Fisher's z transformation (${cite('fisherZ')}).` : '',
+      testText.length
+        ? `Coverslip-level summaries were tested with ${joinList(testText)}${boot ? `; effect sizes carry bootstrap confidence intervals that resample coverslips, then cells (${cite('bootstrap')})` : ''}. Significance level α = 0.05, two-sided.`
+        : 'No statistical test could be made (fewer than two coverslips in a condition, or a single condition).',
+    ]
+      .filter(Boolean)
+      .join(' '),
+  );
+
+  // 5. saturation
+  const sat = snap.saturation;
+  parts.push(
+    sat.fieldsWithSaturation > 0
+      ? `Saturation: ${sat.fieldsWithSaturation} of ${snap.fields.length} fields contain saturated pixels (largest fraction: channel 1 ${pct(sat.maxFraction1)}, channel 2 ${pct(sat.maxFraction2)}); saturated pixels bias the coefficients.`
+      : `Saturation: no field contains saturated pixels.`,
+  );
+  if (snap.anyProvisional) parts.push('Some measurements come from a recipe version that was not approved when it ran; these results are provisional.');
+
+  const refs = used.map((k, i) => `[${i + 1}] ${CITATIONS[k].text}`);
+  return `${parts.join('\n\n')}\n\nReferences\n${refs.join('\n')}`;
+}
+
+function pct(v: number | null) {
+  return v === null ? 'unknown' : `${(v * 100).toFixed(v < 0.001 ? 3 : 2)}%`;
+}

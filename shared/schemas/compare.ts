@@ -1,0 +1,154 @@
+/**
+ * A comparison of conditions for one coefficient, with coverslips as the unit of replication
+ * (Lord et al. 2020, J. Cell Biol. 219:e202001064). Produced by server/compare/compute.ts
+ * (`computeComparison`), drawn by src/features/compare (SuperPlot), frozen into report snapshots (H8).
+ * Undefined numbers are `null`, never NaN.
+ */
+import { z } from 'zod';
+
+export const COMPARE_COEFFICIENTS = [
+  'pearson',
+  'spearman',
+  'kendallTauB',
+  'distanceCorrelation',
+  'dcorBiasCorrectedSq',
+  'mandersM1',
+  'mandersM2',
+  'overlap',
+  'k1',
+  'k2',
+  'icq',
+] as const;
+export const CompareCoefficient = z.enum(COMPARE_COEFFICIENTS, { message: `coefficient must be one of ${COMPARE_COEFFICIENTS.join(', ')}` });
+export type CompareCoefficient = z.infer<typeof CompareCoefficient>;
+
+/** Correlation coefficients in [−1, 1] that are averaged through Fisher's z. */
+export const FISHER_COEFFICIENTS: readonly CompareCoefficient[] = ['pearson', 'spearman', 'kendallTauB'];
+
+export const COMPARE_LABELS: Record<CompareCoefficient, string> = {
+  pearson: "Pearson's r",
+  spearman: "Spearman's ρ",
+  kendallTauB: "Kendall's τ-b",
+  distanceCorrelation: 'distance correlation',
+  dcorBiasCorrectedSq: 'bias-corrected dCor²',
+  mandersM1: "Manders' M1",
+  mandersM2: "Manders' M2",
+  overlap: 'overlap coefficient',
+  k1: 'k1',
+  k2: 'k2',
+  icq: 'ICQ',
+};
+
+const ids = z
+  .union([z.string(), z.array(z.string())])
+  .transform((v, ctx) => {
+    const parts = (Array.isArray(v) ? v : [v]).flatMap((s) => s.split(',')).filter(Boolean);
+    if (parts.some((p) => !/^[1-9][0-9]{0,14}$/.test(p))) {
+      ctx.addIssue({ code: 'custom', message: `expected positive integer ids, received ${JSON.stringify(v)}` });
+      return z.NEVER;
+    }
+    return parts.map(Number);
+  });
+
+export const CompareQuery = z.object({
+  coefficient: CompareCoefficient.default('pearson'),
+  runId: z.coerce.number().int().positive().optional(),
+  recipeId: z.coerce.number().int().positive().optional(),
+  conditionIds: ids.optional(),
+  seed: z.coerce.number().int().min(0).max(2 ** 32 - 1).default(1),
+  resamples: z.coerce.number().int().min(100).max(20000).default(2000),
+  confidence: z.coerce.number().gt(0.5).lt(1).default(0.95),
+  bins: z.coerce.number().int().min(5).max(100).default(20),
+});
+export type CompareQuery = z.infer<typeof CompareQuery>;
+export type CompareOptions = Partial<Omit<CompareQuery, 'coefficient'>> & { coefficient: CompareCoefficient };
+
+const Num = z.number().nullable();
+
+export const ComparePoint = z.object({
+  cellId: z.number().int(),
+  fieldId: z.number().int(),
+  coverslipId: z.number().int(),
+  conditionId: z.number().int(),
+  value: z.number(),
+});
+
+export const CoverslipStats = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  replicate: z.number().int(),
+  conditionId: z.number().int(),
+  /** position in the colour palette, 0-based, stable within the comparison */
+  colorIndex: z.number().int(),
+  nCells: z.number().int(),
+  /** mean of cells (through Fisher's z for correlation coefficients) */
+  mean: Num,
+  median: Num,
+  sd: Num,
+});
+export type CoverslipStats = z.infer<typeof CoverslipStats>;
+
+export const ConditionStats = z.object({
+  id: z.number().int(),
+  name: z.string(),
+  nCoverslips: z.number().int(),
+  nCells: z.number().int(),
+  /** mean of coverslip means (Fisher's z averaged for correlation coefficients) */
+  mean: Num,
+  /** SD of coverslip means (on the z scale for correlation coefficients) */
+  sdOfCoverslipMeans: Num,
+  ci: z.object({ lower: Num, upper: Num }),
+});
+export type ConditionStats = z.infer<typeof ConditionStats>;
+
+export const Effect = z.object({
+  a: z.number().int(),
+  b: z.number().int(),
+  aName: z.string(),
+  bName: z.string(),
+  label: z.string(),
+  /** mean of coverslip means of b minus that of a */
+  estimate: Num,
+  ci: z.object({ lower: Num, upper: Num }),
+});
+export type Effect = z.infer<typeof Effect>;
+
+export const TestRow = z.object({
+  test: z.enum(['welch_t', 'mann_whitney_u', 'one_way_anova', 'kruskal_wallis']),
+  label: z.string(),
+  statistic: Num,
+  df: z.array(z.number()),
+  p: Num,
+  note: z.string(),
+});
+export type TestRow = z.infer<typeof TestRow>;
+
+export const HistogramSet = z.object({
+  key: z.enum(['coefficient', 'mean1', 'mean2']),
+  label: z.string(),
+  edges: z.array(z.number()),
+  byCondition: z.array(z.object({ conditionId: z.number().int(), counts: z.array(z.number().int()) })),
+  distances: z.array(z.object({ a: z.number().int(), b: z.number().int(), chiSquared: Num, emd: Num })),
+});
+export type HistogramSet = z.infer<typeof HistogramSet>;
+
+export const Comparison = z.object({
+  studyId: z.number().int(),
+  coefficient: CompareCoefficient,
+  label: z.string(),
+  averaging: z.enum(['arithmetic', 'fisher_z']),
+  source: z.object({ runId: z.number().int().nullable(), recipeId: z.number().int().nullable(), recipeName: z.string().nullable(), recipeVersion: z.number().int().nullable() }),
+  bootstrap: z.object({ resamples: z.number().int(), seed: z.number().int(), confidence: z.number() }),
+  points: z.array(ComparePoint),
+  coverslips: z.array(CoverslipStats),
+  conditions: z.array(ConditionStats),
+  effects: z.array(Effect),
+  tests: z.array(TestRow),
+  histograms: z.array(HistogramSet),
+  /** cells left out: excluded by a person, or with no value for this coefficient */
+  omitted: z.object({ excluded: z.number().int(), undefinedValue: z.number().int(), provisional: z.number().int(), saturated: z.number().int() }),
+  warnings: z.array(z.string()),
+  summary: z.string(),
+  generatedAt: z.string(),
+});
+export type Comparison = z.infer<typeof Comparison>;

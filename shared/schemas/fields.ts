@@ -1,0 +1,108 @@
+/** Fields (two-channel images) on coverslips: request and response shapes shared by server and client. */
+import { z } from 'zod';
+
+export const ChannelFacts = z.object({
+  min: z.number(),
+  max: z.number(),
+  mean: z.number(),
+  /** fraction of pixels at the largest value the pixel type can hold (0 for float data) */
+  saturatedFraction: z.number(),
+  /** fraction at the largest observed value when it forms a plateau (clipping below full scale), else null */
+  plateauFraction: z.number().nullable(),
+});
+export type ChannelFacts = z.infer<typeof ChannelFacts>;
+
+/** A field counts as saturated when more than this fraction of a channel sits at the ceiling or a plateau. */
+export const SATURATION_FLAG_FRACTION = 0.001;
+
+export const FieldSummary = z.object({
+  id: z.number().int(),
+  coverslipId: z.number().int(),
+  name: z.string(),
+  width: z.number().int(),
+  height: z.number().int(),
+  sizeZ: z.number().int(),
+  bitDepth: z.number().int(),
+  sampleFormat: z.enum(['uint', 'float']),
+  channelNames: z.tuple([z.string().nullable(), z.string().nullable()]),
+  pixelSizeUm: z.number().nullable(),
+  facts: z.object({ ch1: ChannelFacts, ch2: ChannelFacts }),
+  /** true when either channel has more than SATURATION_FLAG_FRACTION saturated or plateau pixels */
+  saturated: z.boolean(),
+  status: z.enum(['ready', 'deleted']),
+  fileSize: z.number().int(),
+  createdAt: z.string(),
+});
+export type FieldSummary = z.infer<typeof FieldSummary>;
+
+export const FieldFile = z.object({
+  sha256: z.string(),
+  originalName: z.string(),
+  size: z.number().int(),
+  /** 1-based channel inside this file */
+  channel: z.number().int(),
+});
+
+export const FieldDetail = FieldSummary.extend({
+  studyId: z.number().int(),
+  conditionId: z.number().int(),
+  files: z.tuple([FieldFile, FieldFile]),
+  uploadedBy: z.number().int().nullable(),
+  /** what the viewer may do */
+  canEdit: z.boolean(),
+});
+export type FieldDetail = z.infer<typeof FieldDetail>;
+
+export const StudyFieldSummary = FieldSummary.extend({ conditionId: z.number().int() });
+export const StudyFieldsResponse = z.object({ fields: z.array(StudyFieldSummary) });
+export const CoverslipFieldsResponse = z.object({ fields: z.array(FieldSummary) });
+
+/**
+ * Upload plan (multipart text part "plan", JSON): one entry per field; `file` indexes the uploaded
+ * files in the order they were sent (form part "files"). One multi-channel file: the same `file` twice
+ * with two channels. Two single-channel files: two `file` indexes, channel 1 each.
+ * When "plan" is absent every uploaded file becomes one field from its channels 1 and 2.
+ */
+export const UploadChannelRef = z.object({
+  file: z.number().int().min(0),
+  channel: z.number().int().min(1).max(10000).default(1),
+});
+export const UploadFieldPlan = z.object({
+  name: z.string().trim().max(200).optional(),
+  ch1: UploadChannelRef,
+  ch2: UploadChannelRef,
+});
+export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
+export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;
+
+export const UploadResult = z.union([
+  z.object({ index: z.number().int(), name: z.string(), ok: z.literal(true), field: FieldSummary }),
+  z.object({ index: z.number().int(), name: z.string(), ok: z.literal(false), status: z.number().int(), error: z.string() }),
+]);
+export type UploadResult = z.infer<typeof UploadResult>;
+export const UploadResponse = z.object({ results: z.array(UploadResult), error: z.string().optional() });
+export type UploadResponse = z.infer<typeof UploadResponse>;
+
+/** Channel list of a file, read before uploading (POST /api/images/inspect is not offered; the browser reads
+ * the header itself) — kept here so the client and server agree on the names. */
+export const PreviewView = z.enum(['composite', 'ch1', 'ch2']);
+export const PreviewQuery = z.object({
+  view: PreviewView.default('composite'),
+  z: z.union([z.literal('mip'), z.coerce.number().int().min(0)]).optional(),
+  lo1: z.coerce.number().finite().optional(),
+  hi1: z.coerce.number().finite().optional(),
+  lo2: z.coerce.number().finite().optional(),
+  hi2: z.coerce.number().finite().optional(),
+  /** lower / upper percentile for automatic display ranges (default 0.1 and 99.9) */
+  plo: z.coerce.number().min(0).max(100).optional(),
+  phi: z.coerce.number().min(0).max(100).optional(),
+  /** largest side in pixels of the returned image (downscaled by powers of two, then to fit) */
+  max: z.coerce.number().int().min(16).max(65536).optional(),
+});
+export type PreviewQuery = z.infer<typeof PreviewQuery>;
+
+export const PixelsQuery = z.object({
+  z: z.union([z.literal('mip'), z.coerce.number().int().min(0)]).optional(),
+});
+
+export const DeleteFieldResponse = z.object({ ok: z.literal(true), soft: z.boolean() });

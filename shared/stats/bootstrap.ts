@@ -1,0 +1,124 @@
+/**
+ * Hierarchical (two-stage) bootstrap for replicate-aware confidence intervals.
+ *
+ * Each resample draws, independently per condition, coverslips with replacement (as many as the condition
+ * has), then cells with replacement within each drawn coverslip (as many as that coverslip has); the
+ * condition statistic is the mean of the coverslip means. Percentile intervals (Efron & Tibshirani 1993,
+ * An Introduction to the Bootstrap, ch. 13). The design follows Saravanan, Berman & Sober (2020), "Application
+ * of the hierarchical bootstrap to multi-level data in neuroscience", Neurons Behav. Data Anal. Theory 3(5),
+ * PMC7906290, and the replicate-first view of Lord et al. (2020) J. Cell Biol. 219:e202001064,
+ * doi:10.1083/jcb.202001064. Seeded with xoshiro128** (shared/analysis/prng.ts), so a result can be repeated.
+ *
+ * `transform: 'fisher_z'` averages correlation coefficients on Fisher's z scale (./fisher.ts) and reports
+ * estimates and intervals back on the r scale.
+ */
+import { Xoshiro128 } from '../analysis/prng';
+import { quantileSorted } from './descriptive';
+import { fisherZ } from './fisher';
+
+/** One condition: a list of coverslips, each a list of cell values. */
+export type Hierarchy = ArrayLike<number>[];
+
+export interface HierarchicalBootstrapOptions {
+  resamples?: number;
+  seed?: number;
+  /** two-sided confidence level, default 0.95 */
+  confidence?: number;
+  transform?: 'identity' | 'fisher_z';
+}
+
+export interface Interval {
+  estimate: number | null;
+  lower: number | null;
+  upper: number | null;
+}
+
+export interface HierarchicalBootstrapResult {
+  resamples: number;
+  seed: number;
+  confidence: number;
+  transform: 'identity' | 'fisher_z';
+  /** per condition: mean of coverslip means with its interval */
+  conditions: Interval[];
+  /** every pair i < j: estimate of condition j minus condition i */
+  differences: (Interval & { a: number; b: number })[];
+}
+
+export const DEFAULT_RESAMPLES = 2000;
+
+export function hierarchicalBootstrap(conditions: Hierarchy[], opts: HierarchicalBootstrapOptions = {}): HierarchicalBootstrapResult {
+  const B = opts.resamples ?? DEFAULT_RESAMPLES;
+  const seed = opts.seed ?? 1;
+  const conf = opts.confidence ?? 0.95;
+  const transform = opts.transform ?? 'identity';
+  if (!(Number.isInteger(B) && B >= 10 && B <= 1_000_000)) throw new RangeError(`resamples must be an integer in [10, 1e6], received ${B}`);
+  if (!(conf > 0 && conf < 1)) throw new RangeError(`confidence must be in (0, 1), received ${conf}`);
+  const fwd = transform === 'fisher_z' ? fisherZ : (v: number) => v;
+  const back = transform === 'fisher_z' ? Math.tanh : (v: number) => v;
+
+  // transformed, non-empty coverslips per condition
+  const data: Float64Array[][] = conditions.map((cond, ci) =>
+    cond
+      .map((cs, si) =>
+        Float64Array.from(cs, (v, i) => {
+          if (!Number.isFinite(v)) throw new RangeError(`condition ${ci + 1}, coverslip ${si + 1}: value ${v} at index ${i} is not finite`);
+          return fwd(v);
+        }),
+      )
+      .filter((cs) => cs.length > 0),
+  );
+  const observed = data.map((cond) => (cond.length ? back(meanOfMeans(cond)) : null));
+
+  const rng = new Xoshiro128(seed);
+  const k = data.length;
+  const boot: Float64Array[] = data.map(() => new Float64Array(B));
+  for (let b = 0; b < B; b++) {
+    for (let c = 0; c < k; c++) {
+      const cond = data[c];
+      const m = cond.length;
+      if (m === 0) continue;
+      let sum = 0;
+      for (let s = 0; s < m; s++) {
+        const cs = cond[rng.nextInt(m)];
+        const n = cs.length;
+        let t = 0;
+        for (let i = 0; i < n; i++) t += cs[rng.nextInt(n)];
+        sum += t / n;
+      }
+      boot[c][b] = back(sum / m);
+    }
+  }
+  const lo = (1 - conf) / 2;
+  const hi = 1 - lo;
+  const interval = (est: number | null, arr: Float64Array | null): Interval => {
+    if (est === null || !arr) return { estimate: null, lower: null, upper: null };
+    const s = Float64Array.from(arr).sort();
+    return { estimate: est, lower: quantileSorted(s, lo), upper: quantileSorted(s, hi) };
+  };
+  const condIntervals = data.map((cond, c) => interval(observed[c], cond.length ? boot[c] : null));
+  const differences: HierarchicalBootstrapResult['differences'] = [];
+  for (let a = 0; a < k; a++) {
+    for (let b = a + 1; b < k; b++) {
+      const ea = observed[a];
+      const eb = observed[b];
+      if (ea === null || eb === null) {
+        differences.push({ a, b, estimate: null, lower: null, upper: null });
+        continue;
+      }
+      const d = new Float64Array(B);
+      for (let i = 0; i < B; i++) d[i] = boot[b][i] - boot[a][i];
+      differences.push({ a, b, ...interval(eb - ea, d) });
+    }
+  }
+  return { resamples: B, seed, confidence: conf, transform, conditions: condIntervals, differences };
+}
+
+function meanOfMeans(cond: Float64Array[]): number {
+  let s = 0;
+  for (const cs of cond) {
+    let t = 0;
+    for (let i = 0; i < cs.length; i++) t += cs[i];
+    s += t / cs.length;
+  }
+  return s / cond.length;
+}

@@ -1,0 +1,17 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { api } from '@/lib/api';
+import { Lab } from '@shared/schemas/users';
+import { labsQueryKey } from './useLabs';
+import { usersQueryKey } from './useUsers';
+
+/** DELETE /api/labs/:id/members/:userId. */
+export function useRemoveLabMember() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: ({ labId, userId }: { labId: number; userId: number }) => api(`/labs/${labId}/members/${userId}`, { method: 'DELETE', schema: Lab }),
+    onSuccess: () => {
+      void qc.invalidateQueries({ queryKey: labsQueryKey });
+      void qc.invalidateQueries({ queryKey: usersQueryKey });
+    },
+  });
+}

@@ -1,0 +1,72 @@
+/** Freeze the study's current comparison into a report: title, notes, the coefficients to show. */
+import { useState } from 'react';
+import { useNavigate } from 'react-router';
+import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
+import { ApiError } from '@/lib/api';
+import { COEFFICIENT_LABELS, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
+import { useCreateReport } from '../api/useCreateReport';
+
+const DEFAULT: ReportCoefficient[] = ['pearson', 'spearman', 'mandersM1', 'mandersM2'];
+
+export function CreateReportDialog({ studyId, open, onClose, initialCoefficients, recipeId, runId }: { studyId: number; open: boolean; onClose: () => void; initialCoefficients?: ReportCoefficient[]; recipeId?: number; runId?: number }) {
+  const [title, setTitle] = useState('');
+  const [notes, setNotes] = useState('');
+  const [coefs, setCoefs] = useState<ReportCoefficient[]>(initialCoefficients ?? DEFAULT);
+  const create = useCreateReport(studyId);
+  const navigate = useNavigate();
+  const err = create.error instanceof ApiError ? create.error : null;
+  const submit = (e: React.FormEvent) => {
+    e.preventDefault();
+    create.mutate(
+      { title, notes, coefficients: REPORT_COEFFICIENTS.filter((k) => coefs.includes(k)), ...(recipeId ? { recipeId } : {}), ...(runId ? { runId } : {}) },
+      { onSuccess: (r) => navigate(`/reports/${r.id}`) },
+    );
+  };
+  return (
+    <Dialog
+      open={open}
+      onClose={onClose}
+      title="New report"
+      description="A report freezes today's numbers, plots, recipe versions and exclusions. Later runs or exclusions do not change it; make a newer report to show them."
+      footer={
+        <>
+          <Button onClick={onClose}>Cancel</Button>
+          <Button variant="primary" type="submit" form="create-report" pending={create.isPending}>
+            Freeze report
+          </Button>
+        </>
+      }
+    >
+      <form id="create-report" onSubmit={submit} className="flex flex-col gap-4">
+        <TextField label="Title" value={title} onChange={(e) => setTitle(e.target.value)} required maxLength={200} error={err?.fieldError('title')} data-autofocus />
+        <TextArea label="Notes" hint="Shown under the title (optional)." value={notes} onChange={(e) => setNotes(e.target.value)} rows={3} maxLength={10000} />
+        <fieldset>
+          <legend className="text-sm font-medium">Coefficients</legend>
+          <div className="mt-1 grid grid-cols-2 gap-1">
+            {REPORT_COEFFICIENTS.map((k) => (
+              <label key={k} className="flex items-center gap-2 text-sm">
+                <input type="checkbox" checked={coefs.includes(k)} onChange={(e) => setCoefs(e.target.checked ? [...coefs, k] : coefs.filter((x) => x !== k))} />
+                {COEFFICIENT_LABELS[k]}
+              </label>
+            ))}
+          </div>
+          {err?.fieldError('coefficients') && <p className="mt-1 text-xs font-medium text-danger">{err.fieldError('coefficients')}</p>}
+        </fieldset>
+        {create.error && !err?.issues.length && <ErrorNotice error={create.error} />}
+      </form>
+    </Dialog>
+  );
+}
+
+/** A button that opens the dialog (the Compare screen may place it too). */
+export function CreateReportButton(props: { studyId: number; initialCoefficients?: ReportCoefficient[]; recipeId?: number; runId?: number; label?: string }) {
+  const [open, setOpen] = useState(false);
+  return (
+    <>
+      <Button variant="primary" onClick={() => setOpen(true)}>
+        {props.label ?? 'New report'}
+      </Button>
+      {open && <CreateReportDialog {...props} open onClose={() => setOpen(false)} />}
+    </>
+  );
+}

@@ -1,0 +1,56 @@
+/** E-mail the report: addresses, a message, how long the links work, and optionally read access to the study. */
+import { useState } from 'react';
+import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
+import { ApiError } from '@/lib/api';
+import { DEFAULT_SHARE_DAYS, MAX_SHARE_DAYS } from '@shared/schemas/shares';
+import { useCreateShare } from '../api/useCreateShare';
+
+export const splitAddresses = (s: string) =>
+  s
+    .split(/[\s,;]+/)
+    .map((x) => x.trim())
+    .filter(Boolean);
+
+export function ShareDialog({ reportId, open, onClose }: { reportId: number; open: boolean; onClose: () => void }) {
+  const [emails, setEmails] = useState('');
+  const [message, setMessage] = useState('');
+  const [days, setDays] = useState(String(DEFAULT_SHARE_DAYS));
+  const [invite, setInvite] = useState(false);
+  const share = useCreateShare(reportId);
+  const err = share.error instanceof ApiError ? share.error : null;
+  const emailError = err?.issues.find((i) => i.path.startsWith('emails'))?.message;
+  const submit = (e: React.FormEvent) => {
+    e.preventDefault();
+    share.mutate({ emails: splitAddresses(emails), message, expiresInDays: Number(days), inviteToStudy: invite }, { onSuccess: onClose });
+  };
+  return (
+    <Dialog
+      open={open}
+      onClose={onClose}
+      title="Share by e-mail"
+      description="Each person gets a personal link that opens this report read-only, without an account. You can withdraw a link at any time; every opening is recorded."
+      footer={
+        <>
+          <Button onClick={onClose}>Cancel</Button>
+          <Button variant="primary" type="submit" form="share-report" pending={share.isPending}>
+            Send links
+          </Button>
+        </>
+      }
+    >
+      <form id="share-report" onSubmit={submit} className="flex flex-col gap-4">
+        <TextArea label="E-mail addresses" hint="One or more, separated by commas or new lines." value={emails} onChange={(e) => setEmails(e.target.value)} rows={2} required error={emailError} data-autofocus />
+        <TextArea label="Message" hint="Included in the e-mail (optional)." value={message} onChange={(e) => setMessage(e.target.value)} rows={3} maxLength={5000} />
+        <TextField label="Links work for (days)" type="number" min={1} max={MAX_SHARE_DAYS} value={days} onChange={(e) => setDays(e.target.value)} error={err?.fieldError('expiresInDays')} />
+        <label className="flex items-start gap-2 text-sm">
+          <input type="checkbox" className="mt-1" checked={invite} onChange={(e) => setInvite(e.target.checked)} />
+          <span>
+            Also give them a read-only account for this study
+            <span className="block text-xs text-ink-soft">They can then see this study's fields, cells and reports, nothing else. New people get an invitation to choose a password.</span>
+          </span>
+        </label>
+        {share.error && !emailError && !err?.fieldError('expiresInDays') && <ErrorNotice error={share.error} />}
+      </form>
+    </Dialog>
+  );
+}

@@ -1,0 +1,33 @@
+/** Cells imported from a label image, painted from their run-length masks (exact pixels, no tracing). */
+import { useEffect, useRef } from 'react';
+import type { FieldDetail } from '@shared/schemas/fields';
+import type { Outline } from '../outline-state';
+
+export function LabelLayer({ field, outlines, selected }: { field: FieldDetail; outlines: Outline[]; selected: string | null }) {
+  const ref = useRef<HTMLCanvasElement>(null);
+  const labels = outlines.filter((o) => o.geometry.kind === 'label');
+  const sig = labels.map((o) => o.key).join(',') + '|' + selected;
+  useEffect(() => {
+    const c = ref.current;
+    if (!c || !labels.length) return;
+    const W = field.width, H = field.height;
+    c.width = W;
+    c.height = H;
+    const ctx = c.getContext('2d');
+    if (!ctx) return;
+    const im = ctx.createImageData(W, H);
+    const d = new Uint32Array(im.data.buffer);
+    // ABGR little-endian: soft white for cells, teal for the selected one
+    const plain = 0x55f0f0f0, chosen = 0x996e760f;
+    for (const o of labels) {
+      if (o.geometry.kind !== 'label') continue;
+      const col = o.key === selected ? chosen : plain;
+      const rle = o.geometry.rle;
+      for (let k = 0; k < rle.length; k += 2) d.fill(col, rle[k], rle[k] + rle[k + 1]);
+    }
+    ctx.putImageData(im, 0, 0);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [sig, field.width, field.height]);
+  if (!labels.length) return null;
+  return <canvas ref={ref} className="pointer-events-none absolute inset-0 h-full w-full" style={{ imageRendering: 'pixelated' }} />;
+}

@@ -1,0 +1,90 @@
+/**
+ * Per-cell results beside the image: the latest run's coefficients for each cell of this field (from the
+ * Cell table API), flags for saturation and small cells; a row selects its cell on the image and the selected
+ * cell's row is highlighted. Before any run, it says so and points to the live preview.
+ */
+import { Badge, cx } from '@/components';
+import type { GridResponse } from '@shared/schemas/measurements';
+import type { Cell } from '@shared/schemas/cells';
+import { SMALL_CELL_PIXELS } from './CellsPanel';
+import { fmtCoef } from './LivePreview';
+
+const COLS: { key: 'pearson' | 'spearman' | 'kendallTauB' | 'mandersM1' | 'mandersM2' | 'icq'; label: string }[] = [
+  { key: 'pearson', label: 'r' },
+  { key: 'spearman', label: 'ρ' },
+  { key: 'kendallTauB', label: 'τ-b' },
+  { key: 'mandersM1', label: 'M1' },
+  { key: 'mandersM2', label: 'M2' },
+  { key: 'icq', label: 'ICQ' },
+];
+
+export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSaturated, loadError }: { results: GridResponse | undefined; cells: Cell[]; selectedCellId: number | null; onSelect: (cellId: number) => void; fieldSaturated: boolean; loadError: boolean }) {
+  const rows = results?.rows ?? [];
+  const measured = rows.filter((r) => r.measurementId !== null);
+  const byCell = new Map(rows.map((r) => [r.cellId, r]));
+  const list = cells.filter((c) => c.role === 'cell');
+  const src = results?.source;
+  return (
+    <section aria-label="Per-cell results" data-testid="results-table">
+      <div className="flex flex-wrap items-baseline justify-between gap-2">
+        <h3 className="text-sm font-semibold">Per-cell results</h3>
+        <span className="text-xs text-ink-soft">
+          {measured.length && src?.runId ? `latest run #${src.runId}${src.recipeName ? ` · ${src.recipeName} v${src.recipeVersion}` : ''}` : loadError ? 'results could not be loaded' : 'no run on this field yet — the live preview shows the selected cell'}
+        </span>
+      </div>
+      {list.length === 0 ? (
+        <p className="mt-2 text-sm text-ink-soft">No cells to show.</p>
+      ) : (
+        <div className="mt-2 max-h-64 overflow-auto rounded border border-ink/10">
+          <table className="w-full text-sm">
+            <thead className="sticky top-0 bg-paper text-xs text-ink-soft">
+              <tr>
+                <th className="px-2 py-1 text-left font-medium">Cell</th>
+                <th className="px-2 py-1 text-right font-medium">Pixels</th>
+                {COLS.map((c) => (
+                  <th key={c.key} className="px-2 py-1 text-right font-medium">
+                    {c.label}
+                  </th>
+                ))}
+                <th className="px-2 py-1 text-left font-medium">Flags</th>
+              </tr>
+            </thead>
+            <tbody>
+              {list.map((c) => {
+                const r = byCell.get(c.id);
+                const sel = c.id === selectedCellId;
+                const saturated = r ? r.saturated : false;
+                return (
+                  <tr
+                    key={c.id}
+                    aria-selected={sel}
+                    tabIndex={0}
+                    onClick={() => onSelect(c.id)}
+                    onKeyDown={(e) => (e.key === 'Enter' || e.key === ' ') && (e.preventDefault(), onSelect(c.id))}
+                    className={cx('cursor-pointer border-t border-ink/5 hover:bg-ink/5 focus-visible:outline-2 focus-visible:outline-accent', sel && 'bg-accent-soft/70')}
+                  >
+                    <td className="px-2 py-1">{c.name}</td>
+                    <td className="px-2 py-1 text-right font-mono">{c.pixelCount.toLocaleString()}</td>
+                    {COLS.map((k) => (
+                      <td key={k.key} className="px-2 py-1 text-right font-mono">
+                        {r ? fmtCoef(r[k.key]) : '—'}
+                      </td>
+                    ))}
+                    <td className="px-2 py-1">
+                      <span className="flex gap-1">
+                        {(saturated || (!r && fieldSaturated)) && <Badge tone="warn">{saturated ? 'saturated' : 'field saturated'}</Badge>}
+                        {c.pixelCount < SMALL_CELL_PIXELS && <Badge tone="warn">small</Badge>}
+                        {c.excluded && <Badge tone="danger">excluded</Badge>}
+                        {r?.provisional && <Badge>provisional</Badge>}
+                      </span>
+                    </td>
+                  </tr>
+                );
+              })}
+            </tbody>
+          </table>
+        </div>
+      )}
+    </section>
+  );
+}

@@ -1,0 +1,108 @@
+/**
+ * The pixel scatter's computation, shared by the Web Worker (scatter.worker.ts) and the tests: the 2-D joint
+ * histogram of a region (shared/analysis/histogram.ts), exact quadrant shares for thresholds T1, T2
+ * ("above" = strictly greater, as everywhere in Syntopy), and the live coefficient preview with the engine
+ * (shared/analysis/index.ts measurePairs, the core of measureRegion). Regions come from cellIndices (the one rasterization rule).
+ */
+import { jointHistogram, type Histogram2D } from '@shared/analysis/histogram';
+import { computeThresholds, measurePairs, collectPairs, prepare, type PreparedPairs, type RegionResult } from '@shared/analysis/index';
+import { cellIndices, type CellGeometry } from '@shared/schemas/cells';
+
+export interface ScatterInput {
+  width: number;
+  height: number;
+  ch1: Uint16Array | Float32Array;
+  ch2: Uint16Array | Float32Array;
+  /** largest value the pixel type holds (2^bits − 1), null for float data: pixels at it count as saturated */
+  saturationLevel?: number | null;
+}
+
+export interface Region {
+  /** linear indices, or null for the whole field */
+  indices: Uint32Array | null;
+  n: number;
+  x: Float64Array | Uint16Array;
+  y: Float64Array | Uint16Array;
+  max1: number;
+  max2: number;
+  otsu: { t1: number | null; t2: number | null };
+  pairs: PreparedPairs;
+  /** joint histogram, computed once per region (it does not depend on the thresholds) */
+  hist: Histogram2D;
+  /** fraction of the region's pixels at the saturation level, per channel (null for float data) */
+  saturated: { ch1: number | null; ch2: number | null };
+}
+
+export interface ScatterResult {
+  hist: Histogram2D;
+  n: number;
+  t1: number;
+  t2: number;
+  /** counts: both above, only ch1 above, only ch2 above, neither */
+  quadrants: { both: number; only1: number; only2: number; neither: number };
+  ms: number;
+}
+
+/** Collects a region's values once (re-used while thresholds are dragged). */
+export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, bins = 256): Region {
+  const indices = geometry ? cellIndices(geometry, img.width, img.height) : null;
+  const p = prepare(collectPairs(img.ch1, img.ch2, indices ? { kind: 'indices', indices } : null));
+  let max1 = 0, max2 = 0, sat1 = 0, sat2 = 0;
+  const L = img.saturationLevel ?? Infinity;
+  for (let i = 0; i < p.n; i++) {
+    const a = p.x[i], b = p.y[i];
+    if (a > max1) max1 = a;
+    if (b > max2) max2 = b;
+    if (a >= L) sat1++;
+    if (b >= L) sat2++;
+  }
+  const saturated = img.saturationLevel == null || p.n === 0 ? { ch1: null, ch2: null } : { ch1: sat1 / p.n, ch2: sat2 / p.n };
+  const th = computeThresholds(p, { method: 'otsu' });
+  // axes from 0 to just above the 99.95th percentile, so a few saturated or hot pixels don't squash the
+  // cloud into a corner; pixels beyond are counted in hist.outside (quadrant counts stay exact over all pixels)
+  const top1 = axisTop(p.x, p.n, max1), top2 = axisTop(p.y, p.n, max2);
+  const hist = jointHistogram(p.x, p.y, { binsX: bins, binsY: bins, rangeX: [0, top1], rangeY: [0, top2] }, p.n);
+  return { indices, n: p.n, x: p.x, y: p.y, max1, max2, otsu: { t1: th.ch1, t2: th.ch2 }, pairs: p, hist, saturated };
+}
+
+/** Upper axis end: the 99.95th percentile (from a 4096-bin count over [0, max]) rounded up to its bin edge. */
+export function axisTop(v: ArrayLike<number>, n: number, max: number): number {
+  if (!(max > 0)) return 1;
+  const B = 4096;
+  const c = new Uint32Array(B);
+  const k = B / max;
+  for (let i = 0; i < n; i++) {
+    const b = Math.floor(v[i] * k);
+    c[b >= B ? B - 1 : b < 0 ? 0 : b]++;
+  }
+  const want = Math.ceil(n * 0.9995);
+  let acc = 0;
+  for (let b = 0; b < B; b++) {
+    acc += c[b];
+    if (acc >= want) {
+      const edge = ((b + 1) / B) * max;
+      return Math.max(1, Math.min(max, max > 255 ? Math.ceil(edge) : edge));
+    }
+  }
+  return max;
+}
+
+/** The region's histogram (bins × bins over [0, max] per channel) and exact quadrant counts for T1, T2. */
+export function scatter(r: Region, t1: number, t2: number): ScatterResult {
+  const t0 = performance.now();
+  const hist = r.hist;
+  let both = 0, only1 = 0, only2 = 0;
+  const x = r.x, y = r.y;
+  for (let i = 0; i < r.n; i++) {
+    const a = x[i] > t1, b = y[i] > t2;
+    if (a && b) both++;
+    else if (a) only1++;
+    else if (b) only2++;
+  }
+  return { hist, n: r.n, t1, t2, quadrants: { both, only1, only2, neither: r.n - both - only1 - only2 }, ms: performance.now() - t0 };
+}
+
+/** Live coefficients of the region with manual thresholds T1, T2 (no randomization: that is for runs). */
+export function livePreview(r: Region, t1: number, t2: number): RegionResult {
+  return measurePairs(r.pairs, { method: 'manual', ch1: t1, ch2: t2 }, { skipSlow: r.n > 2_000_000 });
+}

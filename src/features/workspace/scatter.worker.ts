@@ -1,0 +1,68 @@
+/// <reference lib="webworker" />
+/**
+ * Web Worker of the pixel scatter: keeps the field's pixels, prepares the selected region once, answers
+ * threshold drags with a new histogram + quadrant counts, and computes the live coefficient preview.
+ */
+import { livePreview, prepareRegion, scatter, type Region, type ScatterInput } from './scatter-core';
+import type { CellGeometry } from '@shared/schemas/cells';
+
+export type ScatterRequest =
+  | { type: 'pixels'; width: number; height: number; format: 'uint16' | 'float32'; buffer: ArrayBuffer; saturationLevel: number | null }
+  | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean };
+
+export type ScatterReply =
+  | { type: 'scatter'; seq: number; regionKey: string; n: number; bins: number; counts: Uint32Array | null; max: number; outside: number; dataMax: [number, number]; rangeX: [number, number]; rangeY: [number, number]; t1: number; t2: number; otsu: { t1: number | null; t2: number | null }; quadrants: { both: number; only1: number; only2: number; neither: number }; saturated: { ch1: number | null; ch2: number | null }; ms: number }
+  | { type: 'measure'; seq: number; regionKey: string; result: import('@shared/analysis/types').RegionResult; ms: number }
+  | { type: 'error'; seq: number; message: string };
+
+let img: ScatterInput | null = null;
+let region: { key: string; r: Region } | null = null;
+
+self.onmessage = (e: MessageEvent<ScatterRequest>) => {
+  const m = e.data;
+  if (m.type === 'pixels') {
+    const all = m.format === 'float32' ? new Float32Array(m.buffer) : new Uint16Array(m.buffer);
+    const n = m.width * m.height;
+    img = { width: m.width, height: m.height, ch1: all.subarray(0, n), ch2: all.subarray(n, 2 * n), saturationLevel: m.saturationLevel };
+    region = null;
+    return;
+  }
+  try {
+    if (!img) throw new Error('pixels not loaded yet');
+    const t0 = performance.now();
+    const fresh = !region || region.key !== m.regionKey;
+    if (fresh) region = { key: m.regionKey, r: prepareRegion(img, m.geometry) };
+    const r = region!.r;
+    const t1 = m.t1 ?? r.otsu.t1 ?? 0;
+    const t2 = m.t2 ?? r.otsu.t2 ?? 0;
+    const s = scatter(r, t1, t2);
+    const reply: ScatterReply = {
+      type: 'scatter',
+      seq: m.seq,
+      regionKey: m.regionKey,
+      n: s.n,
+      bins: s.hist.binsX,
+      // the histogram travels once per region; threshold drags only send the quadrant counts
+      counts: fresh ? s.hist.counts.slice() : null,
+      max: s.hist.max,
+      outside: s.hist.outside,
+      dataMax: [r.max1, r.max2],
+      rangeX: s.hist.rangeX,
+      rangeY: s.hist.rangeY,
+      t1,
+      t2,
+      otsu: r.otsu,
+      quadrants: s.quadrants,
+      saturated: r.saturated,
+      ms: performance.now() - t0,
+    };
+    (self as unknown as Worker).postMessage(reply, reply.counts ? [reply.counts.buffer] : []);
+    if (m.measure) {
+      const t2m = performance.now();
+      const result = livePreview(r, t1, t2);
+      (self as unknown as Worker).postMessage({ type: 'measure', seq: m.seq, regionKey: m.regionKey, result, ms: performance.now() - t2m } satisfies ScatterReply);
+    }
+  } catch (err) {
+    (self as unknown as Worker).postMessage({ type: 'error', seq: m.seq, message: (err as Error).message } satisfies ScatterReply);
+  }
+};

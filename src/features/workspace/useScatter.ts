@@ -1,0 +1,100 @@
+/**
+ * The pixel scatter's Web Worker from React: sends the field's pixels once, then "latest request wins"
+ * updates (a request sent while the worker is busy replaces any other waiting one).
+ */
+import { useEffect, useRef, useState } from 'react';
+import type { CellGeometry } from '@shared/schemas/cells';
+import type { RegionResult } from '@shared/analysis/types';
+import type { FieldPixelData } from './api/useFieldPixels';
+import type { ScatterReply, ScatterRequest } from './scatter.worker';
+
+export type ScatterView = Extract<ScatterReply, { type: 'scatter' }> & { counts: Uint32Array };
+export interface LiveResult {
+  regionKey: string;
+  result: RegionResult;
+  t1: number;
+  t2: number;
+  ms: number;
+}
+
+export function useScatter(pixels: FieldPixelData | undefined, saturationLevel: number | null) {
+  const worker = useRef<Worker | null>(null);
+  const busy = useRef(false);
+  const waiting = useRef<Extract<ScatterRequest, { type: 'update' }> | null>(null);
+  const seq = useRef(0);
+  const countsByRegion = useRef(new Map<string, Uint32Array>());
+  const lastThresholds = useRef<{ t1: number; t2: number }>({ t1: 0, t2: 0 });
+  const [view, setView] = useState<ScatterView | null>(null);
+  const [live, setLive] = useState<LiveResult | null>(null);
+  const [error, setError] = useState<string | null>(null);
+  const [ready, setReady] = useState(false);
+
+  useEffect(() => {
+    if (!pixels) return;
+    const w = new Worker(new URL('./scatter.worker.ts', import.meta.url), { type: 'module' });
+    worker.current = w;
+    countsByRegion.current.clear();
+    const copy = pixels.data.slice();
+    w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, format: pixels.format, buffer: copy.buffer, saturationLevel } satisfies ScatterRequest, [copy.buffer]);
+    const pump = () => {
+      const next = waiting.current;
+      if (!next) return;
+      waiting.current = null;
+      busy.current = true;
+      w.postMessage(next);
+    };
+    w.onmessage = (e: MessageEvent<ScatterReply>) => {
+      const m = e.data;
+      if (m.type === 'scatter') {
+        if (m.counts) countsByRegion.current.set(m.regionKey, m.counts);
+        const counts = m.counts ?? countsByRegion.current.get(m.regionKey);
+        lastThresholds.current = { t1: m.t1, t2: m.t2 };
+        if (counts) setView({ ...m, counts });
+        setError(null);
+        // a measure reply follows when asked for; otherwise the worker is free now
+        if (!pendingMeasure.current.has(m.seq)) {
+          busy.current = false;
+          pump();
+        }
+      } else if (m.type === 'measure') {
+        pendingMeasure.current.delete(m.seq);
+        setLive({ regionKey: m.regionKey, result: m.result, ms: m.ms, ...lastThresholds.current });
+        busy.current = false;
+        pump();
+      } else {
+        pendingMeasure.current.delete(m.seq);
+        setError(m.message);
+        busy.current = false;
+        pump();
+      }
+    };
+    w.onerror = (e) => setError(e.message || 'the scatter worker failed');
+    setReady(true);
+    return () => {
+      w.terminate();
+      worker.current = null;
+      busy.current = false;
+      waiting.current = null;
+      setReady(false);
+    };
+  }, [pixels, saturationLevel]);
+
+  const pendingMeasure = useRef(new Set<number>());
+
+  /** Ask for the scatter of a region (null geometry = whole field); `measure` adds the live coefficients. */
+  const request = (regionKey: string, geometry: CellGeometry | null, t1: number | null, t2: number | null, measure: boolean) => {
+    const w = worker.current;
+    if (!w) return;
+    const msg: Extract<ScatterRequest, { type: 'update' }> = { type: 'update', seq: ++seq.current, regionKey, geometry, t1, t2, measure };
+    if (measure) pendingMeasure.current.add(msg.seq);
+    if (waiting.current?.measure) pendingMeasure.current.delete(waiting.current.seq);
+    waiting.current = msg;
+    if (!busy.current) {
+      waiting.current = null;
+      busy.current = true;
+      w.postMessage(msg);
+    }
+  };
+
+  return { ready, view, live, error, request };
+}

@@ -1,0 +1,109 @@
+/**
+ * Each demo account signs in through the real server and sees what its role allows: its places in the main
+ * navigation, its part of Home, and (for the biologist) study structure editing end to end.
+ * Screenshots: test-results/shell-*.png. (common practice)
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer } from './harness.js';
+
+let srv: RunningServer;
+let browser: Browser;
+beforeAll(async () => {
+  srv = await startServer();
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await srv?.stop();
+});
+
+const navOf = async (page: Awaited<ReturnType<typeof newPage>>) => {
+  const nav = page.getByRole('navigation', { name: 'Main' });
+  await nav.waitFor();
+  return (await nav.getByRole('link').allTextContents()).map((s) => s.trim());
+};
+
+describe('demo accounts in the browser', () => {
+  it('facility manager: review queue, people, outbox', async () => {
+    const page = await newPage(browser, srv);
+    await signIn(page, srv, 'manager@demo.test');
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Account']);
+    await page.getByRole('heading', { name: 'Facility' }).waitFor();
+    await page.getByText('Recipes waiting for review').waitFor();
+    await shot(page, 'shell-manager-home');
+    await page.getByRole('link', { name: 'People & labs' }).click();
+    await page.getByRole('heading', { name: 'People', exact: true }).waitFor();
+    for (const e of ['manager@demo.test', 'microscopist@demo.test', 'biologist@demo.test', 'collaborator@demo.test']) await page.getByText(e, { exact: true }).first().waitFor();
+    await shot(page, 'shell-manager-people');
+    await page.getByRole('link', { name: 'Outbox' }).click();
+    await page.getByRole('heading', { name: 'Outbox' }).waitFor();
+    await shot(page, 'shell-manager-outbox');
+    expect(page.errors).toEqual([]);
+    await page.context().close();
+  });
+
+  it('microscopist: fields and runs on Home; no people or outbox', async () => {
+    const page = await newPage(browser, srv);
+    await signIn(page, srv, 'microscopist@demo.test');
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
+    await page.getByRole('heading', { name: 'Imaging' }).waitFor();
+    await page.getByRole('heading', { name: 'Fields waiting for cells' }).waitFor();
+    await shot(page, 'shell-microscopist-home');
+    await page.goto(`${srv.url}/people`);
+    await page.getByRole('heading', { name: 'Nothing here' }).waitFor();
+    expect(page.errors).toEqual([]);
+    await page.context().close();
+  });
+
+  it('biologist: own studies on Home; adds, renames, moves and deletes a condition', async () => {
+    const page = await newPage(browser, srv);
+    await signIn(page, srv, 'biologist@demo.test');
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
+    await page.getByRole('heading', { name: 'Your studies' }).waitFor();
+    await shot(page, 'shell-biologist-home');
+    await page.getByRole('link', { name: 'Studies' }).click();
+    await page.getByRole('heading', { name: 'Studies', level: 1 }).waitFor();
+    await page.getByRole('table').getByRole('link').first().click();
+    await page.getByRole('navigation', { name: 'Study pages' }).waitFor();
+    await shot(page, 'shell-biologist-study');
+    const before = await page.getByRole('heading', { level: 2 }).count();
+
+    await page.getByRole('button', { name: 'Add condition' }).first().click();
+    const add = page.getByRole('dialog', { name: 'Add a condition' });
+    await add.getByLabel('Condition name').fill('Browser check');
+    await add.getByRole('button', { name: 'Add condition' }).click();
+    await page.getByRole('heading', { name: 'Browser check', level: 2, exact: true }).waitFor();
+    expect(await page.getByRole('heading', { level: 2 }).count()).toBe(before + 1);
+
+    await page.getByRole('button', { name: 'Rename condition Browser check' }).click();
+    const ren = page.getByRole('dialog', { name: 'Rename condition' });
+    await ren.getByLabel('Condition name').fill('Browser check 2');
+    await ren.getByRole('button', { name: 'Rename' }).click();
+    await page.getByRole('heading', { name: 'Browser check 2', level: 2, exact: true }).waitFor();
+
+    await page.getByRole('button', { name: 'Move condition Browser check 2 up' }).click();
+    await page.getByRole('status').filter({ hasText: 'moved to position' }).waitFor({ state: 'attached' });
+
+    await page.getByRole('button', { name: 'Delete condition Browser check 2' }).click();
+    await page.getByRole('alertdialog').getByRole('button', { name: 'Delete condition' }).click();
+    await page.getByRole('heading', { name: 'Browser check 2', level: 2, exact: true }).waitFor({ state: 'detached' });
+    await shot(page, 'shell-biologist-study-after');
+    expect(page.errors).toEqual([]);
+    await page.context().close();
+  });
+
+  it('collaborator: only what was shared; signs out', async () => {
+    const page = await newPage(browser, srv);
+    await signIn(page, srv, 'collaborator@demo.test');
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Account']);
+    await page.getByRole('heading', { name: 'Shared with you' }).waitFor();
+    await shot(page, 'shell-collaborator-home');
+    await page.getByRole('button', { name: 'Sign out' }).click();
+    await page.waitForURL(/\/signin/);
+    await page.goto(`${srv.url}/account`);
+    await page.waitForURL(/\/signin\?next=%2Faccount/);
+    expect(page.errors).toEqual([]);
+    await page.context().close();
+  });
+});

@@ -1,0 +1,101 @@
+/**
+ * Browser journey through the field workspace (headless Chromium via playwright-core, real server with the
+ * seeded demo study): sign in as the demo microscopist, open a demo field, draw a polygon with the mouse,
+ * see it in the Cells list and saved (a reload keeps it), see its live coefficients (marked preview), drag a
+ * vertex and undo it. Screenshots: test-results/workspace-*.png.
+ */
+import { afterAll, beforeAll, expect, it } from 'vitest';
+import type { Browser } from 'playwright-core';
+import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer, type TrackedPage } from './harness.js';
+
+let srv: RunningServer;
+let browser: Browser;
+beforeAll(async () => {
+  srv = await startServer();
+  browser = await launchBrowser();
+});
+afterAll(async () => {
+  await browser?.close();
+  await srv?.stop();
+});
+
+async function apiGet<T>(page: TrackedPage, path: string): Promise<T> {
+  return page.evaluate(async (p) => {
+    const r = await fetch(p, { credentials: 'same-origin' });
+    if (!r.ok) throw new Error(`${p}: ${r.status}`);
+    return r.json();
+  }, path);
+}
+
+it('draws a polygon, keeps it after a reload and shows its live coefficients', async () => {
+  const page = await newPage(browser, srv);
+  await signIn(page, srv, 'microscopist@demo.test');
+  // a demo field of the demo study
+  const studies = await apiGet<{ studies: { id: number; isDemo?: boolean; name: string }[] }>(page, '/api/studies');
+  const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
+  expect(study).toBeTruthy();
+  const fields = await apiGet<{ fields: { id: number; name: string; width: number; height: number }[] }>(page, `/api/studies/${study.id}/fields`);
+  expect(fields.fields.length).toBeGreaterThan(0);
+  const field = fields.fields[0];
+  const before = await apiGet<{ cells: { id: number; name: string }[] }>(page, `/api/fields/${field.id}/cells`);
+
+  await page.goto(`${srv.url}/studies/${study.id}/fields/${field.id}`);
+  const viewer = page.getByTestId('field-viewer');
+  await viewer.waitFor();
+  await page.getByText('Loading image…').waitFor({ state: 'detached', timeout: 30_000 });
+  await page.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 });
+  await shot(page, 'workspace-01-open');
+
+  // polygon tool (P), four clicks inside the image, then click the first point to close
+  await page.keyboard.press('p');
+  const box = (await viewer.boundingBox())!;
+  const cx = box.x + box.width / 2, cy = box.y + box.height / 2;
+  const pts: [number, number][] = [[cx - 60, cy - 50], [cx + 50, cy - 60], [cx + 70, cy + 40], [cx - 40, cy + 60]];
+  for (const [x, y] of pts) await page.mouse.click(x, y);
+  await page.mouse.click(pts[0][0], pts[0][1]);
+  const name = `Cell ${before.cells.filter((c) => /^Cell /.test(c.name)).length + 1}`;
+  const list = page.getByTestId('cells-list');
+  await list.getByText(name, { exact: true }).waitFor();
+  await page.getByText('All changes saved').waitFor({ timeout: 15_000 });
+  await shot(page, 'workspace-02-drawn');
+
+  const after = await apiGet<{ cells: { id: number; name: string; pixelCount: number; geometry: { kind: string } }[] }>(page, `/api/fields/${field.id}/cells`);
+  const made = after.cells.find((c) => c.name === name)!;
+  expect(made).toBeTruthy();
+  expect(made.geometry.kind).toBe('polygon');
+  expect(made.pixelCount).toBeGreaterThan(20);
+
+  // live coefficients of the selected (new) cell, marked preview
+  const preview = page.getByTestId('live-preview');
+  await preview.getByText('preview').waitFor();
+  await expect.poll(async () => preview.locator('[data-coef="pearson"]').textContent(), { timeout: 20_000 }).toMatch(/^-?\d\.\d{3}$/);
+  await expect.poll(async () => preview.textContent(), { timeout: 20_000 }).toContain(`${made.pixelCount.toLocaleString('en-US')} pixels`);
+  await shot(page, 'workspace-03-live');
+
+  // reload keeps it
+  await page.reload();
+  await page.getByTestId('cells-list').getByText(name, { exact: true }).waitFor();
+  // select it from the list; the scatter follows the selection
+  await page.getByTestId('cells-list').getByText(name, { exact: true }).click();
+  await page.getByTestId('pixel-scatter').waitFor();
+  await expect.poll(async () => page.getByTestId('live-preview').locator('[data-coef="pearson"]').textContent(), { timeout: 20_000 }).toMatch(/^-?\d\.\d{3}$/);
+  await page.getByText(/Display range and view change the picture only/).waitFor();
+  await page.getByText(/not that the molecules interact/).waitFor();
+  await shot(page, 'workspace-04-reloaded');
+
+  // select tool, drag a vertex: saved with a new pixel count; undo restores the old one
+  await page.keyboard.press('v');
+  await page.mouse.move(pts[2][0], pts[2][1]);
+  await page.mouse.down();
+  await page.mouse.move(pts[2][0] + 40, pts[2][1] + 30, { steps: 6 });
+  await page.mouse.up();
+  await expect
+    .poll(async () => (await apiGet<{ cells: { id: number; pixelCount: number }[] }>(page, `/api/fields/${field.id}/cells`)).cells.find((c) => c.id === made.id)?.pixelCount, { timeout: 15_000 })
+    .toBeGreaterThan(made.pixelCount);
+  await page.keyboard.press('Control+z');
+  await expect
+    .poll(async () => (await apiGet<{ cells: { id: number; pixelCount: number }[] }>(page, `/api/fields/${field.id}/cells`)).cells.find((c) => c.id === made.id)?.pixelCount, { timeout: 15_000 })
+    .toBe(made.pixelCount);
+  await shot(page, 'workspace-05-undo');
+  expect(page.errors).toEqual([]);
+});

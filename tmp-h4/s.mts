@@ -1,0 +1,10 @@
+import sharp from 'sharp';
+const raw = new Uint8Array(64*48).map((_, i) => i % 256);
+const png = await sharp(raw, { raw: { width: 64, height: 48, channels: 1 } }).png().toBuffer();
+console.log(await sharp(png).metadata().then(m => [m.channels, m.space]));
+const o = await sharp(png).raw().toBuffer({ resolveWithObject: true });
+console.log(o.info.channels);
+const png2 = await sharp(raw, { raw: { width: 64, height: 48, channels: 1 } }).toColourspace('b-w').png().toBuffer();
+console.log(await sharp(png2).metadata().then(m => [m.channels, m.space]));
+const o2 = await sharp(png2).raw().toBuffer({ resolveWithObject: true });
+console.log('raw of b-w', o2.info.channels);
