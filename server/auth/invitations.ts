@@ -4,6 +4,7 @@ import { and, eq, isNull } from 'drizzle-orm';
 import type { Request } from 'express';
 import type { AppContext } from '../context.js';
 import { invitations, users } from '../db/schema.js';
+import { HttpError } from '../http/errors.js';
 
 export const INVITATION_DAYS = 7;
 
@@ -35,12 +36,17 @@ export async function sendInvitationMail(ctx: AppContext, req: Request | undefin
   const link = `${publicOrigin(ctx, req)}/invite/${token}`;
   const until = expiresAt.slice(0, 10);
   const by = inviter ? `${inviter} invited you` : 'You were invited';
-  await ctx.mail.send({
-    to: to.email,
-    subject: 'Your Syntopy account: choose a password',
-    text: `Hello ${to.name},\n\n${by} to Syntopy, the shared place for co-localization studies.\nOpen this link to choose your password (it works once, until ${until}):\n\n${link}\n\nIf you did not expect this message, ignore it.\n`,
-    html: `<p>Hello ${escapeHtml(to.name)},</p><p>${escapeHtml(by)} to Syntopy, the shared place for co-localization studies.</p><p><a href="${escapeHtml(link)}">Choose your password</a> (the link works once, until ${until}).</p><p>If you did not expect this message, ignore it.</p>`,
-  });
+  try {
+    await ctx.mail.send({
+      to: to.email,
+      subject: 'Your Syntopy account: choose a password',
+      text: `Hello ${to.name},\n\n${by} to Syntopy, the shared place for co-localization studies.\nOpen this link to choose your password (it works once, until ${until}):\n\n${link}\n\nIf you did not expect this message, ignore it.\n`,
+      html: `<p>Hello ${escapeHtml(to.name)},</p><p>${escapeHtml(by)} to Syntopy, the shared place for co-localization studies.</p><p><a href="${escapeHtml(link)}">Choose your password</a> (the link works once, until ${until}).</p><p>If you did not expect this message, ignore it.</p>`,
+    });
+  } catch (e) {
+    // the account exists; the manager can send the invitation again once mail works
+    throw new HttpError(502, `the account for ${to.email} exists, but the invitation e-mail could not be sent (${(e as Error).message ?? 'mail error'}); use "send again" once mail works`);
+  }
   return link;
 }
 

@@ -123,7 +123,8 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       JOIN fields f ON f.id = c.field_id AND f.status = 'ready'
       JOIN coverslips cs ON cs.id = f.coverslip_id
       JOIN conditions cd ON cd.id = cs.condition_id AND cd.study_id = @studyId
-      JOIN src m ON m.cell_id = c.id
+      JOIN latest l ON l.cell_id = c.id
+      JOIN measurements m ON m.id = l.mid
       WHERE c.deleted_at IS NULL AND c.role = 'cell'
       ORDER BY c.id`,
     )

@@ -54,7 +54,7 @@ const SORT_SQL: Record<SortKey, [string, boolean][]> = {
 };
 
 export interface ResolvedSource extends SourceInfo {
-  /** SQL of a CTE named src (one measurement row per cell) and its parameters */
+  /** SQL of a CTE named latest(cell_id, mid): the measurement id to use per cell; and its parameters */
   cte: string;
   params: Record<string, number>;
 }
@@ -71,7 +71,7 @@ export function resolveSource(ctx: AppContext, studyId: number, q: { runId?: num
       recipeId: run.recipeId,
       recipeName: run.name,
       recipeVersion: run.version,
-      cte: 'src AS (SELECT * FROM measurements WHERE run_id = @runId)',
+      cte: 'latest AS (SELECT cell_id, id AS mid FROM measurements WHERE run_id = @runId)',
       params: { runId: run.id },
     };
   }
@@ -83,18 +83,32 @@ export function resolveSource(ctx: AppContext, studyId: number, q: { runId?: num
     recipeId = latest?.recipeId;
   }
   if (recipeId === undefined) {
-    return { runId: null, recipeId: null, recipeName: null, recipeVersion: null, cte: 'src AS (SELECT * FROM measurements WHERE 0)', params: {} };
+    return { runId: null, recipeId: null, recipeName: null, recipeVersion: null, cte: 'latest AS (SELECT cell_id, id AS mid FROM measurements WHERE 0)', params: {} };
   }
   const rc = db.prepare('SELECT id, name, version FROM recipes WHERE id = ?').get(recipeId) as { id: number; name: string; version: number } | undefined;
   if (!rc) throw badRequest(`recipeId: no recipe ${recipeId}`, { issues: [{ path: 'recipeId', message: 'no such recipe' }] });
+  const runIds = (
+    db.prepare('SELECT r.id FROM runs r WHERE r.study_id = ? AND r.recipe_id = ? AND EXISTS (SELECT 1 FROM measurements m WHERE m.run_id = r.id)').all(studyId, rc.id) as { id: number }[]
+  ).map((x) => x.id);
+  if (runIds.length <= 1) {
+    // one run (the common case): its rows through the (run_id, cell_id) index, no grouping needed
+    return {
+      runId: null,
+      recipeId: rc.id,
+      recipeName: rc.name,
+      recipeVersion: rc.version,
+      cte: 'latest AS (SELECT cell_id, id AS mid FROM measurements WHERE run_id = @onlyRun)',
+      params: { onlyRun: runIds[0] ?? 0 },
+    };
+  }
   return {
     runId: null,
     recipeId: rc.id,
     recipeName: rc.name,
     recipeVersion: rc.version,
-    cte: `src AS (SELECT * FROM measurements WHERE id IN (
-        SELECT max(m2.id) FROM runs r JOIN measurements m2 ON m2.run_id = r.id
-        WHERE r.study_id = @studyId AND r.recipe_id = @recipeId GROUP BY m2.cell_id))`,
+    // materialized: one pass over the recipe's runs (index measurements_run_cell), then an automatic index on cell_id
+    cte: `latest AS MATERIALIZED (SELECT m2.cell_id AS cell_id, max(m2.id) AS mid FROM runs r JOIN measurements m2 ON m2.run_id = r.id
+        WHERE r.study_id = @studyId AND r.recipe_id = @recipeId GROUP BY m2.cell_id)`,
     params: { studyId, recipeId: rc.id },
   };
 }
@@ -143,7 +157,8 @@ export function gridFrom(studyId: number, src: ResolvedSource, f: GridFilters) {
     JOIN fields f ON f.id = c.field_id AND f.status = 'ready'
     JOIN coverslips cs ON cs.id = f.coverslip_id
     JOIN conditions cd ON cd.id = cs.condition_id AND cd.study_id = @studyId
-    LEFT JOIN src m ON m.cell_id = c.id
+    LEFT JOIN latest l ON l.cell_id = c.id
+    LEFT JOIN measurements m ON m.id = l.mid
     LEFT JOIN users ux ON ux.id = c.excluded_by
     WHERE ${where.join(' AND ')}`;
   return { with: `WITH ${src.cte}`, from, params };

@@ -17,7 +17,8 @@
  * horizontal (2) or floating-point (3) predictor.
  */
 import fsp from 'node:fs/promises';
-import { fromArrayBuffer } from 'geotiff';
+import zlib from 'node:zlib';
+import { addDecoder, BaseDecoder, fromArrayBuffer } from 'geotiff';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
 import { bufferReader, checkPageExtents, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
@@ -77,8 +78,62 @@ export interface DecodeOptions {
 export type TiffInput = Uint8Array | string;
 
 const DEFAULT_BUDGET = 2 ** 28;
+/** most strips/tiles per page (keeps the offset tables of a hostile header small) */
+const MAX_BLOCKS = 1 << 22;
 const COMPRESSION_NAMES: Record<number, string> = { 1: 'none', 5: 'LZW', 8: 'Deflate', 32946: 'Deflate', 32773: 'PackBits' };
 const UNSUPPORTED_COMPRESSION: Record<number, string> = { 2: 'CCITT', 3: 'CCITT G3', 4: 'CCITT G4', 6: 'old JPEG', 7: 'JPEG', 34712: 'JPEG 2000', 34887: 'LERC', 34925: 'LZMA', 50000: 'Zstandard', 50001: 'WebP' };
+
+/**
+ * Deflate with a ceiling: a block may not unpack to more than its declared tile/strip size, so a small
+ * hostile file cannot expand into gigabytes ("decompression bomb"). Replaces geotiff's unbounded inflate.
+ */
+interface DecoderParams {
+  tileWidth: number;
+  tileHeight: number;
+  bitsPerSample: number[];
+  planarConfiguration: number;
+  predictor: number;
+  maxBytes: number;
+}
+class BoundedDeflateDecoder extends BaseDecoder {
+  decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
+    const p = (this as unknown as { parameters: DecoderParams }).parameters;
+    try {
+      const out = zlib.inflateSync(new Uint8Array(buffer), { maxOutputLength: Math.max(1, p.maxBytes) });
+      return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (code === 'ERR_BUFFER_TOO_LARGE' || /larger than|maxOutputLength/i.test(String((e as Error).message))) {
+        throw new ImageInputError(`a Deflate-compressed block unpacks to more than its declared ${p.maxBytes} bytes; the file is damaged or not a genuine image`);
+      }
+      throw new ImageInputError(`a Deflate-compressed block could not be unpacked; the file is damaged (${(e as Error).message})`);
+    }
+  }
+}
+type Ifd = { hasTag(t: string): boolean; loadValue(t: string): Promise<unknown> };
+addDecoder(
+  [8, 32946],
+  async () => BoundedDeflateDecoder as never,
+  (async (fd: Ifd) => {
+    const tiled = !fd.hasTag('StripOffsets');
+    const width = Number(await fd.loadValue('ImageWidth'));
+    const height = Number(await fd.loadValue('ImageLength'));
+    const bits = Array.from((await fd.loadValue('BitsPerSample')) as ArrayLike<number>);
+    const planar = Number((await fd.loadValue('PlanarConfiguration')) ?? 1) || 1;
+    const tileWidth = tiled ? Number(await fd.loadValue('TileWidth')) : width;
+    const tileHeight = tiled ? Number(await fd.loadValue('TileLength')) : Math.min(height, Number((await fd.loadValue('RowsPerStrip')) || height));
+    const bytesPerPixel = planar === 2 ? bits[0] / 8 : bits.reduce((a, b) => a + b, 0) / 8;
+    return {
+      tileWidth,
+      tileHeight,
+      bitsPerSample: bits,
+      planarConfiguration: planar,
+      predictor: Number(await fd.loadValue('Predictor')) || 1,
+      maxBytes: Math.ceil(tileWidth * tileHeight * bytesPerPixel),
+    } satisfies DecoderParams;
+  }) as never,
+  false,
+);
 
 interface PlaneRef {
   page: number;
@@ -113,6 +168,13 @@ function checkPageSupported(p: PageHeader, channelLabel: string) {
   if (fmt !== 1 && fmt !== 3 && fmt !== 4) throw new ImageInputError(`${channelLabel} has sample format code ${fmt}, which is not supported`, 415);
   if ((fmt === 1 || fmt === 4) && bits !== 8 && bits !== 16 && bits !== 32) {
     throw new ImageInputError(`${channelLabel} has ${bits}-bit pixels; only 8, 16 and 32-bit integer or 32-bit float pixels are supported`, 415);
+  }
+  if (p.tiled && (p.tileWidth <= 0 || p.tileHeight <= 0 || p.tileWidth > 65536 || p.tileHeight > 65536)) {
+    throw new ImageInputError(`${channelLabel} declares tiles of ${p.tileWidth}×${p.tileHeight} pixels; the file is damaged`);
+  }
+  const blocks = p.tiled ? Math.ceil(p.width / p.tileWidth) * Math.ceil(p.height / p.tileHeight) : Math.ceil(p.height / p.rowsPerStrip);
+  if (blocks * (p.planar === 2 ? p.samplesPerPixel : 1) > MAX_BLOCKS) {
+    throw new ImageInputError(`${channelLabel} is cut into ${blocks} ${p.tiled ? 'tiles' : 'strips'}, more than the ${MAX_BLOCKS} Syntopy reads; re-save it with larger strips or tiles`, 413);
   }
   if (p.photometric === 3) throw new ImageInputError(`${channelLabel} is a palette (indexed-colour) image, not intensity data`, 415);
   if (p.photometric === 6) throw new ImageInputError(`${channelLabel} is stored as YCbCr colour, not intensity data`, 415);

@@ -304,7 +304,25 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     const mid = condVals.length ? median(condVals) : 0;
     scatterCell = inField.sort((a, b) => Math.abs((a.values[k] as number) - mid) - Math.abs((b.values[k] as number) - mid) || a.cellId - b.cellId)[0] ?? used[0];
   }
-  const scatter = scatterCell ? await cellScatter(ctx, fieldById.get(scatterCell.fieldId)!, cellRows.find((x) => x.id === scatterCell!.cellId)!, scatterCell) : null;
+  // the scatter of every measured cell of the representative fields (at most MAX_SCATTERS), so a reader can pick one
+  const zOpt = zForPixels(snapRecipes[0]?.settings);
+  const pixelCache = new Map<number, Promise<FieldPixels | null>>();
+  const pixelsOf = (fieldId: number) => {
+    let p = pixelCache.get(fieldId);
+    if (!p) pixelCache.set(fieldId, (p = loadPixels(ctx, fieldId, zOpt)));
+    return p;
+  };
+  const scatterTargets = [
+    ...(scatterCell ? [scatterCell] : []),
+    ...used.filter((x) => x !== scatterCell && composites.some((p) => p.fieldId === x.fieldId)),
+  ].slice(0, MAX_SCATTERS);
+  const scatters: CellScatter[] = [];
+  for (const sc of scatterTargets) {
+    const px = await pixelsOf(sc.fieldId);
+    const one = px ? cellScatter(px, fieldById.get(sc.fieldId)!, cellRows.find((x) => x.id === sc.cellId)!, sc) : null;
+    if (one) scatters.push(one);
+  }
+  const scatter = scatterCell ? (scatters.find((x) => x.cellId === scatterCell!.cellId) ?? null) : null;
 
   // ---- saturation
   const sat1 = fieldRows.map((f) => f.facts?.ch1?.saturatedFraction).filter(finite);
@@ -348,6 +366,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     comparisons,
     composites,
     scatter,
+    scatters,
     saturation,
     methods: '',
     cautions: [...CAUTIONS],
@@ -436,34 +455,55 @@ function labelMask(g: CellGeometry, n: number): Uint8Array | null {
 
 const SCATTER_BINS = 64;
 
-async function cellScatter(ctx: AppContext, f: typeof fields.$inferSelect, cell: typeof cells.$inferSelect, sc: SnapshotCell): Promise<CellScatter | null> {
+type FieldPixels = { width: number; height: number; ch1: ArrayLike<number>; ch2: ArrayLike<number> };
+
+export const MAX_SCATTERS = 24;
+
+/** z plane for the scatter: the recipe's slice, or the maximum-intensity projection for 'mip' and 'range' */
+function zForPixels(settings: Record<string, unknown> | undefined): { z?: number | 'mip' } {
+  const z = settings?.z as { mode?: string; slice?: number } | undefined;
+  if (z?.mode === 'slice' && typeof z.slice === 'number') return { z: z.slice };
+  if (z?.mode === 'mip' || z?.mode === 'range') return { z: 'mip' };
+  return {};
+}
+
+async function loadPixels(ctx: AppContext, fieldId: number, z: { z?: number | 'mip' }): Promise<FieldPixels | null> {
   const intake = await optionalModule('intake');
   if (!intake || typeof intake.loadFieldPixels !== 'function') return null;
   try {
-    const px = await (intake.loadFieldPixels as (c: AppContext, id: number, o: object) => Promise<{ width: number; height: number; ch1: ArrayLike<number>; ch2: ArrayLike<number> }>)(ctx, f.id, {});
-    const shape = geometryShape(cell.geometry);
-    const mask = shape ? rasterize(shape, px.width, px.height) : labelMask(cell.geometry, px.width * px.height);
-    if (!mask) return null;
-    let max1 = 0;
-    let max2 = 0;
-    let n = 0;
-    for (let i = 0; i < mask.length; i++)
-      if (mask[i]) {
-        n++;
-        if (px.ch1[i] > max1) max1 = px.ch1[i];
-        if (px.ch2[i] > max2) max2 = px.ch2[i];
-      }
-    const counts = new Array<number>(SCATTER_BINS * SCATTER_BINS).fill(0);
-    const b1 = max1 > 0 ? SCATTER_BINS / (max1 * (1 + 1e-9)) : 0;
-    const b2 = max2 > 0 ? SCATTER_BINS / (max2 * (1 + 1e-9)) : 0;
-    for (let i = 0; i < mask.length; i++)
-      if (mask[i]) {
-        const c = Math.min(SCATTER_BINS - 1, Math.floor(px.ch1[i] * b1));
-        const r = Math.min(SCATTER_BINS - 1, Math.floor(px.ch2[i] * b2));
-        counts[r * SCATTER_BINS + c]++;
-      }
-    return { cellId: cell.id, cellName: cell.name, fieldName: f.name, bins: SCATTER_BINS, max1, max2, counts, threshold1: sc.threshold1, threshold2: sc.threshold2, pixels: n };
+    return await (intake.loadFieldPixels as (c: AppContext, id: number, o: object) => Promise<FieldPixels>)(ctx, fieldId, z);
   } catch {
     return null; // pixels unreadable (file missing from the store): the report shows no scatter
   }
+}
+
+/** 2-D histogram of the cell's raw (ch1, ch2) pairs on [0, max] × [0, max], SCATTER_BINS per axis. */
+function cellScatter(px: FieldPixels, f: typeof fields.$inferSelect, cell: typeof cells.$inferSelect, sc: SnapshotCell): CellScatter | null {
+  const shape = geometryShape(cell.geometry);
+  let mask: Uint8Array | null;
+  try {
+    mask = shape ? rasterize(shape, px.width, px.height) : labelMask(cell.geometry, px.width * px.height);
+  } catch {
+    return null;
+  }
+  if (!mask) return null;
+  let max1 = 0;
+  let max2 = 0;
+  let n = 0;
+  for (let i = 0; i < mask.length; i++)
+    if (mask[i]) {
+      n++;
+      if (px.ch1[i] > max1) max1 = px.ch1[i];
+      if (px.ch2[i] > max2) max2 = px.ch2[i];
+    }
+  const counts = new Array<number>(SCATTER_BINS * SCATTER_BINS).fill(0);
+  const b1 = max1 > 0 ? SCATTER_BINS / (max1 * (1 + 1e-9)) : 0;
+  const b2 = max2 > 0 ? SCATTER_BINS / (max2 * (1 + 1e-9)) : 0;
+  for (let i = 0; i < mask.length; i++)
+    if (mask[i]) {
+      const c = Math.min(SCATTER_BINS - 1, Math.max(0, Math.floor(px.ch1[i] * b1)));
+      const r = Math.min(SCATTER_BINS - 1, Math.max(0, Math.floor(px.ch2[i] * b2)));
+      counts[r * SCATTER_BINS + c]++;
+    }
+  return { cellId: cell.id, cellName: cell.name, fieldName: f.name, bins: SCATTER_BINS, max1, max2, counts, threshold1: sc.threshold1, threshold2: sc.threshold2, pixels: n };
 }

@@ -26,8 +26,7 @@ import {
   type CellGeometry,
 } from '../../shared/schemas/cells.js';
 import { labelRegions } from '../../shared/analysis/labels.js';
-import { otsuThreshold } from '../../shared/analysis/otsu.js';
-import { segmentCells } from '../../shared/analysis/segment.js';
+import { autoLevel, segmentCells } from '../../shared/analysis/segment.js';
 
 type CellRow = typeof cells.$inferSelect;
 type FieldRow = typeof fields.$inferSelect;
@@ -238,7 +237,7 @@ export default function cellsRoutes(ctx: AppContext) {
       for (let i = 0; i < n; i++) s[i] = px.ch1[i] + px.ch2[i];
       values = s;
     }
-    const level = body.threshold.method === 'manual' ? body.threshold.level : otsuThreshold(values as Float64Array);
+    const level = body.threshold.method === 'manual' ? body.threshold.level : autoLevel(values);
     if (level === null) throw new HttpError(422, `the ${body.channel === 'sum' ? 'summed channels are' : body.channel + ' is'} constant over the field; no Otsu level exists — give a manual level`);
     const seg = segmentCells(values, px.width, px.height, {
       level,

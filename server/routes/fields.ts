@@ -172,6 +172,8 @@ export default function fieldsRoutes(ctx: AppContext) {
   const r = Router();
   const upload = multer({
     storage: hashingStorage(ctx),
+    // browsers send UTF-8 file names without a charset parameter ("Zelle µ1.tif")
+    defParamCharset: 'utf8',
     limits: { fileSize: ctx.env.MAX_UPLOAD_BYTES, files: ctx.env.MAX_FILES_PER_REQUEST, fields: 20, fieldSize: 1024 * 1024 },
   });
 

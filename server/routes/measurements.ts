@@ -58,10 +58,14 @@ export default function measurementsRoutes(ctx: AppContext) {
     const q = parse(GridQuery, req.query);
     const src = resolveSource(ctx, studyId, q);
     const g = gridFrom(studyId, src, q);
-    const total = (sqlite.prepare(`${g.with} SELECT count(*) AS n ${g.from}`).get(g.params) as { n: number }).n;
+    // one pass: the window count is taken over the whole filtered set before LIMIT applies
     const rows = sqlite
-      .prepare(`${g.with} ${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)} LIMIT @limit OFFSET @offset`)
+      .prepare(`${g.with} ${GRID_SELECT}, count(*) OVER () AS total__ ${g.from} ${orderBy(q.sort, q.dir)} LIMIT @limit OFFSET @offset`)
       .all({ ...g.params, limit: q.pageSize, offset: q.page * q.pageSize }) as Record<string, unknown>[];
+    const total = rows.length
+      ? (rows[0].total__ as number)
+      : (sqlite.prepare(`${g.with} SELECT count(*) AS n ${g.from}`).get(g.params) as { n: number }).n;
+    for (const row of rows) delete row.total__;
     const body: GridResponse = {
       rows: rows.map(toGridRow),
       total,

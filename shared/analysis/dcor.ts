@@ -113,6 +113,7 @@ function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number
     const a = start[g], b = start[g + 1];
     const u = ux[g];
     let gS = 0;
+    let gV = 0; // this group's share (every term is ≥ 0: plain sum, then compensated across groups)
     for (let q = a; q < b; q++) {
       const r = yRank[q];
       const w = uy[r];
@@ -126,11 +127,11 @@ function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number
       }
       gS += 2 * c + eqCount[r] - C;
       // Σ_{j seen} (u − u_j)|w − w_j| = Σ_below (u−u_j)(w−w_j) − Σ_rest (u−u_j)(w−w_j)
-      const v = (2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY);
-      const tt = acc + v;
-      if (Math.abs(acc) >= Math.abs(v)) accC += acc - tt + v; else accC += v - tt + acc;
-      acc = tt;
+      gV += (2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY);
     }
+    const tt = acc + gV;
+    if (Math.abs(acc) >= Math.abs(gV)) accC += acc - tt + gV; else accC += gV - tt + acc;
+    acc = tt;
     for (let q = a; q < b; q++) {
       const r = yRank[q];
       const w = uy[r];

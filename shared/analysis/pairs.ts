@@ -134,12 +134,16 @@ export function collectPairs(ch1: ChannelArray, ch2: ChannelArray, region: Regio
 
 /** Levels of one variable: counting for Uint16 storage, sorting otherwise. */
 export function levelIndex(v: PairArray, n = v.length): LevelIndex {
-  let max = 0;
-  if (v instanceof Uint16Array) for (let i = 0; i < n; i++) if (v[i] > max) max = v[i];
+  let max = 65535;
   // counting pays off unless the value range is much wider than the number of items
+  if (v instanceof Uint16Array && n < 4096) {
+    max = 0;
+    for (let i = 0; i < n; i++) if (v[i] > max) max = v[i];
+  }
   if (v instanceof Uint16Array && max < 16 * n + 256) {
     const cnt = new Int32Array(max + 1);
     for (let i = 0; i < n; i++) cnt[v[i]]++;
+    while (max > 0 && cnt[max] === 0) max--;
     const map = new Uint16Array(max + 1);
     let L = 0;
     for (let k = 0; k <= max; k++) if (cnt[k] > 0) map[k] = L++;

@@ -3,9 +3,11 @@
  * the server decides and the browser could preview.
  *
  * Method (each step documented where it is implemented):
- * 1. Foreground = intensity strictly greater than a level. The level is given by the caller: manual, or the
- *    Otsu (1979) level from shared/analysis/otsu.ts — N. Otsu, "A threshold selection method from gray-level
- *    histograms", IEEE Trans. Syst. Man Cybern. 9:62–66, doi:10.1109/TSMC.1979.4310076.
+ * 1. Foreground = intensity strictly greater than a level. The level is given by the caller: manual, or
+ *    `autoLevel`: the Otsu (1979) level (shared/analysis/otsu.ts; N. Otsu, "A threshold selection method from
+ *    gray-level histograms", IEEE Trans. Syst. Man Cybern. 9:62–66, doi:10.1109/TSMC.1979.4310076) of the
+ *    intensities clipped at their 99.5th percentile. Decided here: without the clip, a few saturated pixels or
+ *    bright puncta dominate the between-class variance and the level separates them instead of the cells.
  * 2. Holes filled: background pixels not 8-connected to the image border become foreground (foreground uses
  *    4-connectivity, background 8-connectivity, the consistent pair of digital topology: Rosenfeld 1970,
  *    "Connectivity in digital pictures", J. ACM 17:146–160, doi:10.1145/321556.321570).
@@ -24,6 +26,32 @@
  *    Pixel centres never lie on pixel edges, so under the pixel-centre even-odd rule the polygon covers
  *    exactly the object's pixels (tested in tests/workspace/segment.test.ts).
  */
+
+import { otsuThreshold } from './otsu';
+
+/** Share of the brightest values clipped before the automatic (Otsu) level is computed. */
+export const AUTO_LEVEL_CLIP = 0.995;
+
+/**
+ * Automatic foreground level: Otsu (1979) on the values clipped at their 99.5th percentile (see the module
+ * comment). Integer data ≤ 65535 after clipping keeps the full integer histogram. null when constant.
+ */
+export function autoLevel(values: ArrayLike<number>): number | null {
+  const n = values.length;
+  if (n === 0) return null;
+  const sorted = Float64Array.from(values).sort();
+  const cap = sorted[Math.min(n - 1, Math.floor(AUTO_LEVEL_CLIP * n))];
+  let integer = true;
+  for (let i = 0; i < n && integer; i += Math.max(1, Math.floor(n / 4096))) if (!Number.isInteger(values[i]) || values[i] < 0) integer = false;
+  if (integer && cap <= 65535 && sorted[0] >= 0) {
+    const c = new Uint16Array(n);
+    for (let i = 0; i < n; i++) c[i] = values[i] > cap ? cap : values[i];
+    return otsuThreshold(c);
+  }
+  const c = new Float64Array(n);
+  for (let i = 0; i < n; i++) c[i] = values[i] > cap ? cap : values[i];
+  return otsuThreshold(c);
+}
 
 export interface SegmentOptions {
   /** foreground is value > level */

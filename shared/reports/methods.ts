@@ -7,8 +7,8 @@
  * silently left out. It gives cells and coverslips per condition, the statistical tests, and cites each
  * method's paper.
  *
- * References (authors, year, journal, DOI; DOIs from memory, checked against the journals' citation formats):
- * see CITATIONS below.
+ * References (authors, year, journal, DOI): see CITATIONS below. The DOIs are written from memory (not looked up
+ * online here); the Fisher 1915 and test references agree with those of shared/stats (comparison work).
  */
 import { COEFFICIENT_LABELS, type ReportCoefficient, type ReportSnapshot } from '../schemas/reports.js';
 import { RecipeSettings, SETTING_KEYS, describeSetting } from '../schemas/recipes.js';
@@ -32,11 +32,11 @@ export const CITATIONS: Record<string, Citation> = {
   li: { key: 'Li et al. 2004', text: 'Li Q, Lau A, Morris TJ, Guo L, Fordyce CB, Stanley EF (2004) A syntaxin 1, Gαo, and N-type calcium channel complex at a presynaptic nerve terminal: analysis by quantitative immunocolocalization. J. Neurosci. 24:4070–4081. doi:10.1523/JNEUROSCI.0346-04.2004' },
   otsu: { key: 'Otsu 1979', text: 'Otsu N (1979) A threshold selection method from gray-level histograms. IEEE Trans. Syst. Man Cybern. 9:62–66. doi:10.1109/TSMC.1979.4310076' },
   lord: { key: 'Lord et al. 2020', text: 'Lord SJ, Velle KB, Mullins RD, Fritz-Laylin LK (2020) SuperPlots: communicating reproducibility and variability in cell biology. J. Cell Biol. 219:e202001064. doi:10.1083/jcb.202001064' },
-  fisherZ: { key: 'Fisher 1915', text: 'Fisher RA (1915) Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population. Biometrika 10:507–521. doi:10.2307/2331838' },
+  fisherZ: { key: 'Fisher 1915', text: 'Fisher RA (1915) Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population. Biometrika 10:507–521. doi:10.1093/biomet/10.4.507' },
   welch: { key: 'Welch 1947', text: 'Welch BL (1947) The generalization of "Student\'s" problem when several different population variances are involved. Biometrika 34:28–35. doi:10.1093/biomet/34.1-2.28' },
   mannWhitney: { key: 'Mann & Whitney 1947', text: 'Mann HB, Whitney DR (1947) On a test of whether one of two random variables is stochastically larger than the other. Ann. Math. Statist. 18:50–60. doi:10.1214/aoms/1177730491' },
   kruskal: { key: 'Kruskal & Wallis 1952', text: 'Kruskal WH, Wallis WA (1952) Use of ranks in one-criterion variance analysis. J. Am. Stat. Assoc. 47:583–621. doi:10.1080/01621459.1952.10483441' },
-  anova: { key: 'Welch 1951', text: 'Welch BL (1951) On the comparison of several mean values: an alternative approach. Biometrika 38:330–336. doi:10.1093/biomet/38.3-4.330' },
+  anova: { key: 'Fisher 1925', text: 'Fisher RA (1925) Statistical Methods for Research Workers. Oliver and Boyd, Edinburgh (one-way analysis of variance).' },
   bootstrap: { key: 'Efron 1979', text: 'Efron B (1979) Bootstrap methods: another look at the jackknife. Ann. Statist. 7:1–26. doi:10.1214/aos/1176344552' },
 };
 
@@ -177,7 +177,7 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   if (has(/welch/)) testText.push(`Welch's unequal-variance t-test (${cite('welch')})`);
   if (has(/mann|whitney|wilcoxon/)) testText.push(`the Mann–Whitney U test (${cite('mannWhitney')})`);
   if (has(/kruskal/)) testText.push(`the Kruskal–Wallis test (${cite('kruskal')})`);
-  if (has(/anova/)) testText.push(`one-way ANOVA (Welch's form for unequal variances, ${cite('anova')})`);
+  if (has(/anova/)) testText.push(`one-way analysis of variance (${cite('anova')})`);
   const boot = snap.statistics.some((s) => s.ciLow !== null) || has(/bootstrap/);
   const corrCoefs = snap.coefficients.filter((k) => k === 'pearson' || k === 'spearman' || k === 'kendallTauB');
   parts.push(
@@ -185,7 +185,7 @@ export function methodsParagraph(snap: ReportSnapshot): string {
       `Conditions were compared with coverslips as the unit of replication: every cell is shown, coloured by coverslip, with coverslip means on top (${cite('lord')}).`,
       corrCoefs.length ? `Correlation coefficients (${corrCoefs.map((k) => COEFFICIENT_LABELS[k]).join(', ')}) were averaged through Fisher's z transformation (${cite('fisherZ')}).` : '',
       testText.length
-        ? `Coverslip-level summaries were tested with ${joinList(testText)}${boot ? `; effect sizes carry bootstrap confidence intervals that resample coverslips, then cells (${cite('bootstrap')})` : ''}. Significance level α = 0.05, two-sided.`
+        ? `Coverslip-level summaries were tested with ${joinList(testText)}${boot ? `; effect sizes carry bootstrap confidence intervals that resample coverslips, then cells (${cite('bootstrap')}${bootText(snap)})` : ''}. Significance level α = 0.05, two-sided.`
         : 'No statistical test could be made (fewer than two coverslips in a condition, or a single condition).',
     ]
       .filter(Boolean)
@@ -203,6 +203,16 @@ export function methodsParagraph(snap: ReportSnapshot): string {
 
   const refs = used.map((k, i) => `[${i + 1}] ${CITATIONS[k].text}`);
   return `${parts.join('\n\n')}\n\nReferences\n${refs.join('\n')}`;
+}
+
+/** the comparison module's bootstrap settings (resamples, seed, confidence), when recorded */
+function bootText(snap: ReportSnapshot): string {
+  const seen = new Set<string>();
+  for (const c of Object.values(snap.comparisons)) {
+    const b = isObj(c) && isObj(c.bootstrap) ? c.bootstrap : null;
+    if (b && typeof b.resamples === 'number') seen.add(`${b.resamples} resamples, seed ${String(b.seed)}, ${typeof b.confidence === 'number' ? `${Math.round(b.confidence * 1000) / 10}%` : 'default'} percentile intervals`);
+  }
+  return seen.size ? `; ${[...seen].join('; ')}` : '';
 }
 
 function pct(v: number | null) {

@@ -93,7 +93,7 @@ export const DeleteCellResponse = z.object({ ok: z.literal(true), soft: z.boolea
 export const AutoOutlineRequest = z.object({
   /** which intensities to threshold */
   channel: z.enum(['ch1', 'ch2', 'sum']).default('sum'),
-  /** 'otsu' (Otsu 1979) or a manual level; foreground is value > level */
+  /** 'otsu' (Otsu 1979, on values clipped at their 99.5th percentile: segment.ts autoLevel) or a manual level; foreground is value > level */
   threshold: z.discriminatedUnion('method', [z.object({ method: z.literal('otsu') }), z.object({ method: z.literal('manual'), level: z.number().finite() })]).default({ method: 'otsu' }),
   /** z slice or maximum-intensity projection for stacks */
   z: z.union([z.number().int().nonnegative(), z.literal('mip')]).optional(),
@@ -101,7 +101,7 @@ export const AutoOutlineRequest = z.object({
   /** split touching cells by a distance-transform watershed */
   split: z.boolean().default(true),
   /** minimum distance (pixels) between two seeds of the watershed: smaller splits more */
-  seedDistance: z.number().finite().min(1).max(500).default(5),
+  seedDistance: z.number().finite().min(1).max(500).default(10),
   minPixels: z.number().int().min(1).default(30),
   maxPixels: z.number().int().min(1).nullable().default(null),
   /** when true, existing automatic outlines of the field are replaced (deleted or soft-deleted) */

@@ -262,7 +262,10 @@ export const ReportSnapshot = z.object({
   /** the comparison module's full result per coefficient (shape: Comparison of shared/schemas/compare.ts), null if unavailable */
   comparisons: z.record(z.string(), z.unknown().nullable()),
   composites: z.array(Composite),
+  /** the chosen cell's scatter (shown first) */
   scatter: CellScatter.nullable(),
+  /** scatters of the measured cells of the representative fields (at most 24), so a reader can pick one */
+  scatters: z.array(CellScatter).default([]),
   saturation: z.object({ maxFraction1: Num, maxFraction2: Num, fieldsWithSaturation: z.number().int() }),
   methods: z.string(),
   cautions: z.array(z.string()),

@@ -53,9 +53,9 @@ const gens: Record<string, Gen> = {
 
 describe('fast == naive O(n²) on random small inputs', () => {
   for (const [name, gen] of Object.entries(gens)) {
-    it(`${name}: 700 cases, n = 2..40: τ-b, dCor, bias-corrected dCor², ρ, r`, () => {
+    it(`${name}: 450 cases, n = 2..40: τ-b, dCor, bias-corrected dCor², ρ, r`, () => {
       const rng = new Xoshiro128(name.length * 7919);
-      for (let c = 0; c < 700; c++) {
+      for (let c = 0; c < 450; c++) {
         const n = 2 + rng.nextInt(39);
         const [x, y] = gen(rng, n);
         const p = pairsFromArrays(x, y);

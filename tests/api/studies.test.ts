@@ -2,7 +2,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { and, eq } from 'drizzle-orm';
 import { makeTestApp, type TestApp } from '../utils/app.js';
-import { auditEvents, cells, conditions, coverslips, fields, files, labMembers, studies } from '../../server/db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, labMembers, measurements, recipes, runFields, runs, studies } from '../../server/db/schema.js';
 import { StudyDetail, StudyListResponse } from '../../shared/schemas/studies.js';
 
 let t: TestApp;
@@ -123,6 +123,30 @@ describe('studies', () => {
     expect(t.ctx.db.select().from(conditions).where(eq(conditions.studyId, id)).all()).toEqual([]);
     const ev = t.ctx.db.select().from(auditEvents).where(and(eq(auditEvents.action, 'study_deleted'), eq(auditEvents.entityId, id))).get()!;
     expect(ev.details).toMatchObject({ name });
+  });
+
+  it('a study whose fields were measured can still be deleted (measurements and run rows go in the same transaction)', async () => {
+    const db = t.ctx.db;
+    const st = db.insert(studies).values({ labId: t.world.labA, ownerId: t.world.users.biologist.id, name: 'Measured' }).returning().get();
+    const cd = db.insert(conditions).values({ studyId: st.id, name: 'a' }).returning().get();
+    const cs = db.insert(coverslips).values({ conditionId: cd.id, name: 'cs', replicate: 1 }).returning().get();
+    const fieldId = fakeField(cs.id);
+    const cell = db.select().from(cells).where(eq(cells.fieldId, fieldId)).get()!;
+    const rec = db.insert(recipes).values({ name: 'r', version: 1, settings: {} }).returning().get();
+    const run = db.insert(runs).values({ studyId: st.id, recipeId: rec.id, scopeKind: 'study', scopeId: st.id }).returning().get();
+    db.insert(runFields).values({ runId: run.id, fieldId }).run();
+    db.insert(measurements).values({ runId: run.id, cellId: cell.id, fieldId, pixels: 4, provenance: {} }).run();
+    // deleting only the coverslip also removes the measurement rows that point at its cells
+    const cs2 = db.insert(coverslips).values({ conditionId: cd.id, name: 'cs2', replicate: 2 }).returning().get();
+    const f2 = fakeField(cs2.id);
+    const cell2 = db.select().from(cells).where(eq(cells.fieldId, f2)).get()!;
+    db.insert(measurements).values({ runId: run.id, cellId: cell2.id, fieldId: f2, pixels: 4, provenance: {} }).run();
+    expect((await bio.delete(`/api/coverslips/${cs2.id}`)).status).toBe(200);
+    expect(db.select().from(measurements).where(eq(measurements.fieldId, f2)).all()).toEqual([]);
+    expect(db.select().from(measurements).where(eq(measurements.fieldId, fieldId)).all()).toHaveLength(1);
+    expect((await bio.delete(`/api/studies/${st.id}`).send({ confirmName: 'Measured' })).status).toBe(200);
+    expect(db.select().from(runs).where(eq(runs.id, run.id)).get()).toBeUndefined();
+    expect(db.select().from(fields).where(eq(fields.id, fieldId)).get()).toBeUndefined();
   });
 
   it('the study list shows each study once, with the permissions of the caller', async () => {

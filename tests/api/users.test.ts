@@ -130,6 +130,23 @@ describe('mail through a relay (SMTP_URL)', () => {
   });
 });
 
+describe('mail relay down', () => {
+  let td: TestApp;
+  beforeAll(async () => {
+    td = await makeTestApp({ SMTP_URL: 'smtp://127.0.0.1:1' });
+  });
+  afterAll(() => td.close());
+  it('inviting answers 502 JSON naming the problem; the account exists as "invited" and can be re-sent later', async () => {
+    const m = await td.login('manager');
+    const res = await m.post('/api/users').send({ email: 'unlucky@test.example', name: 'Unlucky', roles: ['biologist'] });
+    expect(res.status).toBe(502);
+    expect(res.body.error).toMatch(/could not be sent/);
+    const list = UserListResponse.parse((await m.get('/api/users')).body);
+    expect(list.users.find((u) => u.email === 'unlucky@test.example')?.status).toBe('invited');
+    expect(td.ctx.db.select().from(outgoingMail).all()).toEqual([]);
+  });
+});
+
 it('TEST_PASSWORD accounts still sign in (sanity)', async () => {
   expect((await request(t.app).post('/api/auth/login').send({ email: 'outsider@test.example', password: TEST_PASSWORD })).status).toBe(200);
 });

@@ -1,6 +1,7 @@
 // @vitest-environment jsdom
 /** Account: password change with the shared rule and the server's field error; the fields slot finds H4's components when present. (common practice) */
 import fs from 'node:fs';
+import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
@@ -41,8 +42,8 @@ describe('Account', () => {
 
 describe('fields slot on the study page', () => {
   it('uses the fields feature’s components exactly when their files exist', () => {
-    const dir = new URL('../../src/features/fields/components/', import.meta.url);
-    expect(fieldsFeaturePresent.upload).toBe(fs.existsSync(new URL('UploadFields.tsx', dir)));
-    expect(fieldsFeaturePresent.list).toBe(fs.existsSync(new URL('FieldList.tsx', dir)));
+    const dir = path.resolve('src/features/fields/components');
+    expect(fieldsFeaturePresent.upload).toBe(fs.existsSync(path.join(dir, 'UploadFields.tsx')));
+    expect(fieldsFeaturePresent.list).toBe(fs.existsSync(path.join(dir, 'FieldList.tsx')));
   });
 });

@@ -7,7 +7,10 @@ import { describe, expect, it } from 'vitest';
 import { screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { Component as Study } from '@/app/routes/Study';
-import { asUser, demoUser, mockApi, on, renderRoutes } from './utils';
+import { asUser, demoUser, mockApi as baseMockApi, on, renderRoutes, type Handler } from './utils';
+
+/** the fields feature (H4) lists each coverslip's fields: none here */
+const mockApi = (...h: Handler[]) => baseMockApi(...h, on('GET', /^\/coverslips\/\d+\/fields$/, () => ({ body: { fields: [] } })));
 import { makeStudy } from './fixtures';
 
 const routes = [
@@ -41,7 +44,7 @@ describe('Study page', () => {
     await userEvent.setup().keyboard('{Enter}');
     await waitFor(() => expect(calls.find((c) => c.path === '/studies/3/reorder')?.body).toEqual({ conditionIds: [11, 10] }));
     await waitFor(() => expect(screen.getAllByRole('heading', { level: 2 }).map((h) => h.textContent).slice(0, 2)).toEqual(['Treated', 'Control']));
-    expect(screen.getByRole('status').textContent).toContain('Condition Control moved to position 2 of 2.');
+    expect((await screen.findByText('Condition Control moved to position 2 of 2.')).getAttribute('aria-live')).toBe('polite');
   });
 
   it('moves a coverslip within its condition', async () => {

@@ -29,7 +29,7 @@ describe('demo accounts in the browser', () => {
     const page = await newPage(browser, srv);
     await signIn(page, srv, 'manager@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Account']);
-    await page.getByRole('heading', { name: 'Facility' }).waitFor();
+    await page.getByRole('heading', { name: 'Facility', exact: true }).waitFor();
     await page.getByText('Recipes waiting for review').waitFor();
     await shot(page, 'shell-manager-home');
     await page.getByRole('link', { name: 'People & labs' }).click();
@@ -47,7 +47,7 @@ describe('demo accounts in the browser', () => {
     const page = await newPage(browser, srv);
     await signIn(page, srv, 'microscopist@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
-    await page.getByRole('heading', { name: 'Imaging' }).waitFor();
+    await page.getByRole('heading', { name: 'Imaging', exact: true }).waitFor();
     await page.getByRole('heading', { name: 'Fields waiting for cells' }).waitFor();
     await shot(page, 'shell-microscopist-home');
     await page.goto(`${srv.url}/people`);
@@ -60,12 +60,14 @@ describe('demo accounts in the browser', () => {
     const page = await newPage(browser, srv);
     await signIn(page, srv, 'biologist@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
-    await page.getByRole('heading', { name: 'Your studies' }).waitFor();
+    await page.getByRole('heading', { name: 'Your studies', exact: true }).waitFor();
     await shot(page, 'shell-biologist-home');
     await page.getByRole('link', { name: 'Studies' }).click();
     await page.getByRole('heading', { name: 'Studies', level: 1 }).waitFor();
     await page.getByRole('table').getByRole('link').first().click();
     await page.getByRole('navigation', { name: 'Study pages' }).waitFor();
+    // the fields feature's list and upload load lazily into each coverslip
+    await expect.poll(() => page.getByText(/Loading/).count(), { timeout: 30_000 }).toBe(0);
     await shot(page, 'shell-biologist-study');
     const before = await page.getByRole('heading', { level: 2 }).count();
 
@@ -97,13 +99,48 @@ describe('demo accounts in the browser', () => {
     const page = await newPage(browser, srv);
     await signIn(page, srv, 'collaborator@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Account']);
-    await page.getByRole('heading', { name: 'Shared with you' }).waitFor();
+    await page.getByRole('heading', { name: 'Shared with you', exact: true }).waitFor();
     await shot(page, 'shell-collaborator-home');
     await page.getByRole('button', { name: 'Sign out' }).click();
     await page.waitForURL(/\/signin/);
+    await page.getByRole('button', { name: 'Sign in' }).waitFor();
+    await shot(page, 'shell-signin');
     await page.goto(`${srv.url}/account`);
     await page.waitForURL(/\/signin\?next=%2Faccount/);
     expect(page.errors).toEqual([]);
     await page.context().close();
+  });
+
+  it('invitation: the manager invites, opens the mail in the Outbox, the link sets a password and signs in', async () => {
+    const page = await newPage(browser, srv);
+    await signIn(page, srv, 'manager@demo.test');
+    await page.getByRole('link', { name: 'People & labs' }).click();
+    await page.getByRole('button', { name: 'Invite a person' }).click();
+    const dialog = page.getByRole('dialog', { name: 'Invite a person' });
+    await dialog.getByLabel('E-mail').fill('newcomer@demo.test');
+    await dialog.getByLabel('Name').fill('New Comer');
+    await dialog.getByRole('checkbox', { name: /Biologist/ }).check();
+    await shot(page, 'shell-manager-invite');
+    await dialog.getByRole('button', { name: 'Send invitation' }).click();
+    await page.getByText('An invitation was sent to newcomer@demo.test.').waitFor();
+    await page.getByRole('link', { name: 'Outbox' }).first().click();
+    await page.getByRole('button', { name: /newcomer@demo\.test/ }).first().click();
+    const link = page.getByRole('link', { name: /\/invite\// }).first();
+    await link.waitFor();
+    await shot(page, 'shell-manager-outbox-message');
+    const href = (await link.getAttribute('href'))!;
+    const token = new URL(href).pathname;
+    await page.context().close();
+
+    const guest = await newPage(browser, srv);
+    await guest.goto(srv.url + token);
+    await guest.getByRole('heading', { name: 'Welcome, New Comer' }).waitFor();
+    await guest.getByLabel('New password').fill('a-fresh-password');
+    await guest.getByLabel('Repeat the password').fill('a-fresh-password');
+    await shot(guest, 'shell-accept-invite');
+    await guest.getByRole('button', { name: 'Set password and sign in' }).click();
+    await guest.getByRole('heading', { name: 'Hello, New Comer' }).waitFor();
+    expect(guest.errors).toEqual([]);
+    await guest.context().close();
   });
 });

@@ -99,3 +99,61 @@ it('draws a polygon, keeps it after a reload and shows its live coefficients', a
   await shot(page, 'workspace-05-undo');
   expect(page.errors).toEqual([]);
 });
+
+it('finds cells automatically, marks a background box, links result rows to cells, deletes and undoes by keyboard', async () => {
+  const page = await newPage(browser, srv);
+  await signIn(page, srv, 'microscopist@demo.test');
+  const studies = await apiGet<{ studies: { id: number; isDemo?: boolean }[] }>(page, '/api/studies');
+  const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
+  const fields = await apiGet<{ fields: { id: number }[] }>(page, `/api/studies/${study.id}/fields`);
+  const field = fields.fields[1] ?? fields.fields[0];
+  await page.goto(`${srv.url}/studies/${study.id}/fields/${field.id}`);
+  await page.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 });
+
+  // automatic outlines
+  await page.getByRole('button', { name: 'Find cells…' }).click();
+  const dialog = page.getByRole('dialog');
+  await dialog.getByRole('button', { name: 'Find cells', exact: true }).click();
+  await page.getByText(/cells? found \(level/).waitFor({ timeout: 30_000 });
+  const list = page.getByTestId('cells-list');
+  await list.getByText('Auto 1', { exact: true }).waitFor();
+  const auto = (await apiGet<{ cells: { name: string; source: string }[] }>(page, `/api/fields/${field.id}/cells`)).cells.filter((c) => c.source === 'automatic');
+  expect(auto.length).toBeGreaterThan(3);
+  await shot(page, 'workspace-06-auto');
+
+  // a background box (M toggles background mode, B the box tool)
+  await page.keyboard.press('m');
+  await page.keyboard.press('b');
+  const viewer = page.getByTestId('field-viewer');
+  const vb = (await viewer.boundingBox())!;
+  const x0 = vb.x + vb.width / 2 - 20, y0 = vb.y + 30;
+  await page.mouse.move(x0, y0);
+  await page.mouse.down();
+  await page.mouse.move(x0 + 40, y0 + 25, { steps: 5 });
+  await page.mouse.up();
+  await list.getByText('Background 1', { exact: true }).waitFor();
+  await page.getByText('All changes saved').waitFor({ timeout: 15_000 });
+  const bg = (await apiGet<{ cells: { name: string; role: string }[] }>(page, `/api/fields/${field.id}/cells`)).cells.find((c) => c.name === 'Background 1');
+  expect(bg?.role).toBe('background');
+
+  // a results row selects its cell in the list and the scatter follows
+  await page.keyboard.press('v');
+  const row = page.getByTestId('results-table').locator('tbody tr').first();
+  const rowName = (await row.locator('td').first().textContent())!;
+  await row.click();
+  await expect.poll(async () => list.getByRole('button', { name: new RegExp(`^${rowName}\\b`) }).getAttribute('aria-pressed')).toBe('true');
+  await expect.poll(async () => page.locator('section[aria-label="Pixel scatter"]').textContent()).toContain(rowName);
+  await shot(page, 'workspace-07-row-selected');
+
+  // Delete removes the selected outline; Ctrl+Z brings it back (saved again as a new cell)
+  await viewer.focus();
+  await page.keyboard.press('Delete');
+  await list.getByText(rowName, { exact: true }).waitFor({ state: 'detached' });
+  await page.getByText('All changes saved').waitFor({ timeout: 15_000 });
+  expect((await apiGet<{ cells: { name: string }[] }>(page, `/api/fields/${field.id}/cells`)).cells.some((c) => c.name === rowName)).toBe(false);
+  await page.keyboard.press('Control+z');
+  await list.getByText(rowName, { exact: true }).waitFor();
+  await expect.poll(async () => (await apiGet<{ cells: { name: string }[] }>(page, `/api/fields/${field.id}/cells`)).cells.some((c) => c.name === rowName), { timeout: 15_000 }).toBe(true);
+  await shot(page, 'workspace-08-undo-delete');
+  expect(page.errors).toEqual([]);
+});

@@ -10,7 +10,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { allowConsoleError } from '../utils/setup.js';
 import { FieldDetail, UploadResponse } from '../../shared/schemas/fields.js';
 import { cells, measurements, recipes, runs } from '../../server/db/schema.js';
-import { loadFieldPixels, clearPixelCache } from '../../server/images/intake.js';
+import { loadFieldPixels, clearPixelCache, ingestField } from '../../server/images/intake.js';
 import { expectedPlane, fixture } from './fixtures.js';
 import { snapshot } from './helpers.js';
 
@@ -142,6 +142,30 @@ describe('upload of a two-channel 16-bit file', () => {
 });
 
 describe('pairs, several fields, duplicates, z-stacks', () => {
+  it('ingestField called directly (as the demo seed does) copies, never moves, its source files', async () => {
+    const src = fixture('uint16_tiled_deflate.tif');
+    const f = await ingestField(t.ctx, {
+      coverslipId: t.world.coverslipA,
+      userId: null,
+      name: 'seeded',
+      sources: [
+        { path: src, originalName: 'seeded.tif', channel: 2 },
+        { path: src, originalName: 'seeded.tif', channel: 1 },
+      ],
+    });
+    expect(fs.existsSync(src)).toBe(true);
+    expect(f).toMatchObject({ name: 'seeded', channel1: 2, channel2: 1, width: 64, height: 48 });
+    const px = await loadFieldPixels(t.ctx, f.id);
+    expect(Array.from(px.ch1)).toEqual(ch2);
+  });
+
+  it('UTF-8 file names survive the upload', async () => {
+    const agent = await t.login('microscopist');
+    const res = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', fixture('uint8_2page.tif'), 'Zelle µ1 – Kontrolle.tif');
+    expect(res.status).toBe(201);
+    expect(res.body.results[0].name).toBe('Zelle µ1 – Kontrolle');
+  });
+
   it('two single-channel files paired as channel 1 and 2', async () => {
     const agent = await t.login('microscopist');
     const res = await agent

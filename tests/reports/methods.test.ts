@@ -59,6 +59,9 @@ describe('methods paragraph', () => {
     expect(snap.methods).toMatch(/Welch's unequal-variance t-test|Mann–Whitney|Kruskal–Wallis|ANOVA/);
     expect(snap.methods).toContain("Fisher's z");
     expect(snap.methods).toMatch(/no field contains saturated pixels/);
+    // the comparison module's bootstrap settings, when it made the statistics (shared/schemas/compare.ts `bootstrap`)
+    const boot = (snap.comparisons.pearson as { bootstrap?: { resamples: number; seed: number } } | null)?.bootstrap;
+    if (boot) expect(snap.methods).toContain(`${boot.resamples} resamples, seed ${boot.seed}`);
   });
 
   it("cites each method's paper", () => {

@@ -133,6 +133,33 @@ describe('report snapshot', () => {
     expect(res.body.anyProvisional).toBe(true);
   });
 
+  it('honours the chosen scatter cell and condition subset; refuses unknown ones', async () => {
+    const bio = await t.login('biologist');
+    const chosen = rw.cellIds[4][2];
+    const res = await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'Treated only', coefficients: ['pearson'], conditionIds: [rw.conditionIds[1]], scatterCellId: chosen });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    const s = res.body.snapshot;
+    expect(s.conditions.map((c: { name: string }) => c.name)).toEqual(['treated']);
+    expect(s.cells.every((c: { conditionId: number }) => c.conditionId === rw.conditionIds[1])).toBe(true);
+    expect(s.scatter.cellId).toBe(chosen);
+    expect(s.statistics[0].test).toBe('none'); // one condition: nothing to compare
+    expect((await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'x', coefficients: ['pearson'], scatterCellId: 999999 })).status).toBe(400);
+    expect((await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'x', coefficients: ['pearson'], conditionIds: [999999] })).status).toBe(400);
+    expect((await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'x', coefficients: ['pearson'], runId: 999999 })).status).toBe(400);
+  });
+
+  it('a study without measurements still gives a report, with nulls and no test', async () => {
+    const out = await t.login('outsider');
+    const res = await out.post(`/api/studies/${t.world.studyB}/reports`).send({ title: 'Empty', coefficients: ['pearson', 'icq'] });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    const s = res.body.snapshot;
+    expect(s.recipes).toEqual([]);
+    expect(s.conditionSummaries.every((c: { mean: unknown; cells: number }) => c.mean === null && c.cells === 0)).toBe(true);
+    expect(s.statistics.map((x: { test: string }) => x.test)).toEqual(['none', 'none']);
+    expect(s.methods).toContain('No measurements were available');
+    expect(s.scatter).toBeNull();
+  });
+
   it('serves CSV tables (RFC 4180) and checks permissions', async () => {
     const bio = await t.login('biologist');
     const csv = await bio.get(`/api/reports/${first.id}/csv/cells`);

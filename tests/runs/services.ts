@@ -58,7 +58,8 @@ export async function stopChild(child: ChildProcess, signal: NodeJS.Signals = 'S
 }
 
 export async function startS3(bucket = 'syntopy'): Promise<{ endpoint: string; stop(): Promise<void> }> {
-  const { default: S3rver } = (await import('s3rver')) as unknown as { default: new (o: object) => { run(): Promise<{ port: number }>; close(): Promise<void> } };
+  const name = 's3rver'; // untyped package
+  const { default: S3rver } = (await import(name)) as unknown as { default: new (o: object) => { run(): Promise<{ port: number }>; close(): Promise<void> } };
   const directory = fs.mkdtempSync(path.join(os.tmpdir(), 'syntopy-s3-'));
   const port = await freePort();
   const s = new S3rver({ address: '127.0.0.1', port, silent: true, directory, configureBuckets: [{ name: bucket, configs: [] }] });

@@ -4,6 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
+  autoLevel,
   fillHoles,
   rleOfAllLabels,
   rleToIndices,
@@ -12,6 +13,7 @@ import {
   traceOutline,
 } from '../../shared/analysis/segment';
 import { rasterize } from '../../shared/analysis/rasterize';
+import { otsuThreshold } from '../../shared/analysis/otsu';
 import { Xoshiro128 } from '../../shared/analysis/prng';
 import { inDisk } from './helpers';
 
@@ -160,6 +162,21 @@ describe('segmentCells on synthetic disks', () => {
     const ms = performance.now() - t;
     expect(res.objects.length).toBeGreaterThanOrEqual(60);
     expect(ms).toBeLessThan(8000);
+  });
+});
+
+describe('automatic level', () => {
+  it('separates cells from background even with saturated puncta (plain Otsu splits off the puncta)', () => {
+    const W = 128, H = 128;
+    const img = diskImage(W, H, [[40, 40, 20], [90, 85, 25]], 800, 200);
+    for (let k = 0; k < 60; k++) img[(30 + (k % 10)) * W + 35 + Math.floor(k / 10)] = 65535; // a saturated punctum
+    const plain = otsuThreshold(img)!;
+    expect(plain).toBeGreaterThanOrEqual(800); // cells fall below: the known failure the clip avoids
+    const level = autoLevel(img)!;
+    expect(level).toBeGreaterThanOrEqual(200);
+    expect(level).toBeLessThan(800);
+    expect(segmentCells(img, W, H, { level, seedDistance: 10 }).objects).toHaveLength(2);
+    expect(autoLevel(new Uint16Array(50).fill(7))).toBeNull();
   });
 });
 

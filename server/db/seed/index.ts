@@ -57,7 +57,9 @@ export interface SeedOptions {
 /** Seeds the demo only when the database has no users at all (a fresh install). */
 export async function seedDemoIfEmpty(ctx: AppContext, opts: SeedOptions = {}) {
   if (ctx.db.select({ id: users.id }).from(users).limit(1).all().length) return false;
-  await seedDemo(ctx, opts);
+  const log = opts.log ?? ((m: string) => console.log(m));
+  log('empty database: seeding the invented demo study (accounts *@demo.test, password syntopy-demo)…');
+  await seedDemo(ctx, { ...opts, log });
   return true;
 }
 
@@ -65,8 +67,9 @@ export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
   const log = opts.log ?? (() => {});
   const size = opts.size ?? 512;
   const t0 = Date.now();
-  const hash = await hashPassword(DEMO_PASSWORD);
   const db = ctx.db;
+  const existing = db.select({ email: users.email }).from(users).all().map((u) => u.email);
+  const hash = DEMO_ACCOUNTS.every((a) => existing.includes(a.email)) ? '' : await hashPassword(DEMO_PASSWORD);
 
   // ---- accounts, lab, study, conditions, coverslips, recipe: one transaction
   const ids = db.transaction((tx) => {

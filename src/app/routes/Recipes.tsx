@@ -1,4 +1,19 @@
-/** Route module: Recipes (placeholder until its feature lands). */
+/** Route module: Recipes — every recipe version, filtered by status, and a way to propose a new one. */
+import { ButtonLink, PageHeader } from '@/components';
+import { useMe } from '@/features/auth/api/useMe';
+import { RecipeList } from '@/features/recipes/components/RecipeList';
+
 export function Component() {
-  return <div className="text-ink-soft">Recipes: not built yet.</div>;
+  const me = useMe();
+  const canPropose = !!me.data?.roles.some((r) => r !== 'collaborator');
+  return (
+    <div>
+      <PageHeader
+        title="Recipes"
+        description="A recipe is a named, versioned set of quantification settings. Numbers are comparable when they come from the same approved version."
+        actions={canPropose && <ButtonLink variant="primary" to="/recipes/new">Propose a recipe</ButtonLink>}
+      />
+      <RecipeList />
+    </div>
+  );
 }

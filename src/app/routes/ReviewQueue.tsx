@@ -1,4 +1,14 @@
-/** Route module: ReviewQueue (placeholder until its feature lands). */
+/** Route module: Review queue — submitted recipe versions waiting for a facility manager. */
+import { Card, PageHeader } from '@/components';
+import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
+
 export function Component() {
-  return <div className="text-ink-soft">ReviewQueue: not built yet.</div>;
+  return (
+    <div>
+      <PageHeader title="Review queue" description="Open a version to read its settings, compare it with the version before, and approve it or return it with a note." />
+      <Card>
+        <ReviewQueueList />
+      </Card>
+    </div>
+  );
 }

@@ -47,21 +47,25 @@ export interface ScatterResult {
 export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, bins = 256): Region {
   const indices = geometry ? cellIndices(geometry, img.width, img.height) : null;
   const p = prepare(collectPairs(img.ch1, img.ch2, indices ? { kind: 'indices', indices } : null));
-  let max1 = 0, max2 = 0, sat1 = 0, sat2 = 0;
+  let max1 = 0, max2 = 0, min1 = Infinity, min2 = Infinity, sat1 = 0, sat2 = 0;
   const L = img.saturationLevel ?? Infinity;
   for (let i = 0; i < p.n; i++) {
     const a = p.x[i], b = p.y[i];
     if (a > max1) max1 = a;
     if (b > max2) max2 = b;
+    if (a < min1) min1 = a;
+    if (b < min2) min2 = b;
     if (a >= L) sat1++;
     if (b >= L) sat2++;
   }
   const saturated = img.saturationLevel == null || p.n === 0 ? { ch1: null, ch2: null } : { ch1: sat1 / p.n, ch2: sat2 / p.n };
   const th = computeThresholds(p, { method: 'otsu' });
-  // axes from 0 to just above the 99.95th percentile, so a few saturated or hot pixels don't squash the
-  // cloud into a corner; pixels beyond are counted in hist.outside (quadrant counts stay exact over all pixels)
+  // axes from the region's minimum (0 when it holds zeros or negatives) to just above the 99.95th percentile,
+  // so a few saturated or hot pixels don't squash the cloud into a corner; pixels beyond are counted in
+  // hist.outside (the quadrant counts stay exact over all pixels)
   const top1 = axisTop(p.x, p.n, max1), top2 = axisTop(p.y, p.n, max2);
-  const hist = jointHistogram(p.x, p.y, { binsX: bins, binsY: bins, rangeX: [0, top1], rangeY: [0, top2] }, p.n);
+  const lo1 = p.n && min1 > 0 && min1 < top1 ? min1 : 0, lo2 = p.n && min2 > 0 && min2 < top2 ? min2 : 0;
+  const hist = jointHistogram(p.x, p.y, { binsX: bins, binsY: bins, rangeX: [lo1, Math.max(top1, lo1 + 1)], rangeY: [lo2, Math.max(top2, lo2 + 1)] }, p.n);
   return { indices, n: p.n, x: p.x, y: p.y, max1, max2, otsu: { t1: th.ch1, t2: th.ch2 }, pairs: p, hist, saturated };
 }
 

@@ -203,7 +203,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
     }
     const p = toImage(v, sx, sy);
     const target = e.target as Element;
-    const outlineKey = target.closest('[data-outline]')?.getAttribute('data-outline') ?? null;
+    const outlineKey = target.closest('[data-outline]')?.getAttribute('data-outline') ?? (tool === 'select' ? labelAt(outlines, p, W, H) : null);
     const handle = target.closest('[data-handle]')?.getAttribute('data-handle');
     if (e.button === 1 || space || (e.button === 0 && tool === 'select' && !outlineKey && !handle)) {
       if (tool === 'select' && !outlineKey && !space && e.button === 0) dispatch({ type: 'select', key: null });
@@ -414,6 +414,26 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
       </div>
     </div>
   );
+}
+
+/** The label-image cell whose pixels include the pixel under p (binary search in its runs). */
+function labelAt(outlines: Outline[], p: Point, W: number, H: number): string | null {
+  const x = Math.floor(p[0]), y = Math.floor(p[1]);
+  if (x < 0 || y < 0 || x >= W || y >= H) return null;
+  const i = y * W + x;
+  for (const o of outlines) {
+    if (o.geometry.kind !== 'label') continue;
+    const r = o.geometry.rle;
+    let lo = 0, hi = r.length / 2 - 1;
+    while (lo <= hi) {
+      const m = (lo + hi) >> 1;
+      const s = r[2 * m];
+      if (i < s) hi = m - 1;
+      else if (i >= s + r[2 * m + 1]) lo = m + 1;
+      else return o.key;
+    }
+  }
+  return null;
 }
 
 function roundGeometry<T>(g: T): T {

@@ -1,0 +1,17 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import { z } from 'zod';
+import { api } from '@/lib/api';
+import { DeleteFieldResponse } from '@shared/schemas/fields';
+import { fieldsRootKey } from './keys';
+
+/** DELETE /api/fields/:id — soft delete while measurements refer to the field. */
+export function useDeleteField() {
+  const qc = useQueryClient();
+  return useMutation({
+    mutationFn: (fieldId: number) => api<z.infer<typeof DeleteFieldResponse>>(`/fields/${fieldId}`, { method: 'DELETE', schema: DeleteFieldResponse }),
+    onSuccess: () => {
+      void qc.invalidateQueries({ queryKey: fieldsRootKey });
+      void qc.invalidateQueries({ queryKey: ['studies'] }); // coverslip field counts
+    },
+  });
+}

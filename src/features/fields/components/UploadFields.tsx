@@ -1,0 +1,325 @@
+/**
+ * Add fields to a coverslip: either multi-channel files (choose which two channels are channel 1 and 2) or
+ * pairs of single-channel files; several fields in one upload, a progress bar, and one result per field.
+ */
+import { useId, useMemo, useState } from 'react';
+import { Button } from '@/components/Button';
+import { Dialog } from '@/components/Dialog';
+import { ErrorNotice } from '@/components/Caution';
+import { inputClass } from '@/components/TextField';
+import type { UploadFieldPlan } from '@shared/schemas/fields';
+import { useUploadFields } from '../api/useUploadFields';
+import { formatBytes, inspectTiff, type FileChannels } from '../inspect';
+
+type Mode = 'multi' | 'pairs';
+
+interface MultiRow {
+  id: number;
+  file: File;
+  info: FileChannels | null;
+  ch1: number;
+  ch2: number;
+  name: string;
+}
+
+interface PairRow {
+  id: number;
+  file1: File | null;
+  file2: File | null;
+  name: string;
+}
+
+let nextId = 1;
+const stem = (n: string) => n.replace(/(\.ome)?\.tiff?$/i, '');
+const TIFF_ACCEPT = '.tif,.tiff,image/tiff';
+
+function channelLabel(c: { index: number; name: string | null }) {
+  return c.name ? `${c.index} · ${c.name}` : `channel ${c.index}`;
+}
+
+export function UploadFields({ coverslipId }: { coverslipId: number }) {
+  const [open, setOpen] = useState(false);
+  return (
+    <>
+      <div>
+        <Button size="sm" variant="secondary" onClick={() => setOpen(true)}>
+          Add fields…
+        </Button>
+      </div>
+      {open && <UploadDialog coverslipId={coverslipId} onClose={() => setOpen(false)} />}
+    </>
+  );
+}
+
+function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: () => void }) {
+  const [mode, setMode] = useState<Mode>('multi');
+  const [multi, setMulti] = useState<MultiRow[]>([]);
+  const [pairs, setPairs] = useState<PairRow[]>([{ id: nextId++, file1: null, file2: null, name: '' }]);
+  const [formError, setFormError] = useState<string | null>(null);
+  const { state, upload, cancel, reset } = useUploadFields(coverslipId);
+  const busy = state.phase === 'uploading' || state.phase === 'processing';
+  const modeName = useId();
+
+  const addMultiFiles = (list: FileList | null) => {
+    const files = Array.from(list ?? []);
+    const rows = files.map((file) => ({ id: nextId++, file, info: null, ch1: 1, ch2: 2, name: stem(file.name) }) as MultiRow);
+    setMulti((cur) => [...cur, ...rows]);
+    for (const row of rows) {
+      void inspectTiff(row.file).then((info) => setMulti((cur) => cur.map((r) => (r.id === row.id ? { ...r, info, ch2: info.channels.length >= 2 ? 2 : r.ch2 } : r))));
+    }
+  };
+
+  const addPairFiles = (list: FileList | null) => {
+    // several single-channel files at once: paired in name order (1st + 2nd, 3rd + 4th …); editable after
+    const files = Array.from(list ?? []).sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
+    const rows: PairRow[] = [];
+    for (let i = 0; i < files.length; i += 2) rows.push({ id: nextId++, file1: files[i], file2: files[i + 1] ?? null, name: stem(files[i].name) });
+    setPairs((cur) => [...cur.filter((r) => r.file1 || r.file2), ...rows]);
+  };
+
+  const totalBytes = useMemo(() => {
+    const s = new Set<File>();
+    if (mode === 'multi') multi.forEach((r) => s.add(r.file));
+    else pairs.forEach((r) => (r.file1 && s.add(r.file1), r.file2 && s.add(r.file2)));
+    return Array.from(s).reduce((a, f) => a + f.size, 0);
+  }, [mode, multi, pairs]);
+
+  const submit = async () => {
+    setFormError(null);
+    const files: File[] = [];
+    const idx = (f: File) => {
+      let i = files.indexOf(f);
+      if (i < 0) i = files.push(f) - 1;
+      return i;
+    };
+    const plan: UploadFieldPlan[] = [];
+    if (mode === 'multi') {
+      if (multi.length === 0) return setFormError('choose at least one file');
+      for (const r of multi) {
+        if (r.ch1 === r.ch2) return setFormError(`"${r.file.name}": channel 1 and channel 2 must be different channels`);
+        plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file), channel: r.ch1 }, ch2: { file: idx(r.file), channel: r.ch2 } });
+      }
+    } else {
+      const rows = pairs.filter((r) => r.file1 || r.file2);
+      if (rows.length === 0) return setFormError('choose a channel 1 file and a channel 2 file');
+      for (const [i, r] of rows.entries()) {
+        if (!r.file1 || !r.file2) return setFormError(`pair ${i + 1} needs both a channel 1 and a channel 2 file`);
+        plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 } });
+      }
+    }
+    await upload(files, plan);
+  };
+
+  const startOver = () => {
+    reset();
+    setMulti([]);
+    setPairs([{ id: nextId++, file1: null, file2: null, name: '' }]);
+  };
+
+  const footer =
+    state.phase === 'done' || state.phase === 'failed' ? (
+      <>
+        <Button onClick={startOver}>Add more</Button>
+        <Button variant="primary" onClick={onClose}>
+          Done
+        </Button>
+      </>
+    ) : (
+      <>
+        {busy ? (
+          <Button onClick={cancel} disabled={state.phase === 'processing'}>
+            Cancel upload
+          </Button>
+        ) : (
+          <Button onClick={onClose}>Close</Button>
+        )}
+        <Button variant="primary" onClick={() => void submit()} pending={busy} disabled={busy}>
+          Upload {totalBytes > 0 ? `(${formatBytes(totalBytes)})` : ''}
+        </Button>
+      </>
+    );
+
+  return (
+    <Dialog
+      open
+      onClose={busy ? () => undefined : onClose}
+      title="Add fields to this coverslip"
+      width="lg"
+      description="A field is one two-channel image. TIFF and OME-TIFF files: 8, 16 or 32-bit integer or 32-bit float; uncompressed, LZW, Deflate or PackBits."
+      footer={<div className="flex justify-end gap-2">{footer}</div>}
+    >
+      {state.phase === 'done' || state.phase === 'failed' ? (
+        <UploadResults state={state} />
+      ) : (
+        <div className="flex flex-col gap-4" aria-busy={busy}>
+          <fieldset className="flex flex-wrap gap-4 text-sm" disabled={busy}>
+            <legend className="sr-only">What the files hold</legend>
+            <label className="flex items-center gap-2">
+              <input type="radio" name={modeName} checked={mode === 'multi'} onChange={() => setMode('multi')} />
+              Each file holds several channels
+            </label>
+            <label className="flex items-center gap-2">
+              <input type="radio" name={modeName} checked={mode === 'pairs'} onChange={() => setMode('pairs')} />
+              Each channel is its own file (pairs)
+            </label>
+          </fieldset>
+
+          {mode === 'multi' ? (
+            <div className="flex flex-col gap-3">
+              <label className="text-sm">
+                <span className="mb-1 block font-medium">Files</span>
+                <input type="file" accept={TIFF_ACCEPT} multiple disabled={busy} onChange={(e) => (addMultiFiles(e.target.files), (e.target.value = ''))} />
+              </label>
+              {multi.length > 0 && (
+                <ul className="flex flex-col gap-2" aria-label="Fields to add">
+                  {multi.map((r) => (
+                    <li key={r.id} className="rounded-md border border-ink/10 p-3 text-sm">
+                      <div className="flex flex-wrap items-center justify-between gap-2">
+                        <span className="font-mono text-xs">
+                          {r.file.name} · {formatBytes(r.file.size)}
+                          {r.info && !r.info.problem && ` · ${r.info.width}×${r.info.height}, ${r.info.channels.length} channel${r.info.channels.length === 1 ? '' : 's'}${r.info.sizeZ > 1 ? `, ${r.info.sizeZ} z slices` : ''}`}
+                        </span>
+                        <Button size="sm" variant="ghost" disabled={busy} onClick={() => setMulti((cur) => cur.filter((x) => x.id !== r.id))} aria-label={`Remove ${r.file.name}`}>
+                          Remove
+                        </Button>
+                      </div>
+                      {r.info?.problem && <p className="mt-1 text-xs text-danger">{r.info.problem}</p>}
+                      {r.info && !r.info.problem && r.info.channels.length < 2 && (
+                        <p className="mt-1 text-xs text-danger">This file has one channel; a field needs two. Use “Each channel is its own file” to pair it with another file.</p>
+                      )}
+                      <div className="mt-2 grid grid-cols-1 gap-2 sm:grid-cols-3">
+                        <label>
+                          <span className="block text-xs text-ink-soft">Field name</span>
+                          <input className={inputClass()} value={r.name} disabled={busy} onChange={(e) => setMulti((cur) => cur.map((x) => (x.id === r.id ? { ...x, name: e.target.value } : x)))} />
+                        </label>
+                        {(['ch1', 'ch2'] as const).map((k, i) => (
+                          <label key={k}>
+                            <span className="block text-xs text-ink-soft">
+                              Channel {i + 1} <span aria-hidden="true">({i === 0 ? 'green' : 'magenta'} in previews)</span>
+                            </span>
+                            {r.info && r.info.channels.length > 0 ? (
+                              <select className={inputClass()} value={r[k]} disabled={busy} onChange={(e) => setMulti((cur) => cur.map((x) => (x.id === r.id ? { ...x, [k]: Number(e.target.value) } : x)))}>
+                                {r.info.channels.map((c) => (
+                                  <option key={c.index} value={c.index}>
+                                    {channelLabel(c)}
+                                  </option>
+                                ))}
+                              </select>
+                            ) : (
+                              <input
+                                className={inputClass()}
+                                type="number"
+                                min={1}
+                                value={r[k]}
+                                disabled={busy}
+                                onChange={(e) => setMulti((cur) => cur.map((x) => (x.id === r.id ? { ...x, [k]: Math.max(1, Number(e.target.value) || 1) } : x)))}
+                              />
+                            )}
+                          </label>
+                        ))}
+                      </div>
+                    </li>
+                  ))}
+                </ul>
+              )}
+            </div>
+          ) : (
+            <div className="flex flex-col gap-3">
+              <label className="text-sm">
+                <span className="mb-1 block font-medium">Pick many single-channel files (paired in name order)</span>
+                <input type="file" accept={TIFF_ACCEPT} multiple disabled={busy} onChange={(e) => (addPairFiles(e.target.files), (e.target.value = ''))} />
+              </label>
+              <ul className="flex flex-col gap-2" aria-label="Pairs to add">
+                {pairs.map((r, i) => (
+                  <li key={r.id} className="grid grid-cols-1 gap-2 rounded-md border border-ink/10 p-3 text-sm sm:grid-cols-[1fr_1fr_1fr_auto] sm:items-end">
+                    <label>
+                      <span className="block text-xs text-ink-soft">Field name</span>
+                      <input className={inputClass()} value={r.name} disabled={busy} placeholder={`pair ${i + 1}`} onChange={(e) => setPairs((cur) => cur.map((x) => (x.id === r.id ? { ...x, name: e.target.value } : x)))} />
+                    </label>
+                    {(['file1', 'file2'] as const).map((k, j) => (
+                      <label key={k}>
+                        <span className="block text-xs text-ink-soft">
+                          Channel {j + 1} file{r[k] ? `: ${r[k]!.name}` : ''}
+                        </span>
+                        <input
+                          type="file"
+                          accept={TIFF_ACCEPT}
+                          disabled={busy}
+                          className="w-full text-xs"
+                          onChange={(e) => {
+                            const f = e.target.files?.[0] ?? null;
+                            setPairs((cur) => cur.map((x) => (x.id === r.id ? { ...x, [k]: f, name: x.name || (f && k === 'file1' ? stem(f.name) : x.name) } : x)));
+                          }}
+                        />
+                      </label>
+                    ))}
+                    <Button size="sm" variant="ghost" disabled={busy} onClick={() => setPairs((cur) => cur.filter((x) => x.id !== r.id))} aria-label={`Remove pair ${i + 1}`}>
+                      Remove
+                    </Button>
+                  </li>
+                ))}
+              </ul>
+              <div>
+                <Button size="sm" disabled={busy} onClick={() => setPairs((cur) => [...cur, { id: nextId++, file1: null, file2: null, name: '' }])}>
+                  Add a pair
+                </Button>
+              </div>
+            </div>
+          )}
+
+          {formError && <ErrorNotice error={formError} />}
+          {state.phase === 'uploading' && <ProgressBar loaded={state.progress.loaded} total={state.progress.total} />}
+          {state.phase === 'processing' && <ProgressBar loaded={1} total={1} note="Checking and decoding the images…" />}
+        </div>
+      )}
+    </Dialog>
+  );
+}
+
+function ProgressBar({ loaded, total, note }: { loaded: number; total: number; note?: string }) {
+  const pct = total > 0 ? Math.min(100, Math.round((loaded / total) * 100)) : 0;
+  return (
+    <div className="text-sm">
+      <div role="progressbar" aria-label="Upload progress" aria-valuemin={0} aria-valuemax={100} aria-valuenow={pct} className="h-2 w-full overflow-hidden rounded bg-ink/10">
+        <div className="h-full bg-accent transition-[width]" style={{ width: `${pct}%` }} />
+      </div>
+      <p className="mt-1 text-xs text-ink-soft">{note ?? `${formatBytes(loaded)} of ${formatBytes(total)} sent (${pct} %)`}</p>
+    </div>
+  );
+}
+
+function UploadResults({ state }: { state: Extract<ReturnType<typeof useUploadFields>['state'], { phase: 'done' | 'failed' }> }) {
+  const results = state.results;
+  const ok = results.filter((r) => r.ok).length;
+  return (
+    <div className="flex flex-col gap-3 text-sm">
+      {state.phase === 'failed' && results.length === 0 && <ErrorNotice error={state.error} />}
+      {results.length > 0 && (
+        <p>
+          {ok} of {results.length} field{results.length === 1 ? '' : 's'} added.
+        </p>
+      )}
+      <ul className="flex flex-col gap-1" aria-label="Upload results">
+        {results.map((r) => (
+          <li key={r.index} className={r.ok ? 'text-ink' : 'text-danger'}>
+            {r.ok ? (
+              <>
+                <span aria-hidden="true">✓ </span>
+                <strong>{r.name}</strong> — {r.field.width}×{r.field.height}, {r.field.bitDepth}-bit {r.field.sampleFormat === 'float' ? 'float' : 'integer'}
+                {r.field.sizeZ > 1 ? `, ${r.field.sizeZ} z slices` : ''}
+                {r.field.saturated ? ' — contains saturated pixels' : ''}
+              </>
+            ) : (
+              <>
+                <span aria-hidden="true">✗ </span>
+                <strong>{r.name}</strong>: {r.error}
+              </>
+            )}
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}
+
+export default UploadFields;

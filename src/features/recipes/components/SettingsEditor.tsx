@@ -1,0 +1,240 @@
+/**
+ * The recipe settings form: one block per setting with its controls and, under them, the sentence that says
+ * what the current value does (describeSetting, the same words the methods paragraph uses).
+ */
+import { cx, inputClass } from '@/components';
+import {
+  COEFFICIENTS,
+  COEFFICIENT_LABELS,
+  SETTING_KEYS,
+  SETTING_LABELS,
+  describeSetting,
+  type RecipeSettings,
+  type SettingKey,
+} from '@shared/schemas/recipes';
+
+type Props = { value: RecipeSettings; onChange?: (s: RecipeSettings) => void; readOnly?: boolean };
+
+const num = (v: string, fallback: number) => {
+  const n = Number(v);
+  return v.trim() === '' || !Number.isFinite(n) ? fallback : n;
+};
+
+function Choice<T extends string>({ name, value, options, onChange, disabled }: { name: string; value: T; options: [T, string][]; onChange: (v: T) => void; disabled?: boolean }) {
+  return (
+    <div role="radiogroup" className="flex flex-wrap gap-2">
+      {options.map(([v, label]) => (
+        <label key={v} className={cx('flex cursor-pointer items-center gap-1.5 rounded-md border px-2.5 py-1 text-sm', value === v ? 'border-accent bg-accent-soft text-accent-dark' : 'border-ink/15')}>
+          <input type="radio" name={name} value={v} checked={value === v} disabled={disabled} onChange={() => onChange(v)} />
+          {label}
+        </label>
+      ))}
+    </div>
+  );
+}
+
+function Num({ label, value, onChange, disabled, step = 'any', min }: { label: string; value: number; onChange: (n: number) => void; disabled?: boolean; step?: string; min?: number }) {
+  return (
+    <label className="flex items-center gap-2 text-sm">
+      <span className="text-ink-soft">{label}</span>
+      <input type="number" className={cx(inputClass(false), 'w-28')} value={value} step={step} min={min} disabled={disabled} onChange={(e) => onChange(num(e.target.value, value))} />
+    </label>
+  );
+}
+
+export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
+  const set = (patch: Partial<RecipeSettings>) => onChange?.({ ...s, ...patch });
+  const d = readOnly;
+  const controls: Record<SettingKey, React.ReactNode> = {
+    background: (
+      <div className="space-y-2">
+        <Choice
+          name="background"
+          disabled={d}
+          value={s.background.method}
+          options={[
+            ['none', 'None'],
+            ['constant', 'A fixed value per channel'],
+            ['region', 'Mean of the marked background region'],
+          ]}
+          onChange={(m) => set({ background: m === 'constant' ? { method: 'constant', ch1: 0, ch2: 0 } : { method: m } })}
+        />
+        {s.background.method === 'constant' && (
+          <div className="flex flex-wrap gap-4">
+            <Num label="Channel 1" disabled={d} min={0} value={s.background.ch1} onChange={(n) => set({ background: { ...(s.background as { method: 'constant'; ch1: number; ch2: number }), ch1: n } })} />
+            <Num label="Channel 2" disabled={d} min={0} value={s.background.ch2} onChange={(n) => set({ background: { ...(s.background as { method: 'constant'; ch1: number; ch2: number }), ch2: n } })} />
+          </div>
+        )}
+      </div>
+    ),
+    saturation: (
+      <Choice
+        name="saturation"
+        disabled={d}
+        value={s.saturation}
+        options={[
+          ['keep', 'Keep and report'],
+          ['exclude', 'Leave out'],
+        ]}
+        onChange={(v) => set({ saturation: v })}
+      />
+    ),
+    threshold: (
+      <div className="space-y-2">
+        <Choice
+          name="threshold"
+          disabled={d}
+          value={s.threshold.method}
+          options={[
+            ['none', 'None'],
+            ['manual', 'Fixed values'],
+            ['otsu', 'Otsu'],
+            ['costes', 'Costes'],
+          ]}
+          onChange={(m) =>
+            set({
+              threshold:
+                m === 'manual'
+                  ? { method: 'manual', t1: 0, t2: 0 }
+                  : m === 'costes'
+                    ? { method: 'costes', regression: 'orthogonal', belowSet: 'either', stoppingRule: { kind: 'r_at_most', r: 0 } }
+                    : { method: m },
+            })
+          }
+        />
+        {s.threshold.method === 'manual' && (
+          <div className="flex flex-wrap gap-4">
+            <Num label="T1 (channel 1)" disabled={d} value={s.threshold.t1} onChange={(n) => set({ threshold: { ...(s.threshold as { method: 'manual'; t1: number; t2: number }), t1: n } })} />
+            <Num label="T2 (channel 2)" disabled={d} value={s.threshold.t2} onChange={(n) => set({ threshold: { ...(s.threshold as { method: 'manual'; t1: number; t2: number }), t2: n } })} />
+          </div>
+        )}
+        {s.threshold.method === 'costes' &&
+          (() => {
+            const c = s.threshold;
+            return (
+              <div className="flex flex-wrap items-center gap-4">
+                <label className="flex items-center gap-2 text-sm">
+                  <span className="text-ink-soft">Regression line</span>
+                  <select className={cx(inputClass(false), 'w-auto')} disabled={d} value={c.regression} onChange={(e) => set({ threshold: { ...c, regression: e.target.value as 'orthogonal' | 'ols' } })}>
+                    <option value="orthogonal">Orthogonal</option>
+                    <option value="ols">Least squares (y on x)</option>
+                  </select>
+                </label>
+                <label className="flex items-center gap-2 text-sm">
+                  <span className="text-ink-soft">Below means</span>
+                  <select className={cx(inputClass(false), 'w-auto')} disabled={d} value={c.belowSet} onChange={(e) => set({ threshold: { ...c, belowSet: e.target.value as 'either' | 'both' } })}>
+                    <option value="either">below either threshold</option>
+                    <option value="both">below both thresholds</option>
+                  </select>
+                </label>
+                <Num label="Stop when r ≤" disabled={d} value={c.stoppingRule.r} onChange={(n) => set({ threshold: { ...c, stoppingRule: { kind: 'r_at_most', r: Math.max(-1, Math.min(1, n)) } } })} />
+              </div>
+            );
+          })()}
+      </div>
+    ),
+    randomization: (
+      <div className="space-y-2">
+        <label className="flex items-center gap-2 text-sm">
+          <input type="checkbox" disabled={d} checked={s.randomization.enabled} onChange={(e) => set({ randomization: { ...s.randomization, enabled: e.target.checked } })} />
+          Run the randomization test
+        </label>
+        {s.randomization.enabled && (
+          <div className="flex flex-wrap items-center gap-4">
+            <Num label="Scrambles" disabled={d} step="1" min={1} value={s.randomization.count} onChange={(n) => set({ randomization: { ...s.randomization, count: Math.max(1, Math.round(n)) } })} />
+            <Choice
+              name="block"
+              disabled={d}
+              value={s.randomization.blockSize.kind}
+              options={[
+                ['pixels', 'Block in pixels'],
+                ['psf', 'From the point-spread width'],
+              ]}
+              onChange={(k) => set({ randomization: { ...s.randomization, blockSize: k === 'pixels' ? { kind: 'pixels', pixels: 3 } : { kind: 'psf', psfWidthUm: 0.25, pixelSizeUm: null } } })}
+            />
+            {s.randomization.blockSize.kind === 'pixels' ? (
+              <Num label="Edge (px)" disabled={d} step="1" min={1} value={s.randomization.blockSize.pixels} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { kind: 'pixels', pixels: Math.max(1, Math.round(n)) } } })} />
+            ) : (
+              (() => {
+                const b = s.randomization.blockSize;
+                return (
+                  <>
+                    <Num label="PSF width (µm)" disabled={d} min={0} value={b.psfWidthUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfWidthUm: n } } })} />
+                    <label className="flex items-center gap-2 text-sm">
+                      <span className="text-ink-soft">Pixel size (µm, empty: from each field)</span>
+                      <input
+                        type="number"
+                        className={cx(inputClass(false), 'w-28')}
+                        disabled={d}
+                        value={b.pixelSizeUm ?? ''}
+                        onChange={(e) => set({ randomization: { ...s.randomization, blockSize: { ...b, pixelSizeUm: e.target.value.trim() === '' ? null : num(e.target.value, b.pixelSizeUm ?? 0.1) } } })}
+                      />
+                    </label>
+                  </>
+                );
+              })()
+            )}
+          </div>
+        )}
+      </div>
+    ),
+    z: (
+      <div className="space-y-2">
+        <Choice
+          name="z"
+          disabled={d}
+          value={s.z.mode}
+          options={[
+            ['slice', 'One slice'],
+            ['range', 'Projection of a range'],
+            ['mip', 'Projection of all slices'],
+          ]}
+          onChange={(m) => set({ z: m === 'slice' ? { mode: 'slice', slice: 0 } : m === 'range' ? { mode: 'range', from: 0, to: 0 } : { mode: 'mip' } })}
+        />
+        {s.z.mode === 'slice' && <Num label="Slice (1 = first)" disabled={d} step="1" min={1} value={s.z.slice + 1} onChange={(n) => set({ z: { mode: 'slice', slice: Math.max(0, Math.round(n) - 1) } })} />}
+        {s.z.mode === 'range' &&
+          (() => {
+            const z = s.z;
+            return (
+              <div className="flex flex-wrap gap-4">
+                <Num label="From slice" disabled={d} step="1" min={1} value={z.from + 1} onChange={(n) => set({ z: { ...z, from: Math.max(0, Math.round(n) - 1) } })} />
+                <Num label="To slice" disabled={d} step="1" min={1} value={z.to + 1} onChange={(n) => set({ z: { ...z, to: Math.max(0, Math.round(n) - 1) } })} />
+              </div>
+            );
+          })()}
+      </div>
+    ),
+    minCellPixels: <Num label="Fewest pixels" disabled={d} step="1" min={0} value={s.minCellPixels} onChange={(n) => set({ minCellPixels: Math.max(0, Math.round(n)) })} />,
+    coefficients: (
+      <div className="flex flex-wrap gap-x-4 gap-y-1">
+        {COEFFICIENTS.map((c) => (
+          <label key={c} className="flex items-center gap-1.5 text-sm">
+            <input
+              type="checkbox"
+              disabled={d}
+              checked={s.coefficients.includes(c)}
+              onChange={(e) => set({ coefficients: e.target.checked ? COEFFICIENTS.filter((x) => x === c || s.coefficients.includes(x)) : s.coefficients.filter((x) => x !== c) })}
+            />
+            {COEFFICIENT_LABELS[c]}
+          </label>
+        ))}
+      </div>
+    ),
+    seed: <Num label="Seed" disabled={d} step="1" min={0} value={s.seed} onChange={(n) => set({ seed: Math.max(0, Math.round(n)) })} />,
+  };
+  return (
+    <div className="divide-y divide-ink/10">
+      {SETTING_KEYS.map((k) => (
+        <section key={k} className="grid gap-2 py-4 md:grid-cols-[12rem_1fr]" aria-labelledby={`setting-${k}`}>
+          <h3 id={`setting-${k}`} className="text-sm font-semibold">
+            {SETTING_LABELS[k]}
+          </h3>
+          <div className="space-y-2">
+            {controls[k]}
+            <p className="text-sm text-ink-soft">{describeSetting(k, s)}</p>
+          </div>
+        </section>
+      ))}
+    </div>
+  );
+}

@@ -1,0 +1,230 @@
+/**
+ * Analysis engine benchmark (issue 3). For 512², 1024² and 2048² 16-bit pairs: the time of each
+ * coefficient, of the whole set (measureRegion), and ratios against baselines measured in the same run:
+ *  (a) naive O(n²) versions (tests/analysis/naive.ts) at sizes where they finish (n = 64² and 128²);
+ *  (b) npm statistics packages on the same data: simple-statistics (sampleCorrelation, sampleRankCorrelation)
+ *      and @stdlib/stats-pcorrtest (Pearson); none of them offers τ-b or dCor;
+ *  (c) SciPy (Debian python3-scipy, /usr/bin/python3) pearsonr + spearmanr + kendalltau, when present
+ *      (CPU time of the Python process, time.process_time, so compared with our CPU time);
+ *  and the whole `analyze` command (start-up, TIFF decoding, all coefficients) on the 2048² pair as a
+ *  two-page TIFF, against SciPy's three coefficients alone.
+ * Times are the best of several repeats, wall clock and CPU time of this process (CPU time is robust when
+ * the machine is shared). Run: `npm run bench` or `npx tsx tests/bench/analysis.bench.ts [sizes...]`.
+ */
+import { spawnSync } from 'node:child_process';
+import { existsSync, mkdtempSync, writeFileSync, rmSync } from 'node:fs';
+import { loadavg, tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import * as ss from 'simple-statistics';
+import pcorrtest from '@stdlib/stats-pcorrtest';
+import {
+  collectPairs,
+  costesThresholds,
+  distanceCorrelation,
+  icq,
+  kendallTauB,
+  manders,
+  measureRegion,
+  otsuThreshold,
+  overlapCoefficients,
+  pearson,
+  prepare,
+  spearman,
+  Xoshiro128,
+  ENGINE_VERSION,
+} from '../../shared/analysis/index';
+import { naiveDcor, naiveKendallTauB, naiveSpearman } from '../analysis/naive';
+
+const root = fileURLToPath(new URL('../../', import.meta.url));
+const args = process.argv.slice(2).map(Number).filter((n) => n > 0);
+const sizes = args.length ? args : [512, 1024, 2048];
+
+/** microscopy-like 16-bit pair: background + shared blobs + independent blobs + noise, some saturation */
+function synthetic(size: number, seed = 1): [Uint16Array, Uint16Array] {
+  const rng = new Xoshiro128(seed);
+  const n = size * size;
+  const a = new Uint16Array(n), b = new Uint16Array(n);
+  const field = new Float32Array(n), other = new Float32Array(n);
+  const blobs = Math.round((size * size) / 4000);
+  for (const [f, count] of [[field, blobs], [other, blobs / 3]] as const) {
+    for (let k = 0; k < count; k++) {
+      const cx = rng.nextFloat() * size, cy = rng.nextFloat() * size, s = 2 + rng.nextFloat() * 6, amp = rng.nextFloat();
+      const r = Math.ceil(3 * s);
+      for (let y = Math.max(0, Math.floor(cy - r)); y < Math.min(size, cy + r); y++)
+        for (let x = Math.max(0, Math.floor(cx - r)); x < Math.min(size, cx + r); x++) f[y * size + x] += amp * Math.exp(-((x - cx) ** 2 + (y - cy) ** 2) / (2 * s * s));
+    }
+  }
+  for (let i = 0; i < n; i++) {
+    const noise1 = rng.nextFloat() + rng.nextFloat() - 1, noise2 = rng.nextFloat() + rng.nextFloat() - 1;
+    a[i] = Math.min(65535, Math.max(0, Math.round(300 + 40000 * field[i] + 400 * noise1)));
+    b[i] = Math.min(65535, Math.max(0, Math.round(250 + 30000 * field[i] + 20000 * other[i] + 600 * noise2)));
+  }
+  return [a, b];
+}
+
+interface Timing {
+  wall: number;
+  cpu: number;
+}
+function time(fn: () => unknown, repeats: number): Timing {
+  let wall = Infinity, cpu = Infinity;
+  for (let r = 0; r < repeats; r++) {
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    fn();
+    const t1 = performance.now();
+    const c1 = process.cpuUsage(c0);
+    wall = Math.min(wall, t1 - t0);
+    cpu = Math.min(cpu, (c1.user + c1.system) / 1000);
+  }
+  return { wall, cpu };
+}
+const ms = (t: number) => (t >= 100 ? t.toFixed(0) : t >= 10 ? t.toFixed(1) : t.toFixed(2)).padStart(8);
+const ratio = (base: number, ours: number) => `${(base / ours).toFixed(1)}×`.padStart(9);
+
+function scipy(x: Uint16Array, y: Uint16Array, dir: string, tag: string): Record<string, number> | null {
+  if (!existsSync('/usr/bin/python3')) return null;
+  const fx = join(dir, `${tag}.x.bin`), fy = join(dir, `${tag}.y.bin`);
+  writeFileSync(fx, x);
+  writeFileSync(fy, y);
+  const code = `
+import json, time, sys
+import numpy as np
+from scipy import stats
+x = np.fromfile(sys.argv[1], dtype='<u2').astype(np.float64); y = np.fromfile(sys.argv[2], dtype='<u2').astype(np.float64)
+out = {}
+for name, f in [('pearson', stats.pearsonr), ('spearman', stats.spearmanr), ('kendall', stats.kendalltau)]:
+    best = 1e99
+    for _ in range(int(sys.argv[3])):
+        t = time.process_time(); v = f(x, y); best = min(best, time.process_time() - t)
+    out[name] = best * 1000; out[name + '_value'] = float(v[0])
+print(json.dumps(out))
+`;
+  const r = spawnSync('/usr/bin/python3', ['-c', code, fx, fy, x.length > 2e6 ? '1' : '2'], { encoding: 'utf8' });
+  if (r.status !== 0) {
+    console.log(`  (SciPy run failed: ${r.stderr.split('\n').filter(Boolean).pop()})`);
+    return null;
+  }
+  return JSON.parse(r.stdout);
+}
+
+function main() {
+  console.log(`analysis engine ${ENGINE_VERSION} · node ${process.version} · load average ${loadavg()[0].toFixed(1)} · one core (single thread)`);
+  const dir = mkdtempSync(join(tmpdir(), 'syntopy-bench-'));
+  const summary: string[] = [];
+  try {
+    for (const size of sizes) {
+      const [a, b] = synthetic(size);
+      const n = size * size;
+      const reps = size >= 2048 ? 3 : 5;
+      console.log(`\n${size}×${size} 16-bit (${n} pixel pairs) — best of ${reps}, ms (wall / CPU)`);
+      const rows: [string, Timing][] = [];
+      rows.push(['collect pairs + levels + x-sort', time(() => {
+        const p = prepare(collectPairs(a, b, null));
+        void p.levelsX, p.levelsY, p.sortedByX;
+      }, reps)]);
+      const P = () => {
+        const p = prepare(collectPairs(a, b, null));
+        void p.levelsX, p.levelsY, p.sortedByX;
+        return p;
+      };
+      let p = P();
+      rows.push(['pearson', time(() => pearson(p), reps)]);
+      rows.push(['spearman (levels ready)', time(() => spearman(p), reps)]);
+      rows.push(['kendall τ-b (alone)', time(() => ((p = P()), kendallTauB(p)), reps)]);
+      rows.push(['dCor + bias-corr. + t-test (+τ-b S)', time(() => ((p = P()), distanceCorrelation(p)), reps)]);
+      rows.push(['manders M1/M2', time(() => manders(p, 1000, 1000), reps)]);
+      rows.push(['overlap, k1, k2', time(() => overlapCoefficients(p), reps)]);
+      rows.push(['ICQ', time(() => icq(p), reps)]);
+      rows.push(['Otsu (both channels)', time(() => (otsuThreshold(p.x), otsuThreshold(p.y)), reps)]);
+      rows.push(['Costes thresholds (levels ready)', time(() => costesThresholds(p), reps)]);
+      // subtract the preparation from the standalone τ-b and dCor rows
+      const prep = rows[0][1];
+      for (const row of rows) if (row[0].startsWith('kendall') || row[0].startsWith('dCor')) row[1] = { wall: row[1].wall - prep.wall, cpu: row[1].cpu - prep.cpu };
+      const whole = time(() => measureRegion(a, b, null), reps);
+      const wholeCostes = time(() => measureRegion(a, b, null, { threshold: { method: 'costes' } }), reps);
+      for (const [name, t] of rows) console.log(`  ${name.padEnd(38)}${ms(t.wall)} /${ms(t.cpu)}`);
+      console.log(`  ${'WHOLE SET (measureRegion, thresholds 0)'.padEnd(38)}${ms(whole.wall)} /${ms(whole.cpu)}`);
+      console.log(`  ${'WHOLE SET + Costes thresholds'.padEnd(38)}${ms(wholeCostes.wall)} /${ms(wholeCostes.cpu)}`);
+      summary.push(`${size}²: whole set ${whole.wall.toFixed(0)} ms wall / ${whole.cpu.toFixed(0)} ms CPU; with Costes ${wholeCostes.wall.toFixed(0)} / ${wholeCostes.cpu.toFixed(0)}`);
+
+      // (b) npm packages on the same data
+      const xa = Float64Array.from(a), ya = Float64Array.from(b);
+      const xs = Array.from(a), ys = Array.from(b);
+      // ratios on CPU time; ours include collecting the pairs from the channels (theirs get ready arrays)
+      const ours = {
+        pearson: time(() => pearson(collectPairs(a, b, null)), reps).cpu,
+        spearman: time(() => spearman(prepare(collectPairs(a, b, null))), reps).cpu,
+      };
+      const ssP = time(() => ss.sampleCorrelation(xs, ys), size >= 2048 ? 2 : 3);
+      console.log(`  npm simple-statistics sampleCorrelation     ${ms(ssP.cpu)} CPU; ours ${ms(ours.pearson)} (${ratio(ssP.cpu, ours.pearson)})`);
+      const ssS = time(() => ss.sampleRankCorrelation(xs, ys), 1);
+      console.log(`  npm simple-statistics sampleRankCorrelation ${ms(ssS.cpu)} CPU; ours ${ms(ours.spearman)} (${ratio(ssS.cpu, ours.spearman)})`);
+      const sp = time(() => pcorrtest(xa, ya), size >= 2048 ? 2 : 3);
+      console.log(`  npm @stdlib/stats-pcorrtest (Pearson)       ${ms(sp.cpu)} CPU; ours ${ms(ours.pearson)} (${ratio(sp.cpu, ours.pearson)})`);
+      console.log('  (no npm statistics package found offering Kendall τ-b or distance correlation)');
+
+      // (c) SciPy
+      const s = scipy(a, b, dir, `s${size}`);
+      if (s) {
+        const three = s.pearson + s.spearman + s.kendall;
+        const ourThree = time(() => {
+          const q = prepare(collectPairs(a, b, null));
+          pearson(q);
+          spearman(q);
+          kendallTauB(q);
+        }, reps).cpu;
+        console.log(`  SciPy CPU: pearsonr ${s.pearson.toFixed(0)} + spearmanr ${s.spearman.toFixed(0)} + kendalltau ${s.kendall.toFixed(0)} = ${three.toFixed(0)} ms; ours same three ${ourThree.toFixed(0)} ms (${(three / ourThree).toFixed(1)}×); our WHOLE set ${(three / whole.cpu).toFixed(1)}× faster than SciPy's three`);
+        const qq = prepare(collectPairs(a, b, null));
+        const dv = Math.abs(kendallTauB(qq)! - s.kendall_value) + Math.abs(spearman(qq)! - s.spearman_value) + Math.abs(pearson(qq)! - s.pearson_value);
+        console.log(`  agreement with SciPy on this data: Σ|Δ| over r, ρ, τ-b = ${dv.toExponential(1)}`);
+        summary.push(`${size}²: SciPy three ${three.toFixed(0)} ms CPU vs our whole set ${whole.cpu.toFixed(0)} ms CPU (${(three / whole.cpu).toFixed(1)}×)`);
+        if (size === 2048) {
+          // whole analyze command on a TIFF of this pair
+          const tif = join(dir, 'pair2048.tif');
+          const w = spawnSync('/usr/bin/python3', ['-c', `import numpy as np, tifffile, sys
+a=np.fromfile(sys.argv[1],dtype='<u2').reshape(${size},${size}); b=np.fromfile(sys.argv[2],dtype='<u2').reshape(${size},${size})
+tifffile.imwrite(sys.argv[3], np.stack([a,b]), photometric='minisblack')`, join(dir, `s${size}.x.bin`), join(dir, `s${size}.y.bin`), tif], { encoding: 'utf8' });
+          if (w.status === 0) {
+            let best = Infinity;
+            for (let r = 0; r < 2; r++) {
+              const t0 = performance.now();
+              const c = spawnSync(process.execPath, ['--import', 'tsx', join(root, 'server/cli/analyze.ts'), '--image', tif, '--channels', '1,2', '--json'], { cwd: root, encoding: 'utf8' });
+              const t1 = performance.now();
+              if (c.status !== 0) throw new Error(`analyze failed: ${c.stderr}`);
+              best = Math.min(best, t1 - t0);
+            }
+            console.log(`  whole \`analyze\` run (start-up + decode + all coefficients): ${best.toFixed(0)} ms wall vs SciPy's three coefficients alone ${three.toFixed(0)} ms CPU (${(three / best).toFixed(1)}×; wall includes waiting on a shared machine)`);
+            summary.push(`analyze 2048² end to end ${best.toFixed(0)} ms vs SciPy three ${three.toFixed(0)} ms`);
+          }
+        }
+      } else console.log('  (SciPy not present: /usr/bin/python3 with scipy needed)');
+    }
+
+    // (a) naive O(n²) at sizes where it finishes
+    console.log('\nnaive O(n²) baselines (definitions, tests/analysis/naive.ts) — ms CPU');
+    for (const size of [32, 64, 128]) {
+      const [a, b] = synthetic(size, 7);
+      const xs = Array.from(a), ys = Array.from(b);
+      const n = size * size;
+      const nk = time(() => naiveKendallTauB(xs, ys), 1).cpu;
+      const fk = time(() => kendallTauB(prepare(collectPairs(a, b, null))), 5).cpu;
+      const nd = size <= 32 ? time(() => naiveDcor(xs, ys), 1).cpu : NaN;
+      const fd = time(() => distanceCorrelation(prepare(collectPairs(a, b, null))), 5).cpu;
+      const ns = size <= 64 ? time(() => naiveSpearman(xs, ys), 1).cpu : NaN;
+      const fs = time(() => spearman(prepare(collectPairs(a, b, null))), 5).cpu;
+      console.log(
+        `  n = ${String(n).padStart(6)}: τ-b naive ${ms(nk)} fast ${ms(fk)} (${ratio(nk, fk)})` +
+          (Number.isNaN(nd) ? '' : ` · dCor naive ${ms(nd)} fast ${ms(fd)} (${ratio(nd, fd)})`) +
+          (Number.isNaN(ns) ? '' : ` · ρ naive ${ms(ns)} fast ${ms(fs)} (${ratio(ns, fs)})`),
+      );
+    }
+    console.log('\nsummary');
+    for (const s of summary) console.log(`  ${s}`);
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+main();
