@@ -43,7 +43,7 @@ import {
   welchT,
   type TestResult,
 } from '../../shared/stats/index.js';
-import { COLUMN_SQL, resolveSource } from './source.js';
+import { COLUMN_SQL, measurementJoin, resolveSource } from './source.js';
 
 const TEST_LABELS: Record<TestRow['test'], string> = {
   welch_t: "Welch's t-test",
@@ -113,22 +113,21 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       .all(studyId) as { id: number; name: string; replicate: number; conditionId: number }[]
   ).filter((s) => condIds.has(s.conditionId));
 
+  const params: Record<string, unknown> = { studyId };
   const rows = db
     .prepare(
-      `WITH ${src.cte}
-      SELECT c.id AS cellId, f.id AS fieldId, cs.id AS coverslipId, cd.id AS conditionId, ${COLUMN_SQL[coefficient]} AS value,
+      `SELECT c.id AS cellId, f.id AS fieldId, cs.id AS coverslipId, cd.id AS conditionId, ${COLUMN_SQL[coefficient]} AS value,
         m.mean1 AS mean1, m.mean2 AS mean2, c.excluded AS excluded, m.provisional AS provisional,
         (coalesce(m.saturated_fraction1, 0) > 0 OR coalesce(m.saturated_fraction2, 0) > 0) AS saturated
       FROM cells c
       JOIN fields f ON f.id = c.field_id AND f.status = 'ready'
       JOIN coverslips cs ON cs.id = f.coverslip_id
       JOIN conditions cd ON cd.id = cs.condition_id AND cd.study_id = @studyId
-      JOIN latest l ON l.cell_id = c.id
-      JOIN measurements m ON m.id = l.mid
+      ${measurementJoin(src, params, 'JOIN')}
       WHERE c.deleted_at IS NULL AND c.role = 'cell'
       ORDER BY c.id`,
     )
-    .all({ ...src.params, studyId }) as CellRow[];
+    .all(params) as CellRow[];
 
   const omitted = { excluded: 0, undefinedValue: 0, provisional: 0, saturated: 0 };
   const used: CellRow[] = [];

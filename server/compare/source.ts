@@ -54,9 +54,8 @@ const SORT_SQL: Record<SortKey, [string, boolean][]> = {
 };
 
 export interface ResolvedSource extends SourceInfo {
-  /** SQL of a CTE named latest(cell_id, mid): the measurement id to use per cell; and its parameters */
-  cte: string;
-  params: Record<string, number>;
+  /** the runs whose measurements count; for each cell the latest (highest id) of its measurements in them */
+  runIds: number[];
 }
 
 export function resolveSource(ctx: AppContext, studyId: number, q: { runId?: number; recipeId?: number }): ResolvedSource {
@@ -66,14 +65,7 @@ export function resolveSource(ctx: AppContext, studyId: number, q: { runId?: num
       | { id: number; studyId: number; recipeId: number; name: string; version: number }
       | undefined;
     if (!run || run.studyId !== studyId) throw badRequest(`runId: no run ${q.runId} in study ${studyId}`, { issues: [{ path: 'runId', message: 'no such run in this study' }] });
-    return {
-      runId: run.id,
-      recipeId: run.recipeId,
-      recipeName: run.name,
-      recipeVersion: run.version,
-      cte: 'latest AS (SELECT cell_id, id AS mid FROM measurements WHERE run_id = @runId)',
-      params: { runId: run.id },
-    };
+    return { runId: run.id, recipeId: run.recipeId, recipeName: run.name, recipeVersion: run.version, runIds: [run.id] };
   }
   let recipeId = q.recipeId;
   if (recipeId === undefined) {
@@ -82,41 +74,31 @@ export function resolveSource(ctx: AppContext, studyId: number, q: { runId?: num
       .get(studyId) as { recipeId: number } | undefined;
     recipeId = latest?.recipeId;
   }
-  if (recipeId === undefined) {
-    return { runId: null, recipeId: null, recipeName: null, recipeVersion: null, cte: 'latest AS (SELECT cell_id, id AS mid FROM measurements WHERE 0)', params: {} };
-  }
+  if (recipeId === undefined) return { runId: null, recipeId: null, recipeName: null, recipeVersion: null, runIds: [] };
   const rc = db.prepare('SELECT id, name, version FROM recipes WHERE id = ?').get(recipeId) as { id: number; name: string; version: number } | undefined;
   if (!rc) throw badRequest(`recipeId: no recipe ${recipeId}`, { issues: [{ path: 'recipeId', message: 'no such recipe' }] });
   const runIds = (
-    db.prepare('SELECT r.id FROM runs r WHERE r.study_id = ? AND r.recipe_id = ? AND EXISTS (SELECT 1 FROM measurements m WHERE m.run_id = r.id)').all(studyId, rc.id) as { id: number }[]
+    db.prepare('SELECT r.id FROM runs r WHERE r.study_id = ? AND r.recipe_id = ? AND EXISTS (SELECT 1 FROM measurements m WHERE m.run_id = r.id) ORDER BY r.id').all(studyId, rc.id) as { id: number }[]
   ).map((x) => x.id);
-  if (runIds.length <= 1) {
-    // one run (the common case): its rows through the (run_id, cell_id) index, no grouping needed
-    return {
-      runId: null,
-      recipeId: rc.id,
-      recipeName: rc.name,
-      recipeVersion: rc.version,
-      cte: 'latest AS (SELECT cell_id, id AS mid FROM measurements WHERE run_id = @onlyRun)',
-      params: { onlyRun: runIds[0] ?? 0 },
-    };
-  }
-  return {
-    runId: null,
-    recipeId: rc.id,
-    recipeName: rc.name,
-    recipeVersion: rc.version,
-    // materialized: one pass over the recipe's runs (index measurements_run_cell), then an automatic index on cell_id
-    cte: `latest AS MATERIALIZED (SELECT m2.cell_id AS cell_id, max(m2.id) AS mid FROM runs r JOIN measurements m2 ON m2.run_id = r.id
-        WHERE r.study_id = @studyId AND r.recipe_id = @recipeId GROUP BY m2.cell_id)`,
-    params: { studyId, recipeId: rc.id },
-  };
+  return { runId: null, recipeId: rc.id, recipeName: rc.name, recipeVersion: rc.version, runIds };
+}
+
+/**
+ * JOIN of alias m (the measurement used for cell c): one run → a direct probe of the (run_id, cell_id)
+ * index; several runs → the highest measurement id among probes of the same index, one per run.
+ */
+export function measurementJoin(src: ResolvedSource, params: Record<string, unknown>, kind: 'LEFT JOIN' | 'JOIN' = 'LEFT JOIN') {
+  if (src.runIds.length === 0) return `${kind} measurements m ON 0`;
+  src.runIds.forEach((id, i) => (params[`run${i}`] = id));
+  if (src.runIds.length === 1) return `${kind} measurements m ON m.run_id = @run0 AND m.cell_id = c.id`;
+  const list = src.runIds.map((_, i) => `@run${i}`).join(', ');
+  return `${kind} measurements m ON m.id = (SELECT max(m2.id) FROM measurements m2 WHERE m2.run_id IN (${list}) AND m2.cell_id = c.id)`;
 }
 
 /** FROM … WHERE … of the grid for a study, with its bound parameters. */
 export function gridFrom(studyId: number, src: ResolvedSource, f: GridFilters) {
   const where: string[] = ["c.deleted_at IS NULL", "c.role = 'cell'"];
-  const params: Record<string, unknown> = { ...src.params, studyId };
+  const params: Record<string, unknown> = { studyId };
   const inList = (col: string, name: string, values: number[] | undefined) => {
     if (!values || values.length === 0) return;
     if (values.length > 500) throw badRequest(`${name}: at most 500 ids, received ${values.length}`);
@@ -157,11 +139,9 @@ export function gridFrom(studyId: number, src: ResolvedSource, f: GridFilters) {
     JOIN fields f ON f.id = c.field_id AND f.status = 'ready'
     JOIN coverslips cs ON cs.id = f.coverslip_id
     JOIN conditions cd ON cd.id = cs.condition_id AND cd.study_id = @studyId
-    LEFT JOIN latest l ON l.cell_id = c.id
-    LEFT JOIN measurements m ON m.id = l.mid
-    LEFT JOIN users ux ON ux.id = c.excluded_by
+    ${measurementJoin(src, params)}
     WHERE ${where.join(' AND ')}`;
-  return { with: `WITH ${src.cte}`, from, params };
+  return { from, params };
 }
 
 export function orderBy(sort: SortKey, dir: 'asc' | 'desc') {
@@ -176,7 +156,8 @@ export const GRID_SELECT = `SELECT c.id AS cellId, c.name AS cell, f.id AS field
   cs.replicate AS replicate, cd.id AS conditionId, cd.name AS condition, m.id AS measurementId, m.run_id AS runId,
   ${NUMERIC_COLUMNS.map((k) => `${COLUMN_SQL[k]} AS ${k}`).join(', ')},
   m.threshold_method AS thresholdMethod, ${SATURATED_SQL} AS saturated, coalesce(m.provisional, 0) AS provisional,
-  c.excluded AS excluded, c.exclusion_reason AS exclusionReason, c.excluded_at AS excludedAt, ux.name AS excludedBy`;
+  c.excluded AS excluded, c.exclusion_reason AS exclusionReason, c.excluded_at AS excludedAt,
+  (SELECT ux.name FROM users ux WHERE ux.id = c.excluded_by) AS excludedBy`;
 
 /** SQLite row → API row (booleans; the pixel count falls back to the cell's own when unmeasured). */
 export function toGridRow(r: Record<string, unknown>) {

@@ -188,3 +188,13 @@ export async function renderPreview(ctx: AppContext, f: FieldRow, q: PreviewQuer
   await fsp.rename(tmp, file);
   return { png, width: outW, height: outH, ranges, cached: false };
 }
+
+/**
+ * Composite PNG of a field by id (reports embed it): channel 1 green, channel 2 magenta, default
+ * 0.1–99.9 % display ranges unless given. Does not check permissions (callers do).
+ */
+export async function renderCompositePng(ctx: AppContext, fieldId: number, opts: Partial<PreviewQuery> = {}): Promise<Buffer> {
+  const { loadFieldRow } = await import('./intake.js');
+  const f = await loadFieldRow(ctx, fieldId);
+  return (await renderPreview(ctx, f, { ...opts, view: 'composite' })).png;
+}

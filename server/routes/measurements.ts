@@ -58,14 +58,21 @@ export default function measurementsRoutes(ctx: AppContext) {
     const q = parse(GridQuery, req.query);
     const src = resolveSource(ctx, studyId, q);
     const g = gridFrom(studyId, src, q);
-    // one pass: the window count is taken over the whole filtered set before LIMIT applies
-    const rows = sqlite
-      .prepare(`${g.with} ${GRID_SELECT}, count(*) OVER () AS total__ ${g.from} ${orderBy(q.sort, q.dir)} LIMIT @limit OFFSET @offset`)
-      .all({ ...g.params, limit: q.pageSize, offset: q.page * q.pageSize }) as Record<string, unknown>[];
-    const total = rows.length
-      ? (rows[0].total__ as number)
-      : (sqlite.prepare(`${g.with} SELECT count(*) AS n ${g.from}`).get(g.params) as { n: number }).n;
-    for (const row of rows) delete row.total__;
+    // narrow key query (ids in order), then the full rows of just this page
+    const ids = (
+      sqlite.prepare(`SELECT c.id AS id ${g.from} ${orderBy(q.sort, q.dir)} LIMIT @limit OFFSET @offset`).all({ ...g.params, limit: q.pageSize, offset: q.page * q.pageSize }) as { id: number }[]
+    ).map((x) => x.id);
+    const total = (sqlite.prepare(`SELECT count(*) AS n ${g.from}`).get(g.params) as { n: number }).n;
+    let rows: Record<string, unknown>[] = [];
+    if (ids.length) {
+      const p2: Record<string, unknown> = {};
+      ids.forEach((id, i) => (p2[`id${i}`] = id));
+      const d = gridFrom(studyId, src, { ...q, conditionId: undefined, coverslipId: undefined, fieldId: undefined, range: [], q: undefined, excluded: 'any', saturated: 'any', provisional: 'any', measured: 'any' });
+      const byId = new Map(
+        (sqlite.prepare(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`).all({ ...d.params, ...p2 }) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]),
+      );
+      rows = ids.map((id) => byId.get(id)!).filter(Boolean);
+    }
     const body: GridResponse = {
       rows: rows.map(toGridRow),
       total,
@@ -83,7 +90,7 @@ export default function measurementsRoutes(ctx: AppContext) {
     const q = parse(CsvQuery, req.query);
     const src = resolveSource(ctx, studyId, q);
     const g = gridFrom(studyId, src, q);
-    const stmt = sqlite.prepare(`${g.with} ${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)}`);
+    const stmt = sqlite.prepare(`${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)}`);
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
     res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-cells.csv"`);
     const out: string[] = [csvLine(q.columns)];

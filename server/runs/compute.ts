@@ -11,10 +11,11 @@
  * - background: max(0, v − b) per channel; b = constant, or the mean over the union of the field's
  *   'background' regions (raw values, saturated pixels included). Integer data with an integer b stays
  *   integer (the engine's exact integer paths apply); otherwise the channel becomes Float64.
- * - thresholds are computed per cell over its measured pixels (Otsu / Costes) or taken from the recipe.
+ * - Otsu / Costes thresholds: per cell over its measured pixels (thresholdScope 'cell'), or once per field
+ *   over the union of its cells' measured pixels ('field', as the `analyze` command does over its regions).
  * - a cell with fewer measured pixels than minCellPixels gets a row with every coefficient null.
  */
-import { measureRegion, ENGINE_VERSION, type ChannelArray, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import type { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../images/store.js';
@@ -166,22 +167,39 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   const threshold = thresholdOptions(s.threshold);
   const z = describeZ(s.z);
 
+  const measured = job.cells
+    .filter((c) => c.role === 'cell')
+    .map((cell) => {
+      const all = cellIndices(cell.geometry, width, height);
+      let idx: Uint32Array = all;
+      if (s.saturation === 'exclude' && sat != null) {
+        const keep: number[] = [];
+        for (let k = 0; k < all.length; k++) if (raw1[all[k]] < sat && raw2[all[k]] < sat) keep.push(all[k]);
+        idx = Uint32Array.from(keep);
+      }
+      return { cell, all, idx };
+    });
+  // field-wide thresholds over the union of the measured cells
+  let fieldThresholds: ThresholdInfo | null = null;
+  if (s.thresholdScope === 'field' && (s.threshold.method === 'otsu' || s.threshold.method === 'costes')) {
+    const m = new Uint8Array(width * height);
+    for (const c of measured) if (c.idx.length >= Math.max(1, s.minCellPixels)) for (const i of c.idx) m[i] = 1;
+    let n = 0;
+    for (let i = 0; i < m.length; i++) n += m[i];
+    const union = new Uint32Array(n);
+    n = 0;
+    for (let i = 0; i < m.length; i++) if (m[i]) union[n++] = i;
+    fieldThresholds = computeThresholds(prepare(collectPairs(ch1, ch2, { kind: 'indices', indices: union })), threshold);
+  }
+
   const rows: MeasurementValues[] = [];
-  for (const cell of job.cells) {
-    if (cell.role !== 'cell') continue;
-    const all = cellIndices(cell.geometry, width, height);
+  for (const { cell, all, idx } of measured) {
     let s1 = 0, s2 = 0;
     if (sat != null)
       for (let k = 0; k < all.length; k++) {
         if (raw1[all[k]] >= sat) s1++;
         if (raw2[all[k]] >= sat) s2++;
       }
-    let idx: Uint32Array = all;
-    if (s.saturation === 'exclude' && sat != null) {
-      const keep: number[] = [];
-      for (let k = 0; k < all.length; k++) if (raw1[all[k]] < sat && raw2[all[k]] < sat) keep.push(all[k]);
-      idx = Uint32Array.from(keep);
-    }
     const n = idx.length;
     const provenance = {
       recipeId: job.recipe.id,
@@ -217,7 +235,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     const r = measureRegion(ch1, ch2, idx, {
       width,
       height,
-      threshold,
+      threshold: fieldThresholds ?? threshold,
       randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed } : undefined,
       skipSlow: !slow,
     });

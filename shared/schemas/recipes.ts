@@ -85,6 +85,8 @@ export const RecipeSettings = z.object({
   background: BackgroundSetting.default({ method: 'none' }),
   saturation: z.enum(['keep', 'exclude']).default('keep'),
   threshold: ThresholdSetting.default({ method: 'costes', regression: 'orthogonal', belowSet: 'either', stoppingRule: { kind: 'r_at_most', r: 0 } }),
+  /** Otsu / Costes thresholds computed for each cell over its own pixels, or once per field over the union of its cells */
+  thresholdScope: z.enum(['cell', 'field']).default('cell'),
   randomization: RandomizationSetting.default({ enabled: false, count: 200, blockSize: { kind: 'pixels', pixels: 3 } }),
   z: ZSetting.default({ mode: 'slice', slice: 0 }),
   /** cells with fewer measured pixels get a measurement row with every coefficient null */
@@ -133,9 +135,10 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
       if (t.method === 'none') return "No threshold: every pixel of the cell counts as foreground for Manders' M1 and M2.";
       if (t.method === 'manual')
         return `Fixed thresholds: channel 1 counts as foreground above ${fmt(t.t1)} and channel 2 above ${fmt(t.t2)}.`;
-      if (t.method === 'otsu') return "Each channel's threshold is chosen per cell by Otsu's method (Otsu 1979) on the full intensity histogram; foreground is above it.";
+      const where = s.thresholdScope === 'cell' ? 'for each cell over its own pixels' : 'once per field over the pixels of all its cells';
+      if (t.method === 'otsu') return `Each channel's threshold is chosen ${where} by Otsu's method (Otsu 1979) on the full intensity histogram; foreground is above it.`;
       return (
-        `Thresholds are found per cell by the Costes method (Costes et al. 2004): along the ${t.regression === 'orthogonal' ? 'orthogonal (total least squares)' : 'ordinary least squares'} regression line, ` +
+        `Thresholds are found ${where} by the Costes method (Costes et al. 2004): along the ${t.regression === 'orthogonal' ? 'orthogonal (total least squares)' : 'ordinary least squares'} regression line, ` +
         `stepping down until Pearson's r of the pixels below ${t.belowSet === 'either' ? 'either' : 'both'} threshold${t.belowSet === 'either' ? '' : 's'} is at most ${fmt(t.stoppingRule.r)}.`
       );
     }
@@ -252,6 +255,6 @@ export function diffSettings(a: RecipeSettings, b: RecipeSettings) {
   return SETTING_KEYS.map((key) => {
     const sa = describeSetting(key, a);
     const sb = describeSetting(key, b);
-    return { key, label: SETTING_LABELS[key], a: sa, b: sb, changed: JSON.stringify(a[key]) !== JSON.stringify(b[key]) };
+    return { key, label: SETTING_LABELS[key], a: sa, b: sb, changed: sa !== sb || JSON.stringify(a[key]) !== JSON.stringify(b[key]) };
   });
 }

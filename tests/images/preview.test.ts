@@ -7,7 +7,7 @@ import path from 'node:path';
 import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
-import { binHalf, percentiles } from '../../server/images/preview.js';
+import { binHalf, percentiles, renderCompositePng } from '../../server/images/preview.js';
 import { writeTiffU16 } from './tiffwrite.js';
 import { expectedPlane, fixture } from './fixtures.js';
 
@@ -89,6 +89,13 @@ describe('float fields over /pixels', () => {
     }
     const prev = await agent.get(`/api/fields/${f.id}/preview.png`);
     expect(prev.status).toBe(200);
+  });
+  it('renderCompositePng (used by reports) gives a PNG of the asked size', async () => {
+    const agent = await t.login('microscopist');
+    const up = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', fixture('uint16_lzw_pred.tif'));
+    const png = await renderCompositePng(t.ctx, up.body.results[0].field.id, { max: 32 });
+    const m = await sharp(png).metadata();
+    expect([m.format, m.width, m.height, m.channels]).toEqual(['png', 32, 24, 3]);
   });
   it('z out of range is a 400 naming the slices', async () => {
     const agent = await t.login('microscopist');

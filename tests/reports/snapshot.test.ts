@@ -63,6 +63,10 @@ describe('report snapshot', () => {
     expect(s.scatter).not.toBeNull();
     expect(s.scatter!.counts.reduce((a, b) => a + b, 0)).toBe(s.scatter!.pixels);
     expect(s.scatter!.counts).toHaveLength(s.scatter!.bins ** 2);
+    // every measured cell of the two representative fields has its scatter, the chosen one first
+    expect(s.scatters.map((x) => x.cellId)).toHaveLength(8);
+    expect(s.scatters[0].cellId).toBe(s.scatter!.cellId);
+    for (const x of s.scatters) expect(s.composites.some((c) => c.outlines.some((o) => o.cellId === x.cellId))).toBe(true);
     const audit = t.ctx.db.select().from(auditEvents).where(eq(auditEvents.action, 'report.create')).all();
     expect(audit).toHaveLength(1);
     expect(JSON.stringify({ ...s, composites: [] })).not.toMatch(/NaN/);

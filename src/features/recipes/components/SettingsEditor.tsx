@@ -102,6 +102,18 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
             })
           }
         />
+        {(s.threshold.method === 'otsu' || s.threshold.method === 'costes') && (
+          <Choice
+            name="thresholdScope"
+            disabled={d}
+            value={s.thresholdScope}
+            options={[
+              ['cell', 'For each cell'],
+              ['field', 'Once per field, over all its cells'],
+            ]}
+            onChange={(v) => set({ thresholdScope: v })}
+          />
+        )}
         {s.threshold.method === 'manual' && (
           <div className="flex flex-wrap gap-4">
             <Num label="T1 (channel 1)" disabled={d} value={s.threshold.t1} onChange={(n) => set({ threshold: { ...(s.threshold as { method: 'manual'; t1: number; t2: number }), t1: n } })} />

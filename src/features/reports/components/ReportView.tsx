@@ -4,7 +4,7 @@
  * cell's pixel scatter, exclusions, provenance, the methods paragraph and the cautions. Everything comes from the
  * frozen snapshot; nothing is recomputed.
  */
-import { lazy, Suspense, type ComponentType } from 'react';
+import { lazy, Suspense, useState, type ComponentType } from 'react';
 import { Badge, Caution } from '@/components';
 import { COEFFICIENT_LABELS, CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
 import { ReplicatePlot } from './ReplicatePlot';
@@ -48,6 +48,9 @@ function CoefficientPlot({ report, k }: { report: ReportDetail; k: ReportCoeffic
 export function ReportView({ report, csvHref, actions }: { report: ReportDetail; csvHref: (table: CsvTable) => string; actions?: React.ReactNode }) {
   const s = report.snapshot;
   const condName = new Map(s.conditions.map((c) => [c.id, c.name]));
+  const [picked, setPicked] = useState<number | null>(s.scatter?.cellId ?? s.scatters[0]?.cellId ?? null);
+  const pickable = new Set(s.scatters.map((x) => x.cellId));
+  const shown = s.scatters.find((x) => x.cellId === picked) ?? s.scatter;
   return (
     <article className="report-page mx-auto max-w-5xl" aria-labelledby="report-title">
       <header className="mb-6 border-b border-ink/10 pb-4">
@@ -186,14 +189,36 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         ) : (
           <div className="grid gap-4 sm:grid-cols-2">
             {s.composites.map((c) => (
-              <CompositeFigure key={c.fieldId} composite={c} conditionName={condName.get(c.conditionId) ?? ''} />
+              <CompositeFigure
+                key={c.fieldId}
+                composite={c}
+                conditionName={condName.get(c.conditionId) ?? ''}
+                selectedCellId={shown?.cellId ?? null}
+                pickable={pickable}
+                onPick={setPicked}
+              />
             ))}
           </div>
         )}
-        {s.scatter && (
+        {shown && (
           <div className="mt-6">
-            <h3 className="mb-1 text-sm font-semibold">Pixel scatter of one cell</h3>
-            <ScatterFigure scatter={s.scatter} />
+            <div className="mb-1 flex flex-wrap items-center gap-3">
+              <h3 className="text-sm font-semibold">Pixel scatter of one cell</h3>
+              {s.scatters.length > 1 && (
+                <label className="no-print flex items-center gap-2 text-xs text-ink-soft">
+                  Cell
+                  <select className="rounded border border-ink/20 bg-white px-2 py-0.5 text-sm text-ink" value={shown.cellId} onChange={(e) => setPicked(Number(e.target.value))}>
+                    {s.scatters.map((x) => (
+                      <option key={x.cellId} value={x.cellId}>
+                        {x.fieldName} · {x.cellName}
+                      </option>
+                    ))}
+                  </select>
+                  <span>or click an outline above</span>
+                </label>
+              )}
+            </div>
+            <ScatterFigure scatter={shown} />
           </div>
         )}
       </Section>

@@ -27,7 +27,7 @@ export function ScatterFigure({ scatter }: { scatter: CellScatter }) {
         <text x={-10} y={S / 2} fontSize={11} textAnchor="middle" fill="#1f2a33" transform={`rotate(-90 -10 ${S / 2})`}>channel 2 (0–{fmtNum(max2, 0)})</text>
       </svg>
       <figcaption className="mt-1 text-xs text-ink-soft">
-        {scatter.cellName} in {scatter.fieldName}: {scatter.pixels} pixels, shade on a log scale. Dashed lines: thresholds T1 = {fmtNum(scatter.threshold1, 1)}, T2 = {fmtNum(scatter.threshold2, 1)}.
+        {scatter.cellName} in {scatter.fieldName}: {scatter.pixels} pixels, raw intensities, shade on a log scale. Dashed lines: thresholds T1 = {fmtNum(scatter.threshold1, 1)}, T2 = {fmtNum(scatter.threshold2, 1)}.
       </figcaption>
     </figure>
   );

@@ -363,7 +363,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
               </path>
             ),
           )}
-          {sel && tool === 'select' && canEdit &&
+          {sel && tool === 'select' && canEdit && handlesVisible(sel, v.scale) &&
             handlesOf(sel.geometry).map(([x, y], i) => (
               <circle key={i} data-handle={i} cx={x} cy={y} r={handleR} fill="#fff" stroke={SELECT_COLOR} strokeWidth={1.5} vectorEffect="non-scaling-stroke" style={{ cursor: 'pointer' }} />
             ))}
@@ -414,6 +414,21 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
       </div>
     </div>
   );
+}
+
+/**
+ * Vertex handles are shown when they are at least ~6 screen pixels apart on average (traced automatic
+ * outlines have a vertex at every pixel corner: zoom in to edit them).
+ */
+function handlesVisible(o: Outline, scale: number): boolean {
+  const hs = handlesOf(o.geometry);
+  if (hs.length <= 8) return true;
+  let len = 0;
+  for (let i = 0; i < hs.length; i++) {
+    const a = hs[i], b = hs[(i + 1) % hs.length];
+    len += Math.hypot(a[0] - b[0], a[1] - b[1]);
+  }
+  return (len / hs.length) * scale >= 6;
 }
 
 /** The label-image cell whose pixels include the pixel under p (binary search in its runs). */
