@@ -15,7 +15,6 @@
  */
 import { readFile, stat } from 'node:fs/promises';
 import { parseArgs } from 'node:util';
-import { z } from 'zod';
 import {
   collectPairs,
   computeThresholds,
@@ -40,12 +39,28 @@ export class UsageError extends Error {}
 const USAGE =
   'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]';
 
-const RoiFile = z.array(
-  z.object({
-    name: z.string().min(1),
-    points: z.array(z.tuple([z.number().finite(), z.number().finite()])).min(3),
-  }),
-);
+interface Roi {
+  name: string;
+  points: [number, number][];
+}
+
+/** Checks the --rois file shape; returns the first problem as a sentence, or the ROIs. */
+function checkRois(v: unknown): Roi[] | string {
+  if (!Array.isArray(v)) return `the top level is ${v === null ? 'null' : typeof v}, not an array`;
+  for (let k = 0; k < v.length; k++) {
+    const r = v[k] as { name?: unknown; points?: unknown } | null;
+    if (typeof r !== 'object' || r === null || Array.isArray(r)) return `item ${k} is not an object`;
+    if (typeof r.name !== 'string' || r.name === '') return `item ${k} has no "name" string`;
+    if (!Array.isArray(r.points)) return `item ${k} ("${r.name}") has no "points" array`;
+    if (r.points.length < 3) return `item ${k} ("${r.name}") has ${r.points.length} points, a polygon needs at least 3`;
+    for (let j = 0; j < r.points.length; j++) {
+      const p = r.points[j] as unknown;
+      if (!Array.isArray(p) || p.length !== 2 || !p.every((c) => typeof c === 'number' && Number.isFinite(c)))
+        return `item ${k} ("${r.name}") point ${j} is ${JSON.stringify(p)}, not [x, y] with two finite numbers`;
+    }
+  }
+  return v as Roi[];
+}
 
 export interface CliOptions {
   ch1?: string;
@@ -208,12 +223,9 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     } catch (e) {
       throw new UsageError(`--rois ${path}: not valid JSON (${(e as Error).message.split('\n')[0]})`);
     }
-    const r = RoiFile.safeParse(parsed);
-    if (!r.success) {
-      const is = r.error.issues[0];
-      throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...] } with at least 3 points; at ${is.path.length ? is.path.join('.') : 'the top level'}: ${is.message}`);
-    }
-    planeRegions = r.data.map((roi) => ({ label: roi.name, indices: maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height)) }));
+    const rois = checkRois(parsed);
+    if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...] }; ${rois}`);
+    planeRegions = rois.map((roi) => ({ label: roi.name, indices: maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height)) }));
   }
   const regions =
     planeRegions === null
@@ -231,21 +243,25 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     for (const r of regions) for (const i of r.indices!) m[i] = 1;
     union = maskToIndices(m);
   }
-  const thresholds = computeThresholds(prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })), o.threshold);
+  // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
+  const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
+  const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
+  const thresholds = computeThresholds(unionPairs ?? prepare({ n: 0, x: new Uint16Array(0), y: new Uint16Array(0), integer: true }), o.threshold);
   const results = regions.map((r) => {
-    const pairs = collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
+    const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
     const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
     return { label: r.label, ...rest };
   });
   return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, regions: results };
 }
 
-const fmt = (v: number | null, digits = 4) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : v.toFixed(digits));
+const fmt = (v: number | null) => (v === null ? 'n/a' : v.toFixed(4));
+const fmtT = (v: number | null) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : v.toFixed(3));
 
 export function formatTable(out: AnalyzeOutput): string {
   const t = out.thresholds;
   const lines = [
-    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices` : ''} · thresholds ${t.method}: ch1 > ${fmt(t.ch1, 3)}, ch2 > ${fmt(t.ch2, 3)}`,
+    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices` : ''} · thresholds ${t.method}: ch1 > ${fmtT(t.ch1)}, ch2 > ${fmtT(t.ch2)}`,
   ];
   const cols: [string, (r: AnalyzeOutput['regions'][number]) => string][] = [
     ['region', (r) => String(r.label)],

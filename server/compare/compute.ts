@@ -67,6 +67,9 @@ const RANGES: Record<string, [number, number] | null> = {
   icq: [-0.5, 0.5],
 };
 
+/** resamples × cells drawn per comparison, at most */
+export const BOOTSTRAP_BUDGET = 5e7;
+
 const nn = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? null : v);
 
 export function fmt(v: number | null): string {
@@ -166,7 +169,10 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
 
   // ---- bootstrap (coverslips, then cells)
   const hierarchy = conds.map((c) => slips.filter((s) => s.conditionId === c.id).map((s) => (bySlip.get(s.id) ?? []).map((r) => r.value as number)));
-  const boot = hierarchicalBootstrap(hierarchy, { seed: opts.seed, resamples: opts.resamples, confidence: opts.confidence, transform: fisher ? 'fisher_z' : 'identity' });
+  // work budget: resamples × cells ≤ 5e7 (about half a second on one core), but never fewer than 500 resamples
+  const nUsed = used.length;
+  const resamples = Math.max(Math.min(opts.resamples, 500), Math.min(opts.resamples, Math.floor(BOOTSTRAP_BUDGET / Math.max(1, nUsed))));
+  const boot = hierarchicalBootstrap(hierarchy, { seed: opts.seed, resamples, confidence: opts.confidence, transform: fisher ? 'fisher_z' : 'identity' });
 
   const slipMeansByCond = conds.map((c) => slips.filter((s) => s.conditionId === c.id && slipMeanZ.has(s.id)).map((s) => slipMeanZ.get(s.id)!));
   const conditions: ConditionStats[] = conds.map((c, i) => {
@@ -234,6 +240,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   }
   if (omitted.provisional) warnings.push(`${omitted.provisional} cell values come from provisional measurements (a recipe not yet approved).`);
   if (omitted.saturated) warnings.push(`${omitted.saturated} cells contain saturated pixels, which bias co-localization coefficients.`);
+  if (resamples < opts.resamples) warnings.push(`With ${nUsed} cells the bootstrap used ${resamples} resamples instead of ${opts.resamples} to keep the page responsive.`);
   if (fisher) warnings.push("Correlation coefficients are averaged through Fisher's z (|r| clamped at 1 − 1e−7).");
 
   const label = COMPARE_LABELS[coefficient];

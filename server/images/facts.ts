@@ -17,13 +17,26 @@ export function channelFacts(slices: PixelArray[], maxValue: number | null): Cha
   return genericFacts(slices, maxValue);
 }
 
+/** Histograms of 8/16-bit planes, kept while the plane lives (facts and preview percentiles share one pass). */
+const hists = new WeakMap<Uint8Array | Uint16Array, Uint32Array>();
+export function histogramOf(a: Uint8Array | Uint16Array): Uint32Array {
+  let h = hists.get(a);
+  if (!h) {
+    h = new Uint32Array(a instanceof Uint8Array ? 256 : 65536);
+    for (let i = 0; i < a.length; i++) h[a[i]]++;
+    hists.set(a, h);
+  }
+  return h;
+}
+
 /** 8/16-bit: one pass into a histogram, everything else read from it. */
 function histFacts(slices: (Uint8Array | Uint16Array)[], bins: number, maxValue: number | null): ChannelFacts {
   const hist = new Float64Array(bins);
   let n = 0;
   for (const a of slices) {
     n += a.length;
-    for (let i = 0; i < a.length; i++) hist[a[i]]++;
+    const h = histogramOf(a);
+    for (let v = 0; v < bins; v++) hist[v] += h[v];
   }
   if (n === 0) return { min: 0, max: 0, mean: 0, saturatedFraction: 0, plateauFraction: null };
   let min = 0;

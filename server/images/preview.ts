@@ -16,6 +16,7 @@ import sharp from 'sharp';
 import type { AppContext } from '../context.js';
 import type { PreviewQuery } from '../../shared/schemas/fields.js';
 import type { PixelArray } from './decode.js';
+import { histogramOf } from './facts.js';
 import { loadFieldStack, selectZ, type FieldRow } from './intake.js';
 
 const PREVIEW_VERSION = 1;
@@ -33,8 +34,7 @@ export function percentiles(a: PixelArray, ps: number[]): number[] {
   if (n === 0) return ps.map(() => 0);
   const rank = (p: number, m: number) => Math.min(m - 1, Math.max(0, Math.ceil((p / 100) * m) - 1));
   if (a instanceof Uint8Array || a instanceof Uint16Array) {
-    const hist = new Uint32Array(a instanceof Uint8Array ? 256 : 65536);
-    for (let i = 0; i < n; i++) hist[a[i]]++;
+    const hist = histogramOf(a);
     return ps.map((p) => {
       const r = rank(p, n);
       let c = 0;

@@ -7,7 +7,7 @@
 import { Router } from 'express';
 import { and, desc, eq, inArray, max } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { auditEvents, recipes, users } from '../db/schema.js';
+import { auditEvents, recipes, runs, users } from '../db/schema.js';
 import { can, hasRole, requireCan } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, conflict, forbidden, notFound, parse } from '../http/errors.js';
@@ -197,6 +197,8 @@ export default function recipesRoutes(ctx: AppContext) {
             ? `recipe ${cur.name} v${cur.version} is ${cur.status} and cannot change; make a new version instead`
             : `recipe ${cur.name} v${cur.version} is ${cur.status}; it can be edited again once returned`,
         );
+      const busy = tx.select({ id: runs.id }).from(runs).where(and(eq(runs.recipeId, id), inArray(runs.status, ['queued', 'running']))).get();
+      if (busy && body.settings) throw conflict(`run #${busy.id} is measuring with recipe ${cur.name} v${cur.version}; change its settings when the run has finished`);
       const next = tx
         .update(recipes)
         .set({ ...(body.name !== undefined && { name: body.name }), ...(body.description !== undefined && { description: body.description }), ...(body.settings && { settings: body.settings }) })

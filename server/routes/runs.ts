@@ -12,7 +12,7 @@ import { badRequest, conflict, notFound, parse, unauthorized } from '../http/err
 import { CreateRunRequest, RunListQuery, type RunDetail, type RunSummary } from '../../shared/schemas/runs.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
 import { ENGINE_VERSION } from '../../shared/analysis/index.js';
-import { resolveScope } from '../runs/records.js';
+import { resolveScope, runSettings } from '../runs/records.js';
 
 type RunRow = typeof runs.$inferSelect;
 
@@ -78,10 +78,9 @@ export function runDetail(ctx: AppContext, r: RunRow): RunDetail {
       .all()
       .map((x) => [x.fieldId, Number(x.n)]),
   );
-  const recipe = db.select({ settings: recipes.settings }).from(recipes).where(eq(recipes.id, r.recipeId)).get()!;
   return {
     ...runSummary(ctx, r),
-    settings: RecipeSettings.parse(recipe.settings),
+    settings: runSettings(db, r),
     fields: rows.map((f) => ({ ...f, measurements: perField.get(f.fieldId) ?? 0 })),
     measurements: [...perField.values()].reduce((a, b) => a + b, 0),
   };
@@ -127,7 +126,7 @@ export default function runsRoutes(ctx: AppContext) {
           entity: 'run',
           entityId: created.id,
           studyId: scope.studyId,
-          details: { recipeId: recipe.id, recipeVersion: recipe.version, recipeStatus: recipe.status, scope: body.scope, fields: scope.fieldIds.length },
+          details: { recipeId: recipe.id, recipeVersion: recipe.version, recipeStatus: recipe.status, scope: body.scope, fields: scope.fieldIds.length, settings },
         })
         .run();
       return created;

@@ -88,7 +88,7 @@ export default function sharesRoutes(ctx: AppContext) {
     const report = loadReport(ctx, parse(IdParam, req.params.id));
     requireStudy(ctx, req.user, report.studyId, 'report');
     const rows = ctx.db.select().from(shareLinks).where(eq(shareLinks.reportId, report.id)).orderBy(desc(shareLinks.id)).all();
-    res.json(ShareListResponse.parse({ links: summaries(rows, report.studyId) }));
+    res.json(ShareListResponse.parse({ links: summaries(rows, report.studyId), notSent: [] }));
   });
 
   r.post('/reports/:id/shares', async (req, res) => {
@@ -123,10 +123,13 @@ export default function sharesRoutes(ctx: AppContext) {
       }
       return out;
     });
-    for (const link of created) await mailLink(req, report, link, req.user!.name);
-    for (const inv of invites) await sendInvitationMail(ctx, req, { email: inv.email, name: inv.name }, inv.token, inv.expiresAt, req.user!.name);
+    // the links exist once the transaction commits; a mail server failure is reported per address, not as a 500
+    const notSent: string[] = [];
+    for (const link of created) await mailLink(req, report, link, req.user!.name).catch(() => notSent.push(link.email));
+    for (const inv of invites)
+      await sendInvitationMail(ctx, req, { email: inv.email, name: inv.name }, inv.token, inv.expiresAt, req.user!.name).catch(() => notSent.push(`${inv.email} (invitation)`));
     const rows = ctx.db.select().from(shareLinks).where(eq(shareLinks.reportId, report.id)).orderBy(desc(shareLinks.id)).all();
-    res.status(201).json(ShareListResponse.parse({ links: summaries(rows, report.studyId) }));
+    res.status(201).json(ShareListResponse.parse({ links: summaries(rows, report.studyId), notSent }));
   });
 
   const loadLink = (req: Request) => {

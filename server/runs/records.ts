@@ -5,7 +5,7 @@
  */
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, studies } from '../db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { RunScopeKind } from '../../shared/schemas/runs.js';
 import { notFound } from '../http/errors.js';
@@ -45,6 +45,22 @@ export function resolveScope(db: Db, kind: RunScopeKind, id: number): { studyId:
   return { studyId: id, name: s.name, fieldIds: rows.map((r) => r.fieldId) };
 }
 
+/**
+ * The settings a run uses: the snapshot taken when it started (kept in its 'run.start' audit event, so a
+ * draft edited later does not change a run in flight), else the recipe's current settings.
+ */
+export function runSettings(db: Db, run: { id: number; recipeId: number }): RecipeSettings {
+  const ev = db
+    .select({ details: auditEvents.details })
+    .from(auditEvents)
+    .where(and(eq(auditEvents.entity, 'run'), eq(auditEvents.entityId, run.id), eq(auditEvents.action, 'run.start')))
+    .get();
+  const snap = (ev?.details as { settings?: unknown } | undefined)?.settings;
+  if (snap) return RecipeSettings.parse(snap);
+  const recipe = db.select({ settings: recipes.settings }).from(recipes).where(eq(recipes.id, run.recipeId)).get();
+  return RecipeSettings.parse(recipe?.settings ?? {});
+}
+
 /** Everything a stateless worker needs for one field of a run. */
 export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
   const run = db.select().from(runs).where(eq(runs.id, runId)).get();
@@ -79,7 +95,7 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
     sampleFormat: f.sampleFormat,
     pixelSizeUm: f.pixelSizeUm,
     cells: cellRows,
-    settings: RecipeSettings.parse(recipe.settings),
+    settings: runSettings(db, run),
     recipe: { id: recipe.id, name: recipe.name, version: recipe.version, status: recipe.status },
     provisional: run.provisional,
   };

@@ -347,14 +347,17 @@ export function watershedSplit(mask: Uint8Array, width: number, height: number, 
   // flooding: pixels leave the queue in order of decreasing distance (increasing elevation −distance)
   const q = new FloodQueue(n + 1);
   const queued = new Uint8Array(n);
+  const visit = (j: number) => {
+    if (!mask[j] || labels[j] || queued[j]) return;
+    queued[j] = 1;
+    q.push(j, dist[j]);
+  };
   const enqueueNeighbours = (i: number) => {
     const x = i % width;
-    const nb = [x > 0 ? i - 1 : -1, x < width - 1 ? i + 1 : -1, i >= width ? i - width : -1, i + width < n ? i + width : -1];
-    for (const j of nb) {
-      if (j < 0 || !mask[j] || labels[j] || queued[j]) continue;
-      queued[j] = 1;
-      q.push(j, dist[j]);
-    }
+    if (x > 0) visit(i - 1);
+    if (x < width - 1) visit(i + 1);
+    if (i >= width) visit(i - width);
+    if (i + width < n) visit(i + width);
   };
   for (let i = 0; i < n; i++) if (labels[i]) enqueueNeighbours(i);
   while (q.size > 0) {
@@ -362,8 +365,10 @@ export function watershedSplit(mask: Uint8Array, width: number, height: number, 
     // join the basin of a labelled 4-neighbour (the one with the greatest distance: the upstream side)
     const x = i % width;
     let lab = 0, bestD = -1;
-    const nb = [x > 0 ? i - 1 : -1, x < width - 1 ? i + 1 : -1, i >= width ? i - width : -1, i + width < n ? i + width : -1];
-    for (const j of nb) if (j >= 0 && labels[j] && dist[j] > bestD) (bestD = dist[j]), (lab = labels[j]);
+    if (x > 0 && labels[i - 1] && dist[i - 1] > bestD) (bestD = dist[i - 1]), (lab = labels[i - 1]);
+    if (x < width - 1 && labels[i + 1] && dist[i + 1] > bestD) (bestD = dist[i + 1]), (lab = labels[i + 1]);
+    if (i >= width && labels[i - width] && dist[i - width] > bestD) (bestD = dist[i - width]), (lab = labels[i - width]);
+    if (i + width < n && labels[i + width] && dist[i + width] > bestD) (bestD = dist[i + width]), (lab = labels[i + width]);
     labels[i] = lab;
     enqueueNeighbours(i);
   }

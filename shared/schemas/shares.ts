@@ -54,7 +54,11 @@ export const ShareLinkSummary = z.object({
 });
 export type ShareLinkSummary = z.infer<typeof ShareLinkSummary>;
 
-export const ShareListResponse = z.object({ links: z.array(ShareLinkSummary) });
+export const ShareListResponse = z.object({
+  links: z.array(ShareLinkSummary),
+  /** after creating: addresses whose e-mail could not be handed to the mail server (the link exists; use "send again") */
+  notSent: z.array(z.string()).default([]),
+});
 export type ShareListResponse = z.infer<typeof ShareListResponse>;
 
 export const SharedReportResponse = z.object({

@@ -198,28 +198,30 @@ describe('degenerate cases → null (decided in each module, documented in its T
 });
 
 describe('numerics: 16 M pairs of 16-bit data near 65535', () => {
-  it('16 M = 4 M copies of a 4-pair pattern: every coefficient equals the pattern value (replication invariance)', () => {
+  it('16 M = 2^18 copies of a 64-pair pattern: every coefficient equals the pattern value (replication invariance)', () => {
     // r, ρ, dCor (V-statistic: same empirical distribution), ICQ, Manders, overlap are invariant under
     // replicating every pair m times; τ-b is not (ties between copies) and is checked by its formula.
-    const px = [65535, 65534, 65535, 65533], py = [65535, 65535, 65534, 65533];
-    const m = 4 * 1024 * 1024;
-    const N = 4 * m;
+    // a 64-pair pattern with values in 65500..65535 (ties included), repeated 2^18 times = 16,777,216 pairs
+    const g = new Xoshiro128(65535);
+    const px = Array.from({ length: 64 }, () => 65535 - g.nextInt(36));
+    const py = px.map((v) => Math.min(65535, v - 10 + g.nextInt(20)));
+    const m = 1 << 18;
+    const N = 64 * m;
     const x = new Uint16Array(N), y = new Uint16Array(N);
     for (let i = 0; i < N; i++) {
-      x[i] = px[i & 3];
-      y[i] = py[i & 3];
+      x[i] = px[i & 63];
+      y[i] = py[i & 63];
     }
     const big = measureRegion(x, y, null, { threshold: { method: 'manual', t1: 65533, t2: 65533 } });
     const small = measureRegion(new Uint16Array(px), new Uint16Array(py), null, { threshold: { method: 'manual', t1: 65533, t2: 65533 } });
     expect(big.pixels).toBe(N);
-    // pattern r by hand: dx = [1,0,1,−2]·, dy = [1,1,0,−2] around means 65534.25: r = 5/5.5... checked vs naive
     close(small.pearson, naivePearson(px, py), 1e-12, 'pattern r');
+    close(small.distanceCorrelation, naiveDcor(px, py).dcor, 1e-12, 'pattern dCor');
     for (const k of ['pearson', 'spearman', 'distanceCorrelation', 'icq', 'mandersM1', 'mandersM2', 'overlap', 'k1', 'k2'] as const)
       close(big[k], small[k], 1e-9, k);
-    // τ-b with replication: S = m²·S_pattern; ties from value counts c·m
-    const S = m * m * 2; // pattern C − D: pairs (0,1):0? computed below from the naive pair loop
+    // τ-b with replication: C − D = m²·(C − D of the pattern); tied pairs from the value counts c·m
     let sp = 0;
-    for (let i = 0; i < 4; i++) for (let j = i + 1; j < 4; j++) sp += Math.sign(px[i] - px[j]) * Math.sign(py[i] - py[j]);
+    for (let i = 0; i < 64; i++) for (let j = i + 1; j < 64; j++) sp += Math.sign(px[i] - px[j]) * Math.sign(py[i] - py[j]);
     const ties = (v: number[]) => {
       const cnt = new Map<number, number>();
       for (const a of v) cnt.set(a, (cnt.get(a) ?? 0) + m);
@@ -229,7 +231,6 @@ describe('numerics: 16 M pairs of 16-bit data near 65535', () => {
     };
     const n0 = (N * (N - 1)) / 2;
     const tau = (m * m * sp) / Math.sqrt((n0 - ties(px)) * (n0 - ties(py)));
-    void S;
     close(big.kendallTauB, tau, 1e-12, 'τ-b');
   }, 60000);
 });

@@ -44,9 +44,14 @@ function synthetic(size: number) {
   return [a, b];
 }
 
-export async function run(opts: { size?: number; repeats?: number } = {}): Promise<IntakeBenchResult[]> {
-  const size = opts.size ?? 2048;
-  const repeats = opts.repeats ?? 3;
+/** Default: 512², 1024² and 2048² (the issue's case), three uploads each; the first of all is a warm-up. */
+export async function run(opts: { sizes?: number[]; repeats?: number } = {}): Promise<IntakeBenchResult[]> {
+  const out: IntakeBenchResult[] = [];
+  for (const size of opts.sizes ?? [512, 1024, 2048]) out.push(...(await runSize(size, opts.repeats ?? 3)));
+  return out;
+}
+
+async function runSize(size: number, repeats: number): Promise<IntakeBenchResult[]> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'syntopy-bench-'));
   const file = path.join(dir, `bench-${size}.tif`);
   fs.writeFileSync(file, writeTiffU16(synthetic(size), size, size));
@@ -104,8 +109,8 @@ export async function run(opts: { size?: number; repeats?: number } = {}): Promi
 }
 
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
-  const size = Number(process.env.BENCH_SIZE ?? 2048);
-  run({ size }).then((r) => {
+  const sizes = process.env.BENCH_SIZE ? process.env.BENCH_SIZE.split(',').map(Number) : undefined;
+  run({ sizes }).then((r) => {
     console.log(JSON.stringify(r, null, 2));
     process.exit(0);
   });

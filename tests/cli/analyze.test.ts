@@ -160,7 +160,7 @@ describe('analyze: bad input → exit 2 and one error line', () => {
     await bad(['--ch1', fx('u8.tif'), '--ch2', fx('u8.tif'), '--image', fx('u8.tif'), '--channels', '1,2'], /not both/);
     await bad([], /no image given/);
     await bad(['--image', fx('u8.tif'), '--channels', '1,2', '--mask', fx('labels.tif'), '--rois', fx('rois.json')], /--mask or --rois, not both/);
-    await bad(['--image', fx('u8.tif'), '--channels', '1,2', '--rois', join(tmp, 'bad.json')], /bad\.json: expected an array .* at 0\.points/);
+    await bad(['--image', fx('u8.tif'), '--channels', '1,2', '--rois', join(tmp, 'bad.json')], /bad\.json: expected an array .*item 0 \("x"\) has 1 points, a polygon needs at least 3/);
     await bad(['--image', fx('u8.tif'), '--channels', '1,2', '--rois', join(tmp, 'broken.json')], /broken\.json: not valid JSON/);
   });
 });

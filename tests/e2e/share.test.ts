@@ -94,6 +94,14 @@ it('shares a report by e-mail and the e-mailed link opens it read-only', async (
   expect(await rp.getByRole('button', { name: 'Share by e-mail' }).count()).toBe(0);
   expect(await rp.getByTestId('methods').innerText()).toMatch(/References/);
   expect(await rp.getByText('Research use only; not for diagnosis.').count()).toBeGreaterThan(0);
+  // the reader picks another cell for the pixel scatter by clicking its outline
+  const outlines = rp.getByRole('button', { name: /^Show the pixel scatter of/ });
+  if ((await outlines.count()) > 1) {
+    const cellSelect = rp.getByLabel('Cell for the pixel scatter');
+    const before = await cellSelect.inputValue();
+    await outlines.last().click();
+    expect(await cellSelect.inputValue()).not.toBe(before);
+  }
   await rp.screenshot({ path: 'test-results/share-03-shared.png', fullPage: true });
   // print: controls are hidden and the browser makes a PDF
   await rp.emulateMedia({ media: 'print' });

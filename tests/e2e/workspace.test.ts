@@ -7,6 +7,7 @@
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
 import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer, type TrackedPage } from './harness.js';
+import { writeTiff } from '../workspace/helpers.js';
 
 let srv: RunningServer;
 let browser: Browser;
@@ -155,5 +156,51 @@ it('finds cells automatically, marks a background box, links result rows to cell
   await list.getByText(rowName, { exact: true }).waitFor();
   await expect.poll(async () => (await apiGet<{ cells: { name: string }[] }>(page, `/api/fields/${field.id}/cells`)).cells.some((c) => c.name === rowName), { timeout: 15_000 }).toBe(true);
   await shot(page, 'workspace-08-undo-delete');
+  expect(page.errors).toEqual([]);
+});
+
+it('measures the pixel scatter of a 1024 × 1024 field in the browser (whole field, then a threshold drag)', async () => {
+  const page = await newPage(browser, srv);
+  await signIn(page, srv, 'microscopist@demo.test');
+  const studies = await apiGet<{ studies: { id: number; isDemo?: boolean }[] }>(page, '/api/studies');
+  const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
+  const detail = await apiGet<{ conditions: { coverslips: { id: number }[] }[] }>(page, `/api/studies/${study.id}`);
+  const coverslipId = detail.conditions[0].coverslips[0].id;
+  // a synthetic 1024² two-channel 16-bit field: correlated noise (seeded LCG; common practice)
+  const W = 1024, N = W * W;
+  const ch1 = new Uint16Array(N), ch2 = new Uint16Array(N);
+  let s = 7;
+  const rnd = () => ((s = (s * 1103515245 + 12345) & 0x7fffffff) / 0x7fffffff);
+  for (let i = 0; i < N; i++) {
+    const a = rnd() * 3000;
+    ch1[i] = a + rnd() * 500;
+    ch2[i] = a * 0.7 + rnd() * 800;
+  }
+  const up = await page.request.post(`${srv.url}/api/coverslips/${coverslipId}/fields`, {
+    multipart: { files: { name: 'big-1024.tif', mimeType: 'image/tiff', buffer: writeTiff([ch1, ch2], W, W, 16) } },
+  });
+  expect(up.status()).toBeLessThan(300);
+  const body = (await up.json()) as { results: { ok: boolean; field?: { id: number } }[] };
+  const fieldId = body.results[0].field!.id;
+  await page.goto(`${srv.url}/studies/${study.id}/fields/${fieldId}`);
+  const scatterEl = page.getByTestId('pixel-scatter');
+  await scatterEl.waitFor({ timeout: 60_000 });
+  const section = page.locator('section[aria-label="Pixel scatter"]');
+  await section.getByText('1,048,576 pixels').waitFor({ timeout: 60_000 });
+  const msOf = async () => Number(((await section.locator('[title^="time for the last update"]').textContent()) ?? '').replace(/[^0-9.]/g, ''));
+  const whole = await msOf();
+  // drag the T1 line across: each move is one worker update (quadrant counts only)
+  const b = (await scatterEl.boundingBox())!;
+  const before = await section.textContent();
+  await page.mouse.move(b.x + b.width * 0.5, b.y + b.height * 0.5);
+  await page.mouse.down();
+  await page.mouse.move(b.x + b.width * 0.3, b.y + b.height * 0.6, { steps: 8 });
+  await page.mouse.up();
+  await expect.poll(async () => section.textContent(), { timeout: 20_000 }).not.toBe(before);
+  const drag = await msOf();
+  console.log(`[workspace] 1024² pixel scatter in Chromium: whole field ${whole} ms, threshold drag update ${drag} ms`);
+  await shot(page, 'workspace-09-1024');
+  expect(whole).toBeLessThan(3000);
+  expect(drag).toBeLessThan(500);
   expect(page.errors).toEqual([]);
 });

@@ -196,6 +196,30 @@ describe('share links', () => {
     expect(list.find((l: { email: string }) => l.email === 'dana@example.org').invited).toBe(true);
   });
 
+  it('a mail server failure leaves the link in place and names the address', async () => {
+    const send = t.ctx.mail.send;
+    t.ctx.mail.send = async (m) => {
+      if (m.to === 'down@example.org') throw new Error('550 mailbox unavailable');
+      return send.call(t.ctx.mail, m);
+    };
+    try {
+      const bio = await t.login('biologist');
+      const res = await bio.post(`/api/reports/${reportA}/shares`).send({ emails: ['down@example.org', 'up@example.org'] });
+      expect(res.status).toBe(201);
+      expect(res.body.notSent).toEqual(['down@example.org']);
+      expect(res.body.links.filter((l: { email: string }) => ['down@example.org', 'up@example.org'].includes(l.email))).toHaveLength(2);
+      expect(mailTo('up@example.org')).toHaveLength(1);
+      expect(mailTo('down@example.org')).toHaveLength(0);
+    } finally {
+      t.ctx.mail.send = send;
+    }
+    // "send again" delivers it once the mail server answers
+    const bio = await t.login('biologist');
+    const link = t.ctx.db.select().from(shareLinks).where(eq(shareLinks.email, 'down@example.org')).get()!;
+    expect((await bio.post(`/api/shares/${link.id}/resend`)).status).toBe(200);
+    expect(mailTo('down@example.org')).toHaveLength(1);
+  });
+
   it('checks who may share and what they send', async () => {
     const collab = await t.login('collaborator');
     expect((await collab.post(`/api/reports/${reportA}/shares`).send({ emails: ['x@example.org'] })).status).toBe(403);

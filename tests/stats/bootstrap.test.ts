@@ -84,7 +84,7 @@ describe('histogram distances', () => {
   it('identical histograms are at distance 0; disjoint ones at the maximum', () => {
     expect(chiSquaredDistance([1, 2, 3], [2, 4, 6])).toBe(0);
     expect(earthMoversDistance([1, 2, 3], [2, 4, 6])).toBe(0);
-    expect(chiSquaredDistance([1, 0, 0], [0, 0, 1])).toBe(1);
+    expect(chiSquaredDistance([1, 0, 0], [0, 0, 1])).toBe(2); // Σ(p−q)²/(p+q), no ½ factor: maximum 2
     // all mass moved two bins: EMD = 2 bin widths (definition: L1 between cumulative histograms)
     expect(earthMoversDistance([1, 0, 0], [0, 0, 1], 0.5)).toBe(1);
     expect(chiSquaredDistance([0, 0], [1, 1])).toBeNull();

@@ -1,4 +1,24 @@
-/** Route module: CellTable (placeholder until its feature lands). */
+/** Route module: Cell table — review every cell of a study, exclude with reasons, export. */
+import { useParams } from 'react-router';
+import { PageHeader, Loading, ErrorNotice, ButtonLink } from '@/components';
+import { useStudy } from '@/features/studies/api/useStudy';
+import { CellTableView } from '@/features/celltable/components/CellTableView';
+
 export function Component() {
-  return <div className="text-ink-soft">CellTable: not built yet.</div>;
+  const studyId = Number(useParams().studyId);
+  const study = useStudy(studyId);
+  return (
+    <div>
+      <PageHeader
+        title="Cell table"
+        trail={[
+          { to: '/studies', label: 'Studies' },
+          { to: `/studies/${studyId}`, label: study.data?.name ?? 'Study' },
+        ]}
+        description="Every cell with its latest measurement. Excluded cells stay listed, with the reason, and are left out of comparisons."
+        actions={<ButtonLink to={`/studies/${studyId}/compare`}>Compare conditions</ButtonLink>}
+      />
+      {study.isPending ? <Loading /> : study.isError ? <ErrorNotice error={study.error} /> : <CellTableView study={study.data} />}
+    </div>
+  );
 }

@@ -1,4 +1,76 @@
-/** Route module: Compare (placeholder until its feature lands). */
+/** Route module: Compare — one coefficient across the study's conditions, coverslips as replicates. */
+import { useParams, useSearchParams } from 'react-router';
+import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, inputClass } from '@/components';
+import { useStudy } from '@/features/studies/api/useStudy';
+import { useMeasurementSources } from '@/features/celltable/api/useMeasurementSources';
+import { useComparison } from '@/features/compare/api/useComparison';
+import { ComparePanel } from '@/features/compare/components/ComparePanel';
+import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from '@shared/schemas/compare';
+
 export function Component() {
-  return <div className="text-ink-soft">Compare: not built yet.</div>;
+  const studyId = Number(useParams().studyId);
+  const [params, setParams] = useSearchParams();
+  const study = useStudy(studyId);
+  const sources = useMeasurementSources(studyId);
+  const q = new URLSearchParams();
+  q.set('coefficient', params.get('coefficient') ?? 'pearson');
+  for (const k of ['recipeId', 'seed']) if (params.get(k)) q.set(k, params.get(k)!);
+  const cmp = useComparison(studyId, q);
+  const set = (k: string, v: string) => {
+    const next = new URLSearchParams(params);
+    if (v) next.set(k, v);
+    else next.delete(k);
+    setParams(next, { replace: true });
+  };
+  const studyName = study.data?.name ?? 'Study';
+  return (
+    <div>
+      <PageHeader
+        title="Compare"
+        trail={[
+          { to: '/studies', label: 'Studies' },
+          { to: `/studies/${studyId}`, label: studyName },
+        ]}
+        description="Every cell is shown, but coverslips are the replicates: tests and intervals are computed on coverslip means."
+        actions={<ButtonLink to={`/studies/${studyId}/cells`}>Cell table</ButtonLink>}
+      />
+      <div className="mb-5 flex flex-wrap items-end gap-4">
+        <label className="flex flex-col gap-1 text-sm font-medium">
+          Coefficient
+          <select className={inputClass()} value={q.get('coefficient')!} onChange={(e) => set('coefficient', e.target.value)} data-testid="coefficient">
+            {COMPARE_COEFFICIENTS.map((c) => (
+              <option key={c} value={c}>
+                {COMPARE_LABELS[c]}
+              </option>
+            ))}
+          </select>
+        </label>
+        <label className="flex flex-col gap-1 text-sm font-medium">
+          Measurements from
+          <select className={inputClass()} value={params.get('recipeId') ?? ''} onChange={(e) => set('recipeId', e.target.value)}>
+            <option value="">latest recipe used</option>
+            {sources.data?.recipes.map((r) => (
+              <option key={r.recipeId} value={r.recipeId}>
+                {r.name} v{r.version} ({r.runs.length} run{r.runs.length === 1 ? '' : 's'})
+              </option>
+            ))}
+          </select>
+        </label>
+        <label className="flex flex-col gap-1 text-sm font-medium">
+          Bootstrap seed
+          <input className={`${inputClass()} w-28`} type="number" min={0} value={params.get('seed') ?? '1'} onChange={(e) => set('seed', e.target.value)} />
+        </label>
+        {cmp.isFetching && <span className="pb-2 text-sm text-ink-soft">Computing…</span>}
+      </div>
+      {cmp.isPending ? (
+        <Loading label="Computing the comparison…" />
+      ) : cmp.isError ? (
+        <ErrorNotice error={cmp.error} />
+      ) : cmp.data.points.length === 0 ? (
+        <EmptyState title="No measured cells yet">Run a recipe on this study's fields; the comparison appears here once cells have measurements.</EmptyState>
+      ) : (
+        <ComparePanel data={cmp.data} fileBase={studyName.replace(/[^A-Za-z0-9_-]+/g, '-')} csvQuery={q.toString()} />
+      )}
+    </div>
+  );
 }

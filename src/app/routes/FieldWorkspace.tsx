@@ -122,7 +122,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const savedCells = useMemo(() => Object.values(state.saved).sort((a, b) => a.id - b.id), [state.saved]);
   const selectedCellId = state.selected ? (state.saved[state.selected]?.id ?? null) : null;
   const live = scatter.live;
-  const liveStale = !!scatter.live && scatter.live.regionKey !== regionKey;
+  const liveStale = !!scatter.live && (scatter.live.regionKey !== regionKey || (!!scatter.view && (scatter.view.t1 !== scatter.live.t1 || scatter.view.t2 !== scatter.live.t2)));
   const regionSaturated = scatter.view && scatter.view.regionKey === regionKey ? (scatter.view.saturated.ch1 ?? 0) > 0 || (scatter.view.saturated.ch2 ?? 0) > 0 : false;
 
   const status =
@@ -256,7 +256,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         </aside>
       </div>
       <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
-      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} />
+      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} />
     </div>
   );
 }

@@ -4,7 +4,9 @@
  * cell's pixel scatter, exclusions, provenance, the methods paragraph and the cautions. Everything comes from the
  * frozen snapshot; nothing is recomputed.
  */
-import { lazy, Suspense, useState, type ComponentType } from 'react';
+import { useMemo, useState } from 'react';
+import { Comparison } from '@shared/schemas/compare';
+import { SuperPlot, SuperPlotLegend } from '@/features/compare/components/SuperPlot';
 import { Badge, Caution } from '@/components';
 import { COEFFICIENT_LABELS, CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
 import { ReplicatePlot } from './ReplicatePlot';
@@ -13,15 +15,11 @@ import { ScatterFigure } from './ScatterFigure';
 import { fmtDate, fmtNum, fmtP } from './palette';
 import './report-print.css';
 
-// The comparison screen's plot (issue 7) when it exists in this build; otherwise our own replicate plot.
-const superPlotModules = import.meta.glob('../../compare/components/SuperPlot.tsx');
-const superPlotLoader = Object.values(superPlotModules)[0];
-const SuperPlot = superPlotLoader
-  ? lazy(async () => {
-      const m = (await superPlotLoader()) as { SuperPlot?: ComponentType<{ data: unknown }>; default?: ComponentType<{ data: unknown }> };
-      return { default: (m.SuperPlot ?? m.default)! };
-    })
-  : null;
+/** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
+function frozenComparison(v: unknown): Comparison | null {
+  const r = Comparison.safeParse(v);
+  return r.success ? r.data : null;
+}
 
 const TABLE_LABELS: Record<CsvTable, string> = { cells: 'Cells', coverslips: 'Coverslip means', conditions: 'Condition summaries', statistics: 'Statistics', exclusions: 'Exclusions' };
 
@@ -35,12 +33,13 @@ function Section({ title, children, long = false, id }: { title: string; childre
 }
 
 function CoefficientPlot({ report, k }: { report: ReportDetail; k: ReportCoefficient }) {
-  const comparison = report.snapshot.comparisons[k];
-  if (SuperPlot && comparison)
+  const comparison = useMemo(() => frozenComparison(report.snapshot.comparisons[k]), [report, k]);
+  if (comparison && comparison.points.length > 0)
     return (
-      <Suspense fallback={<ReplicatePlot snapshot={report.snapshot} coefficient={k} />}>
+      <figure className="report-figure">
         <SuperPlot data={comparison} />
-      </Suspense>
+        <SuperPlotLegend data={comparison} />
+      </figure>
     );
   return <ReplicatePlot snapshot={report.snapshot} coefficient={k} />;
 }
@@ -207,10 +206,10 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
               {s.scatters.length > 1 && (
                 <label className="no-print flex items-center gap-2 text-xs text-ink-soft">
                   Cell
-                  <select className="rounded border border-ink/20 bg-white px-2 py-0.5 text-sm text-ink" value={shown.cellId} onChange={(e) => setPicked(Number(e.target.value))}>
+                  <select aria-label="Cell for the pixel scatter" className="rounded border border-ink/20 bg-white px-2 py-0.5 text-sm text-ink" value={shown.cellId} onChange={(e) => setPicked(Number(e.target.value))}>
                     {s.scatters.map((x) => (
                       <option key={x.cellId} value={x.cellId}>
-                        {x.fieldName} · {x.cellName}
+                        {condName.get(s.cells.find((c) => c.cellId === x.cellId)?.conditionId ?? 0) ?? ''} · {x.fieldName} · {x.cellName}
                       </option>
                     ))}
                   </select>

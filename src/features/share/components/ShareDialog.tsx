@@ -21,7 +21,7 @@ export function ShareDialog({ reportId, open, onClose }: { reportId: number; ope
   const emailError = err?.issues.find((i) => i.path.startsWith('emails'))?.message;
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
-    share.mutate({ emails: splitAddresses(emails), message, expiresInDays: Number(days), inviteToStudy: invite }, { onSuccess: onClose });
+    share.mutate({ emails: splitAddresses(emails), message, expiresInDays: Number(days), inviteToStudy: invite }, { onSuccess: (r) => (r.notSent.length ? undefined : onClose()) });
   };
   return (
     <Dialog
@@ -49,6 +49,9 @@ export function ShareDialog({ reportId, open, onClose }: { reportId: number; ope
             <span className="block text-xs text-ink-soft">They can then see this study's fields, cells and reports, nothing else. New people get an invitation to choose a password.</span>
           </span>
         </label>
+        {share.data && share.data.notSent.length > 0 && (
+          <ErrorNotice error={`The links were made, but the e-mail to ${share.data.notSent.join(', ')} could not be sent. Close this and use "Send again" in the links table.`} />
+        )}
         {share.error && !emailError && !err?.fieldError('expiresInDays') && <ErrorNotice error={share.error} />}
       </form>
     </Dialog>

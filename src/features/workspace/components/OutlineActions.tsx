@@ -51,7 +51,7 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
   );
 }
 
-export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone }: { fieldId: number; open: boolean; onClose: () => void; names: [string, string]; onDone: (msg: string) => void }) {
+export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z }: { fieldId: number; open: boolean; onClose: () => void; names: [string, string]; onDone: (msg: string) => void; z?: number | 'mip' }) {
   const m = useAutoOutline(fieldId);
   const [channel, setChannel] = useState<'ch1' | 'ch2' | 'sum'>('sum');
   const [method, setMethod] = useState<'otsu' | 'manual'>('otsu');
@@ -70,6 +70,7 @@ export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone }: { f
     minPixels: Math.max(1, Math.round(Number(minPixels) || 1)),
     maxPixels: maxPixels.trim() ? Math.round(Number(maxPixels)) : null,
     replace,
+    ...(z !== undefined ? { z } : {}),
   });
   const field = 'rounded border border-ink/20 bg-white px-1.5 py-1 text-sm';
   return (

@@ -144,12 +144,12 @@ export function PixelScatter({
         </p>
       )}
       <ThresholdInputs t1={data.t1} t2={data.t2} onChange={onThresholdsDone} />
-      <div className="mt-1 flex items-center justify-between text-xs text-ink-soft">
+      <div className="mt-1 flex items-start justify-between gap-2 text-xs text-ink-soft">
         <span>
           Thresholds {manual ? 'set by hand' : 'by Otsu (1979) on this region'}; above = strictly greater.
         </span>
         {manual && (
-          <button type="button" className="text-accent underline-offset-2 hover:underline" onClick={onReset}>
+          <button type="button" className="shrink-0 text-accent underline-offset-2 hover:underline" onClick={onReset}>
             Back to Otsu
           </button>
         )}

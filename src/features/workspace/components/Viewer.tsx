@@ -389,6 +389,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
             <span className="mt-0.5 font-mono">{bar.um} µm</span>
           </div>
         )}
+        {sel && tool === 'select' && canEdit && !handlesVisible(sel, v.scale) && <span>zoom in to edit the points of {sel.name}</span>}
         <span className="font-mono">
           {Math.round(v.scale * 1000) / 10}%{hover && hover[0] >= 0 && hover[1] >= 0 && hover[0] < W && hover[1] < H ? ` · x ${Math.floor(hover[0])}, y ${Math.floor(hover[1])}` : ''}
         </span>
