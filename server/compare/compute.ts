@@ -215,7 +215,8 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   const addHist = (key: HistogramSet['key'], label: string, get: (r: CellRow) => number | null, range: [number, number] | null) => {
     const all = used.map(get).filter((v): v is number => v !== null && Number.isFinite(v));
     if (!all.length) return;
-    const [lo, hi] = range ?? [Math.min(...all), Math.max(...all)];
+    let [lo, hi] = range ?? [Infinity, -Infinity];
+    if (!range) for (const v of all) (lo = v < lo ? v : lo), (hi = v > hi ? v : hi);
     const edges = equalEdges(lo, hi, opts.bins);
     const byCondition = conds.map((c) => ({
       conditionId: c.id,
@@ -240,6 +241,14 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   }
   if (omitted.provisional) warnings.push(`${omitted.provisional} cell values come from provisional measurements (a recipe not yet approved).`);
   if (omitted.saturated) warnings.push(`${omitted.saturated} cells contain saturated pixels, which bias co-localization coefficients.`);
+  if (withData.length === 2) {
+    // smallest two-sided exact Mann–Whitney p with these coverslip counts: 2 / C(n1 + n2, n1)
+    const [n1, n2] = [withData[0].ms.length, withData[1].ms.length];
+    let comb = 1;
+    for (let i = 1; i <= n1; i++) comb = (comb * (n2 + i)) / i;
+    const pmin = Math.min(1, 2 / comb);
+    if (pmin > 0.05) warnings.push(`With ${n1} and ${n2} coverslips the Mann–Whitney test cannot give p below ${pmin.toFixed(3)}, whatever the data; more coverslips are needed for a rank test to be informative.`);
+  }
   if (resamples < opts.resamples) warnings.push(`With ${nUsed} cells the bootstrap used ${resamples} resamples instead of ${opts.resamples} to keep the page responsive.`);
   if (fisher) warnings.push("Correlation coefficients are averaged through Fisher's z (|r| clamped at 1 − 1e−7).");
 

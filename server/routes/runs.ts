@@ -63,12 +63,24 @@ export function runSummary(ctx: AppContext, r: RunRow): RunSummary {
 export function runDetail(ctx: AppContext, r: RunRow): RunDetail {
   const db = ctx.db;
   const rows = db
-    .select({ fieldId: runFields.fieldId, name: fields.name, status: runFields.status, error: runFields.error, attempts: runFields.attempts, finishedAt: runFields.finishedAt })
+    .select({
+      fieldId: runFields.fieldId,
+      field: fields.name,
+      coverslip: coverslips.name,
+      condition: conditions.name,
+      status: runFields.status,
+      error: runFields.error,
+      attempts: runFields.attempts,
+      finishedAt: runFields.finishedAt,
+    })
     .from(runFields)
     .innerJoin(fields, eq(runFields.fieldId, fields.id))
+    .innerJoin(coverslips, eq(fields.coverslipId, coverslips.id))
+    .innerJoin(conditions, eq(coverslips.conditionId, conditions.id))
     .where(eq(runFields.runId, r.id))
-    .orderBy(runFields.fieldId)
-    .all();
+    .orderBy(conditions.position, conditions.id, coverslips.position, coverslips.id, fields.id)
+    .all()
+    .map(({ field, coverslip, condition, ...rest }) => ({ ...rest, name: `${condition} / ${coverslip} / ${field}` }));
   const perField = new Map(
     db
       .select({ fieldId: measurements.fieldId, n: sql<number>`count(*)` })

@@ -36,7 +36,7 @@ export class FieldJobError extends Error {
 }
 
 /** Maximum-intensity projection (or the slice itself when there is one). */
-function project(slices: ArrayLike<number>[], from: number, to: number): ChannelArray {
+export function project(slices: ArrayLike<number>[], from: number, to: number): ChannelArray {
   const first = slices[from] as ChannelArray;
   if (from === to) return first;
   const out = (first as Uint16Array).slice();

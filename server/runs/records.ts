@@ -191,6 +191,14 @@ export function queuedFieldsOf(db: Db, runId: number) {
     .all();
 }
 
+/** "condition / coverslip / field", as progress shows the field being computed. */
 export function fieldName(db: Db, fieldId: number) {
-  return db.select({ name: fields.name }).from(fields).where(eq(fields.id, fieldId)).get()?.name ?? `field ${fieldId}`;
+  const r = db
+    .select({ f: fields.name, cs: coverslips.name, c: conditions.name })
+    .from(fields)
+    .innerJoin(coverslips, eq(fields.coverslipId, coverslips.id))
+    .innerJoin(conditions, eq(coverslips.conditionId, conditions.id))
+    .where(eq(fields.id, fieldId))
+    .get();
+  return r ? `${r.c} / ${r.cs} / ${r.f}` : `field ${fieldId}`;
 }

@@ -20,8 +20,9 @@
  * Numerics: values are shifted by their rounded mean (dCor is translation invariant), sums are compensated.
  *
  * Degenerate cases: n < 2 or a constant channel → dCor null; n < 4 (or a constant channel) → the
- * bias-corrected value, T, df and p null;
- * so is a channel whose U-centred distance matrix is 0 (Ω(x, x) = 0, possible for n ≥ 4 without x constant). R*² = 1 → T null (infinite) and p = 0 (R* = 1) or 1 (R* = −1).
+ * bias-corrected value, T, df and p null; so is a channel whose U-centred distance matrix is 0
+ * (Ω(x, x) = 0, possible for n ≥ 4 without x constant, e.g. x = [3,2,1,2,2]). R*² = 1 → T null (infinite)
+ * and p = 0 (R* = 1) or 1 (R* = −1).
  */
 import tCdf from '@stdlib/stats-base-dists-t-cdf';
 import { Fenwick4, NeumaierSum, roundedMean } from './numeric';

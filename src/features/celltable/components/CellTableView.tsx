@@ -58,7 +58,13 @@ export function CellTableView({ study }: { study: StudyDetail }) {
   const sorting: SortingState = [{ id: sort, desc: dir === 'desc' }];
 
   const columns = useMemo<ColumnDef<GridRow>[]>(() => {
-    const text = (id: keyof GridRow & string, cell?: ColumnDef<GridRow>['cell']): ColumnDef<GridRow> => ({ id, accessorKey: id, header: COLUMN_LABELS[id] ?? id, cell, enableSorting: (SORT_KEYS as readonly string[]).includes(id) });
+    const text = (id: keyof GridRow & string, cell?: ColumnDef<GridRow>['cell']): ColumnDef<GridRow> => ({
+      id,
+      accessorKey: id,
+      header: COLUMN_LABELS[id] ?? id,
+      ...(cell ? { cell } : {}),
+      enableSorting: (SORT_KEYS as readonly string[]).includes(id),
+    });
     return [
       text('condition'),
       text('coverslip'),
@@ -126,8 +132,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
   const [rangeMax, setRangeMax] = useState('');
   const visibleExport = Object.entries(visibility)
     .filter(([, v]) => v)
-    .map(([k]) => k)
-    .filter((k) => k !== 'thresholdMethod' || true);
+    .map(([k]) => k);
   const csvParams = new URLSearchParams(apiParams);
   csvParams.delete('page');
   csvParams.delete('pageSize');
@@ -204,7 +209,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
         ))}
         <label className="flex flex-col gap-1 font-medium">
           Cell name
-          <input className={`${inputClass()} w-36`} defaultValue={params.get('q') ?? ''} onKeyDown={(e) => e.key === 'Enter' && update({ q: (e.target as HTMLInputElement).value })} placeholder="press Enter" />
+          <input className={inputClass()} style={{ width: '9rem' }} defaultValue={params.get('q') ?? ''} onKeyDown={(e) => e.key === 'Enter' && update({ q: (e.target as HTMLInputElement).value })} placeholder="press Enter" />
         </label>
       </div>
       <form
@@ -227,8 +232,12 @@ export function CellTableView({ study }: { study: StudyDetail }) {
             ))}
           </select>
         </label>
-        <input aria-label="from" className={`${inputClass()} w-24`} inputMode="decimal" placeholder="from" value={rangeMin} onChange={(e) => setRangeMin(e.target.value)} />
-        <input aria-label="to" className={`${inputClass()} w-24`} inputMode="decimal" placeholder="to" value={rangeMax} onChange={(e) => setRangeMax(e.target.value)} />
+        <div className="w-24">
+          <input aria-label="from" className={inputClass()} inputMode="decimal" placeholder="from" value={rangeMin} onChange={(e) => setRangeMin(e.target.value)} />
+        </div>
+        <div className="w-24">
+          <input aria-label="to" className={inputClass()} inputMode="decimal" placeholder="to" value={rangeMax} onChange={(e) => setRangeMax(e.target.value)} />
+        </div>
         <Button type="submit" size="sm">
           Add range
         </Button>
@@ -349,7 +358,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
         </Button>
         <label className="ml-2 flex items-center gap-1">
           Rows per page
-          <select className={`${inputClass()} w-20 py-1`} value={pageSize} onChange={(e) => update({ pageSize: e.target.value })}>
+          <select className={inputClass()} style={{ width: '5.5rem' }} value={pageSize} onChange={(e) => update({ pageSize: e.target.value })}>
             {[25, 50, 100, 200, 500].map((n) => (
               <option key={n}>{n}</option>
             ))}

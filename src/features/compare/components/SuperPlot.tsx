@@ -48,10 +48,15 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
       .range([0, iw])
       .paddingInner(0.25)
       .paddingOuter(0.15);
-    const values = data.points.map((p) => p.value);
-    const extra = data.conditions.flatMap((c) => [c.ci.lower, c.ci.upper, c.mean]).filter((v): v is number => v !== null);
-    let lo = Math.min(...values, ...extra);
-    let hi = Math.max(...values, ...extra);
+    let lo = Infinity;
+    let hi = -Infinity;
+    const see = (v: number | null) => {
+      if (v === null) return;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    };
+    for (const p of data.points) see(p.value);
+    for (const c of data.conditions) [c.ci.lower, c.ci.upper, c.mean].forEach(see);
     if (!Number.isFinite(lo)) [lo, hi] = [0, 1];
     if (lo === hi) [lo, hi] = [lo - 0.5, hi + 0.5];
     const pad = (hi - lo) * 0.05;

@@ -1,0 +1,55 @@
+/**
+ * The SuperPlot component (Lord et al. 2020 design) rendered to static SVG from a real computed comparison:
+ * one small point per cell, one large marker per coverslip mean, a mean bar per condition, palette colours.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { renderToStaticMarkup } from 'react-dom/server';
+import { makeTestApp, type TestApp } from '../utils/app.js';
+import { seedMeasurements } from './seed.js';
+import { computeComparison } from '../../server/compare/compute.js';
+import { SuperPlot } from '../../src/features/compare/components/SuperPlot';
+import { COVERSLIP_COLORS } from '../../src/features/compare/components/palette';
+import type { Comparison } from '../../shared/schemas/compare.js';
+
+let t: TestApp;
+let c: Comparison;
+beforeAll(async () => {
+  t = await makeTestApp();
+  const s = seedMeasurements(t.ctx, {
+    studyId: t.world.studyA,
+    userId: t.world.users.biologist.id,
+    conditions: [
+      { name: 'untreated', coverslips: [5, 6, 7], pearson: 0.2 },
+      { name: 'treated', coverslips: [4, 5, 6], pearson: 0.7 },
+    ],
+  });
+  c = await computeComparison(t.ctx, t.world.studyA, { coefficient: 'pearson', conditionIds: s.conditionIds, resamples: 200 });
+});
+afterAll(() => t.close());
+
+describe('SuperPlot', () => {
+  it('draws every cell, every coverslip mean and each condition mean with its interval', () => {
+    const html = renderToStaticMarkup(<SuperPlot data={c} />);
+    const cellsLayer = html.split('data-layer="cells"')[1].split('</g>')[0];
+    expect(cellsLayer.match(/<circle/g)?.length).toBe(33);
+    const means = html.split('data-layer="coverslip-means"')[1].split('</g>')[0];
+    expect(means.match(/<path/g)?.length).toBe(6);
+    for (let i = 0; i < 6; i++) expect(means).toContain(`fill="${COVERSLIP_COLORS[i]}"`);
+    expect(html).toContain('data-condition="untreated"');
+    expect(html).toContain('data-condition="treated"');
+    expect(html).toContain('<title id="superplot-title">');
+    expect(html).toContain(c.summary.replace(/'/g, '&#x27;').replace(/"/g, '&quot;').slice(0, 40));
+  });
+
+  it('places the higher condition mean higher on the page (SVG y grows downward)', () => {
+    const html = renderToStaticMarkup(<SuperPlot data={c} />);
+    const barY = (name: string) => {
+      const g = html.split(`data-condition="${name}"`)[1].split('</g>')[0];
+      const lines = [...g.matchAll(/stroke-width="3"[^>]*|<line[^>]*stroke-width="3"[^>]*/g)].map((m) => m[0]);
+      const any = g.match(/<line[^>]*y1="([-\d.]+)"[^>]*stroke-width="3"/) ?? g.match(/y1="([-\d.]+)"[^>]*y2="[-\d.]+"[^>]*stroke-width="3"/);
+      expect(lines.length + (any ? 1 : 0)).toBeGreaterThan(0);
+      return Number(any![1]);
+    };
+    expect(barY('treated')).toBeLessThan(barY('untreated'));
+  });
+});

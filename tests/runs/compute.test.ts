@@ -1,0 +1,116 @@
+/**
+ * computeField (server/runs/compute.ts): the recipe rules around the engine. References: the engine itself
+ * on independently prepared inputs (identity checks), and hand-computed values (common practice, no source).
+ */
+import { describe, expect, it } from 'vitest';
+import { computeField, blockPixels, project, zRange, FieldJobError } from '../../server/runs/compute.js';
+import type { FieldJob } from '../../server/runs/job.js';
+import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
+import { measureRegion } from '../../shared/analysis/index.js';
+import { cellIndices } from '../../shared/schemas/cells.js';
+import { syntheticPair } from './helpers.js';
+
+const W = 64, H = 48;
+const [A, B] = syntheticPair(W, H, 77);
+const rect = (x: number, y: number, w: number, h: number) => ({ kind: 'rect' as const, x, y, width: w, height: h });
+
+function job(settings: RecipeSettingsInput, cells: FieldJob['cells'], extra: Partial<FieldJob> = {}): FieldJob {
+  return {
+    runId: 1,
+    fieldId: 1,
+    fieldName: 'F',
+    sources: [{ key: 'k1', sha256: 'a'.repeat(64), channel: 1 }, { key: 'k1', sha256: 'a'.repeat(64), channel: 2 }],
+    width: W,
+    height: H,
+    sizeZ: 1,
+    bitDepth: 16,
+    sampleFormat: 'uint',
+    pixelSizeUm: null,
+    cells,
+    settings: RecipeSettings.parse(settings),
+    recipe: { id: 1, name: 'R', version: 1, status: 'approved' },
+    provisional: false,
+    ...extra,
+  };
+}
+
+describe('computeField', () => {
+  it('saturation "exclude" drops pixels saturated in either channel; fractions count them', () => {
+    const a = A.slice(), b = B.slice();
+    const g = rect(4, 4, 10, 10);
+    const idx = cellIndices(g, W, H);
+    a[idx[0]] = 65535; a[idx[1]] = 65535; b[idx[1]] = 65535; b[idx[2]] = 65535; // 3 distinct pixels, 2 per channel
+    const [keep] = computeField(job({ saturation: 'keep', threshold: { method: 'none' } }, [{ id: 1, role: 'cell', geometry: g }]), { width: W, height: H, ch1: a, ch2: b });
+    const [excl] = computeField(job({ saturation: 'exclude', threshold: { method: 'none' } }, [{ id: 1, role: 'cell', geometry: g }]), { width: W, height: H, ch1: a, ch2: b });
+    expect(keep.pixels).toBe(100);
+    expect(excl.pixels).toBe(97);
+    expect(keep.saturatedFraction1).toBeCloseTo(0.02, 12);
+    expect(keep.saturatedFraction2).toBeCloseTo(0.02, 12);
+    const ref = measureRegion(a, b, Array.from(idx).filter((i) => a[i] < 65535 && b[i] < 65535), {});
+    expect(excl.pearson).toBe(ref.pearson);
+    expect(excl.kendallTauB).toBe(ref.kendallTauB);
+  });
+
+  it('a constant background is subtracted with a floor at 0 and recorded', () => {
+    const g = rect(10, 10, 20, 20);
+    const [m] = computeField(job({ background: { method: 'constant', ch1: 150, ch2: 120 }, threshold: { method: 'none' } }, [{ id: 1, role: 'cell', geometry: g }]), { width: W, height: H, ch1: A, ch2: B });
+    const a = Uint16Array.from(A, (v) => Math.max(0, v - 150));
+    const b = Uint16Array.from(B, (v) => Math.max(0, v - 120));
+    const ref = measureRegion(a, b, cellIndices(g, W, H), {});
+    expect(m.pearson).toBe(ref.pearson);
+    expect(m.mandersM1).toBe(ref.mandersM1);
+    expect([m.background1, m.background2]).toEqual([150, 120]);
+    expect(m.mean1).toBeGreaterThanOrEqual(0);
+  });
+
+  it('cells below the smallest size get a row of nulls with a note; unchosen coefficients are null', () => {
+    const rows = computeField(
+      job({ minCellPixels: 50, coefficients: ['pearson', 'icq'] }, [
+        { id: 1, role: 'cell', geometry: rect(0, 0, 5, 5) },
+        { id: 2, role: 'cell', geometry: rect(20, 20, 10, 10) },
+      ]),
+      { width: W, height: H, ch1: A, ch2: B },
+    );
+    expect(rows[0]).toMatchObject({ cellId: 1, pixels: 25, pearson: null, icq: null, mandersM1: null });
+    expect(rows[0].provenance.note).toMatch(/fewer than 50/);
+    expect(rows[1].pearson).not.toBeNull();
+    expect(rows[1].icq).not.toBeNull();
+    expect(rows[1]).toMatchObject({ spearman: null, kendallTauB: null, distanceCorrelation: null, mandersM1: null, overlap: null });
+  });
+
+  it('thresholdScope "field": one pair of thresholds over the union of the cells', () => {
+    const cells = [
+      { id: 1, role: 'cell' as const, geometry: rect(0, 0, 30, 30) },
+      { id: 2, role: 'cell' as const, geometry: rect(30, 10, 30, 30) },
+    ];
+    const perCell = computeField(job({ threshold: { method: 'otsu' } }, cells), { width: W, height: H, ch1: A, ch2: B });
+    const perField = computeField(job({ threshold: { method: 'otsu' }, thresholdScope: 'field' }, cells), { width: W, height: H, ch1: A, ch2: B });
+    expect(perField[0].threshold1).toBe(perField[1].threshold1);
+    expect(perField[0].threshold2).toBe(perField[1].threshold2);
+    const union = new Set([...cellIndices(cells[0].geometry, W, H), ...cellIndices(cells[1].geometry, W, H)]);
+    const ref = measureRegion(A, B, [...union].sort((x, y) => x - y), { threshold: { method: 'otsu' } });
+    expect(perField[0].threshold1).toBe(ref.thresholds.ch1);
+    expect(perCell[0].threshold1).not.toBeNull();
+  });
+
+  it('the "region" background needs a marked region and names the field otherwise', () => {
+    expect(() => computeField(job({ background: { method: 'region' } }, [{ id: 1, role: 'cell', geometry: rect(0, 0, 9, 9) }]), { width: W, height: H, ch1: A, ch2: B })).toThrow(/"F" has none marked/);
+  });
+
+  it('block size from the point-spread width and pixel size (0.6 µm / 0.2 µm = 3 px); none without a pixel size', () => {
+    const s = (b: object) => RecipeSettings.parse({ randomization: { enabled: true, blockSize: b } });
+    expect(blockPixels(s({ kind: 'psf', psfWidthUm: 0.6, pixelSizeUm: 0.2 }), null)).toBe(3);
+    expect(blockPixels(s({ kind: 'psf', psfWidthUm: 0.6 }), 0.13)).toBe(5);
+    expect(() => blockPixels(s({ kind: 'psf', psfWidthUm: 0.6 }), null)).toThrow(FieldJobError);
+    expect(blockPixels(RecipeSettings.parse({}), 0.1)).toBeNull();
+  });
+
+  it('z handling: maximum-intensity projection per pixel; slices out of range are refused', () => {
+    const s = [Uint16Array.of(1, 9, 3), Uint16Array.of(4, 2, 3), Uint16Array.of(0, 0, 8)];
+    expect(Array.from(project(s, 0, 2))).toEqual([4, 9, 8]);
+    expect(Array.from(project(s, 1, 1))).toEqual([4, 2, 3]);
+    expect(zRange({ mode: 'mip' }, 3)).toEqual([0, 2]);
+    expect(zRange({ mode: 'range', from: 1, to: 2 }, 3)).toEqual([1, 2]);
+    expect(() => zRange({ mode: 'slice', slice: 3 }, 3)).toThrow(/slice 4, but the field has 3 slices/);
+  });
+});
