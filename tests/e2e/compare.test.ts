@@ -77,6 +77,9 @@ it('shows the demo effect (treated > untreated) on the Compare page, and exclusi
   await table.waitFor();
   const firstRow = table.locator('tbody tr').first();
   const cellId = await firstRow.getAttribute('data-cell-id');
+  // the row opens the cell in the field workspace
+  expect(await firstRow.getByRole('link').first().getAttribute('href')).toMatch(new RegExp(`^/studies/${study.id}/fields/\\d+\\?cell=${cellId}$`));
+  expect(await firstRow.innerText()).toMatch(/untreated/); // condition column filled
   await firstRow.getByRole('button', { name: 'Exclude…' }).click();
   const dialog = page.getByRole('dialog');
   await dialog.getByRole('button', { name: 'Exclude cell' }).click();

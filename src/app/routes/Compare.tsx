@@ -2,7 +2,7 @@
 import { useParams, useSearchParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, inputClass } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
-import { useMeasurementSources } from '@/features/celltable/api/useMeasurementSources';
+import { SourceSelect } from '@/features/celltable/components/SourceSelect';
 import { useComparison } from '@/features/compare/api/useComparison';
 import { ComparePanel } from '@/features/compare/components/ComparePanel';
 import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from '@shared/schemas/compare';
@@ -11,10 +11,9 @@ export function Component() {
   const studyId = Number(useParams().studyId);
   const [params, setParams] = useSearchParams();
   const study = useStudy(studyId);
-  const sources = useMeasurementSources(studyId);
   const q = new URLSearchParams();
   q.set('coefficient', params.get('coefficient') ?? 'pearson');
-  for (const k of ['recipeId', 'seed']) if (params.get(k)) q.set(k, params.get(k)!);
+  for (const k of ['recipeId', 'runId', 'seed']) if (params.get(k)) q.set(k, params.get(k)!);
   const cmp = useComparison(studyId, q);
   const set = (k: string, v: string) => {
     const next = new URLSearchParams(params);
@@ -45,17 +44,19 @@ export function Component() {
             ))}
           </select>
         </label>
-        <label className="flex flex-col gap-1 text-sm font-medium">
-          Measurements from
-          <select className={inputClass()} value={params.get('recipeId') ?? ''} onChange={(e) => set('recipeId', e.target.value)}>
-            <option value="">latest recipe used</option>
-            {sources.data?.recipes.map((r) => (
-              <option key={r.recipeId} value={r.recipeId}>
-                {r.name} v{r.version} ({r.runs.length} run{r.runs.length === 1 ? '' : 's'})
-              </option>
-            ))}
-          </select>
-        </label>
+        <SourceSelect
+          studyId={studyId}
+          recipeId={params.get('recipeId')}
+          runId={params.get('runId')}
+          onChange={(v) => {
+            const next = new URLSearchParams(params);
+            next.delete('recipeId');
+            next.delete('runId');
+            if (v.recipeId) next.set('recipeId', v.recipeId);
+            if (v.runId) next.set('runId', v.runId);
+            setParams(next, { replace: true });
+          }}
+        />
         <label className="flex flex-col gap-1 text-sm font-medium">
           Bootstrap seed
           <input className={`${inputClass()} w-28`} type="number" min={0} value={params.get('seed') ?? '1'} onChange={(e) => set('seed', e.target.value)} />

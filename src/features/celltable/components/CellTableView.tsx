@@ -9,7 +9,7 @@ import { Badge, Button, Caution, ErrorNotice, Loading, inputClass } from '@/comp
 import { COLUMN_LABELS, NUMERIC_COLUMNS, SORT_KEYS, type GridRow, type SortKey } from '@shared/schemas/measurements';
 import type { StudyDetail } from '@shared/schemas/studies';
 import { useCellTable } from '../api/useCellTable';
-import { useMeasurementSources } from '../api/useMeasurementSources';
+import { SourceSelect } from './SourceSelect';
 import { useExcludeCell } from '../api/useExcludeCell';
 import { useRestoreCell } from '../api/useRestoreCell';
 import { ExcludeDialog } from './ExcludeDialog';
@@ -29,7 +29,6 @@ export function CellTableView({ study }: { study: StudyDetail }) {
     return p;
   }, [params]);
   const grid = useCellTable(studyId, apiParams);
-  const sources = useMeasurementSources(studyId);
   const exclude = useExcludeCell(studyId);
   const restore = useRestoreCell(studyId);
   const [excluding, setExcluding] = useState<GridRow | null>(null);
@@ -157,17 +156,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
     <div className="space-y-4">
       {/* source and filters */}
       <div className="flex flex-wrap items-end gap-3 text-sm" role="search" aria-label="Filter cells">
-        <label className="flex flex-col gap-1 font-medium">
-          Measurements from
-          <select className={inputClass()} value={params.get('recipeId') ?? ''} onChange={(e) => update({ recipeId: e.target.value, runId: null })}>
-            <option value="">latest recipe used</option>
-            {sources.data?.recipes.map((r) => (
-              <option key={r.recipeId} value={r.recipeId}>
-                {r.name} v{r.version}
-              </option>
-            ))}
-          </select>
-        </label>
+        <SourceSelect studyId={studyId} recipeId={params.get('recipeId')} runId={params.get('runId')} onChange={(v) => update(v)} />
         <label className="flex flex-col gap-1 font-medium">
           Condition
           <select className={inputClass()} value={condId} onChange={(e) => update({ conditionId: e.target.value, coverslipId: null })}>

@@ -82,6 +82,7 @@ export function FieldList({ coverslipId, studyId, canEdit = false }: { coverslip
                       <dt className={i === 0 ? 'text-[#1a7f37]' : 'text-[#a3279a]'}>{names[i]}</dt>
                       <dd className="text-ink-soft">
                         {num(f.facts[k].min)}–{num(f.facts[k].max)}, mean {num(f.facts[k].mean)}
+                        {f.facts[k].saturatedFraction > 0 && f.sampleFormat === 'uint' && `, ${pct(f.facts[k].saturatedFraction)} at ${2 ** f.bitDepth - 1}`}
                       </dd>
                     </div>
                   ))}
