@@ -15,6 +15,7 @@ async function main() {
     throw e;
   }
   const ctx = await createContext(env);
+  await (await import('./recover.js')).recoverAfterCrash(ctx); // leftovers of an unclean stop (issue 9)
   if (env.SEED_DEMO === 'auto') {
     const { seedDemoIfEmpty } = await import('./db/seed/index.js');
     await seedDemoIfEmpty(ctx);

@@ -183,10 +183,34 @@ export async function renderPreview(ctx: AppContext, f: FieldRow, q: PreviewQuer
   await fsp.mkdir(dir, { recursive: true });
   const tmp = `${file}.${process.pid}.${crypto.randomUUID()}.part`;
   await fsp.writeFile(tmp, png);
-  await fsp.writeFile(`${meta}.part`, JSON.stringify({ width: outW, height: outH, ranges }));
-  await fsp.rename(`${meta}.part`, meta);
+  await fsp.writeFile(`${tmp}.json`, JSON.stringify({ width: outW, height: outH, ranges }));
+  await fsp.rename(`${tmp}.json`, meta);
   await fsp.rename(tmp, file);
+  if (++writesSincePrune >= 50) {
+    writesSincePrune = 0;
+    void prunePreviewCache(dir).catch(() => {});
+  }
   return { png, width: outW, height: outH, ranges, cached: false };
+}
+
+/** The disk cache is kept under PREVIEW_CACHE_BYTES by deleting the least recently written previews. */
+export const PREVIEW_CACHE_BYTES = 1024 ** 3;
+let writesSincePrune = 0;
+export async function prunePreviewCache(dir: string, limit = PREVIEW_CACHE_BYTES) {
+  const entries: { p: string; size: number; t: number }[] = [];
+  for (const name of await fsp.readdir(dir)) {
+    if (!name.endsWith('.png')) continue;
+    const st = await fsp.stat(path.join(dir, name)).catch(() => null);
+    if (st) entries.push({ p: path.join(dir, name), size: st.size, t: st.mtimeMs });
+  }
+  let total = entries.reduce((a, e) => a + e.size, 0);
+  entries.sort((a, b) => a.t - b.t);
+  for (const e of entries) {
+    if (total <= limit) break;
+    await fsp.rm(e.p, { force: true });
+    await fsp.rm(e.p.replace(/\.png$/, '.json'), { force: true });
+    total -= e.size;
+  }
 }
 
 /**

@@ -168,8 +168,23 @@ function deleteField(ctx: AppContext, f: FieldRow, userId: number, studyId: numb
 
 // ---------------------------------------------------------------- routes
 
+/** Upload temp files left by a crash (older than a day) are removed at start-up. */
+function sweepStaleTemps(ctx: AppContext) {
+  const dir = tempDir(ctx);
+  const cutoff = Date.now() - 24 * 3600 * 1000;
+  for (const name of fs.existsSync(dir) ? fs.readdirSync(dir) : []) {
+    const p = path.join(dir, name);
+    try {
+      if (name.startsWith('up-') && fs.statSync(p).mtimeMs < cutoff) fs.rmSync(p, { force: true });
+    } catch {
+      /* gone meanwhile */
+    }
+  }
+}
+
 export default function fieldsRoutes(ctx: AppContext) {
   const r = Router();
+  sweepStaleTemps(ctx);
   const upload = multer({
     storage: hashingStorage(ctx),
     // browsers send UTF-8 file names without a charset parameter ("Zelle µ1.tif")

@@ -111,7 +111,20 @@ async function runSize(size: number, repeats: number): Promise<IntakeBenchResult
 if (process.argv[1] && import.meta.url === pathToFileURL(process.argv[1]).href) {
   const sizes = process.env.BENCH_SIZE ? process.env.BENCH_SIZE.split(',').map(Number) : undefined;
   run({ sizes }).then((r) => {
-    console.log(JSON.stringify(r, null, 2));
+    if (process.env.BENCH_JSON) console.log(JSON.stringify(r, null, 2));
+    else {
+      console.log('case                                  file MB  upload ms  preview ms  total ms  cpu ms  peak RSS MB (+over start, ×file)  load');
+      for (const x of r) {
+        console.log(
+          `${x.name.padEnd(36)} ${(x.fileBytes / 2 ** 20).toFixed(1).padStart(7)} ${String(x.uploadMs).padStart(10)} ${String(x.previewMs).padStart(11)} ${String(x.totalMs).padStart(9)} ${String(x.cpuMs).padStart(7)}  ${String(x.peakRssMB).padStart(6)} (+${(x.peakRssMB - x.rssBeforeMB).toFixed(1)}, ×${x.peakOverFile})`.padEnd(118) + `  ${x.loadAvg1}`,
+        );
+      }
+      const big = r.filter((x) => x.name.includes('2048x2048')).slice(1);
+      if (big.length) {
+        const med = [...big].sort((a, b) => a.totalMs - b.totalMs)[Math.floor(big.length / 2)];
+        console.log(`2048² two-channel 16-bit, warm median: ${med.totalMs} ms wall (target < 1000), ${med.cpuMs} ms CPU`);
+      }
+    }
     process.exit(0);
   });
 }

@@ -19,14 +19,14 @@ const routes = [
 ];
 
 describe('Study page', () => {
-  it('lists conditions and coverslips with links to Cell table, Compare and Reports', async () => {
+  it('lists conditions and coverslips with links to Runs, Cell table, Compare and Reports', async () => {
     mockApi(asUser(demoUser(['biologist'])), on('GET', '/studies/3', () => ({ body: makeStudy() })));
     renderRoutes(routes, '/studies/3');
     expect(await screen.findByRole('heading', { level: 1, name: 'Puncta sharing' })).toBeTruthy();
     expect(screen.getByRole('heading', { name: 'Control' })).toBeTruthy();
     expect(screen.getByRole('heading', { name: 'Treated' })).toBeTruthy();
     const links = within(screen.getByRole('navigation', { name: 'Study pages' })).getAllByRole('link');
-    expect(links.map((a) => a.getAttribute('href'))).toEqual(['/studies/3/cells', '/studies/3/compare', '/studies/3/reports']);
+    expect(links.map((a) => a.getAttribute('href'))).toEqual(['/runs?studyId=3', '/studies/3/cells', '/studies/3/compare', '/studies/3/reports']);
     expect(screen.getByText('no cells outlined')).toBeTruthy();
   });
 

@@ -2,7 +2,8 @@
  * The bad-file table, each through the HTTP API: a specific 4xx with a message a microscopist understands,
  * and afterwards no new object in the store, no new database row and no temp file left behind.
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
+import { allowConsoleError } from '../utils/setup.js';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { fixture } from './fixtures.js';
 import { snapshot } from './helpers.js';
@@ -117,5 +118,33 @@ describe('upload limits are settings', () => {
     expect(res.status).toBe(413);
     expect(res.body.error).toMatch(/at most 2/);
     expect(await snapshot(small)).toEqual(before);
+  });
+});
+
+describe('failures after the file reached the store leave nothing behind', () => {
+  it('a database failure while writing the rows removes the new store object (500, logged)', async () => {
+    allowConsoleError();
+    const before = await snapshot(t);
+    const spy = vi.spyOn(t.ctx.db, 'transaction').mockImplementationOnce(() => {
+      throw new Error('disk I/O error (injected)');
+    });
+    const agent = await t.login('microscopist');
+    const res = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', fixture('uint16_tiled.tif'));
+    spy.mockRestore();
+    expect(res.status).toBe(500);
+    expect(res.body.error).toMatch(/server error/);
+    expect(await snapshot(t)).toEqual(before);
+  });
+  it('two uploads of the same new file at once: one stored object, two fields', async () => {
+    const before = await snapshot(t);
+    const agent = await t.login('microscopist');
+    const send = () => agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', fixture('uint16_strips5.tif'));
+    const [a, b] = await Promise.all([send(), send()]);
+    expect([a.status, b.status]).toEqual([201, 201]);
+    const after = await snapshot(t);
+    expect(after.store.length - before.store.length).toBe(1);
+    expect(after.rows.fields - before.rows.fields).toBe(2);
+    expect(after.rows.files - before.rows.files).toBe(1);
+    expect(after.temps).toEqual([]);
   });
 });

@@ -1,7 +1,6 @@
 /** Helpers for intake API tests: state snapshots (store keys, table counts, temp files). */
 import fs from 'node:fs';
 import path from 'node:path';
-import { sql } from 'drizzle-orm';
 import type { TestApp } from '../utils/app.js';
 
 export interface Snapshot {
@@ -24,6 +23,5 @@ export async function snapshot(t: TestApp): Promise<Snapshot> {
     }
   };
   walk(tmp);
-  void sql;
   return { store: (await t.ctx.store.list()).sort(), rows, temps };
 }

@@ -109,3 +109,18 @@ describe('float fields over /pixels', () => {
     expect((ok.body as Buffer).readFloatLE(0)).toBe(expectedPlane('float32', 0, 2, 64, 48)[0]);
   });
 });
+
+describe('preview disk cache', () => {
+  it('is pruned oldest first down to the limit', async () => {
+    const { prunePreviewCache } = await import('../../server/images/preview.js');
+    const dir = path.join(tmp, 'cache');
+    fs.mkdirSync(dir, { recursive: true });
+    for (let i = 0; i < 5; i++) {
+      fs.writeFileSync(path.join(dir, `k${i}.png`), Buffer.alloc(1000));
+      fs.writeFileSync(path.join(dir, `k${i}.json`), '{}');
+      fs.utimesSync(path.join(dir, `k${i}.png`), new Date(1e12 + i * 1000), new Date(1e12 + i * 1000));
+    }
+    await prunePreviewCache(dir, 2500);
+    expect(fs.readdirSync(dir).sort()).toEqual(['k3.json', 'k3.png', 'k4.json', 'k4.png']);
+  });
+});

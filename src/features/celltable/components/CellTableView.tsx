@@ -277,6 +277,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
             <thead className="sticky top-0 bg-paper">
               {table.getHeaderGroups().map((hg) => (
                 <tr key={hg.id} className="border-b border-ink/10">
+                  {canExclude && <th className="px-2 py-1.5 text-left font-medium text-ink-soft">Review</th>}
                   {hg.headers.map((h) => {
                     const s = h.column.getIsSorted();
                     const numeric = (h.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
@@ -293,21 +294,12 @@ export function CellTableView({ study }: { study: StudyDetail }) {
                       </th>
                     );
                   })}
-                  {canExclude && <th className="px-2 py-1.5 text-left font-medium text-ink-soft">Review</th>}
                 </tr>
               ))}
             </thead>
             <tbody>
               {table.getRowModel().rows.map((row) => (
                 <tr key={row.id} className={`border-b border-ink/5 ${row.original.excluded ? 'bg-danger-soft/40 text-ink-soft' : ''}`} data-cell-id={row.original.cellId}>
-                  {row.getVisibleCells().map((c) => {
-                    const numeric = (c.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
-                    return (
-                      <td key={c.id} className={`whitespace-nowrap px-2 py-1 ${numeric ? 'text-right font-mono' : ''}`}>
-                        {flexRender(c.column.columnDef.cell, c.getContext())}
-                      </td>
-                    );
-                  })}
                   {canExclude && (
                     <td className="px-2 py-1">
                       {row.original.excluded ? (
@@ -319,6 +311,14 @@ export function CellTableView({ study }: { study: StudyDetail }) {
                           Exclude…
                         </Button>
                       )}
+                  {row.getVisibleCells().map((c) => {
+                    const numeric = (c.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
+                    return (
+                      <td key={c.id} className={`whitespace-nowrap px-2 py-1 ${numeric ? 'text-right font-mono' : ''}`}>
+                        {flexRender(c.column.columnDef.cell, c.getContext())}
+                      </td>
+                    );
+                  })}
                     </td>
                   )}
                 </tr>

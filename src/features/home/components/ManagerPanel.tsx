@@ -7,6 +7,7 @@ import { formatWhen } from '@/features/outbox/components/OutboxList';
 import { Card } from '@/components/Card';
 import { focusRing } from '@/components/cx';
 import { Tile } from './Tile';
+import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
 
 export function ManagerPanel() {
   const review = useReviewQueueCount();
@@ -24,6 +25,9 @@ export function ManagerPanel() {
         <Tile label="Invitations not yet accepted" value={invited} pending={users.isPending} to="/people" tone="attention" />
         <Tile label="Accounts" value={users.data?.length ?? null} pending={users.isPending} to="/people" note={disabled ? `${disabled} disabled` : undefined} />
       </div>
+      <Card title="Review queue" actions={<Link to="/review" className={`rounded text-sm text-accent-dark hover:underline ${focusRing}`}>Open the Review queue</Link>}>
+        <ReviewQueueList compact />
+      </Card>
       <Card title="Latest mail" actions={<Link to="/outbox" className={`rounded text-sm text-accent-dark hover:underline ${focusRing}`}>Open the Outbox</Link>}>
         {outbox.isError ? (
           <p className="text-sm text-ink-soft">The Outbox could not be read: {outbox.error.message}</p>

@@ -1,9 +1,10 @@
-/** The study's other places: Cell table, Compare, Reports. */
+/** The study's other places: Runs, Cell table, Compare, Reports. */
 import { NavLink } from 'react-router';
 import { buttonClass } from '@/components/Button';
 
 export function StudyLinks({ studyId }: { studyId: number }) {
   const links = [
+    { to: `/runs?studyId=${studyId}`, label: 'Runs' },
     { to: `/studies/${studyId}/cells`, label: 'Cell table' },
     { to: `/studies/${studyId}/compare`, label: 'Compare' },
     { to: `/studies/${studyId}/reports`, label: 'Reports' },
