@@ -311,6 +311,8 @@ export function CellTableView({ study }: { study: StudyDetail }) {
                           Exclude…
                         </Button>
                       )}
+                    </td>
+                  )}
                   {row.getVisibleCells().map((c) => {
                     const numeric = (c.column.columnDef.meta as { numeric?: boolean } | undefined)?.numeric;
                     return (
@@ -319,8 +321,6 @@ export function CellTableView({ study }: { study: StudyDetail }) {
                       </td>
                     );
                   })}
-                    </td>
-                  )}
                 </tr>
               ))}
               {table.getRowModel().rows.length === 0 && (
