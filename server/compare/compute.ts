@@ -239,6 +239,8 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   for (const c of conditions) {
     if (c.nCoverslips < 3) warnings.push(`${c.name} has ${c.nCoverslips} coverslip${c.nCoverslips === 1 ? '' : 's'} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
   }
+  if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${COMPARE_LABELS[coefficient]} (for example no pixels above threshold or a constant channel) and are left out.`);
+  if (omitted.excluded) warnings.push(`${omitted.excluded} excluded cell${omitted.excluded === 1 ? ' is' : 's are'} left out (reasons in the Cell table).`);
   if (omitted.provisional) warnings.push(`${omitted.provisional} cell values come from provisional measurements (a recipe not yet approved).`);
   if (omitted.saturated) warnings.push(`${omitted.saturated} cells contain saturated pixels, which bias co-localization coefficients.`);
   if (withData.length === 2) {
