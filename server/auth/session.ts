@@ -1,9 +1,9 @@
 /** Session JWTs (jose, HS256) carried in an httpOnly SameSite=Lax cookie. */
 import { SignJWT, jwtVerify } from 'jose';
 import type { Request, Response, RequestHandler } from 'express';
-import { eq } from 'drizzle-orm';
+import { eq, lt } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { users, type Role } from '../db/schema.js';
+import { revokedSessions, users, type Role } from '../db/schema.js';
 import { unauthorized } from '../http/errors.js';
 
 export const SESSION_COOKIE = 'syntopy_session';
@@ -20,6 +20,8 @@ declare global {
   namespace Express {
     interface Request {
       user?: SessionUser;
+      /** id and expiry (s) of the session token that signed this request in */
+      session?: { jti: string; exp: number };
     }
   }
 }
@@ -58,9 +60,11 @@ export function authenticate(ctx: AppContext): RequestHandler {
     try {
       const { payload } = await jwtVerify(token, key(ctx.env.SESSION_SECRET), { algorithms: ['HS256'] });
       if (payload.typ !== 'session') return next();
+      if (payload.jti && ctx.db.select().from(revokedSessions).where(eq(revokedSessions.jti, payload.jti)).get()) return next();
       const u = ctx.db.select().from(users).where(eq(users.id, Number(payload.sub))).get();
       if (u && !u.disabled && u.sessionVersion === payload.sv) {
         req.user = { id: u.id, email: u.email, name: u.name, roles: u.roles };
+        if (payload.jti && payload.exp) req.session = { jti: payload.jti, exp: payload.exp };
       }
     } catch {
       /* expired or tampered: treated as signed out */
@@ -70,3 +74,16 @@ export function authenticate(ctx: AppContext): RequestHandler {
 }
 
 export const requireUser: RequestHandler = (req, _res, next) => (req.user ? next() : next(unauthorized()));
+
+/** Ends the request's session token on the server (sign-out), so a copied cookie stops working too. */
+export function revokeSession(ctx: AppContext, req: Request) {
+  if (!req.session) return;
+  const nowIso = new Date().toISOString();
+  ctx.db.transaction((tx) => {
+    tx.delete(revokedSessions).where(lt(revokedSessions.expiresAt, nowIso)).run();
+    tx.insert(revokedSessions)
+      .values({ jti: req.session!.jti, expiresAt: new Date(req.session!.exp * 1000).toISOString() })
+      .onConflictDoNothing()
+      .run();
+  });
+}

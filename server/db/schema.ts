@@ -34,6 +34,12 @@ export const invitations = sqliteTable('invitations', {
   createdAt: createdAt(),
 });
 
+/** Session tokens ended by sign-out before their expiry (pruned once expired). */
+export const revokedSessions = sqliteTable('revoked_sessions', {
+  jti: text('jti').primaryKey(),
+  expiresAt: text('expires_at').notNull(),
+});
+
 export const loginAttempts = sqliteTable('login_attempts', {
   id: id(),
   key: text('key').notNull(),

@@ -21,7 +21,7 @@ import zlib from 'node:zlib';
 import { addDecoder, BaseDecoder, fromArrayBuffer } from 'geotiff';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
-import { bufferReader, checkPageExtents, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
+import { bufferReader, checkPageExtents, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
 
 export { ImageInputError };
 
@@ -402,6 +402,7 @@ export async function checkChannel1(input: TiffInput, channel: number, label = `
   return withReader(input, async (r) => {
     const plan = await planOf(r, opts);
     const c = await checkChannel(r, plan, channel, label, opts.pixelBudget ?? DEFAULT_BUDGET);
+    await checkTrailingData(r, plan.header);
     return { info: plan.info, width: c.width, height: c.height, bitsPerSample: c.bits, sampleFormat: c.float ? 'float' : 'uint', sizeZ: plan.planes[channel - 1].length };
   });
 }

@@ -80,6 +80,8 @@ export interface TiffHeader {
   pages: PageHeader[];
   /** ImageDescription of the first page (OME-XML lives here), null when absent */
   description: string | null;
+  /** the last byte + 1 that the header, the directories and their out-of-line values refer to */
+  structureEnd: number;
 }
 
 export const MAX_PAGES = 100_000;
@@ -111,6 +113,9 @@ class Walker {
     return this.r.read(offset, length);
   }
 
+  /** furthest byte + 1 referred to by what was read so far (directories and out-of-line values) */
+  extent = 0;
+
   async readIfd(offset: number): Promise<{ entries: Map<number, RawEntry>; next: number }> {
     const cntSize = this.big ? 8 : 2;
     const entSize = this.big ? 20 : 12;
@@ -132,7 +137,9 @@ class Walker {
       const inline = bytes <= valSize ? body.slice(vo, vo + bytes) : null;
       const off = inline ? 0 : this.big ? this.u64(body, vo) : this.u32(body, vo);
       entries.set(tag, { type, count: n, inline, offset: off });
+      if (!inline) this.extent = Math.max(this.extent, off + bytes);
     }
+    this.extent = Math.max(this.extent, offset + cntSize + count * entSize + (this.big ? 8 : 4));
     const no = count * entSize;
     const next = this.big ? this.u64(body, no) : this.u32(body, no);
     return { entries, next };
@@ -229,7 +236,37 @@ export async function readTiffHeader(r: ByteReader): Promise<TiffHeader> {
     offset = next;
   }
   if (pages.length === 0) throw new TiffHeaderError('the file contains no images');
-  return { littleEndian: le, bigTiff: big, fileSize: r.size, pages, description };
+  return { littleEndian: le, bigTiff: big, fileSize: r.size, pages, description, structureEnd: Math.max(w.extent, big ? 16 : 8) };
+}
+
+/** Trailing bytes tolerated after the last referenced byte (writers may pad); anything more is refused. */
+export const MAX_TRAILING_BYTES = 4096;
+const EMBEDDED_SIGNATURES: [string, RegExp][] = [
+  ['a ZIP archive', /PK\x03\x04|PK\x05\x06/],
+  ['an HTML or SVG document', /<\s*(html|script|!doctype|svg|body|iframe)/i],
+];
+
+/**
+ * Refuses a file that carries data after everything its directories refer to (e.g. a TIFF with an HTML page
+ * or a ZIP archive appended: a "polyglot"). Such bytes are never image data, so nothing is lost by refusing.
+ */
+export async function checkTrailingData(r: ByteReader, h: TiffHeader): Promise<void> {
+  let end = h.structureEnd;
+  for (const p of h.pages) {
+    const { offsets, counts } = await pageBlocks(r, h, p);
+    for (let i = 0; i < offsets.length; i++) end = Math.max(end, offsets[i] + (counts[i] ?? 0));
+  }
+  const trailing = h.fileSize - end;
+  if (trailing <= 0) return;
+  const tail = await r.read(end, Math.min(trailing, 64 * 1024));
+  let text = '';
+  for (let i = 0; i < tail.length; i++) text += String.fromCharCode(tail[i]);
+  for (const [what, re] of EMBEDDED_SIGNATURES) {
+    if (re.test(text)) throw new TiffHeaderError(`the file carries ${what} after its image data (${trailing} extra bytes); upload the plain TIFF image`, 422);
+  }
+  if (trailing > MAX_TRAILING_BYTES) {
+    throw new TiffHeaderError(`the file has ${trailing} bytes after the end of its image data, which no TIFF writer adds; upload the plain TIFF image`, 422);
+  }
 }
 
 /**

@@ -6,7 +6,7 @@ import { auditEvents, invitations, users } from '../db/schema.js';
 import { AcceptInvitationRequest, ChangePasswordRequest, InvitationInfo, LoginRequest, MeResponse } from '../../shared/schemas/auth.js';
 import { HttpError, badRequest, gone, notFound, parse, unauthorized } from '../http/errors.js';
 import { DUMMY_HASH, hashPassword, verifyPassword } from '../auth/passwords.js';
-import { clearSessionCookie, requireUser, setSessionCookie, signSession } from '../auth/session.js';
+import { clearSessionCookie, requireUser, revokeSession, setSessionCookie, signSession } from '../auth/session.js';
 import { THROTTLED_MESSAGE, THROTTLE, clearFailures, isThrottled, recordFailure } from '../auth/throttle.js';
 import { findInvitation } from '../auth/invitations.js';
 
@@ -42,6 +42,7 @@ export default function authRoutes(ctx: AppContext) {
   });
 
   r.post('/auth/logout', (req, res) => {
+    revokeSession(ctx, req);
     clearSessionCookie(req, res);
     res.json({ ok: true });
   });

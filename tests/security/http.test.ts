@@ -6,6 +6,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import supertest from 'supertest';
+import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
@@ -113,13 +114,23 @@ describe('session cookie', () => {
     expect((await supertest(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${old}`)).status).toBe(401);
   });
 
-  // KNOWN GAP (reported to H2/lead): sign-out only clears the cookie in the browser; the signed token itself stays
-  // valid until it expires (SESSION_HOURS), so a copied cookie survives sign-out (OWASP ASVS v4.0.3 §3.3.1).
-  // it.fails flips to a failure once sign-out revokes the token: then make this a plain `it`.
-  it.fails('sign-out makes the token unusable server-side', async () => {
+  // Sign-out revokes the token server-side (revoked_sessions), so a copied cookie does not survive it
+  // (OWASP ASVS v4.0.3 §3.3.1).
+  it('sign-out makes the token unusable server-side', async () => {
     const v = cookieOf(await login())!.value;
     await supertest(t.app).post('/api/auth/logout').set('Cookie', `${SESSION_COOKIE}=${v}`);
     expect((await supertest(t.app).get('/api/auth/me').set('Cookie', `${SESSION_COOKIE}=${v}`)).status).toBe(401);
+  });
+});
+
+describe('sign-in timing', () => {
+  // The dummy hash for unknown e-mails has the production cost, so timing does not reveal which accounts exist
+  // (OWASP ASVS v4.0.3 §2.2.1 / WSTG-IDNT-04).
+  it('the dummy hash for unknown e-mails costs as much as a real password hash (production settings)', () => {
+    const code = `import('./server/auth/passwords.ts').then(async (m) => { const b = (await import('bcryptjs')).default; console.log(JSON.stringify([b.getRounds(m.DUMMY_HASH), b.getRounds(await m.hashPassword('x'))])); })`;
+    const r = spawnSync(process.execPath, ['--import', 'tsx', '-e', code], { env: { ...process.env, NODE_ENV: 'production' }, encoding: 'utf8', timeout: 60_000 });
+    const [dummy, real] = JSON.parse(r.stdout.trim().split('\n').pop()!) as [number, number];
+    expect(dummy).toBe(real);
   });
 });
 

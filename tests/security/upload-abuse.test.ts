@@ -62,10 +62,9 @@ describe('upload abuse is refused and nothing is stored', () => {
     });
   }
 
-  // KNOWN GAP (reported to H4): a valid TIFF followed by an HTML page and a ZIP archive is accepted and stored,
-  // because nothing checks for data past the last IFD / strip. Stored files are never served raw (previews are
-  // re-encoded PNGs), so the risk is low, but issue 9 asks for the refusal. it.fails flips once it is refused.
-  it.fails('polyglot tiff-html-zip.tif (a valid TIFF with HTML and a ZIP appended)', async () => {
+  // A valid TIFF followed by an HTML page and a ZIP archive is refused: nothing may follow the last byte its
+  // directories refer to (server/images/tiffheader.ts checkTrailingData).
+  it('polyglot tiff-html-zip.tif (a valid TIFF with HTML and a ZIP appended)', async () => {
     const before = await state();
     const res = await upload(polyglots().filter((p) => p.name === 'tiff-html-zip.tif'));
     const after = await state();

@@ -1,0 +1,4 @@
+CREATE TABLE `revoked_sessions` (
+	`jti` text PRIMARY KEY NOT NULL,
+	`expires_at` text NOT NULL
+);
