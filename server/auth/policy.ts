@@ -61,7 +61,7 @@ export function requireStudy(ctx: AppContext, user: SessionUser | undefined, stu
   if (!study) throw notFound(`no study with id ${studyId}`);
   const perms = studyPermissions(ctx, user, study);
   if (!perms.has('read')) throw notFound(`no study with id ${studyId}`);
-  if (!perms.has(action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow "${action}" in this study`);
+  if (!perms.has(action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow ${ACTION_WORDS[action] ?? `"${action}"`} in this study`);
   return study;
 }
 
@@ -89,7 +89,24 @@ export function can(user: SessionUser | undefined, action: GlobalAction): boolea
   }
 }
 
+/** Plain words for each action, for the 403 message a person reads. */
+const ACTION_WORDS: Record<StudyAction | GlobalAction, string> = {
+  read: 'reading',
+  edit_structure: 'changing conditions and coverslips',
+  edit_images: 'uploading fields or outlining cells',
+  run: 'starting runs',
+  exclude: 'excluding or restoring cells',
+  report: 'making reports or share links',
+  delete: 'deleting the study',
+  create_study: 'creating studies',
+  manage_users: 'managing accounts and labs',
+  read_outbox: 'reading the Outbox',
+  propose_recipe: 'proposing recipes',
+  review_recipe: 'reviewing recipes',
+  read_recipes: 'reading recipes',
+};
+
 export function requireCan(user: SessionUser | undefined, action: GlobalAction) {
   if (!user) throw unauthorized();
-  if (!can(user, action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow "${action}"`);
+  if (!can(user, action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow ${ACTION_WORDS[action] ?? `"${action}"`}`);
 }

@@ -3,14 +3,17 @@ import { createBrowserRouter } from 'react-router';
 import { Shell } from './Shell';
 
 const lazy = (load: () => Promise<{ Component: React.ComponentType }>) => async () => ({ Component: (await load()).Component });
+/** Shown while the first page's module loads (keeps React Router from warning on every fresh page load). */
+const HydrateFallback = () => <div className="p-8 text-ink-soft">Loading…</div>;
 
 export const router = createBrowserRouter([
-  { path: '/signin', lazy: lazy(() => import('./routes/SignIn')) },
-  { path: '/invite/:token', lazy: lazy(() => import('./routes/AcceptInvite')) },
-  { path: '/shared/:token', lazy: lazy(() => import('./routes/SharedReport')) },
+  { path: '/signin', HydrateFallback, lazy: lazy(() => import('./routes/SignIn')) },
+  { path: '/invite/:token', HydrateFallback, lazy: lazy(() => import('./routes/AcceptInvite')) },
+  { path: '/shared/:token', HydrateFallback, lazy: lazy(() => import('./routes/SharedReport')) },
   {
     path: '/',
     Component: Shell,
+    HydrateFallback,
     children: [
       { index: true, lazy: lazy(() => import('./routes/Home')) },
       { path: 'studies', lazy: lazy(() => import('./routes/Studies')) },

@@ -161,6 +161,12 @@ const big = () => {
 };
 
 describe('the server is killed during an upload', () => {
+  /** the server started after the last crash: the next trial's victim (saves a start per trial) */
+  let live: Srv | undefined;
+  afterAll(async () => {
+    if (live) await kill(live);
+  });
+
   it('mid-stream: after a restart no temp file, no orphan, and the coverslip has no half field', async () => {
     const s1 = await start();
     const cookie = await signIn(s1);
@@ -175,7 +181,7 @@ describe('the server is killed during an upload', () => {
     const crashed = consistency();
     const s2 = await start();
     const after = consistency();
-    await kill(s2);
+    live = s2;
     expect({ ...after, crashedTemps: crashed.tempFiles.length > 0 }).toEqual({ ...before, tempFiles: [], crashedTemps: true });
   }, 120_000);
 
@@ -183,7 +189,7 @@ describe('the server is killed during an upload', () => {
     const delays = [0, 60, 250];
     const seen: string[] = [];
     for (const delay of delays) {
-      const s1 = await start();
+      const s1 = live ?? (await start());
       const cookie = await signIn(s1);
       const before = consistency();
       const { req, answer } = beginUpload(s1, cookie, big(), { end: true });
@@ -194,7 +200,7 @@ describe('the server is killed during an upload', () => {
       const status = await answer;
       const s2 = await start();
       const after = consistency();
-      await kill(s2);
+      live = s2;
       // either the field exists completely (and the answer may have been lost) or nothing of it exists
       const added = after.fields - before.fields;
       seen.push(`${delay} ms: answer ${status}, field ${added ? 'complete' : 'absent'}, ${s2.out().match(/removed \d+ leftover[^\n]*/)?.[0] ?? 'nothing to clean'}`);
@@ -206,6 +212,8 @@ describe('the server is killed during an upload', () => {
       ).toEqual({ integrity: 'ok', orphan: [], missing: [], broken: [], part: [], temps: [] });
     }
     console.log(`[faults] kill points after the upload body:\n  ${seen.join('\n  ')}`);
+    await kill(live!);
+    live = undefined;
   }, 300_000);
 
   it('the start-up clean-up removes temp files, partial files and store objects without a row, and keeps the rest', async () => {

@@ -149,3 +149,32 @@ describe('share tokens replayed after revocation', () => {
     expect((await bio.get(`/api/shared/${e.shareToken}`)).status).toBe(410);
   });
 });
+
+describe('CSV (formula) injection in downloads', () => {
+  // Payloads: OWASP "CSV Injection" page (formula and DDE forms). A safe export starts such text fields with '.
+  const PAYLOADS = ['=HYPERLINK("http://evil.example","x")', '+SUM(1,2)', "-1+cmd|' /C calc'!A0", '@SUM(1+1)'];
+  const fieldsOf = (csv: string) => csv.split('\r\n').flatMap((line) => line.match(/("([^"]|"")*"|[^,]*)/g) ?? []).map((f) => (f.startsWith('"') ? f.slice(1, -1).replace(/""/g, '"') : f));
+  const unsafe = (csv: string) => fieldsOf(csv).filter((f) => /^[=+\-@]/.test(f) && !/^-?\d+(\.\d+)?(e[-+]?\d+)?$/i.test(f));
+
+  it('the Cell table CSV neutralises formulas in cell names and exclusion reasons', async () => {
+    const cells = (await bio.get(`/api/studies/${e.studyId}/cell-table`).query({ pageSize: 10 })).body.rows as { cellId: number }[];
+    const micro = await t.login('microscopist');
+    for (const [i, p] of PAYLOADS.entries()) {
+      expect((await micro.patch(`/api/cells/${cells[i].cellId}`).send({ name: p })).status).toBe(200);
+      expect((await bio.post(`/api/cells/${cells[i + 4].cellId}/exclusion`).send({ reason: p })).status).toBe(200);
+    }
+    const csv = (await bio.get(`/api/studies/${e.studyId}/cells.csv`).query({ columns: 'cellId,cell,exclusionReason' })).text;
+    for (const p of PAYLOADS) expect(csv).toContain(p.includes(',') || p.includes('"') ? `'${p.replace(/"/g, '""')}` : `'${p}`);
+    expect(unsafe(csv)).toEqual([]);
+  });
+
+  // KNOWN BUG (reported to H8): server/reports/csv.ts:13 exempts text that starts with "-<digit>" from the
+  // apostrophe, so the DDE payload "-1+cmd|' /C calc'!A0" goes out live. it.fails flips once it is neutralised.
+  it.fails('a report CSV neutralises formulas in exclusion reasons (DDE form "-1+cmd|…")', async () => {
+    const rep = await bio.post(`/api/studies/${e.studyId}/reports`).send({ title: 'CSV injection report', coefficients: ['pearson'] });
+    expect(rep.status).toBe(201);
+    const csv = (await bio.get(`/api/reports/${rep.body.id}/csv/exclusions`)).text;
+    expect(csv).toContain('HYPERLINK');
+    expect(unsafe(csv)).toEqual([]);
+  });
+});

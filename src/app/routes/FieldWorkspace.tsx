@@ -23,14 +23,17 @@ import { PixelScatter } from '@/features/workspace/components/PixelScatter';
 import { LivePreview } from '@/features/workspace/components/LivePreview';
 import { ResultsTable } from '@/features/workspace/components/ResultsTable';
 import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace/components/OutlineActions';
+import { ApiError } from '@/lib/api';
+import { Component as NotFound } from './NotFound';
 
 export function Component() {
   const params = useParams();
   const studyId = Number(params.studyId);
   const fieldId = Number(params.fieldId);
   const field = useFieldDetail(fieldId);
+  if (!Number.isInteger(fieldId) || fieldId <= 0) return <NotFound />;
   if (field.isPending) return <Loading label="Opening the field…" />;
-  if (field.isError) return <ErrorNotice error={field.error} />;
+  if (field.isError) return field.error instanceof ApiError && field.error.status === 404 ? <NotFound /> : <ErrorNotice error={field.error} />;
   return <Workspace key={fieldId} studyId={studyId} field={field.data} />;
 }
 

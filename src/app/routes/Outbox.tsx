@@ -49,7 +49,7 @@ export function Component() {
               </Button>
             )}
           </div>
-          <div>{selected ? <OutboxMessageView id={selected} /> : <p className="py-8 text-center text-sm text-ink-soft">Choose a message to read it.</p>}</div>
+          <div className="min-w-0">{selected ? <OutboxMessageView id={selected} /> : <p className="py-8 text-center text-sm text-ink-soft">Choose a message to read it.</p>}</div>
         </div>
       )}
     </>

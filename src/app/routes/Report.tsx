@@ -7,13 +7,16 @@ import { reportCsvUrl } from '@/features/reports/api/csvUrl';
 import { ReportView } from '@/features/reports/components/ReportView';
 import { ShareDialog } from '@/features/share/components/ShareDialog';
 import { ShareLinksTable } from '@/features/share/components/ShareLinksTable';
+import { ApiError } from '@/lib/api';
+import { Component as NotFound } from './NotFound';
 
 export function Component() {
   const id = Number(useParams().reportId);
   const q = useReport(id);
   const [sharing, setSharing] = useState(false);
+  if (!Number.isInteger(id) || id <= 0) return <NotFound />;
   if (q.isPending) return <Loading label="Loading report…" />;
-  if (q.isError) return <ErrorNotice error={q.error} />;
+  if (q.isError) return q.error instanceof ApiError && q.error.status === 404 ? <NotFound /> : <ErrorNotice error={q.error} />;
   const r = q.data;
   return (
     <div>

@@ -10,7 +10,7 @@ export function Component() {
   const study = useStudy(studyId);
   const canReport = !!study.data?.permissions.includes('report');
   return (
-    <div className="mx-auto max-w-4xl">
+    <div className="max-w-4xl">
       <PageHeader
         title="Reports"
         trail={[

@@ -61,9 +61,11 @@ export function MicroscopistPanel({ studies }: { studies: StudySummary[] }) {
             <ul className="divide-y divide-ink/5 text-sm">
               {runs.data.map((r) => (
                 <li key={r.id} className="flex flex-wrap items-center gap-2 py-1.5">
-                  <span className="font-medium">{r.studyName}</span>
+                  <Link to={`/runs?studyId=${r.studyId}&run=${r.id}`} className={`rounded font-medium text-accent-dark hover:underline ${focusRing}`}>
+                    {r.studyName}
+                  </Link>
                   <span className="text-ink-soft">
-                    {r.scope.name} · {r.recipe.name} v{r.recipe.version}
+                    {r.scope.kind === 'study' ? 'whole study' : r.scope.name} · {r.recipe.name} v{r.recipe.version}
                   </span>
                   <span className="ml-auto flex items-center gap-1">
                     {r.provisional && <Badge tone="warn">provisional</Badge>}

@@ -26,7 +26,7 @@ export function splitLinks(text: string): TextPart[] {
 
 export function LinkifiedText({ text }: { text: string }) {
   return (
-    <pre className="whitespace-pre-wrap break-words font-mono text-sm leading-relaxed text-ink">
+    <pre className="whitespace-pre-wrap break-words font-mono text-sm leading-relaxed text-ink [overflow-wrap:anywhere]">
       {splitLinks(text).map((p, i) =>
         p.kind === 'link' ? (
           <a key={i} href={p.href} className="rounded text-accent-dark underline focus-visible:outline-2 focus-visible:outline-accent">

@@ -25,7 +25,7 @@ export function UserTable({ users, labs, meId, announce }: { users: UserRow[]; l
       <div className="overflow-x-auto rounded-lg border border-ink/10 bg-white">
         <table className="w-full text-left text-sm">
           <caption className="sr-only">People</caption>
-          <thead className="border-b border-ink/10 text-xs uppercase tracking-wide text-ink-soft">
+          <thead className="border-b border-ink/10 text-sm text-ink-soft">
             <tr>
               <th scope="col" className="px-4 py-2 font-medium">Person</th>
               <th scope="col" className="px-4 py-2 font-medium">Roles</th>

@@ -3,7 +3,8 @@ import { useState } from 'react';
 import { useNavigate } from 'react-router';
 import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
-import { COEFFICIENT_LABELS, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
+import { COEFFICIENT_LABELS, CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
+import { validate, type FieldErrors } from '@/components/form';
 import { useCreateReport } from '../api/useCreateReport';
 
 const DEFAULT: ReportCoefficient[] = ['pearson', 'spearman', 'mandersM1', 'mandersM2'];
@@ -14,11 +15,18 @@ export function CreateReportDialog({ studyId, open, onClose, initialCoefficients
   const [coefs, setCoefs] = useState<ReportCoefficient[]>(initialCoefficients ?? DEFAULT);
   const create = useCreateReport(studyId);
   const navigate = useNavigate();
+  const [local, setLocal] = useState<FieldErrors>({});
   const err = create.error instanceof ApiError ? create.error : null;
+  const fieldError = (path: string) => local[path] ?? err?.fieldError(path);
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
+    const body = { title, notes, coefficients: REPORT_COEFFICIENTS.filter((k) => coefs.includes(k)), ...(recipeId ? { recipeId } : {}), ...(runId ? { runId } : {}) };
+    // the shared schema's messages beside the fields, before anything is sent
+    const v = validate(CreateReportRequest, body);
+    setLocal(v.ok ? {} : v.errors);
+    if (!v.ok) return;
     create.mutate(
-      { title, notes, coefficients: REPORT_COEFFICIENTS.filter((k) => coefs.includes(k)), ...(recipeId ? { recipeId } : {}), ...(runId ? { runId } : {}) },
+      body,
       { onSuccess: (r) => navigate(`/reports/${r.id}`) },
     );
   };
@@ -37,8 +45,8 @@ export function CreateReportDialog({ studyId, open, onClose, initialCoefficients
         </>
       }
     >
-      <form id="create-report" onSubmit={submit} className="flex flex-col gap-4">
-        <TextField label="Title" value={title} onChange={(e) => setTitle(e.target.value)} required maxLength={200} error={err?.fieldError('title')} data-autofocus />
+      <form id="create-report" onSubmit={submit} noValidate className="flex flex-col gap-4">
+        <TextField label="Title" value={title} onChange={(e) => setTitle(e.target.value)} required maxLength={200} error={fieldError('title')} data-autofocus />
         <TextArea label="Notes" hint="Shown under the title (optional)." value={notes} onChange={(e) => setNotes(e.target.value)} rows={3} maxLength={10000} />
         <fieldset>
           <legend className="text-sm font-medium">Coefficients</legend>
@@ -50,9 +58,14 @@ export function CreateReportDialog({ studyId, open, onClose, initialCoefficients
               </label>
             ))}
           </div>
-          {err?.fieldError('coefficients') && <p className="mt-1 text-xs font-medium text-danger">{err.fieldError('coefficients')}</p>}
+          {fieldError('coefficients') && <p className="mt-1 text-xs font-medium text-danger">{fieldError('coefficients')}</p>}
         </fieldset>
         {create.error && !err?.issues.length && <ErrorNotice error={create.error} />}
+        {create.isPending && (
+          <p role="status" className="text-sm text-ink-soft">
+            Freezing the report: the comparison, figures and methods are computed now; this takes a few seconds.
+          </p>
+        )}
       </form>
     </Dialog>
   );

@@ -9,7 +9,7 @@ export function StudyList({ studies, caption = 'Studies' }: { studies: StudySumm
     <div className="overflow-x-auto rounded-lg border border-ink/10 bg-white">
       <table className="w-full text-left text-sm">
         <caption className="sr-only">{caption}</caption>
-        <thead className="border-b border-ink/10 text-xs uppercase tracking-wide text-ink-soft">
+        <thead className="border-b border-ink/10 text-sm text-ink-soft">
           <tr>
             <th scope="col" className="px-4 py-2 font-medium">Study</th>
             <th scope="col" className="px-4 py-2 font-medium">Lab</th>

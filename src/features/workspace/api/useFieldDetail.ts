@@ -6,5 +6,5 @@ export const fieldDetailQueryKey = (fieldId: number) => ['fields', fieldId, 'det
 
 /** GET /api/fields/:id — size, bit depth, channel names, pixel size, saturation facts, canEdit. */
 export function useFieldDetail(fieldId: number) {
-  return useQuery({ queryKey: fieldDetailQueryKey(fieldId), queryFn: ({ signal }) => api(`/fields/${fieldId}`, { schema: FieldDetail, signal }) });
+  return useQuery({ queryKey: fieldDetailQueryKey(fieldId), queryFn: ({ signal }) => api(`/fields/${fieldId}`, { schema: FieldDetail, signal }), enabled: Number.isInteger(fieldId) && fieldId > 0 });
 }

@@ -29,20 +29,20 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h3 className="text-sm font-semibold">Per-cell results</h3>
         <span className="text-xs text-ink-soft">
-          {measured.length && src?.runId ? `latest run #${src.runId}${src.recipeName ? ` · ${src.recipeName} v${src.recipeVersion}` : ''}` : loadError ? 'results could not be loaded' : 'no run on this field yet — the live preview shows the selected cell'}
+          {measured.length ? `${runWords(src?.runId ? [src.runId] : measured.map((r) => r.runId))}${src?.recipeName ? ` · ${src.recipeName} v${src.recipeVersion}` : ''}` : loadError ? 'results could not be loaded' : 'no run on this field yet — the live preview shows the selected cell'}
         </span>
       </div>
       {list.length === 0 ? (
         <p className="mt-2 text-sm text-ink-soft">No cells to show.</p>
       ) : (
         <div className="mt-2 max-h-64 overflow-auto rounded border border-ink/10">
-          <table className="w-full text-sm">
+          <table className="w-full whitespace-nowrap text-xs">
             <thead className="sticky top-0 bg-paper text-xs text-ink-soft">
               <tr>
-                <th className="px-2 py-1 text-left font-medium">Cell</th>
-                <th className="px-2 py-1 text-right font-medium">Pixels</th>
+                <th className="px-1.5 py-1 text-left font-medium">Cell</th>
+                <th className="px-1.5 py-1 text-right font-medium">Pixels</th>
                 {COLS.map((c) => (
-                  <th key={c.key} className="px-2 py-1 text-right font-medium">
+                  <th key={c.key} className="px-1.5 py-1 text-right font-medium">
                     {c.label}
                   </th>
                 ))}
@@ -63,10 +63,10 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
                     onKeyDown={(e) => (e.key === 'Enter' || e.key === ' ') && (e.preventDefault(), onSelect(c.id))}
                     className={cx('cursor-pointer border-t border-ink/5 hover:bg-ink/5 focus-visible:outline-2 focus-visible:outline-accent', sel && 'bg-accent-soft/70')}
                   >
-                    <td className="px-2 py-1">{c.name}</td>
-                    <td className="px-2 py-1 text-right font-mono">{c.pixelCount.toLocaleString()}</td>
+                    <td className="px-1.5 py-1">{c.name}</td>
+                    <td className="px-1.5 py-1 text-right font-mono">{c.pixelCount.toLocaleString()}</td>
                     {COLS.map((k) => (
-                      <td key={k.key} className="px-2 py-1 text-right font-mono">
+                      <td key={k.key} className="px-1.5 py-1 text-right font-mono">
                         {r ? fmtCoef(r[k.key]) : '—'}
                       </td>
                     ))}
@@ -87,4 +87,11 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
       )}
     </section>
   );
+}
+
+/** "latest run #3", or "runs #2, #3" when the cells' latest measurements come from several runs. */
+function runWords(runIds: (number | null)[]) {
+  const ids = [...new Set(runIds.filter((id): id is number => id !== null))].sort((a, b) => a - b);
+  if (ids.length === 0) return 'measured';
+  return ids.length === 1 ? `latest run #${ids[0]}` : `runs ${ids.map((id) => `#${id}`).join(', ')}`;
 }

@@ -70,17 +70,25 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
     setSize({ w: el.clientWidth, h: el.clientHeight });
     return () => ro.disconnect();
   }, []);
-  // first fit
+  // first fit; while the user has not zoomed or panned, fit again when the box changes size (layout settling, window resize)
+  const autoView = useRef<View | null>(null);
+  const viewNow = useRef(view);
+  viewNow.current = view;
   useEffect(() => {
-    if (!view && size.w > 0 && size.h > 0) setView(fitView(W, H, size.w, size.h));
-  }, [view, size, W, H]);
+    if (size.w <= 0 || size.h <= 0) return;
+    const cur = viewNow.current;
+    if (cur && cur !== autoView.current) return;
+    const f = fitView(W, H, size.w, size.h);
+    autoView.current = f;
+    setView(f);
+  }, [size, W, H]);
 
   const v = view ?? fitView(W, H, size.w, size.h);
   const applyCommand = useCallback(
     (kind: 'fit' | 'one' | 'in' | 'out') => {
       setView((cur) => {
         const c = cur ?? fitView(W, H, size.w, size.h);
-        if (kind === 'fit') return fitView(W, H, size.w, size.h);
+        if (kind === 'fit') return (autoView.current = fitView(W, H, size.w, size.h));
         if (kind === 'one') return zoomAt(c, 1 / c.scale, size.w / 2, size.h / 2);
         return zoomAt(c, kind === 'in' ? 1.5 : 1 / 1.5, size.w / 2, size.h / 2);
       });
