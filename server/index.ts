@@ -18,7 +18,7 @@ async function main() {
   await (await import('./recover.js')).recoverAfterCrash(ctx); // leftovers of an unclean stop (issue 9)
   if (env.SEED_DEMO === 'auto') {
     const { seedDemoIfEmpty } = await import('./db/seed/index.js');
-    await seedDemoIfEmpty(ctx);
+    await seedDemoIfEmpty(ctx, { startRun: true });
   }
   await ctx.runs.resume();
   const app = createApp(ctx);

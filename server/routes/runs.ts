@@ -9,9 +9,8 @@ import type { AppContext } from '../context.js';
 import { auditEvents, conditions, coverslips, fields, measurements, recipes, runFields, runs, studies, users } from '../db/schema.js';
 import { requireStudy, studyPermissions } from '../auth/policy.js';
 import { badRequest, conflict, notFound, parse, unauthorized } from '../http/errors.js';
+import { createRun } from '../runs/records.js';
 import { CreateRunRequest, RunListQuery, type RunDetail, type RunSummary } from '../../shared/schemas/runs.js';
-import { RecipeSettings } from '../../shared/schemas/recipes.js';
-import { ENGINE_VERSION } from '../../shared/analysis/index.js';
 import { resolveScope, runSettings } from '../runs/records.js';
 
 type RunRow = typeof runs.$inferSelect;
@@ -110,40 +109,7 @@ export default function runsRoutes(ctx: AppContext) {
     requireStudy(ctx, req.user, scope.studyId, 'run');
     if (recipe.status === 'retired') throw conflict(`recipe ${recipe.name} v${recipe.version} is retired; choose a current version`);
     if (!scope.fieldIds.length) throw conflict(`nothing to measure: ${body.scope.kind} "${scope.name}" has no fields`);
-    const settings = RecipeSettings.parse(recipe.settings);
-    const u = req.user;
-    const run = ctx.db.transaction((tx) => {
-      const created = tx
-        .insert(runs)
-        .values({
-          studyId: scope.studyId,
-          recipeId: recipe.id,
-          scopeKind: body.scope.kind,
-          scopeId: body.scope.id,
-          status: 'queued',
-          fieldsTotal: scope.fieldIds.length,
-          provisional: recipe.status !== 'approved',
-          seed: settings.seed,
-          engineVersion: ENGINE_VERSION,
-          startedBy: u.id,
-        })
-        .returning()
-        .get();
-      for (let i = 0; i < scope.fieldIds.length; i += 200)
-        tx.insert(runFields).values(scope.fieldIds.slice(i, i + 200).map((fieldId) => ({ runId: created.id, fieldId }))).run();
-      tx.insert(auditEvents)
-        .values({
-          actorId: u.id,
-          action: 'run.start',
-          entity: 'run',
-          entityId: created.id,
-          studyId: scope.studyId,
-          details: { recipeId: recipe.id, recipeVersion: recipe.version, recipeStatus: recipe.status, scope: body.scope, fields: scope.fieldIds.length, settings },
-        })
-        .run();
-      return created;
-    });
-    await ctx.runs.enqueue(run.id);
+    const run = await createRun(ctx, { recipe, scope: { kind: body.scope.kind, id: body.scope.id, ...scope }, userId: req.user.id });
     const fresh = ctx.db.select().from(runs).where(eq(runs.id, run.id)).get()!;
     res.status(201).json(runDetail(ctx, fresh));
   });

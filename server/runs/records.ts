@@ -9,6 +9,7 @@ import { auditEvents, cells, conditions, coverslips, fields, files, measurements
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { RunScopeKind } from '../../shared/schemas/runs.js';
 import { notFound } from '../http/errors.js';
+import { ENGINE_VERSION } from '../../shared/analysis/index.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 
 type Db = AppContext['db'];
@@ -201,4 +202,49 @@ export function fieldName(db: Db, fieldId: number) {
     .where(eq(fields.id, fieldId))
     .get();
   return r ? `${r.c} / ${r.cs} / ${r.f}` : `field ${fieldId}`;
+}
+
+/**
+ * Creates a run of one recipe version over a resolved scope (its fields listed in run_fields, an audit event
+ * with the settings used) in one transaction, then hands it to the run queue.
+ */
+export async function createRun(
+  ctx: AppContext,
+  args: { recipe: typeof recipes.$inferSelect; scope: { kind: RunScopeKind; id: number; studyId: number; fieldIds: number[] }; userId: number },
+) {
+  const { recipe, scope, userId } = args;
+  const settings = RecipeSettings.parse(recipe.settings);
+  const run = ctx.db.transaction((tx) => {
+    const created = tx
+      .insert(runs)
+      .values({
+        studyId: scope.studyId,
+        recipeId: recipe.id,
+        scopeKind: scope.kind,
+        scopeId: scope.id,
+        status: 'queued',
+        fieldsTotal: scope.fieldIds.length,
+        provisional: recipe.status !== 'approved',
+        seed: settings.seed,
+        engineVersion: ENGINE_VERSION,
+        startedBy: userId,
+      })
+      .returning()
+      .get();
+    for (let i = 0; i < scope.fieldIds.length; i += 200)
+      tx.insert(runFields).values(scope.fieldIds.slice(i, i + 200).map((fieldId) => ({ runId: created.id, fieldId }))).run();
+    tx.insert(auditEvents)
+      .values({
+        actorId: userId,
+        action: 'run.start',
+        entity: 'run',
+        entityId: created.id,
+        studyId: scope.studyId,
+        details: { recipeId: recipe.id, recipeVersion: recipe.version, recipeStatus: recipe.status, scope: { kind: scope.kind, id: scope.id }, fields: scope.fieldIds.length, settings },
+      })
+      .run();
+    return created;
+  });
+  await ctx.runs.enqueue(run.id);
+  return run;
 }

@@ -51,6 +51,8 @@ const COVERSLIP_JITTER = [-0.04, 0.03, 0.01];
 export interface SeedOptions {
   /** field size (default 512); tests use a smaller one to stay fast */
   size?: number;
+  /** start a run of the demo recipe over the study after seeding, so Compare has numbers on first visit */
+  startRun?: boolean;
   log?: (msg: string) => void;
 }
 
@@ -60,7 +62,21 @@ export async function seedDemoIfEmpty(ctx: AppContext, opts: SeedOptions = {}) {
   const log = opts.log ?? ((m: string) => console.log(m));
   log('empty database: seeding the invented demo study (accounts *@demo.test, password syntopy-demo)…');
   await seedDemo(ctx, { ...opts, log });
+  if (opts.startRun) await startDemoRun(ctx, log);
   return true;
+}
+
+/** Runs the approved demo recipe over the whole demo study as the demo microscopist (in the background). */
+export async function startDemoRun(ctx: AppContext, log: (m: string) => void = () => {}) {
+  const { createRun, resolveScope } = await import('../../runs/records.js');
+  const study = ctx.db.select().from(studies).where(eq(studies.name, DEMO_STUDY)).get();
+  const recipe = ctx.db.select().from(recipes).where(and(eq(recipes.name, DEMO_RECIPE), eq(recipes.status, 'approved'))).get();
+  const user = ctx.db.select().from(users).where(eq(users.email, 'microscopist@demo.test')).get();
+  if (!study || !recipe || !user) return null;
+  const scope = resolveScope(ctx.db, 'study', study.id);
+  const run = await createRun(ctx, { recipe, scope: { kind: 'study', id: study.id, ...scope }, userId: user.id });
+  log(`demo run ${run.id} started over ${scope.fieldIds.length} field(s); Compare fills in when it finishes`);
+  return run;
 }
 
 export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
