@@ -201,10 +201,13 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   const withData = slipMeansByCond.map((ms, i) => ({ ms, i })).filter((g) => g.ms.length > 0);
   const tests: TestRow[] = [];
   const scaleNote = fisher ? ' on coverslip means (Fisher z scale)' : ' on coverslip means';
-  const push = (t: TestResult) => tests.push({ test: t.test, label: TEST_LABELS[t.test], statistic: nn(t.statistic), df: t.df.filter(Number.isFinite), p: nn(t.p), note: t.note + scaleNote });
+  const push = (t: TestResult, direction = '') => tests.push({ test: t.test, label: TEST_LABELS[t.test], statistic: nn(t.statistic), df: t.df.filter(Number.isFinite), p: nn(t.p), note: t.note + scaleNote + direction });
   if (withData.length === 2) {
-    push(welchT(withData[0].ms, withData[1].ms));
-    push(mannWhitneyU(withData[0].ms, withData[1].ms));
+    // Later condition (b) first, so the statistics point the same way as the effect "b − a" shown beside them:
+    // Welch's t > 0 and U > n_a·n_b/2 when b is higher (p-values are two-sided, unchanged by the order).
+    const [a, b] = [conds[withData[0].i].name, conds[withData[1].i].name];
+    push(welchT(withData[1].ms, withData[0].ms), `; t > 0 when ${b} is higher than ${a}`);
+    push(mannWhitneyU(withData[1].ms, withData[0].ms), `; U counts pairs with ${b} above ${a}`);
   } else if (withData.length > 2) {
     push(oneWayAnova(withData.map((g) => g.ms)));
     push(kruskalWallis(withData.map((g) => g.ms)));
@@ -237,7 +240,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   const warnings: string[] = [];
   if (src.recipeId === null) warnings.push('No measurements yet: run a recipe on this study\'s fields first.');
   for (const c of conditions) {
-    if (c.nCoverslips < 3) warnings.push(`${c.name} has ${c.nCoverslips} coverslip${c.nCoverslips === 1 ? '' : 's'} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
+    if (c.nCoverslips < 3) warnings.push(`${capitalize(c.name)} has ${c.nCoverslips} coverslip${c.nCoverslips === 1 ? '' : 's'} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
   }
   if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${COMPARE_LABELS[coefficient]} (for example no pixels above threshold or a constant channel) and are left out.`);
   if (omitted.excluded) warnings.push(`${omitted.excluded} excluded cell${omitted.excluded === 1 ? ' is' : 's are'} left out (reasons in the Cell table).`);
@@ -277,6 +280,11 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   });
 }
 
+/** Upper-case the first letter when a name opens a sentence ("treated" → "Treated"); the rest is kept as written. */
+export function capitalize(text: string): string {
+  return text.charAt(0).toLocaleUpperCase('en') + text.slice(1);
+}
+
 function sentence(label: string, fisher: boolean, conditions: ConditionStats[], effects: Comparison['effects'], tests: TestRow[], conf: number): string {
   const pct = `${Math.round(conf * 100)}%`;
   const withData = conditions.filter((c) => c.nCoverslips > 0);
@@ -291,7 +299,7 @@ function sentence(label: string, fisher: boolean, conditions: ConditionStats[], 
       const dir = e.estimate > 0 ? 'higher' : e.estimate < 0 ? 'lower' : 'the same';
       const ci = e.ci.lower !== null && e.ci.upper !== null ? ` (${pct} hierarchical bootstrap interval ${fmt(e.ci.lower)} to ${fmt(e.ci.upper)})` : '';
       const zero = e.ci.lower !== null && e.ci.upper !== null ? (e.ci.lower > 0 || e.ci.upper < 0 ? ' The interval excludes zero.' : ' The interval includes zero, so the data are also compatible with no difference.') : '';
-      return `${head} ${e.bName} is ${dir} than ${e.aName} by ${fmt(Math.abs(e.estimate))}${ci}.${zero} Tests on coverslip means: ${tstr}.`;
+      return `${head} ${capitalize(e.bName)} is ${dir} than ${e.aName} by ${fmt(Math.abs(e.estimate))}${ci}.${zero} Tests on coverslip means: ${tstr}.`;
     }
   }
   return `${head} Tests on coverslip means across ${withData.length} conditions: ${tstr}.`;

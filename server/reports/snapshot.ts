@@ -29,6 +29,7 @@ import { fisherZ, fisherZInverse, fisherZMean, kruskalWallis, mean, median, sd, 
 import { rasterize, type Shape } from '../../shared/analysis/rasterize.js';
 import { optionalModule } from './optional.js';
 import { adaptComparison } from './compare-adapter.js';
+import { capitalize } from '../compare/compute.js';
 import { renderComposite } from './composite.js';
 
 export interface SnapshotOptions {
@@ -384,7 +385,8 @@ const fmtP = (p: number | null) => (p === null ? 'not defined' : p < 0.001 ? '< 
  * coefficients are tested on Fisher's z of the coverslip means.
  */
 export function ownTest(k: ReportCoefficient, conds: { id: number; name: string }[], slips: CoverslipSummary[]): StatisticRow {
-  const label = COEFFICIENT_LABELS[k];
+  // the label opens each sentence below ("distance correlation (dCor)" → "Distance correlation (dCor)")
+  const label = capitalize(COEFFICIENT_LABELS[k]);
   const groups = conds.map((c) => ({
     name: c.name,
     values: slips.filter((s) => s.coefficient === k && s.conditionId === c.id && s.mean !== null).map((s) => s.mean as number),
@@ -400,7 +402,7 @@ export function ownTest(k: ReportCoefficient, conds: { id: number; name: string 
     const [a, b] = usable;
     const za = a.values.map(tz);
     const zb = b.values.map(tz);
-    const t = welchT(zb, za);
+    const t = welchT(zb, za); // b first: t > 0 when b is higher, the direction of `effect` (b − a)
     const ma = back(mean(za));
     const mb = back(mean(zb));
     const diff = mb - ma;

@@ -116,6 +116,11 @@ export type Effect = z.infer<typeof Effect>;
 export const TestRow = z.object({
   test: z.enum(['welch_t', 'mann_whitney_u', 'one_way_anova', 'kruskal_wallis']),
   label: z.string(),
+  /**
+   * The test statistic. For two conditions it follows the direction of `Effect.estimate` (b − a, b the later
+   * condition): Welch's t = (mean_b − mean_a) / SE, positive when b is higher; Mann–Whitney U is the U of
+   * group b (pairs with b > a, ties counting ½), above n_a·n_b / 2 when b tends to be higher. F and H have no sign.
+   */
   statistic: Num,
   df: z.array(z.number()),
   p: Num,

@@ -190,9 +190,11 @@ export type ConditionSummary = z.infer<typeof ConditionSummary>;
 export const StatisticRow = z.object({
   coefficient: ReportCoefficient,
   test: z.string(),
+  /** the test statistic; for two conditions its sign follows `effect` (Welch's t > 0 when the later condition b is higher) */
   statistic: Num,
   df: Num,
   p: Num,
+  /** difference of coverslip means, later condition minus earlier (b − a), as `effectLabel` states */
   effect: Num,
   effectLabel: z.string().nullable(),
   ciLow: Num,

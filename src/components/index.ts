@@ -6,6 +6,7 @@ export { EmptyState } from './EmptyState';
 export { Badge } from './Badge';
 export { PageHeader } from './PageHeader';
 export { Caution, ErrorNotice } from './Caution';
+export { MeasurementCautions } from './MeasurementCautions';
 export { Spinner, Loading } from './Spinner';
 export { cx, focusRing } from './cx';
 export { validate, serverErrors, type FieldErrors } from './form';

@@ -198,7 +198,13 @@ describe('comparison', () => {
     expect(c.tests[0].p!).toBeLessThan(0.05);
     // Mann–Whitney on 3 vs 4 coverslip means with complete separation: exact p = 2/35 (2 / C(7,3))
     expect(c.tests[1].p!).toBeCloseTo(2 / 35, 12);
-    expect(c.summary).toMatch(/treated, "high" is higher than untreated by 0\.\d{3} \(95% hierarchical bootstrap interval/);
+    // the statistics point the way of the effect shown beside them (b − a = treated − untreated > 0):
+    // Welch's t > 0; U of group b = n_a·n_b = 12 under complete separation (definition, Mann & Whitney 1947)
+    expect(c.effects[0].estimate!).toBeGreaterThan(0);
+    expect(c.tests[0].statistic!).toBeGreaterThan(0);
+    expect(c.tests[1].statistic).toBe(12);
+    // a sentence opens with a capital letter, even when the condition name does not
+    expect(c.summary).toMatch(/\. Treated, "high" is higher than untreated by 0\.\d{3} \(95% hierarchical bootstrap interval/);
     expect(c.histograms.map((h) => h.key)).toEqual(['coefficient', 'mean1', 'mean2']);
     expect(c.histograms[0].byCondition[0].counts.reduce((a, b) => a + b, 0)).toBe(30);
     expect(c.histograms[0].distances[0].emd!).toBeGreaterThan(0.2);
@@ -215,7 +221,7 @@ describe('comparison', () => {
     // three conditions: the world's 'control' (one empty coverslip) plus the two seeded
     expect(c.conditions).toHaveLength(3);
     expect(c.tests.map((x) => x.test)).toEqual(['welch_t', 'mann_whitney_u']); // control has no data
-    expect(c.warnings.some((w) => w.startsWith('control has 0 coverslips'))).toBe(true);
+    expect(c.warnings.some((w) => w.startsWith('Control has 0 coverslips'))).toBe(true);
     expect(c.averaging).toBe('arithmetic');
   });
 

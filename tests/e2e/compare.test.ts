@@ -59,7 +59,7 @@ it('shows the demo effect (treated > untreated) on the Compare page, and exclusi
   await page.getByTestId('superplot').waitFor();
   const r = await means();
   expect(r.treated).toBeGreaterThan(r.untreated);
-  await expect.poll(() => page.getByTestId('compare-summary').innerText()).toMatch(/treated is higher than untreated/);
+  await expect.poll(() => page.getByTestId('compare-summary').innerText()).toMatch(/Treated is higher than untreated/);
   // every cell drawn, coverslip means as large markers (3 + 3 coverslips)
   expect(await page.locator('[data-testid="superplot"] [data-layer="coverslip-means"] path').count()).toBe(6);
   await shot(page, 'compare-01-pearson');

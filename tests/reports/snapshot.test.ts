@@ -92,6 +92,14 @@ describe('report snapshot', () => {
     expect(row.sentence).not.toMatch(/not statistically/);
   });
 
+  it('opens its sentence with a capital letter and gives t the sign of the effect (b − a)', () => {
+    const slips = [0.2, 0.25, 0.3, 0.5, 0.55, 0.62].map((mean, i) => ({ coefficient: 'distanceCorrelation' as const, conditionId: i < 3 ? 1 : 2, coverslipId: 100 + i, coverslipName: `s${i}`, n: 4, mean, median: null }));
+    const row = ownTest('distanceCorrelation', [{ id: 1, name: 'control' }, { id: 2, name: 'treated' }], slips);
+    expect(row.sentence).toMatch(/^Distance correlation \(dCor\) averaged/);
+    expect(row.effect!).toBeGreaterThan(0);
+    expect(row.statistic!).toBeGreaterThan(0); // same direction as the effect (definition of Welch's t on b − a)
+  });
+
   it('later runs and exclusions leave the report unchanged; a newer report shows them', async () => {
     const bio = await t.login('biologist');
     const before = (await bio.get(`/api/reports/${first.id}`)).body as ReportDetail;

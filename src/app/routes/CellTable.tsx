@@ -3,10 +3,15 @@ import { useParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, ButtonLink } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
 import { CellTableView } from '@/features/celltable/components/CellTableView';
+import { ApiError } from '@/lib/api';
+import { Component as NotFound } from './NotFound';
 
 export function Component() {
   const studyId = Number(useParams().studyId);
   const study = useStudy(studyId);
+  // an id that is not a positive integer never loads (the query stays disabled): show the not-found page
+  if (!Number.isInteger(studyId) || studyId <= 0) return <NotFound />;
+  if (study.isError && study.error instanceof ApiError && study.error.status === 404) return <NotFound />;
   return (
     <div>
       <PageHeader

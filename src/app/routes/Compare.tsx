@@ -1,11 +1,13 @@
 /** Route module: Compare — one coefficient across the study's conditions, coverslips as replicates. */
 import { useParams, useSearchParams } from 'react-router';
-import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, inputClass } from '@/components';
+import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
 import { SourceSelect } from '@/features/celltable/components/SourceSelect';
 import { useComparison } from '@/features/compare/api/useComparison';
 import { ComparePanel } from '@/features/compare/components/ComparePanel';
 import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from '@shared/schemas/compare';
+import { ApiError } from '@/lib/api';
+import { Component as NotFound } from './NotFound';
 
 export function Component() {
   const studyId = Number(useParams().studyId);
@@ -22,6 +24,10 @@ export function Component() {
     setParams(next, { replace: true });
   };
   const studyName = study.data?.name ?? 'Study';
+  // an id that is not a positive integer never loads (the queries stay disabled); an unknown or hidden study answers 404 too
+  if (!Number.isInteger(studyId) || studyId <= 0) return <NotFound />;
+  const is404 = (e: unknown) => e instanceof ApiError && e.status === 404;
+  if (is404(study.error)) return <NotFound />;
   return (
     <div>
       <PageHeader
@@ -72,6 +78,7 @@ export function Component() {
       ) : (
         <ComparePanel data={cmp.data} fileBase={studyName.replace(/[^A-Za-z0-9_-]+/g, '-')} csvQuery={q.toString()} />
       )}
+      <MeasurementCautions className="mt-6" saturatedCells={cmp.data?.omitted.saturated} where="in this comparison" />
     </div>
   );
 }

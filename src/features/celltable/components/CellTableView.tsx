@@ -5,7 +5,8 @@
 import { useMemo, useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type SortingState, type VisibilityState } from '@tanstack/react-table';
-import { Badge, Button, Caution, ErrorNotice, Loading, inputClass } from '@/components';
+import { Badge, Button, Caution, ErrorNotice, Loading, MeasurementCautions, inputClass } from '@/components';
+import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { COLUMN_LABELS, NUMERIC_COLUMNS, SORT_KEYS, type GridRow, type SortKey } from '@shared/schemas/measurements';
 import type { StudyDetail } from '@shared/schemas/studies';
 import { useCellTable } from '../api/useCellTable';
@@ -82,7 +83,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
       })),
       text('thresholdMethod'),
       text('saturated', ({ row }) => (row.original.saturated ? <Badge tone="warn">saturated</Badge> : '')),
-      text('provisional', ({ row }) => (row.original.provisional ? <Badge tone="warn">provisional</Badge> : row.original.measurementId === null ? <span className="text-ink-faint">not measured</span> : '')),
+      text('provisional', ({ row }) => (row.original.provisional ? <ProvisionalBadge /> : row.original.measurementId === null ? <span className="text-ink-faint">not measured</span> : '')),
       text('excluded', ({ row }) =>
         row.original.excluded ? (
           <span title={`${row.original.exclusionReason ?? ''}${row.original.excludedBy ? ` (by ${row.original.excludedBy}, ${row.original.excludedAt?.slice(0, 16).replace('T', ' ')})` : ''}`}>
@@ -136,6 +137,10 @@ export function CellTableView({ study }: { study: StudyDetail }) {
   csvParams.delete('page');
   csvParams.delete('pageSize');
   csvParams.set('columns', ['cellId', ...visibleExport, ...(visibility.excluded ? ['exclusionReason'] : [])].join(','));
+
+  const pageRows = grid.data?.rows ?? [];
+  const provisionalOnPage = pageRows.filter((r) => r.provisional && r.measurementId !== null).length;
+  const saturatedOnPage = pageRows.filter((r) => r.saturated).length;
 
   const doExclude = async (reason: string) => {
     if (!excluding) return;
@@ -268,6 +273,15 @@ export function CellTableView({ study }: { study: StudyDetail }) {
       <ErrorNotice error={actionError} />
       {grid.isError && <ErrorNotice error={grid.error} />}
       {grid.data && grid.data.source.recipeId === null && <Caution tone="info">No measurements yet: cells are listed, but their coefficients appear after a run.</Caution>}
+      {provisionalOnPage > 0 && (
+        <Caution>
+          <span className="mr-2 align-middle">
+            <ProvisionalBadge />
+          </span>
+          {provisionalOnPage.toLocaleString('en')} {provisionalOnPage === 1 ? 'cell' : 'cells'} on this page {provisionalOnPage === 1 ? 'was' : 'were'} measured with a recipe version that is not
+          approved; {provisionalOnPage === 1 ? 'its numbers' : 'their numbers'} may change.
+        </Caution>
+      )}
 
       {grid.isPending ? (
         <Loading />
@@ -304,11 +318,12 @@ export function CellTableView({ study }: { study: StudyDetail }) {
                     <td className="px-2 py-1">
                       {row.original.excluded ? (
                         <Button size="sm" variant="ghost" onClick={() => void doRestore(row.original)}>
-                          Restore
+                          Restore<span className="sr-only"> {row.original.cell} ({row.original.field})</span>
                         </Button>
                       ) : (
-                        <Button size="sm" variant="quietDanger" onClick={() => setExcluding(row.original)}>
-                          Exclude…
+                        // a quiet action on every row; the red, irreversible-looking step is only inside the dialog
+                        <Button size="sm" variant="ghost" onClick={() => setExcluding(row.original)}>
+                          Exclude…<span className="sr-only"> {row.original.cell} ({row.original.field})</span>
                         </Button>
                       )}
                     </td>
@@ -354,6 +369,8 @@ export function CellTableView({ study }: { study: StudyDetail }) {
           </select>
         </label>
       </nav>
+
+      <MeasurementCautions saturatedCells={saturatedOnPage} where="on this page" />
 
       <ExcludeDialog cellName={excluding ? `${excluding.cell} (${excluding.field})` : ''} open={!!excluding} onClose={() => setExcluding(null)} onSubmit={doExclude} />
     </div>

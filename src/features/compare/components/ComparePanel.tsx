@@ -5,14 +5,24 @@ import { Button, Caution, ErrorNotice } from '@/components';
 import { SuperPlot, SuperPlotLegend } from './SuperPlot';
 import { StatsTable } from './StatsTable';
 import { Histograms } from './Histograms';
+import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { downloadPng, downloadSvg } from './exportImage';
 
 export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; fileBase: string; csvQuery: string }) {
   const svg = useRef<SVGSVGElement>(null);
   const [err, setErr] = useState<unknown>(null);
   const name = `${fileBase}-${data.coefficient}`;
+  /** cells whose values come from a run with a recipe version that was not approved */
+  const provisional = data.omitted.provisional;
   return (
     <div className="space-y-6">
+      {provisional > 0 && (
+        <p className="flex max-w-4xl flex-wrap items-center gap-2 text-sm text-ink-soft" data-testid="compare-provisional">
+          <ProvisionalBadge />
+          {provisional === data.points.length ? 'Every value here comes' : `${provisional.toLocaleString('en')} of ${data.points.length.toLocaleString('en')} values come`} from provisional
+          measurements (a recipe version not yet approved); the numbers may change.
+        </p>
+      )}
       <p className="max-w-4xl rounded-md border border-ink/10 bg-white px-4 py-3 text-sm leading-relaxed" data-testid="compare-summary">
         {data.summary}
       </p>
@@ -27,7 +37,9 @@ export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; f
       )}
       <section aria-labelledby="plot-h" className="rounded-lg border border-ink/10 bg-white p-4">
         <div className="mb-2 flex flex-wrap items-center justify-between gap-2">
-          <h2 id="plot-h">Cells, coverslips and conditions</h2>
+          <h2 id="plot-h" className="flex items-center gap-2">
+            Cells, coverslips and conditions {provisional > 0 && <ProvisionalBadge />}
+          </h2>
           <div className="flex flex-wrap gap-2">
             <Button size="sm" onClick={() => svg.current && downloadSvg(svg.current, `${name}.svg`)}>
               Save SVG
@@ -58,8 +70,8 @@ export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; f
         <SuperPlotLegend data={data} />
       </section>
       <section aria-labelledby="stats-h" className="rounded-lg border border-ink/10 bg-white p-4">
-        <h2 id="stats-h" className="mb-3">
-          Statistics
+        <h2 id="stats-h" className="mb-3 flex items-center gap-2">
+          Statistics {provisional > 0 && <ProvisionalBadge />}
         </h2>
         <StatsTable data={data} />
       </section>

@@ -29,31 +29,31 @@ export function RecipeList({ initial = ['draft', 'submitted', 'approved', 'retur
       ) : !q.data.length ? (
         <EmptyState title="No recipes with these statuses">Propose one: name it, choose its settings, and submit it for review.</EmptyState>
       ) : (
-        <table className="w-full text-sm">
+        <table className="w-full text-left text-sm">
           <thead className="text-left text-ink-soft">
             <tr>
-              <th className="py-2 font-medium">Recipe</th>
-              <th className="py-2 font-medium">Version</th>
-              <th className="py-2 font-medium">Status</th>
-              <th className="py-2 font-medium">Proposed by</th>
-              <th className="py-2 font-medium">Reviewed by</th>
+              <th scope="col" className="py-2 pr-4 font-medium">Recipe</th>
+              <th scope="col" className="py-2 pr-4 font-medium">Version</th>
+              <th scope="col" className="py-2 pr-4 font-medium">Status</th>
+              <th scope="col" className="py-2 pr-4 font-medium">Proposed by</th>
+              <th scope="col" className="py-2 pr-4 font-medium">Reviewed by</th>
             </tr>
           </thead>
           <tbody>
             {q.data.map((r) => (
               <tr key={r.id} className="border-t border-ink/10">
-                <td className="py-2">
+                <td className="py-2 pr-4">
                   <Link to={`/recipes/${r.id}`} className={cx('font-medium text-accent-dark hover:underline', focusRing)}>
                     {r.name}
                   </Link>
                   {r.description && <div className="text-xs text-ink-soft line-clamp-1">{r.description}</div>}
                 </td>
-                <td className="py-2 font-mono">v{r.version}</td>
-                <td className="py-2">
+                <td className="py-2 pr-4 font-mono whitespace-nowrap">v{r.version}</td>
+                <td className="py-2 pr-4">
                   <RecipeStatusBadge status={r.status} />
                 </td>
-                <td className="py-2">{r.proposer?.name ?? '—'}</td>
-                <td className="py-2">{r.reviewer ? `${r.reviewer.name}${r.reviewedAt ? ` · ${r.reviewedAt.slice(0, 10)}` : ''}` : '—'}</td>
+                <td className="py-2 pr-4">{r.proposer?.name ?? '—'}</td>
+                <td className="py-2 pr-4">{r.reviewer ? `${r.reviewer.name}${r.reviewedAt ? ` · ${r.reviewedAt.slice(0, 10)}` : ''}` : '—'}</td>
               </tr>
             ))}
           </tbody>

@@ -3,11 +3,17 @@ import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading, cx, focusRing } from '@/components';
 import { useRecipes } from '../api/useRecipes';
 
-export function ReviewQueueList({ compact = false }: { compact?: boolean }) {
+/** `reviewer`: the viewer is a facility manager (wording addresses them); otherwise the list is read-only information. */
+export function ReviewQueueList({ compact = false, reviewer = true }: { compact?: boolean; reviewer?: boolean }) {
   const q = useRecipes(['submitted']);
   if (q.isPending) return <Loading />;
   if (q.error) return <ErrorNotice error={q.error} />;
-  if (!q.data.length) return <EmptyState title="Nothing to review">Submitted recipes appear here until you approve or return them.</EmptyState>;
+  if (!q.data.length)
+    return reviewer ? (
+      <EmptyState title="Nothing to review">Submitted recipes appear here until you approve or return them.</EmptyState>
+    ) : (
+      <EmptyState title="Nothing waiting for review">Submitted recipes wait here for a facility manager to approve or return them.</EmptyState>
+    );
   const rows = [...q.data].sort((a, b) => (a.submittedAt ?? '').localeCompare(b.submittedAt ?? ''));
   return (
     <ul className="divide-y divide-ink/10">

@@ -1,9 +1,10 @@
 /** The study's reports, newest first. */
 import { Link } from 'react-router';
-import { Badge, EmptyState, ErrorNotice, Loading } from '@/components';
+import { EmptyState, ErrorNotice, Loading } from '@/components';
 import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/reports';
 import { useReports } from '../api/useReports';
 import { fmtDate } from './palette';
+import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 
 export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAction?: React.ReactNode }) {
   const q = useReports(studyId);
@@ -28,7 +29,7 @@ export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAct
               {r.createdBy && ` · ${r.createdBy}`} · {r.cells} cells · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
             </p>
           </div>
-          {r.anyProvisional && <Badge tone="warn">provisional</Badge>}
+          {r.anyProvisional && <ProvisionalBadge />}
         </li>
       ))}
     </ul>

@@ -13,6 +13,7 @@ import { ReplicatePlot } from './ReplicatePlot';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
 import { fmtDate, fmtNum, fmtP } from './palette';
+import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import './report-print.css';
 
 /** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
@@ -23,10 +24,13 @@ function frozenComparison(v: unknown): Comparison | null {
 
 const TABLE_LABELS: Record<CsvTable, string> = { cells: 'Cells', coverslips: 'Coverslip means', conditions: 'Condition summaries', statistics: 'Statistics', exclusions: 'Exclusions' };
 
-function Section({ title, children, long = false, id }: { title: string; children: React.ReactNode; long?: boolean; id?: string }) {
+function Section({ title, children, long = false, id, provisional = false }: { title: string; children: React.ReactNode; long?: boolean; id?: string; provisional?: boolean }) {
   return (
     <section id={id} className={`report-section ${long ? 'report-long' : ''} mb-6 rounded-lg border border-ink/10 bg-white p-5`}>
-      <h2 className="mb-3">{title}</h2>
+      <h2 className="mb-3 flex flex-wrap items-center gap-2">
+        {title}
+        {provisional && <ProvisionalBadge />}
+      </h2>
       {children}
     </section>
   );
@@ -64,7 +68,11 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
               {report.createdBy && ` by ${report.createdBy}`} · {s.coefficients.map((k) => COEFFICIENT_LABELS[k]).join(', ')}
             </p>
             <div className="mt-2 flex flex-wrap gap-2">
-              {s.anyProvisional && <Badge tone="warn">provisional: recipe not approved when run</Badge>}
+              {s.anyProvisional && (
+                <span className="inline-flex items-center gap-1.5 text-xs text-warn">
+                  <ProvisionalBadge /> recipe not approved when run
+                </span>
+              )}
               {s.recipes.map((r) => (
                 <Badge key={r.id} tone="accent">
                   {r.name} v{r.version}
@@ -86,7 +94,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         </Caution>
       )}
 
-      <Section title="Result">
+      <Section title="Result" provisional={s.anyProvisional}>
         <ul className="space-y-2">
           {s.statistics.map((st) => (
             <li key={st.coefficient} className="text-sm">
@@ -136,7 +144,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         </div>
       </Section>
 
-      <Section title="Cells by coverslip">
+      <Section title="Cells by coverslip" provisional={s.anyProvisional}>
         <div className="grid gap-6">
           {s.coefficients.map((k) => (
             <div key={k}>
@@ -147,7 +155,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         </div>
       </Section>
 
-      <Section title="Per-condition summaries">
+      <Section title="Per-condition summaries" provisional={s.anyProvisional}>
         <div className="overflow-x-auto">
           <table className="w-full text-left text-sm">
             <thead className="border-b border-ink/15 text-xs text-ink-soft">

@@ -4,11 +4,17 @@ import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadg
 import { useRuns } from '../api/useRuns';
 import { RunProgress, runStatusLabel } from './RunProgress';
 
-export function RunList({ studyId, selected, onSelect }: { studyId?: number; selected?: number | null; onSelect?: (id: number) => void }) {
+/** `canStart`: the viewer may start runs here (the empty list then points to the start form; otherwise it says nothing about starting). */
+export function RunList({ studyId, selected, onSelect, canStart = false }: { studyId?: number; selected?: number | null; onSelect?: (id: number) => void; canStart?: boolean }) {
   const q = useRuns(studyId);
   if (q.isPending) return <Loading />;
   if (q.error) return <ErrorNotice error={q.error} />;
-  if (!q.data.length) return <EmptyState title="No runs yet">Start one: choose an approved recipe and the fields to measure.</EmptyState>;
+  if (!q.data.length)
+    return canStart ? (
+      <EmptyState title="No runs yet">Start one above: choose an approved recipe and the fields to measure.</EmptyState>
+    ) : (
+      <EmptyState title="No runs yet">Runs in the studies you can see will appear here.</EmptyState>
+    );
   return (
     <table className="w-full text-sm">
       <thead className="text-left text-ink-soft">

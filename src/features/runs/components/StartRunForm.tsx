@@ -6,6 +6,11 @@ import { useStudy } from '@/features/studies/api/useStudy';
 import type { RunScopeKind } from '@shared/schemas/runs';
 import { useStartRun } from '../api/useStartRun';
 
+/** A coverslip's name as written, with the word "Coverslip" only when the name does not already say it ("Coverslip 1", never "Coverslip Coverslip 1"). */
+export function coverslipLabel(name: string) {
+  return /coverslip/i.test(name) ? name : `Coverslip ${name}`;
+}
+
 export function StartRunForm({ studyId, onStarted }: { studyId: number; onStarted?: (runId: number) => void }) {
   const recipes = useRecipes(['approved', 'submitted', 'draft', 'returned']);
   const study = useStudy(studyId);
@@ -44,7 +49,7 @@ export function StartRunForm({ studyId, onStarted }: { studyId: number; onStarte
               <option value={`condition:${c.id}`}>All of {c.name}</option>
               {c.coverslips.map((cs) => (
                 <option key={cs.id} value={`coverslip:${cs.id}`}>
-                  Coverslip {cs.name} ({cs.fieldCount} field{cs.fieldCount === 1 ? '' : 's'})
+                  {coverslipLabel(cs.name)} · {c.name} ({cs.fieldCount} field{cs.fieldCount === 1 ? '' : 's'})
                 </option>
               ))}
             </optgroup>

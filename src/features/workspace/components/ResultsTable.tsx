@@ -8,6 +8,7 @@ import type { GridResponse } from '@shared/schemas/measurements';
 import type { Cell } from '@shared/schemas/cells';
 import { SMALL_CELL_PIXELS } from './CellsPanel';
 import { fmtCoef } from './LivePreview';
+import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 
 const COLS: { key: 'pearson' | 'spearman' | 'kendallTauB' | 'mandersM1' | 'mandersM2' | 'icq'; label: string }[] = [
   { key: 'pearson', label: 'r' },
@@ -24,11 +25,13 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
   const byCell = new Map(rows.map((r) => [r.cellId, r]));
   const list = cells.filter((c) => c.role === 'cell');
   const src = results?.source;
+  const anyProvisional = measured.some((r) => r.provisional);
   return (
     <section aria-label="Per-cell results" data-testid="results-table">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h3 className="text-sm font-semibold">Per-cell results</h3>
-        <span className="text-xs text-ink-soft">
+        <span className="flex items-center gap-1.5 text-xs text-ink-soft">
+          {anyProvisional && <ProvisionalBadge />}
           {measured.length ? `${runWords(src?.runId ? [src.runId] : measured.map((r) => r.runId))}${src?.recipeName ? ` · ${src.recipeName} v${src.recipeVersion}` : ''}` : loadError ? 'results could not be loaded' : 'no run on this field yet — the live preview shows the selected cell'}
         </span>
       </div>
@@ -75,7 +78,7 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
                         {(saturated || (!r && fieldSaturated)) && <Badge tone="warn">{saturated ? 'saturated' : 'field saturated'}</Badge>}
                         {c.pixelCount < SMALL_CELL_PIXELS && <Badge tone="warn">small</Badge>}
                         {c.excluded && <Badge tone="danger">excluded</Badge>}
-                        {r?.provisional && <Badge>provisional</Badge>}
+                        {r?.provisional && r.measurementId !== null && <ProvisionalBadge />}
                       </span>
                     </td>
                   </tr>
