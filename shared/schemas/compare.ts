@@ -29,7 +29,7 @@ export const COMPARE_LABELS: Record<CompareCoefficient, string> = {
   pearson: "Pearson's r",
   spearman: "Spearman's ρ",
   kendallTauB: "Kendall's τ-b",
-  distanceCorrelation: 'distance correlation',
+  distanceCorrelation: 'distance correlation (dCor)',
   dcorBiasCorrectedSq: 'bias-corrected dCor²',
   mandersM1: "Manders' M1",
   mandersM2: "Manders' M2",

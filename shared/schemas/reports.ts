@@ -13,38 +13,15 @@
  */
 import { z } from 'zod';
 import { Id, IsoDate } from './common.js';
+import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from './compare.js';
 
-/** Per-cell values a report can carry (the measurement columns of server/db/schema.ts). */
-export const REPORT_COEFFICIENTS = [
-  'pearson',
-  'spearman',
-  'kendallTauB',
-  'distanceCorrelation',
-  'dcorBiasCorrectedSq',
-  'mandersM1',
-  'mandersM2',
-  'overlap',
-  'k1',
-  'k2',
-  'icq',
-] as const;
+/** Per-cell values a report can carry: the same set Compare offers (shared/schemas/compare.ts). */
+export const REPORT_COEFFICIENTS = COMPARE_COEFFICIENTS;
 export const ReportCoefficient = z.enum(REPORT_COEFFICIENTS);
 export type ReportCoefficient = z.infer<typeof ReportCoefficient>;
 
-/** Screen labels (trade terms). */
-export const COEFFICIENT_LABELS: Record<ReportCoefficient, string> = {
-  pearson: "Pearson's r",
-  spearman: "Spearman's ρ",
-  kendallTauB: "Kendall's τ-b",
-  distanceCorrelation: 'distance correlation (dCor)',
-  dcorBiasCorrectedSq: 'bias-corrected dCor²',
-  mandersM1: "Manders' M1",
-  mandersM2: "Manders' M2",
-  overlap: 'overlap coefficient',
-  k1: 'k1',
-  k2: 'k2',
-  icq: 'ICQ',
-};
+/** Screen labels (trade terms), as on Compare. */
+export const COEFFICIENT_LABELS: Record<ReportCoefficient, string> = COMPARE_LABELS;
 
 /** Correlation-type coefficients are averaged through Fisher's z (atanh) at the coverslip level. */
 export const CORRELATION_COEFFICIENTS: ReadonlySet<ReportCoefficient> = new Set(['pearson', 'spearman', 'kendallTauB']);

@@ -7,7 +7,7 @@
  */
 import { afterAll, beforeAll, expect, it } from 'vitest';
 import type { Browser } from 'playwright-core';
-import { DEMO_PASSWORD, launchBrowser, newPage, shot, signIn, startServer, type RunningServer } from './harness.js';
+import { apiSession, launchBrowser, newPage, shot, signIn, startServer, type RunningServer } from './harness.js';
 
 let srv: RunningServer;
 let browser: Browser;
@@ -20,16 +20,7 @@ afterAll(async () => {
   await srv?.stop();
 });
 
-async function session(email: string) {
-  const r = await fetch(`${srv.url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) });
-  expect(r.status).toBe(200);
-  const cookie = (r.headers.get('set-cookie') ?? '').split(';')[0];
-  return async (path: string, init: RequestInit = {}) => {
-    const res = await fetch(`${srv.url}/api${path}`, { ...init, headers: { cookie, 'content-type': 'application/json', ...(init.headers ?? {}) } });
-    const text = await res.text();
-    return { status: res.status, body: text ? JSON.parse(text) : null };
-  };
-}
+const session = (email: string) => apiSession(srv, email);
 
 it('shows the demo effect (treated > untreated) on the Compare page, and exclusions in the Cell table', async () => {
   const bio = await session('biologist@demo.test');

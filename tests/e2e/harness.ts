@@ -139,3 +139,15 @@ export async function shot(page: Page, name: string) {
   fs.mkdirSync('test-results', { recursive: true });
   await page.screenshot({ path: path.join('test-results', `${name}.png`), fullPage: true });
 }
+
+/** A signed-in fetch against the running server: `const bio = await apiSession(srv, 'biologist@demo.test'); await bio('/studies')`. */
+export async function apiSession(srv: RunningServer, email: string, password = DEMO_PASSWORD) {
+  const r = await fetch(`${srv.url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password }) });
+  if (r.status !== 200) throw new Error(`sign-in as ${email} failed: ${r.status}`);
+  const cookie = (r.headers.get('set-cookie') ?? '').split(';')[0];
+  return async (path: string, init: RequestInit = {}) => {
+    const res = await fetch(`${srv.url}/api${path}`, { ...init, headers: { cookie, 'content-type': 'application/json', ...(init.headers ?? {}) } });
+    const text = await res.text();
+    return { status: res.status, body: text ? JSON.parse(text) : null };
+  };
+}
