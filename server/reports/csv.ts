@@ -1,22 +1,11 @@
 /**
  * CSV downloads of a report's tables (RFC 4180: comma separated, CRLF line ends, fields quoted when they hold
  * a comma, quote or line break; quotes doubled). Missing values are empty fields. Cells whose text starts with
- * = + - @ are prefixed with ' so spreadsheet programs do not evaluate them (OWASP "CSV injection", common practice).
+ * = + - @ (tab or CR) are prefixed with ' so spreadsheet programs do not evaluate them (OWASP "CSV injection",
+ * common practice); one writer for every CSV: server/compare/csv.ts.
  */
 import { COEFFICIENT_LABELS, type CsvTable, type ReportSnapshot } from '../../shared/schemas/reports.js';
-
-function cell(v: unknown): string {
-  if (v === null || v === undefined) return '';
-  if (typeof v === 'number') return Number.isFinite(v) ? String(v) : '';
-  if (typeof v === 'boolean') return v ? 'true' : 'false';
-  let s = String(v);
-  if (/^[=+\-@]/.test(s) && !/^-?\d/.test(s)) s = `'${s}`;
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-export function toCsv(header: string[], rows: unknown[][]): string {
-  return [header, ...rows].map((r) => r.map(cell).join(',')).join('\r\n') + '\r\n';
-}
+import { toCsv } from '../compare/csv.js';
 
 export function reportCsv(s: ReportSnapshot, table: CsvTable): string {
   const condName = new Map(s.conditions.map((c) => [c.id, c.name]));

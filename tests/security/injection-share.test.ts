@@ -168,9 +168,8 @@ describe('CSV (formula) injection in downloads', () => {
     expect(unsafe(csv)).toEqual([]);
   });
 
-  // KNOWN BUG (reported to H8): server/reports/csv.ts:13 exempts text that starts with "-<digit>" from the
-  // apostrophe, so the DDE payload "-1+cmd|' /C calc'!A0" goes out live. it.fails flips once it is neutralised.
-  it.fails('a report CSV neutralises formulas in exclusion reasons (DDE form "-1+cmd|…")', async () => {
+  // Report CSVs use the same writer as the Cell table (server/compare/csv.ts), so the DDE form is neutralised too.
+  it('a report CSV neutralises formulas in exclusion reasons (DDE form "-1+cmd|…")', async () => {
     const rep = await bio.post(`/api/studies/${e.studyId}/reports`).send({ title: 'CSV injection report', coefficients: ['pearson'] });
     expect(rep.status).toBe(201);
     const csv = (await bio.get(`/api/reports/${rep.body.id}/csv/exclusions`)).text;
