@@ -31,6 +31,11 @@ export function createApp(ctx: AppContext) {
   app.use('/api', sameOriginWrites(ctx));
   app.use('/api', express.json({ limit: '2mb' }));
   app.use('/api', authenticate(ctx));
+  // every finished write invalidates read caches (e.g. the review grid's ordered ids)
+  app.use('/api', (req, res, next) => {
+    if (req.method !== 'GET' && req.method !== 'HEAD') res.on('finish', () => void ctx.dataVersion++);
+    next();
+  });
 
   app.get('/api/health', (_req, res) => {
     res.json({ ok: true });

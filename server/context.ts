@@ -16,6 +16,8 @@ export interface AppContext {
   store: import('./images/store.js').FileStore;
   /** analysis run queue (server/runs/queue.ts) */
   runs: import('./runs/queue.js').RunQueue;
+  /** bumped after every state-changing API request (read caches key on it with the newest measurement id) */
+  dataVersion: number;
   /** things to close on shutdown */
   closers: Array<() => Promise<void> | void>;
 }
@@ -25,7 +27,7 @@ export async function createContext(env: Env): Promise<AppContext> {
   const { createMailer } = await import('./mail/transport.js');
   const { createFileStore } = await import('./images/store.js');
   const { createRunQueue } = await import('./runs/queue.js');
-  const ctx = { env, db, closers: [] } as unknown as AppContext;
+  const ctx = { env, db, closers: [], dataVersion: 0 } as unknown as AppContext;
   ctx.mail = await createMailer(ctx);
   ctx.store = await createFileStore(ctx);
   ctx.runs = await createRunQueue(ctx);

@@ -1,7 +1,7 @@
 /** Session JWTs (jose, HS256) carried in an httpOnly SameSite=Lax cookie. */
 import { SignJWT, jwtVerify } from 'jose';
 import type { Request, Response, RequestHandler } from 'express';
-import { eq, lt } from 'drizzle-orm';
+import { eq, lt, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { revokedSessions, users, type Role } from '../db/schema.js';
 import { unauthorized } from '../http/errors.js';
@@ -54,14 +54,17 @@ export function clearSessionCookie(req: Request, res: Response) {
 
 /** Reads the cookie when present; sets req.user for a valid, current session of an enabled user. */
 export function authenticate(ctx: AppContext): RequestHandler {
+  const secret = key(ctx.env.SESSION_SECRET);
+  const revoked = ctx.db.select({ jti: revokedSessions.jti }).from(revokedSessions).where(eq(revokedSessions.jti, sql.placeholder('jti'))).prepare();
+  const userById = ctx.db.select().from(users).where(eq(users.id, sql.placeholder('id'))).prepare();
   return async (req, _res, next) => {
     const token = req.cookies?.[SESSION_COOKIE];
     if (!token) return next();
     try {
-      const { payload } = await jwtVerify(token, key(ctx.env.SESSION_SECRET), { algorithms: ['HS256'] });
+      const { payload } = await jwtVerify(token, secret, { algorithms: ['HS256'] });
       if (payload.typ !== 'session') return next();
-      if (payload.jti && ctx.db.select().from(revokedSessions).where(eq(revokedSessions.jti, payload.jti)).get()) return next();
-      const u = ctx.db.select().from(users).where(eq(users.id, Number(payload.sub))).get();
+      if (payload.jti && revoked.get({ jti: payload.jti })) return next();
+      const u = userById.get({ id: Number(payload.sub) });
       if (u && !u.disabled && u.sessionVersion === payload.sv) {
         req.user = { id: u.id, email: u.email, name: u.name, roles: u.roles };
         if (payload.jti && payload.exp) req.session = { jti: payload.jti, exp: payload.exp };

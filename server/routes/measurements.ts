@@ -17,7 +17,7 @@ import type { AppContext } from '../context.js';
 import { requireUser } from '../auth/session.js';
 import { requireStudy, studyPermissions, type Study } from '../auth/policy.js';
 import { badRequest, conflict, notFound, parse } from '../http/errors.js';
-import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/measurements.js';
+import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/measurements.js';
 import { CompareQuery } from '../../shared/schemas/compare.js';
 import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
 import { computeComparison } from '../compare/compute.js';
@@ -32,6 +32,43 @@ const idOf = (v: unknown, name: string) => {
 export default function measurementsRoutes(ctx: AppContext) {
   const r = Router();
   const sqlite = ctx.db.$client;
+
+  /**
+   * The grid's filtered, sorted cell ids, cached per (study, source, filters, sort) and data version (writes
+   * through the API bump ctx.dataVersion; runs add measurements, whose newest id is part of the key), so paging
+   * through 100,000 cells sorts once instead of on every page.
+   */
+  const idCache = new Map<string, { ids: Int32Array; total: number }>();
+  /** prepared statements by SQL text (the grid's SQL varies only with the filters in use) */
+  const statements = new Map<string, ReturnType<typeof sqlite.prepare>>();
+  const prepared = (sql: string) => {
+    let st = statements.get(sql);
+    if (!st) {
+      st = sqlite.prepare(sql);
+      statements.set(sql, st);
+      if (statements.size > 256) statements.delete(statements.keys().next().value!);
+    }
+    return st;
+  };
+  const maxMeasurement = sqlite.prepare('SELECT coalesce(max(id), 0) AS id FROM measurements');
+  function orderedIds(studyId: number, src: ReturnType<typeof resolveSource>, q: GridQueryT) {
+    const { page: _p, pageSize: _s, ...rest } = q;
+    const version = `${ctx.dataVersion}:${(maxMeasurement.get() as { id: number }).id}`;
+    const key = JSON.stringify([studyId, src.runIds, rest, version]);
+    const hit = idCache.get(key);
+    if (hit) {
+      idCache.delete(key);
+      idCache.set(key, hit); // most recently used last
+      return hit;
+    }
+    const g = gridFrom(studyId, src, q);
+    const rows = sqlite.prepare(`SELECT c.id AS id ${g.from} ${orderBy(q.sort, q.dir)}`).raw().all(g.params) as [number][];
+    const ids = Int32Array.from(rows, (x) => x[0]);
+    const value = { ids, total: ids.length };
+    idCache.set(key, value);
+    while (idCache.size > 64) idCache.delete(idCache.keys().next().value!);
+    return value;
+  }
 
   r.get('/studies/:studyId/measurement-sources', requireUser, (req, res) => {
     const studyId = idOf(req.params.studyId, 'studyId');
@@ -52,34 +89,45 @@ export default function measurementsRoutes(ctx: AppContext) {
     res.json(body);
   });
 
-  r.get('/studies/:studyId/cell-table', requireUser, (req, res) => {
-    const studyId = idOf(req.params.studyId, 'studyId');
-    const study = requireStudy(ctx, req.user, studyId, 'read');
-    const q = parse(GridQuery, req.query);
-    const src = resolveSource(ctx, studyId, q);
-    const g = gridFrom(studyId, src, q);
-    // narrow key query (ids in order), then the full rows of just this page
-    const ids = (
-      sqlite.prepare(`SELECT c.id AS id ${g.from} ${orderBy(q.sort, q.dir)} LIMIT @limit OFFSET @offset`).all({ ...g.params, limit: q.pageSize, offset: q.page * q.pageSize }) as { id: number }[]
-    ).map((x) => x.id);
-    const total = (sqlite.prepare(`SELECT count(*) AS n ${g.from}`).get(g.params) as { n: number }).n;
+  /** One page of full grid rows, cached like the ids (same key plus the page) so re-reading a page is cheap. */
+  const pageCache = new Map<string, GridResponse['rows']>();
+  function pageRows(studyId: number, src: ReturnType<typeof resolveSource>, q: GridQueryT, allIds: Int32Array) {
+    const version = `${ctx.dataVersion}:${(maxMeasurement.get() as { id: number }).id}`;
+    const key = JSON.stringify([studyId, src.runIds, q, version]);
+    const hit = pageCache.get(key);
+    if (hit) return hit;
+    const ids = Array.from(allIds.subarray(q.page * q.pageSize, (q.page + 1) * q.pageSize));
     let rows: Record<string, unknown>[] = [];
     if (ids.length) {
       const p2: Record<string, unknown> = {};
       ids.forEach((id, i) => (p2[`id${i}`] = id));
       const d = gridFrom(studyId, src, { ...q, conditionId: undefined, coverslipId: undefined, fieldId: undefined, range: [], q: undefined, excluded: 'any', saturated: 'any', provisional: 'any', measured: 'any' });
       const byId = new Map(
-        (sqlite.prepare(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`).all({ ...d.params, ...p2 }) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]),
+        (prepared(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`).all({ ...d.params, ...p2 }) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]),
       );
       rows = ids.map((id) => byId.get(id)!).filter(Boolean);
     }
+    const out = rows.map(toGridRow);
+    pageCache.set(key, out);
+    while (pageCache.size > 512) pageCache.delete(pageCache.keys().next().value!);
+    return out;
+  }
+
+  r.get('/studies/:studyId/cell-table', requireUser, (req, res) => {
+    const studyId = idOf(req.params.studyId, 'studyId');
+    const study = requireStudy(ctx, req.user, studyId, 'read');
+    const canExclude = studyPermissions(ctx, req.user!, study).has('exclude');
+    const q = parse(GridQuery, req.query);
+    const src = resolveSource(ctx, studyId, q);
+    const { ids: allIds, total } = orderedIds(studyId, src, q);
+    const rows = pageRows(studyId, src, q, allIds);
     const body: GridResponse = {
-      rows: rows.map(toGridRow),
+      rows,
       total,
       page: q.page,
       pageSize: q.pageSize,
       source: { runId: src.runId, recipeId: src.recipeId, recipeName: src.recipeName, recipeVersion: src.recipeVersion },
-      canExclude: studyPermissions(ctx, req.user!, study).has('exclude'),
+      canExclude,
     };
     res.json(body);
   });
