@@ -6,7 +6,7 @@ import fs from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import type { AppContext } from './context.js';
 import { authenticate } from './auth/session.js';
-import { errorMiddleware, notFoundApi } from './http/errors.js';
+import { errorMiddleware, notFoundApi, unauthorized } from './http/errors.js';
 import { sameOriginWrites, securityHeaders } from './http/security.js';
 import authRoutes from './routes/auth.js';
 import usersRoutes from './routes/users.js';
@@ -36,6 +36,11 @@ export function createApp(ctx: AppContext) {
     if (req.method !== 'GET' && req.method !== 'HEAD') res.on('finish', () => void ctx.dataVersion++);
     next();
   });
+
+  // everything under /api needs a session except the open routes (server/auth/route-rules.ts: public, invite-
+  // and share-token routes); refusing before routing means an anonymous caller cannot tell which ids exist
+  const OPEN = /^\/(health$|auth\/login$|auth\/logout$|auth\/invitations\/|shared\/)/;
+  app.use('/api', (req, _res, next) => (req.user || OPEN.test(req.path) ? next() : next(unauthorized())));
 
   app.get('/api/health', (_req, res) => {
     res.json({ ok: true });

@@ -177,7 +177,12 @@ export default function cellsRoutes(ctx: AppContext) {
     res.json({ ok: true, soft });
   });
 
-  r.post('/fields/:id/cells/import', upload.single('file'), async (req, res) => {
+  // permission is checked before the body is read, so nobody can make the server buffer a file it would refuse
+  const canImport: import('express').RequestHandler = (req, _res, next) => {
+    loadFieldFor(ctx, req.user, idOf(req.params.id, 'field'), 'edit_images');
+    next();
+  };
+  r.post('/fields/:id/cells/import', canImport, upload.single('file'), async (req, res) => {
     const fieldId = idOf(req.params.id, 'field');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
     if (!req.file) throw badRequest('attach the label image as the form field "file"');

@@ -20,9 +20,11 @@ describe('health and session basics', () => {
     expect(me.status).toBe(200);
     expect(me.body.user).toMatchObject({ email: 'microscopist@test.example', roles: ['microscopist'] });
   });
-  it('unknown API route is 404 JSON', async () => {
-    const res = await request(t.app).get('/api/nope');
+  it('unknown API route is 404 JSON when signed in, 401 when not (anonymous callers learn nothing)', async () => {
+    const agent = await t.login('biologist');
+    const res = await agent.get('/api/nope');
     expect(res.status).toBe(404);
     expect(res.body.error).toMatch(/no API route/);
+    expect((await request(t.app).get('/api/nope')).status).toBe(401);
   });
 });
