@@ -30,7 +30,31 @@ function describeZod(err: ZodError, input?: unknown) {
 
 export const notFoundApi: RequestHandler = (req, _res, next) => next(notFound(`no API route ${req.method} ${req.path}`));
 
-export const errorMiddleware: ErrorRequestHandler = (err, req, res, _next) => {
+/** Bodies up to this size are read to the end before an early refusal is sent, so the client sees the answer. */
+const DRAIN_LIMIT = 64 * 1024 * 1024;
+
+/**
+ * The one error middleware. When a request is refused before its body was read (e.g. an upload to a
+ * coverslip the user may not see), a client still sending would get a broken pipe instead of the answer:
+ * a modest body is read to the end and discarded first; a large one gets the answer with Connection: close.
+ */
+export const errorMiddleware: ErrorRequestHandler = (err, req, res, next) => {
+  if (res.headersSent) return;
+  const unread = !req.complete && req.readable && !req.readableEnded;
+  if (unread) {
+    const declared = Number(req.headers['content-length'] ?? NaN);
+    if (Number.isFinite(declared) && declared <= DRAIN_LIMIT) {
+      req.on('end', () => answer(err, req, res, next));
+      req.on('error', () => answer(err, req, res, next));
+      req.resume();
+      return;
+    }
+    res.setHeader('Connection', 'close');
+  }
+  answer(err, req, res, next);
+};
+
+const answer: ErrorRequestHandler = (err, req, res, _next) => {
   if (res.headersSent) return;
   if (err instanceof ZodError) return res.status(400).json(describeZod(err));
   if (err instanceof HttpError) return res.status(err.status).json({ error: err.message, ...(err.details ?? {}) });
