@@ -19,7 +19,12 @@ export const COEFFICIENTS: { key: keyof RegionResult; label: string; title: stri
   { key: 'icq', label: 'ICQ', title: "Li's intensity correlation quotient" },
 ];
 
-export const fmtCoef = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : v.toFixed(3));
+/** Three decimals; a value that rounds to zero is shown as 0.000, never "-0.000". */
+export const fmtCoef = (v: number | null | undefined) => {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  const s = v.toFixed(3);
+  return /^-0\.0+$/.test(s) ? s.slice(1) : s;
+};
 
 export function LivePreview({ result, regionName, t1, t2, ms, pending, stale }: { result: RegionResult | null; regionName: string; t1: number; t2: number; ms: number; pending: boolean; stale: boolean }) {
   return (
