@@ -10,47 +10,11 @@ import type { AppContext } from '../../server/context.js';
 import { cells, fields, files, type CellGeometry } from '../../server/db/schema.js';
 import { keyForSha } from '../../server/images/store.js';
 import { Xoshiro128 } from '../../shared/analysis/prng.js';
+import { tiffPages } from '../security/tiff.js';
 
+/** A multi-page uncompressed 16-bit TIFF (one writer for the test suites: tests/security/tiff.ts). */
 export function tiff16(width: number, height: number, pages: Uint16Array[]): Buffer {
-  const entries = 10;
-  const ifdSize = 2 + entries * 12 + 4;
-  const pageBytes = width * height * 2;
-  const total = 8 + pages.length * (pageBytes + ifdSize);
-  const b = Buffer.alloc(total);
-  b.write('II', 0, 'latin1');
-  b.writeUInt16LE(42, 2);
-  let off = 8;
-  b.writeUInt32LE(off + pageBytes, 4);
-  pages.forEach((px, p) => {
-    const dataOff = off;
-    for (let i = 0; i < px.length; i++) b.writeUInt16LE(px[i], dataOff + 2 * i);
-    let q = dataOff + pageBytes;
-    const ifd = q;
-    b.writeUInt16LE(entries, q);
-    q += 2;
-    const ent = (tag: number, type: number, value: number) => {
-      b.writeUInt16LE(tag, q);
-      b.writeUInt16LE(type, q + 2);
-      b.writeUInt32LE(1, q + 4);
-      if (type === 3) b.writeUInt16LE(value, q + 8);
-      else b.writeUInt32LE(value, q + 8);
-      q += 12;
-    };
-    ent(256, 4, width);
-    ent(257, 4, height);
-    ent(258, 3, 16);
-    ent(259, 3, 1);
-    ent(262, 3, 1);
-    ent(273, 4, dataOff);
-    ent(277, 3, 1);
-    ent(278, 4, height);
-    ent(279, 4, pageBytes);
-    ent(339, 3, 1);
-    const next = p + 1 < pages.length ? ifd + ifdSize + pageBytes : 0;
-    b.writeUInt32LE(next, q);
-    off = ifd + ifdSize;
-  });
-  return b;
+  return tiffPages(width, height, pages);
 }
 
 /** Two correlated channels with blob structure plus seeded noise (values well below saturation). */
