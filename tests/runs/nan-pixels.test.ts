@@ -73,6 +73,16 @@ describe('NaN pixels in a float32 field', () => {
     }
   });
 
+  it('upload: a channel with no value at all (every pixel NaN) is refused with a message', async () => {
+    const res = await mic
+      .post(`/api/coverslips/${t.world.coverslipA}/fields`)
+      .field('plan', JSON.stringify([{ name: 'empty channel', ch1: { file: 0, channel: 1 }, ch2: { file: 0, channel: 2 } }]))
+      .attach('files', path.join(DIR, 'f32nan_empty.tif'));
+    const r = UploadResponse.parse(res.body).results[0];
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.error).toMatch(/channel 2 holds no intensity: all 48 of its pixels are NaN/);
+  });
+
   for (const v of ref.variants) {
     it(`run with field Otsu thresholds, background ${v.background}: counts, means, Pearson and thresholds over the NaN-dropped pixels`, async () => {
       const background = v.background === 'constant' ? { method: 'constant', ch1: v.b![0], ch2: v.b![1] } : { method: v.background };
