@@ -1,4 +1,8 @@
-/** Per-channel facts of a field: min, max, mean and saturation, computed over every z slice. */
+/**
+ * Per-channel facts of a field: min, max, mean and saturation, computed over every z slice. NaN pixels (float
+ * data) carry no intensity (PRODUCT.md): they are left out of every fact, fractions included (their
+ * denominator is the number of pixels with a value).
+ */
 import type { ChannelFacts } from '../db/schema.js';
 import type { PixelArray } from './decode.js';
 
@@ -15,6 +19,12 @@ export function channelFacts(slices: PixelArray[], maxValue: number | null): Cha
   if (slices.length && slices.every((a) => a instanceof Uint16Array) ) return histFacts(slices as Uint16Array[], 65536, maxValue);
   if (slices.length && slices.every((a) => a instanceof Uint8Array)) return histFacts(slices as Uint8Array[], 256, maxValue);
   return genericFacts(slices, maxValue);
+}
+
+/** Whether any pixel of the channel has a value (integer data always; float data unless every pixel is NaN). */
+export function hasValue(slices: PixelArray[]): boolean {
+  for (const a of slices) for (let i = 0; i < a.length; i++) if (a[i] === a[i]) return true;
+  return false;
 }
 
 /** Histograms of 8/16-bit planes, kept while the plane lives (facts and preview percentiles share one pass). */
@@ -61,10 +71,11 @@ function genericFacts(slices: PixelArray[], maxValue: number | null): ChannelFac
   let max = -Infinity;
   let sum = 0;
   for (const a of slices) {
-    n += a.length;
     let s = 0;
     for (let i = 0; i < a.length; i++) {
       const v = a[i];
+      if (v !== v) continue; // NaN
+      n++;
       if (v < min) min = v;
       if (v > max) max = v;
       s += v;

@@ -16,7 +16,8 @@ import type { AppContext } from '../context.js';
 import { auditEvents, conditions, coverslips, fields, files } from '../db/schema.js';
 import { HttpError } from '../http/errors.js';
 import { checkChannel1, checkPairCompatible, decodeChannel, decodeChannels, ImageInputError, maxRepresentable, type ChannelCheck, type PixelArray, type TiffInfo } from './decode.js';
-import { channelFacts } from './facts.js';
+import { channelFacts, hasValue } from './facts.js';
+import { project } from './projection.js';
 import { keyForSha } from './store.js';
 
 export type FieldRow = typeof fields.$inferSelect;
@@ -124,6 +125,9 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
   const stack = await decodeSources(s1.path, s1.channel, s2.path, s2.channel, same, budgetOf(ctx));
   const maxV = maxRepresentable(stack.bitDepth, stack.sampleFormat);
   const facts = { ch1: channelFacts(stack.ch1, maxV), ch2: channelFacts(stack.ch2, maxV) };
+  for (const [k, ch] of [[1, stack.ch1], [2, stack.ch2]] as const)
+    if (!hasValue(ch))
+      throw new ImageInputError(`channel ${k} holds no intensity: all ${stack.width * stack.height * ch.length} of its pixels are NaN`);
 
   // hash and store each distinct file
   const distinct = same ? [s1] : [s1, s2];
@@ -301,16 +305,7 @@ export function selectZ(stack: Pick<DecodedStack, 'ch1' | 'ch2' | 'sizeZ'>, z: Z
   const n = stack.sizeZ;
   if (z === undefined || z === null) z = n === 1 ? 0 : Math.floor((n - 1) / 2);
   if (z === 'mip') {
-    const proj = (sl: PixelArray[]) => {
-      if (sl.length === 1) return sl[0];
-      const out = like(sl[0], sl[0].length);
-      out.set(sl[0]);
-      for (let k = 1; k < sl.length; k++) {
-        const s = sl[k];
-        for (let i = 0; i < s.length; i++) if (s[i] > out[i]) out[i] = s[i];
-      }
-      return out;
-    };
+    const proj = (sl: PixelArray[]) => project(sl, 0, sl.length - 1);
     return { ch1: proj(stack.ch1), ch2: proj(stack.ch2), depth: 1, z: 'mip' as ZChoice, zLabel: n === 1 ? 'single plane' : `maximum-intensity projection of ${n} slices` };
   }
   if (typeof z === 'object') {

@@ -28,7 +28,7 @@ export interface DisplayRange {
   hi: number;
 }
 
-/** Nearest-rank percentiles (common practice) of one channel; histogram for 8/16-bit, sorted sample otherwise. */
+/** Nearest-rank percentiles (common practice) of one channel; histogram for 8/16-bit, sorted sample otherwise (NaN left out). */
 export function percentiles(a: PixelArray, ps: number[]): number[] {
   const n = a.length;
   if (n === 0) return ps.map(() => 0);
@@ -48,7 +48,8 @@ export function percentiles(a: PixelArray, ps: number[]): number[] {
   const step = Math.max(1, Math.floor(n / 1_000_000));
   const sample = new Float64Array(Math.ceil(n / step));
   let k = 0;
-  for (let i = 0; i < n; i += step) sample[k++] = a[i];
+  for (let i = 0; i < n; i += step) if (a[i] === a[i]) sample[k++] = a[i]; // NaN carries no intensity
+  if (k === 0) return ps.map(() => 0);
   const s = sample.subarray(0, k).sort();
   return ps.map((p) => s[rank(p, k)]);
 }

@@ -334,6 +334,14 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     fieldsWithSaturation: fieldRows.filter((f) => (f.facts?.ch1?.saturatedFraction ?? 0) > 0 || (f.facts?.ch2?.saturatedFraction ?? 0) > 0).length,
   };
 
+  // ---- NaN pixels left out of the measured cells (float data; recorded per measurement since engine 1.0.1)
+  let nanPixelCount = 0;
+  let nanCells = 0;
+  for (const c of used) {
+    const k = (latest.get(c.cellId)?.provenance as { nanPixels?: unknown } | undefined)?.nanPixels;
+    if (typeof k === 'number' && k > 0) (nanPixelCount += k), nanCells++;
+  }
+
   const engineVersions = [...new Set(snapRuns.map((r) => r.engineVersion).filter((e): e is string => !!e))];
   const snap: ReportSnapshot = {
     schemaVersion: 1,
@@ -369,6 +377,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     scatter,
     scatters,
     saturation,
+    nanPixels: { pixels: nanPixelCount, cells: nanCells },
     methods: '',
     cautions: [...CAUTIONS],
   };
@@ -492,6 +501,8 @@ function cellScatter(px: FieldPixels, f: typeof fields.$inferSelect, cell: typeo
   let max1 = 0;
   let max2 = 0;
   let n = 0;
+  // a pixel with NaN in either channel carries no intensity: not counted, not plotted
+  for (let i = 0; i < mask.length; i++) if (mask[i] && (px.ch1[i] !== px.ch1[i] || px.ch2[i] !== px.ch2[i])) mask[i] = 0;
   for (let i = 0; i < mask.length; i++)
     if (mask[i]) {
       n++;

@@ -9,17 +9,22 @@
  *   saturated; float data has no saturation level (fractions null). 'exclude' drops pixels saturated in
  *   either channel before thresholds and coefficients.
  * - background: max(0, v − b) per channel; b = constant, or the mean over the union of the field's
- *   'background' regions (raw values, saturated pixels included). Integer data with an integer b stays
- *   integer (the engine's exact integer paths apply); otherwise the channel becomes Float64.
+ *   'background' regions (raw values, saturated pixels included, NaN pixels left out). Integer data with
+ *   an integer b stays integer (the engine's exact integer paths apply); otherwise the channel becomes Float64.
  * - Otsu / Costes thresholds: per cell over its measured pixels (thresholdScope 'cell'), or once per field
  *   over the union of its cells' measured pixels ('field', as the `analyze` command does over its regions).
  * - a cell with fewer measured pixels than minCellPixels gets a row with every coefficient null.
+ * - NaN (float data): a pixel with NaN in either channel carries no intensity (PRODUCT.md). It stays NaN
+ *   through projection and background subtraction and is left out of everything measured: the pixel count,
+ *   means, background-region means, thresholds (per cell and over the field) and coefficients. How many of a
+ *   cell's pixels were left out this way is recorded in the provenance (`nanPixels`).
  */
 import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import type { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../images/store.js';
 import { decodeChannel } from '../images/decode.js';
+import { project } from '../images/projection.js';
 import type { FieldJob, FieldJobResult, MeasurementValues } from './job.js';
 
 export { ENGINE_VERSION };
@@ -35,17 +40,7 @@ export class FieldJobError extends Error {
   override name = 'FieldJobError';
 }
 
-/** Maximum-intensity projection (or the slice itself when there is one). */
-export function project(slices: ArrayLike<number>[], from: number, to: number): ChannelArray {
-  const first = slices[from] as ChannelArray;
-  if (from === to) return first;
-  const out = (first as Uint16Array).slice();
-  for (let z = from + 1; z <= to; z++) {
-    const s = slices[z];
-    for (let i = 0; i < out.length; i++) if (s[i] > out[i]) out[i] = s[i];
-  }
-  return out;
-}
+export { project };
 
 export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] {
   const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1];
@@ -69,7 +64,7 @@ export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<Fi
     const d = await decodeChannel(new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength), src.channel);
     if (d.width !== job.width || d.height !== job.height)
       throw new FieldJobError(`stored file ${src.key} is ${d.width}×${d.height}, the field record says ${job.width}×${job.height}`);
-    out.push(project(d.slices, from, Math.min(to, d.slices.length - 1)));
+    out.push(project(d.slices as ChannelArray[], from, Math.min(to, d.slices.length - 1)));
   }
   return { width: job.width, height: job.height, ch1: out[0], ch2: out[1] };
 }
@@ -84,7 +79,22 @@ function subtract(a: ChannelArray, b: number): ChannelArray {
     return out;
   }
   const out = new Float64Array(a.length);
-  for (let i = 0; i < a.length; i++) out[i] = a[i] > b ? a[i] - b : 0;
+  for (let i = 0; i < a.length; i++) {
+    const v = a[i];
+    out[i] = v > b ? v - b : v === v ? 0 : NaN; // NaN stays NaN (v === v is false only for NaN)
+  }
+  return out;
+}
+
+/** The indices whose pixel has a value in both channels (NaN in either one → not measured). */
+function measurable(ch1: ChannelArray, ch2: ChannelArray, idx: Uint32Array): Uint32Array {
+  if (isIntegerArray(ch1) && isIntegerArray(ch2)) return idx;
+  let n = 0;
+  for (let k = 0; k < idx.length; k++) if (ch1[idx[k]] === ch1[idx[k]] && ch2[idx[k]] === ch2[idx[k]]) n++;
+  if (n === idx.length) return idx;
+  const out = new Uint32Array(n);
+  n = 0;
+  for (let k = 0; k < idx.length; k++) if (ch1[idx[k]] === ch1[idx[k]] && ch2[idx[k]] === ch2[idx[k]]) out[n++] = idx[k];
   return out;
 }
 
@@ -155,8 +165,11 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     const idx: number[] = [];
     for (const r of regions) for (const i of cellIndices(r.geometry, width, height)) if (!seen[i]) (seen[i] = 1), idx.push(i);
     if (idx.length === 0) throw new FieldJobError(`the recipe subtracts the mean of a marked background region, but field "${job.fieldName}" has none marked`);
-    bg1 = meanOver(raw1, idx);
-    bg2 = meanOver(raw2, idx);
+    const valued = measurable(raw1, raw2, Uint32Array.from(idx));
+    if (valued.length === 0)
+      throw new FieldJobError(`the background region${regions.length === 1 ? '' : 's'} of field "${job.fieldName}" (${idx.length} pixels) hold only NaN pixels, so there is no background level to subtract`);
+    bg1 = meanOver(raw1, valued);
+    bg2 = meanOver(raw2, valued);
   }
   const ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
   const ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
@@ -171,13 +184,14 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     .filter((c) => c.role === 'cell')
     .map((cell) => {
       const all = cellIndices(cell.geometry, width, height);
-      let idx: Uint32Array = all;
+      let idx: Uint32Array = measurable(ch1, ch2, all);
+      const nanPixels = all.length - idx.length;
       if (s.saturation === 'exclude' && sat != null) {
         const keep: number[] = [];
-        for (let k = 0; k < all.length; k++) if (raw1[all[k]] < sat && raw2[all[k]] < sat) keep.push(all[k]);
+        for (let k = 0; k < idx.length; k++) if (raw1[idx[k]] < sat && raw2[idx[k]] < sat) keep.push(idx[k]);
         idx = Uint32Array.from(keep);
       }
-      return { cell, all, idx };
+      return { cell, all, idx, nanPixels };
     });
   // field-wide thresholds over the union of the measured cells
   let fieldThresholds: ThresholdInfo | null = null;
@@ -193,7 +207,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   }
 
   const rows: MeasurementValues[] = [];
-  for (const { cell, all, idx } of measured) {
+  for (const { cell, all, idx, nanPixels } of measured) {
     let s1 = 0, s2 = 0;
     if (sat != null)
       for (let k = 0; k < all.length; k++) {
@@ -216,6 +230,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       randomizationBlock: block,
       randomizationCount: 0,
       note: null as string | null,
+      nanPixels,
       computedAt,
     };
     const base = {

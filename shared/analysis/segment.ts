@@ -34,9 +34,17 @@ export const AUTO_LEVEL_CLIP = 0.995;
 
 /**
  * Automatic foreground level: Otsu (1979) on the values clipped at their 99.5th percentile (see the module
- * comment). Integer data ≤ 65535 after clipping keeps the full integer histogram. null when constant.
+ * comment). Integer data ≤ 65535 after clipping keeps the full integer histogram. NaN values are left out.
+ * null when constant (or no value).
  */
-export function autoLevel(values: ArrayLike<number>): number | null {
+export function autoLevel(input: ArrayLike<number>): number | null {
+  // NaN pixels carry no intensity: they take no part in the percentile or the threshold
+  let values = input;
+  for (let i = 0; i < input.length; i++)
+    if (input[i] !== input[i]) {
+      values = Array.prototype.filter.call(input, (v: number) => v === v) as number[];
+      break;
+    }
   const n = values.length;
   if (n === 0) return null;
   const sorted = Float64Array.from(values).sort();

@@ -199,6 +199,12 @@ export function methodsParagraph(snap: ReportSnapshot): string {
       ? `Saturation: ${sat.fieldsWithSaturation} of ${snap.fields.length} fields contain saturated pixels (largest fraction: channel 1 ${pct(sat.maxFraction1)}, channel 2 ${pct(sat.maxFraction2)}); saturated pixels bias the coefficients.`
       : `Saturation: no field contains saturated pixels.`,
   );
+  // 6. NaN pixels (said only when some were left out)
+  const nan = snap.nanPixels;
+  if (nan && nan.pixels > 0)
+    parts.push(
+      `Missing values: ${nan.pixels} pixel${nan.pixels === 1 ? '' : 's'} in ${nan.cells} cell${nan.cells === 1 ? '' : 's'} had no value (NaN) in at least one channel and ${nan.pixels === 1 ? 'was' : 'were'} left out of every pixel count, mean, threshold and coefficient.`,
+    );
   if (snap.anyProvisional) parts.push('Some measurements come from a recipe version that was not approved when it ran; these results are provisional.');
 
   const refs = used.map((k, i) => `[${i + 1}] ${CITATIONS[k].text}`);

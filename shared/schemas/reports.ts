@@ -246,6 +246,8 @@ export const ReportSnapshot = z.object({
   /** scatters of the measured cells of the representative fields (at most 24), so a reader can pick one */
   scatters: z.array(CellScatter).default([]),
   saturation: z.object({ maxFraction1: Num, maxFraction2: Num, fieldsWithSaturation: z.number().int() }),
+  /** pixels of the reported cells left out because a channel holds NaN there, and in how many cells (absent in older reports) */
+  nanPixels: z.object({ pixels: z.number().int().nonnegative(), cells: z.number().int().nonnegative() }).optional(),
   methods: z.string(),
   cautions: z.array(z.string()),
 });

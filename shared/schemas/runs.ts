@@ -80,6 +80,8 @@ export const MeasurementProvenance = z.object({
   randomizationCount: z.number().int(),
   /** why coefficients are null, when they are on purpose (e.g. below the smallest cell size) */
   note: z.string().nullable(),
+  /** pixels of the cell left out because a channel holds NaN there (float data); absent on rows measured before it was recorded */
+  nanPixels: z.number().int().nonnegative().optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;

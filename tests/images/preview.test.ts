@@ -33,6 +33,9 @@ describe('helpers', () => {
   it('nearest-rank percentiles (common practice: value at rank ceil(p/100·n))', () => {
     const a = new Uint16Array([5, 1, 4, 2, 3, 10, 9, 8, 7, 6]);
     expect(percentiles(a, [0.1, 10, 50, 99.9, 100])).toEqual([1, 1, 5, 10, 10]);
+    // float data: NaN pixels take no part (else the top of the display range would be NaN)
+    const fl = Float32Array.from([NaN, 3, 1, NaN, 2, 4, NaN, 5, 6, 7, 8, 9, 10, NaN]);
+    expect(percentiles(fl, [0.1, 10, 50, 99.9, 100])).toEqual([1, 1, 5, 10, 10]);
     const f = new Float32Array([0.5, -1, 2.25, 7]);
     expect(percentiles(f, [25, 75])).toEqual([-1, 2.25]);
   });

@@ -102,6 +102,17 @@ describe('methods paragraph', () => {
     expect(methodsParagraph(manual)).toContain('threshold.t2 = 640');
   });
 
+  it('mentions NaN pixels only when some were left out, with their number', () => {
+    expect(snap.nanPixels).toEqual({ pixels: 0, cells: 0 });
+    expect(snap.methods).not.toContain('NaN');
+    const one = structuredClone(snap);
+    one.nanPixels = { pixels: 1, cells: 1 };
+    expect(methodsParagraph(one)).toContain('Missing values: 1 pixel in 1 cell had no value (NaN) in at least one channel and was left out');
+    const old = structuredClone(snap);
+    delete old.nanPixels; // reports made before the count was recorded
+    expect(methodsParagraph(old)).toBe(snap.methods);
+  });
+
   it('names the cautions', () => {
     const c = snap.cautions.join(' ');
     for (const w of ['200 nm', 'Saturated', 'bleed-through', 'Research use only']) expect(c).toContain(w);

@@ -4,6 +4,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { computeField, blockPixels, project, zRange, FieldJobError } from '../../server/runs/compute.js';
+import { selectZ } from '../../server/images/intake.js';
 import type { FieldJob } from '../../server/runs/job.js';
 import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
 import { measureRegion } from '../../shared/analysis/index.js';
@@ -112,5 +113,15 @@ describe('computeField', () => {
     expect(zRange({ mode: 'mip' }, 3)).toEqual([0, 2]);
     expect(zRange({ mode: 'range', from: 1, to: 2 }, 3)).toEqual([1, 2]);
     expect(() => zRange({ mode: 'slice', slice: 3 }, 3)).toThrow(/slice 4, but the field has 3 slices/);
+  });
+
+  it('maximum-intensity projection of float data: the max over the slices with a value, NaN only when every slice is NaN', () => {
+    const N = NaN;
+    const s = [Float32Array.of(N, 2, N, 5), Float32Array.of(3, N, N, 1), Float32Array.of(1, 7, N, N)];
+    expect(Array.from(project(s, 0, 2))).toEqual([3, 7, N, 5]);
+    expect(Array.from(project(s, 0, 1))).toEqual([3, 2, N, 5]);
+    // the same function serves the pixels/preview endpoints (selectZ 'mip')
+    const sel = selectZ({ ch1: s, ch2: s, sizeZ: 3 }, 'mip');
+    expect(Array.from(sel.ch1)).toEqual([3, 7, N, 5]);
   });
 });

@@ -178,6 +178,22 @@ describe('automatic level', () => {
     expect(segmentCells(img, W, H, { level, seedDistance: 10 }).objects).toHaveLength(2);
     expect(autoLevel(new Uint16Array(50).fill(7))).toBeNull();
   });
+
+  it('float data with NaN pixels: the level is that of the pixels with a value (NaN takes no part in the clip)', () => {
+    const W = 64, H = 64;
+    const img = Float32Array.from(diskImage(W, H, [[30, 30, 18]], 800, 200), (v, i) => v + (i % 7) * 0.25);
+    for (let k = 0; k < 20; k++) img[(28 + (k % 5)) * W + 28 + Math.floor(k / 5)] = 60000; // a bright punctum the clip must remove
+    const withNan = img.slice();
+    // 2 % NaN pixels: more than the 0.5 % clipped share, so counting them would put the clip on NaN
+    for (let i = 0; i < withNan.length; i += 50) withNan[i] = NaN;
+    const valued = withNan.filter((v) => !Number.isNaN(v));
+    const level = autoLevel(withNan);
+    expect(level).not.toBeNull();
+    expect(level).toBe(autoLevel(valued));
+    expect(level!).toBeGreaterThan(200);
+    expect(level!).toBeLessThan(800);
+    expect(autoLevel(new Float32Array(10).fill(NaN))).toBeNull();
+  });
 });
 
 describe('label masks as run lengths', () => {

@@ -1,0 +1,22 @@
+/**
+ * Maximum-intensity projection over z slices, the one implementation used by runs (server/runs/compute.ts),
+ * the pixels and preview endpoints and reports (server/images/intake.ts selectZ).
+ *
+ * NaN rule (decided 2026-12-02, PRODUCT.md: a NaN pixel carries no intensity): each output pixel is the
+ * largest non-NaN value of its column of slices, and NaN only when every slice is NaN there. A slice with a
+ * NaN pixel therefore does not hide the other slices' values, and a NaN never becomes a number.
+ */
+export function project<T extends ArrayLike<number> & { slice(): T; [i: number]: number }>(slices: T[], from: number, to: number): T {
+  const first = slices[from];
+  if (from === to) return first;
+  const out = first.slice();
+  for (let z = from + 1; z <= to; z++) {
+    const s = slices[z];
+    for (let i = 0; i < out.length; i++) {
+      const v = s[i];
+      // out[i] !== out[i]: no value yet (NaN so far); a NaN v never wins a comparison
+      if (v > out[i] || out[i] !== out[i]) out[i] = v;
+    }
+  }
+  return out;
+}
