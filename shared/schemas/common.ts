@@ -18,3 +18,31 @@ export const IsoDate = z.string();
 export const OkResponse = z.object({ ok: z.literal(true) });
 export type OkResponse = z.infer<typeof OkResponse>;
 export const Name = (what: string, max = 120) => z.string({ message: `enter a ${what}` }).trim().min(1, `enter a ${what}`).max(max, `a ${what} has at most ${max} characters`);
+
+/**
+ * A number typed into a box (client forms): plain decimal text (an exponent is allowed), finite, within
+ * [min, max], whole when `integer`; each refusal quotes the text received. `what` names the box in messages.
+ */
+export function NumberText(what: string, opts: { min?: number; max?: number; integer?: boolean } = {}) {
+  const { min, max, integer } = opts;
+  const range =
+    min !== undefined && max !== undefined ? `between ${min} and ${max}` : min !== undefined ? `at least ${min}` : max !== undefined ? `at most ${max}` : '';
+  return z.string().transform((text, ctx) => {
+    const t = text.trim();
+    const n = Number(t);
+    const fail = (m: string) => {
+      ctx.addIssue({ code: 'custom', message: `${what} ${m}, got ${JSON.stringify(text)}` });
+      return z.NEVER;
+    };
+    if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t) || !Number.isFinite(n)) return fail(`must be a number${range ? ` ${range}` : ''}`);
+    if (integer && !Number.isInteger(n)) return fail('must be a whole number');
+    if ((min !== undefined && n < min) || (max !== undefined && n > max)) return fail(`must be ${range}`);
+    return n;
+  });
+}
+
+/** Checks box text with a NumberText schema: the number, or the first message. */
+export function readNumberText(schema: ReturnType<typeof NumberText>, text: string): { value: number; error: null } | { value: null; error: string } {
+  const r = schema.safeParse(text);
+  return r.success ? { value: r.data, error: null } : { value: null, error: r.error.issues[0].message };
+}
