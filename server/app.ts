@@ -25,7 +25,8 @@ const DEFAULT_CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.u
 export function createApp(ctx: AppContext) {
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', ctx.env.TRUST_PROXY === '1');
+  // TRUST_PROXY=1: exactly one reverse proxy in front; req.ip is the address it saw, req.secure its X-Forwarded-Proto
+  app.set('trust proxy', ctx.env.TRUST_PROXY === '1' ? 1 : false);
   app.use(securityHeaders());
   app.use(cookieParser());
   app.use('/api', sameOriginWrites(ctx));

@@ -22,7 +22,8 @@ const EnvSchema = z.object({
   WORKERS: z.coerce.number().int().min(1).max(64).default(Math.max(1, Math.min(4, (globalThis as any).navigator?.hardwareConcurrency ?? 2) - 1)),
   SEED_DEMO: z.enum(['auto', 'never']).default('auto'),
   TRUST_PROXY: z.enum(['0', '1']).default('0'),
-  NODE_ENV: z.string().default('development'),
+  /** production unless told otherwise; `npm run dev` sets development, the test set-up sets test */
+  NODE_ENV: z.enum(['production', 'development', 'test'], { error: 'NODE_ENV must be production, development or test' }).default('production'),
   /** folder of the built client (vite build output) */
   CLIENT_DIR: z.string().min(1).optional(),
 });
@@ -40,6 +41,10 @@ export function loadEnv(source: NodeJS.ProcessEnv = process.env): Env {
     throw new ConfigError(`configuration error: ${name}=${JSON.stringify(source[name] ?? null)}: ${i.message}`);
   }
   const env = parsed.data;
+  // links in e-mails must not be built from a request's Host header, which any client can set
+  if (env.NODE_ENV === 'production' && env.SMTP_URL && !env.PUBLIC_URL) {
+    throw new ConfigError('configuration error: PUBLIC_URL is required when SMTP_URL is set (links in e-mails are built from it), e.g. PUBLIC_URL=https://syntopy.example.org');
+  }
   const dataDir = path.resolve(env.DATA_DIR);
   try {
     fs.mkdirSync(dataDir, { recursive: true });

@@ -17,8 +17,8 @@ async function main() {
   const ctx = await createContext(env);
   await (await import('./recover.js')).recoverAfterCrash(ctx); // leftovers of an unclean stop (issue 9)
   if (env.SEED_DEMO === 'auto') {
-    const { seedDemoIfEmpty } = await import('./db/seed/index.js');
-    await seedDemoIfEmpty(ctx, { startRun: true });
+    const { seedDemoIfNeeded } = await import('./db/seed/index.js');
+    await seedDemoIfNeeded(ctx, { startRun: true });
   }
   await ctx.runs.resume();
   const app = createApp(ctx);

@@ -54,13 +54,29 @@ export function studyPermissions(ctx: AppContext, user: SessionUser, study: Stud
   return p;
 }
 
-/** Loads the study and checks the action: 404 when the user may not see it, 403 when they may see but not act. */
-export function requireStudy(ctx: AppContext, user: SessionUser | undefined, studyId: number, action: StudyAction): Study {
+/**
+ * The object a request named in its path or body (a cell, a field, a report…). When the user may not see the
+ * study it belongs to, the 404 names this object exactly as a missing one would, so a foreign id and an
+ * unknown id get the same status and the same body (nothing tells whether it exists or which study owns it).
+ */
+export interface Asked {
+  what: string;
+  id: number;
+}
+
+/** The one 404 for an object that does not exist or that the user may not see. */
+export const notFoundAsked = (a: Asked) => notFound(`no ${a.what} with id ${a.id}`);
+
+/**
+ * Loads the study and checks the action: 404 when the user may not see it, 403 when they may see but not act.
+ * `asked` is the object the request named (default: the study itself); the 404 names it.
+ */
+export function requireStudy(ctx: AppContext, user: SessionUser | undefined, studyId: number, action: StudyAction, asked: Asked = { what: 'study', id: studyId }): Study {
   if (!user) throw unauthorized();
   const study = Number.isInteger(studyId) ? ctx.db.select().from(studies).where(eq(studies.id, studyId)).get() : undefined;
-  if (!study) throw notFound(`no study with id ${studyId}`);
+  if (!study) throw notFoundAsked(asked);
   const perms = studyPermissions(ctx, user, study);
-  if (!perms.has('read')) throw notFound(`no study with id ${studyId}`);
+  if (!perms.has('read')) throw notFoundAsked(asked);
   if (!perms.has(action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow ${ACTION_WORDS[action] ?? `"${action}"`} in this study`);
   return study;
 }

@@ -39,6 +39,24 @@ export class UsageError extends Error {}
 const USAGE =
   'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]';
 
+/** What `--help` / `-h` prints (stdout, exit 0). */
+export const HELP = [
+  USAGE,
+  '',
+  'Co-localization coefficients of two channels, for the whole image or per region.',
+  '',
+  '  --ch1 A.tif --ch2 B.tif     the two channels as two single-channel TIFFs',
+  '  --image X.tif --channels i,j  one multi-channel TIFF and its two channels (1-based)',
+  '  --mask LABELS.tif           a label image: one region per non-zero label',
+  '  --rois ROIS.json            regions as a JSON array of polygons',
+  '  --threshold METHOD          none (default), manual (with --t1 and --t2), otsu or costes',
+  '  --t1 N --t2 N               manual thresholds of channel 1 and channel 2',
+  '  --json                      print JSON instead of a table',
+  '  -h, --help                  print this help',
+  '',
+  'Exit status: 0 done; 2 bad input (one "error:" line); 1 internal failure.',
+].join('\n');
+
 interface Roi {
   name: string;
   points: [number, number][];
@@ -79,7 +97,9 @@ function parseNumber(v: string, what: string): number {
   return n;
 }
 
-export function parseCli(argv: string[]): CliOptions {
+/** The parsed command line, or 'help' when --help / -h was given (then nothing else is checked). */
+export function parseCli(argv: string[]): CliOptions | 'help' {
+  if (argv.includes('--help') || argv.includes('-h')) return 'help';
   let values: Record<string, string | boolean | undefined>;
   try {
     ({ values } = parseArgs({
@@ -292,6 +312,10 @@ function oneLine(s: string): string {
 export async function main(argv: string[]): Promise<number> {
   try {
     const o = parseCli(argv);
+    if (o === 'help') {
+      process.stdout.write(HELP + '\n');
+      return 0;
+    }
     const out = await analyze(o);
     process.stdout.write(o.json ? JSON.stringify(out) + '\n' : formatTable(out) + '\n');
     return 0;

@@ -101,7 +101,6 @@ export function gridFrom(studyId: number, src: ResolvedSource, f: GridFilters) {
   const params: Record<string, unknown> = { studyId };
   const inList = (col: string, name: string, values: number[] | undefined) => {
     if (!values || values.length === 0) return;
-    if (values.length > 500) throw badRequest(`${name}: at most 500 ids, received ${values.length}`);
     const keys = values.map((v, i) => {
       params[`${name}${i}`] = v;
       return `@${name}${i}`;

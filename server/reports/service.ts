@@ -3,7 +3,7 @@ import type { Response } from 'express';
 import { eq, inArray } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { reports, users } from '../db/schema.js';
-import { notFound } from '../http/errors.js';
+import { notFoundAsked } from '../auth/policy.js';
 import { ReportSnapshot, type CsvTable, type ReportDetail, type ReportSummary } from '../../shared/schemas/reports.js';
 import { reportCsv } from './csv.js';
 
@@ -11,7 +11,7 @@ export type ReportRow = typeof reports.$inferSelect;
 
 export function loadReport(ctx: AppContext, id: number): ReportRow {
   const r = Number.isInteger(id) ? ctx.db.select().from(reports).where(eq(reports.id, id)).get() : undefined;
-  if (!r) throw notFound(`no report with id ${id}`);
+  if (!r) throw notFoundAsked({ what: 'report', id });
   return r;
 }
 

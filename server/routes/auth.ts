@@ -32,7 +32,7 @@ export default function authRoutes(ctx: AppContext) {
       recordFailure(ctx, body.email, ip);
       throw unauthorized(LOGIN_FAILED);
     }
-    clearFailures(ctx, body.email);
+    clearFailures(ctx, body.email, ip);
     setSessionCookie(ctx, req, res, await signSession(ctx, u.id, u.sessionVersion));
     res.json(meOf(u));
   });

@@ -14,9 +14,10 @@ import multer from 'multer';
 import { and, asc, eq, isNull, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, cells, conditions, coverslips, fields, measurements } from '../db/schema.js';
-import { requireStudy, type StudyAction } from '../auth/policy.js';
+import { notFoundAsked, requireStudy, type Asked, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
-import { badRequest, notFound, parse, unauthorized, HttpError } from '../http/errors.js';
+import { badRequest, parse, unauthorized, HttpError } from '../http/errors.js';
+import { idParam } from './_params.js';
 import {
   AutoOutlineRequest,
   CreateCellRequest,
@@ -34,11 +35,6 @@ type FieldRow = typeof fields.$inferSelect;
 /** Most cells one import or automatic run may create (a guard against a wrong file, not a science limit). */
 export const MAX_CELLS_PER_REQUEST = 5000;
 
-const idOf = (v: unknown, what: string) => {
-  const n = Number(v);
-  if (!Number.isInteger(n) || n <= 0) throw badRequest(`${what} id must be a positive integer, got ${JSON.stringify(v)}`);
-  return n;
-};
 
 export function toCell(r: CellRow): Cell {
   return {
@@ -56,7 +52,7 @@ export function toCell(r: CellRow): Cell {
 }
 
 /** The field and its study id, after the permission check (404 when not visible, 403 when not allowed). */
-export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fieldId: number, action: StudyAction): { field: FieldRow; studyId: number } {
+export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fieldId: number, action: StudyAction, asked: Asked = { what: 'field', id: fieldId }): { field: FieldRow; studyId: number } {
   if (!user) throw unauthorized();
   const row = ctx.db
     .select({ field: fields, studyId: conditions.studyId })
@@ -65,15 +61,17 @@ export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fie
     .innerJoin(conditions, eq(conditions.id, coverslips.conditionId))
     .where(eq(fields.id, fieldId))
     .get();
-  if (!row || row.field.status === 'deleted') throw notFound(`no field with id ${fieldId}`);
-  requireStudy(ctx, user, row.studyId, action);
+  if (!row || row.field.status === 'deleted') throw notFoundAsked(asked);
+  requireStudy(ctx, user, row.studyId, action, asked);
   return row;
 }
 
 function loadCellFor(ctx: AppContext, user: SessionUser | undefined, cellId: number, action: StudyAction) {
+  if (!user) throw unauthorized();
+  const asked = { what: 'cell', id: cellId };
   const cell = ctx.db.select().from(cells).where(eq(cells.id, cellId)).get();
-  if (!cell || cell.deletedAt) throw notFound(`no cell with id ${cellId}`);
-  const { field, studyId } = loadFieldFor(ctx, user, cell.fieldId, action);
+  if (!cell || cell.deletedAt) throw notFoundAsked(asked);
+  const { field, studyId } = loadFieldFor(ctx, user, cell.fieldId, action, asked);
   return { cell, field, studyId };
 }
 
@@ -112,14 +110,14 @@ export default function cellsRoutes(ctx: AppContext) {
   const r = Router();
 
   r.get('/fields/:id/cells', (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     loadFieldFor(ctx, req.user, fieldId, 'read');
     const rows = ctx.db.select().from(cells).where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt))).orderBy(asc(cells.id)).all();
     res.json({ cells: rows.map(toCell) });
   });
 
   r.post('/fields/:id/cells', (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
     const body = parse(CreateCellRequest, req.body);
     const pixelCount = pixelCountOf(body.geometry, field);
@@ -136,7 +134,7 @@ export default function cellsRoutes(ctx: AppContext) {
   });
 
   r.patch('/cells/:id', (req, res) => {
-    const cellId = idOf(req.params.id, 'cell');
+    const cellId = idParam(req, 'id');
     const { cell, field, studyId } = loadCellFor(ctx, req.user, cellId, 'edit_images');
     const body = parse(UpdateCellRequest, req.body);
     const patch: Partial<CellRow> = {};
@@ -167,7 +165,7 @@ export default function cellsRoutes(ctx: AppContext) {
   });
 
   r.delete('/cells/:id', (req, res) => {
-    const cellId = idOf(req.params.id, 'cell');
+    const cellId = idParam(req, 'id');
     const { cell, studyId } = loadCellFor(ctx, req.user, cellId, 'edit_images');
     const soft = ctx.db.transaction((tx) => {
       const s = removeCell(ctx, tx as unknown as AppContext['db'], cell);
@@ -179,11 +177,11 @@ export default function cellsRoutes(ctx: AppContext) {
 
   // permission is checked before the body is read, so nobody can make the server buffer a file it would refuse
   const canImport: import('express').RequestHandler = (req, _res, next) => {
-    loadFieldFor(ctx, req.user, idOf(req.params.id, 'field'), 'edit_images');
+    loadFieldFor(ctx, req.user, idParam(req, 'id'), 'edit_images');
     next();
   };
   r.post('/fields/:id/cells/import', canImport, upload.single('file'), async (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
     if (!req.file) throw badRequest('attach the label image as the form field "file"');
     const { decodeChannel, ImageInputError } = await import('../images/decode.js');
@@ -226,7 +224,7 @@ export default function cellsRoutes(ctx: AppContext) {
   });
 
   r.post('/fields/:id/cells/auto', async (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
     const body = parse(AutoOutlineRequest, req.body ?? {});
     if (body.maxPixels != null && body.maxPixels < body.minPixels) throw badRequest(`maxPixels (${body.maxPixels}) must be at least minPixels (${body.minPixels})`);

@@ -20,9 +20,10 @@ import multer, { type StorageEngine } from 'multer';
 import { and, asc, eq, inArray, isNull, ne, or, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, cells, conditions, coverslips, fields, files, measurements, runFields } from '../db/schema.js';
-import { requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
+import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
-import { badRequest, HttpError, notFound, parse, unauthorized } from '../http/errors.js';
+import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
+import { idParam } from './_params.js';
 import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { ImageInputError } from '../images/decode.js';
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
@@ -31,11 +32,6 @@ import { keyForSha } from '../images/store.js';
 
 type Db = AppContext['db'];
 
-const idOf = (v: unknown, what: string) => {
-  const n = Number(v);
-  if (!Number.isInteger(n) || n <= 0) throw badRequest(`${what} id must be a positive integer, got ${JSON.stringify(v)}`);
-  return n;
-};
 
 export function toFieldSummary(f: FieldRow): FieldSummary {
   const flag = (c: FieldRow['facts']['ch1']) => c.saturatedFraction > SATURATION_FLAG_FRACTION || (c.plateauFraction ?? 0) > SATURATION_FLAG_FRACTION;
@@ -66,22 +62,18 @@ function coverslipStudy(ctx: AppContext, coverslipId: number) {
     .innerJoin(conditions, eq(conditions.id, coverslips.conditionId))
     .where(eq(coverslips.id, coverslipId))
     .get();
-  if (!row) throw notFound(`no coverslip with id ${coverslipId}`);
+  if (!row) throw notFoundAsked({ what: 'coverslip', id: coverslipId });
   return row;
 }
 
-/** Loads a field and checks the action in its study (404 when the user may not see it). */
+/** Loads a field and checks the action in its study (404 naming the field when the user may not see it). */
 export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fieldId: number, action: StudyAction) {
   if (!user) throw unauthorized();
+  const asked = { what: 'field', id: fieldId };
   const field = ctx.db.select().from(fields).where(eq(fields.id, fieldId)).get();
-  if (!field) throw notFound(`no field with id ${fieldId}`);
+  if (!field) throw notFoundAsked(asked);
   const cs = coverslipStudy(ctx, field.coverslipId);
-  try {
-    requireStudy(ctx, user, cs.studyId, action);
-  } catch (e) {
-    if (e instanceof HttpError && e.status === 404) throw notFound(`no field with id ${fieldId}`);
-    throw e;
-  }
+  requireStudy(ctx, user, cs.studyId, action, asked);
   return { field, studyId: cs.studyId, conditionId: cs.conditionId };
 }
 
@@ -196,14 +188,9 @@ export default function fieldsRoutes(ctx: AppContext) {
     '/coverslips/:id/fields',
     (req, _res, next) => {
       // permission first: nothing is streamed to disk for a coverslip the user may not change
-      const coverslipId = idOf(req.params.id, 'coverslip');
+      const coverslipId = idParam(req, 'id');
       const cs = coverslipStudy(ctx, coverslipId);
-      try {
-        requireStudy(ctx, req.user, cs.studyId, 'edit_images');
-      } catch (e) {
-        if (e instanceof HttpError && e.status === 404) throw notFound(`no coverslip with id ${coverslipId}`);
-        throw e;
-      }
+      requireStudy(ctx, req.user, cs.studyId, 'edit_images', { what: 'coverslip', id: coverslipId });
       if (!String(req.headers['content-type'] ?? '').startsWith('multipart/form-data')) {
         throw badRequest('send the files as multipart/form-data (parts "files" and "plan")');
       }
@@ -229,7 +216,7 @@ export default function fieldsRoutes(ctx: AppContext) {
     },
     async (req, res) => {
       try {
-        const coverslipId = idOf(req.params.id, 'coverslip');
+        const coverslipId = idParam(req, 'id');
         const up = ((req.files as Express.Multer.File[] | undefined) ?? []) as unknown as (Express.Multer.File & HashedFile)[];
         if (up.length === 0) throw badRequest('no files were uploaded; attach TIFF files as the form part "files"');
         let planRaw: unknown;
@@ -296,14 +283,9 @@ export default function fieldsRoutes(ctx: AppContext) {
   );
 
   r.get('/coverslips/:id/fields', (req, res) => {
-    const coverslipId = idOf(req.params.id, 'coverslip');
+    const coverslipId = idParam(req, 'id');
     const cs = coverslipStudy(ctx, coverslipId);
-    try {
-      requireStudy(ctx, req.user, cs.studyId, 'read');
-    } catch (e) {
-      if (e instanceof HttpError && e.status === 404) throw notFound(`no coverslip with id ${coverslipId}`);
-      throw e;
-    }
+    requireStudy(ctx, req.user, cs.studyId, 'read', { what: 'coverslip', id: coverslipId });
     const rows = ctx.db
       .select()
       .from(fields)
@@ -314,7 +296,7 @@ export default function fieldsRoutes(ctx: AppContext) {
   });
 
   r.get('/studies/:studyId/fields', (req, res) => {
-    const studyId = idOf(req.params.studyId, 'study');
+    const studyId = idParam(req, 'studyId');
     requireStudy(ctx, req.user, studyId, 'read');
     const rows = ctx.db
       .select({ f: fields, conditionId: conditions.id })
@@ -328,7 +310,7 @@ export default function fieldsRoutes(ctx: AppContext) {
   });
 
   r.get('/fields/:id', (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field, studyId, conditionId } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const study = requireStudy(ctx, req.user, studyId, 'read');
     const perms = studyPermissions(ctx, req.user!, study);
@@ -349,16 +331,16 @@ export default function fieldsRoutes(ctx: AppContext) {
   });
 
   r.delete('/fields/:id', async (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
-    if (field.status === 'deleted') throw notFound(`no field with id ${fieldId}`);
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
     const { soft, orphans } = deleteField(ctx, field, req.user!.id, studyId);
     for (const sha of orphans) await ctx.store.delete(keyForSha(sha)).catch(() => {});
     res.json({ ok: true, soft });
   });
 
   r.get('/fields/:id/preview.png', async (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const q = parse(PreviewQuery, req.query);
     if (q.z !== undefined && q.z !== 'mip' && q.z >= field.sizeZ) throw badRequest(`z=${q.z} is not a slice of this field (0–${field.sizeZ - 1})`);
@@ -371,7 +353,7 @@ export default function fieldsRoutes(ctx: AppContext) {
   });
 
   r.get('/fields/:id/pixels', async (req, res) => {
-    const fieldId = idOf(req.params.id, 'field');
+    const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const q = parse(PixelsQuery, req.query);
     const px = await loadFieldPixels(ctx, field.id, { z: q.z });

@@ -15,19 +15,15 @@
 import { Router } from 'express';
 import type { AppContext } from '../context.js';
 import { requireUser } from '../auth/session.js';
-import { requireStudy, studyPermissions, type Study } from '../auth/policy.js';
-import { badRequest, conflict, notFound, parse } from '../http/errors.js';
+import { notFoundAsked, requireStudy, studyPermissions, type Study } from '../auth/policy.js';
+import { conflict, parse } from '../http/errors.js';
+import { idParam } from './_params.js';
 import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/measurements.js';
 import { CompareQuery } from '../../shared/schemas/compare.js';
 import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
 import { computeComparison } from '../compare/compute.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
-const idOf = (v: unknown, name: string) => {
-  const s = String(v);
-  if (!/^[1-9][0-9]{0,14}$/.test(s)) throw badRequest(`${name}: expected a positive integer id, received ${JSON.stringify(s)}`);
-  return Number(s);
-};
 
 export default function measurementsRoutes(ctx: AppContext) {
   const r = Router();
@@ -71,7 +67,7 @@ export default function measurementsRoutes(ctx: AppContext) {
   }
 
   r.get('/studies/:studyId/measurement-sources', requireUser, (req, res) => {
-    const studyId = idOf(req.params.studyId, 'studyId');
+    const studyId = idParam(req, 'studyId');
     requireStudy(ctx, req.user, studyId, 'read');
     const runs = sqlite
       .prepare(
@@ -114,7 +110,7 @@ export default function measurementsRoutes(ctx: AppContext) {
   }
 
   r.get('/studies/:studyId/cell-table', requireUser, (req, res) => {
-    const studyId = idOf(req.params.studyId, 'studyId');
+    const studyId = idParam(req, 'studyId');
     const study = requireStudy(ctx, req.user, studyId, 'read');
     const canExclude = studyPermissions(ctx, req.user!, study).has('exclude');
     const q = parse(GridQuery, req.query);
@@ -133,7 +129,7 @@ export default function measurementsRoutes(ctx: AppContext) {
   });
 
   r.get('/studies/:studyId/cells.csv', requireUser, (req, res) => {
-    const studyId = idOf(req.params.studyId, 'studyId');
+    const studyId = idParam(req, 'studyId');
     const study = requireStudy(ctx, req.user, studyId, 'read');
     const q = parse(CsvQuery, req.query);
     const src = resolveSource(ctx, studyId, q);
@@ -159,7 +155,7 @@ export default function measurementsRoutes(ctx: AppContext) {
          WHERE c.id = ? AND c.deleted_at IS NULL`,
       )
       .get(cellId) as { id: number; excluded: number; reason: string | null; studyId: number } | undefined;
-    if (!row) throw notFound(`no cell with id ${cellId}`);
+    if (!row) throw notFoundAsked({ what: 'cell', id: cellId });
     return row;
   }
   function state(cellId: number): ExclusionState {
@@ -171,9 +167,9 @@ export default function measurementsRoutes(ctx: AppContext) {
   const audit = sqlite.prepare('INSERT INTO audit_events (actor_id, action, entity, entity_id, study_id, details) VALUES (?, ?, ?, ?, ?, ?)');
 
   r.post('/cells/:cellId/exclusion', requireUser, (req, res) => {
-    const cellId = idOf(req.params.cellId, 'cellId');
+    const cellId = idParam(req, 'cellId');
     const cell = cellStudy(cellId);
-    requireStudy(ctx, req.user, cell.studyId, 'exclude');
+    requireStudy(ctx, req.user, cell.studyId, 'exclude', { what: 'cell', id: cellId });
     const body = parse(ExcludeRequest, req.body ?? {});
     if (cell.excluded) throw conflict(`cell ${cellId} is already excluded (reason: ${JSON.stringify(cell.reason)})`);
     sqlite.transaction(() => {
@@ -186,9 +182,9 @@ export default function measurementsRoutes(ctx: AppContext) {
   });
 
   r.delete('/cells/:cellId/exclusion', requireUser, (req, res) => {
-    const cellId = idOf(req.params.cellId, 'cellId');
+    const cellId = idParam(req, 'cellId');
     const cell = cellStudy(cellId);
-    requireStudy(ctx, req.user, cell.studyId, 'exclude');
+    requireStudy(ctx, req.user, cell.studyId, 'exclude', { what: 'cell', id: cellId });
     const body = parse(RestoreRequest, req.body ?? {});
     if (!cell.excluded) throw conflict(`cell ${cellId} is not excluded`);
     sqlite.transaction(() => {
@@ -199,9 +195,9 @@ export default function measurementsRoutes(ctx: AppContext) {
   });
 
   r.get('/cells/:cellId/exclusion-history', requireUser, (req, res) => {
-    const cellId = idOf(req.params.cellId, 'cellId');
+    const cellId = idParam(req, 'cellId');
     const cell = cellStudy(cellId);
-    requireStudy(ctx, req.user, cell.studyId, 'read');
+    requireStudy(ctx, req.user, cell.studyId, 'read', { what: 'cell', id: cellId });
     const events = sqlite
       .prepare(
         `SELECT a.id, a.at, a.action, u.name AS actor, a.details FROM audit_events a LEFT JOIN users u ON u.id = a.actor_id
@@ -218,7 +214,7 @@ export default function measurementsRoutes(ctx: AppContext) {
 
   // ---- comparison ---------------------------------------------------------------------------------------
   const compareFor = async (req: import('express').Request) => {
-    const studyId = idOf(req.params.studyId, 'studyId');
+    const studyId = idParam(req, 'studyId');
     const study: Study = requireStudy(ctx, req.user, studyId, 'read');
     const q = parse(CompareQuery, req.query);
     return { study, comparison: await computeComparison(ctx, studyId, q) };

@@ -11,6 +11,7 @@ import { auditEvents, recipes, runs, users } from '../db/schema.js';
 import { can, hasRole, requireCan } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, conflict, forbidden, notFound, parse } from '../http/errors.js';
+import { idParam } from './_params.js';
 import {
   CreateRecipeRequest,
   RecipeListQuery,
@@ -35,11 +36,6 @@ export const RECIPE_TRANSITIONS: Record<Transition, { from: RecipeStatus[]; to: 
 };
 const EDITABLE: RecipeStatus[] = ['draft', 'returned'];
 
-const idParam = (v: unknown) => {
-  const n = Number(v);
-  if (!Number.isInteger(n) || n <= 0) throw badRequest(`recipe id must be a positive integer, got ${JSON.stringify(v)}`);
-  return n;
-};
 
 export function loadRecipe(ctx: AppContext, id: number): RecipeRow {
   const row = ctx.db.select().from(recipes).where(eq(recipes.id, id)).get();
@@ -166,13 +162,13 @@ export default function recipesRoutes(ctx: AppContext) {
 
   r.get('/recipes/:id', (req, res) => {
     requireCan(req.user, 'read_recipes');
-    res.json(recipeDetail(ctx, req.user!, loadRecipe(ctx, idParam(req.params.id))));
+    res.json(recipeDetail(ctx, req.user!, loadRecipe(ctx, idParam(req, 'id'))));
   });
 
   r.get('/recipes/:id/diff/:otherId', (req, res) => {
     requireCan(req.user, 'read_recipes');
-    const a = loadRecipe(ctx, idParam(req.params.id));
-    const b = loadRecipe(ctx, idParam(req.params.otherId));
+    const a = loadRecipe(ctx, idParam(req, 'id'));
+    const b = loadRecipe(ctx, idParam(req, 'otherId'));
     const name = userNames(ctx, [a.proposerId, a.reviewerId, b.proposerId, b.reviewerId]);
     const entries = [
       { key: 'name', label: 'Name', a: a.name, b: b.name, changed: a.name !== b.name },
@@ -185,7 +181,7 @@ export default function recipesRoutes(ctx: AppContext) {
   r.patch('/recipes/:id', (req, res) => {
     requireCan(req.user, 'propose_recipe');
     const u = req.user!;
-    const id = idParam(req.params.id);
+    const id = idParam(req, 'id');
     const row = ctx.db.transaction((tx) => {
       const cur = tx.select().from(recipes).where(eq(recipes.id, id)).get();
       if (!cur) throw notFound(`no recipe with id ${id}`);
@@ -216,7 +212,7 @@ export default function recipesRoutes(ctx: AppContext) {
   r.post('/recipes/:id/versions', (req, res) => {
     requireCan(req.user, 'propose_recipe');
     const u = req.user!;
-    const id = idParam(req.params.id);
+    const id = idParam(req, 'id');
     const row = ctx.db.transaction((tx) => {
       const cur = tx.select().from(recipes).where(eq(recipes.id, id)).get();
       if (!cur) throw notFound(`no recipe with id ${id}`);
@@ -249,9 +245,9 @@ export default function recipesRoutes(ctx: AppContext) {
       const rule = RECIPE_TRANSITIONS[t];
       requireCan(req.user, rule.reviewer ? 'review_recipe' : 'propose_recipe');
       const u = req.user!;
+      const id = idParam(req, 'id');
       const { note } = parse(RecipeTransitionRequest, req.body ?? {});
       if (t === 'return' && !note) throw badRequest('say what should change: a note is required to return a recipe');
-      const id = idParam(req.params.id);
       const row = ctx.db.transaction((tx) => {
         const cur = tx.select().from(recipes).where(eq(recipes.id, id)).get();
         if (!cur) throw notFound(`no recipe with id ${id}`);

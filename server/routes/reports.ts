@@ -8,7 +8,7 @@ import type { AppContext } from '../context.js';
 import { auditEvents, reports } from '../db/schema.js';
 import { parse } from '../http/errors.js';
 import { requireStudy, studyPermissions } from '../auth/policy.js';
-import { IdParam } from '../../shared/schemas/common.js';
+import { idParam } from './_params.js';
 import { CreateReportRequest, CsvTable, ReportListResponse } from '../../shared/schemas/reports.js';
 import { buildSnapshot } from '../reports/snapshot.js';
 import { loadReport, sendCsv, toDetail, toSummaries } from '../reports/service.js';
@@ -17,14 +17,14 @@ export default function reportsRoutes(ctx: AppContext) {
   const r = Router();
 
   r.get('/studies/:studyId/reports', (req, res) => {
-    const studyId = parse(IdParam, req.params.studyId);
+    const studyId = idParam(req, 'studyId');
     requireStudy(ctx, req.user, studyId, 'read');
     const rows = ctx.db.select().from(reports).where(eq(reports.studyId, studyId)).orderBy(desc(reports.id)).all();
     res.json(ReportListResponse.parse({ reports: toSummaries(ctx, rows) }));
   });
 
   r.post('/studies/:studyId/reports', async (req, res) => {
-    const studyId = parse(IdParam, req.params.studyId);
+    const studyId = idParam(req, 'studyId');
     requireStudy(ctx, req.user, studyId, 'report');
     const body = CreateReportRequest.parse(req.body ?? {});
     const snapshot = await buildSnapshot(ctx, studyId, body);
@@ -50,14 +50,14 @@ export default function reportsRoutes(ctx: AppContext) {
   });
 
   r.get('/reports/:id', (req, res) => {
-    const row = loadReport(ctx, parse(IdParam, req.params.id));
-    const study = requireStudy(ctx, req.user, row.studyId, 'read');
+    const row = loadReport(ctx, idParam(req, 'id'));
+    const study = requireStudy(ctx, req.user, row.studyId, 'read', { what: 'report', id: row.id });
     res.json(toDetail(ctx, row, studyPermissions(ctx, req.user!, study).has('report')));
   });
 
   r.get('/reports/:id/csv/:table', (req, res) => {
-    const row = loadReport(ctx, parse(IdParam, req.params.id));
-    requireStudy(ctx, req.user, row.studyId, 'read');
+    const row = loadReport(ctx, idParam(req, 'id'));
+    requireStudy(ctx, req.user, row.studyId, 'read', { what: 'report', id: row.id });
     sendCsv(res, row, parse(CsvTable, req.params.table));
   });
 

@@ -7,8 +7,9 @@ import { Router } from 'express';
 import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, conditions, coverslips, fields, measurements, recipes, runFields, runs, studies, users } from '../db/schema.js';
-import { requireStudy, studyPermissions } from '../auth/policy.js';
-import { badRequest, conflict, notFound, parse, unauthorized } from '../http/errors.js';
+import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
+import { conflict, notFound, parse, unauthorized } from '../http/errors.js';
+import { idParam } from './_params.js';
 import { createRun } from '../runs/records.js';
 import { CreateRunRequest, RunListQuery, type RunDetail, type RunSummary } from '../../shared/schemas/runs.js';
 import { resolveScope, runSettings } from '../runs/records.js';
@@ -106,7 +107,7 @@ export default function runsRoutes(ctx: AppContext) {
     const recipe = ctx.db.select().from(recipes).where(eq(recipes.id, body.recipeId)).get();
     if (!recipe) throw notFound(`no recipe with id ${body.recipeId}`);
     const scope = resolveScope(ctx.db, body.scope.kind, body.scope.id);
-    requireStudy(ctx, req.user, scope.studyId, 'run');
+    requireStudy(ctx, req.user, scope.studyId, 'run', { what: body.scope.kind, id: body.scope.id });
     if (recipe.status === 'retired') throw conflict(`recipe ${recipe.name} v${recipe.version} is retired; choose a current version`);
     if (!scope.fieldIds.length) throw conflict(`nothing to measure: ${body.scope.kind} "${scope.name}" has no fields`);
     const run = await createRun(ctx, { recipe, scope: { kind: body.scope.kind, id: body.scope.id, ...scope }, userId: req.user.id });
@@ -131,16 +132,10 @@ export default function runsRoutes(ctx: AppContext) {
   });
 
   r.get('/runs/:id', (req, res) => {
-    const id = Number(req.params.id);
-    if (!Number.isInteger(id) || id <= 0) throw badRequest(`run id must be a positive integer, got ${JSON.stringify(req.params.id)}`);
+    const id = idParam(req, 'id');
     const row = ctx.db.select().from(runs).where(eq(runs.id, id)).get();
-    if (!row) throw notFound(`no run with id ${id}`);
-    try {
-      requireStudy(ctx, req.user, row.studyId, 'read');
-    } catch (e) {
-      if ((e as { status?: number }).status === 404) throw notFound(`no run with id ${id}`);
-      throw e;
-    }
+    if (!row) throw notFoundAsked({ what: 'run', id });
+    requireStudy(ctx, req.user, row.studyId, 'read', { what: 'run', id });
     res.json(runDetail(ctx, row));
   });
 

@@ -10,9 +10,9 @@ import { desc, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, reports, shareLinks, shareOpenings, studies, studyMembers, users } from '../db/schema.js';
 import { conflict, notFound, parse } from '../http/errors.js';
-import { requireStudy } from '../auth/policy.js';
+import { notFoundAsked, requireStudy } from '../auth/policy.js';
 import { createInvitation, escapeHtml, publicOrigin, sendInvitationMail } from '../auth/invitations.js';
-import { IdParam } from '../../shared/schemas/common.js';
+import { idParam } from './_params.js';
 import { CsvTable } from '../../shared/schemas/reports.js';
 import { CreateShareRequest, ShareLinkSummary, ShareListResponse, SharedReportResponse } from '../../shared/schemas/shares.js';
 import { linkState, newTokenId, signShareToken, verifyShareToken } from '../reports/tokens.js';
@@ -85,15 +85,15 @@ export default function sharesRoutes(ctx: AppContext) {
   };
 
   r.get('/reports/:id/shares', (req, res) => {
-    const report = loadReport(ctx, parse(IdParam, req.params.id));
-    requireStudy(ctx, req.user, report.studyId, 'report');
+    const report = loadReport(ctx, idParam(req, 'id'));
+    requireStudy(ctx, req.user, report.studyId, 'report', { what: 'report', id: report.id });
     const rows = ctx.db.select().from(shareLinks).where(eq(shareLinks.reportId, report.id)).orderBy(desc(shareLinks.id)).all();
     res.json(ShareListResponse.parse({ links: summaries(rows, report.studyId), notSent: [] }));
   });
 
   r.post('/reports/:id/shares', async (req, res) => {
-    const report = loadReport(ctx, parse(IdParam, req.params.id));
-    requireStudy(ctx, req.user, report.studyId, 'report');
+    const report = loadReport(ctx, idParam(req, 'id'));
+    requireStudy(ctx, req.user, report.studyId, 'report', { what: 'report', id: report.id });
     const body = CreateShareRequest.parse(req.body ?? {});
     const expiresAt = new Date(Date.now() + body.expiresInDays * 86400_000).toISOString();
     const invites: { email: string; name: string; token: string; expiresAt: string }[] = [];
@@ -133,17 +133,11 @@ export default function sharesRoutes(ctx: AppContext) {
   });
 
   const loadLink = (req: Request) => {
-    const id = parse(IdParam, req.params.id);
+    const id = idParam(req, 'id');
     const link = ctx.db.select().from(shareLinks).where(eq(shareLinks.id, id)).get();
-    if (!link) throw notFound(`no share link with id ${id}`);
+    if (!link) throw notFoundAsked({ what: 'share link', id });
     const report = loadReport(ctx, link.reportId);
-    try {
-      requireStudy(ctx, req.user, report.studyId, 'report');
-    } catch (e) {
-      // a user who may not even see the study gets the same answer as for a missing link
-      if ((e as { status?: number }).status === 404) throw notFound(`no share link with id ${id}`);
-      throw e;
-    }
+    requireStudy(ctx, req.user, report.studyId, 'report', { what: 'share link', id });
     return { link, report };
   };
 

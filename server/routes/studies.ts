@@ -21,9 +21,9 @@ import {
   UpdateStudyRequest,
   type StudyAction,
 } from '../../shared/schemas/studies.js';
-import { badRequest, conflict, notFound, parse } from '../http/errors.js';
+import { badRequest, conflict, parse } from '../http/errors.js';
 import { requireUser, type SessionUser } from '../auth/session.js';
-import { requireCan, requireStudy, studyPermissions, hasRole, type Study } from '../auth/policy.js';
+import { notFoundAsked, requireCan, requireStudy, studyPermissions, hasRole, type Study } from '../auth/policy.js';
 import { idParam } from './_params.js';
 
 type Tx = Parameters<Parameters<AppContext['db']['transaction']>[0]>[0];
@@ -127,24 +127,14 @@ export default function studiesRoutes(ctx: AppContext) {
   /** condition → its study, checked for `action` (404 for an unknown id or an invisible study). */
   function conditionFor(user: SessionUser | undefined, id: number, action: 'read' | 'edit_structure') {
     const cd = db.select().from(conditions).where(eq(conditions.id, id)).get();
-    if (!cd) throw notFound(`no condition with id ${id}`);
-    try {
-      return { cd, study: requireStudy(ctx, user, cd.studyId, action) };
-    } catch (e) {
-      if ((e as { status?: number }).status === 404) throw notFound(`no condition with id ${id}`);
-      throw e;
-    }
+    if (!cd) throw notFoundAsked({ what: 'condition', id });
+    return { cd, study: requireStudy(ctx, user, cd.studyId, action, { what: 'condition', id }) };
   }
   function coverslipFor(user: SessionUser | undefined, id: number, action: 'read' | 'edit_structure') {
     const cs = db.select().from(coverslips).where(eq(coverslips.id, id)).get();
-    if (!cs) throw notFound(`no coverslip with id ${id}`);
+    if (!cs) throw notFoundAsked({ what: 'coverslip', id });
     const cd = db.select().from(conditions).where(eq(conditions.id, cs.conditionId)).get()!;
-    try {
-      return { cs, cd, study: requireStudy(ctx, user, cd.studyId, action) };
-    } catch (e) {
-      if ((e as { status?: number }).status === 404) throw notFound(`no coverslip with id ${id}`);
-      throw e;
-    }
+    return { cs, cd, study: requireStudy(ctx, user, cd.studyId, action, { what: 'coverslip', id }) };
   }
 
   const audit = (tx: Tx, req: Request, action: string, entity: string, entityId: number, studyId: number, details: Record<string, unknown> = {}) =>

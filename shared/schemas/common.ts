@@ -1,10 +1,48 @@
 /** Small zod pieces shared by several resource schemas (owned by H2; others may import). */
 import { z } from 'zod';
 
-/** A positive integer id from a URL segment or JSON body ("12" or 12). */
-export const IdParam = z.coerce.number({ message: 'expected a numeric id' }).int('expected a whole-number id').positive('expected a positive id');
+/**
+ * A positive integer id from a URL segment: plain decimal digits, no sign, no leading zero, no blanks, no
+ * exponent, at most Number.MAX_SAFE_INTEGER ("12" → 12; "12abc", "-1", "0", "1e3", " 7", "9007199254740993"
+ * refused). The one parser of every :id-like path parameter (server/routes/_params.ts idParam).
+ */
+const ID_DIGITS = /^[1-9][0-9]{0,15}$/;
+export const IdParam = z
+  .string({ error: (iss) => `expected a positive whole-number id, got ${JSON.stringify(iss.input ?? null)}` })
+  .refine((s) => ID_DIGITS.test(s) && Number.isSafeInteger(Number(s)), {
+    error: (iss) => `expected a positive whole-number id, got ${JSON.stringify(iss.input)}`,
+  })
+  .transform(Number);
 export const Id = z.number().int().positive();
 export const IsoDate = z.string();
 export const OkResponse = z.object({ ok: z.literal(true) });
 export type OkResponse = z.infer<typeof OkResponse>;
 export const Name = (what: string, max = 120) => z.string({ message: `enter a ${what}` }).trim().min(1, `enter a ${what}`).max(max, `a ${what} has at most ${max} characters`);
+
+/**
+ * A number typed into a box (client forms): plain decimal text (an exponent is allowed), finite, within
+ * [min, max], whole when `integer`; each refusal quotes the text received. `what` names the box in messages.
+ */
+export function NumberText(what: string, opts: { min?: number; max?: number; integer?: boolean } = {}) {
+  const { min, max, integer } = opts;
+  const range =
+    min !== undefined && max !== undefined ? `between ${min} and ${max}` : min !== undefined ? `at least ${min}` : max !== undefined ? `at most ${max}` : '';
+  return z.string().transform((text, ctx) => {
+    const t = text.trim();
+    const n = Number(t);
+    const fail = (m: string) => {
+      ctx.addIssue({ code: 'custom', message: `${what} ${m}, got ${JSON.stringify(text)}` });
+      return z.NEVER;
+    };
+    if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t) || !Number.isFinite(n)) return fail(`must be a number${range ? ` ${range}` : ''}`);
+    if (integer && !Number.isInteger(n)) return fail('must be a whole number');
+    if ((min !== undefined && n < min) || (max !== undefined && n > max)) return fail(`must be ${range}`);
+    return n;
+  });
+}
+
+/** Checks box text with a NumberText schema: the number, or the first message. */
+export function readNumberText(schema: ReturnType<typeof NumberText>, text: string): { value: number; error: null } | { value: null; error: string } {
+  const r = schema.safeParse(text);
+  return r.success ? { value: r.data, error: null } : { value: null, error: r.error.issues[0].message };
+}

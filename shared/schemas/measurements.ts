@@ -90,10 +90,22 @@ export const EXPORT_COLUMNS = [
 ] as const;
 export type ExportColumn = (typeof EXPORT_COLUMNS)[number];
 
+/**
+ * Most filters one Cell table / CSV request may carry: each becomes SQL terms, and hundreds of them exceed
+ * SQLite's expression-depth limit (1000) — far beyond any screen's use (one range per column is all that
+ * matters; a study's fields fit in one id list).
+ */
+export const MAX_RANGE_FILTERS = 20;
+export const MAX_IDS_PER_FILTER = 500;
+
 const idList = z
   .union([z.string(), z.array(z.string())])
   .transform((v, ctx) => {
     const parts = (Array.isArray(v) ? v : [v]).flatMap((s) => s.split(',')).filter((s) => s !== '');
+    if (parts.length > MAX_IDS_PER_FILTER) {
+      ctx.addIssue({ code: 'custom', message: `at most ${MAX_IDS_PER_FILTER} ids per filter, received ${parts.length}` });
+      return z.NEVER;
+    }
     const out: number[] = [];
     for (const p of parts) {
       if (!/^[1-9][0-9]{0,14}$/.test(p)) {
@@ -146,9 +158,10 @@ export const GridFilters = SourceQuery.extend({
   provisional: tri,
   measured: tri,
   range: z
-    .union([RangeFilter, z.array(RangeFilter)])
+    .union([z.string(), z.array(z.string())])
     .optional()
-    .transform((v) => (v === undefined ? [] : Array.isArray(v) ? v : [v])),
+    .transform((v) => (v === undefined ? [] : Array.isArray(v) ? v : [v]))
+    .pipe(z.array(RangeFilter).max(MAX_RANGE_FILTERS, { error: (iss) => `at most ${MAX_RANGE_FILTERS} range filters, received ${(iss.input as unknown[]).length}` })),
   /** cell name contains (plain text, matched literally) */
   q: z.string().max(200).optional(),
 });

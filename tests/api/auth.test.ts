@@ -10,7 +10,7 @@ import { eq } from 'drizzle-orm';
 import { makeTestApp, TEST_PASSWORD, type TestApp } from '../utils/app.js';
 import { SESSION_COOKIE } from '../../server/auth/session.js';
 import { LOGIN_FAILED } from '../../server/routes/auth.js';
-import { THROTTLE, THROTTLED_MESSAGE } from '../../server/auth/throttle.js';
+import { THROTTLE, THROTTLED_MESSAGE, throttleKeys } from '../../server/auth/throttle.js';
 import { loginAttempts, users } from '../../server/db/schema.js';
 
 let t: TestApp;
@@ -170,14 +170,14 @@ describe('throttling (common practice: OWASP Authentication Cheat Sheet; limits 
   afterAll(() => tp.close());
   const attempt = (email: string, password: string, ip = '10.0.0.1') => request(tp.app).post('/api/auth/login').set('X-Forwarded-For', ip).send({ email, password });
 
-  it(`after ${THROTTLE.perEmail} failures for one e-mail: 429 with one generic message, even with the right password`, async () => {
-    for (let i = 0; i < THROTTLE.perEmail; i++) expect((await attempt('biologist@test.example', 'wrong')).status).toBe(401);
+  it(`after ${THROTTLE.perAccountAndAddress} failures for one e-mail from one address: 429 with one generic message, even with the right password`, async () => {
+    for (let i = 0; i < THROTTLE.perAccountAndAddress; i++) expect((await attempt('biologist@test.example', 'wrong')).status).toBe(401);
     const blocked = await attempt('biologist@test.example', TEST_PASSWORD);
     expect(blocked.status).toBe(429);
     expect(blocked.body).toEqual({ error: THROTTLED_MESSAGE });
     expect(blocked.headers['retry-after']).toBe(String(THROTTLE.windowMinutes * 60));
     // the same message for an unknown e-mail once it is throttled (does not reveal which accounts exist)
-    for (let i = 0; i < THROTTLE.perEmail; i++) await attempt('ghost@test.example', 'wrong', '10.0.0.2');
+    for (let i = 0; i < THROTTLE.perAccountAndAddress; i++) await attempt('ghost@test.example', 'wrong', '10.0.0.2');
     expect((await attempt('ghost@test.example', 'wrong', '10.0.0.2')).body).toEqual({ error: THROTTLED_MESSAGE });
     // another account from the same address still signs in
     expect((await attempt('microscopist@test.example', TEST_PASSWORD)).status).toBe(200);
@@ -185,12 +185,12 @@ describe('throttling (common practice: OWASP Authentication Cheat Sheet; limits 
 
   it('failures older than the window no longer count', async () => {
     const old = new Date(Date.now() - (THROTTLE.windowMinutes + 1) * 60_000).toISOString();
-    tp.ctx.db.update(loginAttempts).set({ at: old }).where(eq(loginAttempts.key, 'email:biologist@test.example')).run();
+    tp.ctx.db.update(loginAttempts).set({ at: old }).where(eq(loginAttempts.key, throttleKeys('biologist@test.example', '10.0.0.1').account)).run();
     expect((await attempt('biologist@test.example', TEST_PASSWORD)).status).toBe(200);
   });
 
-  it(`after ${THROTTLE.perIp} failures from one address: 429 for any e-mail from it, other addresses unaffected`, async () => {
-    for (let i = 0; i < THROTTLE.perIp; i++) await attempt(`spray${i}@test.example`, 'wrong', '10.9.9.9');
+  it(`after ${THROTTLE.perAddress} failures from one address: 429 for any e-mail from it, other addresses unaffected`, async () => {
+    for (let i = 0; i < THROTTLE.perAddress; i++) await attempt(`spray${i}@test.example`, 'wrong', '10.9.9.9');
     const blocked = await attempt('manager@test.example', TEST_PASSWORD, '10.9.9.9');
     expect(blocked.status).toBe(429);
     expect(blocked.body).toEqual({ error: THROTTLED_MESSAGE });
@@ -198,9 +198,36 @@ describe('throttling (common practice: OWASP Authentication Cheat Sheet; limits 
   });
 
   it('a successful sign-in resets that e-mail\'s failure count', async () => {
-    for (let i = 0; i < THROTTLE.perEmail - 1; i++) await attempt('microscopist@test.example', 'wrong', '10.0.0.3');
+    for (let i = 0; i < THROTTLE.perAccountAndAddress - 1; i++) await attempt('microscopist@test.example', 'wrong', '10.0.0.3');
     expect((await attempt('microscopist@test.example', TEST_PASSWORD, '10.0.0.3')).status).toBe(200);
-    for (let i = 0; i < THROTTLE.perEmail - 1; i++) await attempt('microscopist@test.example', 'wrong', '10.0.0.3');
+    for (let i = 0; i < THROTTLE.perAccountAndAddress - 1; i++) await attempt('microscopist@test.example', 'wrong', '10.0.0.3');
     expect((await attempt('microscopist@test.example', TEST_PASSWORD, '10.0.0.3')).status).toBe(200);
+  });
+
+  it("a stranger's 20 failures from one address never stop the owner signing in from theirs", async () => {
+    const stranger = '203.0.113.7';
+    const owner = '198.51.100.20';
+    const answers: number[] = [];
+    for (let i = 0; i < 20; i++) answers.push((await attempt('manager@test.example', `guess ${i}`, stranger)).status);
+    expect(answers.slice(0, THROTTLE.perAccountAndAddress).every((s) => s === 401)).toBe(true);
+    expect(answers.slice(THROTTLE.perAccountAndAddress).every((s) => s === 429)).toBe(true);
+    // the stranger is blocked even with the right password; the owner is not
+    expect((await attempt('manager@test.example', TEST_PASSWORD, stranger)).status).toBe(429);
+    expect((await attempt('manager@test.example', TEST_PASSWORD, owner)).status).toBe(200);
+    // and the owner's own typo does not count the stranger's failures
+    expect((await attempt('manager@test.example', 'typo', owner)).status).toBe(401);
+    expect((await attempt('manager@test.example', TEST_PASSWORD, owner)).status).toBe(200);
+  });
+
+  it('failures spread over many addresses behind the proxy lock nobody out', async () => {
+    for (let i = 0; i < THROTTLE.perAddress + 10; i++) await attempt('biologist@test.example', 'wrong', `192.0.2.${i + 1}`);
+    expect((await attempt('biologist@test.example', TEST_PASSWORD, '192.0.2.250')).status).toBe(200);
+  });
+
+  it('behind the one trusted proxy, a client cannot choose its address with X-Forwarded-For', async () => {
+    // the proxy appends the address it saw; only that last entry counts
+    const from = (spoofed: string) => request(tp.app).post('/api/auth/login').set('X-Forwarded-For', `${spoofed}, 10.7.7.7`).send({ email: 'outsider@test.example', password: 'wrong' });
+    for (let i = 0; i < THROTTLE.perAccountAndAddress; i++) expect((await from(`172.16.0.${i}`)).status).toBe(401);
+    expect((await from('172.16.0.99')).status).toBe(429);
   });
 });

@@ -10,7 +10,7 @@ import request from 'supertest';
 import { sql } from 'drizzle-orm';
 import { openDb, MIGRATIONS_DIR } from '../../server/db/client.js';
 import { makeTestApp, type TestApp } from '../utils/app.js';
-import { seedDemo, seedDemoIfEmpty, DEMO_ACCOUNTS, DEMO_PASSWORD, DEMO_STUDY, DEMO_COVERSLIPS, DEMO_FIELDS_PER_COVERSLIP } from '../../server/db/seed/index.js';
+import { seedDemo, seedDemoIfNeeded, DEMO_ACCOUNTS, DEMO_PASSWORD, DEMO_STUDY, DEMO_COVERSLIPS, DEMO_FIELDS_PER_COVERSLIP } from '../../server/db/seed/index.js';
 import { synthField } from '../../server/db/seed/synth.js';
 import { writeTiff16 } from '../../server/db/seed/tiff.js';
 import { rasterize, maskToIndices } from '../../shared/analysis/rasterize.js';
@@ -109,9 +109,9 @@ describe('demo seed', () => {
   const tables = { users: schema.users, labs: schema.labs, studies: schema.studies, conditions: schema.conditions, coverslips: schema.coverslips, fields: schema.fields, cells: schema.cells, recipes: schema.recipes, files: schema.files, studyMembers: schema.studyMembers, labMembers: schema.labMembers };
   const snapshot = () => Object.fromEntries(Object.entries(tables).map(([k, v]) => [k, count(v)]));
 
-  it('seedDemoIfEmpty does nothing on a database that already has users', async () => {
+  it('seedDemoIfNeeded does nothing on a database that already has users', async () => {
     const before = snapshot();
-    expect(await seedDemoIfEmpty(t.ctx)).toBe(false);
+    expect(await seedDemoIfNeeded(t.ctx)).toBe(false);
     expect(snapshot()).toEqual(before);
   });
 

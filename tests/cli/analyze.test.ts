@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
-import { main } from '../../server/cli/analyze';
+import { HELP, main } from '../../server/cli/analyze';
 import { REGION_RESULT_KEYS } from '../../shared/analysis/index';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
@@ -188,5 +188,16 @@ describe('analyze as a process (npm run -s analyze)', () => {
       expect(r.stderr).toMatch(/^error: [^\n]+\n$/);
       expect(r.stderr).not.toMatch(/\bat .*\.(ts|js):\d+/);
     }
+  }, 60000);
+
+  it('--help and -h print the usage on stdout and exit 0 (even next to other options)', async () => {
+    const runs = await Promise.all([proc(['--help']), proc(['-h']), proc(['--ch1', 'x.tif', '-h'])]);
+    for (const r of runs) {
+      expect(r.code).toBe(0);
+      expect(r.stderr).toBe('');
+      expect(r.stdout).toBe(HELP + '\n');
+    }
+    expect(HELP.split('\n')[0]).toMatch(/^usage: npm run -s analyze -- /);
+    for (const flag of ['--ch1', '--ch2', '--image', '--channels', '--mask', '--rois', '--threshold', '--t1', '--t2', '--json', '--help']) expect(HELP, flag).toContain(flag);
   }, 60000);
 });

@@ -8,7 +8,10 @@
  * in "treated".
  *
  * Idempotent: every piece is looked up by its natural key first, so running the seed twice (or after an
- * interrupted first run) adds nothing that is already there. `seedDemoIfEmpty` seeds only an empty database.
+ * interrupted first run) adds nothing that is already there. A field and its cells count as there only once
+ * both are stored; the audit event `demo.seeded` is written last (after the demo run is created), so a seed
+ * killed part-way leaves a demo study without it. `seedDemoIfNeeded` seeds an empty database and resumes
+ * such an unfinished seed on the next start.
  * Run by hand: `npm run seed` (uses DATA_DIR like the server).
  */
 import fs from 'node:fs';
@@ -18,7 +21,7 @@ import path from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { and, eq, sql } from 'drizzle-orm';
 import type { AppContext } from '../../context.js';
-import { auditEvents, cells, conditions, coverslips, fields, labMembers, labs, recipes, studies, studyMembers, users, type Role } from '../schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, labMembers, labs, recipes, runs, studies, studyMembers, users, type Role } from '../schema.js';
 import { hashPassword } from '../../auth/passwords.js';
 import { rasterize, maskToIndices } from '../../../shared/analysis/rasterize.js';
 import { synthField } from './synth.js';
@@ -54,15 +57,37 @@ export interface SeedOptions {
   /** start a run of the demo recipe over the study after seeding, so Compare has numbers on first visit */
   startRun?: boolean;
   log?: (msg: string) => void;
+  /** called after each demo field is stored with its cells (count so far); tests use it to interrupt a seed */
+  onFieldDone?: (fieldsDone: number) => void;
 }
 
-/** Seeds the demo only when the database has no users at all (a fresh install). */
-export async function seedDemoIfEmpty(ctx: AppContext, opts: SeedOptions = {}) {
-  if (ctx.db.select({ id: users.id }).from(users).limit(1).all().length) return false;
+/** The demo study, if a seed ever began (it is created in the seed's first transaction with the accounts). */
+const demoStudy = (db: AppContext['db']) => db.select().from(studies).where(and(eq(studies.isDemo, true), eq(studies.name, DEMO_STUDY))).get();
+
+/** Whether the seed that created this demo study ran to its end (its last step writes `demo.seeded`). */
+const seedFinished = (db: AppContext['db'], studyId: number) =>
+  !!db
+    .select({ id: auditEvents.id })
+    .from(auditEvents)
+    .where(and(eq(auditEvents.action, 'demo.seeded'), eq(auditEvents.entity, 'study'), eq(auditEvents.entityId, studyId)))
+    .get();
+
+/**
+ * Seeds the demo on a fresh install (no users at all), and finishes a seed that was interrupted (the demo
+ * study exists but its seed never reached the end, e.g. the server was killed two fields in). A database with
+ * users and no demo study, or a finished demo, is left alone. Returns whether it seeded.
+ */
+export async function seedDemoIfNeeded(ctx: AppContext, opts: SeedOptions = {}) {
   const log = opts.log ?? ((m: string) => console.log(m));
-  log('empty database: seeding the invented demo study (accounts *@demo.test, password syntopy-demo)…');
+  const study = demoStudy(ctx.db);
+  if (study) {
+    if (seedFinished(ctx.db, study.id)) return false;
+    log('the demo seed was interrupted: finishing it…');
+  } else {
+    if (ctx.db.select({ id: users.id }).from(users).limit(1).all().length) return false;
+    log('empty database: seeding the invented demo study (accounts *@demo.test, password syntopy-demo)…');
+  }
   await seedDemo(ctx, { ...opts, log });
-  if (opts.startRun) await startDemoRun(ctx, log);
   return true;
 }
 
@@ -136,13 +161,17 @@ export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
   // ---- fields through the intake path, then their cells
   const tmp = await fsp.mkdtemp(path.join(os.tmpdir(), 'syntopy-seed-'));
   let made = 0;
+  let done = 0;
   try {
     for (const s of ids.slips) {
       for (let f = 1; f <= DEMO_FIELDS_PER_COVERSLIP; f++) {
         const name = `Field ${f}`;
         let field = db.select().from(fields).where(and(eq(fields.coverslipId, s.id), eq(fields.name, name), eq(fields.status, 'ready'))).get();
         const hasCells = field ? !!db.select({ id: cells.id }).from(cells).where(eq(cells.fieldId, field.id)).limit(1).get() : false;
-        if (field && hasCells) continue;
+        if (field && hasCells) {
+          done++;
+          continue;
+        }
         const synth = synthField({ width: size, height: size, sharedFraction: s.sharedFraction, seed: 1000 * (s.condition + 1) + 10 * s.replicate + f });
         if (!field) {
           const p1 = path.join(tmp, `${s.id}-${f}-ch1.tif`);
@@ -169,12 +198,15 @@ export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
             tx.insert(cells).values({ fieldId, name: c.name, geometry: { kind: 'polygon', points: c.points }, source: 'seed', pixelCount, createdBy: ids.microscopist }).run();
           }
         });
+        opts.onFieldDone?.(++done);
       }
     }
   } finally {
     await fsp.rm(tmp, { recursive: true, force: true });
   }
-  if (made) {
+  // the demo run (once per demo study), then the mark that the seed is complete
+  if (opts.startRun && !db.select({ id: runs.id }).from(runs).where(eq(runs.studyId, ids.study)).limit(1).get()) await startDemoRun(ctx, log);
+  if (made || !seedFinished(db, ids.study)) {
     db.insert(auditEvents).values({ actorId: null, action: 'demo.seeded', entity: 'study', entityId: ids.study, studyId: ids.study, details: { fields: made } }).run();
   }
   log(`demo seed: ${made} field(s) added in ${Date.now() - t0} ms`);

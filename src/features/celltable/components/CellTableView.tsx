@@ -9,6 +9,7 @@ import { Badge, Button, Caution, ErrorNotice, Loading, MeasurementCautions, inpu
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { COLUMN_LABELS, NUMERIC_COLUMNS, SORT_KEYS, type GridRow, type SortKey } from '@shared/schemas/measurements';
 import type { StudyDetail } from '@shared/schemas/studies';
+import { NumberText, readNumberText } from '@shared/schemas/common';
 import { useCellTable } from '../api/useCellTable';
 import { SourceSelect } from './SourceSelect';
 import { useExcludeCell } from '../api/useExcludeCell';
@@ -130,6 +131,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
   const [rangeCol, setRangeCol] = useState<string>('pearson');
   const [rangeMin, setRangeMin] = useState('');
   const [rangeMax, setRangeMax] = useState('');
+  const [rangeError, setRangeError] = useState<string | null>(null);
   const visibleExport = Object.entries(visibility)
     .filter(([, v]) => v)
     .map(([k]) => k);
@@ -210,7 +212,12 @@ export function CellTableView({ study }: { study: StudyDetail }) {
         className="flex flex-wrap items-end gap-2 text-sm"
         onSubmit={(e) => {
           e.preventDefault();
-          if (rangeMin === '' && rangeMax === '') return;
+          if (rangeMin.trim() === '' && rangeMax.trim() === '') return;
+          const lo = rangeMin.trim() === '' ? null : readNumberText(NumberText('from'), rangeMin);
+          const hi = rangeMax.trim() === '' ? null : readNumberText(NumberText('to', lo?.value != null ? { min: lo.value } : {}), rangeMax);
+          const error = lo?.error ?? hi?.error ?? null;
+          setRangeError(error);
+          if (error) return;
           update({ range: [...ranges.filter((r) => !r.startsWith(`${rangeCol}:`)), `${rangeCol}:${rangeMin}:${rangeMax}`] });
           setRangeMin('');
           setRangeMax('');
@@ -235,6 +242,11 @@ export function CellTableView({ study }: { study: StudyDetail }) {
         <Button type="submit" size="sm">
           Add range
         </Button>
+        {rangeError && (
+          <span role="alert" className="text-xs text-danger">
+            {rangeError}
+          </span>
+        )}
         {ranges.map((r) => {
           const [c, lo, hi] = r.split(':');
           return (

@@ -2,7 +2,9 @@
  * The recipe settings form: one block per setting with its controls and, under them, the sentence that says
  * what the current value does (describeSetting, the same words the methods paragraph uses).
  */
+import { useEffect, useId, useState } from 'react';
 import { cx, inputClass } from '@/components';
+import { NumberText, readNumberText } from '@shared/schemas/common';
 import {
   COEFFICIENTS,
   COEFFICIENT_LABELS,
@@ -33,12 +35,42 @@ function Choice<T extends string>({ name, value, options, onChange, disabled }: 
   );
 }
 
-function Num({ label, value, onChange, disabled, step = 'any', min }: { label: string; value: number; onChange: (n: number) => void; disabled?: boolean; step?: string; min?: number }) {
+/**
+ * A numeric setting: the typed text is checked (shared NumberText: a number within the setting's bounds, whole
+ * when step is 1); a refused text stays in the box with a message and the recipe keeps its last valid value.
+ */
+function Num({ label, value, onChange, disabled, step = 'any', min, max }: { label: string; value: number; onChange: (n: number) => void; disabled?: boolean; step?: string; min?: number; max?: number }) {
+  const [text, setText] = useState(String(value));
+  const [error, setError] = useState<string | null>(null);
+  useEffect(() => {
+    setText((t) => (readNumberText(NumberText(label), t).value === value ? t : String(value)));
+  }, [value, label]);
+  const id = useId();
   return (
-    <label className="flex items-center gap-2 text-sm">
-      <span className="text-ink-soft">{label}</span>
-      <input type="number" className={cx(inputClass(false), 'w-28')} value={value} step={step} min={min} disabled={disabled} onChange={(e) => onChange(num(e.target.value, value))} />
-    </label>
+    <div className="text-sm">
+      <label className="flex items-center gap-2">
+        <span className="text-ink-soft">{label}</span>
+        <input
+          className={cx(inputClass(!!error), 'w-28')}
+          inputMode={step === '1' ? 'numeric' : 'decimal'}
+          value={text}
+          disabled={disabled}
+          aria-invalid={!!error}
+          aria-describedby={error ? id : undefined}
+          onChange={(e) => {
+            setText(e.target.value);
+            const r = readNumberText(NumberText(label, { min, max, integer: step === '1' }), e.target.value);
+            setError(r.error);
+            if (r.value !== null) onChange(r.value);
+          }}
+        />
+      </label>
+      {error && (
+        <p id={id} role="alert" className="mt-1 text-xs text-danger">
+          {error}
+        </p>
+      )}
+    </div>
   );
 }
 
@@ -139,7 +171,7 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
                     <option value="both">below both thresholds</option>
                   </select>
                 </label>
-                <Num label="Stop when r ≤" disabled={d} value={c.stoppingRule.r} onChange={(n) => set({ threshold: { ...c, stoppingRule: { kind: 'r_at_most', r: Math.max(-1, Math.min(1, n)) } } })} />
+                <Num label="Stop when r ≤" disabled={d} min={-1} max={1} value={c.stoppingRule.r} onChange={(n) => set({ threshold: { ...c, stoppingRule: { kind: 'r_at_most', r: Math.max(-1, Math.min(1, n)) } } })} />
               </div>
             );
           })()}
@@ -153,7 +185,7 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
         </label>
         {s.randomization.enabled && (
           <div className="flex flex-wrap items-center gap-4">
-            <Num label="Scrambles" disabled={d} step="1" min={1} value={s.randomization.count} onChange={(n) => set({ randomization: { ...s.randomization, count: Math.max(1, Math.round(n)) } })} />
+            <Num label="Scrambles" disabled={d} step="1" min={1} max={10_000} value={s.randomization.count} onChange={(n) => set({ randomization: { ...s.randomization, count: Math.max(1, Math.round(n)) } })} />
             <Choice
               name="block"
               disabled={d}
@@ -165,13 +197,13 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
               onChange={(k) => set({ randomization: { ...s.randomization, blockSize: k === 'pixels' ? { kind: 'pixels', pixels: 3 } : { kind: 'psf', psfWidthUm: 0.25, pixelSizeUm: null } } })}
             />
             {s.randomization.blockSize.kind === 'pixels' ? (
-              <Num label="Edge (px)" disabled={d} step="1" min={1} value={s.randomization.blockSize.pixels} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { kind: 'pixels', pixels: Math.max(1, Math.round(n)) } } })} />
+              <Num label="Edge (px)" disabled={d} step="1" min={1} max={256} value={s.randomization.blockSize.pixels} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { kind: 'pixels', pixels: Math.max(1, Math.round(n)) } } })} />
             ) : (
               (() => {
                 const b = s.randomization.blockSize;
                 return (
                   <>
-                    <Num label="PSF width (µm)" disabled={d} min={0} value={b.psfWidthUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfWidthUm: n } } })} />
+                    <Num label="PSF width (µm)" disabled={d} min={0} max={100} value={b.psfWidthUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfWidthUm: n } } })} />
                     <label className="flex items-center gap-2 text-sm">
                       <span className="text-ink-soft">Pixel size (µm, empty: from each field)</span>
                       <input
@@ -216,7 +248,7 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
           })()}
       </div>
     ),
-    minCellPixels: <Num label="Fewest pixels" disabled={d} step="1" min={0} value={s.minCellPixels} onChange={(n) => set({ minCellPixels: Math.max(0, Math.round(n)) })} />,
+    minCellPixels: <Num label="Fewest pixels" disabled={d} step="1" min={0} max={100_000_000} value={s.minCellPixels} onChange={(n) => set({ minCellPixels: Math.max(0, Math.round(n)) })} />,
     coefficients: (
       <div className="flex flex-wrap gap-x-4 gap-y-1">
         {COEFFICIENTS.map((c) => (
@@ -232,7 +264,7 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
         ))}
       </div>
     ),
-    seed: <Num label="Seed" disabled={d} step="1" min={0} value={s.seed} onChange={(n) => set({ seed: Math.max(0, Math.round(n)) })} />,
+    seed: <Num label="Seed" disabled={d} step="1" min={0} max={2 ** 32 - 1} value={s.seed} onChange={(n) => set({ seed: Math.max(0, Math.round(n)) })} />,
   };
   return (
     <div className="divide-y divide-ink/10">

@@ -6,6 +6,7 @@
  */
 import { useEffect, useRef, useState } from 'react';
 import type { ScatterView } from '../useScatter';
+import { NumberText, readNumberText } from '@shared/schemas/common';
 
 const SIZE = 264;
 const STOPS: [number, number, number][] = [
@@ -143,7 +144,7 @@ export function PixelScatter({
           {data.outside.toLocaleString()} brightest pixels lie beyond the axes (up to {fmtV(data.dataMax[0])} / {fmtV(data.dataMax[1])}); the quadrant shares count them.
         </p>
       )}
-      <ThresholdInputs t1={data.t1} t2={data.t2} onChange={onThresholdsDone} />
+      <ThresholdInputs t1={data.t1} t2={data.t2} range1={[data.rangeX[0], data.dataMax[0]]} range2={[data.rangeY[0], data.dataMax[1]]} onChange={onThresholdsDone} />
       <div className="mt-1 flex items-start justify-between gap-2 text-xs text-ink-soft">
         <span>
           Thresholds {manual ? 'set by hand' : 'by Otsu (1979) on this region'}; above = strictly greater.
@@ -168,16 +169,21 @@ export function PixelScatter({
   );
 }
 
-function ThresholdInputs({ t1, t2, onChange }: { t1: number; t2: number; onChange: (t1: number, t2: number) => void }) {
+/** Typed thresholds: a number within the region's data range on each axis, else a message and no change. */
+export function ThresholdInputs({ t1, t2, range1, range2, onChange }: { t1: number; t2: number; range1: [number, number]; range2: [number, number]; onChange: (t1: number, t2: number) => void }) {
   const [a, setA] = useState(fmtV(t1));
   const [b, setB] = useState(fmtV(t2));
+  const [error, setError] = useState<string | null>(null);
   useEffect(() => setA(fmtV(t1)), [t1]);
   useEffect(() => setB(fmtV(t2)), [t2]);
   const commit = () => {
-    const x = Number(a), y = Number(b);
-    if (Number.isFinite(x) && Number.isFinite(y)) onChange(x, y);
+    if (a === fmtV(t1) && b === fmtV(t2)) return setError(null); // nothing typed: keep the exact values
+    const x = readNumberText(NumberText('T1', { min: range1[0], max: range1[1] }), a);
+    const y = readNumberText(NumberText('T2', { min: range2[0], max: range2[1] }), b);
+    setError(x.error ?? y.error);
+    if (x.value !== null && y.value !== null) onChange(x.value, y.value);
   };
-  const cls = 'w-20 rounded border border-ink/20 bg-white px-1.5 py-0.5 font-mono text-xs';
+  const cls = 'w-20 rounded border border-ink/20 bg-white px-1.5 py-0.5 font-mono text-xs aria-[invalid=true]:border-danger';
   return (
     <form
       className="mt-2 flex items-center gap-2 text-xs"
@@ -187,11 +193,16 @@ function ThresholdInputs({ t1, t2, onChange }: { t1: number; t2: number; onChang
       }}
     >
       <label className="flex items-center gap-1">
-        T1 <input aria-label="Threshold T1 (channel 1)" className={cls} value={a} onChange={(e) => setA(e.target.value)} onBlur={commit} inputMode="decimal" />
+        T1 <input aria-label="Threshold T1 (channel 1)" aria-invalid={!!error && error.startsWith('T1')} aria-describedby={error ? 'threshold-error' : undefined} className={cls} value={a} onChange={(e) => setA(e.target.value)} onBlur={commit} inputMode="decimal" />
       </label>
       <label className="flex items-center gap-1">
-        T2 <input aria-label="Threshold T2 (channel 2)" className={cls} value={b} onChange={(e) => setB(e.target.value)} onBlur={commit} inputMode="decimal" />
+        T2 <input aria-label="Threshold T2 (channel 2)" aria-invalid={!!error && error.startsWith('T2')} aria-describedby={error ? 'threshold-error' : undefined} className={cls} value={b} onChange={(e) => setB(e.target.value)} onBlur={commit} inputMode="decimal" />
       </label>
+      {error && (
+        <span id="threshold-error" role="alert" className="text-danger">
+          {error}
+        </span>
+      )}
     </form>
   );
 }
