@@ -14,6 +14,7 @@ import { SourceSelect } from './SourceSelect';
 import { useExcludeCell } from '../api/useExcludeCell';
 import { useRestoreCell } from '../api/useRestoreCell';
 import { ExcludeDialog } from './ExcludeDialog';
+import { formatDateTime } from '@shared/format/datetime';
 
 const DEFAULT_VISIBLE = new Set(['condition', 'coverslip', 'field', 'cell', 'pixels', 'pearson', 'spearman', 'mandersM1', 'mandersM2', 'saturated', 'provisional', 'excluded']);
 const FILTER_KEYS = ['recipeId', 'runId', 'conditionId', 'coverslipId', 'excluded', 'saturated', 'provisional', 'measured', 'range', 'q', 'sort', 'dir', 'page', 'pageSize'];
@@ -86,7 +87,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
       text('provisional', ({ row }) => (row.original.provisional ? <ProvisionalBadge /> : row.original.measurementId === null ? <span className="text-ink-faint">not measured</span> : '')),
       text('excluded', ({ row }) =>
         row.original.excluded ? (
-          <span title={`${row.original.exclusionReason ?? ''}${row.original.excludedBy ? ` (by ${row.original.excludedBy}, ${row.original.excludedAt?.slice(0, 16).replace('T', ' ')})` : ''}`}>
+          <span title={`${row.original.exclusionReason ?? ''}${row.original.excludedBy ? ` (by ${row.original.excludedBy}, ${formatDateTime(row.original.excludedAt)})` : ''}`}>
             <Badge tone="danger">excluded</Badge> <span className="text-xs text-ink-soft">{row.original.exclusionReason}</span>
           </span>
         ) : (

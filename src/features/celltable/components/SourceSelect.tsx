@@ -1,6 +1,7 @@
 /** Chooses where measurements come from: the latest per cell among a recipe's runs, or one run. */
 import { inputClass } from '@/components';
 import { useMeasurementSources } from '../api/useMeasurementSources';
+import { formatDateTime } from '@shared/format/datetime';
 
 export function SourceSelect({ studyId, recipeId, runId, onChange }: { studyId: number; recipeId: string | null; runId: string | null; onChange: (v: { recipeId: string | null; runId: string | null }) => void }) {
   const sources = useMeasurementSources(studyId);
@@ -24,7 +25,7 @@ export function SourceSelect({ studyId, recipeId, runId, onChange }: { studyId: 
             </option>
             {r.runs.map((run) => (
               <option key={run.id} value={`run:${run.id}`}>
-                run {run.id} · {run.createdAt.slice(0, 16).replace('T', ' ')} · {run.measurements} cells{run.provisional ? ' · provisional' : ''}
+                run {run.id} · {formatDateTime(run.createdAt)} · {run.measurements} cells{run.provisional ? ' · provisional' : ''}
               </option>
             ))}
           </optgroup>

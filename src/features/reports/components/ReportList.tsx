@@ -3,8 +3,8 @@ import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading } from '@/components';
 import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/reports';
 import { useReports } from '../api/useReports';
-import { fmtDate } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { formatDateTime } from '@shared/format/datetime';
 
 export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAction?: React.ReactNode }) {
   const q = useReports(studyId);
@@ -25,7 +25,7 @@ export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAct
               {r.title}
             </Link>
             <p className="text-xs text-ink-soft">
-              {fmtDate(r.createdAt)}
+              {formatDateTime(r.createdAt)}
               {r.createdBy && ` · ${r.createdBy}`} · {r.cells} cells · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
             </p>
           </div>

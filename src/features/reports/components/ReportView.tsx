@@ -12,9 +12,10 @@ import { COEFFICIENT_LABELS, CSV_TABLES, type CsvTable, type ReportCoefficient, 
 import { ReplicatePlot } from './ReplicatePlot';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
-import { fmtDate, fmtNum, fmtP } from './palette';
+import { fmtNum, fmtP } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import './report-print.css';
+import { formatDateTime } from '@shared/format/datetime';
 
 /** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
 function frozenComparison(v: unknown): Comparison | null {
@@ -64,7 +65,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
               {report.title}
             </h1>
             <p className="mt-1 text-sm text-ink-soft">
-              Frozen {fmtDate(s.createdAt)}
+              Frozen {formatDateTime(s.createdAt)}
               {report.createdBy && ` by ${report.createdBy}`} · {s.coefficients.map((k) => COEFFICIENT_LABELS[k]).join(', ')}
             </p>
             <div className="mt-2 flex flex-wrap gap-2">

@@ -4,6 +4,7 @@ import { describeSettings } from '@shared/schemas/recipes';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { useRun } from '../api/useRun';
 import { RunProgress, runStatusLabel } from './RunProgress';
+import { formatDateTime } from '@shared/format/datetime';
 
 export function RunDetailPanel({ id }: { id: number }) {
   const q = useRun(id);
@@ -22,8 +23,8 @@ export function RunDetailPanel({ id }: { id: number }) {
       {r.provisional && <Caution>This run used a recipe version that was not approved; its {r.measurements} measurements are provisional.</Caution>}
       <RunProgress run={r} />
       <p className="text-xs text-ink-soft">
-        Engine {r.engineVersion ?? '—'} · seed {r.seed} · started {r.startedAt?.slice(0, 19).replace('T', ' ') ?? '—'}
-        {r.finishedAt ? ` · finished ${r.finishedAt.slice(0, 19).replace('T', ' ')}` : ''} · {r.measurements} cells measured
+        Engine {r.engineVersion ?? '—'} · seed {r.seed} · started {formatDateTime(r.startedAt)}
+        {r.finishedAt ? ` · finished ${formatDateTime(r.finishedAt)}` : ''} · {r.measurements} cells measured
       </p>
       <table className="w-full text-sm">
         <thead className="text-left text-ink-soft">
