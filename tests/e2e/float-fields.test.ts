@@ -84,6 +84,8 @@ async function openWithCell(page: TrackedPage, studyId: number, fieldId: number,
 
   await page.goto(`${srv.url}/studies/${studyId}/fields/${fieldId}`);
   await page.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 });
+  // counts in words: "1 cell", not "1 cells"
+  await page.locator('section', { has: page.getByRole('heading', { name: 'Cells' }) }).getByText('1 cell · 0 background regions', { exact: true }).waitFor();
   const preview = page.getByTestId('live-preview');
   // the whole field first: numbers, not "Computing…"
   await expect.poll(async () => preview.locator('[data-coef="pearson"]').textContent(), { timeout: 20_000 }).toMatch(/^-?\d\.\d{3}$/);

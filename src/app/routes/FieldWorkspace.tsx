@@ -25,6 +25,7 @@ import { ResultsTable } from '@/features/workspace/components/ResultsTable';
 import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace/components/OutlineActions';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
+import { plural } from '@shared/format/plural';
 
 export function Component() {
   const params = useParams();
@@ -219,7 +220,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
             <div className="mb-1 flex items-center justify-between">
               <h2 className="text-base font-semibold">Cells</h2>
-              <span className="text-xs text-ink-soft">{state.outlines.filter((o) => o.role === 'cell').length} cells · {state.outlines.filter((o) => o.role === 'background').length} background</span>
+              <span className="text-xs text-ink-soft">{plural(state.outlines.filter((o) => o.role === 'cell').length, 'cell')} · {plural(state.outlines.filter((o) => o.role === 'background').length, 'background region')}</span>
             </div>
             <div className="max-h-64 overflow-auto">
               {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} />}

@@ -2,6 +2,7 @@
 import { inputClass } from '@/components';
 import { useMeasurementSources } from '../api/useMeasurementSources';
 import { formatDateTime } from '@shared/format/datetime';
+import { plural } from '@shared/format/plural';
 
 export function SourceSelect({ studyId, recipeId, runId, onChange }: { studyId: number; recipeId: string | null; runId: string | null; onChange: (v: { recipeId: string | null; runId: string | null }) => void }) {
   const sources = useMeasurementSources(studyId);
@@ -21,11 +22,11 @@ export function SourceSelect({ studyId, recipeId, runId, onChange }: { studyId: 
         {sources.data?.recipes.map((r) => (
           <optgroup key={r.recipeId} label={`${r.name} v${r.version}`}>
             <option value={`recipe:${r.recipeId}`}>
-              {r.name} v{r.version}: latest per cell ({r.runs.length} run{r.runs.length === 1 ? '' : 's'})
+              {r.name} v{r.version}: latest per cell ({plural(r.runs.length, 'run')})
             </option>
             {r.runs.map((run) => (
               <option key={run.id} value={`run:${run.id}`}>
-                run {run.id} · {formatDateTime(run.createdAt)} · {run.measurements} cells{run.provisional ? ' · provisional' : ''}
+                run {run.id} · {formatDateTime(run.createdAt)} · {plural(run.measurements, 'cell')}{run.provisional ? ' · provisional' : ''}
               </option>
             ))}
           </optgroup>

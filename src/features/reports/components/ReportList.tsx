@@ -5,6 +5,7 @@ import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/repo
 import { useReports } from '../api/useReports';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { formatDateTime } from '@shared/format/datetime';
+import { plural } from '@shared/format/plural';
 
 export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAction?: React.ReactNode }) {
   const q = useReports(studyId);
@@ -26,7 +27,7 @@ export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAct
             </Link>
             <p className="text-xs text-ink-soft">
               {formatDateTime(r.createdAt)}
-              {r.createdBy && ` · ${r.createdBy}`} · {r.cells} cells · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
+              {r.createdBy && ` · ${r.createdBy}`} · {plural(r.cells, 'cell')} · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
             </p>
           </div>
           {r.anyProvisional && <ProvisionalBadge />}

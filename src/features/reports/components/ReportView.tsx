@@ -16,6 +16,7 @@ import { fmtNum, fmtP } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import './report-print.css';
 import { formatDateTime } from '@shared/format/datetime';
+import { plural, noun } from '@shared/format/plural';
 
 /** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
 function frozenComparison(v: unknown): Comparison | null {
@@ -235,14 +236,14 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         <ul className="mb-3 list-disc pl-5 text-sm">
           {s.conditions.map((c) => (
             <li key={c.id}>
-              <span className="font-medium">{c.name}</span>: {c.cellsIncluded} cells on {c.coverslipsUsed} coverslips
+              <span className="font-medium">{c.name}</span>: {plural(c.cellsIncluded, 'cell')} on {plural(c.coverslipsUsed, 'coverslip')}
               {c.cellsExcluded > 0 && `, ${c.cellsExcluded} excluded`} ({c.coverslips.map((x) => `${x.name}: ${x.cellsIncluded}`).join(', ')})
             </li>
           ))}
         </ul>
         <p className="text-sm text-ink-soft">
-          {s.fields.length} fields; runs {s.runs.map((r) => `#${r.id}${r.provisional ? ' (provisional)' : ''}`).join(', ') || 'none'}.
-          {s.saturation.fieldsWithSaturation > 0 && ` ${s.saturation.fieldsWithSaturation} fields contain saturated pixels.`}
+          {plural(s.fields.length, 'field')}; {noun(s.runs.length, 'run')} {s.runs.map((r) => `#${r.id}${r.provisional ? ' (provisional)' : ''}`).join(', ') || 'none'}.
+          {s.saturation.fieldsWithSaturation > 0 && ` ${plural(s.saturation.fieldsWithSaturation, 'field')} ${noun(s.saturation.fieldsWithSaturation, 'contains', 'contain')} saturated pixels.`}
         </p>
         {s.exclusions.length > 0 && (
           <div className="mt-3 overflow-x-auto">
