@@ -5,6 +5,7 @@ import type { Request } from 'express';
 import type { AppContext } from '../context.js';
 import { invitations, users } from '../db/schema.js';
 import { HttpError } from '../http/errors.js';
+import { formatDateTime } from '../../shared/format/datetime.js';
 
 export const INVITATION_DAYS = 7;
 
@@ -34,7 +35,7 @@ export function createInvitation(db: AppContext['db'], userId: number, createdBy
 
 export async function sendInvitationMail(ctx: AppContext, req: Request | undefined, to: { email: string; name: string }, token: string, expiresAt: string, inviter?: string) {
   const link = `${publicOrigin(ctx, req)}/invite/${token}`;
-  const until = expiresAt.slice(0, 10);
+  const until = formatDateTime(expiresAt);
   const by = inviter ? `${inviter} invited you` : 'You were invited';
   try {
     await ctx.mail.send({

@@ -44,6 +44,7 @@ import {
   type TestResult,
 } from '../../shared/stats/index.js';
 import { COLUMN_SQL, measurementJoin, resolveSource } from './source.js';
+import { plural } from '../../shared/format/plural.js';
 
 const TEST_LABELS: Record<TestRow['test'], string> = {
   welch_t: "Welch's t-test",
@@ -240,7 +241,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   const warnings: string[] = [];
   if (src.recipeId === null) warnings.push('No measurements yet: run a recipe on this study\'s fields first.');
   for (const c of conditions) {
-    if (c.nCoverslips < 3) warnings.push(`${capitalize(c.name)} has ${c.nCoverslips} coverslip${c.nCoverslips === 1 ? '' : 's'} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
+    if (c.nCoverslips < 3) warnings.push(`${capitalize(c.name)} has ${plural(c.nCoverslips, 'coverslip')} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
   }
   if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${COMPARE_LABELS[coefficient]} (for example no pixels above threshold or a constant channel) and are left out.`);
   if (omitted.excluded) warnings.push(`${omitted.excluded} excluded cell${omitted.excluded === 1 ? ' is' : 's are'} left out (reasons in the Cell table).`);
@@ -289,7 +290,7 @@ function sentence(label: string, fisher: boolean, conditions: ConditionStats[], 
   const pct = `${Math.round(conf * 100)}%`;
   const withData = conditions.filter((c) => c.nCoverslips > 0);
   if (withData.length === 0) return `No measured cells to compare for ${label}.`;
-  const means = withData.map((c) => `${fmt(c.mean)} in ${c.name} (${c.nCoverslips} coverslip${c.nCoverslips === 1 ? '' : 's'}, ${c.nCells} cells)`).join(', ');
+  const means = withData.map((c) => `${fmt(c.mean)} in ${c.name} (${plural(c.nCoverslips, 'coverslip')}, ${plural(c.nCells, 'cell')})`).join(', ');
   const head = `Mean of coverslip means of ${label}${fisher ? " (averaged through Fisher's z)" : ''}: ${means}.`;
   if (withData.length === 1) return `${head} Only one condition has data, so nothing is compared.`;
   const tstr = tests.map((t) => `${t.label}${t.statistic === null ? '' : ` ${t.test === 'mann_whitney_u' ? 'U' : t.test === 'welch_t' ? 't' : t.test === 'one_way_anova' ? 'F' : 'H'} = ${fmt(t.statistic)}`}, ${fmtP(t.p)}`).join('; ');

@@ -27,6 +27,7 @@ import {
   type CellGeometry,
 } from '../../shared/schemas/cells.js';
 import { labelRegions } from '../../shared/analysis/labels.js';
+import { encodeRuns } from '../../shared/analysis/rle.js';
 import { autoLevel, segmentCells } from '../../shared/analysis/segment.js';
 
 type CellRow = typeof cells.$inferSelect;
@@ -206,7 +207,7 @@ export default function cellsRoutes(ctx: AppContext) {
       }
       const out: CellRow[] = [];
       for (const reg of regions) {
-        const rle = indicesToRle(reg.indices);
+        const rle = encodeRuns(reg.indices, field.width * field.height);
         out.push(
           tx
             .insert(cells)
@@ -285,18 +286,4 @@ export default function cellsRoutes(ctx: AppContext) {
   });
 
   return r;
-}
-
-/** Ascending linear indices → run-length code [start, length, …]. */
-export function indicesToRle(idx: ArrayLike<number>): number[] {
-  const rle: number[] = [];
-  let i = 0;
-  while (i < idx.length) {
-    const s = idx[i];
-    let len = 1;
-    while (i + len < idx.length && idx[i + len] === s + len) len++;
-    rle.push(s, len);
-    i += len;
-  }
-  return rle;
 }

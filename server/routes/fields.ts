@@ -7,9 +7,9 @@
  *   GET    /api/fields/:id                   FieldDetail (read)
  *   DELETE /api/fields/:id                   delete; soft delete while measurements refer to it (edit_images)
  *   GET    /api/fields/:id/preview.png       composite / single-channel preview (read)
- *   GET    /api/fields/:id/pixels?z=         raw pixels for the browser's pixel scatter (read):
- *          body = ch1 then ch2, little-endian Uint16 (8/16-bit fields) or Float32 (float and 32-bit integer
- *          fields), header x-syntopy-shape: width,height,bitDepth,format (format 'uint' → Uint16 body, 'float' → Float32 body).
+ *   GET    /api/fields/:id/pixels?z=         raw pixels of one slice (or the projection) for the browser's pixel
+ *          scatter (read), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
+ *          field's own sample type); header x-syntopy-z names the slice in words.
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -25,6 +25,7 @@ import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from './_params.js';
 import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
+import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
 import { ImageInputError } from '../images/decode.js';
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
@@ -357,24 +358,10 @@ export default function fieldsRoutes(ctx: AppContext) {
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const q = parse(PixelsQuery, req.query);
     const px = await loadFieldPixels(ctx, field.id, { z: q.z });
-    const n = px.width * px.height;
-    const asFloat = px.sampleFormat === 'float' || px.bitDepth === 32;
-    let body: Buffer;
-    if (asFloat) {
-      const out = new Float32Array(2 * n);
-      out.set(px.ch1 as ArrayLike<number>, 0);
-      out.set(px.ch2 as ArrayLike<number>, n);
-      body = Buffer.from(out.buffer);
-    } else {
-      const out = new Uint16Array(2 * n);
-      out.set(px.ch1 as ArrayLike<number>, 0);
-      out.set(px.ch2 as ArrayLike<number>, n);
-      body = Buffer.from(out.buffer); // typed arrays are little-endian on every platform Node supports here
-    }
-    res.setHeader('content-type', 'application/octet-stream');
-    res.setHeader('x-syntopy-shape', `${px.width},${px.height},${px.bitDepth},${asFloat ? 'float' : 'uint'}`);
+    const body = encodePixels({ width: px.width, height: px.height, depth: px.depth, bitDepth: px.bitDepth, sampleType: sampleTypeOf(px.ch1), ch1: px.ch1, ch2: px.ch2 });
+    res.setHeader('content-type', PIXELS_CONTENT_TYPE);
     res.setHeader('x-syntopy-z', px.zLabel);
-    res.setHeader('access-control-expose-headers', 'x-syntopy-shape, x-syntopy-z');
+    res.setHeader('access-control-expose-headers', 'x-syntopy-z');
     res.end(body);
   });
 

@@ -17,6 +17,7 @@ import { CsvTable } from '../../shared/schemas/reports.js';
 import { CreateShareRequest, ShareLinkSummary, ShareListResponse, SharedReportResponse } from '../../shared/schemas/shares.js';
 import { linkState, newTokenId, signShareToken, verifyShareToken } from '../reports/tokens.js';
 import { loadReport, sendCsv, toDetail, type ReportRow } from '../reports/service.js';
+import { formatDateTime } from '../../shared/format/datetime.js';
 
 type LinkRow = typeof shareLinks.$inferSelect;
 
@@ -64,7 +65,7 @@ export default function sharesRoutes(ctx: AppContext) {
   const mailLink = async (req: Request, report: ReportRow, link: LinkRow, senderName: string, resend = false) => {
     const token = await signShareToken(ctx, link);
     const url = `${publicOrigin(ctx, req)}/shared/${token}`;
-    const until = link.expiresAt.slice(0, 10);
+    const until = formatDateTime(link.expiresAt);
     const study = ctx.db.select({ name: studies.name }).from(studies).where(eq(studies.id, report.studyId)).get();
     const msg = link.message.trim();
     await ctx.mail.send({

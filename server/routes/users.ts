@@ -9,6 +9,7 @@ import { badRequest, conflict, notFound, parse } from '../http/errors.js';
 import { requireUser } from '../auth/session.js';
 import { can, requireCan } from '../auth/policy.js';
 import { createInvitation, sendInvitationMail } from '../auth/invitations.js';
+import { plural } from '../../shared/format/plural.js';
 
 type UserRecord = typeof users.$inferSelect;
 
@@ -185,7 +186,7 @@ export default function usersRoutes(ctx: AppContext) {
     requireCan(req.user, 'manage_users');
     const id = idParam(req, 'id');
     const lab = labOut(id);
-    if (lab.studyCount > 0) throw conflict(`lab "${lab.name}" still has ${lab.studyCount} ${lab.studyCount === 1 ? 'study' : 'studies'}; move or delete them first`);
+    if (lab.studyCount > 0) throw conflict(`lab "${lab.name}" still has ${plural(lab.studyCount, 'study', 'studies')}; move or delete them first`);
     db.transaction((tx) => {
       tx.delete(labs).where(eq(labs.id, id)).run();
       audit(tx, req, 'lab_deleted', 'lab', id, { name: lab.name, members: lab.members.map((m) => m.id) });

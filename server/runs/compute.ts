@@ -26,6 +26,7 @@ import type { FileStore } from '../images/store.js';
 import { decodeChannel } from '../images/decode.js';
 import { project } from '../images/projection.js';
 import type { FieldJob, FieldJobResult, MeasurementValues } from './job.js';
+import { plural } from '../../shared/format/plural.js';
 
 export { ENGINE_VERSION };
 
@@ -44,7 +45,7 @@ export { project };
 
 export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] {
   const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1];
-  if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${sizeZ} slice${sizeZ === 1 ? '' : 's'}`);
+  if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${plural(sizeZ, 'slice')}`);
   return [a, b];
 }
 

@@ -11,6 +11,7 @@ import type { RunScopeKind } from '../../shared/schemas/runs.js';
 import { notFound } from '../http/errors.js';
 import { ENGINE_VERSION } from '../../shared/analysis/index.js';
 import type { FieldJob, FieldJobResult } from './job.js';
+import { plural } from '../../shared/format/plural.js';
 
 type Db = AppContext['db'];
 
@@ -158,7 +159,7 @@ export function refreshRun(db: Db, runId: number) {
   const finished = c.queued + c.running === 0;
   const status = !finished ? undefined : c.failed === 0 ? 'done' : c.done === 0 ? 'failed' : 'partial';
   let error: string | null = null;
-  if (finished && c.failed > 0) error = `${c.failed} of ${total} field${total === 1 ? '' : 's'} failed`;
+  if (finished && c.failed > 0) error = `${c.failed} of ${plural(total, 'field')} failed`;
   db.update(runs)
     .set({
       fieldsTotal: total,

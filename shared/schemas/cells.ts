@@ -6,7 +6,7 @@
  */
 import { z } from 'zod';
 import { rasterize, maskToIndices, type Shape } from '../analysis/rasterize';
-import { rleToIndices } from '../analysis/segment';
+import { checkRuns, decodeRuns } from '../analysis/rle';
 
 /** Largest vertex count accepted for one outline (freehand strokes are thinned on the client). */
 export const MAX_VERTICES = 20000;
@@ -35,12 +35,23 @@ export const EllipseGeometry = z.object({
 /**
  * A cell imported from a label image: `rle` is the run-length code of its mask over the field in row-major
  * order, flat pairs [start, length, start, length, …] where start is the linear index y·width + x; runs are
- * sorted, non-overlapping and never empty. Exact by construction (no outline tracing).
+ * sorted, non-overlapping and never empty (shared/analysis/rle.ts encodes, decodes and checks them; the
+ * bounds against the field size are checked where the field is known, in `cellIndices`). Exact by
+ * construction (no outline tracing).
  */
 export const LabelGeometry = z.object({
   kind: z.literal('label'),
   label: z.number().int().positive(),
-  rle: z.array(z.number().int().nonnegative()).max(4_000_000),
+  rle: z
+    .array(z.number().int().nonnegative())
+    .max(4_000_000)
+    .superRefine((rle, ctx) => {
+      try {
+        checkRuns(rle);
+      } catch (e) {
+        ctx.addIssue({ code: 'custom', message: (e as Error).message });
+      }
+    }),
 });
 
 export const CellGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry, LabelGeometry]);
@@ -146,5 +157,5 @@ export function shapeOfGeometry(g: CellGeometry): Shape | null {
 export function cellIndices(g: CellGeometry, width: number, height: number): Uint32Array {
   const shape = shapeOfGeometry(g);
   if (shape) return maskToIndices(rasterize(shape, width, height));
-  return rleToIndices((g as { rle: number[] }).rle, width * height);
+  return decodeRuns((g as { rle: number[] }).rle, width * height);
 }

@@ -5,14 +5,15 @@
  * cells were counted (e.g. "on this page").
  */
 import { Caution } from './Caution';
+import { plural, noun } from '@shared/format/plural';
 
 export function MeasurementCautions({ saturatedCells, where, className }: { saturatedCells?: number; where?: string; className?: string }) {
   return (
     <div className={className} aria-label="Cautions" role="group">
       {!!saturatedCells && saturatedCells > 0 && (
         <Caution title="Saturated pixels flagged" className="mb-2">
-          {saturatedCells.toLocaleString('en')} {saturatedCells === 1 ? 'cell' : 'cells'}
-          {where ? ` ${where}` : ''} {saturatedCells === 1 ? 'has' : 'have'} pixels at the detector's ceiling or a clipping plateau. Clipped intensities bias every
+          {plural(saturatedCells, 'cell')}
+          {where ? ` ${where}` : ''} {noun(saturatedCells, 'has', 'have')} pixels at the detector's ceiling or a clipping plateau. Clipped intensities bias every
           coefficient; these cells are marked “saturated” in the Cell table and in reports.
         </Caution>
       )}

@@ -54,6 +54,10 @@ describe('invitation', () => {
     // only the hash is stored
     const row = t.ctx.db.select().from(invitations).all().at(-1)!;
     expect(row.tokenHash).not.toContain(token);
+    // the expiry in the one date format, with its time zone (shared/format/datetime.ts)
+    const until = `${row.expiresAt.slice(0, 10)} ${row.expiresAt.slice(11, 16)} UTC`;
+    expect(msg.body.text).toContain(`until ${until})`);
+    expect(msg.body.html).toContain(`until ${until})`);
   });
 
   it('the link shows name and e-mail; an invited user cannot sign in yet', async () => {

@@ -88,6 +88,8 @@ describe('Outbox', () => {
     await user.click(await screen.findByRole('button', { name: /You are invited to Syntopy/ }));
     const link = await screen.findByRole('link', { name: 'http://localhost:3000/invite/tok123' });
     expect(link.getAttribute('href')).toBe('http://localhost:3000/invite/tok123');
+    // the list and the message show the one date format, with its time zone
+    expect(screen.getAllByText('2026-12-01 10:00 UTC')).toHaveLength(2);
   });
 });
 

@@ -1,5 +1,5 @@
 /**
- * Previews of large fields (pyramid levels), float fields over /pixels, and the helpers behind previews.
+ * Previews of large fields (pyramid levels), fields of every sample type over /pixels, and the helpers behind previews.
  */
 import fs from 'node:fs';
 import os from 'node:os';
@@ -10,6 +10,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { binHalf, percentiles, renderCompositePng } from '../../server/images/preview.js';
 import { writeTiffU16 } from './tiffwrite.js';
 import { expectedPlane, fixture } from './fixtures.js';
+import { decodePixels, PIXELS_HEADER_BYTES } from '../../shared/pixels/codec.js';
 
 let t: TestApp;
 let tmp: string;
@@ -74,7 +75,7 @@ describe('large fields get a downscaled level by default', () => {
 });
 
 describe('float fields over /pixels', () => {
-  it('Float32 body and "float" in the shape header', async () => {
+  it('float32 samples, so the header and the client agree on the sample type', async () => {
     const agent = await t.login('microscopist');
     const up = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', fixture('float32_deflate_fpred.tif'));
     expect(up.status, JSON.stringify(up.body)).toBe(201);
@@ -82,16 +83,33 @@ describe('float fields over /pixels', () => {
     expect(f).toMatchObject({ bitDepth: 32, sampleFormat: 'float' });
     expect(f.facts.ch1.saturatedFraction).toBe(0);
     const res = await agent.get(`/api/fields/${f.id}/pixels`).buffer(true).parse(binary);
-    expect(res.headers['x-syntopy-shape']).toBe('64,48,32,float');
     const b = res.body as Buffer;
+    // header: float32 (code 4), 32 bits, 64 × 48 × 1
+    expect([b.subarray(0, 4).toString('latin1'), b[5], b[7], b.readUInt32LE(8), b.readUInt32LE(12), b.readUInt32LE(16)]).toEqual(['SYPX', 4, 32, 64, 48, 1]);
     const want1 = expectedPlane('float32', 0, 0, 64, 48);
     const want2 = expectedPlane('float32', 1, 0, 64, 48);
     for (const i of [0, 77, 3071]) {
-      expect(b.readFloatLE(4 * i)).toBe(want1[i]);
-      expect(b.readFloatLE(4 * (3072 + i))).toBe(want2[i]);
+      expect(b.readFloatLE(PIXELS_HEADER_BYTES + 4 * i)).toBe(want1[i]);
+      expect(b.readFloatLE(PIXELS_HEADER_BYTES + 4 * (3072 + i))).toBe(want2[i]);
     }
+    const px = decodePixels(new Uint8Array(b));
+    expect(px.sampleType).toBe('float32');
+    expect(px.ch1[77]).toBe(want1[77]);
     const prev = await agent.get(`/api/fields/${f.id}/preview.png`);
     expect(prev.status).toBe(200);
+  });
+  it('every sample type travels in its own type, values exact (uint32 is not squeezed into float32)', async () => {
+    const agent = await t.login('microscopist');
+    for (const [file, type, bits] of [['uint8_2page.tif', 'uint8', 8], ['uint16_2page.tif', 'uint16', 16], ['uint32_2page.tif', 'uint32', 32], ['float32_2page.tif', 'float32', 32]] as const) {
+      const up = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', fixture(file));
+      expect(up.status, `${file}: ${JSON.stringify(up.body)}`).toBe(201);
+      const res = await agent.get(`/api/fields/${up.body.results[0].field.id}/pixels`).buffer(true).parse(binary);
+      expect(res.status).toBe(200);
+      const px = decodePixels(new Uint8Array(res.body as Buffer));
+      expect([file, px.sampleType, px.bitDepth, px.width, px.height, px.depth]).toEqual([file, type, bits, 64, 48, 1]);
+      expect(Array.from(px.ch1)).toEqual(expectedPlane(type, 0, 0, 64, 48));
+      expect(Array.from(px.ch2)).toEqual(expectedPlane(type, 1, 0, 64, 48));
+    }
   });
   it('renderCompositePng (used by reports) gives a PNG of the asked size', async () => {
     const agent = await t.login('microscopist');
@@ -109,7 +127,10 @@ describe('float fields over /pixels', () => {
     expect(bad.body.error).toMatch(/0–2/);
     const ok = await agent.get(`/api/fields/${id}/pixels?z=2`).buffer(true).parse(binary);
     expect(ok.headers['x-syntopy-z']).toBe('slice 3 of 3');
-    expect((ok.body as Buffer).readFloatLE(0)).toBe(expectedPlane('float32', 0, 2, 64, 48)[0]);
+    const z2 = decodePixels(new Uint8Array(ok.body as Buffer));
+    expect([z2.sampleType, z2.depth]).toEqual(['float32', 1]);
+    expect(Array.from(z2.ch1)).toEqual(Array.from(expectedPlane('float32', 0, 2, 64, 48)));
+    expect(Array.from(z2.ch2)).toEqual(Array.from(expectedPlane('float32', 1, 2, 64, 48)));
   });
 });
 

@@ -12,6 +12,7 @@ import { FieldDetail, UploadResponse } from '../../shared/schemas/fields.js';
 import { cells, measurements, recipes, runs } from '../../server/db/schema.js';
 import { loadFieldPixels, clearPixelCache, ingestField } from '../../server/images/intake.js';
 import { expectedPlane, fixture } from './fixtures.js';
+import { decodePixels, PIXELS_CONTENT_TYPE, PIXELS_HEADER_BYTES } from '../../shared/pixels/codec.js';
 import { snapshot } from './helpers.js';
 
 let t: TestApp;
@@ -109,17 +110,23 @@ describe('upload of a two-channel 16-bit file', () => {
     expect(Buffer.compare(again.body as Buffer, thumb.body as Buffer)).toBe(0);
   });
 
-  it('GET /pixels returns ch1 then ch2 as little-endian Uint16 with the shape header', async () => {
+  it('GET /pixels returns the pixel header then ch1 then ch2 as little-endian Uint16', async () => {
     const agent = await t.login('collaborator');
     const res = await agent.get(`/api/fields/${fieldId}/pixels`).buffer(true).parse(binary);
     expect(res.status).toBe(200);
-    expect(res.headers['x-syntopy-shape']).toBe('64,48,16,uint');
+    expect(res.headers['content-type']).toContain(PIXELS_CONTENT_TYPE);
     const b = res.body as Buffer;
-    expect(b.length).toBe(2 * 2 * W * H);
+    // header: "SYPX", version 1, uint16 (code 2), 2 channels, 16 bits, 64 × 48 × 1
+    expect(b.subarray(0, 4).toString('latin1')).toBe('SYPX');
+    expect([b[4], b[5], b[6], b[7], b.readUInt32LE(8), b.readUInt32LE(12), b.readUInt32LE(16)]).toEqual([1, 2, 2, 16, 64, 48, 1]);
+    expect(b.length).toBe(PIXELS_HEADER_BYTES + 2 * 2 * W * H);
     for (const i of [0, 1, 100, 3071]) {
-      expect(b.readUInt16LE(2 * i)).toBe(ch1[i]);
-      expect(b.readUInt16LE(2 * (W * H + i))).toBe(ch2[i]);
+      expect(b.readUInt16LE(PIXELS_HEADER_BYTES + 2 * i)).toBe(ch1[i]);
+      expect(b.readUInt16LE(PIXELS_HEADER_BYTES + 2 * (W * H + i))).toBe(ch2[i]);
     }
+    const px = decodePixels(new Uint8Array(b));
+    expect([px.width, px.height, px.depth, px.bitDepth, px.sampleType]).toEqual([64, 48, 1, 16, 'uint16']);
+    expect(Array.from(px.ch2)).toEqual(ch2);
   });
 
   it('loadFieldPixels decodes from the store after the cache is cleared', async () => {

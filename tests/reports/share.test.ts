@@ -61,6 +61,7 @@ describe('share links', () => {
     expect(ada[0].subject).toContain('Report A');
     expect(ada[0].text).toContain('Here are the numbers we discussed.');
     expect(ada[0].html).toContain('/shared/');
+    expect(ada[0].text).toMatch(/works until \d{4}-\d\d-\d\d \d\d:\d\d UTC\):/);
     tokenA = tokenIn(ada[0].text);
     expect(tokenIn(mailTo('ben@example.org')[0].text)).not.toBe(tokenA);
     linkA = links.find((l) => l.email === 'ada@example.org')!.id;

@@ -17,9 +17,10 @@ export function insertField(ctx: AppContext, coverslipId: number, width: number,
 
 /**
  * A baseline TIFF (TIFF 6.0, Adobe 1992: one strip, no compression, little-endian) of one or more
- * single-sample pages. bits: 8, 16 or 32 (unsigned integer). Common practice; enough for label images.
+ * single-sample pages. bits: 8, 16 or 32 (unsigned integer; with format 'float' 32-bit IEEE 754). Common practice.
  */
-export function writeTiff(pages: ArrayLike<number>[], width: number, height: number, bits: 8 | 16 | 32 = 16): Buffer {
+export function writeTiff(pages: ArrayLike<number>[], width: number, height: number, bits: 8 | 16 | 32 = 16, format: 'uint' | 'float' = 'uint'): Buffer {
+  if (format === 'float' && bits !== 32) throw new Error(`float pages are 32-bit, got ${bits}`);
   const bpp = bits / 8;
   const entries = 10;
   const ifdSize = 2 + entries * 12 + 4;
@@ -52,12 +53,13 @@ export function writeTiff(pages: ArrayLike<number>[], width: number, height: num
     tag(277, 3, 1); // SamplesPerPixel
     tag(278, 4, height); // RowsPerStrip
     tag(279, 4, dataSize); // StripByteCounts
-    tag(339, 3, 1); // SampleFormat: unsigned integer
+    tag(339, 3, format === 'float' ? 3 : 1); // SampleFormat: IEEE float or unsigned integer
     buf.writeUInt32LE(p + 1 < pages.length ? 8 + (p + 1) * pageSize : 0, o);
     for (let i = 0; i < width * height; i++) {
       const v = px[i];
       if (bits === 8) buf.writeUInt8(v, data + i);
       else if (bits === 16) buf.writeUInt16LE(v, data + 2 * i);
+      else if (format === 'float') buf.writeFloatLE(v, data + 4 * i);
       else buf.writeUInt32LE(v, data + 4 * i);
     }
   });

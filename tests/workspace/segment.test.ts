@@ -6,8 +6,6 @@ import { describe, expect, it } from 'vitest';
 import {
   autoLevel,
   fillHoles,
-  rleOfAllLabels,
-  rleToIndices,
   segmentCells,
   squaredDistanceTransform,
   traceOutline,
@@ -193,19 +191,5 @@ describe('automatic level', () => {
     expect(level!).toBeGreaterThan(200);
     expect(level!).toBeLessThan(800);
     expect(autoLevel(new Float32Array(10).fill(NaN))).toBeNull();
-  });
-});
-
-describe('label masks as run lengths', () => {
-  it('round-trips a label image exactly', () => {
-    const labels = Uint16Array.from([0, 1, 1, 0, 2, 2, 2, 1, 0, 0, 3, 3]);
-    const m = rleOfAllLabels(labels);
-    expect(m.get(1)).toEqual([1, 2, 7, 1]);
-    expect(m.get(2)).toEqual([4, 3]);
-    expect(Array.from(rleToIndices(m.get(3)!, 12))).toEqual([10, 11]);
-  });
-  it('refuses overlapping or out-of-range runs', () => {
-    expect(() => rleToIndices([0, 3, 2, 1], 10)).toThrow(/bad run 1/);
-    expect(() => rleToIndices([8, 3], 10)).toThrow(/bad run 0/);
   });
 });

@@ -7,10 +7,10 @@
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { useParams } from 'react-router';
 import { Button, Caution, ErrorNotice, Loading, PageHeader } from '@/components';
-import { useFieldDetail } from '@/features/workspace/api/useFieldDetail';
+import { useField } from '@/features/fields/api/useField';
 import { useStudy } from '@/features/studies/api/useStudy';
 import { useCells } from '@/features/workspace/api/useCells';
-import { useFieldPixels } from '@/features/workspace/api/useFieldPixels';
+import { useFieldPixels } from '@/features/fields/api/useFieldPixels';
 import { useFieldResults } from '@/features/workspace/api/useFieldResults';
 import { initialOutlineState, outlineReducer } from '@/features/workspace/outline-state';
 import { useOutlineSync } from '@/features/workspace/useOutlineSync';
@@ -25,19 +25,20 @@ import { ResultsTable } from '@/features/workspace/components/ResultsTable';
 import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace/components/OutlineActions';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
+import { plural } from '@shared/format/plural';
 
 export function Component() {
   const params = useParams();
   const studyId = Number(params.studyId);
   const fieldId = Number(params.fieldId);
-  const field = useFieldDetail(fieldId);
+  const field = useField(fieldId);
   if (!Number.isInteger(fieldId) || fieldId <= 0) return <NotFound />;
   if (field.isPending) return <Loading label="Opening the field…" />;
   if (field.isError) return field.error instanceof ApiError && field.error.status === 404 ? <NotFound /> : <ErrorNotice error={field.error} />;
   return <Workspace key={fieldId} studyId={studyId} field={field.data} />;
 }
 
-function Workspace({ studyId, field }: { studyId: number; field: NonNullable<ReturnType<typeof useFieldDetail>['data']> }) {
+function Workspace({ studyId, field }: { studyId: number; field: NonNullable<ReturnType<typeof useField>['data']> }) {
   const fieldId = field.id;
   const canEdit = field.canEdit;
   const names = channelNames(field);
@@ -219,7 +220,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
             <div className="mb-1 flex items-center justify-between">
               <h2 className="text-base font-semibold">Cells</h2>
-              <span className="text-xs text-ink-soft">{state.outlines.filter((o) => o.role === 'cell').length} cells · {state.outlines.filter((o) => o.role === 'background').length} background</span>
+              <span className="text-xs text-ink-soft">{plural(state.outlines.filter((o) => o.role === 'cell').length, 'cell')} · {plural(state.outlines.filter((o) => o.role === 'background').length, 'background region')}</span>
             </div>
             <div className="max-h-64 overflow-auto">
               {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} />}
@@ -244,7 +245,14 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             )}
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
-            <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
+            {pixels.isError || scatter.error ? (
+              <section aria-label="Live coefficients (preview)" data-testid="live-preview">
+                <h3 className="mb-2 text-sm font-semibold">Coefficients of {regionName}</h3>
+                <ErrorNotice error={pixels.error ?? scatter.error} />
+              </section>
+            ) : (
+              <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
+            )}
           </section>
           <div className="space-y-2" aria-label="Cautions">
             {(field.saturated || regionSaturated) && (

@@ -15,6 +15,7 @@ import { SettingsEditor } from '@/features/recipes/components/SettingsEditor';
 import { RecipeDiffView } from '@/features/recipes/components/RecipeDiffView';
 import { ReviewActions } from '@/features/recipes/components/ReviewActions';
 import { RecipeStatusBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { formatDateTime } from '@shared/format/datetime';
 
 const trail = [{ to: '/recipes', label: 'Recipes' }];
 
@@ -142,7 +143,7 @@ function Editor({ recipe }: { recipe: RecipeDetail }) {
         <ol className="space-y-1 text-sm">
           {recipe.history.map((h, i) => (
             <li key={i}>
-              <span className="font-mono text-xs text-ink-soft">{h.at.slice(0, 16).replace('T', ' ')}</span> {h.actor?.name ?? 'someone'} — {h.action}
+              <span className="font-mono text-xs text-ink-soft">{formatDateTime(h.at)}</span> {h.actor?.name ?? 'someone'} — {h.action}
               {h.note && <span className="text-ink-soft">: “{h.note}”</span>}
             </li>
           ))}

@@ -8,6 +8,7 @@ import { RunList } from '@/features/runs/components/RunList';
 import { RunDetailPanel } from '@/features/runs/components/RunDetailPanel';
 import { StartRunForm } from '@/features/runs/components/StartRunForm';
 import type { StudySummary } from '@shared/schemas/studies';
+import { plural } from '@shared/format/plural';
 
 export function Component() {
   const [params, setParams] = useSearchParams();
@@ -68,7 +69,7 @@ function StudyPicker({ studies, onChoose }: { studies: StudySummary[]; onChoose:
         <select className={cx(inputClass(false), 'w-auto')} value={current} onChange={(e) => setId(Number(e.target.value))}>
           {studies.map((s) => (
             <option key={s.id} value={s.id}>
-              {s.name} ({s.fieldCount} field{s.fieldCount === 1 ? '' : 's'})
+              {s.name} ({plural(s.fieldCount, 'field')})
             </option>
           ))}
         </select>

@@ -6,6 +6,7 @@ import { ApiError } from '@/lib/api';
 import { useSharedReport } from '@/features/share/api/useSharedReport';
 import { sharedCsvUrl } from '@/features/reports/api/csvUrl';
 import { ReportView } from '@/features/reports/components/ReportView';
+import { formatDateTime } from '@shared/format/datetime';
 
 function Frame({ children }: { children: React.ReactNode }) {
   return (
@@ -57,7 +58,7 @@ export function Component() {
         actions={<Button onClick={() => window.print()}>Print / PDF</Button>}
       />
       <p className="no-print mx-auto max-w-5xl text-xs text-ink-faint">
-        Shared with {d.recipient}; this personal link works until {new Date(d.expiresAt).toLocaleDateString()}.
+        Shared with {d.recipient}; this personal link works until {formatDateTime(d.expiresAt)}.
       </p>
     </Frame>
   );

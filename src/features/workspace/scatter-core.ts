@@ -7,12 +7,13 @@
 import { jointHistogram, type Histogram2D } from '@shared/analysis/histogram';
 import { computeThresholds, measurePairs, collectPairs, prepare, type PreparedPairs, type RegionResult } from '@shared/analysis/index';
 import { cellIndices, type CellGeometry } from '@shared/schemas/cells';
+import type { SampleArray } from '@shared/pixels/codec';
 
 export interface ScatterInput {
   width: number;
   height: number;
-  ch1: Uint16Array | Float32Array;
-  ch2: Uint16Array | Float32Array;
+  ch1: SampleArray;
+  ch2: SampleArray;
   /** largest value the pixel type holds (2^bits − 1), null for float data: pixels at it count as saturated */
   saturationLevel?: number | null;
 }

@@ -5,9 +5,10 @@
  */
 import { livePreview, prepareRegion, scatter, type Region, type ScatterInput } from './scatter-core';
 import type { CellGeometry } from '@shared/schemas/cells';
+import type { SampleArray } from '@shared/pixels/codec';
 
 export type ScatterRequest =
-  | { type: 'pixels'; width: number; height: number; format: 'uint16' | 'float32'; buffer: ArrayBuffer; saturationLevel: number | null }
+  | { type: 'pixels'; width: number; height: number; ch1: SampleArray; ch2: SampleArray; saturationLevel: number | null }
   | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean };
 
 export type ScatterReply =
@@ -21,9 +22,7 @@ let region: { key: string; r: Region } | null = null;
 self.onmessage = (e: MessageEvent<ScatterRequest>) => {
   const m = e.data;
   if (m.type === 'pixels') {
-    const all = m.format === 'float32' ? new Float32Array(m.buffer) : new Uint16Array(m.buffer);
-    const n = m.width * m.height;
-    img = { width: m.width, height: m.height, ch1: all.subarray(0, n), ch2: all.subarray(n, 2 * n), saturationLevel: m.saturationLevel };
+    img = { width: m.width, height: m.height, ch1: m.ch1, ch2: m.ch2, saturationLevel: m.saturationLevel };
     region = null;
     return;
   }

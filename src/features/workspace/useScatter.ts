@@ -5,7 +5,7 @@
 import { useEffect, useRef, useState } from 'react';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { RegionResult } from '@shared/analysis/types';
-import type { FieldPixelData } from './api/useFieldPixels';
+import type { PixelPlanes } from '@shared/pixels/codec';
 import type { ScatterReply, ScatterRequest } from './scatter.worker';
 
 export type ScatterView = Extract<ScatterReply, { type: 'scatter' }> & { counts: Uint32Array };
@@ -17,7 +17,7 @@ export interface LiveResult {
   ms: number;
 }
 
-export function useScatter(pixels: FieldPixelData | undefined, saturationLevel: number | null) {
+export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: number | null) {
   const worker = useRef<Worker | null>(null);
   const busy = useRef(false);
   const waiting = useRef<Extract<ScatterRequest, { type: 'update' }> | null>(null);
@@ -34,8 +34,9 @@ export function useScatter(pixels: FieldPixelData | undefined, saturationLevel: 
     const w = new Worker(new URL('./scatter.worker.ts', import.meta.url), { type: 'module' });
     worker.current = w;
     countsByRegion.current.clear();
-    const copy = pixels.data.slice();
-    w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, format: pixels.format, buffer: copy.buffer, saturationLevel } satisfies ScatterRequest, [copy.buffer]);
+    const ch1 = pixels.ch1.slice();
+    const ch2 = pixels.ch2.slice();
+    w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, ch1, ch2, saturationLevel } satisfies ScatterRequest, [ch1.buffer, ch2.buffer]);
     const pump = () => {
       const next = waiting.current;
       if (!next) return;

@@ -15,6 +15,8 @@ import { SourceSelect } from './SourceSelect';
 import { useExcludeCell } from '../api/useExcludeCell';
 import { useRestoreCell } from '../api/useRestoreCell';
 import { ExcludeDialog } from './ExcludeDialog';
+import { formatDateTime } from '@shared/format/datetime';
+import { plural, noun } from '@shared/format/plural';
 
 const DEFAULT_VISIBLE = new Set(['condition', 'coverslip', 'field', 'cell', 'pixels', 'pearson', 'spearman', 'mandersM1', 'mandersM2', 'saturated', 'provisional', 'excluded']);
 const FILTER_KEYS = ['recipeId', 'runId', 'conditionId', 'coverslipId', 'excluded', 'saturated', 'provisional', 'measured', 'range', 'q', 'sort', 'dir', 'page', 'pageSize'];
@@ -87,7 +89,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
       text('provisional', ({ row }) => (row.original.provisional ? <ProvisionalBadge /> : row.original.measurementId === null ? <span className="text-ink-faint">not measured</span> : '')),
       text('excluded', ({ row }) =>
         row.original.excluded ? (
-          <span title={`${row.original.exclusionReason ?? ''}${row.original.excludedBy ? ` (by ${row.original.excludedBy}, ${row.original.excludedAt?.slice(0, 16).replace('T', ' ')})` : ''}`}>
+          <span title={`${row.original.exclusionReason ?? ''}${row.original.excludedBy ? ` (by ${row.original.excludedBy}, ${formatDateTime(row.original.excludedAt)})` : ''}`}>
             <Badge tone="danger">excluded</Badge> <span className="text-xs text-ink-soft">{row.original.exclusionReason}</span>
           </span>
         ) : (
@@ -290,7 +292,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
           <span className="mr-2 align-middle">
             <ProvisionalBadge />
           </span>
-          {provisionalOnPage.toLocaleString('en')} {provisionalOnPage === 1 ? 'cell' : 'cells'} on this page {provisionalOnPage === 1 ? 'was' : 'were'} measured with a recipe version that is not
+          {plural(provisionalOnPage, 'cell')} on this page {noun(provisionalOnPage, 'was', 'were')} measured with a recipe version that is not
           approved; {provisionalOnPage === 1 ? 'its numbers' : 'their numbers'} may change.
         </Caution>
       )}
@@ -367,7 +369,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
           Previous
         </Button>
         <span>
-          Page {Math.min(page + 1, pages)} of {pages} · {total.toLocaleString('en')} cells
+          Page {Math.min(page + 1, pages)} of {pages} · {plural(total, 'cell')}
         </span>
         <Button size="sm" disabled={page + 1 >= pages} onClick={() => update({ page: String(page + 1) }, false)}>
           Next

@@ -1,6 +1,8 @@
 /** Chooses where measurements come from: the latest per cell among a recipe's runs, or one run. */
 import { inputClass } from '@/components';
 import { useMeasurementSources } from '../api/useMeasurementSources';
+import { formatDateTime } from '@shared/format/datetime';
+import { plural } from '@shared/format/plural';
 
 export function SourceSelect({ studyId, recipeId, runId, onChange }: { studyId: number; recipeId: string | null; runId: string | null; onChange: (v: { recipeId: string | null; runId: string | null }) => void }) {
   const sources = useMeasurementSources(studyId);
@@ -20,11 +22,11 @@ export function SourceSelect({ studyId, recipeId, runId, onChange }: { studyId: 
         {sources.data?.recipes.map((r) => (
           <optgroup key={r.recipeId} label={`${r.name} v${r.version}`}>
             <option value={`recipe:${r.recipeId}`}>
-              {r.name} v{r.version}: latest per cell ({r.runs.length} run{r.runs.length === 1 ? '' : 's'})
+              {r.name} v{r.version}: latest per cell ({plural(r.runs.length, 'run')})
             </option>
             {r.runs.map((run) => (
               <option key={run.id} value={`run:${run.id}`}>
-                run {run.id} · {run.createdAt.slice(0, 16).replace('T', ' ')} · {run.measurements} cells{run.provisional ? ' · provisional' : ''}
+                run {run.id} · {formatDateTime(run.createdAt)} · {plural(run.measurements, 'cell')}{run.provisional ? ' · provisional' : ''}
               </option>
             ))}
           </optgroup>

@@ -9,6 +9,7 @@ import { forwardRef, useMemo } from 'react';
 import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3';
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor, coverslipMarker, type Marker } from './palette';
+import { plural } from '@shared/format/plural';
 
 const SYMBOLS: Record<Marker, SymbolType> = {
   circle: symbolCircle,
@@ -149,7 +150,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
                 stroke="#ffffff"
                 strokeWidth={1.5}
               >
-                <title>{`${s.name}: mean ${fmt(s.mean)}, ${s.nCells} cells`}</title>
+                <title>{`${s.name}: mean ${fmt(s.mean)}, ${plural(s.nCells, 'cell')}`}</title>
               </path>
             ),
           )}
@@ -162,14 +163,14 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
               {c.name}
             </text>
             <text y={34} textAnchor="middle" fontSize={11} fill="#4a5863">
-              {`${c.nCoverslips} coverslips · ${c.nCells} cells · mean ${fmt(c.mean)}`}
+              {`${plural(c.nCoverslips, 'coverslip')} · ${plural(c.nCells, 'cell')} · mean ${fmt(c.mean)}`}
             </text>
           </g>
         ))}
       </g>
       {drawn.length < data.points.length && (
         <text x={width - m.right} y={height - 6} textAnchor="end" fontSize={10} fill="#8a96a0">
-          {`drawing ${drawn.length} of ${data.points.length} cells; statistics use all`}
+          {`drawing ${drawn.length} of ${plural(data.points.length, 'cell')}; statistics use all`}
         </text>
       )}
     </svg>

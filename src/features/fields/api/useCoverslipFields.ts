@@ -2,12 +2,12 @@ import { useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
 import { CoverslipFieldsResponse } from '@shared/schemas/fields';
 
-export const coverslipFieldsQueryKey = (coverslipId: number) => ['fields', 'coverslip', coverslipId] as const;
+import { fieldKeys } from './keys';
 
 /** GET /api/coverslips/:id/fields — the coverslip's fields (deleted ones left out). */
 export function useCoverslipFields(coverslipId: number) {
   return useQuery({
-    queryKey: coverslipFieldsQueryKey(coverslipId),
+    queryKey: fieldKeys.coverslip(coverslipId),
     queryFn: ({ signal }) => api(`/coverslips/${coverslipId}/fields`, { schema: CoverslipFieldsResponse, signal }),
     enabled: Number.isInteger(coverslipId) && coverslipId > 0,
   });

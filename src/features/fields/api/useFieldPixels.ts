@@ -1,43 +1,41 @@
 import { useQuery } from '@tanstack/react-query';
 import { ApiError } from '@/lib/api';
+import { decodePixels, PixelCodecError, type PixelPlanes } from '@shared/pixels/codec';
+import { fieldKeys } from './keys';
 
-export const fieldPixelsQueryKey = (fieldId: number, z?: number | 'mip') => ['fields', fieldId, 'pixels', z ?? null] as const;
-
-export interface FieldPixelsData {
-  width: number;
-  height: number;
-  bitDepth: number;
-  format: 'uint' | 'float';
-  ch1: Uint16Array | Float32Array;
-  ch2: Uint16Array | Float32Array;
-  /** which z was used, in words */
+export interface FieldPixels extends PixelPlanes {
+  /** which z was used, in words (header x-syntopy-z) */
   zLabel: string;
 }
 
-/** Parses the GET /api/fields/:id/pixels body (ch1 then ch2, little-endian) and its x-syntopy-shape header. */
-export function parseFieldPixels(buf: ArrayBuffer, shape: string, zLabel = ''): FieldPixelsData {
-  const [w, h, bits, format] = shape.split(',');
-  const width = Number(w);
-  const height = Number(h);
-  const n = width * height;
-  const f = format === 'float' ? 'float' : 'uint';
-  const all = f === 'float' ? new Float32Array(buf) : new Uint16Array(buf);
-  if (all.length !== 2 * n) throw new Error(`pixel data has ${all.length} values, expected ${2 * n}`);
-  return { width, height, bitDepth: Number(bits), format: f, ch1: all.subarray(0, n), ch2: all.subarray(n), zLabel };
+/**
+ * Fetches and decodes GET /api/fields/:id/pixels?z= (format: shared/pixels/codec.ts). A message that does not
+ * follow the format is an error (status 422, not retried) that the workspace shows; it is never guessed at.
+ */
+export async function fetchFieldPixels(fieldId: number, z: number | 'mip' | undefined, signal?: AbortSignal): Promise<FieldPixels> {
+  const res = await fetch(`/api/fields/${fieldId}/pixels${z === undefined ? '' : `?z=${z}`}`, { credentials: 'same-origin', signal });
+  if (!res.ok) {
+    const isJson = (res.headers.get('content-type') ?? '').includes('json');
+    const body = isJson ? ((await res.json()) as { error?: string }) : {};
+    throw new ApiError(res.status, body.error ?? `could not load the pixels (${res.status})`);
+  }
+  const message = await res.arrayBuffer();
+  let planes: PixelPlanes;
+  try {
+    planes = decodePixels(message);
+  } catch (e) {
+    if (e instanceof PixelCodecError) throw new ApiError(422, `The pixels of this field could not be read: ${e.message}`);
+    throw e;
+  }
+  if (planes.depth !== 1) throw new ApiError(422, `The pixels of this field could not be read: expected one plane per channel, got ${planes.depth}`);
+  return { ...planes, zLabel: res.headers.get('x-syntopy-z') ?? '' };
 }
 
-/** GET /api/fields/:id/pixels?z= — both channels as typed arrays, for the pixel scatter. */
-export function useFieldPixels(fieldId: number, z?: number | 'mip', enabled = true) {
+/** Both channels of one slice (or the projection) as typed arrays, for the pixel scatter and live preview. */
+export function useFieldPixels(fieldId: number, z: number | 'mip' | undefined, enabled = true) {
   return useQuery({
-    queryKey: fieldPixelsQueryKey(fieldId, z),
-    queryFn: async ({ signal }) => {
-      const res = await fetch(`/api/fields/${fieldId}/pixels${z !== undefined ? `?z=${z}` : ''}`, { credentials: 'same-origin', signal });
-      if (!res.ok) {
-        const body = (await res.json().catch(() => ({}))) as { error?: string };
-        throw new ApiError(res.status, body.error ?? `request failed (${res.status})`);
-      }
-      return parseFieldPixels(await res.arrayBuffer(), res.headers.get('x-syntopy-shape') ?? '', res.headers.get('x-syntopy-z') ?? '');
-    },
+    queryKey: fieldKeys.pixels(fieldId, z),
+    queryFn: ({ signal }) => fetchFieldPixels(fieldId, z, signal),
     enabled: enabled && Number.isInteger(fieldId) && fieldId > 0,
     staleTime: Infinity,
     gcTime: 60_000,

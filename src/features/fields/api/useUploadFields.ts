@@ -1,7 +1,7 @@
 import { useCallback, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import { UploadResponse, type UploadFieldPlan, type UploadResult } from '@shared/schemas/fields';
-import { fieldsRootKey } from './keys';
+import { fieldKeys } from './keys';
 
 export interface UploadProgress {
   loaded: number;
@@ -43,7 +43,7 @@ export function useUploadFields(coverslipId: number) {
         const finish = (s: UploadState, results: UploadResult[]) => {
           xhrRef.current = null;
           setState(s);
-          void qc.invalidateQueries({ queryKey: fieldsRootKey });
+          void qc.invalidateQueries({ queryKey: fieldKeys.all });
           void qc.invalidateQueries({ queryKey: ['studies'] });
           resolve(results);
         };

@@ -10,6 +10,7 @@ import { inputClass } from '@/components/TextField';
 import type { UploadFieldPlan } from '@shared/schemas/fields';
 import { useUploadFields } from '../api/useUploadFields';
 import { formatBytes, inspectTiff, type FileChannels } from '../inspect';
+import { plural } from '@shared/format/plural';
 
 type Mode = 'multi' | 'pairs';
 
@@ -177,7 +178,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
                       <div className="flex flex-wrap items-center justify-between gap-2">
                         <span className="font-mono text-xs">
                           {r.file.name} · {formatBytes(r.file.size)}
-                          {r.info && !r.info.problem && ` · ${r.info.width}×${r.info.height}, ${r.info.channels.length} channel${r.info.channels.length === 1 ? '' : 's'}${r.info.sizeZ > 1 ? `, ${r.info.sizeZ} z slices` : ''}`}
+                          {r.info && !r.info.problem && ` · ${r.info.width}×${r.info.height}, ${plural(r.info.channels.length, 'channel')}${r.info.sizeZ > 1 ? `, ${r.info.sizeZ} z slices` : ''}`}
                         </span>
                         <Button size="sm" variant="ghost" disabled={busy} onClick={() => setMulti((cur) => cur.filter((x) => x.id !== r.id))} aria-label={`Remove ${r.file.name}`}>
                           Remove
@@ -296,7 +297,7 @@ function UploadResults({ state }: { state: Extract<ReturnType<typeof useUploadFi
       {state.phase === 'failed' && results.length === 0 && <ErrorNotice error={state.error} />}
       {results.length > 0 && (
         <p>
-          {ok} of {results.length} field{results.length === 1 ? '' : 's'} added.
+          {ok} of {plural(results.length, 'field')} added.
         </p>
       )}
       <ul className="flex flex-col gap-1" aria-label="Upload results">

@@ -5,6 +5,7 @@ import { ButtonLink } from '@/components/Button';
 import { Card } from '@/components/Card';
 import { EmptyState } from '@/components/EmptyState';
 import { focusRing } from '@/components/cx';
+import { plural } from '@shared/format/plural';
 
 export function BiologistPanel({ studies, meId }: { studies: StudySummary[]; meId: number }) {
   const mine = studies.filter((s) => s.ownerId === meId || s.permissions.includes('edit_structure'));
@@ -23,7 +24,7 @@ export function BiologistPanel({ studies, meId }: { studies: StudySummary[]; meI
                 {s.name}
               </Link>
               <p className="mt-1 text-xs text-ink-soft">
-                {s.conditionCount} conditions · {s.coverslipCount} coverslips · {s.fieldCount} fields
+                {plural(s.conditionCount, 'condition')} · {plural(s.coverslipCount, 'coverslip')} · {plural(s.fieldCount, 'field')}
               </p>
               {s.fieldCount === 0 && <p className="mt-2 text-xs text-warn">No fields uploaded yet.</p>}
               <div className="mt-3 flex flex-wrap gap-2">

@@ -3,11 +3,11 @@ import { Link } from 'react-router';
 import { useReviewQueueCount } from '../api/useReviewQueueCount';
 import { useOutbox } from '@/features/outbox/api/useOutbox';
 import { useUsers } from '@/features/people/api/useUsers';
-import { formatWhen } from '@/features/outbox/components/OutboxList';
 import { Card } from '@/components/Card';
 import { focusRing } from '@/components/cx';
 import { Tile } from './Tile';
 import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
+import { formatDateTime } from '@shared/format/datetime';
 
 export function ManagerPanel() {
   const review = useReviewQueueCount();
@@ -41,7 +41,7 @@ export function ManagerPanel() {
                   {m.subject || '(no subject)'}
                 </Link>
                 <span className="shrink-0 text-xs text-ink-soft">to {m.to}</span>
-                <span className="shrink-0 text-xs text-ink-faint">{formatWhen(m.receivedAt)}</span>
+                <span className="shrink-0 text-xs text-ink-faint">{formatDateTime(m.receivedAt)}</span>
               </li>
             ))}
           </ul>

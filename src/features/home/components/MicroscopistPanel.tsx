@@ -7,6 +7,7 @@ import { useRecentRuns } from '../api/useRecentRuns';
 import { Badge } from '@/components/Badge';
 import { Card } from '@/components/Card';
 import { focusRing } from '@/components/cx';
+import { plural } from '@shared/format/plural';
 
 const RUN_TONE = { queued: 'neutral', running: 'accent', done: 'accent', failed: 'danger', partial: 'warn' } as const;
 
@@ -45,7 +46,7 @@ export function MicroscopistPanel({ studies }: { studies: StudySummary[] }) {
                     {condition} · {coverslip.name}
                   </span>
                   <span className="ml-auto">
-                    {coverslip.fieldCount === 0 ? <Badge>no fields yet</Badge> : <Badge tone="warn">{coverslip.fieldCount} fields, no cells</Badge>}
+                    {coverslip.fieldCount === 0 ? <Badge>no fields yet</Badge> : <Badge tone="warn">{plural(coverslip.fieldCount, 'field')}, no cells</Badge>}
                   </span>
                 </li>
               ))}

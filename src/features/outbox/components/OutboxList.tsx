@@ -2,11 +2,7 @@
 import type { OutboxSummary } from '@shared/schemas/outbox';
 import { Badge } from '@/components/Badge';
 import { cx, focusRing } from '@/components/cx';
-
-export const formatWhen = (iso: string) => {
-  const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? iso : d.toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
-};
+import { formatDateTime } from '@shared/format/datetime';
 
 export function OutboxList({ messages, selected, onSelect }: { messages: OutboxSummary[]; selected: number | null; onSelect: (id: number) => void }) {
   return (
@@ -22,7 +18,7 @@ export function OutboxList({ messages, selected, onSelect }: { messages: OutboxS
             <span className="block truncate font-medium">{m.subject || '(no subject)'}</span>
             <span className="flex items-center gap-2 text-xs text-ink-soft">
               <span className="truncate">to {m.to}</span>
-              <span className="ml-auto shrink-0">{formatWhen(m.receivedAt)}</span>
+              <span className="ml-auto shrink-0">{formatDateTime(m.receivedAt)}</span>
               {m.via === 'relay' && <Badge>relayed</Badge>}
             </span>
           </button>

@@ -4,7 +4,7 @@ import { Card } from '@/components/Card';
 import { ErrorNotice } from '@/components/Caution';
 import { Loading } from '@/components/Spinner';
 import { LinkifiedText } from './LinkifiedText';
-import { formatWhen } from './OutboxList';
+import { formatDateTime } from '@shared/format/datetime';
 
 export function OutboxMessageView({ id }: { id: number }) {
   const msg = useOutboxMessage(id);
@@ -20,7 +20,7 @@ export function OutboxMessageView({ id }: { id: number }) {
         <dt className="text-ink-soft">To</dt>
         <dd>{m.to}</dd>
         <dt className="text-ink-soft">When</dt>
-        <dd>{formatWhen(m.receivedAt)}</dd>
+        <dd>{formatDateTime(m.receivedAt)}</dd>
         <dt className="text-ink-soft">Delivered</dt>
         <dd>{m.via === 'sink' ? 'kept here (no mail relay configured)' : 'handed to the mail relay'}</dd>
       </dl>

@@ -14,6 +14,7 @@ import { useUpdateLab } from '../api/useUpdateLab';
 import { useDeleteLab } from '../api/useDeleteLab';
 import { useAddLabMember } from '../api/useAddLabMember';
 import { useRemoveLabMember } from '../api/useRemoveLabMember';
+import { plural } from '@shared/format/plural';
 
 function LabCard({ lab, users, announce }: { lab: Lab; users: UserRow[]; announce: (m: string) => void }) {
   const rename = useUpdateLab();
@@ -42,7 +43,7 @@ function LabCard({ lab, users, announce }: { lab: Lab; users: UserRow[]; announc
       }
     >
       <p className="mb-2 text-xs text-ink-soft">
-        {lab.studyCount === 1 ? '1 study' : `${lab.studyCount} studies`} · {lab.members.length === 1 ? '1 member' : `${lab.members.length} members`}
+        {plural(lab.studyCount, 'study', 'studies')} · {plural(lab.members.length, 'member')}
       </p>
       {(add.isError || remove.isError) && <ErrorNotice error={add.error ?? remove.error} className="mb-2" />}
       {lab.members.length === 0 ? (

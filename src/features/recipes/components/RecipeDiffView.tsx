@@ -2,6 +2,7 @@
 import { ErrorNotice, Loading, cx } from '@/components';
 import { useRecipeDiff } from '../api/useRecipeDiff';
 import { RecipeStatusBadge } from './RecipeStatusBadge';
+import { plural, noun } from '@shared/format/plural';
 
 export function RecipeDiffView({ a, b }: { a: number; b: number }) {
   const q = useRecipeDiff(a, b);
@@ -11,7 +12,7 @@ export function RecipeDiffView({ a, b }: { a: number; b: number }) {
   const changed = entries.filter((e) => e.changed).length;
   return (
     <div>
-      <p className="mb-2 text-sm text-ink-soft">{changed === 0 ? 'The two versions are the same.' : `${changed} setting${changed === 1 ? '' : 's'} differ.`}</p>
+      <p className="mb-2 text-sm text-ink-soft">{changed === 0 ? 'The two versions are the same.' : `${plural(changed, 'setting')} ${noun(changed, 'differs', 'differ')}.`}</p>
       <table className="w-full table-fixed text-sm">
         <thead>
           <tr className="text-left">

@@ -5,6 +5,7 @@ import { EmptyState, ErrorNotice, Loading, cx, focusRing } from '@/components';
 import { RECIPE_STATUSES, type RecipeStatus } from '@shared/schemas/recipes';
 import { useRecipes } from '../api/useRecipes';
 import { RecipeStatusBadge, RECIPE_STATUS_LABEL } from './RecipeStatusBadge';
+import { formatDateTime } from '@shared/format/datetime';
 
 export function RecipeList({ initial = ['draft', 'submitted', 'approved', 'returned'] }: { initial?: RecipeStatus[] }) {
   const [shown, setShown] = useState<RecipeStatus[]>(initial);
@@ -53,7 +54,7 @@ export function RecipeList({ initial = ['draft', 'submitted', 'approved', 'retur
                   <RecipeStatusBadge status={r.status} />
                 </td>
                 <td className="py-2 pr-4">{r.proposer?.name ?? '—'}</td>
-                <td className="py-2 pr-4">{r.reviewer ? `${r.reviewer.name}${r.reviewedAt ? ` · ${r.reviewedAt.slice(0, 10)}` : ''}` : '—'}</td>
+                <td className="py-2 pr-4">{r.reviewer ? `${r.reviewer.name}${r.reviewedAt ? ` · ${formatDateTime(r.reviewedAt)}` : ''}` : '—'}</td>
               </tr>
             ))}
           </tbody>

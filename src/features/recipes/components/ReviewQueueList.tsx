@@ -2,6 +2,7 @@
 import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading, cx, focusRing } from '@/components';
 import { useRecipes } from '../api/useRecipes';
+import { formatDateTime } from '@shared/format/datetime';
 
 /** `reviewer`: the viewer is a facility manager (wording addresses them); otherwise the list is read-only information. */
 export function ReviewQueueList({ compact = false, reviewer = true }: { compact?: boolean; reviewer?: boolean }) {
@@ -24,7 +25,7 @@ export function ReviewQueueList({ compact = false, reviewer = true }: { compact?
           </Link>
           <span className="text-sm text-ink-soft">
             from {r.proposer?.name ?? 'someone'}
-            {r.submittedAt ? `, submitted ${r.submittedAt.slice(0, 16).replace('T', ' ')} UTC` : ''}
+            {r.submittedAt ? `, submitted ${formatDateTime(r.submittedAt)}` : ''}
           </span>
         </li>
       ))}

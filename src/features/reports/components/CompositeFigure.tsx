@@ -1,5 +1,6 @@
 /** A representative field: the frozen two-channel composite (channel 1 green, channel 2 magenta) with the cell outlines drawn over it. */
 import type { Composite } from '@shared/schemas/reports';
+import { plural } from '@shared/format/plural';
 
 function Outline({ g, excluded, selected }: { g: Record<string, unknown>; excluded: boolean; selected: boolean }) {
   const common = {
@@ -67,7 +68,7 @@ export function CompositeFigure({
         </svg>
       </div>
       <figcaption className="mt-1 text-xs text-ink-soft">
-        <span className="font-medium text-ink">{conditionName}</span> · {composite.coverslipName} · {composite.fieldName} ({width} × {height} px, {composite.outlines.length} cells; dashed = excluded; yellow = the cell in the pixel scatter).
+        <span className="font-medium text-ink">{conditionName}</span> · {composite.coverslipName} · {composite.fieldName} ({width} × {height} px, {plural(composite.outlines.length, 'cell')}; dashed = excluded; yellow = the cell in the pixel scatter).
         Channel 1 <span className="text-ch1">green</span>, channel 2 <span className="text-ch2">magenta</span>
         {composite.ranges && `, shown ${composite.ranges.lo1}–${composite.ranges.hi1} and ${composite.ranges.lo2}–${composite.ranges.hi2}`}.
       </figcaption>

@@ -6,6 +6,7 @@
 import type { ReportCoefficient, ReportSnapshot } from '@shared/schemas/reports';
 import { COEFFICIENT_LABELS } from '@shared/schemas/reports';
 import { coverslipColour, fmtNum } from './palette';
+import { plural } from '@shared/format/plural';
 
 const W = 560;
 const H = 300;
@@ -64,7 +65,7 @@ export function ReplicatePlot({ snapshot, coefficient }: { snapshot: ReportSnaps
                 {c.name}
               </text>
               <text x={cx(i)} y={H - M.b + 30} fontSize={9} textAnchor="middle" fill="#4a5863">
-                {c.cellsIncluded} cells · {c.coverslipsUsed} coverslips
+                {plural(c.cellsIncluded, 'cell')} · {plural(c.coverslipsUsed, 'coverslip')}
               </text>
               {cells
                 .filter((x) => x.conditionId === c.id)
@@ -84,7 +85,7 @@ export function ReplicatePlot({ snapshot, coefficient }: { snapshot: ReportSnaps
                     stroke="#1f2a33"
                     strokeWidth={1.2}
                   >
-                    <title>{`${s.coverslipName}: mean ${fmtNum(s.mean)} (${s.n} cells)`}</title>
+                    <title>{`${s.coverslipName}: mean ${fmtNum(s.mean)} (${plural(s.n, 'cell')})`}</title>
                   </circle>
                 ))}
             </g>

@@ -3,8 +3,9 @@ import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading } from '@/components';
 import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/reports';
 import { useReports } from '../api/useReports';
-import { fmtDate } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { formatDateTime } from '@shared/format/datetime';
+import { plural } from '@shared/format/plural';
 
 export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAction?: React.ReactNode }) {
   const q = useReports(studyId);
@@ -25,8 +26,8 @@ export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAct
               {r.title}
             </Link>
             <p className="text-xs text-ink-soft">
-              {fmtDate(r.createdAt)}
-              {r.createdBy && ` · ${r.createdBy}`} · {r.cells} cells · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
+              {formatDateTime(r.createdAt)}
+              {r.createdBy && ` · ${r.createdBy}`} · {plural(r.cells, 'cell')} · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
             </p>
           </div>
           {r.anyProvisional && <ProvisionalBadge />}

@@ -12,9 +12,11 @@ import { COEFFICIENT_LABELS, CSV_TABLES, type CsvTable, type ReportCoefficient, 
 import { ReplicatePlot } from './ReplicatePlot';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
-import { fmtDate, fmtNum, fmtP } from './palette';
+import { fmtNum, fmtP } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import './report-print.css';
+import { formatDateTime } from '@shared/format/datetime';
+import { plural, noun } from '@shared/format/plural';
 
 /** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
 function frozenComparison(v: unknown): Comparison | null {
@@ -64,7 +66,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
               {report.title}
             </h1>
             <p className="mt-1 text-sm text-ink-soft">
-              Frozen {fmtDate(s.createdAt)}
+              Frozen {formatDateTime(s.createdAt)}
               {report.createdBy && ` by ${report.createdBy}`} · {s.coefficients.map((k) => COEFFICIENT_LABELS[k]).join(', ')}
             </p>
             <div className="mt-2 flex flex-wrap gap-2">
@@ -234,14 +236,14 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         <ul className="mb-3 list-disc pl-5 text-sm">
           {s.conditions.map((c) => (
             <li key={c.id}>
-              <span className="font-medium">{c.name}</span>: {c.cellsIncluded} cells on {c.coverslipsUsed} coverslips
+              <span className="font-medium">{c.name}</span>: {plural(c.cellsIncluded, 'cell')} on {plural(c.coverslipsUsed, 'coverslip')}
               {c.cellsExcluded > 0 && `, ${c.cellsExcluded} excluded`} ({c.coverslips.map((x) => `${x.name}: ${x.cellsIncluded}`).join(', ')})
             </li>
           ))}
         </ul>
         <p className="text-sm text-ink-soft">
-          {s.fields.length} fields; runs {s.runs.map((r) => `#${r.id}${r.provisional ? ' (provisional)' : ''}`).join(', ') || 'none'}.
-          {s.saturation.fieldsWithSaturation > 0 && ` ${s.saturation.fieldsWithSaturation} fields contain saturated pixels.`}
+          {plural(s.fields.length, 'field')}; {noun(s.runs.length, 'run')} {s.runs.map((r) => `#${r.id}${r.provisional ? ' (provisional)' : ''}`).join(', ') || 'none'}.
+          {s.saturation.fieldsWithSaturation > 0 && ` ${plural(s.saturation.fieldsWithSaturation, 'field')} ${noun(s.saturation.fieldsWithSaturation, 'contains', 'contain')} saturated pixels.`}
         </p>
         {s.exclusions.length > 0 && (
           <div className="mt-3 overflow-x-auto">

@@ -1,6 +1,7 @@
 /** Pixel scatter of one cell: a 2-D histogram of (channel 1, channel 2) with the cell's thresholds as lines. */
 import type { CellScatter } from '@shared/schemas/reports';
 import { fmtNum } from './palette';
+import { plural } from '@shared/format/plural';
 
 export function ScatterFigure({ scatter }: { scatter: CellScatter }) {
   const S = 256;
@@ -27,7 +28,7 @@ export function ScatterFigure({ scatter }: { scatter: CellScatter }) {
         <text x={-10} y={S / 2} fontSize={11} textAnchor="middle" fill="#1f2a33" transform={`rotate(-90 -10 ${S / 2})`}>channel 2 (0–{fmtNum(max2, 0)})</text>
       </svg>
       <figcaption className="mt-1 text-xs text-ink-soft">
-        {scatter.cellName} in {scatter.fieldName}: {scatter.pixels} pixels, raw intensities, shade on a log scale. Dashed lines: thresholds T1 = {fmtNum(scatter.threshold1, 1)}, T2 = {fmtNum(scatter.threshold2, 1)}.
+        {scatter.cellName} in {scatter.fieldName}: {plural(scatter.pixels, 'pixel')}, raw intensities, shade on a log scale. Dashed lines: thresholds T1 = {fmtNum(scatter.threshold1, 1)}, T2 = {fmtNum(scatter.threshold2, 1)}.
       </figcaption>
     </figure>
   );

@@ -4,4 +4,3 @@ export const coverslipColour = (i: number) => COVERSLIP_COLOURS[((i % COVERSLIP_
 
 export const fmtNum = (v: number | null | undefined, digits = 3) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : Number(v.toFixed(digits)).toString());
 export const fmtP = (p: number | null | undefined) => (p === null || p === undefined ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3));
-export const fmtDate = (iso: string) => new Date(iso).toLocaleString(undefined, { year: 'numeric', month: 'short', day: 'numeric', hour: '2-digit', minute: '2-digit' });

@@ -4,6 +4,8 @@ import { describeSettings } from '@shared/schemas/recipes';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { useRun } from '../api/useRun';
 import { RunProgress, runStatusLabel } from './RunProgress';
+import { formatDateTime } from '@shared/format/datetime';
+import { plural, noun } from '@shared/format/plural';
 
 export function RunDetailPanel({ id }: { id: number }) {
   const q = useRun(id);
@@ -19,11 +21,11 @@ export function RunDetailPanel({ id }: { id: number }) {
         <Badge>{runStatusLabel(r.status)}</Badge>
         {r.provisional && <ProvisionalBadge />}
       </div>
-      {r.provisional && <Caution>This run used a recipe version that was not approved; its {r.measurements} measurements are provisional.</Caution>}
+      {r.provisional && <Caution>This run used a recipe version that was not approved; its {plural(r.measurements, 'measurement')} {noun(r.measurements, 'is', 'are')} provisional.</Caution>}
       <RunProgress run={r} />
       <p className="text-xs text-ink-soft">
-        Engine {r.engineVersion ?? '—'} · seed {r.seed} · started {r.startedAt?.slice(0, 19).replace('T', ' ') ?? '—'}
-        {r.finishedAt ? ` · finished ${r.finishedAt.slice(0, 19).replace('T', ' ')}` : ''} · {r.measurements} cells measured
+        Engine {r.engineVersion ?? '—'} · seed {r.seed} · started {formatDateTime(r.startedAt)}
+        {r.finishedAt ? ` · finished ${formatDateTime(r.finishedAt)}` : ''} · {plural(r.measurements, 'cell')} measured
       </p>
       <table className="w-full text-sm">
         <thead className="text-left text-ink-soft">

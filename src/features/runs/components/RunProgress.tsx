@@ -1,6 +1,7 @@
 /** Fields done out of the total, as a bar and in words, with the field being computed. */
 import type { RunSummary } from '@shared/schemas/runs';
 import { cx } from '@/components';
+import { plural } from '@shared/format/plural';
 
 export function RunProgress({ run }: { run: RunSummary }) {
   const pct = run.fieldsTotal ? Math.round((100 * run.fieldsDone) / run.fieldsTotal) : 0;
@@ -11,7 +12,7 @@ export function RunProgress({ run }: { run: RunSummary }) {
         <div className={cx('h-full rounded-full', run.fieldsFailed ? 'bg-warn' : 'bg-accent', active && 'transition-[width]')} style={{ width: `${pct}%` }} />
       </div>
       <div className="mt-1 text-xs text-ink-soft">
-        {run.fieldsDone} of {run.fieldsTotal} field{run.fieldsTotal === 1 ? '' : 's'}
+        {run.fieldsDone} of {plural(run.fieldsTotal, 'field')}
         {run.fieldsFailed ? `, ${run.fieldsFailed} failed` : ''}
         {active && run.currentField ? ` · now: ${run.currentField}` : ''}
       </div>

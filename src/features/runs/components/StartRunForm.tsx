@@ -5,6 +5,7 @@ import { useRecipes } from '@/features/recipes/api/useRecipes';
 import { useStudy } from '@/features/studies/api/useStudy';
 import type { RunScopeKind } from '@shared/schemas/runs';
 import { useStartRun } from '../api/useStartRun';
+import { plural } from '@shared/format/plural';
 
 /** A coverslip's name as written, with the word "Coverslip" only when the name does not already say it ("Coverslip 1", never "Coverslip Coverslip 1"). */
 export function coverslipLabel(name: string) {
@@ -49,7 +50,7 @@ export function StartRunForm({ studyId, onStarted }: { studyId: number; onStarte
               <option value={`condition:${c.id}`}>All of {c.name}</option>
               {c.coverslips.map((cs) => (
                 <option key={cs.id} value={`coverslip:${cs.id}`}>
-                  {coverslipLabel(cs.name)} · {c.name} ({cs.fieldCount} field{cs.fieldCount === 1 ? '' : 's'})
+                  {coverslipLabel(cs.name)} · {c.name} ({plural(cs.fieldCount, 'field')})
                 </option>
               ))}
             </optgroup>

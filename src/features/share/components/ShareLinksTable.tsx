@@ -5,8 +5,8 @@ import type { ShareLinkSummary } from '@shared/schemas/shares';
 import { useShares } from '../api/useShares';
 import { useRevokeShare } from '../api/useRevokeShare';
 import { useResendShare } from '../api/useResendShare';
+import { formatDateTime } from '@shared/format/datetime';
 
-const when = (iso: string | null) => (iso ? new Date(iso).toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' }) : '—');
 const TONE = { active: 'accent', revoked: 'danger', expired: 'neutral' } as const;
 const STATE_WORD = { active: 'active', revoked: 'withdrawn', expired: 'expired' } as const;
 
@@ -44,9 +44,9 @@ export function ShareLinksTable({ reportId }: { reportId: number }) {
               <td className="py-1.5 pr-3">
                 <Badge tone={TONE[l.state]}>{STATE_WORD[l.state]}</Badge>
               </td>
-              <td className="py-1.5 pr-3">{when(l.expiresAt)}</td>
+              <td className="py-1.5 pr-3">{formatDateTime(l.expiresAt)}</td>
               <td className="py-1.5 pr-3" title={l.openings[0] ? `${l.openings[0].ip ?? ''} ${l.openings[0].userAgent ?? ''}` : undefined}>
-                {when(l.lastOpenedAt)}
+                {formatDateTime(l.lastOpenedAt)}
               </td>
               <td className="py-1.5 pr-3 text-right font-mono">{l.openCount}</td>
               <td className="py-1.5 text-right whitespace-nowrap">

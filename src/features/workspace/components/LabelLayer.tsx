@@ -1,6 +1,7 @@
 /** Cells imported from a label image, painted from their run-length masks (exact pixels, no tracing). */
 import { useEffect, useRef } from 'react';
 import type { FieldDetail } from '@shared/schemas/fields';
+import { decodeRuns } from '@shared/analysis/rle';
 import type { Outline } from '../outline-state';
 
 export function LabelLayer({ field, outlines, selected }: { field: FieldDetail; outlines: Outline[]; selected: string | null }) {
@@ -22,8 +23,7 @@ export function LabelLayer({ field, outlines, selected }: { field: FieldDetail; 
     for (const o of labels) {
       if (o.geometry.kind !== 'label') continue;
       const col = o.key === selected ? chosen : plain;
-      const rle = o.geometry.rle;
-      for (let k = 0; k < rle.length; k += 2) d.fill(col, rle[k], rle[k] + rle[k + 1]);
+      for (const i of decodeRuns(o.geometry.rle, W * H)) d[i] = col;
     }
     ctx.putImageData(im, 0, 0);
     // eslint-disable-next-line react-hooks/exhaustive-deps

@@ -5,6 +5,7 @@
  */
 import type { RegionResult } from '@shared/analysis/types';
 import { Badge } from '@/components';
+import { plural } from '@shared/format/plural';
 
 export const COEFFICIENTS: { key: keyof RegionResult; label: string; title: string }[] = [
   { key: 'pearson', label: "Pearson's r", title: 'linear correlation' },
@@ -53,7 +54,7 @@ export function LivePreview({ result, regionName, t1, t2, ms, pending, stale }: 
           </table>
           {stale && <p className="mt-1 text-xs text-ink-soft">Updating for the new thresholds or outline…</p>}
           <p className="mt-1 text-xs text-ink-faint">
-            {result.pixels.toLocaleString()} pixels · T1 {round(t1)}, T2 {round(t2)} · raw values, no background subtraction, no randomization test · {ms.toFixed(0)} ms in the browser.
+            {plural(result.pixels, 'pixel')} · T1 {round(t1)}, T2 {round(t2)} · raw values, no background subtraction, no randomization test · {ms.toFixed(0)} ms in the browser.
             A run with an approved recipe gives the recorded numbers.
           </p>
         </>

@@ -4,6 +4,7 @@ import { Button, Dialog, ErrorNotice } from '@/components';
 import type { AutoOutlineRequest } from '@shared/schemas/cells';
 import { useImportLabels } from '../api/useImportLabels';
 import { useAutoOutline } from '../api/useAutoOutline';
+import { plural } from '@shared/format/plural';
 
 export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { fieldId: number; open: boolean; onClose: () => void; size: [number, number]; onDone: (msg: string) => void }) {
   const m = useImportLabels(fieldId);
@@ -28,7 +29,7 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
                 { file, replace },
                 {
                   onSuccess: (r) => {
-                    onDone(`${r.labels} cell${r.labels === 1 ? '' : 's'} imported from ${file.name}`);
+                    onDone(`${plural(r.labels, 'cell')} imported from ${file.name}`);
                     onClose();
                   },
                 },
@@ -89,7 +90,7 @@ export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z }: 
             onClick={() =>
               m.mutate(body(), {
                 onSuccess: (r) => {
-                  onDone(`${r.cells.length} cell${r.cells.length === 1 ? '' : 's'} found (level ${r.level === null ? '—' : Number(r.level.toPrecision(5))}; ${r.droppedSmall} too small, ${r.droppedLarge} too large left out)`);
+                  onDone(`${plural(r.cells.length, 'cell')} found (level ${r.level === null ? '—' : Number(r.level.toPrecision(5))}; ${r.droppedSmall} too small, ${r.droppedLarge} too large left out)`);
                   onClose();
                 },
               })

@@ -7,6 +7,7 @@
 import { useEffect, useRef, useState } from 'react';
 import type { ScatterView } from '../useScatter';
 import { NumberText, readNumberText } from '@shared/schemas/common';
+import { plural } from '@shared/format/plural';
 
 const SIZE = 264;
 const STOPS: [number, number, number][] = [
@@ -89,7 +90,7 @@ export function PixelScatter({
     <div>
       <div className="flex items-baseline justify-between text-xs text-ink-soft">
         <span>
-          {regionName} · {data.n.toLocaleString()} pixels
+          {regionName} · {plural(data.n, 'pixel')}
         </span>
         <span title="time for the last update in the worker">{data.ms.toFixed(0)} ms</span>
       </div>

@@ -9,6 +9,7 @@ import type { Cell } from '@shared/schemas/cells';
 import { SMALL_CELL_PIXELS } from './CellsPanel';
 import { fmtCoef } from './LivePreview';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { noun } from '@shared/format/plural';
 
 const COLS: { key: 'pearson' | 'spearman' | 'kendallTauB' | 'mandersM1' | 'mandersM2' | 'icq'; label: string }[] = [
   { key: 'pearson', label: 'r' },
@@ -96,5 +97,5 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
 function runWords(runIds: (number | null)[]) {
   const ids = [...new Set(runIds.filter((id): id is number => id !== null))].sort((a, b) => a - b);
   if (ids.length === 0) return 'measured';
-  return ids.length === 1 ? `latest run #${ids[0]}` : `runs ${ids.map((id) => `#${id}`).join(', ')}`;
+  return `${ids.length === 1 ? 'latest ' : ''}${noun(ids.length, 'run')} ${ids.map((id) => `#${id}`).join(', ')}`;
 }

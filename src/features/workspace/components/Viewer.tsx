@@ -10,6 +10,7 @@ import { cx } from '@/components';
 import { boxFromDrag, fitView, freehandFromStroke, ovalFromDrag, pathOf, polygonFromClicks, previewMax, scaleBar, toImage, zoomAt, type View } from '../draw';
 import { handlesOf, nearestEdge, type Outline, type OutlineAction, type Point } from '../outline-state';
 import { LabelLayer } from './LabelLayer';
+import { plural } from '@shared/format/plural';
 
 export type Tool = 'select' | 'polygon' | 'box' | 'oval' | 'freehand';
 
@@ -404,7 +405,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
       </div>
       {draft.length > 0 && (
         <div className="pointer-events-none absolute left-1/2 top-2 -translate-x-1/2 rounded bg-black/60 px-3 py-1 text-xs text-white">
-          {draft.length} point{draft.length === 1 ? '' : 's'} · click the first point, double-click or press Enter to close · Esc cancels
+          {plural(draft.length, 'point')} · click the first point, double-click or press Enter to close · Esc cancels
         </div>
       )}
       <div className="absolute bottom-2 right-2 flex gap-1" onPointerDown={(e) => e.stopPropagation()}>
