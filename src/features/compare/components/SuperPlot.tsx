@@ -9,6 +9,7 @@ import { forwardRef, useMemo } from 'react';
 import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3';
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor, coverslipMarker, type Marker } from './palette';
+import { formatMagnitude, formatTick } from '@shared/format';
 
 const SYMBOLS: Record<Marker, SymbolType> = {
   circle: symbolCircle,
@@ -33,7 +34,6 @@ function jitter(id: number) {
   return ((h >>> 0) / 4294967295) * 2 - 1;
 }
 
-const fmt = (v: number | null) => (v === null ? '—' : Math.abs(v) >= 100 ? v.toFixed(0) : v.toFixed(3));
 
 export type SuperPlotProps = { data: Comparison; width?: number; height?: number; title?: string };
 
@@ -104,7 +104,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
           <g key={t} transform={`translate(0,${y(t)})`}>
             <line x1={0} x2={iw} stroke="#1f2a33" strokeOpacity={0.08} />
             <text x={-8} dy="0.32em" textAnchor="end" fontSize={11} fill="#4a5863">
-              {t}
+              {formatTick(t)}
             </text>
           </g>
         ))}
@@ -149,7 +149,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
                 stroke="#ffffff"
                 strokeWidth={1.5}
               >
-                <title>{`${s.name}: mean ${fmt(s.mean)}, ${s.nCells} cells`}</title>
+                <title>{`${s.name}: mean ${formatMagnitude(s.mean)}, ${s.nCells} cells`}</title>
               </path>
             ),
           )}
@@ -162,7 +162,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
               {c.name}
             </text>
             <text y={34} textAnchor="middle" fontSize={11} fill="#4a5863">
-              {`${c.nCoverslips} coverslips · ${c.nCells} cells · mean ${fmt(c.mean)}`}
+              {`${c.nCoverslips} coverslips · ${c.nCells} cells · mean ${formatMagnitude(c.mean)}`}
             </text>
           </g>
         ))}

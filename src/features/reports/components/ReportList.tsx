@@ -1,7 +1,7 @@
 /** The study's reports, newest first. */
 import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading } from '@/components';
-import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/reports';
+import { COEFFICIENTS } from '@shared/coefficients';
 import { useReports } from '../api/useReports';
 import { fmtDate } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
@@ -26,7 +26,7 @@ export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAct
             </Link>
             <p className="text-xs text-ink-soft">
               {fmtDate(r.createdAt)}
-              {r.createdBy && ` · ${r.createdBy}`} · {r.cells} cells · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
+              {r.createdBy && ` · ${r.createdBy}`} · {r.cells} cells · {r.coefficients.map((k) => (COEFFICIENTS.find((c) => c.key === k)?.label ?? k)).join(', ')}
             </p>
           </div>
           {r.anyProvisional && <ProvisionalBadge />}
