@@ -1,7 +1,7 @@
 /**
  * The coefficient registry: one entry per number the engine reports per cell (`MEASURE_KEYS` of
  * shared/analysis/types.ts, in that order). Everything that lists coefficients derives from here: the
- * measurements table's column names (server/db/schema.ts, checked by tests/coefficients.test.ts), the zod
+ * measurements table's column names (server/db/schema.ts, checked by tests/coefficients/registry.test.ts), the zod
  * schemas (Cell table columns, Compare and report choices), CSV headers, the `analyze` table, the Cell table,
  * Compare, the workspace tables, the report and its methods paragraph with its references.
  *

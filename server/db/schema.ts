@@ -207,7 +207,7 @@ export const runFields = sqliteTable('run_fields', {
 /**
  * One row per measured cell and run. The measure columns are written out for Drizzle; their names are those of
  * the coefficient registry (shared/coefficients.ts `column`, property = registry key), which
- * tests/coefficients.test.ts checks entry by entry.
+ * tests/coefficients/registry.test.ts checks entry by entry.
  */
 export const measurements = sqliteTable('measurements', {
   id: id(),
