@@ -30,6 +30,8 @@ import {
   type ThresholdInfo,
   type ThresholdOptions,
 } from '../../shared/analysis/index';
+import { COEFFICIENTS } from '../../shared/coefficients';
+import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
 import { readLabelImage } from '../images/mask';
 
@@ -275,8 +277,12 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, regions: results };
 }
 
-const fmt = (v: number | null) => (v === null ? 'n/a' : v.toFixed(4));
-const fmtT = (v: number | null) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : v.toFixed(3));
+/** Terminal numbers: 4 decimals (p-values in scientific notation), "n/a" when undefined, never "-0.0000". */
+const fmt = (v: number | null, kind: NumberKind) => (v === null ? 'n/a' : kind === 'pValue' ? formatMagnitude(v) : kind === 'count' ? formatCount(v) : formatFixed(v, 4));
+const fmtT = (v: number | null) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : formatFixed(v, 3));
+
+/** The registry measures with a terminal header (`cliLabel`, shared/coefficients.ts), in registry order. */
+const CLI_COLUMNS = COEFFICIENTS.filter((c) => c.cliLabel !== null);
 
 export function formatTable(out: AnalyzeOutput): string {
   const t = out.thresholds;
@@ -285,18 +291,7 @@ export function formatTable(out: AnalyzeOutput): string {
   ];
   const cols: [string, (r: AnalyzeOutput['regions'][number]) => string][] = [
     ['region', (r) => String(r.label)],
-    ['pixels', (r) => String(r.pixels)],
-    ['r', (r) => fmt(r.pearson)],
-    ['rho', (r) => fmt(r.spearman)],
-    ['tau-b', (r) => fmt(r.kendallTauB)],
-    ['dCor', (r) => fmt(r.distanceCorrelation)],
-    ['dCor p', (r) => (r.dcorPValue === null ? 'n/a' : r.dcorPValue.toExponential(2))],
-    ['M1', (r) => fmt(r.mandersM1)],
-    ['M2', (r) => fmt(r.mandersM2)],
-    ['overlap', (r) => fmt(r.overlap)],
-    ['k1', (r) => fmt(r.k1)],
-    ['k2', (r) => fmt(r.k2)],
-    ['ICQ', (r) => fmt(r.icq)],
+    ...CLI_COLUMNS.map((c): [string, (r: AnalyzeOutput['regions'][number]) => string] => [c.cliLabel!, (r) => fmt(r[c.key], c.format)]),
   ];
   const rows = [cols.map((c) => c[0]), ...out.regions.map((r) => cols.map((c) => c[1](r)))];
   const widths = cols.map((_, k) => Math.max(...rows.map((row) => row[k].length)));

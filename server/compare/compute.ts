@@ -12,15 +12,15 @@
  * - Histograms of the coefficient and of the per-cell mean intensity of each channel, per condition, with
  *   the chi-squared and Earth Mover's distances between every pair of conditions.
  *
- * Used by GET /api/studies/:id/compare (server/routes/measurements.ts) and by report snapshots (H8).
+ * Used by GET /api/studies/:id/compare (server/routes/measurements.ts) and by report snapshots .
  */
 import type { AppContext } from '../context.js';
 import { badRequest } from '../http/errors.js';
+import { byKey } from '../../shared/coefficients.js';
+import { formatMagnitude, formatP } from '../../shared/format.js';
 import {
   Comparison,
-  COMPARE_LABELS,
   CompareQuery,
-  FISHER_COEFFICIENTS,
   type CompareOptions,
   type ConditionStats,
   type CoverslipStats,
@@ -43,7 +43,7 @@ import {
   welchT,
   type TestResult,
 } from '../../shared/stats/index.js';
-import { COLUMN_SQL, measurementJoin, resolveSource } from './source.js';
+import { measurementJoin, resolveSource } from './source.js';
 import { plural } from '../../shared/format/plural.js';
 
 const TEST_LABELS: Record<TestRow['test'], string> = {
@@ -53,34 +53,10 @@ const TEST_LABELS: Record<TestRow['test'], string> = {
   kruskal_wallis: 'Kruskal–Wallis test',
 };
 
-/** Natural range of each coefficient for the histogram axis (null: use the data range). */
-const RANGES: Record<string, [number, number] | null> = {
-  pearson: [-1, 1],
-  spearman: [-1, 1],
-  kendallTauB: [-1, 1],
-  distanceCorrelation: [0, 1],
-  dcorBiasCorrectedSq: null,
-  mandersM1: [0, 1],
-  mandersM2: [0, 1],
-  overlap: [0, 1],
-  k1: null,
-  k2: null,
-  icq: [-0.5, 0.5],
-};
-
 /** resamples × cells drawn per comparison, at most */
 export const BOOTSTRAP_BUDGET = 5e7;
 
 const nn = (v: number | null | undefined) => (v === null || v === undefined || !Number.isFinite(v) ? null : v);
-
-export function fmt(v: number | null): string {
-  if (v === null) return 'undefined';
-  if (v === 0) return '0';
-  const a = Math.abs(v);
-  if (a >= 1000 || a < 0.001) return v.toExponential(2);
-  return a >= 10 ? v.toFixed(1) : v.toFixed(3);
-}
-export const fmtP = (p: number | null) => (p === null ? 'p undefined' : p < 0.001 ? 'p < 0.001' : `p = ${p.toFixed(3)}`);
 
 interface CellRow {
   cellId: number;
@@ -98,7 +74,8 @@ interface CellRow {
 export async function computeComparison(ctx: AppContext, studyId: number, options: CompareOptions): Promise<Comparison> {
   const opts = CompareQuery.parse({ ...options, conditionIds: options.conditionIds?.join(',') || undefined });
   const coefficient = opts.coefficient;
-  const fisher = FISHER_COEFFICIENTS.includes(coefficient);
+  const entry = byKey(coefficient);
+  const fisher = entry.fisherZ;
   const db = ctx.db.$client;
   const study = db.prepare('SELECT id FROM studies WHERE id = ?').get(studyId);
   if (!study) throw badRequest(`no study with id ${studyId}`);
@@ -120,7 +97,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   const params: Record<string, unknown> = { studyId };
   const rows = db
     .prepare(
-      `SELECT c.id AS cellId, f.id AS fieldId, cs.id AS coverslipId, cd.id AS conditionId, ${COLUMN_SQL[coefficient]} AS value,
+      `SELECT c.id AS cellId, f.id AS fieldId, cs.id AS coverslipId, cd.id AS conditionId, m.${entry.column} AS value,
         m.mean1 AS mean1, m.mean2 AS mean2, c.excluded AS excluded, m.provisional AS provisional,
         (coalesce(m.saturated_fraction1, 0) > 0 OR coalesce(m.saturated_fraction2, 0) > 0) AS saturated
       FROM cells c
@@ -233,7 +210,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
         distances.push({ a: conds[a].id, b: conds[b].id, chiSquared: nn(chiSquaredDistance(byCondition[a].counts, byCondition[b].counts)), emd: nn(earthMoversDistance(byCondition[a].counts, byCondition[b].counts, width)) });
     histograms.push({ key, label, edges, byCondition, distances });
   };
-  addHist('coefficient', COMPARE_LABELS[coefficient], (r) => r.value, RANGES[coefficient]);
+  addHist('coefficient', entry.label, (r) => r.value, entry.axis ? [entry.axis[0], entry.axis[1]] : null);
   addHist('mean1', 'mean intensity, channel 1', (r) => r.mean1, null);
   addHist('mean2', 'mean intensity, channel 2', (r) => r.mean2, null);
 
@@ -243,7 +220,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   for (const c of conditions) {
     if (c.nCoverslips < 3) warnings.push(`${capitalize(c.name)} has ${plural(c.nCoverslips, 'coverslip')} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
   }
-  if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${COMPARE_LABELS[coefficient]} (for example no pixels above threshold or a constant channel) and are left out.`);
+  if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${entry.label} (for example no pixels above threshold or a constant channel) and are left out.`);
   if (omitted.excluded) warnings.push(`${omitted.excluded} excluded cell${omitted.excluded === 1 ? ' is' : 's are'} left out (reasons in the Cell table).`);
   if (omitted.provisional) warnings.push(`${omitted.provisional} cell values come from provisional measurements (a recipe not yet approved).`);
   if (omitted.saturated) warnings.push(`${omitted.saturated} cells contain saturated pixels, which bias co-localization coefficients.`);
@@ -258,7 +235,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   if (resamples < opts.resamples) warnings.push(`With ${nUsed} cells the bootstrap used ${resamples} resamples instead of ${opts.resamples} to keep the page responsive.`);
   if (fisher) warnings.push("Correlation coefficients are averaged through Fisher's z (|r| clamped at 1 − 1e−7).");
 
-  const label = COMPARE_LABELS[coefficient];
+  const label = entry.label;
   const summary = sentence(label, fisher, conditions, effects, tests, opts.confidence);
 
   return Comparison.parse({
@@ -290,17 +267,17 @@ function sentence(label: string, fisher: boolean, conditions: ConditionStats[], 
   const pct = `${Math.round(conf * 100)}%`;
   const withData = conditions.filter((c) => c.nCoverslips > 0);
   if (withData.length === 0) return `No measured cells to compare for ${label}.`;
-  const means = withData.map((c) => `${fmt(c.mean)} in ${c.name} (${plural(c.nCoverslips, 'coverslip')}, ${plural(c.nCells, 'cell')})`).join(', ');
+  const means = withData.map((c) => `${formatMagnitude(c.mean)} in ${c.name} (${plural(c.nCoverslips, 'coverslip')}, ${plural(c.nCells, 'cell')})`).join(', ');
   const head = `Mean of coverslip means of ${label}${fisher ? " (averaged through Fisher's z)" : ''}: ${means}.`;
   if (withData.length === 1) return `${head} Only one condition has data, so nothing is compared.`;
-  const tstr = tests.map((t) => `${t.label}${t.statistic === null ? '' : ` ${t.test === 'mann_whitney_u' ? 'U' : t.test === 'welch_t' ? 't' : t.test === 'one_way_anova' ? 'F' : 'H'} = ${fmt(t.statistic)}`}, ${fmtP(t.p)}`).join('; ');
+  const tstr = tests.map((t) => `${t.label}${t.statistic === null ? '' : ` ${t.test === 'mann_whitney_u' ? 'U' : t.test === 'welch_t' ? 't' : t.test === 'one_way_anova' ? 'F' : 'H'} = ${formatMagnitude(t.statistic)}`}, ${formatP(t.p)}`).join('; ');
   if (withData.length === 2) {
     const e = effects.find((x) => withData.some((c) => c.id === x.a) && withData.some((c) => c.id === x.b));
     if (e && e.estimate !== null) {
       const dir = e.estimate > 0 ? 'higher' : e.estimate < 0 ? 'lower' : 'the same';
-      const ci = e.ci.lower !== null && e.ci.upper !== null ? ` (${pct} hierarchical bootstrap interval ${fmt(e.ci.lower)} to ${fmt(e.ci.upper)})` : '';
+      const ci = e.ci.lower !== null && e.ci.upper !== null ? ` (${pct} hierarchical bootstrap interval ${formatMagnitude(e.ci.lower)} to ${formatMagnitude(e.ci.upper)})` : '';
       const zero = e.ci.lower !== null && e.ci.upper !== null ? (e.ci.lower > 0 || e.ci.upper < 0 ? ' The interval excludes zero.' : ' The interval includes zero, so the data are also compatible with no difference.') : '';
-      return `${head} ${capitalize(e.bName)} is ${dir} than ${e.aName} by ${fmt(Math.abs(e.estimate))}${ci}.${zero} Tests on coverslip means: ${tstr}.`;
+      return `${head} ${capitalize(e.bName)} is ${dir} than ${e.aName} by ${formatMagnitude(Math.abs(e.estimate))}${ci}.${zero} Tests on coverslip means: ${tstr}.`;
     }
   }
   return `${head} Tests on coverslip means across ${withData.length} conditions: ${tstr}.`;

@@ -11,24 +11,12 @@
  */
 import type { AppContext } from '../context.js';
 import { badRequest } from '../http/errors.js';
+import { CELL_TABLE_KEYS, byKey } from '../../shared/coefficients.js';
 import { NUMERIC_COLUMNS, type GridFilters, type NumericColumn, type SortKey, type SourceInfo } from '../../shared/schemas/measurements.js';
 
-/** API column name → SQL expression over alias m (measurements). */
+/** API column name → SQL expression over alias m (measurements): measures by their registry column. */
 export const COLUMN_SQL: Record<NumericColumn, string> = {
-  pixels: 'm.pixels',
-  pearson: 'm.pearson',
-  spearman: 'm.spearman',
-  kendallTauB: 'm.kendall_tau_b',
-  distanceCorrelation: 'm.distance_correlation',
-  dcorBiasCorrectedSq: 'm.dcor_bias_corrected_sq',
-  dcorPValue: 'm.dcor_p_value',
-  mandersM1: 'm.manders_m1',
-  mandersM2: 'm.manders_m2',
-  overlap: 'm.overlap',
-  k1: 'm.k1',
-  k2: 'm.k2',
-  icq: 'm.icq',
-  randomizationP: 'm.randomization_p',
+  ...(Object.fromEntries(CELL_TABLE_KEYS.map((k) => [k, `m.${byKey(k).column}`])) as Record<(typeof CELL_TABLE_KEYS)[number], string>),
   threshold1: 'm.threshold1',
   threshold2: 'm.threshold2',
   background1: 'm.background1',

@@ -204,6 +204,11 @@ export const runFields = sqliteTable('run_fields', {
   finishedAt: text('finished_at'),
 }, (t) => [primaryKey({ columns: [t.runId, t.fieldId] })]);
 
+/**
+ * One row per measured cell and run. The measure columns are written out for Drizzle; their names are those of
+ * the coefficient registry (shared/coefficients.ts `column`, property = registry key), which
+ * tests/coefficients/registry.test.ts checks entry by entry.
+ */
 export const measurements = sqliteTable('measurements', {
   id: id(),
   runId: integer('run_id').notNull().references(() => runs.id, { onDelete: 'cascade' }),
@@ -216,6 +221,7 @@ export const measurements = sqliteTable('measurements', {
   distanceCorrelation: real('distance_correlation'),
   dcorBiasCorrectedSq: real('dcor_bias_corrected_sq'),
   dcorTStat: real('dcor_t_stat'),
+  dcorDf: real('dcor_df'),
   dcorPValue: real('dcor_p_value'),
   mandersM1: real('manders_m1'),
   mandersM2: real('manders_m2'),

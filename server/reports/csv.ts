@@ -4,7 +4,8 @@
  * = + - @ (tab or CR) are prefixed with ' so spreadsheet programs do not evaluate them (OWASP "CSV injection",
  * common practice); one writer for every CSV: server/compare/csv.ts.
  */
-import { COEFFICIENT_LABELS, type CsvTable, type ReportSnapshot } from '../../shared/schemas/reports.js';
+import { labelOf } from '../../shared/coefficients.js';
+import type { CsvTable, ReportSnapshot } from '../../shared/schemas/reports.js';
 import { toCsv } from '../compare/csv.js';
 
 export function reportCsv(s: ReportSnapshot, table: CsvTable): string {
@@ -49,7 +50,7 @@ export function reportCsv(s: ReportSnapshot, table: CsvTable): string {
     case 'statistics':
       return toCsv(
         ['coefficient', 'label', 'test', 'statistic', 'df', 'p', 'effect', 'effect_label', 'ci_low', 'ci_high', 'result'],
-        s.statistics.map((x) => [x.coefficient, COEFFICIENT_LABELS[x.coefficient], x.test, x.statistic, x.df, x.p, x.effect, x.effectLabel, x.ciLow, x.ciHigh, x.sentence]),
+        s.statistics.map((x) => [x.coefficient, labelOf(x.coefficient), x.test, x.statistic, x.df, x.p, x.effect, x.effectLabel, x.ciLow, x.ciHigh, x.sentence]),
       );
     case 'exclusions':
       return toCsv(

@@ -10,27 +10,19 @@
  */
 import { and, eq, inArray, isNull } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { cells, conditions, coverslips, fields, measurements, recipes, runs, studies, users, type CellGeometry } from '../db/schema.js';
+import { cells, conditions, coverslips, fields, measurements, recipes, runs, studies, users } from '../db/schema.js';
 import { badRequest, notFound } from '../http/errors.js';
-import {
-  CORRELATION_COEFFICIENTS,
-  COEFFICIENT_LABELS,
-  type CellScatter,
-  type Composite,
-  type ConditionSummary,
-  type CoverslipSummary,
-  type ReportCoefficient,
-  type ReportSnapshot,
-  type SnapshotCell,
-  type StatisticRow,
-} from '../../shared/schemas/reports.js';
+import type { CellScatter, Composite, ConditionSummary, CoverslipSummary, ReportCoefficient, ReportSnapshot, SnapshotCell, StatisticRow } from '../../shared/schemas/reports.js';
+import type { Comparison } from '../../shared/schemas/compare.js';
+import { cellIndices } from '../../shared/schemas/cells.js';
 import { CAUTIONS, methodsParagraph } from '../../shared/reports/methods.js';
-import { fisherZ, fisherZInverse, fisherZMean, kruskalWallis, mean, median, sd, welchT } from '../../shared/stats/index.js';
-import { rasterize, type Shape } from '../../shared/analysis/rasterize.js';
-import { optionalModule } from './optional.js';
-import { adaptComparison } from './compare-adapter.js';
-import { capitalize } from '../compare/compute.js';
-import { renderComposite } from './composite.js';
+import { median, sd } from '../../shared/stats/index.js';
+import { computeComparison } from '../compare/compute.js';
+import { loadFieldPixels, type FieldPixels } from '../images/intake.js';
+import { renderPreview } from '../images/preview.js';
+
+/** Long side of the composites frozen into a report, in pixels. */
+export const COMPOSITE_MAX_PX = 512;
 
 export interface SnapshotOptions {
   coefficients: ReportCoefficient[];
@@ -44,13 +36,6 @@ export interface SnapshotOptions {
 
 const finite = (v: number | null | undefined): v is number => typeof v === 'number' && Number.isFinite(v);
 const nn = (v: number | null | undefined) => (finite(v) ? v : null);
-
-/** mean of cell values: through Fisher's z for correlation coefficients */
-function centre(coef: ReportCoefficient, vals: number[]): number | null {
-  if (!vals.length) return null;
-  if (CORRELATION_COEFFICIENTS.has(coef)) return nn(fisherZMean(vals.map((v) => Math.max(-1, Math.min(1, v)))));
-  return nn(mean(vals));
-}
 
 export async function buildSnapshot(ctx: AppContext, studyId: number, opts: SnapshotOptions): Promise<ReportSnapshot> {
   const db = ctx.db;
@@ -219,56 +204,38 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
       };
     });
 
-  // ---- summaries
+  // ---- the comparison of each coefficient (server/compare/compute.ts, the numbers of the Compare page): its
+  // coverslip and condition summaries and tests are the report's; the full result is frozen beside them
+  const comparisons: Record<string, Comparison> = {};
+  const statistics: StatisticRow[] = [];
   const coverslipSummaries: CoverslipSummary[] = [];
   const conditionSummaries: ConditionSummary[] = [];
   for (const k of coefs) {
-    for (const c of snapConds) {
-      const slipMeans: number[] = [];
-      const allVals: number[] = [];
-      for (const s of c.coverslips) {
-        const vals = used.filter((x) => x.coverslipId === s.id).map((x) => x.values[k]).filter(finite);
-        const m = centre(k, vals);
-        if (vals.length) coverslipSummaries.push({ coefficient: k, conditionId: c.id, coverslipId: s.id, coverslipName: s.name, n: vals.length, mean: m, median: nn(median(vals)) });
-        if (m !== null) slipMeans.push(m);
-        allVals.push(...vals);
-      }
+    const cmp = await computeComparison(ctx, studyId, {
+      coefficient: k,
+      ...(opts.runId !== undefined ? { runId: opts.runId } : recipeId !== undefined ? { recipeId } : {}),
+      ...(opts.conditionIds ? { conditionIds: opts.conditionIds } : {}),
+    });
+    comparisons[k] = cmp;
+    statistics.push(statisticRow(k, cmp));
+    for (const c of cmp.conditions) {
+      const slipsOf = cmp.coverslips.filter((x) => x.conditionId === c.id && x.nCells > 0);
+      for (const x of slipsOf) coverslipSummaries.push({ coefficient: k, conditionId: c.id, coverslipId: x.id, coverslipName: x.name, n: x.nCells, mean: x.mean, median: x.median });
+      const vals = cmp.points.filter((x) => x.conditionId === c.id).map((x) => x.value);
+      const slipMeans = slipsOf.map((x) => x.mean).filter(finite);
       conditionSummaries.push({
         coefficient: k,
         conditionId: c.id,
         conditionName: c.name,
-        cells: allVals.length,
+        cells: vals.length,
         coverslips: slipMeans.length,
-        mean: centre(k, slipMeans),
+        mean: c.mean,
         sd: slipMeans.length >= 2 ? nn(sd(slipMeans)) : null,
-        median: allVals.length ? nn(median(allVals)) : null,
-        min: allVals.length ? Math.min(...allVals) : null,
-        max: allVals.length ? Math.max(...allVals) : null,
+        median: vals.length ? nn(median(vals)) : null,
+        min: vals.length ? Math.min(...vals) : null,
+        max: vals.length ? Math.max(...vals) : null,
       });
     }
-  }
-
-  // ---- comparison module (issue 7) when present; otherwise the report's own coverslip-level test
-  const comparisons: Record<string, unknown> = {};
-  const statistics: StatisticRow[] = [];
-  const compare = await optionalModule('compare');
-  for (const k of coefs) {
-    let row: StatisticRow | null = null;
-    comparisons[k] = null;
-    if (compare && typeof compare.computeComparison === 'function') {
-      try {
-        const result = await (compare.computeComparison as (c: AppContext, s: number, o: Record<string, unknown>) => Promise<unknown>)(ctx, studyId, {
-          coefficient: k,
-          ...(opts.runId !== undefined ? { runId: opts.runId } : recipeId !== undefined ? { recipeId } : {}),
-          ...(opts.conditionIds ? { conditionIds: opts.conditionIds } : {}),
-        });
-        comparisons[k] = JSON.parse(JSON.stringify(result ?? null));
-        row = adaptComparison(k, comparisons[k]);
-      } catch {
-        comparisons[k] = null; // e.g. the coefficient is not offered by the comparison module: fall back below
-      }
-    }
-    statistics.push(row ?? ownTest(k, snapConds, coverslipSummaries));
   }
 
   // ---- representative composites (one field per condition: the one with most included cells)
@@ -280,7 +247,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     const fieldId = best?.[0] ?? fieldRows.find((f) => slipById.get(f.coverslipId)?.conditionId === c.id)?.id;
     if (fieldId === undefined) continue;
     const f = fieldById.get(fieldId)!;
-    const rendered = await renderComposite(ctx, f);
+    const rendered = await renderPreview(ctx, f, { view: 'composite', max: COMPOSITE_MAX_PX });
     composites.push({
       fieldId: f.id,
       fieldName: f.name,
@@ -288,8 +255,8 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
       coverslipName: slipById.get(f.coverslipId)!.name,
       width: f.width,
       height: f.height,
-      png: rendered?.png ?? null,
-      ranges: rendered?.ranges ?? null,
+      png: `data:image/png;base64,${rendered.png.toString('base64')}`,
+      ranges: { lo1: rendered.ranges[0].lo, hi1: rendered.ranges[0].hi, lo2: rendered.ranges[1].lo, hi2: rendered.ranges[1].hi },
       outlines: cellRows.filter((x) => x.fieldId === f.id).map((x) => ({ cellId: x.id, name: x.name, excluded: x.excluded, geometry: structuredClone(x.geometry) as Record<string, unknown> })),
     });
   }
@@ -307,10 +274,10 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
   }
   // the scatter of every measured cell of the representative fields (at most MAX_SCATTERS), so a reader can pick one
   const zOpt = zForPixels(snapRecipes[0]?.settings);
-  const pixelCache = new Map<number, Promise<FieldPixels | null>>();
+  const pixelCache = new Map<number, Promise<FieldPixels>>();
   const pixelsOf = (fieldId: number) => {
     let p = pixelCache.get(fieldId);
-    if (!p) pixelCache.set(fieldId, (p = loadPixels(ctx, fieldId, zOpt)));
+    if (!p) pixelCache.set(fieldId, (p = loadFieldPixels(ctx, fieldId, zOpt)));
     return p;
   };
   const scatterTargets = [
@@ -320,8 +287,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
   const scatters: CellScatter[] = [];
   for (const sc of scatterTargets) {
     const px = await pixelsOf(sc.fieldId);
-    const one = px ? cellScatter(px, fieldById.get(sc.fieldId)!, cellRows.find((x) => x.id === sc.cellId)!, sc) : null;
-    if (one) scatters.push(one);
+    scatters.push(cellScatter(px, fieldById.get(sc.fieldId)!, cellRows.find((x) => x.id === sc.cellId)!, sc));
   }
   const scatter = scatterCell ? (scatters.find((x) => x.cellId === scatterCell!.cellId) ?? null) : null;
 
@@ -385,88 +351,30 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
   return snap;
 }
 
-const fmt = (v: number | null, d = 3) => (v === null ? '—' : Number(v.toFixed(d)).toString());
-const fmtP = (p: number | null) => (p === null ? 'not defined' : p < 0.001 ? '< 0.001' : `= ${p.toFixed(3)}`);
-
 /**
- * The report's own test on coverslip means (used when the comparison module is absent or has no result):
- * two conditions → Welch's t (Welch 1947); more → Kruskal–Wallis (Kruskal & Wallis 1952). Correlation
- * coefficients are tested on Fisher's z of the coverslip means.
+ * The statistics row of one coefficient, read from its comparison: the first test on coverslip means (Welch's t
+ * for two conditions, one-way ANOVA for more), the others beside it, the effect b − a with its bootstrap
+ * interval when exactly two conditions are compared, and the comparison's plain sentence.
  */
-export function ownTest(k: ReportCoefficient, conds: { id: number; name: string }[], slips: CoverslipSummary[]): StatisticRow {
-  // the label opens each sentence below ("distance correlation (dCor)" → "Distance correlation (dCor)")
-  const label = capitalize(COEFFICIENT_LABELS[k]);
-  const groups = conds.map((c) => ({
-    name: c.name,
-    values: slips.filter((s) => s.coefficient === k && s.conditionId === c.id && s.mean !== null).map((s) => s.mean as number),
-  }));
-  const tz = (v: number) => (CORRELATION_COEFFICIENTS.has(k) ? fisherZ(Math.max(-1, Math.min(1, v))) : v);
-  const base = { coefficient: k, statistic: null, df: null, p: null, effect: null, effectLabel: null, ciLow: null, ciHigh: null, alsoTests: [], source: 'report' as const };
-  const usable = groups.filter((g) => g.values.length > 0);
-  if (usable.length < 2) return { ...base, test: 'none', sentence: `${label}: no comparison (fewer than two conditions with measured coverslips).` };
-  if (usable.some((g) => g.values.length < 2))
-    return { ...base, test: 'none', sentence: `${label}: no test (every condition needs at least two coverslips; coverslips are the replicates).` };
-  const back = (v: number) => (CORRELATION_COEFFICIENTS.has(k) ? fisherZInverse(v) : v);
-  if (usable.length === 2) {
-    const [a, b] = usable;
-    const za = a.values.map(tz);
-    const zb = b.values.map(tz);
-    const t = welchT(zb, za); // b first: t > 0 when b is higher, the direction of `effect` (b − a)
-    const ma = back(mean(za));
-    const mb = back(mean(zb));
-    const diff = mb - ma;
-    const sig = t.p !== null && t.p < 0.05;
-    return {
-      ...base,
-      test: "Welch's t-test",
-      statistic: nn(t.statistic),
-      df: nn(t.df[0]),
-      p: nn(t.p),
-      effect: nn(diff),
-      effectLabel: `difference of coverslip means (${b.name} − ${a.name})`,
-      sentence:
-        `${label} averaged ${fmt(mb)} in ${b.name} (${b.values.length} coverslips) and ${fmt(ma)} in ${a.name} (${a.values.length} coverslips); ` +
-        (sig ? `the difference is statistically significant (Welch's t, p ${fmtP(t.p)}).` : `the difference is not statistically significant (Welch's t, p ${fmtP(t.p)}).`),
-    };
-  }
-  const kw = kruskalWallis(usable.map((g) => g.values.map(tz)));
-  const sig = kw.p !== null && kw.p < 0.05;
+export function statisticRow(k: ReportCoefficient, c: Comparison): StatisticRow {
+  const [first, ...others] = c.tests;
+  const effect = c.conditions.filter((x) => x.nCoverslips > 0).length === 2 && c.effects.length === 1 ? c.effects[0] : null;
   return {
-    ...base,
-    test: 'Kruskal–Wallis test',
-    statistic: nn(kw.statistic),
-    df: nn(kw.df[0]),
-    p: nn(kw.p),
-    sentence: `${label} ${sig ? 'differs' : 'does not differ significantly'} between the ${usable.length} conditions (Kruskal–Wallis on coverslip means, p ${fmtP(kw.p)}).`,
+    coefficient: k,
+    test: first ? first.label : 'none',
+    statistic: first?.statistic ?? null,
+    df: first?.df[0] ?? null,
+    p: first?.p ?? null,
+    effect: effect?.estimate ?? null,
+    effectLabel: effect ? `difference of coverslip means (${effect.label})` : null,
+    ciLow: effect?.ci.lower ?? null,
+    ciHigh: effect?.ci.upper ?? null,
+    alsoTests: others.map((t) => ({ test: t.label, statistic: t.statistic, df: t.df[0] ?? null, p: t.p })),
+    sentence: c.summary,
   };
 }
 
-/** CellGeometry (schema.ts) → rasterizer shape; label-image cells carry their own run-length mask. */
-function geometryShape(g: CellGeometry): Shape | null {
-  switch (g.kind) {
-    case 'polygon':
-    case 'freehand':
-      return { kind: 'polygon', points: g.points };
-    case 'rect':
-      return { kind: 'rectangle', x: g.x, y: g.y, width: g.width, height: g.height };
-    case 'ellipse':
-      return { kind: 'ellipse', cx: g.cx, cy: g.cy, rx: g.rx, ry: g.ry };
-    default:
-      return null;
-  }
-}
-
-/** Run-length mask of a label cell: [start, length, start, length, …] over linear indices (common practice). */
-function labelMask(g: CellGeometry, n: number): Uint8Array | null {
-  if (g.kind !== 'label' || !Array.isArray(g.rle)) return null;
-  const m = new Uint8Array(n);
-  for (let i = 0; i + 1 < g.rle.length; i += 2) for (let j = g.rle[i]; j < Math.min(n, g.rle[i] + g.rle[i + 1]); j++) m[j] = 1;
-  return m;
-}
-
 const SCATTER_BINS = 64;
-
-type FieldPixels = { width: number; height: number; ch1: ArrayLike<number>; ch2: ArrayLike<number> };
 
 export const MAX_SCATTERS = 24;
 
@@ -478,45 +386,25 @@ function zForPixels(settings: Record<string, unknown> | undefined): { z?: number
   return {};
 }
 
-async function loadPixels(ctx: AppContext, fieldId: number, z: { z?: number | 'mip' }): Promise<FieldPixels | null> {
-  const intake = await optionalModule('intake');
-  if (!intake || typeof intake.loadFieldPixels !== 'function') return null;
-  try {
-    return await (intake.loadFieldPixels as (c: AppContext, id: number, o: object) => Promise<FieldPixels>)(ctx, fieldId, z);
-  } catch {
-    return null; // pixels unreadable (file missing from the store): the report shows no scatter
-  }
-}
-
 /** 2-D histogram of the cell's raw (ch1, ch2) pairs on [0, max] × [0, max], SCATTER_BINS per axis. */
-function cellScatter(px: FieldPixels, f: typeof fields.$inferSelect, cell: typeof cells.$inferSelect, sc: SnapshotCell): CellScatter | null {
-  const shape = geometryShape(cell.geometry);
-  let mask: Uint8Array | null;
-  try {
-    mask = shape ? rasterize(shape, px.width, px.height) : labelMask(cell.geometry, px.width * px.height);
-  } catch {
-    return null;
-  }
-  if (!mask) return null;
+function cellScatter(px: FieldPixels, f: typeof fields.$inferSelect, cell: typeof cells.$inferSelect, sc: SnapshotCell): CellScatter {
+  const idx = cellIndices(cell.geometry, px.width, px.height);
   let max1 = 0;
   let max2 = 0;
-  let n = 0;
   // a pixel with NaN in either channel carries no intensity: not counted, not plotted
-  for (let i = 0; i < mask.length; i++) if (mask[i] && (px.ch1[i] !== px.ch1[i] || px.ch2[i] !== px.ch2[i])) mask[i] = 0;
-  for (let i = 0; i < mask.length; i++)
-    if (mask[i]) {
-      n++;
-      if (px.ch1[i] > max1) max1 = px.ch1[i];
-      if (px.ch2[i] > max2) max2 = px.ch2[i];
-    }
+  const kept = idx.filter((i) => px.ch1[i] === px.ch1[i] && px.ch2[i] === px.ch2[i]);
+  const n = kept.length;
+  for (const i of kept) {
+    if (px.ch1[i] > max1) max1 = px.ch1[i];
+    if (px.ch2[i] > max2) max2 = px.ch2[i];
+  }
   const counts = new Array<number>(SCATTER_BINS * SCATTER_BINS).fill(0);
   const b1 = max1 > 0 ? SCATTER_BINS / (max1 * (1 + 1e-9)) : 0;
   const b2 = max2 > 0 ? SCATTER_BINS / (max2 * (1 + 1e-9)) : 0;
-  for (let i = 0; i < mask.length; i++)
-    if (mask[i]) {
-      const c = Math.min(SCATTER_BINS - 1, Math.max(0, Math.floor(px.ch1[i] * b1)));
-      const r = Math.min(SCATTER_BINS - 1, Math.max(0, Math.floor(px.ch2[i] * b2)));
-      counts[r * SCATTER_BINS + c]++;
-    }
+  for (const i of kept) {
+    const c = Math.min(SCATTER_BINS - 1, Math.max(0, Math.floor(px.ch1[i] * b1)));
+    const r = Math.min(SCATTER_BINS - 1, Math.max(0, Math.floor(px.ch2[i] * b2)));
+    counts[r * SCATTER_BINS + c]++;
+  }
   return { cellId: cell.id, cellName: cell.name, fieldName: f.name, bins: SCATTER_BINS, max1, max2, counts, threshold1: sc.threshold1, threshold2: sc.threshold2, pixels: n };
 }

@@ -21,6 +21,7 @@
  */
 import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
+import { COEFFICIENTS, type CoefficientValues } from '../../shared/coefficients.js';
 import type { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../images/store.js';
 import { decodeChannel } from '../images/decode.js';
@@ -128,23 +129,8 @@ export function blockPixels(s: RecipeSettings, fieldPixelSizeUm: number | null):
   return Math.max(1, Math.round(b.psfWidthUm / px));
 }
 
-const nullCoefficients = {
-  pearson: null,
-  spearman: null,
-  kendallTauB: null,
-  distanceCorrelation: null,
-  dcorBiasCorrectedSq: null,
-  dcorTStat: null,
-  dcorPValue: null,
-  mandersM1: null,
-  mandersM2: null,
-  overlap: null,
-  k1: null,
-  k2: null,
-  icq: null,
-  randomizationP: null,
-  randomizationFractionBelow: null,
-};
+/** Every registry measure but the pixel count, null: the row of a cell too small to measure. */
+const nullCoefficients = Object.fromEntries(COEFFICIENTS.filter((c) => c.key !== 'pixels').map((c) => [c.key, null])) as Omit<CoefficientValues, 'pixels'>;
 
 /** Measures every 'cell' region of a field. Throws FieldJobError for a problem with this field. */
 export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): MeasurementValues[] {
@@ -177,7 +163,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
 
   const block = blockPixels(s, job.pixelSizeUm);
   const want = new Set(s.coefficients);
-  const slow = want.has('kendallTauB') || want.has('distanceCorrelation');
+  const slow = COEFFICIENTS.some((c) => c.slow && c.recipeChoice !== null && want.has(c.recipeChoice));
   const threshold = thresholdOptions(s.threshold);
   const z = describeZ(s.z);
 
@@ -257,24 +243,12 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     });
     provenance.thresholds = { method: r.thresholds.method, ch1: r.thresholds.ch1, ch2: r.thresholds.ch2 };
     provenance.randomizationCount = r.randomizationCount;
-    const pick = (c: (typeof s.coefficients)[number], v: number | null) => (want.has(c) ? v : null);
+    // a measure is kept when its recipe choice was asked for; the randomization test's results always (the recipe switches the test itself)
+    const values = Object.fromEntries(COEFFICIENTS.map((c) => [c.key, c.recipeChoice === null || want.has(c.recipeChoice) ? r[c.key] : null])) as CoefficientValues;
     rows.push({
       ...base,
-      pearson: pick('pearson', r.pearson),
-      spearman: pick('spearman', r.spearman),
-      kendallTauB: pick('kendallTauB', r.kendallTauB),
-      distanceCorrelation: pick('distanceCorrelation', r.distanceCorrelation),
-      dcorBiasCorrectedSq: pick('distanceCorrelation', r.dcorBiasCorrectedSq),
-      dcorTStat: pick('distanceCorrelation', r.dcorTStat),
-      dcorPValue: pick('distanceCorrelation', r.dcorPValue),
-      mandersM1: pick('manders', r.mandersM1),
-      mandersM2: pick('manders', r.mandersM2),
-      overlap: pick('overlap', r.overlap),
-      k1: pick('overlap', r.k1),
-      k2: pick('overlap', r.k2),
-      icq: pick('icq', r.icq),
-      randomizationP: r.randomizationP,
-      randomizationFractionBelow: r.randomizationFractionBelow,
+      ...values,
+      pixels: n,
       threshold1: r.thresholds.ch1,
       threshold2: r.thresholds.ch2,
       mean1: meanOver(ch1, idx),

@@ -3,6 +3,8 @@
  * outlines, recipe settings); the result carries the measurements back. Only the web server writes SQLite.
  */
 import type { CellGeometry } from '../db/schema.js';
+import type { CoefficientValues } from '../../shared/coefficients.js';
+import type { MeasurementProvenance } from '../../shared/schemas/runs.js';
 import type { RecipeSettings, RecipeStatus } from '../../shared/schemas/recipes.js';
 
 export interface FieldJob {
@@ -24,25 +26,11 @@ export interface FieldJob {
   provisional: boolean;
 }
 
-/** One measurement row's values (the columns of `measurements` besides ids). */
-export interface MeasurementValues {
-  cellId: number;
-  pixels: number;
-  pearson: number | null;
-  spearman: number | null;
-  kendallTauB: number | null;
-  distanceCorrelation: number | null;
-  dcorBiasCorrectedSq: number | null;
-  dcorTStat: number | null;
-  dcorPValue: number | null;
-  mandersM1: number | null;
-  mandersM2: number | null;
-  overlap: number | null;
-  k1: number | null;
-  k2: number | null;
-  icq: number | null;
-  randomizationP: number | null;
-  randomizationFractionBelow: number | null;
+/**
+ * One measurement row's values (the columns of `measurements` besides ids): every registry measure
+ * (shared/coefficients.ts, `pixels` a count, the rest `number | null`) plus the recipe's per-cell inputs.
+ */
+export type MeasurementValues = { cellId: number } & CoefficientValues & {
   threshold1: number | null;
   threshold2: number | null;
   thresholdMethod: string;
@@ -52,8 +40,8 @@ export interface MeasurementValues {
   saturatedFraction2: number | null;
   mean1: number | null;
   mean2: number | null;
-  provenance: import('../../shared/schemas/runs.js').MeasurementProvenance;
-}
+  provenance: MeasurementProvenance;
+};
 
 export type FieldJobResult =
   | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; ms: number }

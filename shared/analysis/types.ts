@@ -114,6 +114,10 @@ export interface RegionResult extends RandomizationResult {
   thresholds: ThresholdInfo;
 }
 
+/**
+ * The numeric per-region result keys (every one `number | null`, `pixels` a count), in display order. The
+ * coefficient registry (shared/coefficients.ts) has exactly one entry per key of `MEASURE_KEYS`.
+ */
 export const REGION_RESULT_KEYS = [
   'pixels',
   'pearson',
@@ -131,3 +135,10 @@ export const REGION_RESULT_KEYS = [
   'k2',
   'icq',
 ] as const;
+
+/** The numeric results of the randomization test that are stored per cell (the count is provenance). */
+export const RANDOMIZATION_RESULT_KEYS = ['randomizationP', 'randomizationFractionBelow'] as const;
+
+/** Every numeric per-cell measure the engine reports: the region coefficients, then the randomization test. */
+export const MEASURE_KEYS = [...REGION_RESULT_KEYS, ...RANDOMIZATION_RESULT_KEYS] as const;
+export type MeasureKey = (typeof MEASURE_KEYS)[number];

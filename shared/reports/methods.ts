@@ -7,29 +7,19 @@
  * silently left out. It gives cells and coverslips per condition, the statistical tests, and cites each
  * method's paper.
  *
- * References (authors, year, journal, DOI): see CITATIONS below. The DOIs are written from memory (not looked up
- * online here); the Fisher 1915 and test references agree with those of shared/stats (comparison work).
+ * References (authors, year, journal, DOI): the coefficients' papers come from the coefficient registry
+ * (shared/coefficients.ts), the thresholding and statistics papers are listed below. The Fisher 1915 and test
+ * references agree with those of shared/stats.
  */
-import { COEFFICIENT_LABELS, type ReportCoefficient, type ReportSnapshot } from '../schemas/reports.js';
+import { COEFFICIENT_CITATIONS, byKey, type Citation } from '../coefficients.js';
+import type { ReportSnapshot } from '../schemas/reports.js';
 import { RecipeSettings, SETTING_KEYS, describeSetting } from '../schemas/recipes.js';
 
-export interface Citation {
-  key: string;
-  text: string;
-}
+export type { Citation };
 
-/** Each method's paper. */
+/** Each method's paper: the coefficients' (registry), then thresholds and statistics. */
 export const CITATIONS: Record<string, Citation> = {
-  pearson: { key: 'Pearson 1896', text: 'Pearson K (1896) Mathematical contributions to the theory of evolution. III. Regression, heredity, and panmixia. Phil. Trans. R. Soc. Lond. A 187:253–318. doi:10.1098/rsta.1896.0007' },
-  spearman: { key: 'Spearman 1904', text: 'Spearman C (1904) The proof and measurement of association between two things. Am. J. Psychol. 15:72–101. doi:10.2307/1412159' },
-  kendall: { key: 'Kendall 1945', text: 'Kendall MG (1945) The treatment of ties in ranking problems. Biometrika 33:239–251. doi:10.1093/biomet/33.3.239' },
-  knight: { key: 'Knight 1966', text: "Knight WR (1966) A computer method for calculating Kendall's tau with ungrouped data. J. Am. Stat. Assoc. 61:436–439. doi:10.1080/01621459.1966.10480879" },
-  dcor: { key: 'Székely, Rizzo & Bakirov 2007', text: 'Székely GJ, Rizzo ML, Bakirov NK (2007) Measuring and testing dependence by correlation of distances. Ann. Statist. 35:2769–2794. doi:10.1214/009053607000000505' },
-  dcorT: { key: 'Székely & Rizzo 2013', text: 'Székely GJ, Rizzo ML (2013) The distance correlation t-test of independence in high dimension. J. Multivariate Anal. 117:193–213. doi:10.1016/j.jmva.2013.02.012' },
-  dcorFast: { key: 'Huo & Székely 2016', text: 'Huo X, Székely GJ (2016) Fast computing for distance covariance. Technometrics 58:435–447. doi:10.1080/00401706.2015.1054435' },
-  manders: { key: 'Manders et al. 1993', text: 'Manders EMM, Verbeek FJ, Aten JA (1993) Measurement of co-localization of objects in dual-colour confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x' },
-  costes: { key: 'Costes et al. 2004', text: 'Costes SV, Daelemans D, Cho EH, Dobbin Z, Pavlakis G, Lockett S (2004) Automatic and quantitative measurement of protein-protein colocalization in live cells. Biophys. J. 86:3993–4003. doi:10.1529/biophysj.103.038422' },
-  li: { key: 'Li et al. 2004', text: 'Li Q, Lau A, Morris TJ, Guo L, Fordyce CB, Stanley EF (2004) A syntaxin 1, Gαo, and N-type calcium channel complex at a presynaptic nerve terminal: analysis by quantitative immunocolocalization. J. Neurosci. 24:4070–4081. doi:10.1523/JNEUROSCI.0346-04.2004' },
+  ...COEFFICIENT_CITATIONS,
   otsu: { key: 'Otsu 1979', text: 'Otsu N (1979) A threshold selection method from gray-level histograms. IEEE Trans. Syst. Man Cybern. 9:62–66. doi:10.1109/TSMC.1979.4310076' },
   lord: { key: 'Lord et al. 2020', text: 'Lord SJ, Velle KB, Mullins RD, Fritz-Laylin LK (2020) SuperPlots: communicating reproducibility and variability in cell biology. J. Cell Biol. 219:e202001064. doi:10.1083/jcb.202001064' },
   fisherZ: { key: 'Fisher 1915', text: 'Fisher RA (1915) Frequency distribution of the values of the correlation coefficient in samples from an indefinitely large population. Biometrika 10:507–521. doi:10.1093/biomet/10.4.507' },
@@ -153,21 +143,11 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   }
   if (!snap.recipes.length) parts.push('No measurements were available when the report was made; no recipe was used.');
 
-  // 3. coefficients
-  const coefText: string[] = [];
-  const c = new Set<ReportCoefficient>(snap.coefficients);
-  if (c.has('pearson')) coefText.push(`Pearson's correlation coefficient r (${cite('pearson')})`);
-  if (c.has('spearman')) coefText.push(`Spearman's rank correlation ρ, computed as Pearson's r of average ranks so that ties are handled (${cite('spearman')})`);
-  if (c.has('kendallTauB')) coefText.push(`Kendall's τ-b with the tie correction of ${cite('kendall')}, computed exactly in O(n log n) (${cite('knight')})`);
-  if (c.has('distanceCorrelation') || c.has('dcorBiasCorrectedSq'))
-    coefText.push(
-      `distance correlation dCor (V-statistic, not squared; ${cite('dcor')}), computed exactly on every pixel in O(n log n) (${cite('dcorFast')})${c.has('dcorBiasCorrectedSq') ? `, and its bias-corrected square with the t-test of independence (${cite('dcorT')})` : ''}`,
-    );
-  if (c.has('mandersM1') || c.has('mandersM2')) coefText.push(`Manders' split coefficients M1 and M2 over pixels above the thresholds (${cite('manders')})`);
-  if (c.has('overlap') || c.has('k1') || c.has('k2')) coefText.push(`Manders' overlap coefficient${c.has('k1') || c.has('k2') ? ' and the k1/k2 coefficients' : ''} (${cite('manders')})`);
-  if (c.has('icq')) coefText.push(`Li's intensity correlation quotient ICQ (${cite('li')})`);
+  // 3. coefficients: each registry entry's methods phrase, once per distinct phrase, citations filled in
+  const phrases = [...new Set(snap.coefficients.map((k) => byKey(k).methods).filter((m): m is string => m !== null))];
+  const coefText = phrases.map((m) => m.replace(/\{(\w+)\}/g, (_, k: string) => cite(k)));
   parts.push(
-    `Per cell, the report shows ${joinList(coefText)} (${snap.coefficients.map((k) => COEFFICIENT_LABELS[k]).join(', ')}). Undefined values (an empty cell, a constant channel) are reported as missing, not as zero.`,
+    `Per cell, the report shows ${joinList(coefText)} (${snap.coefficients.map((k) => byKey(k).label).join(', ')}). Undefined values (an empty cell, a constant channel) are reported as missing, not as zero.`,
   );
 
   // 4. statistics
@@ -179,11 +159,11 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   if (has(/kruskal/)) testText.push(`the Kruskal–Wallis test (${cite('kruskal')})`);
   if (has(/anova/)) testText.push(`one-way analysis of variance (${cite('anova')})`);
   const boot = snap.statistics.some((s) => s.ciLow !== null) || has(/bootstrap/);
-  const corrCoefs = snap.coefficients.filter((k) => k === 'pearson' || k === 'spearman' || k === 'kendallTauB');
+  const corrCoefs = snap.coefficients.filter((k) => byKey(k).fisherZ);
   parts.push(
     [
       `Conditions were compared with coverslips as the unit of replication: every cell is shown, coloured by coverslip, with coverslip means on top (${cite('lord')}).`,
-      corrCoefs.length ? `Correlation coefficients (${corrCoefs.map((k) => COEFFICIENT_LABELS[k]).join(', ')}) were averaged through Fisher's z transformation (${cite('fisherZ')}).` : '',
+      corrCoefs.length ? `Correlation coefficients (${corrCoefs.map((k) => byKey(k).label).join(', ')}) were averaged through Fisher's z transformation (${cite('fisherZ')}).` : '',
       testText.length
         ? `Coverslip-level summaries were tested with ${joinList(testText)}${boot ? `; effect sizes carry bootstrap confidence intervals that resample coverslips, then cells (${cite('bootstrap')}${bootText(snap)})` : ''}. Significance level α = 0.05, two-sided.`
         : 'No statistical test could be made (fewer than two coverslips in a condition, or a single condition).',
@@ -211,12 +191,12 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   return `${parts.join('\n\n')}\n\nReferences\n${refs.join('\n')}`;
 }
 
-/** the comparison module's bootstrap settings (resamples, seed, confidence), when recorded */
+/** the comparisons' bootstrap settings (resamples, seed, confidence) */
 function bootText(snap: ReportSnapshot): string {
   const seen = new Set<string>();
   for (const c of Object.values(snap.comparisons)) {
-    const b = isObj(c) && isObj(c.bootstrap) ? c.bootstrap : null;
-    if (b && typeof b.resamples === 'number') seen.add(`${b.resamples} resamples, seed ${String(b.seed)}, ${typeof b.confidence === 'number' ? `${Math.round(b.confidence * 1000) / 10}%` : 'default'} percentile intervals`);
+    const b = c.bootstrap;
+    seen.add(`${b.resamples} resamples, seed ${b.seed}, ${Math.round(b.confidence * 1000) / 10}% percentile intervals`);
   }
   return seen.size ? `; ${[...seen].join('; ')}` : '';
 }

@@ -1,43 +1,16 @@
 /**
  * A comparison of conditions for one coefficient, with coverslips as the unit of replication
  * (Lord et al. 2020, J. Cell Biol. 219:e202001064). Produced by server/compare/compute.ts
- * (`computeComparison`), drawn by src/features/compare (SuperPlot), frozen into report snapshots (H8).
+ * (`computeComparison`), drawn by src/features/compare (SuperPlot), frozen into report snapshots.
  * Undefined numbers are `null`, never NaN.
  */
 import { z } from 'zod';
+import { COMPARE_KEYS } from '../coefficients';
 
-export const COMPARE_COEFFICIENTS = [
-  'pearson',
-  'spearman',
-  'kendallTauB',
-  'distanceCorrelation',
-  'dcorBiasCorrectedSq',
-  'mandersM1',
-  'mandersM2',
-  'overlap',
-  'k1',
-  'k2',
-  'icq',
-] as const;
+/** The coefficients Compare offers (and reports carry): the registry entries with `compare` (shared/coefficients.ts). */
+export const COMPARE_COEFFICIENTS = COMPARE_KEYS;
 export const CompareCoefficient = z.enum(COMPARE_COEFFICIENTS, { message: `coefficient must be one of ${COMPARE_COEFFICIENTS.join(', ')}` });
 export type CompareCoefficient = z.infer<typeof CompareCoefficient>;
-
-/** Correlation coefficients in [−1, 1] that are averaged through Fisher's z. */
-export const FISHER_COEFFICIENTS: readonly CompareCoefficient[] = ['pearson', 'spearman', 'kendallTauB'];
-
-export const COMPARE_LABELS: Record<CompareCoefficient, string> = {
-  pearson: "Pearson's r",
-  spearman: "Spearman's ρ",
-  kendallTauB: "Kendall's τ-b",
-  distanceCorrelation: 'distance correlation (dCor)',
-  dcorBiasCorrectedSq: 'bias-corrected dCor²',
-  mandersM1: "Manders' M1",
-  mandersM2: "Manders' M2",
-  overlap: 'overlap coefficient',
-  k1: 'k1',
-  k2: 'k2',
-  icq: 'ICQ',
-};
 
 const ids = z
   .union([z.string(), z.array(z.string())])

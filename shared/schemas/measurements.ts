@@ -4,23 +4,15 @@
  * paging, column choice, and exclusions with reasons.
  */
 import { z } from 'zod';
+import { CELL_TABLE_KEYS, COEFFICIENTS, byKey, formatCoefficient, isCoefficientKey } from '../coefficients';
+import { formatNumber } from '../format';
 
-/** Numeric measurement columns: sortable, filterable by range, exportable. Keys are the API names. */
+/**
+ * Numeric measurement columns: sortable, filterable by range, exportable. Keys are the API names: the registry's
+ * Cell table measures (shared/coefficients.ts `cellTable`), then the recipe's per-cell inputs.
+ */
 export const NUMERIC_COLUMNS = [
-  'pixels',
-  'pearson',
-  'spearman',
-  'kendallTauB',
-  'distanceCorrelation',
-  'dcorBiasCorrectedSq',
-  'dcorPValue',
-  'mandersM1',
-  'mandersM2',
-  'overlap',
-  'k1',
-  'k2',
-  'icq',
-  'randomizationP',
+  ...CELL_TABLE_KEYS,
   'threshold1',
   'threshold2',
   'background1',
@@ -32,26 +24,16 @@ export const NUMERIC_COLUMNS = [
 ] as const;
 export type NumericColumn = (typeof NUMERIC_COLUMNS)[number];
 
-/** Human labels (our words; trade terms kept as the field uses them). */
+/** Cell table columns shown until the user picks others: the registry's `cellTable: 'default'` plus the flags. */
+export const DEFAULT_VISIBLE_COLUMNS: readonly string[] = ['condition', 'coverslip', 'field', 'cell', ...COEFFICIENTS.filter((c) => c.cellTable === 'default').map((c) => c.key), 'saturated', 'provisional', 'excluded'];
+
+/** Human labels (our words; trade terms kept as the field uses them); measures take the registry's label. */
 export const COLUMN_LABELS: Record<string, string> = {
   condition: 'Condition',
   coverslip: 'Coverslip',
   field: 'Field',
   cell: 'Cell',
-  pixels: 'Pixels',
-  pearson: "Pearson's r",
-  spearman: "Spearman's ρ",
-  kendallTauB: "Kendall's τ-b",
-  distanceCorrelation: 'Distance correlation',
-  dcorBiasCorrectedSq: 'dCor² (bias-corrected)',
-  dcorPValue: 'dCor test p',
-  mandersM1: "Manders' M1",
-  mandersM2: "Manders' M2",
-  overlap: 'Overlap coefficient',
-  k1: 'k1',
-  k2: 'k2',
-  icq: 'ICQ',
-  randomizationP: 'Randomization p',
+  ...Object.fromEntries(CELL_TABLE_KEYS.map((k) => [k, byKey(k).label])),
   threshold1: 'Threshold ch1',
   threshold2: 'Threshold ch2',
   thresholdMethod: 'Threshold method',
@@ -67,6 +49,12 @@ export const COLUMN_LABELS: Record<string, string> = {
   exclusionReason: 'Exclusion reason',
   runId: 'Run',
 };
+
+/** How a numeric column is written in the table (shared/format.ts): measures by their registry format. */
+export function formatColumn(k: NumericColumn, v: number | null): string {
+  if (isCoefficientKey(k)) return formatCoefficient(k, v);
+  return formatNumber(v, k.startsWith('saturatedFraction') ? 'fraction' : 'intensity');
+}
 
 export const SORT_KEYS = ['condition', 'coverslip', 'field', 'cell', 'excluded', 'provisional', 'saturated', ...NUMERIC_COLUMNS] as const;
 export type SortKey = (typeof SORT_KEYS)[number];

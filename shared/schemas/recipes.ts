@@ -12,6 +12,7 @@
  *   confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x
  */
 import { z } from 'zod';
+import { RECIPE_CHOICES, RECIPE_CHOICE_LABELS } from '../coefficients';
 
 // ---------------------------------------------------------------- settings
 
@@ -68,18 +69,11 @@ export const ZSetting = z.discriminatedUnion('mode', [
 ]).refine((z) => z.mode !== 'range' || z.from <= z.to, { message: 'z range: "from" must not be after "to"' });
 export type ZSetting = z.infer<typeof ZSetting>;
 
-export const COEFFICIENTS = ['pearson', 'spearman', 'kendallTauB', 'distanceCorrelation', 'manders', 'overlap', 'icq'] as const;
+/** What a recipe may compute: the registry's recipe choices (shared/coefficients.ts). */
+export const COEFFICIENTS = RECIPE_CHOICES;
 export const Coefficient = z.enum(COEFFICIENTS);
 export type Coefficient = z.infer<typeof Coefficient>;
-export const COEFFICIENT_LABELS: Record<Coefficient, string> = {
-  pearson: "Pearson's r",
-  spearman: "Spearman's ρ",
-  kendallTauB: "Kendall's τ-b",
-  distanceCorrelation: 'distance correlation (dCor, bias-corrected dCor² and its t-test)',
-  manders: "Manders' M1 and M2",
-  overlap: "Manders' overlap coefficient with k1 and k2",
-  icq: "Li's intensity correlation quotient (ICQ)",
-};
+export const COEFFICIENT_LABELS: Record<Coefficient, string> = RECIPE_CHOICE_LABELS;
 
 export const RecipeSettings = z.object({
   background: BackgroundSetting.default({ method: 'none' }),

@@ -13,18 +13,12 @@
  */
 import { z } from 'zod';
 import { Id, IsoDate } from './common.js';
-import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from './compare.js';
+import { COMPARE_COEFFICIENTS, Comparison } from './compare.js';
 
-/** Per-cell values a report can carry: the same set Compare offers (shared/schemas/compare.ts). */
+/** Per-cell values a report can carry: the same set Compare offers (registry `compare`, shared/coefficients.ts). */
 export const REPORT_COEFFICIENTS = COMPARE_COEFFICIENTS;
-export const ReportCoefficient = z.enum(REPORT_COEFFICIENTS);
+export const ReportCoefficient = z.enum(REPORT_COEFFICIENTS, { message: `coefficient must be one of ${REPORT_COEFFICIENTS.join(', ')}` });
 export type ReportCoefficient = z.infer<typeof ReportCoefficient>;
-
-/** Screen labels (trade terms), as on Compare. */
-export const COEFFICIENT_LABELS: Record<ReportCoefficient, string> = COMPARE_LABELS;
-
-/** Correlation-type coefficients are averaged through Fisher's z (atanh) at the coverslip level. */
-export const CORRELATION_COEFFICIENTS: ReadonlySet<ReportCoefficient> = new Set(['pearson', 'spearman', 'kendallTauB']);
 
 export const CreateReportRequest = z.object({
   title: z.string({ message: 'enter a title' }).trim().min(1, 'enter a title').max(200, 'a title has at most 200 characters'),
@@ -178,10 +172,8 @@ export const StatisticRow = z.object({
   ciHigh: Num,
   /** further tests on the same coverslip-level data (e.g. Mann–Whitney beside Welch's t) */
   alsoTests: z.array(z.object({ test: z.string(), statistic: Num, df: Num, p: Num })).default([]),
-  /** plain-English result */
+  /** plain-English result (the comparison's summary sentence) */
   sentence: z.string(),
-  /** 'compare' = from the comparison module (server/compare); 'report' = the report's own coverslip-level test */
-  source: z.enum(['compare', 'report']),
 });
 export type StatisticRow = z.infer<typeof StatisticRow>;
 
@@ -238,8 +230,8 @@ export const ReportSnapshot = z.object({
   coverslipSummaries: z.array(CoverslipSummary),
   conditionSummaries: z.array(ConditionSummary),
   statistics: z.array(StatisticRow),
-  /** the comparison module's full result per coefficient (shape: Comparison of shared/schemas/compare.ts), null if unavailable */
-  comparisons: z.record(z.string(), z.unknown().nullable()),
+  /** the full comparison per coefficient (server/compare/compute.ts), from which `statistics` are read */
+  comparisons: z.record(z.string(), Comparison),
   composites: z.array(Composite),
   /** the chosen cell's scatter (shown first) */
   scatter: CellScatter.nullable(),

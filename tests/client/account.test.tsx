@@ -1,12 +1,9 @@
 // @vitest-environment jsdom
-/** Account: password change with the shared rule and the server's field error; the fields slot finds H4's components when present. (common practice) */
-import fs from 'node:fs';
-import path from 'node:path';
+/** Account: password change with the shared rule and the server's field error. (common practice) */
 import { describe, expect, it } from 'vitest';
 import { screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { Component as Account } from '@/app/routes/Account';
-import { fieldsFeaturePresent } from '@/features/studies/components/FieldsSlot';
 import { asUser, demoUser, mockApi, on, renderRoutes } from './utils';
 
 describe('Account', () => {
@@ -37,13 +34,5 @@ describe('Account', () => {
     await user.click(within(form).getByRole('button', { name: 'Change password' }));
     expect(await within(form).findByText(/Password changed/)).toBeTruthy();
     expect((within(form).getByLabelText('New password') as HTMLInputElement).value).toBe('');
-  });
-});
-
-describe('fields slot on the study page', () => {
-  it('uses the fields feature’s components exactly when their files exist', () => {
-    const dir = path.resolve('src/features/fields/components');
-    expect(fieldsFeaturePresent.upload).toBe(fs.existsSync(path.join(dir, 'UploadFields.tsx')));
-    expect(fieldsFeaturePresent.list).toBe(fs.existsSync(path.join(dir, 'FieldList.tsx')));
   });
 });

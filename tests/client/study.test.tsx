@@ -30,6 +30,18 @@ describe('Study page', () => {
     expect(screen.getByText('no cells outlined')).toBeTruthy();
   });
 
+  it('shows each coverslip\'s field list and, for those who may upload, the upload button', async () => {
+    mockApi(asUser(demoUser(['biologist'])), on('GET', '/studies/3', () => ({ body: makeStudy() })));
+    renderRoutes(routes, '/studies/3');
+    await screen.findByRole('heading', { level: 1, name: 'Puncta sharing' });
+    const slots = document.querySelectorAll('[data-slot="fields"]');
+    expect(slots.length).toBeGreaterThan(0);
+    for (const slot of slots) {
+      expect(await within(slot as HTMLElement).findByText('No fields on this coverslip yet.')).toBeTruthy();
+      expect(within(slot as HTMLElement).getByRole('button', { name: 'Add fields…' })).toBeTruthy();
+    }
+  });
+
   it('moves a condition down with the keyboard and sends the new order', async () => {
     const study = makeStudy();
     const calls = mockApi(

@@ -8,6 +8,8 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements } from './seed.js';
 import { computeComparison } from '../../server/compare/compute.js';
 import { SuperPlot } from '../../src/features/compare/components/SuperPlot';
+import { StatsTable } from '../../src/features/compare/components/StatsTable';
+import { Histograms } from '../../src/features/compare/components/Histograms';
 import { COVERSLIP_COLORS } from '../../src/features/compare/components/palette';
 import type { Comparison } from '../../shared/schemas/compare.js';
 
@@ -50,5 +52,19 @@ describe('SuperPlot', () => {
       return Number(/ y1="([-\d.]+)"/.exec(bar)![1]);
     };
     expect(barY('treated')).toBeLessThan(barY('untreated'));
+  });
+
+  it('never shows a negative zero in the plot, its axis, the statistics table or the histograms', () => {
+    // a comparison centred on zero: values, means and interval ends of both signs, some exactly −0
+    const z = structuredClone(c);
+    z.points = z.points.map((p, i) => ({ ...p, value: (i % 3) * 0.1 - 0.1 - 1e-9 }));
+    z.coverslips = z.coverslips.map((x, i) => ({ ...x, mean: i % 2 ? -0 : -0.0000001, median: -0 }));
+    z.conditions = z.conditions.map((x) => ({ ...x, mean: -0, ci: { lower: -0.1, upper: -0 } }));
+    z.effects = z.effects.map((e) => ({ ...e, estimate: -0, ci: { lower: -0.0004, upper: 0.1 } }));
+    z.histograms = z.histograms.map((h) => ({ ...h, edges: h.edges.map((_, i) => -0.2 + (0.4 * i) / (h.edges.length - 1)), distances: h.distances.map((d) => ({ ...d, chiSquared: -0, emd: -0 })) }));
+    const html = [renderToStaticMarkup(<SuperPlot data={z} />), renderToStaticMarkup(<StatsTable data={z} />), renderToStaticMarkup(<Histograms data={z} />)].join('');
+    const text = html.replace(/<[^>]*>/g, ' ');
+    expect(text).not.toMatch(/(^|[^\d.e])-0(\.0+)?(?![\d.])/);
+    expect(text).toContain('0.000');
   });
 });

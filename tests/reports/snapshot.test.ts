@@ -8,7 +8,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { auditEvents, reports } from '../../server/db/schema.js';
-import { ownTest } from '../../server/reports/snapshot.js';
+import { statisticRow } from '../../server/reports/snapshot.js';
+import { computeComparison } from '../../server/compare/compute.js';
 import { buildReportWorld, excludeCell, insertRun, type ReportWorld } from './fixtures.js';
 import type { ReportDetail } from '../../shared/schemas/reports.js';
 
@@ -72,30 +73,27 @@ describe('report snapshot', () => {
     expect(JSON.stringify({ ...s, composites: [] })).not.toMatch(/NaN/);
   });
 
-  it('the report-level Welch test on Fisher z of coverslip means matches SciPy', () => {
-    const slips = rw.coverslipIds.map((id, i) => ({
-      coefficient: 'pearson' as const,
-      conditionId: rw.conditionIds[i < 3 ? 0 : 1],
-      coverslipId: id,
-      coverslipName: `s${i}`,
-      n: 4,
-      mean: fisherMean([0, 1, 2, 3].map((c) => BASE1[i] + 0.02 * c)),
-      median: null,
-    }));
-    const row = ownTest('pearson', [{ id: rw.conditionIds[0], name: 'control' }, { id: rw.conditionIds[1], name: 'treated' }], slips);
+  it("the report's Welch test on Fisher z of coverslip means (the comparison's) matches SciPy", () => {
+    // the first report's data: coverslip i has cells BASE1[i] + 0.02·c, c = 0..3
+    const slipMeans = rw.coverslipIds.map((id) => first.snapshot.coverslipSummaries.find((x) => x.coefficient === 'pearson' && x.coverslipId === id)!.mean);
+    for (const [i, m] of slipMeans.entries()) expect(m).toBeCloseTo(fisherMean([0, 1, 2, 3].map((c) => BASE1[i] + 0.02 * c)), 12);
+    const row = first.snapshot.statistics.find((x) => x.coefficient === 'pearson')!;
     // SciPy 1.17.1: ttest_ind(arctanh(m[3:]), arctanh(m[:3]), equal_var=False) → t = 4.093122368146452, p = 0.015784238552054172
     expect(row.test).toBe("Welch's t-test");
     expect(row.statistic).toBeCloseTo(4.093122368146452, 9);
     expect(row.p).toBeCloseTo(0.015784238552054172, 9);
     expect(row.effect).toBeCloseTo(0.19758753983525507, 9);
-    expect(row.sentence).toMatch(/statistically significant/);
-    expect(row.sentence).not.toMatch(/not statistically/);
+    // the sentence states the test result in the one p-value wording (shared/format.ts)
+    expect(row.sentence).toMatch(/Welch's t-test t = 4\.093, p = 0\.016/);
+    expect(row.alsoTests.map((x) => x.test)).toEqual(['Mann–Whitney U test']);
+    // the frozen comparison is the one the row was read from
+    expect(first.snapshot.comparisons.pearson.tests[0].statistic).toBe(row.statistic);
   });
 
-  it('opens its sentence with a capital letter and gives t the sign of the effect (b − a)', () => {
-    const slips = [0.2, 0.25, 0.3, 0.5, 0.55, 0.62].map((mean, i) => ({ coefficient: 'distanceCorrelation' as const, conditionId: i < 3 ? 1 : 2, coverslipId: 100 + i, coverslipName: `s${i}`, n: 4, mean, median: null }));
-    const row = ownTest('distanceCorrelation', [{ id: 1, name: 'control' }, { id: 2, name: 'treated' }], slips);
-    expect(row.sentence).toMatch(/^Distance correlation \(dCor\) averaged/);
+  it('opens its sentence with a capital letter and gives t the sign of the effect (b − a)', async () => {
+    const row = statisticRow('distanceCorrelation', await computeComparison(t.ctx, t.world.studyA, { coefficient: 'distanceCorrelation' }));
+    expect(row.sentence).toMatch(/^[A-Z]/);
+    expect(row.sentence).toContain('Distance correlation (dCor)');
     expect(row.effect!).toBeGreaterThan(0);
     expect(row.statistic!).toBeGreaterThan(0); // same direction as the effect (definition of Welch's t on b − a)
   });
@@ -121,11 +119,10 @@ describe('report snapshot', () => {
     const m = (slip: number) => s2.coverslipSummaries.find((x) => x.coverslipId === rw.coverslipIds[slip])!.mean;
     expect(m(0)).toBeCloseTo(0.34010257219506396, 12);
     expect(m(3)).toBeCloseTo(0.6806345698647114, 12);
-    if (s2.statistics[0].source === 'report') {
-      // SciPy 1.17.1 Welch on Fisher z: t = 5.955192750273458, p = 0.0067623895132865154
-      expect(s2.statistics[0].statistic).toBeCloseTo(5.955192750273458, 9);
-      expect(s2.statistics[0].p).toBeCloseTo(0.0067623895132865154, 9);
-    }
+    // SciPy 1.17.1 Welch on Fisher z: t = 5.955192750273458, p = 0.0067623895132865154
+    expect(s2.statistics[0].test).toBe("Welch's t-test");
+    expect(s2.statistics[0].statistic).toBeCloseTo(5.955192750273458, 9);
+    expect(s2.statistics[0].p).toBeCloseTo(0.0067623895132865154, 9);
     expect(s2.methods).toContain('1 cell was excluded');
     expect(s2.methods).toContain('syntopy-engine 1.1.0');
     // the first report still says what it said

@@ -10,6 +10,7 @@ import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/r
 import { measureRegion } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { syntheticPair } from './helpers.js';
+import { COEFFICIENTS } from '../../shared/coefficients.js';
 
 const W = 64, H = 48;
 const [A, B] = syntheticPair(W, H, 77);
@@ -36,6 +37,23 @@ function job(settings: RecipeSettingsInput, cells: FieldJob['cells'], extra: Par
 }
 
 describe('computeField', () => {
+  it('writes every registry measure (dCor df included) as the engine computed it, and nulls those the recipe did not ask for', () => {
+    const g = rect(8, 8, 20, 16);
+    const idx = cellIndices(g, W, H);
+    const [all] = computeField(job({ threshold: { method: 'none' } }, [{ id: 1, role: 'cell', geometry: g }]), { width: W, height: H, ch1: A, ch2: B });
+    const ref = measureRegion(A, B, idx, { width: W, height: H, threshold: { method: 'none' } });
+    for (const c of COEFFICIENTS) expect(all, c.key).toHaveProperty(c.key);
+    expect(all.dcorDf).toBe(ref.dcorDf);
+    expect(all.dcorDf).toBe(idx.length * (idx.length - 3) / 2 - 1);
+    const [some] = computeField(job({ threshold: { method: 'none' }, coefficients: ['pearson', 'manders'] }, [{ id: 1, role: 'cell', geometry: g }]), { width: W, height: H, ch1: A, ch2: B });
+    for (const c of COEFFICIENTS) {
+      const kept = c.recipeChoice === null || c.recipeChoice === 'pearson' || c.recipeChoice === 'manders';
+      if (c.key === 'pixels') expect(some.pixels).toBe(idx.length);
+      else if (kept) expect(some[c.key], c.key).toBe(all[c.key]);
+      else expect(some[c.key], c.key).toBeNull();
+    }
+  });
+
   it('saturation "exclude" drops pixels saturated in either channel; fractions count them', () => {
     const a = A.slice(), b = B.slice();
     const g = rect(4, 4, 10, 10);

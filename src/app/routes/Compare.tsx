@@ -5,7 +5,8 @@ import { useStudy } from '@/features/studies/api/useStudy';
 import { SourceSelect } from '@/features/celltable/components/SourceSelect';
 import { useComparison } from '@/features/compare/api/useComparison';
 import { ComparePanel } from '@/features/compare/components/ComparePanel';
-import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from '@shared/schemas/compare';
+import { COMPARE_COEFFICIENTS } from '@shared/schemas/compare';
+import { labelOf } from '@shared/coefficients';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 
@@ -45,7 +46,7 @@ export function Component() {
           <select className={inputClass()} value={q.get('coefficient')!} onChange={(e) => set('coefficient', e.target.value)} data-testid="coefficient">
             {COMPARE_COEFFICIENTS.map((c) => (
               <option key={c} value={c}>
-                {COMPARE_LABELS[c]}
+                {labelOf(c)}
               </option>
             ))}
           </select>

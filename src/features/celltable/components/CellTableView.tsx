@@ -7,7 +7,7 @@ import { Link, useSearchParams } from 'react-router';
 import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type SortingState, type VisibilityState } from '@tanstack/react-table';
 import { Badge, Button, Caution, ErrorNotice, Loading, MeasurementCautions, inputClass } from '@/components';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
-import { COLUMN_LABELS, NUMERIC_COLUMNS, SORT_KEYS, type GridRow, type SortKey } from '@shared/schemas/measurements';
+import { COLUMN_LABELS, DEFAULT_VISIBLE_COLUMNS, NUMERIC_COLUMNS, SORT_KEYS, formatColumn, type GridRow, type NumericColumn, type SortKey } from '@shared/schemas/measurements';
 import type { StudyDetail } from '@shared/schemas/studies';
 import { NumberText, readNumberText } from '@shared/schemas/common';
 import { useCellTable } from '../api/useCellTable';
@@ -18,10 +18,11 @@ import { ExcludeDialog } from './ExcludeDialog';
 import { formatDateTime } from '@shared/format/datetime';
 import { plural, noun } from '@shared/format/plural';
 
-const DEFAULT_VISIBLE = new Set(['condition', 'coverslip', 'field', 'cell', 'pixels', 'pearson', 'spearman', 'mandersM1', 'mandersM2', 'saturated', 'provisional', 'excluded']);
+const DEFAULT_VISIBLE = new Set(DEFAULT_VISIBLE_COLUMNS);
 const FILTER_KEYS = ['recipeId', 'runId', 'conditionId', 'coverslipId', 'excluded', 'saturated', 'provisional', 'measured', 'range', 'q', 'sort', 'dir', 'page', 'pageSize'];
 
-const fnum = (v: number | null, k: string) => (v === null ? '' : k === 'pixels' ? String(v) : Math.abs(v) >= 1000 ? v.toFixed(0) : Math.abs(v) >= 10 ? v.toFixed(1) : v.toFixed(3));
+/** empty for a missing value; otherwise as the registry's format says (shared/format.ts: never "-0.000") */
+const fnum = (v: number | null, k: NumericColumn) => (v === null ? '' : formatColumn(k, v));
 
 export function CellTableView({ study }: { study: StudyDetail }) {
   const studyId = study.id;

@@ -3,8 +3,8 @@ import { forwardRef } from 'react';
 import { scaleLinear } from 'd3';
 import type { Comparison, HistogramSet } from '@shared/schemas/compare';
 import { conditionStyle } from './palette';
+import { formatFixed, formatTick } from '@shared/format';
 
-const f3 = (v: number | null) => (v === null ? '—' : v.toFixed(3));
 
 export const HistogramChart = forwardRef<SVGSVGElement, { set: HistogramSet; conditions: Comparison['conditions']; width?: number; height?: number }>(function HistogramChart(
   { set, conditions, width = 360, height = 220 },
@@ -37,13 +37,13 @@ export const HistogramChart = forwardRef<SVGSVGElement, { set: HistogramSet; con
           <g key={t} transform={`translate(0,${y(t)})`}>
             <line x1={0} x2={iw} stroke="#1f2a33" strokeOpacity={0.08} />
             <text x={-6} dy="0.32em" textAnchor="end" fontSize={10} fill="#4a5863">
-              {t}
+              {formatTick(t)}
             </text>
           </g>
         ))}
         {x.ticks(5).map((t) => (
           <text key={t} x={x(t)} y={ih + 14} textAnchor="middle" fontSize={10} fill="#4a5863">
-            {t}
+            {formatTick(t)}
           </text>
         ))}
         <line x1={0} x2={iw} y1={ih} y2={ih} stroke="#4a5863" />
@@ -94,8 +94,8 @@ export function Histograms({ data }: { data: Comparison }) {
                       <td className="font-sans">
                         {name(d.a)} · {name(d.b)}
                       </td>
-                      <td className="text-right">{f3(d.chiSquared)}</td>
-                      <td className="text-right">{f3(d.emd)}</td>
+                      <td className="text-right">{formatFixed(d.chiSquared, 3)}</td>
+                      <td className="text-right">{formatFixed(d.emd, 3)}</td>
                     </tr>
                   ))}
                 </tbody>

@@ -1,9 +1,8 @@
 /** The numbers behind a comparison: per condition, per coverslip, differences with intervals, tests. */
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor } from './palette';
+import { formatMagnitude as f, formatPValue } from '@shared/format';
 
-const f = (v: number | null) => (v === null ? '—' : Math.abs(v) >= 100 ? v.toFixed(1) : v.toFixed(3));
-const fp = (p: number | null) => (p === null ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3));
 const th = 'px-2 py-1 text-left font-medium text-ink-soft';
 const td = 'px-2 py-1';
 const num = 'px-2 py-1 text-right font-mono';
@@ -83,7 +82,7 @@ export function StatsTable({ data }: { data: Comparison }) {
                 <td className={td}>{t.label}</td>
                 <td className={num}>{f(t.statistic)}</td>
                 <td className={num}>{t.df.length ? t.df.map((d) => (Number.isInteger(d) ? d : d.toFixed(1))).join(', ') : '—'}</td>
-                <td className={num}>{fp(t.p)}</td>
+                <td className={num}>{formatPValue(t.p)}</td>
                 <td className={`${td} text-xs text-ink-soft`}>{t.note}</td>
               </tr>
             ))}

@@ -10,6 +10,7 @@ import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamon
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor, coverslipMarker, type Marker } from './palette';
 import { plural } from '@shared/format/plural';
+import { formatMagnitude, formatTick } from '@shared/format';
 
 const SYMBOLS: Record<Marker, SymbolType> = {
   circle: symbolCircle,
@@ -34,7 +35,6 @@ function jitter(id: number) {
   return ((h >>> 0) / 4294967295) * 2 - 1;
 }
 
-const fmt = (v: number | null) => (v === null ? '—' : Math.abs(v) >= 100 ? v.toFixed(0) : v.toFixed(3));
 
 export type SuperPlotProps = { data: Comparison; width?: number; height?: number; title?: string };
 
@@ -105,7 +105,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
           <g key={t} transform={`translate(0,${y(t)})`}>
             <line x1={0} x2={iw} stroke="#1f2a33" strokeOpacity={0.08} />
             <text x={-8} dy="0.32em" textAnchor="end" fontSize={11} fill="#4a5863">
-              {t}
+              {formatTick(t)}
             </text>
           </g>
         ))}
@@ -150,7 +150,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
                 stroke="#ffffff"
                 strokeWidth={1.5}
               >
-                <title>{`${s.name}: mean ${fmt(s.mean)}, ${plural(s.nCells, 'cell')}`}</title>
+                <title>{`${s.name}: mean ${formatMagnitude(s.mean)}, ${plural(s.nCells, 'cell')}`}</title>
               </path>
             ),
           )}
@@ -163,7 +163,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
               {c.name}
             </text>
             <text y={34} textAnchor="middle" fontSize={11} fill="#4a5863">
-              {`${plural(c.nCoverslips, 'coverslip')} · ${plural(c.nCells, 'cell')} · mean ${fmt(c.mean)}`}
+              {`${plural(c.nCoverslips, 'coverslip')} · ${plural(c.nCells, 'cell')} · mean ${formatMagnitude(c.mean)}`}
             </text>
           </g>
         ))}

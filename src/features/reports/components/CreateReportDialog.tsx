@@ -3,7 +3,8 @@ import { useState } from 'react';
 import { useNavigate } from 'react-router';
 import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
-import { COEFFICIENT_LABELS, CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
+import { labelOf } from '@shared/coefficients';
+import { CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
 import { validate, type FieldErrors } from '@/components/form';
 import { useCreateReport } from '../api/useCreateReport';
 
@@ -54,7 +55,7 @@ export function CreateReportDialog({ studyId, open, onClose, initialCoefficients
             {REPORT_COEFFICIENTS.map((k) => (
               <label key={k} className="flex items-center gap-2 text-sm">
                 <input type="checkbox" checked={coefs.includes(k)} onChange={(e) => setCoefs(e.target.checked ? [...coefs, k] : coefs.filter((x) => x !== k))} />
-                {COEFFICIENT_LABELS[k]}
+                {labelOf(k)}
               </label>
             ))}
           </div>

@@ -1,7 +1,7 @@
 /** The study's reports, newest first. */
 import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading } from '@/components';
-import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/reports';
+import { COEFFICIENTS } from '@shared/coefficients';
 import { useReports } from '../api/useReports';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { formatDateTime } from '@shared/format/datetime';
@@ -27,7 +27,7 @@ export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAct
             </Link>
             <p className="text-xs text-ink-soft">
               {formatDateTime(r.createdAt)}
-              {r.createdBy && ` · ${r.createdBy}`} · {plural(r.cells, 'cell')} · {r.coefficients.map((k) => COEFFICIENT_LABELS[k as ReportCoefficient] ?? k).join(', ')}
+              {r.createdBy && ` · ${r.createdBy}`} · {plural(r.cells, 'cell')} · {r.coefficients.map((k) => (COEFFICIENTS.find((c) => c.key === k)?.label ?? k)).join(', ')}
             </p>
           </div>
           {r.anyProvisional && <ProvisionalBadge />}

@@ -4,25 +4,18 @@
  * cell's pixel scatter, exclusions, provenance, the methods paragraph and the cautions. Everything comes from the
  * frozen snapshot; nothing is recomputed.
  */
-import { useMemo, useState } from 'react';
-import { Comparison } from '@shared/schemas/compare';
+import { useState } from 'react';
 import { SuperPlot, SuperPlotLegend } from '@/features/compare/components/SuperPlot';
 import { Badge, Caution } from '@/components';
-import { COEFFICIENT_LABELS, CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
-import { ReplicatePlot } from './ReplicatePlot';
+import { CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
+import { formatCoefficient, labelOf } from '@shared/coefficients';
+import { formatMagnitude, formatPValue } from '@shared/format';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
-import { fmtNum, fmtP } from './palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import './report-print.css';
 import { formatDateTime } from '@shared/format/datetime';
 import { plural, noun } from '@shared/format/plural';
-
-/** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
-function frozenComparison(v: unknown): Comparison | null {
-  const r = Comparison.safeParse(v);
-  return r.success ? r.data : null;
-}
 
 const TABLE_LABELS: Record<CsvTable, string> = { cells: 'Cells', coverslips: 'Coverslip means', conditions: 'Condition summaries', statistics: 'Statistics', exclusions: 'Exclusions' };
 
@@ -38,16 +31,16 @@ function Section({ title, children, long = false, id, provisional = false }: { t
   );
 }
 
+/** The frozen comparison of one coefficient, drawn by Compare's replicate-aware plot. */
 function CoefficientPlot({ report, k }: { report: ReportDetail; k: ReportCoefficient }) {
-  const comparison = useMemo(() => frozenComparison(report.snapshot.comparisons[k]), [report, k]);
-  if (comparison && comparison.points.length > 0)
-    return (
-      <figure className="report-figure">
-        <SuperPlot data={comparison} />
-        <SuperPlotLegend data={comparison} />
-      </figure>
-    );
-  return <ReplicatePlot snapshot={report.snapshot} coefficient={k} />;
+  const comparison = report.snapshot.comparisons[k];
+  if (!comparison || comparison.points.length === 0) return <p className="text-sm text-ink-soft">No measured cells for {labelOf(k)}.</p>;
+  return (
+    <figure className="report-figure">
+      <SuperPlot data={comparison} />
+      <SuperPlotLegend data={comparison} />
+    </figure>
+  );
 }
 
 export function ReportView({ report, csvHref, actions }: { report: ReportDetail; csvHref: (table: CsvTable) => string; actions?: React.ReactNode }) {
@@ -67,7 +60,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
             </h1>
             <p className="mt-1 text-sm text-ink-soft">
               Frozen {formatDateTime(s.createdAt)}
-              {report.createdBy && ` by ${report.createdBy}`} · {s.coefficients.map((k) => COEFFICIENT_LABELS[k]).join(', ')}
+              {report.createdBy && ` by ${report.createdBy}`} · {s.coefficients.map((k) => labelOf(k)).join(', ')}
             </p>
             <div className="mt-2 flex flex-wrap gap-2">
               {s.anyProvisional && (
@@ -100,7 +93,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         <ul className="space-y-2">
           {s.statistics.map((st) => (
             <li key={st.coefficient} className="text-sm">
-              <span className="font-medium">{COEFFICIENT_LABELS[st.coefficient]}.</span> {st.sentence}
+              <span className="font-medium">{labelOf(st.coefficient)}.</span> {st.sentence}
             </li>
           ))}
         </ul>
@@ -120,13 +113,13 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
             <tbody>
               {s.statistics.flatMap((st) => [
                 <tr key={st.coefficient} className="border-b border-ink/5">
-                  <td className="py-1 pr-3">{COEFFICIENT_LABELS[st.coefficient]}</td>
+                  <td className="py-1 pr-3">{labelOf(st.coefficient)}</td>
                   <td className="py-1 pr-3">{st.test}</td>
-                  <td className="py-1 pr-3 text-right font-mono">{fmtNum(st.statistic)}</td>
-                  <td className="py-1 pr-3 text-right font-mono">{fmtNum(st.df, 2)}</td>
-                  <td className="py-1 pr-3 text-right font-mono">{fmtP(st.p)}</td>
+                  <td className="py-1 pr-3 text-right font-mono">{formatMagnitude(st.statistic)}</td>
+                  <td className="py-1 pr-3 text-right font-mono">{formatMagnitude(st.df)}</td>
+                  <td className="py-1 pr-3 text-right font-mono">{formatPValue(st.p)}</td>
                   <td className="py-1 pr-3">
-                    {st.effect === null ? '—' : `${fmtNum(st.effect)}${st.ciLow !== null ? ` (${fmtNum(st.ciLow)} to ${fmtNum(st.ciHigh)})` : ''}`}
+                    {st.effect === null ? '—' : `${formatMagnitude(st.effect)}${st.ciLow !== null ? ` (${formatMagnitude(st.ciLow)} to ${formatMagnitude(st.ciHigh)})` : ''}`}
                     {st.effectLabel && <span className="text-xs text-ink-soft"> {st.effectLabel}</span>}
                   </td>
                 </tr>,
@@ -134,9 +127,9 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
                   <tr key={`${st.coefficient}-${o.test}`} className="border-b border-ink/5 text-ink-soft">
                     <td className="py-1 pr-3" />
                     <td className="py-1 pr-3">{o.test}</td>
-                    <td className="py-1 pr-3 text-right font-mono">{fmtNum(o.statistic)}</td>
-                    <td className="py-1 pr-3 text-right font-mono">{fmtNum(o.df, 2)}</td>
-                    <td className="py-1 pr-3 text-right font-mono">{fmtP(o.p)}</td>
+                    <td className="py-1 pr-3 text-right font-mono">{formatMagnitude(o.statistic)}</td>
+                    <td className="py-1 pr-3 text-right font-mono">{formatMagnitude(o.df)}</td>
+                    <td className="py-1 pr-3 text-right font-mono">{formatPValue(o.p)}</td>
                     <td className="py-1 pr-3" />
                   </tr>
                 )),
@@ -150,7 +143,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         <div className="grid gap-6">
           {s.coefficients.map((k) => (
             <div key={k}>
-              <h3 className="mb-1 text-sm font-semibold">{COEFFICIENT_LABELS[k]}</h3>
+              <h3 className="mb-1 text-sm font-semibold">{labelOf(k)}</h3>
               <CoefficientPlot report={report} k={k} />
             </div>
           ))}
@@ -175,15 +168,15 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
             <tbody>
               {s.conditionSummaries.map((c) => (
                 <tr key={`${c.coefficient}-${c.conditionId}`} className="border-b border-ink/5">
-                  <td className="py-1 pr-3">{COEFFICIENT_LABELS[c.coefficient]}</td>
+                  <td className="py-1 pr-3">{labelOf(c.coefficient)}</td>
                   <td className="py-1 pr-3">{c.conditionName}</td>
                   <td className="py-1 pr-3 text-right font-mono">{c.cells}</td>
                   <td className="py-1 pr-3 text-right font-mono">{c.coverslips}</td>
-                  <td className="py-1 pr-3 text-right font-mono">{fmtNum(c.mean)}</td>
-                  <td className="py-1 pr-3 text-right font-mono">{fmtNum(c.sd)}</td>
-                  <td className="py-1 pr-3 text-right font-mono">{fmtNum(c.median)}</td>
+                  <td className="py-1 pr-3 text-right font-mono">{formatCoefficient(c.coefficient, c.mean)}</td>
+                  <td className="py-1 pr-3 text-right font-mono">{formatCoefficient(c.coefficient, c.sd)}</td>
+                  <td className="py-1 pr-3 text-right font-mono">{formatCoefficient(c.coefficient, c.median)}</td>
                   <td className="py-1 pr-3 text-right font-mono">
-                    {fmtNum(c.min)} – {fmtNum(c.max)}
+                    {formatCoefficient(c.coefficient, c.min)} – {formatCoefficient(c.coefficient, c.max)}
                   </td>
                 </tr>
               ))}

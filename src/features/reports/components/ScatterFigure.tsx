@@ -1,6 +1,6 @@
 /** Pixel scatter of one cell: a 2-D histogram of (channel 1, channel 2) with the cell's thresholds as lines. */
 import type { CellScatter } from '@shared/schemas/reports';
-import { fmtNum } from './palette';
+import { formatFixed } from '@shared/format';
 import { plural } from '@shared/format/plural';
 
 export function ScatterFigure({ scatter }: { scatter: CellScatter }) {
@@ -24,11 +24,11 @@ export function ScatterFigure({ scatter }: { scatter: CellScatter }) {
         })}
         {tx !== null && <line x1={tx} x2={tx} y1={0} y2={S} stroke="#b45309" strokeDasharray="4 3" />}
         {ty !== null && <line x1={0} x2={S} y1={ty} y2={ty} stroke="#b45309" strokeDasharray="4 3" />}
-        <text x={S / 2} y={S + 16} fontSize={11} textAnchor="middle" fill="#1f2a33">channel 1 (0–{fmtNum(max1, 0)})</text>
-        <text x={-10} y={S / 2} fontSize={11} textAnchor="middle" fill="#1f2a33" transform={`rotate(-90 -10 ${S / 2})`}>channel 2 (0–{fmtNum(max2, 0)})</text>
+        <text x={S / 2} y={S + 16} fontSize={11} textAnchor="middle" fill="#1f2a33">channel 1 (0–{formatFixed(max1, 0)})</text>
+        <text x={-10} y={S / 2} fontSize={11} textAnchor="middle" fill="#1f2a33" transform={`rotate(-90 -10 ${S / 2})`}>channel 2 (0–{formatFixed(max2, 0)})</text>
       </svg>
       <figcaption className="mt-1 text-xs text-ink-soft">
-        {scatter.cellName} in {scatter.fieldName}: {plural(scatter.pixels, 'pixel')}, raw intensities, shade on a log scale. Dashed lines: thresholds T1 = {fmtNum(scatter.threshold1, 1)}, T2 = {fmtNum(scatter.threshold2, 1)}.
+        {scatter.cellName} in {scatter.fieldName}: {plural(scatter.pixels, 'pixel')}, raw intensities, shade on a log scale. Dashed lines: thresholds T1 = {formatFixed(scatter.threshold1, 1)}, T2 = {formatFixed(scatter.threshold2, 1)}.
       </figcaption>
     </figure>
   );

@@ -126,7 +126,7 @@ export function ConditionCard({
                   )}
                 </div>
                 {cs.notes && <p className="mt-1 whitespace-pre-line text-sm text-ink-soft">{cs.notes}</p>}
-                <FieldsSlot coverslipId={cs.id} studyId={study.id} canUpload={canUpload} fieldCount={cs.fieldCount} />
+                <FieldsSlot coverslipId={cs.id} studyId={study.id} canUpload={canUpload} />
               </li>
             ))}
           </ol>

@@ -8,17 +8,12 @@ import type { GridResponse } from '@shared/schemas/measurements';
 import type { Cell } from '@shared/schemas/cells';
 import { SMALL_CELL_PIXELS } from './CellsPanel';
 import { fmtCoef } from './LivePreview';
+import { RESULTS_KEYS, byKey } from '@shared/coefficients';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 import { noun } from '@shared/format/plural';
 
-const COLS: { key: 'pearson' | 'spearman' | 'kendallTauB' | 'mandersM1' | 'mandersM2' | 'icq'; label: string }[] = [
-  { key: 'pearson', label: 'r' },
-  { key: 'spearman', label: 'ρ' },
-  { key: 'kendallTauB', label: 'τ-b' },
-  { key: 'mandersM1', label: 'M1' },
-  { key: 'mandersM2', label: 'M2' },
-  { key: 'icq', label: 'ICQ' },
-];
+/** The registry's `results` measures (shared/coefficients.ts) after the pixel count, with their short labels. */
+const COLS = RESULTS_KEYS.filter((k) => k !== 'pixels').map((k) => ({ key: k, label: byKey(k).shortLabel, title: byKey(k).label }));
 
 export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSaturated, loadError }: { results: GridResponse | undefined; cells: Cell[]; selectedCellId: number | null; onSelect: (cellId: number) => void; fieldSaturated: boolean; loadError: boolean }) {
   const rows = results?.rows ?? [];
@@ -46,7 +41,7 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
                 <th className="px-1.5 py-1 text-left font-medium">Cell</th>
                 <th className="px-1.5 py-1 text-right font-medium">Pixels</th>
                 {COLS.map((c) => (
-                  <th key={c.key} className="px-1.5 py-1 text-right font-medium">
+                  <th key={c.key} className="px-1.5 py-1 text-right font-medium" title={c.title}>
                     {c.label}
                   </th>
                 ))}

@@ -1,0 +1,1 @@
+ALTER TABLE `measurements` ADD `dcor_df` real;
