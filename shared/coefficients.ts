@@ -16,7 +16,7 @@
  * This module may import types from the engine; the engine imports nothing from here.
  */
 import { MEASURE_KEYS, type MeasureKey, type RegionResult } from './analysis/types';
-import { formatNumber, type NumberKind } from './format';
+import { formatNumber, type NumberKind } from './format/number';
 
 export type CoefficientKey = MeasureKey;
 

@@ -31,7 +31,7 @@ import {
   type ThresholdOptions,
 } from '../../shared/analysis/index';
 import { COEFFICIENTS } from '../../shared/coefficients';
-import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format';
+import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
 import { readLabelImage } from '../images/mask';
 

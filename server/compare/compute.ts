@@ -17,7 +17,7 @@
 import type { AppContext } from '../context.js';
 import { badRequest } from '../http/errors.js';
 import { byKey } from '../../shared/coefficients.js';
-import { formatMagnitude, formatP } from '../../shared/format.js';
+import { formatMagnitude, formatP } from '../../shared/format/number.js';
 import {
   Comparison,
   CompareQuery,

@@ -5,7 +5,7 @@
  */
 import { z } from 'zod';
 import { CELL_TABLE_KEYS, COEFFICIENTS, byKey, formatCoefficient, isCoefficientKey } from '../coefficients';
-import { formatNumber } from '../format';
+import { formatNumber } from '../format/number';
 
 /**
  * Numeric measurement columns: sortable, filterable by range, exportable. Keys are the API names: the registry's

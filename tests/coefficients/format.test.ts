@@ -3,7 +3,7 @@
  * p-values have one wording ("p = 0.032", "p < 0.001"; "0.032", "< 0.001" in a p column).
  */
 import { describe, expect, it } from 'vitest';
-import { formatFixed, formatMagnitude, formatNumber, formatP, formatPValue, formatTick, formatIntensity } from '../../shared/format.js';
+import { formatFixed, formatMagnitude, formatNumber, formatP, formatPValue, formatTick, formatIntensity } from '../../shared/format/number.js';
 import { formatCoefficient } from '../../shared/coefficients.js';
 import { formatColumn } from '../../shared/schemas/measurements.js';
 

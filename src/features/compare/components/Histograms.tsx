@@ -3,7 +3,7 @@ import { forwardRef } from 'react';
 import { scaleLinear } from 'd3';
 import type { Comparison, HistogramSet } from '@shared/schemas/compare';
 import { conditionStyle } from './palette';
-import { formatFixed, formatTick } from '@shared/format';
+import { formatFixed, formatTick } from '@shared/format/number';
 
 
 export const HistogramChart = forwardRef<SVGSVGElement, { set: HistogramSet; conditions: Comparison['conditions']; width?: number; height?: number }>(function HistogramChart(

@@ -1,7 +1,7 @@
 /** The numbers behind a comparison: per condition, per coverslip, differences with intervals, tests. */
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor } from './palette';
-import { formatMagnitude as f, formatPValue } from '@shared/format';
+import { formatMagnitude as f, formatPValue } from '@shared/format/number';
 
 const th = 'px-2 py-1 text-left font-medium text-ink-soft';
 const td = 'px-2 py-1';

@@ -10,7 +10,7 @@ import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamon
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor, coverslipMarker, type Marker } from './palette';
 import { plural } from '@shared/format/plural';
-import { formatMagnitude, formatTick } from '@shared/format';
+import { formatMagnitude, formatTick } from '@shared/format/number';
 
 const SYMBOLS: Record<Marker, SymbolType> = {
   circle: symbolCircle,

@@ -9,7 +9,7 @@ import { SuperPlot, SuperPlotLegend } from '@/features/compare/components/SuperP
 import { Badge, Caution } from '@/components';
 import { CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
 import { formatCoefficient, labelOf } from '@shared/coefficients';
-import { formatMagnitude, formatPValue } from '@shared/format';
+import { formatMagnitude, formatPValue } from '@shared/format/number';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';

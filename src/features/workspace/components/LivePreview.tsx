@@ -5,7 +5,7 @@
  */
 import type { RegionResult } from '@shared/analysis/types';
 import { PREVIEW_KEYS, byKey } from '@shared/coefficients';
-import { formatFixed } from '@shared/format';
+import { formatFixed } from '@shared/format/number';
 import { Badge } from '@/components';
 import { plural } from '@shared/format/plural';
 
