@@ -50,7 +50,7 @@ export const COLUMN_LABELS: Record<string, string> = {
   runId: 'Run',
 };
 
-/** How a numeric column is written in the table (shared/format.ts): measures by their registry format. */
+/** How a numeric column is written in the table (shared/format/number.ts): measures by their registry format. */
 export function formatColumn(k: NumericColumn, v: number | null): string {
   if (isCoefficientKey(k)) return formatCoefficient(k, v);
   return formatNumber(v, k.startsWith('saturatedFraction') ? 'fraction' : 'intensity');

@@ -21,7 +21,7 @@ import { plural, noun } from '@shared/format/plural';
 const DEFAULT_VISIBLE = new Set(DEFAULT_VISIBLE_COLUMNS);
 const FILTER_KEYS = ['recipeId', 'runId', 'conditionId', 'coverslipId', 'excluded', 'saturated', 'provisional', 'measured', 'range', 'q', 'sort', 'dir', 'page', 'pageSize'];
 
-/** empty for a missing value; otherwise as the registry's format says (shared/format.ts: never "-0.000") */
+/** empty for a missing value; otherwise as the registry's format says (shared/format/number.ts: never "-0.000") */
 const fnum = (v: number | null, k: NumericColumn) => (v === null ? '' : formatColumn(k, v));
 
 export function CellTableView({ study }: { study: StudyDetail }) {

@@ -12,7 +12,7 @@ import { plural } from '@shared/format/plural';
 /** The measures the preview shows: the registry's `preview` entries (shared/coefficients.ts). */
 export const PREVIEW_COEFFICIENTS = PREVIEW_KEYS.map((k) => byKey(k));
 
-/** Three decimals; a value that rounds to zero is shown as 0.000, never "-0.000" (shared/format.ts). */
+/** Three decimals; a value that rounds to zero is shown as 0.000, never "-0.000" (shared/format/number.ts). */
 export const fmtCoef = (v: number | null | undefined) => formatFixed(v, 3);
 
 export function LivePreview({ result, regionName, t1, t2, ms, pending, stale }: { result: RegionResult | null; regionName: string; t1: number; t2: number; ms: number; pending: boolean; stale: boolean }) {
