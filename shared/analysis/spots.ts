@@ -21,6 +21,8 @@
  *    (0, 0), so pixel (i, j) has its centre at (i + 0.5, j + 0.5).
  * 5. Minimum separation: candidates in decreasing response; one closer than `minSeparation` (centre to
  *    centre) to an already kept spot is dropped.
+ * 6. Close neighbours: spots within reach of each other's window are refined again against the image minus
+ *    their neighbours' fitted Gaussian models (see `deblend`); σ is taken as the spots' Gaussian width.
  * Per spot: centre, peak (the raw intensity of the peak pixel), integrated intensity (Σ(I − b) over the
  * window), and the filter response at the peak pixel.
  *
@@ -50,6 +52,13 @@ export interface Spot {
   peak: number;
   integrated: number;
   response: number;
+}
+
+interface Refined extends Spot {
+  px: number;
+  py: number;
+  background: number;
+  amplitude: number;
 }
 
 export interface SpotDetection {
@@ -211,59 +220,118 @@ export function detectSpots(
     }
     if (isMax) cand.push(i);
   }
-  const refined: Spot[] = [];
+  const refined: Refined[] = [];
   for (const i of cand) {
-    const s = refineSpot(data, width, height, i % width, Math.floor(i / width), sigma, w);
+    const s = refineSpot(data, width, height, i % width, Math.floor(i / width), sigma, w, null);
     if (s) {
       s.response = resp[at(i)];
       refined.push(s);
     }
   }
   refined.sort((a, b) => b.response - a.response || a.y - b.y || a.x - b.x);
+  let kept: Refined[] = refined;
   if (minSeparation > 0 && refined.length > 1) {
-    // kept spots go into a grid of cell = minSeparation, built over all candidates' positions
+    kept = [];
     const grid = new PointGrid(refined.map((s) => s.x), refined.map((s) => s.y), minSeparation);
-    const kept = new Uint8Array(refined.length);
+    const keep = new Uint8Array(refined.length);
     for (let a = 0; a < refined.length; a++) {
       let clash = false;
       grid.within(refined[a].x, refined[a].y, minSeparation, (b, d) => {
-        if (kept[b] && d < minSeparation) clash = true;
+        if (keep[b] && d < minSeparation) clash = true;
       });
       if (!clash) {
-        kept[a] = 1;
-        result.spots.push(refined[a]);
+        keep[a] = 1;
+        kept.push(refined[a]);
       }
     }
-  } else result.spots = refined;
-  return result;
+  }
+  result.spots = deblend(data, width, height, kept, sigma, w);
+    return result;
 }
 
-/** Gaussian-mask centroid around peak pixel (px, py); null when there is no signal above background. */
-function refineSpot(data: ChannelArray, width: number, height: number, px: number, py: number, sigma: number, w: number): Spot | null {
+/**
+ * Spots whose windows reach each other's light are refined again, each against the image minus the
+ * Gaussian models (amplitude A·exp(−r²/2σ²), σ taken as the spot's width) of its neighbours at their
+ * previous estimates, for up to 20 rounds or until no centre moves by 1e−4 px. Without this a close
+ * neighbour pulls the centroid towards itself (by 0.3–0.8 px for spots 5 px apart at σ 1.5).
+ */
+function deblend(data: ChannelArray, width: number, height: number, spots: Refined[], sigma: number, w: number): Spot[] {
+  const reach = w * Math.SQRT2 + 4 * sigma;
+  const grid = new PointGrid(spots.map((s) => s.x), spots.map((s) => s.y), reach);
+  const near: number[][] = spots.map((s, a) => {
+    const out: number[] = [];
+    grid.within(s.x, s.y, reach, (b) => {
+      if (b !== a) out.push(b);
+    });
+    return out;
+  });
+  // a spot with no light of its own once its neighbours' models are subtracted is dropped (null)
+  let cur: (Refined | null)[] = spots;
+  if (near.some((l) => l.length > 0)) {
+    for (let round = 0; round < 20; round++) {
+      let moved = 0;
+      const prev = cur;
+      cur = prev.map((s, a) => {
+        if (s === null || near[a].length === 0) return s;
+        const others = near[a].map((b) => prev[b]).filter((o): o is Refined => o !== null);
+        const r = refineSpot(data, width, height, s.px, s.py, sigma, w, others);
+        if (r === null) {
+          moved = Infinity;
+          return null;
+        }
+        r.response = s.response;
+        moved = Math.max(moved, Math.abs(r.x - s.x) + Math.abs(r.y - s.y));
+        return r;
+      });
+      if (moved < 1e-4) break;
+    }
+  }
+  return cur.filter((s): s is Refined => s !== null).map((s) => ({ x: s.x, y: s.y, peak: s.peak, integrated: s.integrated, response: s.response }));
+}
+
+/**
+ * Gaussian-mask centroid around peak pixel (px, py), with the models of `others` subtracted; null when
+ * there is no signal above background or the centre leaves the peak pixel's 3×3 neighbourhood.
+ */
+function refineSpot(data: ChannelArray, width: number, height: number, px: number, py: number, sigma: number, w: number, others: Refined[] | null): Refined | null {
   const x0 = Math.max(0, px - w), x1 = Math.min(width - 1, px + w);
   const y0 = Math.max(0, py - w), y1 = Math.min(height - 1, py + w);
-  // local background: median of the window's outer ring
+  const inv = 1 / (2 * sigma * sigma);
+  const ww = x1 - x0 + 1;
+  const vals = new Float64Array(ww * (y1 - y0 + 1));
+  for (let y = y0; y <= y1; y++)
+    for (let x = x0; x <= x1; x++) {
+      let v = data[y * width + x];
+      if (others) for (const o of others) v -= o.amplitude * Math.exp(-((x + 0.5 - o.x) ** 2 + (y + 0.5 - o.y) ** 2) * inv);
+      vals[(y - y0) * ww + (x - x0)] = v;
+    }
+  // local background: median of the window's outer ring (of the raw pixels when no neighbours are modelled)
   const ring: number[] = [];
   for (let y = y0; y <= y1; y++)
-    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) ring.push(data[y * width + x]);
-  const b = medianInPlace(Float32Array.from(ring));
+    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) ring.push(vals[(y - y0) * ww + (x - x0)]);
+  ring.sort((a, b) => a - b);
+  const m = ring.length;
+  const b = m % 2 ? ring[(m - 1) / 2] : (ring[m / 2 - 1] + ring[m / 2]) / 2;
   let cx = px + 0.5, cy = py + 0.5;
-  const inv = 1 / (2 * sigma * sigma);
   let integrated = 0;
-  for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) integrated += data[y * width + x] - b;
+  for (let t = 0; t < vals.length; t++) integrated += vals[t] - b;
+  let amplitude = 0;
   for (let it = 0; it < 50; it++) {
-    let s = 0, sx = 0, sy = 0;
+    let s = 0, sx = 0, sy = 0, gg = 0;
     for (let y = y0; y <= y1; y++) {
       const yc = y + 0.5, ey = (yc - cy) * (yc - cy);
       for (let x = x0; x <= x1; x++) {
         const xc = x + 0.5;
-        const wgt = (data[y * width + x] - b) * Math.exp(-((xc - cx) * (xc - cx) + ey) * inv);
+        const g = Math.exp(-((xc - cx) * (xc - cx) + ey) * inv);
+        const wgt = (vals[(y - y0) * ww + (x - x0)] - b) * g;
         s += wgt;
         sx += wgt * xc;
         sy += wgt * yc;
+        gg += g * g;
       }
     }
     if (!(s > 0)) return null;
+    amplitude = s / gg;
     const nx = sx / s, ny = sy / s;
     const moved = Math.abs(nx - cx) + Math.abs(ny - cy);
     cx = nx;
@@ -271,5 +339,5 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
     if (Math.abs(cx - (px + 0.5)) > 1.5 || Math.abs(cy - (py + 0.5)) > 1.5) return null;
     if (moved < 1e-4) break;
   }
-  return { x: cx, y: cy, peak: data[py * width + px], integrated, response: 0 };
+  return { x: cx, y: cy, px, py, peak: data[py * width + px], integrated, response: 0, background: b, amplitude };
 }
