@@ -142,3 +142,9 @@ export function measureRegion(ch1: ChannelArray, ch2: ChannelArray, region: Regi
   }
   return result;
 }
+export { laplacianOfGaussian, gaussianFilter, gaussianKernels, type PixelBox } from './gaussian';
+export { detectSpots, spotOptions, SPOT_DEFAULTS, type Spot, type SpotDetection, type SpotOptions } from './spots';
+export { PointGrid, pairSpots, nearestNeighbours, type PairingResult, type NearestResult } from './pairing';
+export { spotPlacementTest, SPOT_TEST_DEFAULTS, type SpotTestResult, type KEnvelope } from './spot-test';
+export { crossK, type CrossK, type KCorrection, type KWindow } from './ripley';
+export { measureObjects, analyzeObjects, OBJECT_DEFAULTS, OBJECT_RESULT_KEYS, type ObjectResult, type ObjectOptions, type ObjectAnalysis } from './objects';
