@@ -21,7 +21,7 @@ import { fromArrayBuffer } from 'geotiff';
 import { checkRawSize } from './codecs.js';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
-import { bufferReader, checkPageExtents, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
+import { bufferReader, checkPageExtents, MAX_PLANES, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
 
 export { ImageInputError };
 
@@ -204,6 +204,10 @@ function parseOme(desc: string | null): OmeMeta | null {
   const sizeC = int(px.SizeC, 1);
   const sizeZ = int(px.SizeZ, 1);
   const sizeT = int(px.SizeT, 1);
+  // checked before anything is sized by these numbers (channel names, the plane table)
+  if (sizeC * sizeZ * sizeT > MAX_PLANES) {
+    throw new ImageInputError(`the OME description claims ${sizeC} channels × ${sizeZ} slices × ${sizeT} time points, more than the ${MAX_PLANES} image planes Syntopy reads from one file`, 413);
+  }
   const order = typeof px.DimensionOrder === 'string' && /^XY[ZCT]{3}$/.test(px.DimensionOrder) ? px.DimensionOrder : 'XYCZT';
   const chans: any[] = Array.isArray(px.Channel) ? px.Channel : [];
   const names = Array.from({ length: sizeC }, (_, i) => {
@@ -247,7 +251,6 @@ function planFromHeader(h: TiffHeader): Plan {
   if (ome && h.pages.every((p) => p.samplesPerPixel === 1)) {
     const sizes = { C: ome.sizeC, Z: ome.sizeZ, T: ome.sizeT };
     const total = ome.sizeC * ome.sizeZ * ome.sizeT;
-    if (total > 1_000_000) throw new ImageInputError(`the OME description claims ${total} planes`);
     const ifdOf = new Array<number>(total);
     for (let i = 0; i < total; i++) ifdOf[i] = i;
     for (const td of ome.tiffData) {

@@ -292,3 +292,32 @@ export function differenceRows(px: Uint8Array | Uint16Array, width: number): Uin
   for (let i = d.length - 1; i >= 0; i--) if (i % width !== 0) d[i] = (px[i] - px[i - 1]) & (px instanceof Uint8Array ? 0xff : 0xffff);
   return new Uint8Array(d.buffer, d.byteOffset, d.byteLength);
 }
+
+/**
+ * One-page little-endian TIFF from raw directory entries (tag, type, count, value-or-offset), for headers
+ * no writer would produce. `blob` is appended after the directory; an entry whose value is 'blob' points at it.
+ */
+export function tiffFromEntries(entries: [number, number, number, number | 'blob'][], blob: Uint8Array = new Uint8Array(0), pixels: Uint8Array = new Uint8Array(0)): Buffer {
+  const ifdSize = 2 + entries.length * 12 + 4;
+  const blobAt = 8 + ifdSize;
+  const pixAt = blobAt + blob.length;
+  const b = Buffer.alloc(pixAt + pixels.length);
+  b.write('II', 0, 'latin1');
+  b.writeUInt16LE(42, 2);
+  b.writeUInt32LE(8, 4);
+  b.writeUInt16LE(entries.length, 8);
+  let q = 10;
+  for (const [tag, type, count, value] of [...entries].sort((x, y) => x[0] - y[0])) {
+    b.writeUInt16LE(tag, q);
+    b.writeUInt16LE(type, q + 2);
+    b.writeUInt32LE(count >>> 0, q + 4);
+    const v = value === 'blob' ? blobAt : value === -1 ? pixAt : value;
+    if (type === 3 && count === 1) b.writeUInt16LE(v, q + 8);
+    else b.writeUInt32LE(v >>> 0, q + 8);
+    q += 12;
+  }
+  b.writeUInt32LE(0, q);
+  Buffer.from(blob).copy(b, blobAt);
+  Buffer.from(pixels).copy(b, pixAt);
+  return b;
+}
