@@ -2,8 +2,10 @@
  * TIFF / OME-TIFF decoding shared by the intake routes and the `analyze` command.
  *
  * Every input is first walked with the bounded header reader (tiffheader.ts): magic bytes, page sizes,
- * sample layout, compression and data extents are checked against the pixel budget BEFORE any pixel is
- * decoded; only then does `geotiff` decode the chosen pages/samples.
+ * sample layout, compression and data extents are checked against the pixel budget, and the whole file's
+ * declared image data against the decoded-bytes budget, BEFORE any pixel is decoded; only then does
+ * `geotiff` decode the chosen pages/samples, through our bounded codecs (codecs.ts), which refuse any strip
+ * or tile that would unpack to more than its size.
  *
  * Channel model:
  *  - OME-TIFF (ImageDescription holds OME-XML, one sample per page): channels are the OME channels
