@@ -10,9 +10,9 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
-import { decodeChannels } from '../../server/images/decode.js';
+import { decodeChannel, decodeChannels, ImageInputError } from '../../server/images/decode.js';
 import { unpackBits, unpackLzw } from '../../server/images/codecs.js';
-import { differenceRows, lzwEncode, packBitsEncode, packBitsZeroRuns, tiffPages, tiffStripPages, twoChannels } from './tiff.js';
+import { differenceRows, lzwEncode, packBitsEncode, packBitsZeroRuns, tiffFromEntries, tiffPages, tiffStripPages, twoChannels } from './tiff.js';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -110,6 +110,41 @@ describe('genuine compressed files decode to the pixels written', () => {
     expect([f.width, f.height, f.bitDepth]).toEqual([W, H, 8]);
     expect(f.facts.ch1.max).toBe(Math.max(...px));
     expect(f.facts.ch2.min).toBe(255 - Math.max(...px));
+  });
+});
+
+/** A 32×32 8-bit LZW page in four 16×16 tiles; `tile(k)` gives the uncompressed bytes of tile k. */
+function tiledLzw(tile: (k: number) => Uint8Array) {
+  const tiles = [0, 1, 2, 3].map((k) => lzwEncode(tile(k)));
+  const blobAt = 8 + 2 + 11 * 12 + 4;
+  const tables = new Uint8Array(32);
+  const dv = new DataView(tables.buffer);
+  let at = blobAt + 32;
+  tiles.forEach((t, k) => {
+    dv.setUint32(4 * k, at, true);
+    dv.setUint32(16 + 4 * k, t.length, true);
+    at += t.length;
+  });
+  const blob = new Uint8Array(32 + tiles.reduce((a, t) => a + t.length, 0));
+  blob.set(tables);
+  let o = 32;
+  for (const t of tiles) {
+    blob.set(t, o);
+    o += t.length;
+  }
+  return tiffFromEntries([[256, 4, 1, 32], [257, 4, 1, 32], [258, 3, 1, 8], [259, 3, 1, 5], [262, 3, 1, 1], [277, 3, 1, 1], [284, 3, 1, 1], [322, 3, 1, 16], [323, 3, 1, 16], [324, 4, 4, blobAt], [325, 4, 4, blobAt + 16]], blob);
+}
+
+describe('tiled files', () => {
+  it('a genuine LZW-tiled page decodes to its pixels; a tile that unpacks past 16×16 bytes is refused', async () => {
+    const tileBytes = (k: number) => new Uint8Array(256).map((_, i) => k * 50 + (i % 16) + (i >> 4));
+    const d = await decodeChannel(new Uint8Array(tiledLzw(tileBytes)), 1);
+    const px = d.slices[0];
+    // pixel (x, y) lies in tile (x >> 4) + 2 (y >> 4) at (x & 15, y & 15)
+    for (const [x, y] of [[0, 0], [17, 3], [5, 20], [31, 31]]) expect(px[y * 32 + x]).toBe(((x >> 4) + 2 * (y >> 4)) * 50 + (x & 15) + (y & 15));
+    const e = await decodeChannel(new Uint8Array(tiledLzw((k) => (k === 2 ? new Uint8Array(1 << 20) : tileBytes(k)))), 1).then(() => null, (x) => x);
+    expect(e).toBeInstanceOf(ImageInputError);
+    expect((e as Error).message).toMatch(/LZW-compressed block unpacks to more than its declared 256 bytes/);
   });
 });
 
