@@ -19,6 +19,11 @@ const EnvSchema = z.object({
   MAX_UPLOAD_BYTES: z.coerce.number().int().positive().default(2 * 1024 ** 3),
   MAX_FILES_PER_REQUEST: z.coerce.number().int().positive().default(100),
   PIXEL_BUDGET: z.coerce.number().int().positive().default(2 ** 28),
+  /** most bytes the image data of one uploaded file may unpack to (server/images/decode.ts) */
+  MAX_DECODED_BYTES: z.coerce.number().int().positive().default(2 ** 31),
+  /** heap limit (MB) and time limit (ms) of the thread that decodes an uploaded or imported file */
+  DECODE_HEAP_MB: z.coerce.number().int().min(16).max(65536).default(1024),
+  DECODE_TIMEOUT_MS: z.coerce.number().int().min(1).max(3_600_000).default(120_000),
   WORKERS: z.coerce.number().int().min(1).max(64).default(Math.max(1, Math.min(4, (globalThis as any).navigator?.hardwareConcurrency ?? 2) - 1)),
   SEED_DEMO: z.enum(['auto', 'never']).default('auto'),
   TRUST_PROXY: z.enum(['0', '1']).default('0'),

@@ -40,6 +40,11 @@ const DRAIN_LIMIT = 64 * 1024 * 1024;
  */
 export const errorMiddleware: ErrorRequestHandler = (err, req, res, next) => {
   if (res.headersSent) return;
+  // a client that hangs up mid-body is an ordinary event: no answer can reach it, nothing to report
+  if (!req.complete && (req.readableAborted || req.destroyed || req.socket?.destroyed)) {
+    console.info(`[syntopy] the client closed the connection during ${req.method} ${req.originalUrl.split('?')[0]}; nothing was stored`);
+    return;
+  }
   const unread = !req.complete && req.readable && !req.readableEnded;
   if (unread) {
     const declared = Number(req.headers['content-length'] ?? NaN);

@@ -2,8 +2,10 @@
  * TIFF / OME-TIFF decoding shared by the intake routes and the `analyze` command.
  *
  * Every input is first walked with the bounded header reader (tiffheader.ts): magic bytes, page sizes,
- * sample layout, compression and data extents are checked against the pixel budget BEFORE any pixel is
- * decoded; only then does `geotiff` decode the chosen pages/samples.
+ * sample layout, compression and data extents are checked against the pixel budget, and the whole file's
+ * declared image data against the decoded-bytes budget, BEFORE any pixel is decoded; only then does
+ * `geotiff` decode the chosen pages/samples, through our bounded codecs (codecs.ts), which refuse any strip
+ * or tile that would unpack to more than its size.
  *
  * Channel model:
  *  - OME-TIFF (ImageDescription holds OME-XML, one sample per page): channels are the OME channels
@@ -17,11 +19,11 @@
  * horizontal (2) or floating-point (3) predictor.
  */
 import fsp from 'node:fs/promises';
-import zlib from 'node:zlib';
-import { addDecoder, BaseDecoder, fromArrayBuffer } from 'geotiff';
+import { fromArrayBuffer } from 'geotiff';
+import { checkRawSize } from './codecs.js';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
-import { bufferReader, checkPageExtents, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
+import { bufferReader, checkPageExtents, MAX_PLANES, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
 
 export { ImageInputError };
 
@@ -72,68 +74,20 @@ export interface DecodedPair {
 export interface DecodeOptions {
   /** largest number of pixels in one plane, and of voxels in one channel (all z); default 2^28 */
   pixelBudget?: number;
+  /** most bytes the image data of one file may unpack to (all pages, all samples); default 2 GiB */
+  maxDecodedBytes?: number;
 }
 
 /** Input: bytes in memory or a path to a local file (read with bounded reads for the checks). */
 export type TiffInput = Uint8Array | string;
 
 const DEFAULT_BUDGET = 2 ** 28;
+/** Default for `maxDecodedBytes` (env MAX_DECODED_BYTES): 2 GiB, the default upload limit, so any uncompressed file that may be uploaded fits. */
+export const DEFAULT_MAX_DECODED_BYTES = 2 ** 31;
 /** most strips/tiles per page (keeps the offset tables of a hostile header small) */
 const MAX_BLOCKS = 1 << 22;
 const COMPRESSION_NAMES: Record<number, string> = { 1: 'none', 5: 'LZW', 8: 'Deflate', 32946: 'Deflate', 32773: 'PackBits' };
 const UNSUPPORTED_COMPRESSION: Record<number, string> = { 2: 'CCITT', 3: 'CCITT G3', 4: 'CCITT G4', 6: 'old JPEG', 7: 'JPEG', 34712: 'JPEG 2000', 34887: 'LERC', 34925: 'LZMA', 50000: 'Zstandard', 50001: 'WebP' };
-
-/**
- * Deflate with a ceiling: a block may not unpack to more than its declared tile/strip size, so a small
- * hostile file cannot expand into gigabytes ("decompression bomb"). Replaces geotiff's unbounded inflate.
- */
-interface DecoderParams {
-  tileWidth: number;
-  tileHeight: number;
-  bitsPerSample: number[];
-  planarConfiguration: number;
-  predictor: number;
-  maxBytes: number;
-}
-class BoundedDeflateDecoder extends BaseDecoder {
-  decodeBlock(buffer: ArrayBufferLike): ArrayBufferLike {
-    const p = (this as unknown as { parameters: DecoderParams }).parameters;
-    try {
-      const out = zlib.inflateSync(new Uint8Array(buffer), { maxOutputLength: Math.max(1, p.maxBytes) });
-      return out.buffer.slice(out.byteOffset, out.byteOffset + out.byteLength);
-    } catch (e) {
-      const code = (e as NodeJS.ErrnoException).code;
-      if (code === 'ERR_BUFFER_TOO_LARGE' || /larger than|maxOutputLength/i.test(String((e as Error).message))) {
-        throw new ImageInputError(`a Deflate-compressed block unpacks to more than its declared ${p.maxBytes} bytes; the file is damaged or not a genuine image`);
-      }
-      throw new ImageInputError(`a Deflate-compressed block could not be unpacked; the file is damaged (${(e as Error).message})`);
-    }
-  }
-}
-type Ifd = { hasTag(t: string): boolean; loadValue(t: string): Promise<unknown> };
-addDecoder(
-  [8, 32946],
-  async () => BoundedDeflateDecoder as never,
-  (async (fd: Ifd) => {
-    const tiled = !fd.hasTag('StripOffsets');
-    const width = Number(await fd.loadValue('ImageWidth'));
-    const height = Number(await fd.loadValue('ImageLength'));
-    const bits = Array.from((await fd.loadValue('BitsPerSample')) as ArrayLike<number>);
-    const planar = Number((await fd.loadValue('PlanarConfiguration')) ?? 1) || 1;
-    const tileWidth = tiled ? Number(await fd.loadValue('TileWidth')) : width;
-    const tileHeight = tiled ? Number(await fd.loadValue('TileLength')) : Math.min(height, Number((await fd.loadValue('RowsPerStrip')) || height));
-    const bytesPerPixel = planar === 2 ? bits[0] / 8 : bits.reduce((a, b) => a + b, 0) / 8;
-    return {
-      tileWidth,
-      tileHeight,
-      bitsPerSample: bits,
-      planarConfiguration: planar,
-      predictor: Number(await fd.loadValue('Predictor')) || 1,
-      maxBytes: Math.ceil(tileWidth * tileHeight * bytesPerPixel),
-    } satisfies DecoderParams;
-  }) as never,
-  false,
-);
 
 interface PlaneRef {
   page: number;
@@ -191,6 +145,27 @@ function checkBudget(p: PageHeader, budget: number, label: string) {
   }
 }
 
+/**
+ * What the image data of the whole file unpacks to, from the header alone (width × height × bits per pixel
+ * of every page), against the decoded-bytes budget: checked before any block is decoded, so the budget
+ * bounds every decode of the file whatever its compression ratio.
+ */
+export function declaredImageBytes(h: TiffHeader): number {
+  let total = 0;
+  for (const p of h.pages) total += p.width * p.height * Math.ceil(p.bitsPerSample.reduce((a, b) => a + b, 0) / 8);
+  return total;
+}
+
+function checkDecodedBytes(h: TiffHeader, maxBytes: number) {
+  const total = declaredImageBytes(h);
+  if (total > maxBytes) {
+    throw new ImageInputError(
+      `the image data of this file (${h.pages.length} page${h.pages.length === 1 ? '' : 's'}) would unpack to ${total.toExponential(2)} bytes, more than the limit of ${maxBytes} bytes per file; export only the channels and slices to analyse`,
+      413,
+    );
+  }
+}
+
 // ---------------------------------------------------------------- OME-XML
 
 const xml = new XMLParser({
@@ -231,6 +206,10 @@ function parseOme(desc: string | null): OmeMeta | null {
   const sizeC = int(px.SizeC, 1);
   const sizeZ = int(px.SizeZ, 1);
   const sizeT = int(px.SizeT, 1);
+  // checked before anything is sized by these numbers (channel names, the plane table)
+  if (sizeC * sizeZ * sizeT > MAX_PLANES) {
+    throw new ImageInputError(`the OME description claims ${sizeC} channels × ${sizeZ} slices × ${sizeT} time points, more than the ${MAX_PLANES} image planes Syntopy reads from one file`, 413);
+  }
   const order = typeof px.DimensionOrder === 'string' && /^XY[ZCT]{3}$/.test(px.DimensionOrder) ? px.DimensionOrder : 'XYCZT';
   const chans: any[] = Array.isArray(px.Channel) ? px.Channel : [];
   const names = Array.from({ length: sizeC }, (_, i) => {
@@ -274,7 +253,6 @@ function planFromHeader(h: TiffHeader): Plan {
   if (ome && h.pages.every((p) => p.samplesPerPixel === 1)) {
     const sizes = { C: ome.sizeC, Z: ome.sizeZ, T: ome.sizeT };
     const total = ome.sizeC * ome.sizeZ * ome.sizeT;
-    if (total > 1_000_000) throw new ImageInputError(`the OME description claims ${total} planes`);
     const ifdOf = new Array<number>(total);
     for (let i = 0; i < total; i++) ifdOf[i] = i;
     for (const td of ome.tiffData) {
@@ -349,10 +327,10 @@ async function withReader<T>(input: TiffInput, fn: (r: ByteReader) => Promise<T>
 }
 
 async function planOf(r: ByteReader, opts: DecodeOptions): Promise<Plan> {
-  const plan = planFromHeader(await readTiffHeader(r));
-  const budget = opts.pixelBudget ?? DEFAULT_BUDGET;
-  checkBudget(plan.header.pages[0], budget, 'the image');
-  return plan;
+  const header = await readTiffHeader(r);
+  checkBudget(header.pages[0], opts.pixelBudget ?? DEFAULT_BUDGET, 'the image');
+  checkDecodedBytes(header, opts.maxDecodedBytes ?? DEFAULT_MAX_DECODED_BYTES);
+  return planFromHeader(header);
 }
 
 /** Reads what the file holds (sizes, channels, type, OME metadata) with bounded reads; decodes no pixels. */
@@ -466,6 +444,8 @@ async function copyDirect(r: ByteReader, h: TiffHeader, p: PageHeader, sample: n
     const want = Math.min(p.rowsPerStrip * rowBytes, bytes.length - start);
     if (want <= 0) break;
     if (counts[idx] < want) throw new ImageInputError(`the file is damaged: strip ${idx + 1} of page ${p.index + 1} holds ${counts[idx]} bytes, expected ${want}`);
+    // as for every codec (codecs.ts): a stored block may be padded up to its full strip, never beyond
+    checkRawSize(counts[idx], p.rowsPerStrip * rowBytes);
     const chunk = await r.read(offsets[idx], want);
     if (chunk.length < want) throw new ImageInputError(`the file is truncated inside the image data of page ${p.index + 1}`);
     bytes.set(chunk, start);

@@ -15,9 +15,12 @@ import { eq } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, conditions, coverslips, fields, files } from '../db/schema.js';
 import { HttpError } from '../http/errors.js';
-import { checkChannel1, checkPairCompatible, decodeChannel, decodeChannels, ImageInputError, maxRepresentable, type ChannelCheck, type PixelArray, type TiffInfo } from './decode.js';
+import { maxRepresentable, type PixelArray } from './decode.js';
+import { decodePoolOf } from './decode-pool.js';
+import { decodeSources, type DecodedStack } from './sources.js';
 import { channelFacts, hasValue } from './facts.js';
 import { project } from './projection.js';
+import { ImageInputError } from './errors.js';
 import { keyForSha } from './store.js';
 
 export type FieldRow = typeof fields.$inferSelect;
@@ -52,8 +55,6 @@ export async function sha256File(p: string): Promise<string> {
   return h.digest('hex');
 }
 
-const budgetOf = (ctx: Pick<AppContext, 'env'>) => ({ pixelBudget: ctx.env.PIXEL_BUDGET });
-
 /** Shas being ingested right now: a concurrent field delete must not remove their store objects. */
 export const inFlightShas = new Map<string, number>();
 const hold = (s: string) => inFlightShas.set(s, (inFlightShas.get(s) ?? 0) + 1);
@@ -63,54 +64,6 @@ const release = (s: string) => {
   else inFlightShas.set(s, n);
 };
 
-/** Checks two sources without decoding pixels; throws ImageInputError with a message naming the channel. */
-export async function checkSources(ctx: Pick<AppContext, 'env'>, sources: IngestSource[]): Promise<[ChannelCheck, ChannelCheck]> {
-  if (sources.length === 1) {
-    const info = await checkChannel1(sources[0].path, sources[0].channel, `"${sources[0].originalName}"`, budgetOf(ctx)).then((c) => c.info);
-    if (info.channelCount < 2) {
-      throw new ImageInputError(`"${sources[0].originalName}" has only one channel; a field needs two: choose a file with two or more channels, or pair it with a second single-channel file`);
-    }
-    throw new ImageInputError(`only one channel of "${sources[0].originalName}" was chosen; a field needs two`, 400);
-  }
-  if (sources.length !== 2) throw new ImageInputError(`a field is made of exactly two channels; ${sources.length} were given`, 400);
-  const [a, b] = sources;
-  const label = (s: IngestSource, i: number) => `channel ${i} ("${s.originalName}", channel ${s.channel})`;
-  const ca = await checkChannel1(a.path, a.channel, label(a, 1), budgetOf(ctx));
-  if (a.path === b.path) {
-    if (ca.info.channelCount < 2) {
-      throw new ImageInputError(`"${a.originalName}" has only one channel; a field needs two: choose a file with two or more channels, or pair it with a second single-channel file`);
-    }
-    if (a.channel === b.channel) throw new ImageInputError(`channel 1 and channel 2 are both channel ${a.channel} of "${a.originalName}"; choose two different channels`, 400);
-  }
-  const cb = await checkChannel1(b.path, b.channel, label(b, 2), budgetOf(ctx));
-  checkPairCompatible(ca, cb);
-  return [ca, cb];
-}
-
-interface DecodedStack {
-  width: number;
-  height: number;
-  sizeZ: number;
-  bitDepth: number;
-  sampleFormat: 'uint' | 'float';
-  ch1: PixelArray[];
-  ch2: PixelArray[];
-  info1: TiffInfo;
-  info2: TiffInfo;
-}
-
-async function decodeSources(input1: Uint8Array | string, c1: number, input2: Uint8Array | string, c2: number, same: boolean, budget: { pixelBudget: number }): Promise<DecodedStack> {
-  if (same) {
-    const d = await decodeChannels(input1, [c1, c2], budget);
-    return { width: d.width, height: d.height, sizeZ: d.ch1.length, bitDepth: d.info.bitsPerSample, sampleFormat: d.info.sampleFormat, ch1: d.ch1, ch2: d.ch2, info1: d.info, info2: d.info };
-  }
-  const a = await decodeChannel(input1, c1, budget);
-  const b = await decodeChannel(input2, c2, budget);
-  if (a.width !== b.width || a.height !== b.height) throw new ImageInputError(`channel 2 is ${b.width}×${b.height} but channel 1 is ${a.width}×${a.height}; both channels of a field must have the same size`);
-  const bits = a.slices[0] instanceof Uint8Array ? 8 : a.slices[0] instanceof Uint16Array ? 16 : 32;
-  return { width: a.width, height: a.height, sizeZ: a.slices.length, bitDepth: bits, sampleFormat: a.slices[0] instanceof Float32Array ? 'float' : 'uint', ch1: a.slices, ch2: b.slices, info1: a.info, info2: b.info };
-}
-
 /**
  * Turns one or two local TIFF files into a field on a coverslip. Does not check permissions (callers do).
  * Throws ImageInputError (4xx) for bad files, HttpError 404 for an unknown coverslip.
@@ -119,10 +72,10 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
   const cs = ctx.db.select().from(coverslips).where(eq(coverslips.id, req.coverslipId)).get();
   if (!cs) throw new HttpError(404, `no coverslip with id ${req.coverslipId}`);
   const name = String(req.name ?? '').trim().slice(0, 200) || path.parse(req.sources[0]?.originalName ?? 'field').name;
-  await checkSources(ctx, req.sources);
+  // every check and the decode run in the decoding thread (heap and time limits); bad files → ImageInputError
+  const stack = await decodePoolOf(ctx).readSources(req.sources.map((s) => ({ input: s.path, originalName: s.originalName, channel: s.channel })));
   const [s1, s2] = req.sources;
   const same = s1.path === s2.path;
-  const stack = await decodeSources(s1.path, s1.channel, s2.path, s2.channel, same, budgetOf(ctx));
   const maxV = maxRepresentable(stack.bitDepth, stack.sampleFormat);
   const facts = { ch1: channelFacts(stack.ch1, maxV), ch2: channelFacts(stack.ch2, maxV) };
   for (const [k, ch] of [[1, stack.ch1], [2, stack.ch2]] as const)
@@ -268,7 +221,7 @@ export async function loadFieldStack(ctx: AppContext, fieldOrId: number | FieldR
   const b1 = await ctx.store.get(keyForSha(f.file1Sha));
   const b2 = same ? b1 : await ctx.store.get(keyForSha(f.file2Sha));
   // stored files were checked at intake; the budget here only guards against a changed setting
-  const stack = await decodeSources(b1, f.channel1, b2, f.channel2, same, { pixelBudget: Math.max(ctx.env.PIXEL_BUDGET, f.width * f.height * f.sizeZ) });
+  const stack = await decodeSources(b1, f.channel1, b2, f.channel2, { pixelBudget: Math.max(ctx.env.PIXEL_BUDGET, f.width * f.height * f.sizeZ), maxDecodedBytes: ctx.env.MAX_DECODED_BYTES });
   cachePut(f.id, key, stack);
   return stack;
 }

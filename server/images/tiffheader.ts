@@ -27,16 +27,31 @@ export function bufferReader(buf: Uint8Array): ByteReader {
   };
 }
 
+/** Small reads are served from one 64 KiB read-ahead block: walking 10,000 directories costs ~100 reads, not 30,000. */
+const READ_AHEAD = 64 * 1024;
+
 export async function fileReader(path: string): Promise<ByteReader> {
   const fh = await fsp.open(path, 'r');
   const { size } = await fh.stat();
+  let blockAt = -1;
+  let block = new Uint8Array(0);
   return {
     size,
     async read(offset, length) {
       const n = Math.max(0, Math.min(length, size - offset));
-      const out = new Uint8Array(n);
-      if (n > 0) await fh.read(out, 0, n, offset);
-      return out;
+      if (n === 0) return new Uint8Array(0);
+      if (blockAt >= 0 && offset >= blockAt && offset + n <= blockAt + block.length) return block.subarray(offset - blockAt, offset - blockAt + n);
+      if (n > READ_AHEAD / 2) {
+        const out = new Uint8Array(n);
+        await fh.read(out, 0, n, offset);
+        return out;
+      }
+      // a fresh block each time (never overwritten), so earlier subarrays stay valid
+      const next = new Uint8Array(Math.min(READ_AHEAD, size - offset));
+      await fh.read(next, 0, next.length, offset);
+      block = next;
+      blockAt = offset;
+      return block.subarray(0, n);
     },
     close: () => fh.close(),
   };
@@ -84,8 +99,19 @@ export interface TiffHeader {
   structureEnd: number;
 }
 
-export const MAX_PAGES = 100_000;
+/**
+ * Most pages (image directories) in one file. 10,000 covers, e.g., 4 channels × 50 z slices × 50 time
+ * points; every directory is walked and kept (a few hundred bytes each) before anything is decoded, so
+ * the limit keeps a small file of empty pages from costing seconds and megabytes.
+ */
+export const MAX_PAGES = 10_000;
+/** Most samples per pixel of one page (a 200-byte header must not make us allocate 2^32 entries). */
+export const MAX_SAMPLES_PER_PIXEL = 256;
+/** Most image planes (pages × samples per pixel) in one file: each becomes a channel entry. */
+export const MAX_PLANES = 10_000;
 const MAX_ENTRIES = 4096;
+/** The tags the walker reads; other entries only count for the file's extent and are not kept. */
+const KEPT_TAGS = new Set([254, 256, 257, 258, 259, 262, 270, 273, 277, 278, 279, 284, 317, 322, 323, 324, 325, 339]);
 const MAX_DESCRIPTION = 64 * 1024 * 1024;
 
 class Walker {
@@ -94,11 +120,14 @@ class Walker {
   private view(b: Uint8Array) {
     return new DataView(b.buffer, b.byteOffset, b.byteLength);
   }
+  // plain byte arithmetic: a DataView per field read made walking 10,000 directories garbage-bound
   u16(b: Uint8Array, o: number) {
-    return this.view(b).getUint16(o, this.le);
+    if (o + 2 > b.length) throw new RangeError(`offset ${o} is outside the buffer`);
+    return this.le ? b[o] | (b[o + 1] << 8) : (b[o] << 8) | b[o + 1];
   }
   u32(b: Uint8Array, o: number) {
-    return this.view(b).getUint32(o, this.le);
+    if (o + 4 > b.length) throw new RangeError(`offset ${o} is outside the buffer`);
+    return this.le ? (b[o] | (b[o + 1] << 8) | (b[o + 2] << 16) | (b[o + 3] << 24)) >>> 0 : ((b[o] << 24) | (b[o + 1] << 16) | (b[o + 2] << 8) | b[o + 3]) >>> 0;
   }
   u64(b: Uint8Array, o: number) {
     const v = this.view(b).getBigUint64(o, this.le);
@@ -115,6 +144,8 @@ class Walker {
 
   /** furthest byte + 1 referred to by what was read so far (directories and out-of-line values) */
   extent = 0;
+  /** bytes of directory entries read so far */
+  directoryBytes = 0;
 
   async readIfd(offset: number): Promise<{ entries: Map<number, RawEntry>; next: number }> {
     const cntSize = this.big ? 8 : 2;
@@ -122,6 +153,11 @@ class Walker {
     const cb = await this.readExact(offset, cntSize, 'image directory');
     const count = this.big ? this.u64(cb, 0) : this.u16(cb, 0);
     if (count === 0 || count > MAX_ENTRIES) throw new TiffHeaderError(`the file is damaged: an image directory claims ${count} entries`);
+    // directories of a genuine file do not overlap, so together they fit in the file
+    this.directoryBytes += count * entSize;
+    if (this.directoryBytes > this.r.size) {
+      throw new TiffHeaderError(`the file is damaged: its image directories claim ${this.directoryBytes} bytes of entries, more than the file's ${this.r.size} bytes`);
+    }
     const body = await this.readExact(offset + cntSize, count * entSize + (this.big ? 8 : 4), 'image directory');
     const entries = new Map<number, RawEntry>();
     const valSize = this.big ? 8 : 4;
@@ -136,7 +172,7 @@ class Walker {
       const bytes = ts * n;
       const inline = bytes <= valSize ? body.slice(vo, vo + bytes) : null;
       const off = inline ? 0 : this.big ? this.u64(body, vo) : this.u32(body, vo);
-      entries.set(tag, { type, count: n, inline, offset: off });
+      if (KEPT_TAGS.has(tag)) entries.set(tag, { type, count: n, inline, offset: off });
       if (!inline) this.extent = Math.max(this.extent, off + bytes);
     }
     this.extent = Math.max(this.extent, offset + cntSize + count * entSize + (this.big ? 8 : 4));
@@ -200,16 +236,22 @@ export async function readTiffHeader(r: ByteReader): Promise<TiffHeader> {
   let offset = big ? w.u64(head, 8) : w.u32(head, 4);
   const pages: PageHeader[] = [];
   const seen = new Set<number>();
+  let planes = 0;
   let description: string | null = null;
   while (offset !== 0) {
     if (seen.has(offset)) throw new TiffHeaderError('the file is damaged: its image directories form a loop');
-    if (pages.length >= MAX_PAGES) throw new TiffHeaderError(`the file has more than ${MAX_PAGES} pages`);
+    if (pages.length >= MAX_PAGES) throw new TiffHeaderError(`the file has more than ${MAX_PAGES} pages (image directories), the most Syntopy reads from one file; export only the planes to analyse`, 413);
     seen.add(offset);
     const { entries, next } = await w.readIfd(offset);
     const get = (t: number) => entries.get(t);
     const spp = await first(w, get(277), 1);
-    const bps = get(258) ? await w.numbers(get(258), 64) : [1];
-    const sf = get(339) ? await w.numbers(get(339), 64) : [1];
+    if (!Number.isInteger(spp) || spp < 1 || spp > MAX_SAMPLES_PER_PIXEL) {
+      throw new TiffHeaderError(`page ${pages.length + 1} declares ${spp} samples per pixel; Syntopy reads 1 to ${MAX_SAMPLES_PER_PIXEL}`, spp > MAX_SAMPLES_PER_PIXEL ? 413 : 422);
+    }
+    planes += spp;
+    if (planes > MAX_PLANES) throw new TiffHeaderError(`the file holds more than ${MAX_PLANES} image planes (pages × samples per pixel), the most Syntopy reads from one file`, 413);
+    const bps = get(258) ? await w.numbers(get(258), MAX_SAMPLES_PER_PIXEL) : [1];
+    const sf = get(339) ? await w.numbers(get(339), MAX_SAMPLES_PER_PIXEL) : [1];
     const tiled = entries.has(322);
     const width = await first(w, get(256), 0);
     const height = await first(w, get(257), 0);

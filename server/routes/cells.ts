@@ -185,8 +185,10 @@ export default function cellsRoutes(ctx: AppContext) {
     const fieldId = idParam(req, 'id');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
     if (!req.file) throw badRequest('attach the label image as the form field "file"');
-    const { decodeChannel, ImageInputError } = await import('../images/decode.js');
-    const { info, slices } = await decodeChannel(new Uint8Array(req.file.buffer.buffer, req.file.buffer.byteOffset, req.file.buffer.byteLength), 1, { pixelBudget: ctx.env.PIXEL_BUDGET });
+    const { ImageInputError } = await import('../images/decode.js');
+    const { decodePoolOf } = await import('../images/decode-pool.js');
+    // decoded in the decoding thread (heap and time limits), like uploads
+    const { info, slices } = await decodePoolOf(ctx).decodeChannel(req.file.buffer, 1, req.file.originalname);
     if (info.width !== field.width || info.height !== field.height)
       throw new ImageInputError(`the label image is ${info.width} × ${info.height} pixels but the field is ${field.width} × ${field.height}; they must match`, 422);
     if (slices.length !== 1) throw new ImageInputError(`the label image has ${slices.length} slices; give one 2-D label image`, 422);

@@ -1,0 +1,91 @@
+/**
+ * Uploaded and imported files are checked and decoded in a separate thread (piscina) with a heap limit
+ * (`DECODE_HEAP_MB`, V8 `resourceLimits`) and a time limit (`DECODE_TIMEOUT_MS`, counted from submission).
+ * The bounded decoders and the decoded-bytes budget stop hostile files first; this is the second wall: if
+ * the thread runs out of memory or time it is ended, the request gets a one-line 422 and the web server
+ * keeps serving. Note that typed-array pixel buffers live outside the V8 heap; the decoded-bytes budget
+ * (MAX_DECODED_BYTES) bounds those.
+ */
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { Piscina } from 'piscina';
+import type { AppContext } from '../context.js';
+import { ImageInputError } from './errors.js';
+import type { DecodeOptions, PixelArray, TiffInfo } from './decode.js';
+import type { DecodeReply, DecodeTask } from './decode-worker.js';
+import type { DecodedStack, SourceRef } from './sources.js';
+
+const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'decode-worker.ts');
+/** Decoding threads at once; more uploads wait their turn (each may hold up to MAX_DECODED_BYTES). */
+const THREADS = 2;
+
+export class DecodePool {
+  private pool: Piscina;
+  constructor(private env: Pick<AppContext['env'], 'DECODE_HEAP_MB' | 'DECODE_TIMEOUT_MS' | 'PIXEL_BUDGET' | 'MAX_DECODED_BYTES'>) {
+    this.pool = new Piscina({
+      filename: WORKER_FILE,
+      execArgv: ['--import', 'tsx'],
+      minThreads: 0,
+      maxThreads: THREADS,
+      idleTimeout: 30_000,
+      // geotiff's web-worker dependency destructures workerData when loaded in a thread: it must be an object
+      workerData: {},
+      resourceLimits: { maxOldGenerationSizeMb: env.DECODE_HEAP_MB, maxYoungGenerationSizeMb: Math.max(4, Math.min(64, Math.floor(env.DECODE_HEAP_MB / 8))) },
+    });
+    // a thread that dies between tasks has no request to answer; its replacement starts on demand
+    this.pool.on('error', (e: Error) => console.warn(`[syntopy] a decoding thread ended: ${e.message}`));
+  }
+
+  get opts(): DecodeOptions {
+    return { pixelBudget: this.env.PIXEL_BUDGET, maxDecodedBytes: this.env.MAX_DECODED_BYTES };
+  }
+
+  private async run<T>(task: DecodeTask, what: string): Promise<T> {
+    let reply: DecodeReply<T>;
+    try {
+      const transferList = task.kind === 'channel' && typeof task.input !== 'string' ? [task.input.buffer as ArrayBuffer] : undefined;
+      reply = await this.pool.run(task, { signal: AbortSignal.timeout(this.env.DECODE_TIMEOUT_MS), transferList });
+    } catch (e) {
+      const err = e as { name?: string; code?: string; message?: string };
+      if (err?.name === 'AbortError') {
+        throw new ImageInputError(`${what} took longer than the ${this.env.DECODE_TIMEOUT_MS} ms allowed for decoding one upload and was stopped`);
+      }
+      if (err?.code === 'ERR_WORKER_OUT_OF_MEMORY' || /exited with code/.test(String(err?.message))) {
+        throw new ImageInputError(`${what} needed more than the ${this.env.DECODE_HEAP_MB} MB of memory allowed for decoding one upload and was stopped`);
+      }
+      throw e;
+    }
+    if (!reply.ok) throw new ImageInputError(reply.message, reply.status);
+    return reply.value;
+  }
+
+  /** Checks and decodes the two channel sources of a new field. */
+  readSources(sources: SourceRef[]): Promise<DecodedStack> {
+    const names = [...new Set(sources.map((s) => `"${s.originalName}"`))].join(' and ');
+    return this.run<DecodedStack>({ kind: 'field', sources, opts: this.opts }, `decoding ${names}`);
+  }
+
+  /** Decodes one channel (all z slices) of an imported file. */
+  decodeChannel(input: Uint8Array, channel: number, name: string): Promise<{ info: TiffInfo; slices: PixelArray[]; width: number; height: number }> {
+    // a private copy of the bytes is handed over (transferred) to the thread
+    return this.run({ kind: 'channel', input: input.slice(), channel, opts: this.opts }, `decoding "${name}"`);
+  }
+
+  close() {
+    return this.pool.destroy();
+  }
+}
+
+const pools = new WeakMap<AppContext, DecodePool>();
+
+/** The decoding threads of an app context (started on first use, closed with the context). */
+export function decodePoolOf(ctx: AppContext): DecodePool {
+  let p = pools.get(ctx);
+  if (!p) {
+    const pool = new DecodePool(ctx.env);
+    pools.set(ctx, pool);
+    ctx.closers.push(() => pool.close());
+    p = pool;
+  }
+  return p;
+}
