@@ -52,7 +52,7 @@ export function NumberText(what: string, opts: NumberTextBounds = {}) {
  * end the schema itself refuses, as in `.positive()`, is open), so a box refuses exactly what the request it
  * feeds would refuse, with a message quoting the text.
  */
-export function NumberTextFor(what: string, schema: z.ZodNumber) {
+export function NumberTextFor(what: string, schema: z.ZodNumber | z.ZodCoercedNumber) {
   const lo = schema.minValue, hi = schema.maxValue;
   const min = lo !== null && Number.isFinite(lo) ? lo : undefined;
   const max = hi !== null && Number.isFinite(hi) ? hi : undefined;
