@@ -21,7 +21,8 @@ export const Name = (what: string, max = 120) => z.string({ message: `enter a ${
 
 /**
  * A number typed into a box (client forms): plain decimal text (an exponent is allowed), finite, within
- * [min, max] (an end is left open with `minExclusive` / `maxExclusive`), whole when `integer`; each refusal
+ * [min, max] (an end is left open with `minExclusive` / `maxExclusive`), whole when `integer` (and a safe
+ * integer: beyond 2^53 whole numbers are no longer exact in JavaScript); each refusal
  * quotes the text received. `what` names the box in messages.
  */
 export type NumberTextBounds = { min?: number; max?: number; minExclusive?: boolean; maxExclusive?: boolean; integer?: boolean };
@@ -39,7 +40,7 @@ export function NumberText(what: string, opts: NumberTextBounds = {}) {
       return z.NEVER;
     };
     if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t) || !Number.isFinite(n)) return fail(`must be a number${range ? ` ${range}` : ''}`);
-    if (integer && !Number.isInteger(n)) return fail('must be a whole number');
+    if (integer && !Number.isSafeInteger(n)) return fail('must be a whole number');
     const below = min !== undefined && (minExclusive ? n <= min : n < min);
     const above = max !== undefined && (maxExclusive ? n >= max : n > max);
     if (below || above) return fail(`must be ${range}`);
@@ -53,9 +54,11 @@ export function NumberText(what: string, opts: NumberTextBounds = {}) {
  * feeds would refuse, with a message quoting the text.
  */
 export function NumberTextFor(what: string, schema: z.ZodNumber | z.ZodCoercedNumber) {
+  // zod's .int() implies the safe-integer range, which NumberText's whole-number rule already checks
+  const implied = (v: number | null) => v === null || !Number.isFinite(v) || (schema.isInt && Math.abs(v) === Number.MAX_SAFE_INTEGER);
   const lo = schema.minValue, hi = schema.maxValue;
-  const min = lo !== null && Number.isFinite(lo) ? lo : undefined;
-  const max = hi !== null && Number.isFinite(hi) ? hi : undefined;
+  const min = implied(lo) ? undefined : lo!;
+  const max = implied(hi) ? undefined : hi!;
   return NumberText(what, {
     min,
     max,
