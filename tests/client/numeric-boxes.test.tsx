@@ -21,6 +21,7 @@ import { ShareDialog } from '@/features/share/components/ShareDialog';
 import { CellTableView } from '@/features/celltable/components/CellTableView';
 import { SeedBox } from '@/app/routes/Compare';
 import { CoverslipDialog } from '@/features/studies/components/CoverslipDialog';
+import { UploadFields } from '@/features/fields/components/UploadFields';
 import { QueryClient, QueryClientProvider } from '@tanstack/react-query';
 import { mockApi, on, renderRoutes } from './utils';
 import { makeStudy } from './fixtures';
@@ -334,5 +335,28 @@ describe('coverslip replicate', () => {
     await user.click(screen.getByRole('button', { name: 'Add coverslip' }));
     await waitFor(() => expect(save).toHaveBeenCalledTimes(1));
     expect(save.mock.calls[0]).toEqual([{ replicate: 3, preparedOn: null, notes: '' }]);
+  });
+});
+
+describe('upload channel typed by hand', () => {
+  it('a file whose channels cannot be read here gets channel boxes that refuse text and 0 with a message', async () => {
+    render(withQueries(<UploadFields coverslipId={100} />));
+    const user = userEvent.setup();
+    await user.click(screen.getByRole('button', { name: 'Add fields…' }));
+    const input = (await screen.findByText('Files')).parentElement!.querySelector('input[type=file]') as HTMLInputElement;
+    await user.upload(input, new File(['not a tiff'], 'odd.tif', { type: 'image/tiff' }));
+    const box = await screen.findByLabelText(/^Channel 1/);
+    await user.clear(box);
+    await user.type(box, 'green');
+    expect(messageOf(box)).toBe('Channel must be a number between 1 and 10000, got "green"');
+    expect(box.getAttribute('aria-invalid')).toBe('true');
+    expect((box as HTMLInputElement).value).toBe('green');
+    await user.clear(box);
+    await user.type(box, '0');
+    expect(messageOf(box)).toBe('Channel must be between 1 and 10000, got "0"');
+    await user.clear(box);
+    await user.type(box, '3');
+    expect(messageOf(box)).toBeNull();
+    expect(box.getAttribute('aria-invalid')).toBe('false');
   });
 });
