@@ -21,12 +21,17 @@ export const Name = (what: string, max = 120) => z.string({ message: `enter a ${
 
 /**
  * A number typed into a box (client forms): plain decimal text (an exponent is allowed), finite, within
- * [min, max], whole when `integer`; each refusal quotes the text received. `what` names the box in messages.
+ * [min, max] (an end is left open with `minExclusive` / `maxExclusive`), whole when `integer` (and a safe
+ * integer: beyond 2^53 whole numbers are no longer exact in JavaScript); each refusal
+ * quotes the text received. `what` names the box in messages.
  */
-export function NumberText(what: string, opts: { min?: number; max?: number; integer?: boolean } = {}) {
-  const { min, max, integer } = opts;
+export type NumberTextBounds = { min?: number; max?: number; minExclusive?: boolean; maxExclusive?: boolean; integer?: boolean };
+export function NumberText(what: string, opts: NumberTextBounds = {}) {
+  const { min, max, minExclusive, maxExclusive, integer } = opts;
+  const lower = min === undefined ? '' : minExclusive ? `greater than ${min}` : `at least ${min}`;
+  const upper = max === undefined ? '' : maxExclusive ? `less than ${max}` : `at most ${max}`;
   const range =
-    min !== undefined && max !== undefined ? `between ${min} and ${max}` : min !== undefined ? `at least ${min}` : max !== undefined ? `at most ${max}` : '';
+    min !== undefined && max !== undefined && !minExclusive && !maxExclusive ? `between ${min} and ${max}` : [lower, upper].filter(Boolean).join(' and ');
   return z.string().transform((text, ctx) => {
     const t = text.trim();
     const n = Number(t);
@@ -35,9 +40,31 @@ export function NumberText(what: string, opts: { min?: number; max?: number; int
       return z.NEVER;
     };
     if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t) || !Number.isFinite(n)) return fail(`must be a number${range ? ` ${range}` : ''}`);
-    if (integer && !Number.isInteger(n)) return fail('must be a whole number');
-    if ((min !== undefined && n < min) || (max !== undefined && n > max)) return fail(`must be ${range}`);
+    if (integer && !Number.isSafeInteger(n)) return fail('must be a whole number');
+    const below = min !== undefined && (minExclusive ? n <= min : n < min);
+    const above = max !== undefined && (maxExclusive ? n >= max : n > max);
+    if (below || above) return fail(`must be ${range}`);
     return n;
+  });
+}
+
+/**
+ * NumberText with the bounds of a shared zod number schema (its minValue, maxValue and whole-number rule; an
+ * end the schema itself refuses, as in `.positive()`, is open), so a box refuses exactly what the request it
+ * feeds would refuse, with a message quoting the text.
+ */
+export function NumberTextFor(what: string, schema: z.ZodNumber | z.ZodCoercedNumber) {
+  // zod's .int() implies the safe-integer range, which NumberText's whole-number rule already checks
+  const implied = (v: number | null) => v === null || !Number.isFinite(v) || (schema.isInt && Math.abs(v) === Number.MAX_SAFE_INTEGER);
+  const lo = schema.minValue, hi = schema.maxValue;
+  const min = implied(lo) ? undefined : lo!;
+  const max = implied(hi) ? undefined : hi!;
+  return NumberText(what, {
+    min,
+    max,
+    minExclusive: min !== undefined && !schema.safeParse(min).success,
+    maxExclusive: max !== undefined && !schema.safeParse(max).success,
+    integer: schema.isInt,
   });
 }
 

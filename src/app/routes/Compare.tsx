@@ -1,12 +1,14 @@
 /** Route module: Compare — one coefficient across the study's conditions, coverslips as replicates. */
+import { useEffect, useId, useState } from 'react';
 import { useParams, useSearchParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
 import { SourceSelect } from '@/features/celltable/components/SourceSelect';
 import { useComparison } from '@/features/compare/api/useComparison';
 import { ComparePanel } from '@/features/compare/components/ComparePanel';
-import { COMPARE_COEFFICIENTS } from '@shared/schemas/compare';
+import { COMPARE_COEFFICIENTS, CompareQuery } from '@shared/schemas/compare';
 import { labelOf } from '@shared/coefficients';
+import { NumberTextFor, readNumberText } from '@shared/schemas/common';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 
@@ -64,10 +66,7 @@ export function Component() {
             setParams(next, { replace: true });
           }}
         />
-        <label className="flex flex-col gap-1 text-sm font-medium">
-          Bootstrap seed
-          <input className={`${inputClass()} w-28`} type="number" min={0} value={params.get('seed') ?? '1'} onChange={(e) => set('seed', e.target.value)} />
-        </label>
+        <SeedBox value={params.get('seed') ?? '1'} onChange={(v) => set('seed', v)} />
         {cmp.isFetching && <span className="pb-2 text-sm text-ink-soft">Computing…</span>}
       </div>
       {cmp.isPending ? (
@@ -80,6 +79,46 @@ export function Component() {
         <ComparePanel data={cmp.data} fileBase={studyName.replace(/[^A-Za-z0-9_-]+/g, '-')} csvQuery={q.toString()} />
       )}
       <MeasurementCautions className="mt-6" saturatedCells={cmp.data?.omitted.saturated} where="in this comparison" />
+    </div>
+  );
+}
+
+const SEED = NumberTextFor('Bootstrap seed', CompareQuery.shape.seed.unwrap());
+
+/**
+ * The bootstrap seed: typed text is checked against the comparison query's own bound (a whole number from 0 to
+ * 2³² − 1); a refused text stays in the box with a message beside it and the comparison keeps its last seed.
+ */
+export function SeedBox({ value, onChange }: { value: string; onChange: (v: string) => void }) {
+  const [text, setText] = useState(value);
+  const [error, setError] = useState<string | null>(null);
+  useEffect(() => {
+    setText((t) => (readNumberText(SEED, t).value === Number(value) ? t : value));
+  }, [value]);
+  const id = useId();
+  return (
+    <div className="flex flex-col gap-1 text-sm font-medium">
+      <label className="flex flex-col gap-1">
+        Bootstrap seed
+        <input
+          className={`${inputClass(!!error)} w-28`}
+          inputMode="numeric"
+          value={text}
+          aria-invalid={!!error}
+          aria-describedby={error ? id : undefined}
+          onChange={(e) => {
+            setText(e.target.value);
+            const r = readNumberText(SEED, e.target.value);
+            setError(r.error);
+            if (r.value !== null) onChange(String(r.value));
+          }}
+        />
+      </label>
+      {error && (
+        <p id={id} role="alert" className="max-w-xs text-xs font-normal text-danger">
+          {error}
+        </p>
+      )}
     </div>
   );
 }

@@ -2,7 +2,7 @@
  * The Cell table: every cell of a study with its latest measurement (server-side filters, sorting and paging,
  * state kept in the URL), column choice, exclusions with reasons and undo, and a link into the field workspace.
  */
-import { useMemo, useState } from 'react';
+import { useId, useMemo, useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type SortingState, type VisibilityState } from '@tanstack/react-table';
 import { Badge, Button, Caution, ErrorNotice, Loading, MeasurementCautions, inputClass } from '@/components';
@@ -134,7 +134,8 @@ export function CellTableView({ study }: { study: StudyDetail }) {
   const [rangeCol, setRangeCol] = useState<string>('pearson');
   const [rangeMin, setRangeMin] = useState('');
   const [rangeMax, setRangeMax] = useState('');
-  const [rangeError, setRangeError] = useState<string | null>(null);
+  const [rangeError, setRangeError] = useState<{ box: 'from' | 'to'; message: string } | null>(null);
+  const rangeErrorId = useId();
   const visibleExport = Object.entries(visibility)
     .filter(([, v]) => v)
     .map(([k]) => k);
@@ -218,10 +219,10 @@ export function CellTableView({ study }: { study: StudyDetail }) {
           if (rangeMin.trim() === '' && rangeMax.trim() === '') return;
           const lo = rangeMin.trim() === '' ? null : readNumberText(NumberText('from'), rangeMin);
           const hi = rangeMax.trim() === '' ? null : readNumberText(NumberText('to', lo?.value != null ? { min: lo.value } : {}), rangeMax);
-          const error = lo?.error ?? hi?.error ?? null;
+          const error = lo?.error ? { box: 'from' as const, message: lo.error } : hi?.error ? { box: 'to' as const, message: hi.error } : null;
           setRangeError(error);
           if (error) return;
-          update({ range: [...ranges.filter((r) => !r.startsWith(`${rangeCol}:`)), `${rangeCol}:${rangeMin}:${rangeMax}`] });
+          update({ range: [...ranges.filter((r) => !r.startsWith(`${rangeCol}:`)), `${rangeCol}:${lo?.value ?? ''}:${hi?.value ?? ''}`] });
           setRangeMin('');
           setRangeMax('');
         }}
@@ -237,17 +238,35 @@ export function CellTableView({ study }: { study: StudyDetail }) {
           </select>
         </label>
         <div className="w-24">
-          <input aria-label="from" className={inputClass()} inputMode="decimal" placeholder="from" value={rangeMin} onChange={(e) => setRangeMin(e.target.value)} />
+          <input
+            aria-label="from"
+            aria-invalid={rangeError?.box === 'from'}
+            aria-describedby={rangeError?.box === 'from' ? rangeErrorId : undefined}
+            className={inputClass(rangeError?.box === 'from')}
+            inputMode="decimal"
+            placeholder="from"
+            value={rangeMin}
+            onChange={(e) => setRangeMin(e.target.value)}
+          />
         </div>
         <div className="w-24">
-          <input aria-label="to" className={inputClass()} inputMode="decimal" placeholder="to" value={rangeMax} onChange={(e) => setRangeMax(e.target.value)} />
+          <input
+            aria-label="to"
+            aria-invalid={rangeError?.box === 'to'}
+            aria-describedby={rangeError?.box === 'to' ? rangeErrorId : undefined}
+            className={inputClass(rangeError?.box === 'to')}
+            inputMode="decimal"
+            placeholder="to"
+            value={rangeMax}
+            onChange={(e) => setRangeMax(e.target.value)}
+          />
         </div>
         <Button type="submit" size="sm">
           Add range
         </Button>
         {rangeError && (
-          <span role="alert" className="text-xs text-danger">
-            {rangeError}
+          <span id={rangeErrorId} role="alert" className="text-xs text-danger">
+            {rangeError.message}
           </span>
         )}
         {ranges.map((r) => {

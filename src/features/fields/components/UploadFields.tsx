@@ -7,12 +7,48 @@ import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
-import type { UploadFieldPlan } from '@shared/schemas/fields';
+import { UploadChannelRef, type UploadFieldPlan } from '@shared/schemas/fields';
+import { NumberTextFor, readNumberText } from '@shared/schemas/common';
 import { useUploadFields } from '../api/useUploadFields';
 import { formatBytes, inspectTiff, type FileChannels } from '../inspect';
 import { plural } from '@shared/format/plural';
 
 type Mode = 'multi' | 'pairs';
+
+const CHANNEL = NumberTextFor('Channel', UploadChannelRef.shape.channel.unwrap());
+
+/**
+ * A channel number typed by hand (the file's channels could not be read here): checked against the upload
+ * plan's bound; a refused text stays with a message beside it and the row keeps its last valid channel.
+ */
+function ChannelBox({ value, disabled, onChange }: { value: number; disabled: boolean; onChange: (n: number) => void }) {
+  const [text, setText] = useState(String(value));
+  const [error, setError] = useState<string | null>(null);
+  const id = useId();
+  return (
+    <>
+      <input
+        className={inputClass(!!error)}
+        inputMode="numeric"
+        value={text}
+        disabled={disabled}
+        aria-invalid={!!error}
+        aria-describedby={error ? id : undefined}
+        onChange={(e) => {
+          setText(e.target.value);
+          const r = readNumberText(CHANNEL, e.target.value);
+          setError(r.error);
+          if (r.value !== null) onChange(r.value);
+        }}
+      />
+      {error && (
+        <span id={id} role="alert" className="block text-xs text-danger">
+          {error}
+        </span>
+      )}
+    </>
+  );
+}
 
 interface MultiRow {
   id: number;
@@ -207,14 +243,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
                                 ))}
                               </select>
                             ) : (
-                              <input
-                                className={inputClass()}
-                                type="number"
-                                min={1}
-                                value={r[k]}
-                                disabled={busy}
-                                onChange={(e) => setMulti((cur) => cur.map((x) => (x.id === r.id ? { ...x, [k]: Math.max(1, Number(e.target.value) || 1) } : x)))}
-                              />
+                              <ChannelBox value={r[k]} disabled={busy} onChange={(n) => setMulti((cur) => cur.map((x) => (x.id === r.id ? { ...x, [k]: n } : x)))} />
                             )}
                           </label>
                         ))}

@@ -4,8 +4,9 @@
  */
 import { useEffect, useId, useState } from 'react';
 import { cx, inputClass } from '@/components';
-import { NumberText, readNumberText } from '@shared/schemas/common';
+import { NumberText, NumberTextFor, readNumberText } from '@shared/schemas/common';
 import {
+  BlockSizeSetting,
   COEFFICIENTS,
   COEFFICIENT_LABELS,
   SETTING_KEYS,
@@ -16,11 +17,6 @@ import {
 } from '@shared/schemas/recipes';
 
 type Props = { value: RecipeSettings; onChange?: (s: RecipeSettings) => void; readOnly?: boolean };
-
-const num = (v: string, fallback: number) => {
-  const n = Number(v);
-  return v.trim() === '' || !Number.isFinite(n) ? fallback : n;
-};
 
 function Choice<T extends string>({ name, value, options, onChange, disabled }: { name: string; value: T; options: [T, string][]; onChange: (v: T) => void; disabled?: boolean }) {
   return (
@@ -39,7 +35,7 @@ function Choice<T extends string>({ name, value, options, onChange, disabled }: 
  * A numeric setting: the typed text is checked (shared NumberText: a number within the setting's bounds, whole
  * when step is 1); a refused text stays in the box with a message and the recipe keeps its last valid value.
  */
-function Num({ label, value, onChange, disabled, step = 'any', min, max }: { label: string; value: number; onChange: (n: number) => void; disabled?: boolean; step?: string; min?: number; max?: number }) {
+function Num({ label, value, onChange, disabled, step = 'any', min, max, minExclusive }: { label: string; value: number; onChange: (n: number) => void; disabled?: boolean; step?: string; min?: number; max?: number; minExclusive?: boolean }) {
   const [text, setText] = useState(String(value));
   const [error, setError] = useState<string | null>(null);
   useEffect(() => {
@@ -59,7 +55,52 @@ function Num({ label, value, onChange, disabled, step = 'any', min, max }: { lab
           aria-describedby={error ? id : undefined}
           onChange={(e) => {
             setText(e.target.value);
-            const r = readNumberText(NumberText(label, { min, max, integer: step === '1' }), e.target.value);
+            const r = readNumberText(NumberText(label, { min, max, minExclusive, integer: step === '1' }), e.target.value);
+            setError(r.error);
+            if (r.value !== null) onChange(r.value);
+          }}
+        />
+      </label>
+      {error && (
+        <p id={id} role="alert" className="mt-1 text-xs text-danger">
+          {error}
+        </p>
+      )}
+    </div>
+  );
+}
+
+/**
+ * The recipe's own pixel size for PSF-sized blocks: empty means "each field's pixel size"; typed text is checked
+ * against the shared schema's bound (NumberTextFor); a refused text stays in the box with a message and the
+ * recipe keeps its last valid value.
+ */
+const PIXEL_SIZE = NumberTextFor('Pixel size', BlockSizeSetting.options[1].shape.pixelSizeUm.unwrap().unwrap());
+function PixelSizeBox({ value, onChange, disabled }: { value: number | null; onChange: (n: number | null) => void; disabled?: boolean }) {
+  const [text, setText] = useState(value === null ? '' : String(value));
+  const [error, setError] = useState<string | null>(null);
+  useEffect(() => {
+    setText((t) => (t.trim() === '' ? value === null : readNumberText(PIXEL_SIZE, t).value === value) ? t : value === null ? '' : String(value));
+  }, [value]);
+  const id = useId();
+  return (
+    <div className="text-sm">
+      <label className="flex items-center gap-2">
+        <span className="text-ink-soft">Pixel size (µm, empty: from each field)</span>
+        <input
+          className={cx(inputClass(!!error), 'w-28')}
+          inputMode="decimal"
+          value={text}
+          disabled={disabled}
+          aria-invalid={!!error}
+          aria-describedby={error ? id : undefined}
+          onChange={(e) => {
+            setText(e.target.value);
+            if (e.target.value.trim() === '') {
+              setError(null);
+              return onChange(null);
+            }
+            const r = readNumberText(PIXEL_SIZE, e.target.value);
             setError(r.error);
             if (r.value !== null) onChange(r.value);
           }}
@@ -203,17 +244,8 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
                 const b = s.randomization.blockSize;
                 return (
                   <>
-                    <Num label="PSF width (µm)" disabled={d} min={0} max={100} value={b.psfWidthUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfWidthUm: n } } })} />
-                    <label className="flex items-center gap-2 text-sm">
-                      <span className="text-ink-soft">Pixel size (µm, empty: from each field)</span>
-                      <input
-                        type="number"
-                        className={cx(inputClass(false), 'w-28')}
-                        disabled={d}
-                        value={b.pixelSizeUm ?? ''}
-                        onChange={(e) => set({ randomization: { ...s.randomization, blockSize: { ...b, pixelSizeUm: e.target.value.trim() === '' ? null : num(e.target.value, b.pixelSizeUm ?? 0.1) } } })}
-                      />
-                    </label>
+                    <Num label="PSF width (µm)" disabled={d} min={0} minExclusive max={100} value={b.psfWidthUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfWidthUm: n } } })} />
+                    <PixelSizeBox disabled={d} value={b.pixelSizeUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, pixelSizeUm: n } } })} />
                   </>
                 );
               })()
@@ -241,8 +273,8 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
             const z = s.z;
             return (
               <div className="flex flex-wrap gap-4">
-                <Num label="From slice" disabled={d} step="1" min={1} value={z.from + 1} onChange={(n) => set({ z: { ...z, from: Math.max(0, Math.round(n) - 1) } })} />
-                <Num label="To slice" disabled={d} step="1" min={1} value={z.to + 1} onChange={(n) => set({ z: { ...z, to: Math.max(0, Math.round(n) - 1) } })} />
+                <Num label="From slice" disabled={d} step="1" min={1} max={z.to + 1} value={z.from + 1} onChange={(n) => set({ z: { ...z, from: Math.max(0, Math.round(n) - 1) } })} />
+                <Num label="To slice" disabled={d} step="1" min={z.from + 1} value={z.to + 1} onChange={(n) => set({ z: { ...z, to: Math.max(0, Math.round(n) - 1) } })} />
               </div>
             );
           })()}

@@ -2,7 +2,8 @@
 import { useState } from 'react';
 import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
-import { DEFAULT_SHARE_DAYS, MAX_SHARE_DAYS } from '@shared/schemas/shares';
+import { CreateShareRequest, DEFAULT_SHARE_DAYS } from '@shared/schemas/shares';
+import { NumberTextFor, readNumberText } from '@shared/schemas/common';
 import { useCreateShare } from '../api/useCreateShare';
 
 export const splitAddresses = (s: string) =>
@@ -11,17 +12,22 @@ export const splitAddresses = (s: string) =>
     .map((x) => x.trim())
     .filter(Boolean);
 
+/** The link lifetime box refuses what CreateShareRequest.expiresInDays refuses (whole days, 1 to the maximum). */
+const DAYS = NumberTextFor('Links work for', CreateShareRequest.shape.expiresInDays.unwrap());
+
 export function ShareDialog({ reportId, open, onClose }: { reportId: number; open: boolean; onClose: () => void }) {
   const [emails, setEmails] = useState('');
   const [message, setMessage] = useState('');
   const [days, setDays] = useState(String(DEFAULT_SHARE_DAYS));
   const [invite, setInvite] = useState(false);
+  const daysChecked = readNumberText(DAYS, days);
   const share = useCreateShare(reportId);
   const err = share.error instanceof ApiError ? share.error : null;
   const emailError = err?.issues.find((i) => i.path.startsWith('emails'))?.message;
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
-    share.mutate({ emails: splitAddresses(emails), message, expiresInDays: Number(days), inviteToStudy: invite }, { onSuccess: (r) => (r.notSent.length ? undefined : onClose()) });
+    if (daysChecked.value === null) return;
+    share.mutate({ emails: splitAddresses(emails), message, expiresInDays: daysChecked.value, inviteToStudy: invite }, { onSuccess: (r) => (r.notSent.length ? undefined : onClose()) });
   };
   return (
     <Dialog
@@ -41,7 +47,7 @@ export function ShareDialog({ reportId, open, onClose }: { reportId: number; ope
       <form id="share-report" onSubmit={submit} className="flex flex-col gap-4">
         <TextArea label="E-mail addresses" hint="One or more, separated by commas or new lines." value={emails} onChange={(e) => setEmails(e.target.value)} rows={2} required error={emailError} data-autofocus />
         <TextArea label="Message" hint="Included in the e-mail (optional)." value={message} onChange={(e) => setMessage(e.target.value)} rows={3} maxLength={5000} />
-        <TextField label="Links work for (days)" type="number" min={1} max={MAX_SHARE_DAYS} value={days} onChange={(e) => setDays(e.target.value)} error={err?.fieldError('expiresInDays')} />
+        <TextField label="Links work for (days)" inputMode="numeric" value={days} onChange={(e) => setDays(e.target.value)} error={daysChecked.error ?? err?.fieldError('expiresInDays')} />
         <label className="flex items-start gap-2 text-sm">
           <input type="checkbox" className="mt-1" checked={invite} onChange={(e) => setInvite(e.target.checked)} />
           <span>

@@ -6,6 +6,10 @@ import { Dialog } from '@/components/Dialog';
 import { TextArea, TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
 import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { NumberTextFor, readNumberText } from '@shared/schemas/common';
+
+/** The replicate box refuses what the coverslip requests refuse (a positive whole number), quoting the text. */
+const REPLICATE = NumberTextFor('Replicate', CreateCoverslipRequest.shape.replicate.unwrap());
 
 export type CoverslipValues = { name?: string; replicate?: number; preparedOn?: string | null; notes?: string };
 
@@ -43,10 +47,11 @@ export function CoverslipDialog({
 
   const submit = async (e: React.FormEvent) => {
     e.preventDefault();
-    const rep = replicate.trim() === '' ? undefined : Number(replicate);
+    const rep = replicate.trim() === '' ? null : readNumberText(REPLICATE, replicate);
+    if (rep?.error) return setErrors({ replicate: rep.error });
     const values = {
       name: name.trim() === '' && !coverslip ? undefined : name,
-      replicate: rep,
+      replicate: rep?.value ?? undefined,
       preparedOn: preparedOn === '' ? null : preparedOn,
       notes,
     };
@@ -70,10 +75,7 @@ export function CoverslipDialog({
           <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} error={errors.name} hint={coverslip ? undefined : 'Leave empty for an automatic name.'} data-autofocus />
           <TextField
             label="Replicate"
-            type="number"
             inputMode="numeric"
-            min={1}
-            step={1}
             value={replicate}
             onChange={(e) => setReplicate(e.target.value)}
             error={errors.replicate}

@@ -2,8 +2,9 @@
  * Display controls: which view (both channels or one), display range per channel, z slice. These change the
  * picture only — never the numbers — and the panel says so.
  */
-import { useEffect, useState } from 'react';
+import { useEffect, useId, useState } from 'react';
 import type { FieldDetail } from '@shared/schemas/fields';
+import { NumberText, readNumberText } from '@shared/schemas/common';
 import { cx } from '@/components';
 import type { DisplaySettings } from './Viewer';
 
@@ -32,7 +33,7 @@ export function DisplayPanel({ field, display, onChange, autoRanges }: { field: 
           label={names[i]}
           tone={i === 0 ? 'text-ch1' : 'text-ch2'}
           top={top}
-          dataMax={i === 0 ? field.facts.ch1.max : field.facts.ch2.max}
+          dataRange={i === 0 ? [field.facts.ch1.min, field.facts.ch1.max] : [field.facts.ch2.min, field.facts.ch2.max]}
           value={display[k] ?? autoRanges?.[i] ?? null}
           auto={display[k] === null}
           onChange={(r) => onChange({ ...display, [k]: r })}
@@ -66,18 +67,35 @@ export function channelNames(field: FieldDetail): [string, string] {
   return [field.channelNames[0] || 'Channel 1', field.channelNames[1] || 'Channel 2'];
 }
 
-function RangeControl({ label, tone, top, dataMax, value, auto, onChange }: { label: string; tone: string; top: number; dataMax: number; value: [number, number] | null; auto: boolean; onChange: (r: [number, number] | null) => void }) {
-  const [lo, setLo] = useState(value ? String(value[0]) : '');
-  const [hi, setHi] = useState(value ? String(value[1]) : '');
+/**
+ * One channel's display range: sliders and two boxes. Typed bounds are checked (shared NumberText) against
+ * the channel's data range from the field facts, the maximum above the minimum; a refused text stays in its
+ * box with a message beside it and the picture keeps the last valid range.
+ */
+export function RangeControl({ label, tone, top, dataRange, value, auto, onChange }: { label: string; tone: string; top: number; dataRange: [number, number]; value: [number, number] | null; auto: boolean; onChange: (r: [number, number] | null) => void }) {
+  const [lo, setLo] = useState(value ? fmt(value[0]) : '');
+  const [hi, setHi] = useState(value ? fmt(value[1]) : '');
+  const [error, setError] = useState<{ box: 'lo' | 'hi'; message: string } | null>(null);
   useEffect(() => {
-    if (value) (setLo(fmt(value[0])), setHi(fmt(value[1])));
+    if (value) (setLo(fmt(value[0])), setHi(fmt(value[1])), setError(null));
   }, [value?.[0], value?.[1]]); // eslint-disable-line react-hooks/exhaustive-deps
-  const max = Math.max(dataMax, 1);
+  const errorId = useId();
+  const [dataMin, dataMaxRaw] = dataRange;
+  // a constant channel (min = max) still needs room for a range whose maximum is above its minimum
+  const dataMax = dataMaxRaw > dataMin ? dataMaxRaw : dataMin + 1;
   const commit = (a: string, b: string) => {
-    const x = Number(a), y = Number(b);
-    if (Number.isFinite(x) && Number.isFinite(y) && y > x) onChange([x, y]);
+    // a box still showing the current bound keeps its exact value (the box shows it rounded)
+    const x = value && a === fmt(value[0]) ? { value: value[0], error: null } : readNumberText(NumberText(`${label} minimum`, { min: dataMin, max: dataMax, maxExclusive: true }), a);
+    if (x.error !== null) return setError({ box: 'lo', message: x.error });
+    const y = value && b === fmt(value[1]) && value[1] > x.value ? { value: value[1], error: null } : readNumberText(NumberText(`${label} maximum`, { min: x.value, minExclusive: true, max: dataMax }), b);
+    if (y.error !== null) return setError({ box: 'hi', message: y.error });
+    setError(null);
+    if (!value || x.value !== value[0] || y.value !== value[1]) onChange([x.value, y.value]);
   };
+  const untouched = () => (value ? lo === fmt(value[0]) && hi === fmt(value[1]) : lo === '' && hi === '');
+  const commitBoxes = () => (untouched() ? setError(null) : commit(lo, hi));
   const step = top > 1000 ? 1 : top / 1000;
+  const box = 'w-20 rounded border border-ink/20 px-1.5 py-0.5 font-mono aria-[invalid=true]:border-danger';
   return (
     <fieldset className="space-y-1">
       <legend className={cx('flex w-full items-center justify-between text-xs font-medium', tone)}>
@@ -89,15 +107,40 @@ function RangeControl({ label, tone, top, dataMax, value, auto, onChange }: { la
         )}
       </legend>
       <div className="flex items-center gap-2">
-        <input type="range" aria-label={`${label} display minimum`} min={0} max={max} step={step} value={Number(lo) || 0} onChange={(e) => (setLo(e.target.value), commit(e.target.value, hi))} className="w-full accent-[#0f766e]" />
-        <input type="range" aria-label={`${label} display maximum`} min={0} max={max} step={step} value={Number(hi) || max} onChange={(e) => (setHi(e.target.value), commit(lo, e.target.value))} className="w-full accent-[#0f766e]" />
+        <input type="range" aria-label={`${label} display minimum`} min={dataMin} max={dataMax} step={step} value={Number(lo) || dataMin} onChange={(e) => (setLo(e.target.value), commit(e.target.value, hi))} className="w-full accent-[#0f766e]" />
+        <input type="range" aria-label={`${label} display maximum`} min={dataMin} max={dataMax} step={step} value={Number(hi) || dataMax} onChange={(e) => (setHi(e.target.value), commit(lo, e.target.value))} className="w-full accent-[#0f766e]" />
       </div>
       <div className="flex items-center gap-2 text-xs">
-        <input aria-label={`${label} display minimum value`} className="w-20 rounded border border-ink/20 px-1.5 py-0.5 font-mono" value={lo} onChange={(e) => setLo(e.target.value)} onBlur={() => commit(lo, hi)} onKeyDown={(e) => e.key === 'Enter' && commit(lo, hi)} />
+        <input
+          aria-label={`${label} display minimum value`}
+          aria-invalid={error?.box === 'lo'}
+          aria-describedby={error?.box === 'lo' ? errorId : undefined}
+          inputMode="decimal"
+          className={box}
+          value={lo}
+          onChange={(e) => setLo(e.target.value)}
+          onBlur={commitBoxes}
+          onKeyDown={(e) => e.key === 'Enter' && commitBoxes()}
+        />
         <span className="text-ink-faint">to</span>
-        <input aria-label={`${label} display maximum value`} className="w-20 rounded border border-ink/20 px-1.5 py-0.5 font-mono" value={hi} onChange={(e) => setHi(e.target.value)} onBlur={() => commit(lo, hi)} onKeyDown={(e) => e.key === 'Enter' && commit(lo, hi)} />
+        <input
+          aria-label={`${label} display maximum value`}
+          aria-invalid={error?.box === 'hi'}
+          aria-describedby={error?.box === 'hi' ? errorId : undefined}
+          inputMode="decimal"
+          className={box}
+          value={hi}
+          onChange={(e) => setHi(e.target.value)}
+          onBlur={commitBoxes}
+          onKeyDown={(e) => e.key === 'Enter' && commitBoxes()}
+        />
         {auto && <span className="text-ink-faint">(automatic)</span>}
       </div>
+      {error && (
+        <p id={errorId} role="alert" className="text-xs text-danger">
+          {error.message}
+        </p>
+      )}
     </fieldset>
   );
 }

@@ -1,7 +1,9 @@
 /** "Import label image" and "Find cells" (automatic outlines) dialogs. */
-import { useState } from 'react';
+import { useId, useState } from 'react';
 import { Button, Dialog, ErrorNotice } from '@/components';
-import type { AutoOutlineRequest } from '@shared/schemas/cells';
+import { AutoOutlineRequest } from '@shared/schemas/cells';
+import type { FieldSummary } from '@shared/schemas/fields';
+import { NumberText, NumberTextFor, readNumberText } from '@shared/schemas/common';
 import { useImportLabels } from '../api/useImportLabels';
 import { useAutoOutline } from '../api/useAutoOutline';
 import { plural } from '@shared/format/plural';
@@ -52,24 +54,63 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
   );
 }
 
-export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z }: { fieldId: number; open: boolean; onClose: () => void; names: [string, string]; onDone: (msg: string) => void; z?: number | 'mip' }) {
+/** One checked box of the dialog: its label, the typed text, and the message (tied to the box) when refused. */
+function NumberBox({ label, value, onChange, error, inputMode }: { label: string; value: string; onChange: (v: string) => void; error: string | null; inputMode: 'decimal' | 'numeric' }) {
+  const id = useId();
+  return (
+    <label className="flex flex-col gap-1">
+      <span className="text-ink-soft">{label}</span>
+      <input
+        className="rounded border border-ink/20 bg-white px-1.5 py-1 text-sm aria-[invalid=true]:border-danger"
+        value={value}
+        onChange={(e) => onChange(e.target.value)}
+        inputMode={inputMode}
+        aria-invalid={!!error}
+        aria-describedby={error ? id : undefined}
+      />
+      {error && (
+        <span id={id} role="alert" className="text-xs text-danger">
+          {error}
+        </span>
+      )}
+    </label>
+  );
+}
+
+const SEED_DISTANCE = NumberTextFor('Least distance', AutoOutlineRequest.shape.seedDistance.unwrap());
+
+/**
+ * Automatic outlines. Typed numbers are checked as they are typed: the manual level against the data range of
+ * the chosen intensities (field facts; the sum of both channels spans the sum of their ranges), the seed
+ * distance against the request schema, cell sizes as whole numbers from 1 to the field's pixel count (the
+ * largest at least the smallest). While a box is refused its message stands beside it and nothing is sent.
+ */
+export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z, facts, pixelCount }: { fieldId: number; open: boolean; onClose: () => void; names: [string, string]; onDone: (msg: string) => void; z?: number | 'mip'; facts: FieldSummary['facts']; pixelCount: number }) {
   const m = useAutoOutline(fieldId);
   const [channel, setChannel] = useState<'ch1' | 'ch2' | 'sum'>('sum');
   const [method, setMethod] = useState<'otsu' | 'manual'>('otsu');
   const [level, setLevel] = useState('');
+  const [levelTyped, setLevelTyped] = useState(false);
+  const [tried, setTried] = useState(false);
   const [split, setSplit] = useState(true);
   const [seedDistance, setSeedDistance] = useState('10');
   const [minPixels, setMinPixels] = useState('30');
   const [maxPixels, setMaxPixels] = useState('');
   const [replace, setReplace] = useState(true);
+  const range: [number, number] = channel === 'sum' ? [facts.ch1.min + facts.ch2.min, facts.ch1.max + facts.ch2.max] : [facts[channel].min, facts[channel].max];
+  const lv = method === 'manual' ? readNumberText(NumberText('Level', { min: range[0], max: range[1] }), level) : null;
+  const sd = split ? readNumberText(SEED_DISTANCE, seedDistance) : null;
+  const lo = readNumberText(NumberText('Smallest cell', { min: 1, max: pixelCount, integer: true }), minPixels);
+  const hi = maxPixels.trim() === '' ? null : readNumberText(NumberText('Largest cell', { min: lo.value ?? 1, max: pixelCount, integer: true }), maxPixels);
+  const invalid = !!(lv?.error || sd?.error || lo.error || hi?.error);
   const body = (): AutoOutlineRequest => ({
     channel,
-    threshold: method === 'otsu' ? { method: 'otsu' } : { method: 'manual', level: Number(level) },
+    threshold: lv?.value != null ? { method: 'manual', level: lv.value } : { method: 'otsu' },
     fillHoles: true,
     split,
-    seedDistance: Number(seedDistance) || 10,
-    minPixels: Math.max(1, Math.round(Number(minPixels) || 1)),
-    maxPixels: maxPixels.trim() ? Math.round(Number(maxPixels)) : null,
+    ...(sd?.value != null ? { seedDistance: sd.value } : {}),
+    minPixels: lo.value!,
+    maxPixels: hi?.value ?? null,
     replace,
     ...(z !== undefined ? { z } : {}),
   });
@@ -87,14 +128,16 @@ export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z }: 
           <Button
             variant="primary"
             pending={m.isPending}
-            onClick={() =>
+            onClick={() => {
+              setTried(true);
+              if (invalid) return;
               m.mutate(body(), {
                 onSuccess: (r) => {
                   onDone(`${plural(r.cells.length, 'cell')} found (level ${r.level === null ? '—' : Number(r.level.toPrecision(5))}; ${r.droppedSmall} too small, ${r.droppedLarge} too large left out)`);
                   onClose();
                 },
-              })
-            }
+              });
+            }}
           >
             Find cells
           </Button>
@@ -118,28 +161,16 @@ export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z }: 
           </select>
         </label>
         {method === 'manual' && (
-          <label className="flex flex-col gap-1">
-            <span className="text-ink-soft">Level (cells are brighter than this)</span>
-            <input className={field} value={level} onChange={(e) => setLevel(e.target.value)} inputMode="decimal" />
-          </label>
+          <NumberBox label="Level (cells are brighter than this)" value={level} onChange={(v) => (setLevel(v), setLevelTyped(true))} error={levelTyped || tried ? (lv?.error ?? null) : null} inputMode="decimal" />
         )}
         <label className="flex items-center gap-2">
           <input type="checkbox" checked={split} onChange={(e) => setSplit(e.target.checked)} /> Split touching cells
         </label>
         {split && (
-          <label className="flex flex-col gap-1">
-            <span className="text-ink-soft">Least distance between cell centres (px)</span>
-            <input className={field} value={seedDistance} onChange={(e) => setSeedDistance(e.target.value)} inputMode="numeric" />
-          </label>
+          <NumberBox label="Least distance between cell centres (px)" value={seedDistance} onChange={setSeedDistance} error={sd?.error ?? null} inputMode="decimal" />
         )}
-        <label className="flex flex-col gap-1">
-          <span className="text-ink-soft">Smallest cell (pixels)</span>
-          <input className={field} value={minPixels} onChange={(e) => setMinPixels(e.target.value)} inputMode="numeric" />
-        </label>
-        <label className="flex flex-col gap-1">
-          <span className="text-ink-soft">Largest cell (pixels, empty = no limit)</span>
-          <input className={field} value={maxPixels} onChange={(e) => setMaxPixels(e.target.value)} inputMode="numeric" />
-        </label>
+        <NumberBox label="Smallest cell (pixels)" value={minPixels} onChange={setMinPixels} error={lo.error} inputMode="numeric" />
+        <NumberBox label="Largest cell (pixels, empty = no limit)" value={maxPixels} onChange={setMaxPixels} error={hi?.error ?? null} inputMode="numeric" />
         <label className="col-span-2 flex items-center gap-2">
           <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> Replace earlier automatic outlines of this field
         </label>
