@@ -21,7 +21,7 @@ import zlib from 'node:zlib';
 import { addDecoder, BaseDecoder, fromArrayBuffer } from 'geotiff';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
-import { bufferReader, checkPageExtents, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
+import { bufferReader, checkPageExtents, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiff-header.js';
 
 export { ImageInputError };
 

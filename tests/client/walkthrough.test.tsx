@@ -12,7 +12,7 @@ import { Component as ReviewQueue } from '@/app/routes/ReviewQueue';
 import { Component as Compare } from '@/app/routes/Compare';
 import { Component as CellTable } from '@/app/routes/CellTable';
 import { Comparison } from '@shared/schemas/compare';
-import { GridRow, NUMERIC_COLUMNS } from '@shared/schemas/measurements';
+import { GridRow, NUMERIC_COLUMNS } from '@shared/schemas/cell-table';
 import { asUser, demoUser, mockApi, on, renderRoutes } from './utils';
 import { makeStudy } from './fixtures';
 

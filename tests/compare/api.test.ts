@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';
 import { Comparison } from '../../shared/schemas/compare.js';
-import { GridResponse } from '../../shared/schemas/measurements.js';
+import { GridResponse } from '../../shared/schemas/cell-table.js';
 
 let t: TestApp;
 let s: Seeded;

@@ -8,7 +8,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements } from './seed.js';
 import { computeComparison } from '../../server/compare/compute.js';
 import { SuperPlot } from '../../src/features/compare/components/SuperPlot';
-import { COVERSLIP_COLORS } from '../../src/features/compare/components/palette';
+import { COVERSLIP_COLORS } from '../../src/features/compare/lib/palette';
 import type { Comparison } from '../../shared/schemas/compare.js';
 
 let t: TestApp;

@@ -2,7 +2,7 @@
 import { useParams, useSearchParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
-import { SourceSelect } from '@/features/celltable/components/SourceSelect';
+import { SourceSelect } from '@/features/cell-table/components/SourceSelect';
 import { useComparison } from '@/features/compare/api/useComparison';
 import { ComparePanel } from '@/features/compare/components/ComparePanel';
 import { COMPARE_COEFFICIENTS, COMPARE_LABELS } from '@shared/schemas/compare';

@@ -2,7 +2,7 @@
 import { forwardRef } from 'react';
 import { scaleLinear } from 'd3';
 import type { Comparison, HistogramSet } from '@shared/schemas/compare';
-import { conditionStyle } from './palette';
+import { conditionStyle } from '../lib/palette';
 
 const f3 = (v: number | null) => (v === null ? '—' : v.toFixed(3));
 

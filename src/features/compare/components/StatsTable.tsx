@@ -1,6 +1,6 @@
 /** The numbers behind a comparison: per condition, per coverslip, differences with intervals, tests. */
 import type { Comparison } from '@shared/schemas/compare';
-import { coverslipColor } from './palette';
+import { coverslipColor } from '../lib/palette';
 
 const f = (v: number | null) => (v === null ? '—' : Math.abs(v) >= 100 ? v.toFixed(1) : v.toFixed(3));
 const fp = (p: number | null) => (p === null ? '—' : p < 0.001 ? '< 0.001' : p.toFixed(3));

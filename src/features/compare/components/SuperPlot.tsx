@@ -8,7 +8,7 @@
 import { forwardRef, useMemo } from 'react';
 import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3';
 import type { Comparison } from '@shared/schemas/compare';
-import { coverslipColor, coverslipMarker, type Marker } from './palette';
+import { coverslipColor, coverslipMarker, type Marker } from '../lib/palette';
 
 const SYMBOLS: Record<Marker, SymbolType> = {
   circle: symbolCircle,

@@ -9,7 +9,7 @@ import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
 import type { UploadFieldPlan } from '@shared/schemas/fields';
 import { useUploadFields } from '../api/useUploadFields';
-import { formatBytes, inspectTiff, type FileChannels } from '../inspect';
+import { formatBytes, inspectTiff, type FileChannels } from '../lib/inspect';
 
 type Mode = 'multi' | 'pairs';
 

@@ -4,7 +4,7 @@ import type { StudySummary } from '@shared/schemas/studies';
 import { ButtonLink } from '@/components/Button';
 import { Card } from '@/components/Card';
 import { EmptyState } from '@/components/EmptyState';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 
 export function BiologistPanel({ studies, meId }: { studies: StudySummary[]; meId: number }) {
   const mine = studies.filter((s) => s.ownerId === meId || s.permissions.includes('edit_structure'));

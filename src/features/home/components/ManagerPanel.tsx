@@ -5,7 +5,7 @@ import { useOutbox } from '@/features/outbox/api/useOutbox';
 import { useUsers } from '@/features/people/api/useUsers';
 import { formatWhen } from '@/features/outbox/components/OutboxList';
 import { Card } from '@/components/Card';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 import { Tile } from './Tile';
 import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
 

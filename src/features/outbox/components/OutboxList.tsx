@@ -1,7 +1,7 @@
 /** Captured messages, newest first; choosing one opens it beside the list. */
 import type { OutboxSummary } from '@shared/schemas/outbox';
 import { Badge } from '@/components/Badge';
-import { cx, focusRing } from '@/components/cx';
+import { cx, focusRing } from '@/lib/cx';
 
 export const formatWhen = (iso: string) => {
   const d = new Date(iso);

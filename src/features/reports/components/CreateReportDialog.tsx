@@ -4,7 +4,7 @@ import { useNavigate } from 'react-router';
 import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
 import { COEFFICIENT_LABELS, CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
-import { validate, type FieldErrors } from '@/components/form';
+import { validate, type FieldErrors } from '@/lib/form';
 import { useCreateReport } from '../api/useCreateReport';
 
 const DEFAULT: ReportCoefficient[] = ['pearson', 'spearman', 'mandersM1', 'mandersM2'];

@@ -5,7 +5,7 @@
  */
 import type { ReportCoefficient, ReportSnapshot } from '@shared/schemas/reports';
 import { COEFFICIENT_LABELS } from '@shared/schemas/reports';
-import { coverslipColour, fmtNum } from './palette';
+import { coverslipColour, fmtNum } from '../lib/palette';
 
 const W = 560;
 const H = 300;

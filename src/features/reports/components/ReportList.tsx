@@ -3,7 +3,7 @@ import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading } from '@/components';
 import { COEFFICIENT_LABELS, type ReportCoefficient } from '@shared/schemas/reports';
 import { useReports } from '../api/useReports';
-import { fmtDate } from './palette';
+import { fmtDate } from '../lib/palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
 
 export function ReportList({ studyId, emptyAction }: { studyId: number; emptyAction?: React.ReactNode }) {

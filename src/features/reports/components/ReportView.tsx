@@ -12,9 +12,9 @@ import { COEFFICIENT_LABELS, CSV_TABLES, type CsvTable, type ReportCoefficient, 
 import { ReplicatePlot } from './ReplicatePlot';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
-import { fmtDate, fmtNum, fmtP } from './palette';
+import { fmtDate, fmtNum, fmtP } from '../lib/palette';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
-import './report-print.css';
+import './ReportView.css';
 
 /** The comparison screen's plot (issue 7) when the frozen comparison matches its current shape; else our own replicate plot. */
 function frozenComparison(v: unknown): Comparison | null {

@@ -1,6 +1,6 @@
 /** Pixel scatter of one cell: a 2-D histogram of (channel 1, channel 2) with the cell's thresholds as lines. */
 import type { CellScatter } from '@shared/schemas/reports';
-import { fmtNum } from './palette';
+import { fmtNum } from '../lib/palette';
 
 export function ScatterFigure({ scatter }: { scatter: CellScatter }) {
   const S = 256;

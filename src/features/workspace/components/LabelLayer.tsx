@@ -1,7 +1,7 @@
 /** Cells imported from a label image, painted from their run-length masks (exact pixels, no tracing). */
 import { useEffect, useRef } from 'react';
 import type { FieldDetail } from '@shared/schemas/fields';
-import type { Outline } from '../outline-state';
+import type { Outline } from '../lib/outlineState';
 
 export function LabelLayer({ field, outlines, selected }: { field: FieldDetail; outlines: Outline[]; selected: string | null }) {
   const ref = useRef<HTMLCanvasElement>(null);

@@ -5,7 +5,7 @@
  * strictly greater than the threshold).
  */
 import { useEffect, useRef, useState } from 'react';
-import type { ScatterView } from '../useScatter';
+import type { ScatterView } from '../lib/useScatter';
 
 const SIZE = 264;
 const STOPS: [number, number, number][] = [

@@ -1,10 +1,10 @@
-/** Accounts, invitations and labs (facility managers). Schemas and route list: shared/schemas/users.ts. */
+/** Accounts, invitations and labs (facility managers). Schemas and route list: shared/schemas/people.ts. */
 import { Router, type Request } from 'express';
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, labMembers, labs, studies, users } from '../db/schema.js';
-import { CreateLabRequest, InviteUserRequest, InviteUserResponse, Lab, LabListResponse, UpdateLabRequest, UpdateUserRequest, UserListResponse, UserRow } from '../../shared/schemas/users.js';
-import { idParam } from './_params.js';
+import { CreateLabRequest, InviteUserRequest, InviteUserResponse, Lab, LabListResponse, UpdateLabRequest, UpdateUserRequest, UserListResponse, UserRow } from '../../shared/schemas/people.js';
+import { idParam } from '../http/params.js';
 import { badRequest, conflict, notFound, parse } from '../http/errors.js';
 import { requireUser } from '../auth/session.js';
 import { can, requireCan } from '../auth/policy.js';

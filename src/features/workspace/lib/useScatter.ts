@@ -5,7 +5,7 @@
 import { useEffect, useRef, useState } from 'react';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { RegionResult } from '@shared/analysis/types';
-import type { FieldPixelData } from './api/useFieldPixels';
+import type { FieldPixelData } from '../api/useFieldPixels';
 import type { ScatterReply, ScatterRequest } from './scatter.worker';
 
 export type ScatterView = Extract<ScatterReply, { type: 'scatter' }> & { counts: Uint32Array };

@@ -1,5 +1,5 @@
 /**
- * The Cell table, exclusions and comparisons of a study (issue 7). Shapes: shared/schemas/measurements.ts
+ * The Cell table, exclusions and comparisons of a study (issue 7). Shapes: shared/schemas/cell-table.ts
  * and shared/schemas/compare.ts.
  *
  *   GET    /api/studies/:studyId/measurement-sources         recipes and runs that produced measurements
@@ -17,7 +17,7 @@ import type { AppContext } from '../context.js';
 import { requireUser } from '../auth/session.js';
 import { requireStudy, studyPermissions, type Study } from '../auth/policy.js';
 import { badRequest, conflict, notFound, parse } from '../http/errors.js';
-import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/measurements.js';
+import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
 import { CompareQuery } from '../../shared/schemas/compare.js';
 import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
 import { computeComparison } from '../compare/compute.js';
