@@ -1,7 +1,7 @@
 /**
  * TIFF / OME-TIFF decoding shared by the intake routes and the `analyze` command.
  *
- * Every input is first walked with the bounded header reader (tiffheader.ts): magic bytes, page sizes,
+ * Every input is first walked with the bounded header reader (tiff-header.ts): magic bytes, page sizes,
  * sample layout, compression and data extents are checked against the pixel budget BEFORE any pixel is
  * decoded; only then does `geotiff` decode the chosen pages/samples.
  *

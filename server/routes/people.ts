@@ -1,4 +1,7 @@
-/** Accounts, invitations and labs (facility managers). Schemas and route list: shared/schemas/people.ts. */
+/**
+ * The people of the facility (screen "People & labs"): accounts, invitations and labs, for facility managers.
+ * API paths /api/users and /api/labs. Schemas and route list: shared/schemas/people.ts.
+ */
 import { Router, type Request } from 'express';
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
@@ -12,7 +15,7 @@ import { createInvitation, sendInvitationMail } from '../auth/invitations.js';
 
 type UserRecord = typeof users.$inferSelect;
 
-export default function usersRoutes(ctx: AppContext) {
+export default function peopleRoutes(ctx: AppContext) {
   const r = Router();
   const db = ctx.db;
 

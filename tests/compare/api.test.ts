@@ -1,4 +1,4 @@
-/** API of the Cell table, exclusions, comparisons and CSV exports (server/routes/measurements.ts). */
+/** API of the Cell table, exclusions, comparisons and CSV exports (server/routes/cell-table.ts, server/routes/compare.ts). */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';

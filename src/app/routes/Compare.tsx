@@ -37,7 +37,7 @@ export function Component() {
           { to: `/studies/${studyId}`, label: studyName },
         ]}
         description="Every cell is shown, but coverslips are the replicates: tests and intervals are computed on coverslip means."
-        actions={<ButtonLink to={`/studies/${studyId}/cells`}>Cell table</ButtonLink>}
+        actions={<ButtonLink to={`/studies/${studyId}/cell-table`}>Cell table</ButtonLink>}
       />
       <div className="mb-5 flex flex-wrap items-end gap-4">
         <label className="flex flex-col gap-1 text-sm font-medium">
