@@ -9,13 +9,14 @@ import { authenticate } from './auth/session.js';
 import { errorMiddleware, notFoundApi, unauthorized } from './http/errors.js';
 import { sameOriginWrites, securityHeaders } from './http/security.js';
 import authRoutes from './routes/auth.js';
-import usersRoutes from './routes/users.js';
+import peopleRoutes from './routes/people.js';
 import studiesRoutes from './routes/studies.js';
 import fieldsRoutes from './routes/fields.js';
 import cellsRoutes from './routes/cells.js';
 import recipesRoutes from './routes/recipes.js';
 import runsRoutes from './routes/runs.js';
-import measurementsRoutes from './routes/measurements.js';
+import cellTableRoutes from './routes/cell-table.js';
+import compareRoutes from './routes/compare.js';
 import reportsRoutes from './routes/reports.js';
 import sharesRoutes from './routes/shares.js';
 import outboxRoutes from './routes/outbox.js';
@@ -47,7 +48,7 @@ export function createApp(ctx: AppContext) {
     res.json({ ok: true });
   });
   const api = express.Router();
-  for (const r of [authRoutes, usersRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, measurementsRoutes, reportsRoutes, sharesRoutes, outboxRoutes]) {
+  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes]) {
     api.use(r(ctx));
   }
   app.use('/api', api);

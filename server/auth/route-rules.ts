@@ -32,7 +32,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/auth/invitations/:token': 'invite-token',
   'POST /api/auth/invitations/:token/accept': 'invite-token',
 
-  // users.ts (H2)
+  // people.ts
   'GET /api/users': { global: 'manage_users' },
   'POST /api/users': { global: 'manage_users' },
   'POST /api/users/:id/invite': { global: 'manage_users' },
@@ -92,13 +92,15 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/runs': 'signed-in', // filtered to readable studies; ?studyId= checks 'read'
   'GET /api/runs/:id': { study: 'read' },
 
-  // measurements.ts (H7)
+  // cell-table.ts
   'GET /api/studies/:studyId/measurement-sources': { study: 'read' },
   'GET /api/studies/:studyId/cell-table': { study: 'read' },
   'GET /api/studies/:studyId/cells.csv': { study: 'read' },
   'POST /api/cells/:cellId/exclusion': { study: 'exclude' },
   'DELETE /api/cells/:cellId/exclusion': { study: 'exclude' },
   'GET /api/cells/:cellId/exclusion-history': { study: 'read' },
+
+  // compare.ts
   'GET /api/studies/:studyId/compare': { study: 'read' },
   'GET /api/studies/:studyId/compare/coverslips.csv': { study: 'read' },
   'GET /api/studies/:studyId/compare/cells.csv': { study: 'read' },

@@ -12,7 +12,7 @@
  * - Histograms of the coefficient and of the per-cell mean intensity of each channel, per condition, with
  *   the chi-squared and Earth Mover's distances between every pair of conditions.
  *
- * Used by GET /api/studies/:id/compare (server/routes/measurements.ts) and by report snapshots .
+ * Used by GET /api/studies/:id/compare (server/routes/cell-table.ts) and by report snapshots .
  */
 import type { AppContext } from '../context.js';
 import { badRequest } from '../http/errors.js';

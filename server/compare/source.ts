@@ -12,7 +12,7 @@
 import type { AppContext } from '../context.js';
 import { badRequest } from '../http/errors.js';
 import { CELL_TABLE_KEYS, byKey } from '../../shared/coefficients.js';
-import { NUMERIC_COLUMNS, type GridFilters, type NumericColumn, type SortKey, type SourceInfo } from '../../shared/schemas/measurements.js';
+import { NUMERIC_COLUMNS, type GridFilters, type NumericColumn, type SortKey, type SourceInfo } from '../../shared/schemas/cell-table.js';
 
 /** API column name → SQL expression over alias m (measurements): measures by their registry column. */
 export const COLUMN_SQL: Record<NumericColumn, string> = {
@@ -148,5 +148,5 @@ export const GRID_SELECT = `SELECT c.id AS cellId, c.name AS cell, f.id AS field
 
 /** SQLite row → API row (booleans; the pixel count falls back to the cell's own when unmeasured). */
 export function toGridRow(r: Record<string, unknown>) {
-  return { ...r, saturated: !!r.saturated, provisional: !!r.provisional, excluded: !!r.excluded } as import('../../shared/schemas/measurements.js').GridRow;
+  return { ...r, saturated: !!r.saturated, provisional: !!r.provisional, excluded: !!r.excluded } as import('../../shared/schemas/cell-table.js').GridRow;
 }

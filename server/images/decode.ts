@@ -23,7 +23,7 @@ import { fromArrayBuffer } from 'geotiff';
 import { checkRawSize } from './codecs.js';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
-import { bufferReader, checkPageExtents, MAX_PLANES, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiffheader.js';
+import { bufferReader, checkPageExtents, MAX_PLANES, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiff-header.js';
 
 export { ImageInputError };
 

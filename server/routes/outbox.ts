@@ -7,7 +7,7 @@ import { OutboxListResponse, OutboxMessage, OutboxQuery } from '../../shared/sch
 import { notFound, parse } from '../http/errors.js';
 import { requireUser } from '../auth/session.js';
 import { requireCan } from '../auth/policy.js';
-import { idParam } from './_params.js';
+import { idParam } from '../http/params.js';
 
 export default function outboxRoutes(ctx: AppContext) {
   const r = Router();

@@ -24,7 +24,7 @@ import {
 import { badRequest, conflict, parse } from '../http/errors.js';
 import { requireUser, type SessionUser } from '../auth/session.js';
 import { notFoundAsked, requireCan, requireStudy, studyPermissions, hasRole, type Study } from '../auth/policy.js';
-import { idParam } from './_params.js';
+import { idParam } from '../http/params.js';
 
 type Tx = Parameters<Parameters<AppContext['db']['transaction']>[0]>[0];
 const ACTION_ORDER: StudyAction[] = ['read', 'edit_structure', 'edit_images', 'run', 'exclude', 'report', 'delete'];

@@ -1,6 +1,6 @@
 /**
  * Share links: a report e-mailed to collaborators with a personal, signed, expiring, revocable link.
- * Server: server/routes/shares.ts; client: src/features/share.
+ * Server: server/routes/shares.ts; client: src/features/shares.
  *
  *   POST /reports/:id/shares        CreateShareRequest → ShareListResponse (201; 'report' on the study)
  *   GET  /reports/:id/shares        → ShareListResponse ('report')

@@ -1,5 +1,5 @@
 /** A short status word. Tones are our palette, not a code borrowed from elsewhere. */
-import { cx } from './cx';
+import { cx } from '@/lib/cx';
 
 export type BadgeTone = 'neutral' | 'accent' | 'warn' | 'danger';
 const tones: Record<BadgeTone, string> = {

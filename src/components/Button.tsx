@@ -1,7 +1,7 @@
 /** Buttons: one primary action per view, quiet secondary actions, a red one for irreversible steps. */
 import type { ButtonHTMLAttributes, Ref } from 'react';
 import { Link, type LinkProps } from 'react-router';
-import { cx, focusRing } from './cx';
+import { cx, focusRing } from '@/lib/cx';
 import { Spinner } from './Spinner';
 
 export type ButtonVariant = 'primary' | 'secondary' | 'ghost' | 'danger' | 'quietDanger';

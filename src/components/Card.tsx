@@ -1,6 +1,6 @@
 /** A white sheet on the paper background. */
 import type { HTMLAttributes } from 'react';
-import { cx } from './cx';
+import { cx } from '@/lib/cx';
 
 export function Card({ className, title, actions, children, ...rest }: HTMLAttributes<HTMLElement> & { title?: React.ReactNode; actions?: React.ReactNode }) {
   return (

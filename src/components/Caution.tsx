@@ -1,5 +1,5 @@
 /** A notice box for the product's cautions (resolution limits, saturation, research use only) and other warnings. */
-import { cx } from './cx';
+import { cx } from '@/lib/cx';
 
 export function Caution({ title, children, tone = 'warn', className }: { title?: string; children: React.ReactNode; tone?: 'warn' | 'info' | 'danger'; className?: string }) {
   const look = tone === 'danger' ? 'border-danger/30 bg-danger-soft text-danger' : tone === 'info' ? 'border-accent/25 bg-accent-soft/60 text-accent-dark' : 'border-warn/30 bg-warn-soft text-warn';

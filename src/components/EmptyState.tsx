@@ -1,5 +1,5 @@
 /** What a list shows when there is nothing in it yet, with the next step. */
-import { cx } from './cx';
+import { cx } from '@/lib/cx';
 
 export function EmptyState({ title, children, action, className }: { title: string; children?: React.ReactNode; action?: React.ReactNode; className?: string }) {
   return (

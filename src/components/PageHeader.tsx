@@ -1,7 +1,7 @@
 /** The title block of a page: optional trail back, title, a line of context, and the page's actions. */
 import { useEffect } from 'react';
 import { Link } from 'react-router';
-import { focusRing } from './cx';
+import { focusRing } from '@/lib/cx';
 
 export type Crumb = { to: string; label: string };
 

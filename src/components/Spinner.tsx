@@ -1,5 +1,5 @@
 /** A small turning ring; `label` is read by screen readers (empty string: decorative). */
-import { cx } from './cx';
+import { cx } from '@/lib/cx';
 
 export function Spinner({ size = 'md', label = 'Loading…', className }: { size?: 'sm' | 'md'; label?: string; className?: string }) {
   const dim = size === 'sm' ? 'h-3.5 w-3.5 border-2' : 'h-5 w-5 border-2';

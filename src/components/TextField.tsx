@@ -1,6 +1,6 @@
 /** A labelled text input with hint and error text tied to it for assistive technology. */
 import { useId, type InputHTMLAttributes, type Ref, type TextareaHTMLAttributes } from 'react';
-import { cx, focusRing } from './cx';
+import { cx, focusRing } from '@/lib/cx';
 
 export const inputClass = (invalid?: boolean) =>
   cx(

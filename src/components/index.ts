@@ -8,5 +8,5 @@ export { PageHeader } from './PageHeader';
 export { Caution, ErrorNotice } from './Caution';
 export { MeasurementCautions } from './MeasurementCautions';
 export { Spinner, Loading } from './Spinner';
-export { cx, focusRing } from './cx';
-export { validate, serverErrors, type FieldErrors } from './form';
+export { cx, focusRing } from '@/lib/cx';
+export { validate, serverErrors, type FieldErrors } from '@/lib/form';

@@ -1,11 +1,11 @@
 /** Form helpers use the shared zod schemas unchanged and place server issues by field path. (common practice) */
 import { describe, expect, it } from 'vitest';
 import { LoginRequest, ChangePasswordRequest, AcceptInvitationRequest } from '@shared/schemas/auth';
-import { InviteUserRequest } from '@shared/schemas/users';
+import { InviteUserRequest } from '@shared/schemas/people';
 import { CreateCoverslipRequest, CreateStudyRequest, DeleteStudyRequest } from '@shared/schemas/studies';
 import { ApiError } from '@/lib/api';
-import { serverErrors, validate } from '@/components/form';
-import { safeNext } from '@/features/auth/components/safeNext';
+import { serverErrors, validate } from '@/lib/form';
+import { safeNext } from '@/features/auth/lib/safeNext';
 
 describe('validate with the shared schemas', () => {
   it('gives the schema’s own message per field', () => {

@@ -5,7 +5,7 @@ import { screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { Shell } from '@/app/Shell';
 import type { Role } from '@shared/schemas/auth';
-import { homeSections } from '@/features/home/components/sections';
+import { homeSections } from '@/features/home/lib/sections';
 import { asUser, demoUser, mockApi, on, renderRoutes } from './utils';
 
 const routes = [

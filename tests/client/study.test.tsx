@@ -26,7 +26,7 @@ describe('Study page', () => {
     expect(screen.getByRole('heading', { name: 'Control' })).toBeTruthy();
     expect(screen.getByRole('heading', { name: 'Treated' })).toBeTruthy();
     const links = within(screen.getByRole('navigation', { name: 'Study pages' })).getAllByRole('link');
-    expect(links.map((a) => a.getAttribute('href'))).toEqual(['/runs?studyId=3', '/studies/3/cells', '/studies/3/compare', '/studies/3/reports']);
+    expect(links.map((a) => a.getAttribute('href'))).toEqual(['/runs?studyId=3', '/studies/3/cell-table', '/studies/3/compare', '/studies/3/reports']);
     expect(screen.getByText('no cells outlined')).toBeTruthy();
   });
 

@@ -12,7 +12,7 @@ import { Component as ReviewQueue } from '@/app/routes/ReviewQueue';
 import { Component as Compare } from '@/app/routes/Compare';
 import { Component as CellTable } from '@/app/routes/CellTable';
 import { Comparison } from '@shared/schemas/compare';
-import { GridRow, NUMERIC_COLUMNS } from '@shared/schemas/measurements';
+import { GridRow, NUMERIC_COLUMNS } from '@shared/schemas/cell-table';
 import { asUser, demoUser, mockApi, on, renderRoutes } from './utils';
 import { makeStudy } from './fixtures';
 
@@ -146,7 +146,7 @@ const row = (over: Partial<GridRow>): GridRow =>
 describe('Cell table', () => {
   it('shows a not-found page for a bad id', async () => {
     mockApi(asUser(demoUser(['biologist'])));
-    renderRoutes([{ path: '/studies/:studyId/cells', Component: CellTable }], '/studies/abc/cells');
+    renderRoutes([{ path: '/studies/:studyId/cell-table', Component: CellTable }], '/studies/abc/cell-table');
     expect(await screen.findByRole('heading', { name: 'Nothing here' })).toBeTruthy();
   });
 
@@ -158,7 +158,7 @@ describe('Cell table', () => {
       on('GET', /^\/studies\/3\/cell-table\?/, () => ({ body: { rows, total: 2, page: 0, pageSize: 50, source: { runId: 1, recipeId: 2, recipeName: 'R', recipeVersion: 1 }, canExclude: true } })),
       on('GET', '/studies/3/measurement-sources', () => ({ body: { recipes: [], defaultRecipeId: null } })),
     );
-    renderRoutes([{ path: '/studies/:studyId/cells', Component: CellTable }], '/studies/3/cells');
+    renderRoutes([{ path: '/studies/:studyId/cell-table', Component: CellTable }], '/studies/3/cell-table');
     const exclude = await screen.findByRole('button', { name: 'Exclude… Cell 2 (F1)' });
     expect(exclude.className).not.toMatch(/text-danger|bg-danger/);
     expect(exclude.tagName).toBe('BUTTON'); // reachable with Tab

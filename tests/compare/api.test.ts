@@ -1,9 +1,9 @@
-/** API of the Cell table, exclusions, comparisons and CSV exports (server/routes/measurements.ts). */
+/** API of the Cell table, exclusions, comparisons and CSV exports (server/routes/cell-table.ts, server/routes/compare.ts). */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';
 import { Comparison } from '../../shared/schemas/compare.js';
-import { GridResponse } from '../../shared/schemas/measurements.js';
+import { GridResponse } from '../../shared/schemas/cell-table.js';
 
 let t: TestApp;
 let s: Seeded;

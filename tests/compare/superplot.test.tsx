@@ -10,7 +10,7 @@ import { computeComparison } from '../../server/compare/compute.js';
 import { SuperPlot } from '../../src/features/compare/components/SuperPlot';
 import { StatsTable } from '../../src/features/compare/components/StatsTable';
 import { Histograms } from '../../src/features/compare/components/Histograms';
-import { COVERSLIP_COLORS } from '../../src/features/compare/components/palette';
+import { COVERSLIP_COLORS } from '../../src/features/compare/lib/palette';
 import type { Comparison } from '../../shared/schemas/compare.js';
 
 let t: TestApp;

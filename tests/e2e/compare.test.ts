@@ -63,7 +63,7 @@ it('shows the demo effect (treated > untreated) on the Compare page, and exclusi
   await shot(page, 'compare-02-manders');
 
   // the Cell table: exclude the first listed cell with a reason, see it marked, undo
-  await page.goto(`${srv.url}/studies/${study.id}/cells`);
+  await page.goto(`${srv.url}/studies/${study.id}/cell-table`);
   const table = page.getByTestId('cell-table');
   await table.waitFor();
   const firstRow = table.locator('tbody tr').first();

@@ -201,7 +201,7 @@ describe('biologist', () => {
   });
 
   it('excludes a cell with a reason in the Cell table', async () => {
-    await page.goto(`${srv.url}/studies/${J.studyId}/cells?recipeId=${J.recipeId}`);
+    await page.goto(`${srv.url}/studies/${J.studyId}/cell-table?recipeId=${J.recipeId}`);
     const table = page.getByTestId('cell-table');
     await table.waitFor();
     const row = table.locator('tbody tr').filter({ has: page.getByRole('button', { name: 'Exclude…' }) }).first();

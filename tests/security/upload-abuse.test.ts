@@ -63,7 +63,7 @@ describe('upload abuse is refused and nothing is stored', () => {
   }
 
   // A valid TIFF followed by an HTML page and a ZIP archive is refused: nothing may follow the last byte its
-  // directories refer to (server/images/tiffheader.ts checkTrailingData).
+  // directories refer to (server/images/tiff-header.ts checkTrailingData).
   it('polyglot tiff-html-zip.tif (a valid TIFF with HTML and a ZIP appended)', async () => {
     const before = await state();
     const res = await upload(polyglots().filter((p) => p.name === 'tiff-html-zip.tif'));

@@ -1,7 +1,7 @@
 /** Viewer and tool geometry (pure): drags to shapes, zoom about a point, fit, preview level, scale bar. */
 import { describe, expect, it } from 'vitest';
-import { boxFromDrag, ovalFromDrag, polygonFromClicks, freehandFromStroke, fitView, zoomAt, toImage, previewMax, scaleBar, boundsOf, pathOf } from '../../src/features/workspace/draw';
-import { axisTop } from '../../src/features/workspace/scatter-core';
+import { boxFromDrag, ovalFromDrag, polygonFromClicks, freehandFromStroke, fitView, zoomAt, toImage, previewMax, scaleBar, boundsOf, pathOf } from '../../src/features/workspace/lib/draw';
+import { axisTop } from '../../src/features/workspace/lib/scatterCore';
 
 describe('tool shapes', () => {
   it('box and oval from a drag in any direction; a click without a drag makes nothing', () => {

@@ -10,7 +10,7 @@ import {
   nearestEdge,
   type OutlineState,
   type OutlineAction,
-} from '../../src/features/workspace/outline-state';
+} from '../../src/features/workspace/lib/outlineState';
 import type { Cell } from '../../shared/schemas/cells';
 
 const tri = { kind: 'polygon' as const, points: [[0, 0], [10, 0], [0, 10]] as [number, number][] };

@@ -7,9 +7,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { insertField } from './helpers.js';
-import { boxFromDrag, ovalFromDrag, freehandFromStroke, polygonFromClicks } from '../../src/features/workspace/draw';
-import { initialOutlineState, outlineReducer } from '../../src/features/workspace/outline-state';
-import { prepareRegion, scatter, livePreview } from '../../src/features/workspace/scatter-core';
+import { boxFromDrag, ovalFromDrag, freehandFromStroke, polygonFromClicks } from '../../src/features/workspace/lib/draw';
+import { initialOutlineState, outlineReducer } from '../../src/features/workspace/lib/outlineState';
+import { prepareRegion, scatter, livePreview } from '../../src/features/workspace/lib/scatterCore';
 import { measureRegion, rasterize } from '../../shared/analysis/index';
 import { cellIndices, type CellGeometry } from '../../shared/schemas/cells';
 

@@ -4,7 +4,7 @@ import { ApiError } from '@/lib/api';
 import { useInvitation } from '@/features/auth/api/useInvitation';
 import { AuthFrame } from '@/features/auth/components/AuthFrame';
 import { AcceptInviteForm } from '@/features/auth/components/AcceptInviteForm';
-import { RoleBadges } from '@/features/auth/components/roles';
+import { RoleBadges } from '@/features/auth/components/RoleBadges';
 import { Loading } from '@/components/Spinner';
 import { ErrorNotice } from '@/components/Caution';
 

@@ -2,7 +2,7 @@
 import { useParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, ButtonLink } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
-import { CellTableView } from '@/features/celltable/components/CellTableView';
+import { CellTableView } from '@/features/cell-table/components/CellTableView';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 

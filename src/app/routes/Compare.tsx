@@ -3,7 +3,7 @@ import { useEffect, useId, useState } from 'react';
 import { useParams, useSearchParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass } from '@/components';
 import { useStudy } from '@/features/studies/api/useStudy';
-import { SourceSelect } from '@/features/celltable/components/SourceSelect';
+import { SourceSelect } from '@/features/cell-table/components/SourceSelect';
 import { useComparison } from '@/features/compare/api/useComparison';
 import { ComparePanel } from '@/features/compare/components/ComparePanel';
 import { COMPARE_COEFFICIENTS, CompareQuery } from '@shared/schemas/compare';
@@ -40,7 +40,7 @@ export function Component() {
           { to: `/studies/${studyId}`, label: studyName },
         ]}
         description="Every cell is shown, but coverslips are the replicates: tests and intervals are computed on coverslip means."
-        actions={<ButtonLink to={`/studies/${studyId}/cells`}>Cell table</ButtonLink>}
+        actions={<ButtonLink to={`/studies/${studyId}/cell-table`}>Cell table</ButtonLink>}
       />
       <div className="mb-5 flex flex-wrap items-end gap-4">
         <label className="flex flex-col gap-1 text-sm font-medium">

@@ -1,7 +1,7 @@
 /** Route module: Home: what needs the user's attention, by role. */
 import { useMe } from '@/features/auth/api/useMe';
 import { useStudies } from '@/features/studies/api/useStudies';
-import { homeSections } from '@/features/home/components/sections';
+import { homeSections } from '@/features/home/lib/sections';
 import { ManagerPanel } from '@/features/home/components/ManagerPanel';
 import { MicroscopistPanel } from '@/features/home/components/MicroscopistPanel';
 import { BiologistPanel } from '@/features/home/components/BiologistPanel';

@@ -5,8 +5,8 @@ import { Button, Card, ErrorNotice, Loading } from '@/components';
 import { useReport } from '@/features/reports/api/useReport';
 import { reportCsvUrl } from '@/features/reports/api/csvUrl';
 import { ReportView } from '@/features/reports/components/ReportView';
-import { ShareDialog } from '@/features/share/components/ShareDialog';
-import { ShareLinksTable } from '@/features/share/components/ShareLinksTable';
+import { ShareDialog } from '@/features/shares/components/ShareDialog';
+import { ShareLinksTable } from '@/features/shares/components/ShareLinksTable';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 

@@ -3,7 +3,7 @@ import { useEffect } from 'react';
 import { useParams } from 'react-router';
 import { Button, Loading } from '@/components';
 import { ApiError } from '@/lib/api';
-import { useSharedReport } from '@/features/share/api/useSharedReport';
+import { useSharedReport } from '@/features/shares/api/useSharedReport';
 import { sharedCsvUrl } from '@/features/reports/api/csvUrl';
 import { ReportView } from '@/features/reports/components/ReportView';
 import { formatDateTime } from '@shared/format/datetime';

@@ -3,7 +3,7 @@ import { Navigate, useNavigate, useSearchParams } from 'react-router';
 import { useMe } from '@/features/auth/api/useMe';
 import { AuthFrame } from '@/features/auth/components/AuthFrame';
 import { SignInForm } from '@/features/auth/components/SignInForm';
-import { safeNext } from '@/features/auth/components/safeNext';
+import { safeNext } from '@/features/auth/lib/safeNext';
 import { Loading } from '@/components/Spinner';
 
 export function Component() {

@@ -4,7 +4,7 @@ import { AcceptInvitationRequest } from '@shared/schemas/auth';
 import { Button } from '@/components/Button';
 import { TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useAcceptInvitation } from '../api/useAcceptInvitation';
 
 export function AcceptInviteForm({ token, email, onAccepted }: { token: string; email: string; onAccepted: () => void }) {

@@ -4,7 +4,7 @@ import { ChangePasswordRequest } from '@shared/schemas/auth';
 import { Button } from '@/components/Button';
 import { TextField } from '@/components/TextField';
 import { Caution, ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useChangePassword } from '../api/useChangePassword';
 
 export function ChangePasswordForm({ email }: { email: string }) {

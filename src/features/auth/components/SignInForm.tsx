@@ -4,7 +4,7 @@ import { LoginRequest } from '@shared/schemas/auth';
 import { Button } from '@/components/Button';
 import { TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useSignIn } from '../api/useSignIn';
 
 export function SignInForm({ onSignedIn }: { onSignedIn: () => void }) {

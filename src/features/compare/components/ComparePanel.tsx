@@ -6,7 +6,7 @@ import { SuperPlot, SuperPlotLegend } from './SuperPlot';
 import { StatsTable } from './StatsTable';
 import { Histograms } from './Histograms';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
-import { downloadPng, downloadSvg } from './exportImage';
+import { downloadPng, downloadSvg } from '../lib/exportImage';
 
 export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; fileBase: string; csvQuery: string }) {
   const svg = useRef<SVGSVGElement>(null);

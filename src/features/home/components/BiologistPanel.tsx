@@ -34,7 +34,7 @@ export function BiologistPanel({ studies, meId }: { studies: StudySummary[]; meI
                 <ButtonLink size="sm" to={`/studies/${s.id}/reports`}>
                   Reports
                 </ButtonLink>
-                <ButtonLink size="sm" to={`/studies/${s.id}/cells`}>
+                <ButtonLink size="sm" to={`/studies/${s.id}/cell-table`}>
                   Cell table
                 </ButtonLink>
               </div>

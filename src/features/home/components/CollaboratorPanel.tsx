@@ -3,7 +3,7 @@ import { Link } from 'react-router';
 import type { StudySummary } from '@shared/schemas/studies';
 import { Card } from '@/components/Card';
 import { EmptyState } from '@/components/EmptyState';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 
 export function CollaboratorPanel({ studies }: { studies: StudySummary[] }) {
   return (

@@ -4,7 +4,7 @@ import { useReviewQueueCount } from '../api/useReviewQueueCount';
 import { useOutbox } from '@/features/outbox/api/useOutbox';
 import { useUsers } from '@/features/people/api/useUsers';
 import { Card } from '@/components/Card';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 import { Tile } from './Tile';
 import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
 import { formatDateTime } from '@shared/format/datetime';

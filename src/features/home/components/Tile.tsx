@@ -1,6 +1,6 @@
 /** A count with its meaning and where to act on it. */
 import { Link } from 'react-router';
-import { cx, focusRing } from '@/components/cx';
+import { cx, focusRing } from '@/lib/cx';
 import { Spinner } from '@/components/Spinner';
 
 export function Tile({ label, value, to, note, tone = 'neutral', pending }: { label: string; value: number | null; to: string; note?: string; tone?: 'neutral' | 'attention'; pending?: boolean }) {

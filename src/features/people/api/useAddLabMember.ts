@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { Lab } from '@shared/schemas/users';
+import { Lab } from '@shared/schemas/people';
 import { labsQueryKey } from './useLabs';
 import { usersQueryKey } from './useUsers';
 

@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { InviteUserResponse, type InviteUserRequest } from '@shared/schemas/users';
+import { InviteUserResponse, type InviteUserRequest } from '@shared/schemas/people';
 import { usersQueryKey } from './useUsers';
 import { labsQueryKey } from './useLabs';
 import { outboxQueryKey } from '@/features/outbox/api/useOutbox';

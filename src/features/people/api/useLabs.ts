@@ -1,6 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { LabListResponse } from '@shared/schemas/users';
+import { LabListResponse } from '@shared/schemas/people';
 
 export const labsQueryKey = ['labs'] as const;
 

@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { InviteUserResponse } from '@shared/schemas/users';
+import { InviteUserResponse } from '@shared/schemas/people';
 import { usersQueryKey } from './useUsers';
 import { outboxQueryKey } from '@/features/outbox/api/useOutbox';
 

@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { Lab, type UpdateLabRequest } from '@shared/schemas/users';
+import { Lab, type UpdateLabRequest } from '@shared/schemas/people';
 import { labsQueryKey } from './useLabs';
 
 /** PATCH /api/labs/:id (rename). */

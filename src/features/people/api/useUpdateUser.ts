@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { UserRow, type UpdateUserRequest } from '@shared/schemas/users';
+import { UserRow, type UpdateUserRequest } from '@shared/schemas/people';
 import { usersQueryKey } from './useUsers';
 import { labsQueryKey } from './useLabs';
 

@@ -1,6 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { UserListResponse } from '@shared/schemas/users';
+import { UserListResponse } from '@shared/schemas/people';
 
 export const usersQueryKey = ['users'] as const;
 

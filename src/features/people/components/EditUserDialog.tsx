@@ -1,12 +1,12 @@
 /** Change a person's name and roles (UpdateUserRequest). */
 import { useEffect, useState } from 'react';
 import type { Role } from '@shared/schemas/auth';
-import { UpdateUserRequest, type UserRow } from '@shared/schemas/users';
+import { UpdateUserRequest, type UserRow } from '@shared/schemas/people';
 import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useUpdateUser } from '../api/useUpdateUser';
 import { RoleCheckboxes } from './RoleCheckboxes';
 

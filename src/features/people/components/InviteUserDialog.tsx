@@ -1,13 +1,13 @@
 /** Invite a person by e-mail (InviteUserRequest); the invitation link arrives in their mailbox (and the Outbox). */
 import { useEffect, useState } from 'react';
 import type { Role } from '@shared/schemas/auth';
-import { InviteUserRequest, type Lab } from '@shared/schemas/users';
+import { InviteUserRequest, type Lab } from '@shared/schemas/people';
 import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { focusRing } from '@/components/cx';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { focusRing } from '@/lib/cx';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useInviteUser } from '../api/useInviteUser';
 import { RoleCheckboxes } from './RoleCheckboxes';
 

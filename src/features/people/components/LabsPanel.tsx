@@ -1,13 +1,13 @@
 /** Labs and who belongs to each: create, rename, delete (only when no study belongs to it), add and remove members. */
 import { useState } from 'react';
-import { CreateLabRequest, UpdateLabRequest, type Lab, type UserRow } from '@shared/schemas/users';
+import { CreateLabRequest, UpdateLabRequest, type Lab, type UserRow } from '@shared/schemas/people';
 import { Button } from '@/components/Button';
 import { Card } from '@/components/Card';
 import { ConfirmDialog } from '@/components/Dialog';
 import { EmptyState } from '@/components/EmptyState';
 import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
-import { RoleBadges } from '@/features/auth/components/roles';
+import { RoleBadges } from '@/features/auth/components/RoleBadges';
 import { NameDialog } from '@/features/studies/components/NameDialog';
 import { useCreateLab } from '../api/useCreateLab';
 import { useUpdateLab } from '../api/useUpdateLab';

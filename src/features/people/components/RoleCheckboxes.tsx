@@ -1,8 +1,8 @@
 /** A fieldset of role checkboxes (a person may hold several roles). */
 import { useId } from 'react';
 import { RoleSchema, type Role } from '@shared/schemas/auth';
-import { ROLE_DUTIES, ROLE_LABELS } from '@/features/auth/components/roles';
-import { focusRing } from '@/components/cx';
+import { ROLE_DUTIES, ROLE_LABELS } from '@/features/auth/components/RoleBadges';
+import { focusRing } from '@/lib/cx';
 
 export function RoleCheckboxes({ value, onChange, error }: { value: Role[]; onChange: (roles: Role[]) => void; error?: string }) {
   const id = useId();

@@ -1,11 +1,11 @@
 /** Everyone with an account: roles, status, labs; edit, disable/enable, re-send an invitation. */
 import { useState } from 'react';
-import type { Lab, UserRow } from '@shared/schemas/users';
+import type { Lab, UserRow } from '@shared/schemas/people';
 import { Badge } from '@/components/Badge';
 import { Button } from '@/components/Button';
 import { ConfirmDialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
-import { RoleBadges } from '@/features/auth/components/roles';
+import { RoleBadges } from '@/features/auth/components/RoleBadges';
 import { useUpdateUser } from '../api/useUpdateUser';
 import { useResendInvite } from '../api/useResendInvite';
 import { EditUserDialog } from './EditUserDialog';

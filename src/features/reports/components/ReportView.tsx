@@ -13,7 +13,7 @@ import { formatMagnitude, formatPValue } from '@shared/format/number';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
 import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
-import './report-print.css';
+import './ReportView.css';
 import { formatDateTime } from '@shared/format/datetime';
 import { plural, noun } from '@shared/format/plural';
 

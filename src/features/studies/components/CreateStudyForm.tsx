@@ -1,11 +1,11 @@
 /** A new study: name, optional description, and the lab when the biologist belongs to several. */
 import { useState } from 'react';
 import { CreateStudyRequest, type StudyDetail } from '@shared/schemas/studies';
-import type { Lab } from '@shared/schemas/users';
+import type { Lab } from '@shared/schemas/people';
 import { Button } from '@/components/Button';
 import { FieldShell, TextArea, TextField, inputClass } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useCreateStudy } from '../api/useCreateStudy';
 
 export function CreateStudyForm({ labs, onCreated, onCancel }: { labs: Lab[]; onCreated: (s: StudyDetail) => void; onCancel?: () => void }) {

@@ -5,7 +5,7 @@ import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useDeleteStudy } from '../api/useDeleteStudy';
 
 export function DeleteStudyDialog({ open, onClose, studyId, studyName, onDeleted }: { open: boolean; onClose: () => void; studyId: number; studyName: string; onDeleted: () => void }) {

@@ -5,7 +5,7 @@ import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { TextArea, TextField } from '@/components/TextField';
 import { ErrorNotice } from '@/components/Caution';
-import { serverErrors, validate, type FieldErrors } from '@/components/form';
+import { serverErrors, validate, type FieldErrors } from '@/lib/form';
 import { useUpdateStudy } from '../api/useUpdateStudy';
 
 export function EditStudyDialog({ open, onClose, study }: { open: boolean; onClose: () => void; study: StudyDetail }) {

@@ -5,7 +5,7 @@ import { buttonClass } from '@/components/Button';
 export function StudyLinks({ studyId }: { studyId: number }) {
   const links = [
     { to: `/runs?studyId=${studyId}`, label: 'Runs' },
-    { to: `/studies/${studyId}/cells`, label: 'Cell table' },
+    { to: `/studies/${studyId}/cell-table`, label: 'Cell table' },
     { to: `/studies/${studyId}/compare`, label: 'Compare' },
     { to: `/studies/${studyId}/reports`, label: 'Reports' },
   ];

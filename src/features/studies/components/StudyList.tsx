@@ -2,7 +2,7 @@
 import { Link } from 'react-router';
 import type { StudySummary } from '@shared/schemas/studies';
 import { Badge } from '@/components/Badge';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 
 export function StudyList({ studies, caption = 'Studies' }: { studies: StudySummary[]; caption?: string }) {
   return (

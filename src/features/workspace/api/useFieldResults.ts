@@ -1,6 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { GridResponse } from '@shared/schemas/measurements';
+import { GridResponse } from '@shared/schemas/cell-table';
 
 export const fieldResultsQueryKey = (studyId: number, fieldId: number) => ['studies', studyId, 'cell-table', { fieldId }] as const;
 

@@ -5,7 +5,7 @@
 import { useEffect, useRef, useState } from 'react';
 import { Badge, cx } from '@/components';
 import type { Cell } from '@shared/schemas/cells';
-import type { Outline, OutlineAction } from '../outline-state';
+import type { Outline, OutlineAction } from '../lib/outlineState';
 
 /** Cells smaller than this are flagged: too few pixels for stable coefficients (common practice, decided here). */
 export const SMALL_CELL_PIXELS = 50;

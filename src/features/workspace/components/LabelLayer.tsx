@@ -2,7 +2,7 @@
 import { useEffect, useRef } from 'react';
 import type { FieldDetail } from '@shared/schemas/fields';
 import { decodeRuns } from '@shared/analysis/rle';
-import type { Outline } from '../outline-state';
+import type { Outline } from '../lib/outlineState';
 
 export function LabelLayer({ field, outlines, selected }: { field: FieldDetail; outlines: Outline[]; selected: string | null }) {
   const ref = useRef<HTMLCanvasElement>(null);

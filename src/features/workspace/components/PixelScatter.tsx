@@ -5,7 +5,7 @@
  * strictly greater than the threshold).
  */
 import { useEffect, useRef, useState } from 'react';
-import type { ScatterView } from '../useScatter';
+import type { ScatterView } from '../lib/useScatter';
 import { NumberText, readNumberText } from '@shared/schemas/common';
 import { plural } from '@shared/format/plural';
 

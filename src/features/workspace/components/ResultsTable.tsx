@@ -4,7 +4,7 @@
  * cell's row is highlighted. Before any run, it says so and points to the live preview.
  */
 import { Badge, cx } from '@/components';
-import type { GridResponse } from '@shared/schemas/measurements';
+import type { GridResponse } from '@shared/schemas/cell-table';
 import type { Cell } from '@shared/schemas/cells';
 import { SMALL_CELL_PIXELS } from './CellsPanel';
 import { fmtCoef } from './LivePreview';

@@ -7,8 +7,8 @@ import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, typ
 import type { FieldDetail } from '@shared/schemas/fields';
 import type { CellRole } from '@shared/schemas/cells';
 import { cx } from '@/components';
-import { boxFromDrag, fitView, freehandFromStroke, ovalFromDrag, pathOf, polygonFromClicks, previewMax, scaleBar, toImage, zoomAt, type View } from '../draw';
-import { handlesOf, nearestEdge, type Outline, type OutlineAction, type Point } from '../outline-state';
+import { boxFromDrag, fitView, freehandFromStroke, ovalFromDrag, pathOf, polygonFromClicks, previewMax, scaleBar, toImage, zoomAt, type View } from '../lib/draw';
+import { handlesOf, nearestEdge, type Outline, type OutlineAction, type Point } from '../lib/outlineState';
 import { LabelLayer } from './LabelLayer';
 import { plural } from '@shared/format/plural';
 

@@ -1,6 +1,6 @@
 import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { GridResponse } from '@shared/schemas/measurements';
+import { GridResponse } from '@shared/schemas/cell-table';
 
 export const cellTableQueryKey = (studyId: number) => ['studies', studyId, 'cell-table'] as const;
 

@@ -1,10 +1,13 @@
-/** Accounts, invitations and labs (facility managers). Schemas and route list: shared/schemas/users.ts. */
+/**
+ * The people of the facility (screen "People & labs"): accounts, invitations and labs, for facility managers.
+ * API paths /api/users and /api/labs. Schemas and route list: shared/schemas/people.ts.
+ */
 import { Router, type Request } from 'express';
 import { and, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, labMembers, labs, studies, users } from '../db/schema.js';
-import { CreateLabRequest, InviteUserRequest, InviteUserResponse, Lab, LabListResponse, UpdateLabRequest, UpdateUserRequest, UserListResponse, UserRow } from '../../shared/schemas/users.js';
-import { idParam } from './_params.js';
+import { CreateLabRequest, InviteUserRequest, InviteUserResponse, Lab, LabListResponse, UpdateLabRequest, UpdateUserRequest, UserListResponse, UserRow } from '../../shared/schemas/people.js';
+import { idParam } from '../http/params.js';
 import { badRequest, conflict, notFound, parse } from '../http/errors.js';
 import { requireUser } from '../auth/session.js';
 import { can, requireCan } from '../auth/policy.js';
@@ -13,7 +16,7 @@ import { plural } from '../../shared/format/plural.js';
 
 type UserRecord = typeof users.$inferSelect;
 
-export default function usersRoutes(ctx: AppContext) {
+export default function peopleRoutes(ctx: AppContext) {
   const r = Router();
   const db = ctx.db;
 

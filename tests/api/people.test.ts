@@ -6,7 +6,7 @@ import { simpleParser } from 'mailparser';
 import { eq } from 'drizzle-orm';
 import { makeTestApp, TEST_PASSWORD, type TestApp } from '../utils/app.js';
 import { auditEvents, outgoingMail } from '../../server/db/schema.js';
-import { LabListResponse, UserListResponse, UserRow } from '../../shared/schemas/users.js';
+import { LabListResponse, UserListResponse, UserRow } from '../../shared/schemas/people.js';
 
 let t: TestApp;
 let mgr: Awaited<ReturnType<TestApp['login']>>;

@@ -5,11 +5,11 @@
  */
 import { useEffect, useRef, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
-import { planSave, type OutlineAction, type OutlineState, type SaveOp } from './outline-state';
-import { createCell } from './api/useCreateCell';
-import { updateCell } from './api/useUpdateCell';
-import { deleteCell } from './api/useDeleteCell';
-import { cellsQueryKey } from './api/useCells';
+import { planSave, type OutlineAction, type OutlineState, type SaveOp } from './outlineState';
+import { createCell } from '../api/useCreateCell';
+import { updateCell } from '../api/useUpdateCell';
+import { deleteCell } from '../api/useDeleteCell';
+import { cellsQueryKey } from '../api/useCells';
 
 export type SaveStatus = { kind: 'idle' | 'saving' | 'saved' } | { kind: 'error'; message: string };
 

@@ -1,5 +1,6 @@
 /**
- * Users, invitations and labs (facility managers). Server: server/routes/users.ts.
+ * The people of the facility (screen "People & labs"): users, invitations and labs, for facility managers.
+ * API paths /api/users and /api/labs. Server: server/routes/people.ts; client: src/features/people.
  *
  *   GET    /users                     → UserListResponse
  *   POST   /users                     InviteUserRequest → InviteUserResponse (201; mails the invitation link)

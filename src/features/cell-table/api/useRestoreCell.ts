@@ -1,6 +1,6 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { ExclusionState } from '@shared/schemas/measurements';
+import { ExclusionState } from '@shared/schemas/cell-table';
 import { cellTableQueryKey } from './useCellTable';
 import { comparisonQueryKey } from '@/features/compare/api/useComparison';
 

@@ -1,6 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { ExclusionHistory } from '@shared/schemas/measurements';
+import { ExclusionHistory } from '@shared/schemas/cell-table';
 
 export const exclusionHistoryQueryKey = (cellId: number) => ['cells', cellId, 'exclusion-history'] as const;
 

@@ -1,5 +1,5 @@
 /**
- * The Cell table, exclusions and comparisons of a study (issue 7). Shapes: shared/schemas/measurements.ts
+ * The Cell table, exclusions and comparisons of a study (issue 7). Shapes: shared/schemas/cell-table.ts
  * and shared/schemas/compare.ts.
  *
  *   GET    /api/studies/:studyId/measurement-sources         recipes and runs that produced measurements
@@ -8,24 +8,19 @@
  *   POST   /api/cells/:cellId/exclusion   { reason }         exclude a cell (biologist: 'exclude')
  *   DELETE /api/cells/:cellId/exclusion   { reason? }        undo the exclusion
  *   GET    /api/cells/:cellId/exclusion-history              audited exclusion events of the cell
- *   GET    /api/studies/:studyId/compare                     Comparison (shared/schemas/compare.ts)
- *   GET    /api/studies/:studyId/compare/coverslips.csv      per-coverslip table of a comparison
- *   GET    /api/studies/:studyId/compare/cells.csv           per-cell values of a comparison
  */
 import { Router } from 'express';
 import type { AppContext } from '../context.js';
 import { requireUser } from '../auth/session.js';
-import { notFoundAsked, requireStudy, studyPermissions, type Study } from '../auth/policy.js';
+import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
 import { conflict, parse } from '../http/errors.js';
-import { idParam } from './_params.js';
-import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/measurements.js';
-import { CompareQuery } from '../../shared/schemas/compare.js';
+import { idParam } from '../http/params.js';
+import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
 import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
-import { computeComparison } from '../compare/compute.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
 
-export default function measurementsRoutes(ctx: AppContext) {
+export default function cellTableRoutes(ctx: AppContext) {
   const r = Router();
   const sqlite = ctx.db.$client;
 
@@ -210,41 +205,6 @@ export default function measurementsRoutes(ctx: AppContext) {
         return { id: e.id, at: e.at, action: e.action, actor: e.actor, reason: d.reason ?? null };
       }),
     });
-  });
-
-  // ---- comparison ---------------------------------------------------------------------------------------
-  const compareFor = async (req: import('express').Request) => {
-    const studyId = idParam(req, 'studyId');
-    const study: Study = requireStudy(ctx, req.user, studyId, 'read');
-    const q = parse(CompareQuery, req.query);
-    return { study, comparison: await computeComparison(ctx, studyId, q) };
-  };
-
-  r.get('/studies/:studyId/compare', requireUser, async (req, res) => {
-    res.json((await compareFor(req)).comparison);
-  });
-
-  r.get('/studies/:studyId/compare/coverslips.csv', requireUser, async (req, res) => {
-    const { study, comparison: c } = await compareFor(req);
-    const condName = new Map(c.conditions.map((x) => [x.id, x.name]));
-    res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
-    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-coverslips.csv"`);
-    res.end(
-      csvLine(['condition', 'coverslip', 'replicate', 'coverslipId', 'cells', `mean_${c.coefficient}`, `median_${c.coefficient}`, `sd_${c.coefficient}`, 'averaging']) +
-        c.coverslips.map((s) => csvLine([condName.get(s.conditionId), s.name, s.replicate, s.id, s.nCells, s.mean, s.median, s.sd, c.averaging])).join(''),
-    );
-  });
-
-  r.get('/studies/:studyId/compare/cells.csv', requireUser, async (req, res) => {
-    const { study, comparison: c } = await compareFor(req);
-    const condName = new Map(c.conditions.map((x) => [x.id, x.name]));
-    const slip = new Map(c.coverslips.map((x) => [x.id, x]));
-    res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
-    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-cells.csv"`);
-    res.end(
-      csvLine(['condition', 'coverslip', 'replicate', 'fieldId', 'cellId', c.coefficient]) +
-        c.points.map((p) => csvLine([condName.get(p.conditionId), slip.get(p.coverslipId)?.name, slip.get(p.coverslipId)?.replicate, p.fieldId, p.cellId, p.value])).join(''),
-    );
   });
 
   return r;

@@ -1,6 +1,6 @@
 import { useQuery } from '@tanstack/react-query';
 import { api } from '@/lib/api';
-import { MeasurementSources } from '@shared/schemas/measurements';
+import { MeasurementSources } from '@shared/schemas/cell-table';
 
 export const measurementSourcesQueryKey = (studyId: number) => ['studies', studyId, 'measurement-sources'] as const;
 

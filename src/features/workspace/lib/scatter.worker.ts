@@ -3,7 +3,7 @@
  * Web Worker of the pixel scatter: keeps the field's pixels, prepares the selected region once, answers
  * threshold drags with a new histogram + quadrant counts, and computes the live coefficient preview.
  */
-import { livePreview, prepareRegion, scatter, type Region, type ScatterInput } from './scatter-core';
+import { livePreview, prepareRegion, scatter, type Region, type ScatterInput } from './scatterCore';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 

@@ -4,7 +4,7 @@
  * (shared/schemas/cells.ts → shared/analysis/rasterize.ts), the same code the server measures with.
  */
 import type { CellGeometry, DrawnGeometry } from '@shared/schemas/cells';
-import { thinStroke, type Point } from './outline-state';
+import { thinStroke, type Point } from './outlineState';
 
 /** Smallest drawn box/oval side in image pixels (a click without a drag makes nothing). */
 export const MIN_DRAG = 1;
