@@ -15,7 +15,7 @@ async function main() {
     throw e;
   }
   const ctx = await createContext(env);
-  await (await import('./recover.js')).recoverAfterCrash(ctx); // leftovers of an unclean stop (issue 9)
+  await (await import('./recover.js')).recoverAfterCrash(ctx); // leftovers of an unclean stop
   if (env.SEED_DEMO === 'auto') {
     const { seedDemoIfNeeded } = await import('./db/seed/index.js');
     await seedDemoIfNeeded(ctx, { startRun: true });

@@ -24,7 +24,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   // app.ts
   'GET /api/health': 'public',
 
-  // auth.ts (H2)
+  // auth.ts
   'POST /api/auth/login': 'public',
   'GET /api/auth/me': 'signed-in',
   'POST /api/auth/logout': 'public',
@@ -44,7 +44,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'PUT /api/labs/:id/members/:userId': { global: 'manage_users' },
   'DELETE /api/labs/:id/members/:userId': { global: 'manage_users' },
 
-  // studies.ts (H2)
+  // studies.ts
   'GET /api/studies': 'signed-in', // filtered to readable studies
   'POST /api/studies': { global: 'create_study' },
   'GET /api/studies/:studyId': { study: 'read' },
@@ -58,7 +58,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'DELETE /api/coverslips/:id': { study: 'edit_structure' },
   'POST /api/studies/:studyId/reorder': { study: 'edit_structure' },
 
-  // fields.ts (H4)
+  // fields.ts
   'POST /api/coverslips/:id/fields': { study: 'edit_images' },
   'GET /api/coverslips/:id/fields': { study: 'read' },
   'GET /api/studies/:studyId/fields': { study: 'read' },
@@ -67,7 +67,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/fields/:id/preview.png': { study: 'read' },
   'GET /api/fields/:id/pixels': { study: 'read' },
 
-  // cells.ts (H5)
+  // cells.ts
   'GET /api/fields/:id/cells': { study: 'read' },
   'POST /api/fields/:id/cells': { study: 'edit_images' },
   'PATCH /api/cells/:id': { study: 'edit_images' },
@@ -75,7 +75,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/fields/:id/cells/import': { study: 'edit_images' },
   'POST /api/fields/:id/cells/auto': { study: 'edit_images' },
 
-  // recipes.ts (H6): recipes are facility-wide, not study-scoped
+  // recipes.ts: recipes are facility-wide, not study-scoped
   'GET /api/recipes': { global: 'read_recipes' },
   'POST /api/recipes': { global: 'propose_recipe' },
   'GET /api/recipes/:id': { global: 'read_recipes' },
@@ -87,7 +87,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/recipes/:id/return': { global: 'review_recipe' },
   'POST /api/recipes/:id/retire': { global: 'review_recipe' },
 
-  // runs.ts (H6)
+  // runs.ts
   'POST /api/runs': { study: 'run' }, // the study of the scope in the body
   'GET /api/runs': 'signed-in', // filtered to readable studies; ?studyId= checks 'read'
   'GET /api/runs/:id': { study: 'read' },
@@ -105,13 +105,13 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/studies/:studyId/compare/coverslips.csv': { study: 'read' },
   'GET /api/studies/:studyId/compare/cells.csv': { study: 'read' },
 
-  // reports.ts (H8)
+  // reports.ts
   'GET /api/studies/:studyId/reports': { study: 'read' },
   'POST /api/studies/:studyId/reports': { study: 'report' },
   'GET /api/reports/:id': { study: 'read' },
   'GET /api/reports/:id/csv/:table': { study: 'read' },
 
-  // shares.ts (H8)
+  // shares.ts
   'GET /api/reports/:id/shares': { study: 'report' },
   'POST /api/reports/:id/shares': { study: 'report' },
   'POST /api/shares/:id/revoke': { study: 'report' },
@@ -119,7 +119,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/shared/:token': 'share-token',
   'GET /api/shared/:token/csv/:table': 'share-token',
 
-  // outbox.ts (H2)
+  // outbox.ts
   'GET /api/outbox': { global: 'read_outbox' },
   'GET /api/outbox/:id': { global: 'read_outbox' },
 };

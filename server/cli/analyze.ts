@@ -2,7 +2,7 @@
  * `npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j)
  *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]`
  *
- * A contract other tools rely on (issue 3): option names, JSON shape and exit codes stay as they are.
+ * A contract other tools rely on: option names, JSON shape and exit codes stay as they are.
  *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels).
  *  - `--mask`: label image (0 = background, each positive value one region, `label` = the value).
  *  - `--rois`: JSON array of { "name": string, "points": [[x, y], ...] } polygons in pixel coordinates
@@ -267,10 +267,10 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   }
   // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
   const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
-  const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
+  const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null: { kind: 'indices', indices: union })) : null;
   const thresholds = computeThresholds(unionPairs ?? prepare({ n: 0, x: new Uint16Array(0), y: new Uint16Array(0), integer: true }), o.threshold);
   const results = regions.map((r) => {
-    const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
+    const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null: { kind: 'indices', indices: r.indices });
     const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
     return { label: r.label, ...rest };
   });

@@ -1,6 +1,6 @@
 /**
- * The Cell table, exclusions and comparisons of a study (issue 7). Shapes: shared/schemas/cell-table.ts
- * and shared/schemas/compare.ts.
+ * The Cell table, exclusions of a study. Shapes: shared/schemas/cell-table.ts
+ * (comparisons: server/routes/compare.ts).
  *
  *   GET    /api/studies/:studyId/measurement-sources         recipes and runs that produced measurements
  *   GET    /api/studies/:studyId/cell-table                  one page of the grid (filters, sort, paging)

@@ -17,7 +17,7 @@ import { auditEvents, cells, conditions, coverslips, fields, measurements } from
 import { notFoundAsked, requireStudy, type Asked, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, parse, unauthorized, HttpError } from '../http/errors.js';
-import { idParam } from './_params.js';
+import { idParam } from '../http/params.js';
 import {
   AutoOutlineRequest,
   CreateCellRequest,

@@ -23,7 +23,7 @@ import { auditEvents, cells, conditions, coverslips, fields, files, measurements
 import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
-import { idParam } from './_params.js';
+import { idParam } from '../http/params.js';
 import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
 import { ImageInputError } from '../images/decode.js';

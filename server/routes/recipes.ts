@@ -11,7 +11,7 @@ import { auditEvents, recipes, runs, users } from '../db/schema.js';
 import { can, hasRole, requireCan } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, conflict, forbidden, notFound, parse } from '../http/errors.js';
-import { idParam } from './_params.js';
+import { idParam } from '../http/params.js';
 import {
   CreateRecipeRequest,
   RecipeListQuery,

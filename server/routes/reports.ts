@@ -8,7 +8,7 @@ import type { AppContext } from '../context.js';
 import { auditEvents, reports } from '../db/schema.js';
 import { parse } from '../http/errors.js';
 import { requireStudy, studyPermissions } from '../auth/policy.js';
-import { idParam } from './_params.js';
+import { idParam } from '../http/params.js';
 import { CreateReportRequest, CsvTable, ReportListResponse } from '../../shared/schemas/reports.js';
 import { buildSnapshot } from '../reports/snapshot.js';
 import { loadReport, sendCsv, toDetail, toSummaries } from '../reports/service.js';

@@ -70,7 +70,7 @@ export function formatSettingValue(v: unknown): string {
 const fmt = (v: unknown) => formatSettingValue(v);
 
 /**
- * One sentence per recipe setting. Settings that parse as H6's RecipeSettings reuse its `describeSetting`
+ * One sentence per recipe setting. Settings that parse as RecipeSettings reuse its `describeSetting`
  * sentences (the same words as the recipe editor) with numbered citations added; anything else falls back
  * to the full `path = value` list alone.
  */

@@ -19,7 +19,7 @@ export function equalEdges(lo: number, hi: number, bins: number): number[] {
     hi += 0.5;
   }
   const w = (hi - lo) / bins;
-  return Array.from({ length: bins + 1 }, (_, i) => (i === bins ? hi : lo + i * w));
+  return Array.from({ length: bins + 1 }, (_, i) => (i === bins ? hi: lo + i * w));
 }
 
 /** Counts of finite values in equal-width bins; values outside the edges are ignored. */
@@ -40,7 +40,7 @@ export function histogram(values: ArrayLike<number>, edges: number[]): Histogram
 }
 
 /**
- * The distances are H1's (shared/analysis/distances.ts), so the product has one definition: chi-squared
+ * The distances are the engine's (shared/analysis/distances.ts), so the product has one definition: chi-squared
  * Σ (p − q)²/(p + q) over normalized counts (range [0, 2]) and the 1-D EMD (L1 between cumulative histograms
  * times the bin width); null when either histogram is empty.
  */

@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
-import { MAX_IDS_PER_FILTER, MAX_RANGE_FILTERS } from '../../shared/schemas/measurements.js';
+import { MAX_IDS_PER_FILTER, MAX_RANGE_FILTERS } from '../../shared/schemas/cell-table.js';
 import { buildLabA, type LabAEntities } from '../security/world.js';
 
 let t: TestApp;

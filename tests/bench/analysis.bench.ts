@@ -1,5 +1,5 @@
 /**
- * Analysis engine benchmark (issue 3). For 512², 1024² and 2048² 16-bit pairs: the time of each
+ * Analysis engine benchmark. For 512², 1024² and 2048² 16-bit pairs: the time of each
  * coefficient, of the whole set (measureRegion), and ratios against baselines measured in the same run:
  *  (a) naive O(n²) versions (tests/analysis/naive.ts) at sizes where they finish (n = 64² and 128²);
  *  (b) npm statistics packages on the same data: simple-statistics (sampleCorrelation, sampleRankCorrelation)
@@ -38,7 +38,7 @@ import { naiveDcor, naiveKendallTauB, naiveSpearman } from '../analysis/naive';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const args = process.argv.slice(2).map(Number).filter((n) => n > 0);
-const sizes = args.length ? args : [512, 1024, 2048];
+const sizes = args.length ? args: [512, 1024, 2048];
 
 /** microscopy-like 16-bit pair: background + shared blobs + independent blobs + noise, some saturation */
 function synthetic(size: number, seed = 1): [Uint16Array, Uint16Array] {

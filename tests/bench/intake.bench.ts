@@ -3,7 +3,7 @@
  * store + DB row, then the first (uncached) composite preview, for a 2048 × 2048 two-channel 16-bit file.
  * Reports wall times and peak RSS against the file size. Run alone: `npx tsx tests/bench/intake.bench.ts`
  * (prints JSON); tests/bench/run.ts may import `run()`.
- * Target (issue 4): under one second; memory a small multiple of the file size.
+ * Target: under one second; memory a small multiple of the file size.
  */
 import fs from 'node:fs';
 import os from 'node:os';

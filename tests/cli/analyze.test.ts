@@ -1,5 +1,5 @@
 /**
- * The `analyze` command contract (issue 3): JSON shape and values, exit codes, and one `error:` line for
+ * The `analyze` command contract: JSON shape and values, exit codes, and one `error:` line for
  * each kind of bad input. Values are checked against the reference fixtures (SciPy, R energy; see
  * tests/fixtures/analysis/generate.py). Most cases call `main()` in-process (fast); a few spawn
  * `npm run -s analyze` to check the real exit code and that no stack trace reaches stderr.

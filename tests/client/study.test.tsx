@@ -9,7 +9,7 @@ import userEvent from '@testing-library/user-event';
 import { Component as Study } from '@/app/routes/Study';
 import { asUser, demoUser, mockApi as baseMockApi, on, renderRoutes, type Handler } from './utils';
 
-/** the fields feature (H4) lists each coverslip's fields: none here */
+/** the fields feature lists each coverslip's fields: none here */
 const mockApi = (...h: Handler[]) => baseMockApi(...h, on('GET', /^\/coverslips\/\d+\/fields$/, () => ({ body: { fields: [] } })));
 import { makeStudy } from './fixtures';
 

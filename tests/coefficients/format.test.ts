@@ -5,7 +5,7 @@
 import { describe, expect, it } from 'vitest';
 import { formatFixed, formatMagnitude, formatNumber, formatP, formatPValue, formatTick, formatIntensity } from '../../shared/format/number.js';
 import { formatCoefficient } from '../../shared/coefficients.js';
-import { formatColumn } from '../../shared/schemas/measurements.js';
+import { formatColumn } from '../../shared/schemas/cell-table.js';
 
 describe('number formatting', () => {
   it('never prints a negative zero', () => {

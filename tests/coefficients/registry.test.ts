@@ -9,7 +9,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { measurements } from '../../server/db/schema.js';
 import { measureRegion, MEASURE_KEYS } from '../../shared/analysis/index.js';
 import { CELL_TABLE_KEYS, COEFFICIENT_CITATIONS, COEFFICIENT_KEYS, COEFFICIENTS, COMPARE_KEYS, FISHER_Z_KEYS, PREVIEW_KEYS, RECIPE_CHOICES, byKey } from '../../shared/coefficients.js';
-import { COLUMN_LABELS, DEFAULT_VISIBLE_COLUMNS, EXPORT_COLUMNS, GridRow, NUMERIC_COLUMNS } from '../../shared/schemas/measurements.js';
+import { COLUMN_LABELS, DEFAULT_VISIBLE_COLUMNS, EXPORT_COLUMNS, GridRow, NUMERIC_COLUMNS } from '../../shared/schemas/cell-table.js';
 import { COMPARE_COEFFICIENTS, CompareQuery } from '../../shared/schemas/compare.js';
 import { REPORT_COEFFICIENTS } from '../../shared/schemas/reports.js';
 import { COEFFICIENTS as RECIPE_COEFFICIENTS } from '../../shared/schemas/recipes.js';

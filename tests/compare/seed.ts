@@ -1,6 +1,6 @@
 /**
  * Test helper: builds conditions, coverslips, fields, cells and measurements directly in the database
- * (runs are H6's; these tests only need measurement rows). Values are deterministic from a seeded generator.
+ * (these tests only need measurement rows, not runs). Values are deterministic from a seeded generator.
  */
 import type { AppContext } from '../../server/context.js';
 import { Xoshiro128 } from '../../shared/analysis/prng.js';

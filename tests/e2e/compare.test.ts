@@ -1,5 +1,5 @@
 /**
- * Browser journey (issue 7): the biologist measures the demo study (one run of the approved demo recipe),
+ * Browser journey: the biologist measures the demo study (one run of the approved demo recipe),
  * opens Compare and sees the known demo effect in the expected direction — "treated" has a larger share of
  * puncta in both channels than "untreated" (server/db/seed), so the mean of coverslip means of Pearson's r
  * and of Manders' M1 is higher in "treated". Then the Cell table: exclude a cell with a reason, see it marked,

@@ -1,5 +1,5 @@
 /**
- * The whole job in a real browser (issue 9): one journey per role on one server with the seeded demo study,
+ * The whole job in a real browser: one journey per role on one server with the seeded demo study,
  * each step driven through the UI and photographed (test-results/journey-<role>-NN-<step>.png).
  *   microscopist  uploads a generated two-channel 16-bit TIFF, outlines a cell, proposes a recipe and starts a
  *                 (provisional) run with it;

@@ -1,5 +1,5 @@
 /**
- * Browser journey (issue 8): a biologist freezes a report of the demo study, e-mails it; the message arrives in
+ * Browser journey: a biologist freezes a report of the demo study, e-mails it; the message arrives in
  * the embedded SMTP sink (read back through the Outbox API); its personal link opens the read-only report in a
  * fresh browser without an account or the app's frame; the print stylesheet hides the controls; after the link is
  * withdrawn it says so. Screenshots: test-results/share-*.png, the printed PDF: test-results/share-report.pdf.

@@ -1,9 +1,9 @@
 /**
- * Faults (issue 9): the server process is killed (SIGKILL) while an upload is streaming in and while an
+ * Faults: the server process is killed (SIGKILL) while an upload is streaming in and while an
  * accepted upload is being decoded and stored; after a restart on the same DATA_DIR nothing half-done remains:
  * no temp file, no store object without its `files` row (orphan), no `files` row without its object, no field
  * pointing at a missing file, and SQLite's integrity check passes. The run-kill case (a run resumes and ends
- * with exactly one measurement per cell, no double count) is H6's tests/runs/restart.test.ts — not repeated here.
+ * with exactly one measurement per cell, no double count) is tests/runs/restart.test.ts — not repeated here.
  * Full disk at start-up: a tiny tmpfs (root only; skipped cleanly otherwise) must give one clear line, exit 1.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

@@ -13,7 +13,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { UploadResponse } from '../../shared/schemas/fields.js';
-import { GridResponse } from '../../shared/schemas/measurements.js';
+import { GridResponse } from '../../shared/schemas/cell-table.js';
 import { MeasurementProvenance } from '../../shared/schemas/runs.js';
 import { measurements } from '../../server/db/schema.js';
 import { eq } from 'drizzle-orm';

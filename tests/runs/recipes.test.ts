@@ -1,4 +1,4 @@
-/** Recipe life cycle and its permission matrix, through the API (issue 6). Rules: the issue text (no outside source). */
+/** Recipe life cycle and its permission matrix, through the API. Rules: the product brief (no outside source). */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { auditEvents } from '../../server/db/schema.js';

@@ -1,6 +1,6 @@
 /**
  * While a run on a 2048 × 2048 field is working in the worker pool, the web server keeps answering:
- * /api/health and a study page within 100 ms (issue 6; the bound is the issue's, no outside source).
+ * /api/health and a study page within 100 ms (the bound is the product's target, no outside source).
  * Measured against an idle baseline of the same requests, because CI machines are shared.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

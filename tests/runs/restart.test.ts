@@ -1,6 +1,6 @@
 /**
  * Durability: kill the server process (SIGKILL) in the middle of a run, start it again on the same DATA_DIR:
- * the run resumes and completes with exactly one measurement per cell (issue 6).
+ * the run resumes and completes with exactly one measurement per cell.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { spawn, type ChildProcess } from 'node:child_process';
@@ -99,7 +99,7 @@ describe('a run survives the server being killed', () => {
       () => {
         const s = snapshot();
         const done = s.fields.filter((f) => f.status === 'done').length;
-        return done >= 2 && done < FIELDS ? s : undefined;
+        return done >= 2 && done < FIELDS ? s: undefined;
       },
       240_000,
     );
@@ -114,7 +114,7 @@ describe('a run survives the server being killed', () => {
     const second = startServer('second');
     const end = await until('the run to finish', () => {
       const s = snapshot();
-      return s.run.status === 'queued' || s.run.status === 'running' ? undefined : s;
+      return s.run.status === 'queued' || s.run.status === 'running' ? undefined: s;
     }, 300_000, 100);
     await stopChild(second);
     expect(end.run.status).toBe('done');

@@ -1,7 +1,7 @@
 /**
  * Runs through the in-process worker pool: numbers equal direct engine calls on the same pixels and outlines,
  * provenance and provisional marking, a failing field does not stop the others, permissions.
- * Reference: shared/analysis measureRegion (H1's engine, itself checked against SciPy / R in tests/analysis).
+ * Reference: shared/analysis measureRegion (the engine, itself checked against SciPy / R in tests/analysis).
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';

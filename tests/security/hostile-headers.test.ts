@@ -9,7 +9,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { Xoshiro128 } from '../../shared/analysis/prng.js';
-import { MAX_PAGES, MAX_PLANES, MAX_SAMPLES_PER_PIXEL } from '../../server/images/tiffheader.js';
+import { MAX_PAGES, MAX_PLANES, MAX_SAMPLES_PER_PIXEL } from '../../server/images/tiff-header.js';
 import { lzwEncode, tiffFromEntries, tiffPages, tiffStripPages, twoChannels } from './tiff.js';
 
 const MAX_DECODED = 32 * 2 ** 20;

@@ -66,7 +66,7 @@ describe('anonymous', () => {
   });
 
   // Ratchet: these routes look the entity up before checking the session, so an anonymous caller learns which
-  // ids exist (404 for unknown, 401 for known). Low severity (ids are sequential anyway), reported to H4/H5/H6/H8.
+  // ids exist (404 for unknown, 401 for known). Low severity (ids are sequential anyway).
   // When a route is fixed, remove it here; a new route must not join the list.
   // none: server/app.ts refuses anonymous requests before routing (was 11 routes that answered 404 for unknown ids)
   const ANON_ID_ORACLE: string[] = [];

@@ -2,7 +2,7 @@
  * Upload abuse through the real multipart route (POST /api/coverslips/:id/fields): hostile TIFF headers (IFD
  * loops, offsets past the end, huge declared size), more files than allowed, an oversize file, polyglots.
  * Each is refused with a 4xx and leaves nothing behind: no files / fields / cells row, no store object, no
- * temp file. (H4's tests/images/{hostile,badfiles}.test.ts test the decoder and the named messages; this file
+ * temp file. (tests/images/{hostile,badfiles}.test.ts test the decoder and the named messages; this file
  * tests the route end to end with hand-built bytes.) Attack classes: OWASP WSTG v4.2 WSTG-BUSL-08/09
  * (unexpected file types, malicious files); TIFF structure per TIFF 6.0 (Adobe 1992).
  */

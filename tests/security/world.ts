@@ -2,7 +2,7 @@
  * Shared set-up of the security tests: the route list of the real Express app (walked from its router
  * stack), and a lab-A world with one of everything (field with stored TIFF, cells, approved recipe, finished
  * run with measurements, report, share link, outbox message) so every route has a real id to aim at.
- * Reuses the report fixtures of issue 8 (tests/reports/fixtures.ts) for fields, cells and the run.
+ * Reuses the report fixtures (tests/reports/fixtures.ts) for fields, cells and the run.
  */
 import { eq } from 'drizzle-orm';
 import type { TestApp } from '../utils/app.js';

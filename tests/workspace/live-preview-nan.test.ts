@@ -8,7 +8,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { decodeChannel } from '../../server/images/decode.js';
-import { livePreview, prepareRegion, scatter } from '../../src/features/workspace/scatter-core';
+import { livePreview, prepareRegion, scatter } from '../../src/features/workspace/lib/scatterCore';
 
 const DIR = path.join(import.meta.dirname, '../fixtures/analysis');
 const ref = JSON.parse(fs.readFileSync(path.join(DIR, 'expected.json'), 'utf8')).nanField;

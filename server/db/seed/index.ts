@@ -213,7 +213,7 @@ export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
   return { studyId: ids.study, fieldsAdded: made };
 }
 
-/** One approved demo recipe (H6's RecipeSettings defaults: Costes thresholds, every coefficient). */
+/** One approved demo recipe (RecipeSettings defaults: Costes thresholds, every coefficient). */
 function seedRecipe(tx: Parameters<Parameters<AppContext['db']['transaction']>[0]>[0], proposerId: number, reviewerId: number) {
   if (tx.select({ id: recipes.id }).from(recipes).where(eq(recipes.name, DEMO_RECIPE)).get()) return;
   const settings = JSON.parse(JSON.stringify(DEFAULT_RECIPE_SETTINGS)) as Record<string, unknown>;

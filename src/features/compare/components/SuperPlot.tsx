@@ -8,7 +8,7 @@
 import { forwardRef, useMemo } from 'react';
 import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3';
 import type { Comparison } from '@shared/schemas/compare';
-import { coverslipColor, coverslipMarker, type Marker } from './palette';
+import { coverslipColor, coverslipMarker, type Marker } from '../lib/palette';
 import { plural } from '@shared/format/plural';
 import { formatMagnitude, formatTick } from '@shared/format/number';
 
@@ -141,7 +141,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
         {/* coverslip means */}
         <g data-layer="coverslip-means">
           {data.coverslips.map((s) =>
-            s.mean === null ? null : (
+            s.mean === null ? null: (
               <path
                 key={s.id}
                 d={symbol(SYMBOLS[coverslipMarker(s.colorIndex)], 150)() ?? ''}

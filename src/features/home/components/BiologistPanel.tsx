@@ -4,7 +4,7 @@ import type { StudySummary } from '@shared/schemas/studies';
 import { ButtonLink } from '@/components/Button';
 import { Card } from '@/components/Card';
 import { EmptyState } from '@/components/EmptyState';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 import { plural } from '@shared/format/plural';
 
 export function BiologistPanel({ studies, meId }: { studies: StudySummary[]; meId: number }) {

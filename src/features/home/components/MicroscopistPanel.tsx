@@ -6,7 +6,7 @@ import { studyQueryOptions } from '@/features/studies/api/useStudy';
 import { useRecentRuns } from '../api/useRecentRuns';
 import { Badge } from '@/components/Badge';
 import { Card } from '@/components/Card';
-import { focusRing } from '@/components/cx';
+import { focusRing } from '@/lib/cx';
 import { plural } from '@shared/format/plural';
 
 const RUN_TONE = { queued: 'neutral', running: 'accent', done: 'accent', failed: 'danger', partial: 'warn' } as const;

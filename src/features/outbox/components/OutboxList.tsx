@@ -1,7 +1,7 @@
 /** Captured messages, newest first; choosing one opens it beside the list. */
 import type { OutboxSummary } from '@shared/schemas/outbox';
 import { Badge } from '@/components/Badge';
-import { cx, focusRing } from '@/components/cx';
+import { cx, focusRing } from '@/lib/cx';
 import { formatDateTime } from '@shared/format/datetime';
 
 export function OutboxList({ messages, selected, onSelect }: { messages: OutboxSummary[]; selected: number | null; onSelect: (id: number) => void }) {

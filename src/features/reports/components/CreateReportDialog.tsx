@@ -5,7 +5,7 @@ import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
 import { labelOf } from '@shared/coefficients';
 import { CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
-import { validate, type FieldErrors } from '@/components/form';
+import { validate, type FieldErrors } from '@/lib/form';
 import { useCreateReport } from '../api/useCreateReport';
 
 const DEFAULT: ReportCoefficient[] = ['pearson', 'spearman', 'mandersM1', 'mandersM2'];
