@@ -267,10 +267,10 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   }
   // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
   const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
-  const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null: { kind: 'indices', indices: union })) : null;
+  const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
   const thresholds = computeThresholds(unionPairs ?? prepare({ n: 0, x: new Uint16Array(0), y: new Uint16Array(0), integer: true }), o.threshold);
   const results = regions.map((r) => {
-    const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null: { kind: 'indices', indices: r.indices });
+    const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
     const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
     return { label: r.label, ...rest };
   });

@@ -37,7 +37,7 @@ export function runSummary(ctx: AppContext, r: RunRow): RunSummary {
   const recipe = db.select().from(recipes).where(eq(recipes.id, r.recipeId)).get()!;
   const study = db.select({ name: studies.name }).from(studies).where(eq(studies.id, r.studyId)).get();
   const failed = db.select({ n: sql<number>`count(*)` }).from(runFields).where(and(eq(runFields.runId, r.id), eq(runFields.status, 'failed'))).get()?.n ?? 0;
-  const by = r.startedBy ? db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, r.startedBy)).get() ?? null: null;
+  const by = r.startedBy ? db.select({ id: users.id, name: users.name }).from(users).where(eq(users.id, r.startedBy)).get() ?? null : null;
   return {
     id: r.id,
     studyId: r.studyId,

@@ -145,7 +145,7 @@ export default function sharesRoutes(ctx: AppContext) {
   r.post('/shares/:id/revoke', (req, res) => {
     const { link, report } = loadLink(req);
     const row = ctx.db.transaction((tx) => {
-      const row = link.revokedAt ? link: tx.update(shareLinks).set({ revokedAt: new Date().toISOString() }).where(eq(shareLinks.id, link.id)).returning().get();
+      const row = link.revokedAt ? link : tx.update(shareLinks).set({ revokedAt: new Date().toISOString() }).where(eq(shareLinks.id, link.id)).returning().get();
       if (!link.revokedAt)
         tx.insert(auditEvents)
           .values({ actorId: req.user!.id, action: 'share.revoke', entity: 'share_link', entityId: link.id, studyId: report.studyId, details: { reportId: report.id, email: link.email } })

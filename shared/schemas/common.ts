@@ -41,8 +41,8 @@ export function NumberText(what: string, opts: NumberTextBounds = {}) {
     };
     if (!/^[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?$/.test(t) || !Number.isFinite(n)) return fail(`must be a number${range ? ` ${range}` : ''}`);
     if (integer && !Number.isSafeInteger(n)) return fail('must be a whole number');
-    const below = min !== undefined && (minExclusive ? n <= min: n < min);
-    const above = max !== undefined && (maxExclusive ? n >= max: n > max);
+    const below = min !== undefined && (minExclusive ? n <= min : n < min);
+    const above = max !== undefined && (maxExclusive ? n >= max : n > max);
     if (below || above) return fail(`must be ${range}`);
     return n;
   });
@@ -57,8 +57,8 @@ export function NumberTextFor(what: string, schema: z.ZodNumber | z.ZodCoercedNu
   // zod's .int() implies the safe-integer range, which NumberText's whole-number rule already checks
   const implied = (v: number | null) => v === null || !Number.isFinite(v) || (schema.isInt && Math.abs(v) === Number.MAX_SAFE_INTEGER);
   const lo = schema.minValue, hi = schema.maxValue;
-  const min = implied(lo) ? undefined: lo!;
-  const max = implied(hi) ? undefined: hi!;
+  const min = implied(lo) ? undefined : lo!;
+  const max = implied(hi) ? undefined : hi!;
   return NumberText(what, {
     min,
     max,

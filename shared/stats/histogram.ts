@@ -19,7 +19,7 @@ export function equalEdges(lo: number, hi: number, bins: number): number[] {
     hi += 0.5;
   }
   const w = (hi - lo) / bins;
-  return Array.from({ length: bins + 1 }, (_, i) => (i === bins ? hi: lo + i * w));
+  return Array.from({ length: bins + 1 }, (_, i) => (i === bins ? hi : lo + i * w));
 }
 
 /** Counts of finite values in equal-width bins; values outside the edges are ignored. */

@@ -38,7 +38,7 @@ import { naiveDcor, naiveKendallTauB, naiveSpearman } from '../analysis/naive';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const args = process.argv.slice(2).map(Number).filter((n) => n > 0);
-const sizes = args.length ? args: [512, 1024, 2048];
+const sizes = args.length ? args : [512, 1024, 2048];
 
 /** microscopy-like 16-bit pair: background + shared blobs + independent blobs + noise, some saturation */
 function synthetic(size: number, seed = 1): [Uint16Array, Uint16Array] {

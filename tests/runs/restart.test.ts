@@ -99,7 +99,7 @@ describe('a run survives the server being killed', () => {
       () => {
         const s = snapshot();
         const done = s.fields.filter((f) => f.status === 'done').length;
-        return done >= 2 && done < FIELDS ? s: undefined;
+        return done >= 2 && done < FIELDS ? s : undefined;
       },
       240_000,
     );
@@ -114,7 +114,7 @@ describe('a run survives the server being killed', () => {
     const second = startServer('second');
     const end = await until('the run to finish', () => {
       const s = snapshot();
-      return s.run.status === 'queued' || s.run.status === 'running' ? undefined: s;
+      return s.run.status === 'queued' || s.run.status === 'running' ? undefined : s;
     }, 300_000, 100);
     await stopChild(second);
     expect(end.run.status).toBe('done');

@@ -17,7 +17,7 @@ export const HistogramChart = forwardRef<SVGSVGElement, { set: HistogramSet; con
   const hi = set.edges[set.edges.length - 1];
   const props = set.byCondition.map((b) => {
     const tot = b.counts.reduce((a, c) => a + c, 0);
-    return { ...b, p: b.counts.map((c) => (tot ? c / tot: 0)) };
+    return { ...b, p: b.counts.map((c) => (tot ? c / tot : 0)) };
   });
   const ymax = Math.max(0.01, ...props.flatMap((b) => b.p));
   const x = scaleLinear().domain([lo, hi]).range([0, iw]);

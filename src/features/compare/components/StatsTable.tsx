@@ -81,7 +81,7 @@ export function StatsTable({ data }: { data: Comparison }) {
               <tr key={t.test} className="border-b border-ink/5">
                 <td className={td}>{t.label}</td>
                 <td className={num}>{f(t.statistic)}</td>
-                <td className={num}>{t.df.length ? t.df.map((d) => (Number.isInteger(d) ? d: d.toFixed(1))).join(', ') : '—'}</td>
+                <td className={num}>{t.df.length ? t.df.map((d) => (Number.isInteger(d) ? d : d.toFixed(1))).join(', ') : '—'}</td>
                 <td className={num}>{formatPValue(t.p)}</td>
                 <td className={`${td} text-xs text-ink-soft`}>{t.note}</td>
               </tr>

@@ -141,7 +141,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
         {/* coverslip means */}
         <g data-layer="coverslip-means">
           {data.coverslips.map((s) =>
-            s.mean === null ? null: (
+            s.mean === null ? null : (
               <path
                 key={s.id}
                 d={symbol(SYMBOLS[coverslipMarker(s.colorIndex)], 150)() ?? ''}

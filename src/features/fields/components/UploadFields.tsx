@@ -33,7 +33,7 @@ function ChannelBox({ value, disabled, onChange }: { value: number; disabled: bo
         value={text}
         disabled={disabled}
         aria-invalid={!!error}
-        aria-describedby={error ? id: undefined}
+        aria-describedby={error ? id : undefined}
         onChange={(e) => {
           setText(e.target.value);
           const r = readNumberText(CHANNEL, e.target.value);
@@ -179,7 +179,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
   return (
     <Dialog
       open
-      onClose={busy ? () => undefined: onClose}
+      onClose={busy ? () => undefined : onClose}
       title="Add fields to this coverslip"
       width="lg"
       description="A field is one two-channel image. TIFF and OME-TIFF files: 8, 16 or 32-bit integer or 32-bit float; uncompressed, LZW, Deflate or PackBits."

@@ -47,12 +47,12 @@ export function CoverslipDialog({
 
   const submit = async (e: React.FormEvent) => {
     e.preventDefault();
-    const rep = replicate.trim() === '' ? null: readNumberText(REPLICATE, replicate);
+    const rep = replicate.trim() === '' ? null : readNumberText(REPLICATE, replicate);
     if (rep?.error) return setErrors({ replicate: rep.error });
     const values = {
-      name: name.trim() === '' && !coverslip ? undefined: name,
+      name: name.trim() === '' && !coverslip ? undefined : name,
       replicate: rep?.value ?? undefined,
-      preparedOn: preparedOn === '' ? null: preparedOn,
+      preparedOn: preparedOn === '' ? null : preparedOn,
       notes,
     };
     const v = coverslip ? validate(UpdateCoverslipRequest, values) : validate(CreateCoverslipRequest, values);
@@ -72,14 +72,14 @@ export function CoverslipDialog({
     <Dialog open={open} onClose={onClose} title={coverslip ? `Edit ${coverslip.name}` : `Add a coverslip to ${conditionName}`}>
       <form onSubmit={submit} noValidate className="flex flex-col gap-4">
         <div className="grid gap-4 sm:grid-cols-[1fr_8rem]">
-          <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} error={errors.name} hint={coverslip ? undefined: 'Leave empty for an automatic name.'} data-autofocus />
+          <TextField label="Name" value={name} onChange={(e) => setName(e.target.value)} error={errors.name} hint={coverslip ? undefined : 'Leave empty for an automatic name.'} data-autofocus />
           <TextField
             label="Replicate"
             inputMode="numeric"
             value={replicate}
             onChange={(e) => setReplicate(e.target.value)}
             error={errors.replicate}
-            hint={coverslip ? undefined: 'Next free if empty.'}
+            hint={coverslip ? undefined : 'Next free if empty.'}
           />
         </div>
         <TextField label="Prepared on" type="date" value={preparedOn} onChange={(e) => setPreparedOn(e.target.value)} error={errors.preparedOn} />
