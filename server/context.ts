@@ -2,45 +2,52 @@
 import path from 'node:path';
 import type { Env } from './env.js';
 import { openDb, type Db } from './db/client.js';
-
-export interface Mailer {
-  send(msg: { to: string; subject: string; text: string; html?: string }): Promise<void>;
-  close(): Promise<void>;
-}
+import type { FileStore, Mailer, RunQueue } from './services.js';
+import { createMailer } from './mail/transport.js';
+import { createFileStore } from './images/store.js';
+import { createRunQueue } from './runs/queue.js';
 
 export interface AppContext {
   env: Env;
   db: Db;
   mail: Mailer;
   /** content-addressed file store (server/images/store.ts) */
-  store: import('./images/store.js').FileStore;
+  store: FileStore;
   /** analysis run queue (server/runs/queue.ts) */
-  runs: import('./runs/queue.js').RunQueue;
+  runs: RunQueue;
   /** bumped after every state-changing API request (read caches key on it with the newest measurement id) */
   dataVersion: number;
   /** things to close on shutdown */
   closers: Array<() => Promise<void> | void>;
 }
 
+/** Opens the database, then each service with what it needs; on a failure closes what was opened and rethrows. */
 export async function createContext(env: Env): Promise<AppContext> {
   const db = openDb(path.join(env.DATA_DIR, 'syntopy.db'));
-  const { createMailer } = await import('./mail/transport.js');
-  const { createFileStore } = await import('./images/store.js');
-  const { createRunQueue } = await import('./runs/queue.js');
-  const ctx = { env, db, closers: [], dataVersion: 0 } as unknown as AppContext;
-  ctx.mail = await createMailer(ctx);
-  ctx.store = await createFileStore(ctx);
-  ctx.runs = await createRunQueue(ctx);
-  ctx.closers.push(() => ctx.runs.close(), () => ctx.mail.close(), () => void db.$client.close());
-  return ctx;
+  const closers: AppContext['closers'] = [() => void db.$client.close()];
+  try {
+    const mail = await createMailer({ db, smtpUrl: env.SMTP_URL, from: env.MAIL_FROM });
+    closers.unshift(() => mail.close());
+    const store = createFileStore(env);
+    const runs = await createRunQueue({ db, settings: env });
+    closers.unshift(() => runs.close());
+    return { env, db, mail, store, runs, dataVersion: 0, closers };
+  } catch (e) {
+    await closeAll(closers);
+    throw e;
+  }
 }
 
-export async function closeContext(ctx: AppContext) {
-  for (const c of ctx.closers.splice(0)) {
+async function closeAll(closers: AppContext['closers']) {
+  for (const c of closers.splice(0)) {
     try {
       await c();
     } catch {
       /* closing best-effort */
     }
   }
+}
+
+export async function closeContext(ctx: AppContext) {
+  await closeAll(ctx.closers);
 }

@@ -3,6 +3,16 @@ import { z } from 'zod';
 import fs from 'node:fs';
 import path from 'node:path';
 import crypto from 'node:crypto';
+import os from 'node:os';
+
+/**
+ * Default analysis worker threads: the machine's available parallelism minus one (one core stays with the
+ * thread that answers requests), at least 1 and at most 4 (more threads mostly add memory: each holds a
+ * decoded field).
+ */
+export function defaultWorkers(parallelism = os.availableParallelism()): number {
+  return Math.max(1, Math.min(4, parallelism - 1));
+}
 
 const EnvSchema = z.object({
   PORT: z.coerce.number().int().min(0).max(65535).default(3000),
@@ -24,7 +34,7 @@ const EnvSchema = z.object({
   /** heap limit (MB) and time limit (ms) of the thread that decodes an uploaded or imported file */
   DECODE_HEAP_MB: z.coerce.number().int().min(16).max(65536).default(1024),
   DECODE_TIMEOUT_MS: z.coerce.number().int().min(1).max(3_600_000).default(120_000),
-  WORKERS: z.coerce.number().int().min(1).max(64).default(Math.max(1, Math.min(4, (globalThis as any).navigator?.hardwareConcurrency ?? 2) - 1)),
+  WORKERS: z.coerce.number().int().min(1).max(64).default(() => defaultWorkers()),
   SEED_DEMO: z.enum(['auto', 'never']).default('auto'),
   TRUST_PROXY: z.enum(['0', '1']).default('0'),
   /** production unless told otherwise; `npm run dev` sets development, the test set-up sets test */

@@ -13,6 +13,7 @@ import fsp from 'node:fs/promises';
 import path from 'node:path';
 import type { AppContext } from './context.js';
 import { files } from './db/schema.js';
+import { LocalFileStore } from './images/store.js';
 
 export interface RecoveryReport {
   tempFiles: number;
@@ -29,7 +30,7 @@ async function walk(dir: string, out: string[] = []): Promise<string[]> {
   return out;
 }
 
-export async function recoverAfterCrash(ctx: AppContext): Promise<RecoveryReport> {
+export async function recoverAfterCrash(ctx: Pick<AppContext, 'env' | 'db' | 'store'>): Promise<RecoveryReport> {
   const report: RecoveryReport = { tempFiles: 0, partFiles: 0, orphanObjects: 0 };
   const tmp = path.join(ctx.env.DATA_DIR, 'tmp');
   for (const p of await walk(tmp)) {
@@ -42,8 +43,8 @@ export async function recoverAfterCrash(ctx: AppContext): Promise<RecoveryReport
       report.partFiles++;
     }
   }
-  const store = ctx.store as unknown as { kind: string; root?: string };
-  if (store.kind === 'local' && store.root && fs.existsSync(store.root)) {
+  const store = ctx.store;
+  if (store instanceof LocalFileStore && fs.existsSync(store.root)) {
     const known = new Set(ctx.db.select({ key: files.storeKey }).from(files).all().map((f) => f.key));
     for (const p of await walk(store.root)) {
       const key = path.relative(store.root, p).split(path.sep).join('/');

@@ -3,6 +3,7 @@ import crypto from 'node:crypto';
 import { and, eq, isNull } from 'drizzle-orm';
 import type { Request } from 'express';
 import type { AppContext } from '../context.js';
+import type { DbOrTx } from '../db/client.js';
 import { invitations, users } from '../db/schema.js';
 import { HttpError } from '../http/errors.js';
 import { formatDateTime } from '../../shared/format/datetime.js';
@@ -22,7 +23,7 @@ export function publicOrigin(ctx: AppContext, req?: Request): string {
  * Creates a fresh invitation for the user (earlier unused ones stop working) and returns the raw token.
  * Call inside the caller's transaction when it also creates the user.
  */
-export function createInvitation(db: AppContext['db'], userId: number, createdBy: number | null, now = new Date()) {
+export function createInvitation(db: DbOrTx, userId: number, createdBy: number | null, now = new Date()) {
   const token = crypto.randomBytes(32).toString('base64url');
   const expiresAt = new Date(now.getTime() + INVITATION_DAYS * 86400_000).toISOString();
   db.update(invitations)

@@ -24,7 +24,6 @@ import {
   measurePairs,
   prepare,
   rasterize,
-  REGION_RESULT_KEYS,
   type ChannelArray,
   type RegionResult,
   type ThresholdInfo,

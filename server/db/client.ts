@@ -1,12 +1,19 @@
 /** Opens the SQLite database (WAL, foreign keys, busy timeout) and applies committed migrations. */
-import Database from 'better-sqlite3';
+import Database, { type RunResult } from 'better-sqlite3';
 import { drizzle, type BetterSQLite3Database } from 'drizzle-orm/better-sqlite3';
+import type { BaseSQLiteDatabase } from 'drizzle-orm/sqlite-core';
 import { migrate } from 'drizzle-orm/better-sqlite3/migrator';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import * as schema from './schema.js';
 
 export type Db = BetterSQLite3Database<typeof schema> & { $client: Database.Database };
+
+/**
+ * The database or a transaction on it (both are Drizzle's synchronous SQLite database): what a function
+ * that only reads and writes rows takes, so it can run inside its caller's transaction.
+ */
+export type DbOrTx = BaseSQLiteDatabase<'sync', RunResult, typeof schema>;
 
 export const MIGRATIONS_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../drizzle');
 

@@ -15,14 +15,14 @@ export const notFound = (m = 'not found') => new HttpError(404, m);
 export const conflict = (m: string) => new HttpError(409, m);
 export const gone = (m: string) => new HttpError(410, m);
 
-/** Parse with a zod schema; a failure becomes a 400 naming the field and the value received. */
-export function parse<T>(schema: ZodType<T>, value: unknown, where = 'request'): T {
+/** Parse with a zod schema; a failure becomes a 400 naming the field and what was expected. */
+export function parse<T>(schema: ZodType<T>, value: unknown): T {
   const r = schema.safeParse(value);
   if (r.success) return r.data;
   throw r.error;
 }
 
-function describeZod(err: ZodError, input?: unknown) {
+function describeZod(err: ZodError) {
   const issues = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
   const first = issues[0];
   return { error: first ? `${first.path || 'body'}: ${first.message}` : 'invalid request', issues };

@@ -16,7 +16,7 @@ import {
   CreateBucketCommand,
   HeadBucketCommand,
 } from '@aws-sdk/client-s3';
-import type { FileStore } from './store.js';
+import type { FileStore } from '../services.js';
 
 const KEY_RE = /^[a-z0-9][a-z0-9._/-]*$/i;
 

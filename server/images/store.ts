@@ -1,19 +1,9 @@
-/** Content-addressed file store: an interface with a local-disk implementation (S3 added by the runs work). */
+/** Content-addressed file store (interface in server/services.ts): the local-disk implementation and the factory. */
 import fs from 'node:fs';
 import fsp from 'node:fs/promises';
 import path from 'node:path';
-import type { AppContext } from '../context.js';
-
-export interface FileStore {
-  readonly kind: 'local' | 's3';
-  /** Moves (or uploads) a finished local temp file to `key`. Idempotent when the key exists. */
-  putFile(key: string, localPath: string): Promise<void>;
-  has(key: string): Promise<boolean>;
-  get(key: string): Promise<Buffer>;
-  delete(key: string): Promise<void>;
-  /** every key in the store (for fault tests) */
-  list(): Promise<string[]>;
-}
+import type { FileStore, FileStoreSettings } from '../services.js';
+import { S3FileStore } from './store-s3.js';
 
 export class LocalFileStore implements FileStore {
   readonly kind = 'local' as const;
@@ -65,12 +55,15 @@ export class LocalFileStore implements FileStore {
 /** Key of a file with this SHA-256 (fanned out by the first two hex digits). */
 export const keyForSha = (sha: string) => `${sha.slice(0, 2)}/${sha}.tif`;
 
-export async function createFileStore(ctx: Pick<AppContext, 'env'>): Promise<FileStore> {
-  const url = ctx.env.STORE_URL;
-  if (url?.startsWith('s3://')) {
-    const { S3FileStore } = await import('./store-s3.js');
-    return S3FileStore.fromUrl(url, ctx.env.S3_ENDPOINT);
-  }
+/**
+ * The file store the settings name: STORE_URL s3://… (S3-compatible, S3_ENDPOINT for non-AWS services),
+ * file://… (a local folder), or `DATA_DIR/store`. The web server, the pool's worker threads and
+ * `npm run worker` all open their store here. Static imports only: pool threads load this module through
+ * tsx's CommonJS hook, where a dynamic import() would miss the .js → .ts resolution.
+ */
+export function createFileStore(settings: FileStoreSettings): FileStore {
+  const url = settings.STORE_URL;
+  if (url?.startsWith('s3://')) return S3FileStore.fromUrl(url, settings.S3_ENDPOINT);
   if (url?.startsWith('file://')) return new LocalFileStore(new URL(url).pathname);
-  return new LocalFileStore(path.join(ctx.env.DATA_DIR, 'store'));
+  return new LocalFileStore(path.join(settings.DATA_DIR, 'store'));
 }

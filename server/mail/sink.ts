@@ -5,7 +5,7 @@
  */
 import { SMTPServer } from 'smtp-server';
 import { simpleParser, type AddressObject } from 'mailparser';
-import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
 import { outgoingMail } from '../db/schema.js';
 
 export interface SmtpSink {
@@ -23,7 +23,7 @@ const addressText = (a: AddressObject | AddressObject[] | undefined) =>
         .filter(Boolean)
         .join(', ');
 
-export async function startSmtpSink(ctx: AppContext, opts: { maxBytes?: number } = {}): Promise<SmtpSink> {
+export async function startSmtpSink(db: Db, opts: { maxBytes?: number } = {}): Promise<SmtpSink> {
   const server = new SMTPServer({
     authOptional: true,
     disabledCommands: ['STARTTLS', 'AUTH'],
@@ -35,7 +35,7 @@ export async function startSmtpSink(ctx: AppContext, opts: { maxBytes?: number }
         .then((mail) => {
           const envelopeTo = session.envelope.rcptTo.map((r) => r.address).join(', ');
           const envelopeFrom = session.envelope.mailFrom ? session.envelope.mailFrom.address : '';
-          ctx.db
+          db
             .insert(outgoingMail)
             .values({
               messageId: mail.messageId ?? null,
@@ -61,7 +61,7 @@ export async function startSmtpSink(ctx: AppContext, opts: { maxBytes?: number }
   });
   // later socket errors (a client dropping the connection) must not crash the process
   server.on('error', () => {});
-  const addr = (server as unknown as { server: import('node:net').Server }).server.address();
+  const addr = server.server.address();
   const port = typeof addr === 'object' && addr ? addr.port : 0;
   return {
     host: '127.0.0.1',

@@ -6,8 +6,9 @@
  *   was handed over is recorded in the outbox (via 'relay').
  */
 import nodemailer from 'nodemailer';
-import type { AppContext, Mailer } from '../context.js';
+import type { Db } from '../db/client.js';
 import { outgoingMail } from '../db/schema.js';
+import type { Mailer } from '../services.js';
 import { startSmtpSink, type SmtpSink } from './sink.js';
 
 export interface SyntopyMailer extends Mailer {
@@ -15,15 +16,16 @@ export interface SyntopyMailer extends Mailer {
   sink: SmtpSink | null;
 }
 
-export async function createMailer(ctx: AppContext): Promise<SyntopyMailer> {
-  const from = ctx.env.MAIL_FROM;
-  if (ctx.env.SMTP_URL) {
-    const transport = nodemailer.createTransport(ctx.env.SMTP_URL);
+/** `db` records what was sent (the outbox); `smtpUrl` is SMTP_URL, `from` is MAIL_FROM. */
+export async function createMailer(deps: { db: Db; smtpUrl?: string; from: string }): Promise<SyntopyMailer> {
+  const { db, smtpUrl, from } = deps;
+  if (smtpUrl) {
+    const transport = nodemailer.createTransport(smtpUrl);
     return {
       sink: null,
       async send(m) {
         const info = await transport.sendMail({ from, to: m.to, subject: m.subject, text: m.text, html: m.html });
-        ctx.db
+        db
           .insert(outgoingMail)
           .values({ messageId: info.messageId ?? null, from, to: m.to, subject: m.subject, text: m.text, html: m.html ?? null, via: 'relay' })
           .run();
@@ -33,7 +35,7 @@ export async function createMailer(ctx: AppContext): Promise<SyntopyMailer> {
       },
     };
   }
-  const sink = await startSmtpSink(ctx);
+  const sink = await startSmtpSink(db);
   const transport = nodemailer.createTransport({
     host: sink.host,
     port: sink.port,

@@ -13,6 +13,7 @@ import { Router } from 'express';
 import multer from 'multer';
 import { and, asc, eq, isNull, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
+import type { DbOrTx } from '../db/client.js';
 import { auditEvents, cells, conditions, coverslips, fields, measurements } from '../db/schema.js';
 import { notFoundAsked, requireStudy, type Asked, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
@@ -88,7 +89,7 @@ function pixelCountOf(g: CellGeometry, field: FieldRow): number {
   return n;
 }
 
-const hasMeasurements = (ctx: AppContext, cellId: number) => !!ctx.db.select({ id: measurements.id }).from(measurements).where(eq(measurements.cellId, cellId)).limit(1).get();
+const hasMeasurements = (db: DbOrTx, cellId: number) => !!db.select({ id: measurements.id }).from(measurements).where(eq(measurements.cellId, cellId)).limit(1).get();
 
 function nextName(ctx: AppContext, fieldId: number, role: 'cell' | 'background', prefix?: string) {
   const n = ctx.db.select({ n: sql<number>`count(*)` }).from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.role, role))).get()?.n ?? 0;
@@ -96,8 +97,8 @@ function nextName(ctx: AppContext, fieldId: number, role: 'cell' | 'background',
 }
 
 /** Deletes a cell: soft (deletedAt) when measurements refer to it, otherwise removes the row. */
-function removeCell(ctx: AppContext, tx: AppContext['db'], cell: CellRow): boolean {
-  if (hasMeasurements(ctx, cell.id)) {
+function removeCell(tx: DbOrTx, cell: CellRow): boolean {
+  if (hasMeasurements(tx, cell.id)) {
     tx.update(cells).set({ deletedAt: new Date().toISOString() }).where(eq(cells.id, cell.id)).run();
     return true;
   }
@@ -149,7 +150,7 @@ export default function cellsRoutes(ctx: AppContext) {
       let out: CellRow;
       // a new geometry for a measured cell keeps the measured one intact: the old row is soft-deleted and the
       // new outline becomes a new cell (measurements always describe the outline they were made on)
-      if (body.geometry && hasMeasurements(ctx, cell.id)) {
+      if (body.geometry && hasMeasurements(tx, cell.id)) {
         tx.update(cells).set({ deletedAt: new Date().toISOString() }).where(eq(cells.id, cell.id)).run();
         const { id: _old, createdAt: _c, deletedAt: _d, ...rest } = cell;
         out = tx.insert(cells).values({ ...rest, ...patch, source: 'drawn', createdBy: req.user!.id }).returning().get();
@@ -169,7 +170,7 @@ export default function cellsRoutes(ctx: AppContext) {
     const cellId = idParam(req, 'id');
     const { cell, studyId } = loadCellFor(ctx, req.user, cellId, 'edit_images');
     const soft = ctx.db.transaction((tx) => {
-      const s = removeCell(ctx, tx as unknown as AppContext['db'], cell);
+      const s = removeCell(tx, cell);
       tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'cell.delete', entity: 'cell', entityId: cell.id, studyId, details: { fieldId: cell.fieldId, soft: s, name: cell.name } }).run();
       return s;
     });
@@ -205,7 +206,7 @@ export default function cellsRoutes(ctx: AppContext) {
     const created = ctx.db.transaction((tx) => {
       if (replace) {
         const old = tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'label_image'), isNull(cells.deletedAt))).all();
-        for (const c of old) removeCell(ctx, tx as unknown as AppContext['db'], c);
+        for (const c of old) removeCell(tx, c);
       }
       const out: CellRow[] = [];
       for (const reg of regions) {
@@ -258,7 +259,7 @@ export default function cellsRoutes(ctx: AppContext) {
     const created = ctx.db.transaction((tx) => {
       if (body.replace) {
         const old = tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'automatic'), isNull(cells.deletedAt))).all();
-        for (const c of old) removeCell(ctx, tx as unknown as AppContext['db'], c);
+        for (const c of old) removeCell(tx, c);
       }
       const start = tx.select({ n: sql<number>`count(*)` }).from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'automatic'))).get()?.n ?? 0;
       const out: CellRow[] = [];

@@ -17,7 +17,7 @@ import fsp from 'node:fs/promises';
 import path from 'node:path';
 import { Router, type Request } from 'express';
 import multer, { type StorageEngine } from 'multer';
-import { and, asc, eq, inArray, isNull, ne, or, sql } from 'drizzle-orm';
+import { and, asc, eq, inArray, or } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { auditEvents, cells, conditions, coverslips, fields, files, measurements, runFields } from '../db/schema.js';
 import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
@@ -26,12 +26,10 @@ import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
-import { ImageInputError } from '../images/decode.js';
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
 import { keyForSha } from '../images/store.js';
 
-type Db = AppContext['db'];
 
 
 export function toFieldSummary(f: FieldRow): FieldSummary {
@@ -119,7 +117,7 @@ function hashingStorage(ctx: AppContext): StorageEngine {
       file.stream.pipe(out);
     },
     _removeFile(_req, file, cb) {
-      fs.rm((file as unknown as HashedFile).path, { force: true }, () => cb(null));
+      fs.rm(file.path, { force: true }, () => cb(null));
     },
   };
 }
@@ -218,7 +216,7 @@ export default function fieldsRoutes(ctx: AppContext) {
     async (req, res) => {
       try {
         const coverslipId = idParam(req, 'id');
-        const up = ((req.files as Express.Multer.File[] | undefined) ?? []) as unknown as (Express.Multer.File & HashedFile)[];
+        const up = (req.files ?? []) as (Express.Multer.File & HashedFile)[];
         if (up.length === 0) throw badRequest('no files were uploaded; attach TIFF files as the form part "files"');
         let planRaw: unknown;
         if (typeof req.body?.plan === 'string' && req.body.plan.trim()) {

@@ -94,7 +94,7 @@ export default function peopleRoutes(ctx: AppContext) {
     const { user, token, expiresAt } = db.transaction((tx) => {
       const user = tx.insert(users).values({ email: body.email, name: body.name, roles: body.roles, passwordHash: null }).returning().get();
       for (const labId of labIds) tx.insert(labMembers).values({ labId, userId: user.id }).run();
-      const inv = createInvitation(tx as unknown as AppContext['db'], user.id, req.user!.id);
+      const inv = createInvitation(tx, user.id, req.user!.id);
       audit(tx, req, 'user_invited', 'user', user.id, { email: body.email, roles: body.roles, labIds });
       return { user, ...inv };
     });
@@ -109,7 +109,7 @@ export default function peopleRoutes(ctx: AppContext) {
     if (u.passwordHash) throw conflict(`${u.email} has already set a password`);
     if (u.disabled) throw conflict(`${u.email} is disabled; enable the account first`);
     const { token, expiresAt } = db.transaction((tx) => {
-      const inv = createInvitation(tx as unknown as AppContext['db'], u.id, req.user!.id);
+      const inv = createInvitation(tx, u.id, req.user!.id);
       audit(tx, req, 'user_reinvited', 'user', u.id);
       return inv;
     });

@@ -6,7 +6,7 @@
 import { Router } from 'express';
 import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { auditEvents, conditions, coverslips, fields, measurements, recipes, runFields, runs, studies, users } from '../db/schema.js';
+import { conditions, coverslips, fields, measurements, recipes, runFields, runs, studies, users } from '../db/schema.js';
 import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
 import { conflict, notFound, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';

@@ -114,7 +114,7 @@ export default function sharesRoutes(ctx: AppContext) {
           let u = tx.select().from(users).where(eq(users.email, email)).get();
           if (!u) {
             u = tx.insert(users).values({ email, name: email.split('@')[0], passwordHash: null, roles: ['collaborator'] }).returning().get();
-            invites.push({ email, name: u.name, ...createInvitation(tx as unknown as AppContext['db'], u.id, req.user!.id) });
+            invites.push({ email, name: u.name, ...createInvitation(tx, u.id, req.user!.id) });
           }
           tx.insert(studyMembers).values({ studyId: report.studyId, userId: u.id, access: 'read' }).onConflictDoNothing().run();
           tx.insert(auditEvents)

@@ -8,9 +8,9 @@
  */
 import { Queue, QueueEvents, Worker, type ConnectionOptions } from 'bullmq';
 import { inArray } from 'drizzle-orm';
-import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
 import { runs } from '../db/schema.js';
-import type { RunQueue } from './queue.js';
+import type { RunQueue } from '../services.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 import { buildJob, fieldName, markFieldStarted, queuedFieldsOf, recordFieldResult, refreshRun, unfinishedWork } from './records.js';
 
@@ -30,16 +30,16 @@ export class BullRunQueue implements RunQueue {
   private results!: Worker<FieldJobResult>;
   private events!: QueueEvents;
 
-  private constructor(private ctx: AppContext) {}
+  private constructor(private db: Db) {}
 
-  static async create(ctx: AppContext) {
-    const q = new BullRunQueue(ctx);
-    const connection = connectionOf(ctx.env.QUEUE_URL!);
+  static async create(db: Db, queueUrl: string) {
+    const q = new BullRunQueue(db);
+    const connection = connectionOf(queueUrl);
     q.fields = new Queue<FieldJob>(FIELDS_QUEUE, { connection });
     q.results = new Worker<FieldJobResult>(
       RESULTS_QUEUE,
       async (job) => {
-        recordFieldResult(ctx.db, job.data);
+        recordFieldResult(db, job.data);
       },
       { connection, concurrency: 1, removeOnComplete: { count: 0 }, removeOnFail: { count: 1000 } },
     );
@@ -49,7 +49,7 @@ export class BullRunQueue implements RunQueue {
       const ids = parseJobId(jobId);
       if (ids) {
         try {
-          markFieldStarted(ctx.db, ids.runId, ids.fieldId, fieldName(ctx.db, ids.fieldId));
+          markFieldStarted(db, ids.runId, ids.fieldId, fieldName(db, ids.fieldId));
         } catch {
           /* progress is best-effort */
         }
@@ -65,9 +65,9 @@ export class BullRunQueue implements RunQueue {
     for (const w of work) {
       let data: FieldJob;
       try {
-        data = buildJob(this.ctx.db, w.runId, w.fieldId);
+        data = buildJob(this.db, w.runId, w.fieldId);
       } catch (e) {
-        recordFieldResult(this.ctx.db, { runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
+        recordFieldResult(this.db, { runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
         continue;
       }
       jobs.push({ name: 'field', data, opts: { jobId: jobIdOf(w.runId, w.fieldId), removeOnComplete: 1000, removeOnFail: 1000, attempts: 2 } });
@@ -76,15 +76,15 @@ export class BullRunQueue implements RunQueue {
   }
 
   async enqueue(runId: number) {
-    refreshRun(this.ctx.db, runId);
-    await this.add(queuedFieldsOf(this.ctx.db, runId));
+    refreshRun(this.db, runId);
+    await this.add(queuedFieldsOf(this.db, runId));
   }
 
   async resume() {
     // Fields left unfinished: jobs BullMQ still holds as waiting/active stay (re-adding the same id is a
     // no-op); finished (completed or failed) jobs are removed and added again, because their result may
     // have been lost with the previous process. A duplicate result is ignored by recordFieldResult.
-    const work = unfinishedWork(this.ctx.db);
+    const work = unfinishedWork(this.db);
     for (const w of work) {
       const job = await this.fields.getJob(jobIdOf(w.runId, w.fieldId));
       if (job && ((await job.isFailed()) || (await job.isCompleted()))) await job.remove().catch(() => undefined);
@@ -95,7 +95,7 @@ export class BullRunQueue implements RunQueue {
   /** Resolves when no run is queued or running (tests). */
   async idle() {
     for (;;) {
-      const active = this.ctx.db.select({ id: runs.id }).from(runs).where(inArray(runs.status, ['queued', 'running'])).all();
+      const active = this.db.select({ id: runs.id }).from(runs).where(inArray(runs.status, ['queued', 'running'])).all();
       if (!active.length) return;
       await new Promise((r) => setTimeout(r, 50));
     }

@@ -23,7 +23,7 @@ import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, type CoefficientValues } from '../../shared/coefficients.js';
 import type { RecipeSettings } from '../../shared/schemas/recipes.js';
-import type { FileStore } from '../images/store.js';
+import type { FileStore } from '../services.js';
 import { decodeChannel } from '../images/decode.js';
 import { project } from '../images/projection.js';
 import type { FieldJob, FieldJobResult, MeasurementValues } from './job.js';

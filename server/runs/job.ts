@@ -46,10 +46,3 @@ export type MeasurementValues = { cellId: number } & CoefficientValues & {
 export type FieldJobResult =
   | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; ms: number }
   | { runId: number; fieldId: number; ok: false; error: string; ms: number };
-
-/** Where a worker finds the file store (passed to pool threads and read from the environment by worker-main). */
-export interface StoreEnv {
-  DATA_DIR: string;
-  STORE_URL?: string;
-  S3_ENDPOINT?: string;
-}

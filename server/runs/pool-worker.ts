@@ -5,12 +5,11 @@
  * where a dynamic import() would miss tsx's .js → .ts resolution.
  */
 import os from 'node:os';
-import path from 'node:path';
 import { workerData } from 'node:worker_threads';
-import { LocalFileStore, type FileStore } from '../images/store.js';
-import { S3FileStore } from '../images/store-s3.js';
+import type { FileStore, FileStoreSettings } from '../services.js';
+import { createFileStore } from '../images/store.js';
 import { runFieldJob } from './compute.js';
-import type { FieldJob, FieldJobResult, StoreEnv } from './job.js';
+import type { FieldJob, FieldJobResult } from './job.js';
 
 let store: FileStore | null = null;
 
@@ -24,14 +23,7 @@ if (process.platform === 'linux') {
   }
 }
 
-/** The file store a worker reads from, chosen the way createFileStore chooses it. */
-export function openStore(env: StoreEnv): FileStore {
-  if (env.STORE_URL?.startsWith('s3://')) return S3FileStore.fromUrl(env.STORE_URL, env.S3_ENDPOINT);
-  if (env.STORE_URL?.startsWith('file://')) return new LocalFileStore(new URL(env.STORE_URL).pathname);
-  return new LocalFileStore(path.join(env.DATA_DIR, 'store'));
-}
-
 export default async function computeFieldTask(job: FieldJob): Promise<FieldJobResult> {
-  store ??= openStore((workerData ?? {}) as StoreEnv);
+  store ??= createFileStore(workerData as FileStoreSettings);
   return runFieldJob(store, job);
 }

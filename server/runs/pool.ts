@@ -6,15 +6,16 @@
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Piscina } from 'piscina';
-import type { AppContext } from '../context.js';
-import type { RunQueue } from './queue.js';
-import type { FieldJobResult, StoreEnv } from './job.js';
+import type { Db } from '../db/client.js';
+import type { FileStoreSettings, RunQueue, RunQueueSettings } from '../services.js';
+import type { FieldJobResult } from './job.js';
 import { buildJob, fieldName, markFieldStarted, queuedFieldsOf, recordFieldResult, refreshRun, unfinishedWork } from './records.js';
 
 const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'pool-worker.ts');
 
-export function storeEnvOf(env: AppContext['env']): StoreEnv {
-  return { DATA_DIR: env.DATA_DIR, STORE_URL: env.STORE_URL, S3_ENDPOINT: env.S3_ENDPOINT };
+/** The store settings handed to each worker thread (structured-cloned, so only these fields). */
+export function storeSettingsOf(s: FileStoreSettings): FileStoreSettings {
+  return { DATA_DIR: s.DATA_DIR, STORE_URL: s.STORE_URL, S3_ENDPOINT: s.S3_ENDPOINT };
 }
 
 export class PoolRunQueue implements RunQueue {
@@ -25,25 +26,31 @@ export class PoolRunQueue implements RunQueue {
   private closed = false;
   private idleWaiters: (() => void)[] = [];
 
-  constructor(private ctx: AppContext) {
+  private readonly workers: number;
+
+  constructor(
+    private db: Db,
+    settings: RunQueueSettings,
+  ) {
+    this.workers = settings.WORKERS;
     this.pool = new Piscina({
       filename: WORKER_FILE,
       execArgv: ['--import', 'tsx'],
       minThreads: 0,
-      maxThreads: ctx.env.WORKERS,
+      maxThreads: settings.WORKERS,
       idleTimeout: 30_000,
-      workerData: storeEnvOf(ctx.env),
+      workerData: storeSettingsOf(settings),
     });
   }
 
   async enqueue(runId: number) {
-    for (const w of queuedFieldsOf(this.ctx.db, runId)) this.add(w);
-    refreshRun(this.ctx.db, runId);
+    for (const w of queuedFieldsOf(this.db, runId)) this.add(w);
+    refreshRun(this.db, runId);
     this.pump();
   }
 
   async resume() {
-    for (const w of unfinishedWork(this.ctx.db)) this.add(w);
+    for (const w of unfinishedWork(this.db)) this.add(w);
     this.pump();
   }
 
@@ -60,17 +67,17 @@ export class PoolRunQueue implements RunQueue {
   }
 
   private pump() {
-    while (!this.closed && this.inFlight.size < this.ctx.env.WORKERS && this.pending.length) {
+    while (!this.closed && this.inFlight.size < this.workers && this.pending.length) {
       const w = this.pending.shift()!;
       const k = `${w.runId}:${w.fieldId}`;
       let job;
       try {
-        job = buildJob(this.ctx.db, w.runId, w.fieldId);
+        job = buildJob(this.db, w.runId, w.fieldId);
       } catch (e) {
         this.record({ runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
         continue;
       }
-      markFieldStarted(this.ctx.db, w.runId, w.fieldId, fieldName(this.ctx.db, w.fieldId));
+      markFieldStarted(this.db, w.runId, w.fieldId, fieldName(this.db, w.fieldId));
       this.inFlight.add(k);
       this.pool
         .run(job)
@@ -91,7 +98,7 @@ export class PoolRunQueue implements RunQueue {
   private record(res: FieldJobResult) {
     if (this.closed) return;
     try {
-      recordFieldResult(this.ctx.db, res);
+      recordFieldResult(this.db, res);
     } catch (e) {
       // the database refused (e.g. closing); the field stays running and resume() picks it up
       console.warn(`[runs] could not record field ${res.fieldId} of run ${res.runId}: ${(e as Error).message}`);

@@ -4,7 +4,8 @@
  * run's final status. Idempotent: a result for a field already done is ignored, so no field counts twice.
  */
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
-import type { AppContext } from '../context.js';
+import type { Db, DbOrTx } from '../db/client.js';
+import type { RunQueue } from '../services.js';
 import { auditEvents, cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { RunScopeKind } from '../../shared/schemas/runs.js';
@@ -12,8 +13,6 @@ import { notFound } from '../http/errors.js';
 import { ENGINE_VERSION } from '../../shared/analysis/index.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 import { plural } from '../../shared/format/plural.js';
-
-type Db = AppContext['db'];
 
 /** The study of a scope and its ready fields (in study order), or 404. */
 export function resolveScope(db: Db, kind: RunScopeKind, id: number): { studyId: number; name: string; fieldIds: number[] } {
@@ -139,14 +138,14 @@ export function recordFieldResult(db: Db, result: FieldJobResult): boolean {
     } else {
       tx.update(runFields).set({ status: 'failed', error: result.error, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
     }
-    refreshRun(tx as unknown as Db, result.runId);
+    refreshRun(tx, result.runId);
     return true;
   });
   return wrote;
 }
 
 /** Recomputes a run's counters and, when no field is left, its final status. */
-export function refreshRun(db: Db, runId: number) {
+export function refreshRun(db: DbOrTx, runId: number) {
   const counts = db
     .select({ status: runFields.status, n: sql<number>`count(*)` })
     .from(runFields)
@@ -210,7 +209,7 @@ export function fieldName(db: Db, fieldId: number) {
  * with the settings used) in one transaction, then hands it to the run queue.
  */
 export async function createRun(
-  ctx: AppContext,
+  ctx: { db: Db; runs: RunQueue },
   args: { recipe: typeof recipes.$inferSelect; scope: { kind: RunScopeKind; id: number; studyId: number; fieldIds: number[] }; userId: number },
 ) {
   const { recipe, scope, userId } = args;

@@ -10,7 +10,7 @@
 import os from 'node:os';
 import { Queue, Worker } from 'bullmq';
 import { FIELDS_QUEUE, RESULTS_QUEUE, connectionOf, jobIdOf } from './bullmq.js';
-import { openStore } from './pool-worker.js';
+import { createFileStore } from '../images/store.js';
 import { runFieldJob } from './compute.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 
@@ -26,7 +26,7 @@ async function main() {
   if (storeUrl && !/^(s3|file):\/\//.test(storeUrl)) fail(`STORE_URL must start with s3:// or file://, got ${JSON.stringify(storeUrl)}`);
   const concurrency = Number(process.env.WORKER_CONCURRENCY ?? 1);
   if (!Number.isInteger(concurrency) || concurrency < 1 || concurrency > 64) fail(`WORKER_CONCURRENCY must be an integer 1–64, got ${JSON.stringify(process.env.WORKER_CONCURRENCY)}`);
-  const store = openStore({ DATA_DIR: process.env.DATA_DIR ?? 'data', STORE_URL: storeUrl, S3_ENDPOINT: process.env.S3_ENDPOINT });
+  const store = createFileStore({ DATA_DIR: process.env.DATA_DIR ?? 'data', STORE_URL: storeUrl, S3_ENDPOINT: process.env.S3_ENDPOINT });
   const connection = connectionOf(url);
   const results = new Queue<FieldJobResult>(RESULTS_QUEUE, { connection });
   const name = `${os.hostname()}:${process.pid}`;

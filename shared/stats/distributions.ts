@@ -4,15 +4,7 @@
  * Numerical Recipes). No hand-written tables. Upper tails are written through the incomplete beta function
  * directly (not 1 − cdf) so that small p-values keep their relative precision.
  */
-// @ts-ignore -- jstat ships no type declarations
-import jStatModule from 'jstat';
-
-const jStat = jStatModule as unknown as {
-  ibeta(x: number, a: number, b: number): number;
-  lowRegGamma(a: number, x: number): number;
-  normal: { cdf(x: number, mean: number, sd: number): number };
-  studentt: { inv(p: number, dof: number): number };
-};
+import jStat from 'jstat'; // types: ./jstat.d.ts
 
 const clamp01 = (p: number) => (p < 0 ? 0 : p > 1 ? 1 : p);
 

@@ -1,8 +1,8 @@
 /** The signed-in frame: a left rail with the user's places, and the page. Redirects to sign-in when signed out. */
 import { Navigate, NavLink, Outlet, useLocation } from 'react-router';
-import { useMe } from '@/features/auth/api/useMe';
+import { useMe } from '@/features/auth';
 import type { Role } from '@shared/schemas/auth';
-import { SignOutButton } from '@/features/auth/components/SignOutButton';
+import { SignOutButton } from '@/features/auth';
 
 const NAV: { to: string; label: string; roles?: Role[] }[] = [
   { to: '/', label: 'Home' },

@@ -6,7 +6,6 @@
 import { describe, expect, it } from 'vitest';
 import {
   distanceCorrelation,
-  icq,
   kendallTauB,
   measureRegion,
   pairsFromArrays,

@@ -20,7 +20,7 @@ beforeAll(async () => {
 afterAll(() => t.close());
 
 const sessionCookie = (res: request.Response) => {
-  const raw = res.headers['set-cookie'] as unknown as string[] | undefined;
+  const raw = res.get('Set-Cookie');
   return (raw ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`));
 };
 const tokenOf = (cookie: string) => cookie.split(';')[0].split('=')[1];

@@ -111,7 +111,7 @@ describe('mail through a relay (SMTP_URL)', () => {
       },
     });
     await new Promise<void>((r) => relay.listen(0, '127.0.0.1', () => r()));
-    port = ((relay as unknown as { server: import('node:net').Server }).server.address() as import('node:net').AddressInfo).port;
+    port = (relay.server.address() as import('node:net').AddressInfo).port;
     tr = await makeTestApp({ SMTP_URL: `smtp://127.0.0.1:${port}` });
   });
   afterAll(async () => {

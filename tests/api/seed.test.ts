@@ -93,7 +93,7 @@ describe('synthetic generator (pure)', () => {
     const tiff = await fromArrayBuffer(bytes.buffer.slice(bytes.byteOffset, bytes.byteOffset + bytes.byteLength) as ArrayBuffer);
     const img = await tiff.getImage();
     expect([img.getWidth(), img.getHeight(), img.getBitsPerSample()]).toEqual([4, 3, 16]);
-    const [r] = (await img.readRasters()) as unknown as Uint16Array[];
+    const [r] = (await img.readRasters()) as Uint16Array[];
     expect(Array.from(r)).toEqual(Array.from(px));
   });
 });

@@ -23,7 +23,6 @@ afterAll(async () => {
   fs.rmSync(tmp, { recursive: true, force: true });
 });
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 const binary = (res: any, cb: (e: Error | null, b: Buffer) => void) => {
   const chunks: Buffer[] = [];
   res.on('data', (c: Buffer) => chunks.push(c));

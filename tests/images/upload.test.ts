@@ -27,7 +27,6 @@ const ch1 = expectedPlane('uint16', 0, 0, W, H);
 const ch2 = expectedPlane('uint16', 1, 0, W, H);
 
 /** binary body parser for supertest */
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 const binary = (res: any, cb: (e: Error | null, b: Buffer) => void) => {
   const chunks: Buffer[] = [];
   res.on('data', (c: Buffer) => chunks.push(c));

@@ -25,7 +25,7 @@ const file = (name: string, body: string) => {
 
 describe('S3FileStore', () => {
   it('is chosen by STORE_URL=s3://… and keeps put/has/get/delete/list semantics under a prefix', async () => {
-    const store = await createFileStore({ env: { DATA_DIR: tmp, STORE_URL: 's3://bucket-a/pre/fix', S3_ENDPOINT: s3.endpoint } as never });
+    const store = createFileStore({ DATA_DIR: tmp, STORE_URL: 's3://bucket-a/pre/fix', S3_ENDPOINT: s3.endpoint });
     expect(store.kind).toBe('s3');
     const p = file('a.tif', 'hello tiff');
     await store.putFile('ab/abc.tif', p);

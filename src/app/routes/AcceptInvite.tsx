@@ -1,10 +1,10 @@
 /** Route module: /invite/:token: an invited person sets a password and is signed in. */
 import { Link, useNavigate, useParams } from 'react-router';
 import { ApiError } from '@/lib/api';
-import { useInvitation } from '@/features/auth/api/useInvitation';
-import { AuthFrame } from '@/features/auth/components/AuthFrame';
-import { AcceptInviteForm } from '@/features/auth/components/AcceptInviteForm';
-import { RoleBadges } from '@/features/auth/components/RoleBadges';
+import { useInvitation } from '@/features/auth';
+import { AuthFrame } from '@/features/auth';
+import { AcceptInviteForm } from '@/features/auth';
+import { RoleBadges } from '@/features/auth';
 import { Loading } from '@/components/Spinner';
 import { ErrorNotice } from '@/components/Caution';
 

@@ -1,7 +1,7 @@
 /** Route module: Account: who you are here, and your password. */
-import { useMe } from '@/features/auth/api/useMe';
-import { ChangePasswordForm } from '@/features/auth/components/ChangePasswordForm';
-import { ROLE_DUTIES, RoleBadges } from '@/features/auth/components/RoleBadges';
+import { useMe } from '@/features/auth';
+import { ChangePasswordForm } from '@/features/auth';
+import { ROLE_DUTIES, RoleBadges } from '@/features/auth';
 import { Card } from '@/components/Card';
 import { PageHeader } from '@/components/PageHeader';
 import { Loading } from '@/components/Spinner';

@@ -1,8 +1,8 @@
 /** Route module: Cell table — review every cell of a study, exclude with reasons, export. */
 import { useParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, ButtonLink } from '@/components';
-import { useStudy } from '@/features/studies/api/useStudy';
-import { CellTableView } from '@/features/cell-table/components/CellTableView';
+import { useStudy } from '@/features/studies';
+import { CellTableView } from '@/features/cell-table';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 

@@ -2,10 +2,10 @@
 import { useEffect, useId, useState } from 'react';
 import { useParams, useSearchParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass } from '@/components';
-import { useStudy } from '@/features/studies/api/useStudy';
-import { SourceSelect } from '@/features/cell-table/components/SourceSelect';
-import { useComparison } from '@/features/compare/api/useComparison';
-import { ComparePanel } from '@/features/compare/components/ComparePanel';
+import { useStudy } from '@/features/studies';
+import { SourceSelect } from '@/features/cell-table';
+import { useComparison } from '@/features/compare';
+import { ComparePanel } from '@/features/compare';
 import { COMPARE_COEFFICIENTS, CompareQuery } from '@shared/schemas/compare';
 import { labelOf } from '@shared/coefficients';
 import { NumberTextFor, readNumberText } from '@shared/schemas/common';

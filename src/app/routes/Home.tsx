@@ -1,11 +1,11 @@
 /** Route module: Home: what needs the user's attention, by role. */
-import { useMe } from '@/features/auth/api/useMe';
-import { useStudies } from '@/features/studies/api/useStudies';
-import { homeSections } from '@/features/home/lib/sections';
-import { ManagerPanel } from '@/features/home/components/ManagerPanel';
-import { MicroscopistPanel } from '@/features/home/components/MicroscopistPanel';
-import { BiologistPanel } from '@/features/home/components/BiologistPanel';
-import { CollaboratorPanel } from '@/features/home/components/CollaboratorPanel';
+import { useMe } from '@/features/auth';
+import { useStudies } from '@/features/studies';
+import { homeSections } from '@/features/home';
+import { ManagerPanel } from '@/features/home';
+import { MicroscopistPanel } from '@/features/home';
+import { BiologistPanel } from '@/features/home';
+import { CollaboratorPanel } from '@/features/home';
 import { Caution, ErrorNotice } from '@/components/Caution';
 import { PageHeader } from '@/components/PageHeader';
 import { Loading } from '@/components/Spinner';

@@ -1,9 +1,9 @@
 /** Route module: Outbox (facility managers): every e-mail the server sent; `?message=<id>` opens one. */
 import { useSearchParams } from 'react-router';
-import { useMe } from '@/features/auth/api/useMe';
-import { useOutbox } from '@/features/outbox/api/useOutbox';
-import { OutboxList } from '@/features/outbox/components/OutboxList';
-import { OutboxMessageView } from '@/features/outbox/components/OutboxMessageView';
+import { useMe } from '@/features/auth';
+import { useOutbox } from '@/features/outbox';
+import { OutboxList } from '@/features/outbox';
+import { OutboxMessageView } from '@/features/outbox';
 import { Button } from '@/components/Button';
 import { ErrorNotice } from '@/components/Caution';
 import { EmptyState } from '@/components/EmptyState';

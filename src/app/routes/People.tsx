@@ -1,11 +1,11 @@
 /** Route module: People & labs (facility managers): accounts with roles, invitations, disabling, labs and memberships. */
 import { useCallback, useState } from 'react';
-import { useMe } from '@/features/auth/api/useMe';
-import { useUsers } from '@/features/people/api/useUsers';
-import { useLabs } from '@/features/people/api/useLabs';
-import { UserTable } from '@/features/people/components/UserTable';
-import { LabsPanel } from '@/features/people/components/LabsPanel';
-import { InviteUserDialog } from '@/features/people/components/InviteUserDialog';
+import { useMe } from '@/features/auth';
+import { useUsers } from '@/features/people';
+import { useLabs } from '@/features/people';
+import { UserTable } from '@/features/people';
+import { LabsPanel } from '@/features/people';
+import { InviteUserDialog } from '@/features/people';
 import { Button, ButtonLink } from '@/components/Button';
 import { Caution, ErrorNotice } from '@/components/Caution';
 import { PageHeader } from '@/components/PageHeader';

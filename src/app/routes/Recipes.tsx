@@ -1,7 +1,7 @@
 /** Route module: Recipes — every recipe version, filtered by status, and a way to propose a new one. */
 import { ButtonLink, PageHeader } from '@/components';
-import { useMe } from '@/features/auth/api/useMe';
-import { RecipeList } from '@/features/recipes/components/RecipeList';
+import { useMe } from '@/features/auth';
+import { RecipeList } from '@/features/recipes';
 
 export function Component() {
   const me = useMe();

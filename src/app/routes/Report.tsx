@@ -2,11 +2,11 @@
 import { useState } from 'react';
 import { Link, useParams } from 'react-router';
 import { Button, Card, ErrorNotice, Loading } from '@/components';
-import { useReport } from '@/features/reports/api/useReport';
-import { reportCsvUrl } from '@/features/reports/api/csvUrl';
-import { ReportView } from '@/features/reports/components/ReportView';
-import { ShareDialog } from '@/features/shares/components/ShareDialog';
-import { ShareLinksTable } from '@/features/shares/components/ShareLinksTable';
+import { useReport } from '@/features/reports';
+import { reportCsvUrl } from '@/features/reports';
+import { ReportView } from '@/features/reports';
+import { ShareDialog } from '@/features/shares';
+import { ShareLinksTable } from '@/features/shares';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 

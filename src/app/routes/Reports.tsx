@@ -1,9 +1,9 @@
 /** Route module: a study's reports, and a new one. */
 import { useParams } from 'react-router';
 import { PageHeader } from '@/components';
-import { useStudy } from '@/features/studies/api/useStudy';
-import { ReportList } from '@/features/reports/components/ReportList';
-import { CreateReportButton } from '@/features/reports/components/CreateReportDialog';
+import { useStudy } from '@/features/studies';
+import { ReportList } from '@/features/reports';
+import { CreateReportButton } from '@/features/reports';
 
 export function Component() {
   const studyId = Number(useParams().studyId);

@@ -1,8 +1,8 @@
 /** Route module: Review queue — submitted recipe versions waiting for a facility manager.
  *  Facility managers review from here; anyone else who opens it sees the same list read-only. */
 import { Card, Loading, PageHeader } from '@/components';
-import { useMe } from '@/features/auth/api/useMe';
-import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
+import { useMe } from '@/features/auth';
+import { ReviewQueueList } from '@/features/recipes';
 
 export function Component() {
   const me = useMe();

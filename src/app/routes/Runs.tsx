@@ -3,10 +3,10 @@
 import { useState } from 'react';
 import { useSearchParams } from 'react-router';
 import { Button, Card, PageHeader, cx, inputClass } from '@/components';
-import { useStudies } from '@/features/studies/api/useStudies';
-import { RunList } from '@/features/runs/components/RunList';
-import { RunDetailPanel } from '@/features/runs/components/RunDetailPanel';
-import { StartRunForm } from '@/features/runs/components/StartRunForm';
+import { useStudies } from '@/features/studies';
+import { RunList } from '@/features/runs';
+import { RunDetailPanel } from '@/features/runs';
+import { StartRunForm } from '@/features/runs';
 import type { StudySummary } from '@shared/schemas/studies';
 import { plural } from '@shared/format/plural';
 

@@ -3,9 +3,9 @@ import { useEffect } from 'react';
 import { useParams } from 'react-router';
 import { Button, Loading } from '@/components';
 import { ApiError } from '@/lib/api';
-import { useSharedReport } from '@/features/shares/api/useSharedReport';
-import { sharedCsvUrl } from '@/features/reports/api/csvUrl';
-import { ReportView } from '@/features/reports/components/ReportView';
+import { useSharedReport } from '@/features/shares';
+import { sharedCsvUrl } from '@/features/reports';
+import { ReportView } from '@/features/reports';
 import { formatDateTime } from '@shared/format/datetime';
 
 function Frame({ children }: { children: React.ReactNode }) {

@@ -1,9 +1,9 @@
 /** Route module: sign-in. `?next=/path` says where to go afterwards (paths inside this site only). */
 import { Navigate, useNavigate, useSearchParams } from 'react-router';
-import { useMe } from '@/features/auth/api/useMe';
-import { AuthFrame } from '@/features/auth/components/AuthFrame';
-import { SignInForm } from '@/features/auth/components/SignInForm';
-import { safeNext } from '@/features/auth/lib/safeNext';
+import { useMe } from '@/features/auth';
+import { AuthFrame } from '@/features/auth';
+import { SignInForm } from '@/features/auth';
+import { safeNext } from '@/features/auth';
 import { Loading } from '@/components/Spinner';
 
 export function Component() {

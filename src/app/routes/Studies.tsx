@@ -1,11 +1,11 @@
 /** Route module: Studies: every study the user may see; biologists start new ones here. */
 import { useState } from 'react';
 import { useNavigate } from 'react-router';
-import { useMe } from '@/features/auth/api/useMe';
-import { useStudies } from '@/features/studies/api/useStudies';
-import { useLabs } from '@/features/people/api/useLabs';
-import { StudyList } from '@/features/studies/components/StudyList';
-import { CreateStudyForm } from '@/features/studies/components/CreateStudyForm';
+import { useMe } from '@/features/auth';
+import { useStudies } from '@/features/studies';
+import { useLabs } from '@/features/people';
+import { StudyList } from '@/features/studies';
+import { CreateStudyForm } from '@/features/studies';
 import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { EmptyState } from '@/components/EmptyState';

@@ -2,7 +2,7 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
 import { ExclusionState } from '@shared/schemas/cell-table';
 import { cellTableQueryKey } from './useCellTable';
-import { comparisonQueryKey } from '@/features/compare/api/useComparison';
+import { comparisonQueryKey } from '@/features/compare';
 
 /** POST /api/cells/:cellId/exclusion { reason }: exclude a cell (audited). Refreshes the table and comparisons. */
 export function useExcludeCell(studyId: number) {

@@ -2,7 +2,7 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
 import { ExclusionState } from '@shared/schemas/cell-table';
 import { cellTableQueryKey } from './useCellTable';
-import { comparisonQueryKey } from '@/features/compare/api/useComparison';
+import { comparisonQueryKey } from '@/features/compare';
 
 /** DELETE /api/cells/:cellId/exclusion: undo an exclusion (audited). */
 export function useRestoreCell(studyId: number) {

@@ -6,7 +6,7 @@ import { useId, useMemo, useState } from 'react';
 import { Link, useSearchParams } from 'react-router';
 import { flexRender, getCoreRowModel, useReactTable, type ColumnDef, type SortingState, type VisibilityState } from '@tanstack/react-table';
 import { Badge, Button, Caution, ErrorNotice, Loading, MeasurementCautions, inputClass } from '@/components';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import { COLUMN_LABELS, DEFAULT_VISIBLE_COLUMNS, NUMERIC_COLUMNS, SORT_KEYS, formatColumn, type GridRow, type NumericColumn, type SortKey } from '@shared/schemas/cell-table';
 import type { StudyDetail } from '@shared/schemas/studies';
 import { NumberText, readNumberText } from '@shared/schemas/common';

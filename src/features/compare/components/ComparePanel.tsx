@@ -5,7 +5,7 @@ import { Button, Caution, ErrorNotice } from '@/components';
 import { SuperPlot, SuperPlotLegend } from './SuperPlot';
 import { StatsTable } from './StatsTable';
 import { Histograms } from './Histograms';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import { downloadPng, downloadSvg } from '../lib/exportImage';
 
 export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; fileBase: string; csvQuery: string }) {

@@ -1,12 +1,12 @@
 /** Facility manager: recipes waiting for review, recent mail, accounts needing a hand. */
 import { Link } from 'react-router';
 import { useReviewQueueCount } from '../api/useReviewQueueCount';
-import { useOutbox } from '@/features/outbox/api/useOutbox';
-import { useUsers } from '@/features/people/api/useUsers';
+import { useOutbox } from '@/features/outbox';
+import { useUsers } from '@/features/people';
 import { Card } from '@/components/Card';
 import { focusRing } from '@/lib/cx';
 import { Tile } from './Tile';
-import { ReviewQueueList } from '@/features/recipes/components/ReviewQueueList';
+import { ReviewQueueList } from '@/features/recipes';
 import { formatDateTime } from '@shared/format/datetime';
 
 export function ManagerPanel() {

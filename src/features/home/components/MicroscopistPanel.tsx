@@ -2,7 +2,7 @@
 import { useQueries } from '@tanstack/react-query';
 import { Link } from 'react-router';
 import type { StudySummary } from '@shared/schemas/studies';
-import { studyQueryOptions } from '@/features/studies/api/useStudy';
+import { studyQueryOptions } from '@/features/studies';
 import { useRecentRuns } from '../api/useRecentRuns';
 import { Badge } from '@/components/Badge';
 import { Card } from '@/components/Card';

@@ -3,7 +3,7 @@ import { api } from '@/lib/api';
 import { InviteUserResponse, type InviteUserRequest } from '@shared/schemas/people';
 import { usersQueryKey } from './useUsers';
 import { labsQueryKey } from './useLabs';
-import { outboxQueryKey } from '@/features/outbox/api/useOutbox';
+import { outboxQueryKey } from '@/features/outbox';
 
 /** POST /api/users: creates the account and mails an invitation link. */
 export function useInviteUser() {

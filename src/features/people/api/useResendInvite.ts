@@ -2,7 +2,7 @@ import { useMutation, useQueryClient } from '@tanstack/react-query';
 import { api } from '@/lib/api';
 import { InviteUserResponse } from '@shared/schemas/people';
 import { usersQueryKey } from './useUsers';
-import { outboxQueryKey } from '@/features/outbox/api/useOutbox';
+import { outboxQueryKey } from '@/features/outbox';
 
 /** POST /api/users/:id/invite: a fresh link; the old one stops working. */
 export function useResendInvite() {

@@ -1,7 +1,7 @@
 /** A fieldset of role checkboxes (a person may hold several roles). */
 import { useId } from 'react';
 import { RoleSchema, type Role } from '@shared/schemas/auth';
-import { ROLE_DUTIES, ROLE_LABELS } from '@/features/auth/components/RoleBadges';
+import { ROLE_DUTIES, ROLE_LABELS } from '@/features/auth';
 import { focusRing } from '@/lib/cx';
 
 export function RoleCheckboxes({ value, onChange, error }: { value: Role[]; onChange: (roles: Role[]) => void; error?: string }) {

@@ -5,7 +5,7 @@ import { Badge } from '@/components/Badge';
 import { Button } from '@/components/Button';
 import { ConfirmDialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
-import { RoleBadges } from '@/features/auth/components/RoleBadges';
+import { RoleBadges } from '@/features/auth';
 import { useUpdateUser } from '../api/useUpdateUser';
 import { useResendInvite } from '../api/useResendInvite';
 import { EditUserDialog } from './EditUserDialog';

@@ -3,7 +3,7 @@ import { Link } from 'react-router';
 import { EmptyState, ErrorNotice, Loading } from '@/components';
 import { COEFFICIENTS } from '@shared/coefficients';
 import { useReports } from '../api/useReports';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import { formatDateTime } from '@shared/format/datetime';
 import { plural } from '@shared/format/plural';
 

@@ -5,14 +5,14 @@
  * frozen snapshot; nothing is recomputed.
  */
 import { useState } from 'react';
-import { SuperPlot, SuperPlotLegend } from '@/features/compare/components/SuperPlot';
+import { SuperPlot, SuperPlotLegend } from '@/features/compare';
 import { Badge, Caution } from '@/components';
 import { CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
 import { formatCoefficient, labelOf } from '@shared/coefficients';
 import { formatMagnitude, formatPValue } from '@shared/format/number';
 import { CompositeFigure } from './CompositeFigure';
 import { ScatterFigure } from './ScatterFigure';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import './ReportView.css';
 import { formatDateTime } from '@shared/format/datetime';
 import { plural, noun } from '@shared/format/plural';

@@ -1,7 +1,7 @@
 /** One run: its recipe settings in sentences, and each field's status (with the message when a field failed). */
 import { Badge, Caution, ErrorNotice, Loading } from '@/components';
 import { describeSettings } from '@shared/schemas/recipes';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import { useRun } from '../api/useRun';
 import { RunProgress, runStatusLabel } from './RunProgress';
 import { formatDateTime } from '@shared/format/datetime';

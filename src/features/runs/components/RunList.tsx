@@ -1,6 +1,6 @@
 /** Runs, newest first, with progress; polling while any is active (useRuns). */
 import { Badge, EmptyState, ErrorNotice, Loading, cx, focusRing } from '@/components';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import { useRuns } from '../api/useRuns';
 import { RunProgress, runStatusLabel } from './RunProgress';
 

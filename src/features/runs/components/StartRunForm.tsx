@@ -1,8 +1,8 @@
 /** Start a run in a study: a recipe version (approved ones first; others make provisional numbers) and a scope. */
 import { useState } from 'react';
 import { Button, ErrorNotice, inputClass, cx } from '@/components';
-import { useRecipes } from '@/features/recipes/api/useRecipes';
-import { useStudy } from '@/features/studies/api/useStudy';
+import { useRecipes } from '@/features/recipes';
+import { useStudy } from '@/features/studies';
 import type { RunScopeKind } from '@shared/schemas/runs';
 import { useStartRun } from '../api/useStartRun';
 import { plural } from '@shared/format/plural';

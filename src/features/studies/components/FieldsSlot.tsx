@@ -2,8 +2,8 @@
  * Where a coverslip's fields appear on the study page: the fields feature's list and upload
  * (src/features/fields/components), imported directly.
  */
-import { FieldList } from '@/features/fields/components/FieldList';
-import { UploadFields } from '@/features/fields/components/UploadFields';
+import { FieldList } from '@/features/fields';
+import { UploadFields } from '@/features/fields';
 
 export function FieldsSlot({ coverslipId, studyId, canUpload }: { coverslipId: number; studyId: number; canUpload: boolean }) {
   return (

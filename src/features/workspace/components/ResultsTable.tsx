@@ -9,7 +9,7 @@ import type { Cell } from '@shared/schemas/cells';
 import { SMALL_CELL_PIXELS } from './CellsPanel';
 import { fmtCoef } from './LivePreview';
 import { RESULTS_KEYS, byKey } from '@shared/coefficients';
-import { ProvisionalBadge } from '@/features/recipes/components/RecipeStatusBadge';
+import { ProvisionalBadge } from '@/features/recipes';
 import { noun } from '@shared/format/plural';
 
 /** The registry's `results` measures (shared/coefficients.ts) after the pixel count, with their short labels. */

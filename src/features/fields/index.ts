@@ -1,0 +1,5 @@
+/** The fields feature's public entry: what routes and other features use (eslint.config.js enforces it). */
+export { useField } from './api/useField';
+export { useFieldPixels } from './api/useFieldPixels';
+export { FieldList } from './components/FieldList';
+export { UploadFields } from './components/UploadFields';
