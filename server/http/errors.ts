@@ -17,13 +17,31 @@ export const gone = (m: string) => new HttpError(410, m);
 
 /** Parse with a zod schema; a failure becomes a 400 naming the field and what was expected. */
 export function parse<T>(schema: ZodType<T>, value: unknown): T {
-  const r = schema.safeParse(value);
+  const r = schema.safeParse(value, { reportInput: true });
   if (r.success) return r.data;
   throw r.error;
 }
 
+/** Fields whose values are never repeated back, not even in an error message. */
+const SECRET_PATH = /password|token|secret/i;
+
+/** The value a request sent, as a short JSON excerpt for an error message; null for nothing sent or for a list
+ * or object (the message of a refused list names the element at fault itself). */
+function received(input: unknown): string | null {
+  if (input === undefined || (typeof input === 'object' && input !== null)) return null;
+  // request values come from JSON or a query string: never cyclic, never BigInt
+  const text = JSON.stringify(input) ?? String(input);
+  return text.length > 80 ? `${text.slice(0, 77)}...` : text;
+}
+
 function describeZod(err: ZodError) {
-  const issues = err.issues.map((i) => ({ path: i.path.join('.'), message: i.message }));
+  const issues = err.issues.map((i) => {
+    const path = i.path.join('.');
+    const got = SECRET_PATH.test(path) ? null : received((i as { input?: unknown }).input);
+    // zod's own messages name the expected type or range; our custom refinements quote the value themselves
+    const quoted = got !== null && i.code !== 'custom' && !/\breceived\b/.test(i.message) ? `${i.message} (received ${got})` : i.message;
+    return { path, message: quoted };
+  });
   const first = issues[0];
   return { error: first ? `${first.path || 'body'}: ${first.message}` : 'invalid request', issues };
 }

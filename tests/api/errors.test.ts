@@ -100,4 +100,15 @@ describe('bad requests → 4xx JSON with a message', () => {
     expect(res.status).toBe(400);
     expect(res.body.issues.map((i: { path: string }) => i.path).sort()).toEqual(['email', 'name']);
   });
+
+  it('a refused field quotes the value received, except secrets', async () => {
+    const res = await as.mgr.post('/api/users').send({ email: 'nope@', name: 'A', roles: ['astronaut'] });
+    expect(res.status).toBe(400);
+    const byPath = Object.fromEntries(res.body.issues.map((i: { path: string; message: string }) => [i.path, i.message]));
+    expect(byPath.email).toContain('(received "nope@")');
+    expect(byPath['roles.0']).toContain('"astronaut"');
+    const pw = await request(t.app).post('/api/auth/login').send({ email: 'x@y.test', password: 12345 });
+    expect(pw.status).toBe(400);
+    expect(pw.text).not.toContain('12345');
+  });
 });
