@@ -1,7 +1,7 @@
 // @vitest-environment jsdom
 /**
  * The remaining numeric boxes refuse text and values outside the allowed range with a message tied to the box
- * (aria-invalid, aria-describedby) and keep the last valid value: the workspace display range (the channel's
+ * (aria-invalid, aria-describedby) and keep the last valid value: the workspace shown intensities (the channel's
  * data range from the field facts), the recipe pixel size (the shared BlockSizeSetting bound), the Compare
  * bootstrap seed (the CompareQuery bound), the find-cells boxes, the share lifetime, and the cell-table range.
  */
@@ -62,7 +62,7 @@ describe('NumberText open ends and NumberTextFor (shared)', () => {
   });
 });
 
-describe('workspace display range', () => {
+describe('workspace shown intensities', () => {
   function setup() {
     const onChange = vi.fn();
     render(<RangeControl label="GFP" tone="" top={4095} dataRange={[12, 3000]} value={[100, 2000]} auto={false} onChange={onChange} />);

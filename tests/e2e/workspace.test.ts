@@ -80,7 +80,7 @@ it('draws a polygon, keeps it after a reload and shows its live coefficients', a
   await page.getByTestId('cells-list').getByText(name, { exact: true }).click();
   await page.getByTestId('pixel-scatter').waitFor();
   await expect.poll(async () => page.getByTestId('live-preview').locator('[data-coef="pearson"]').textContent(), { timeout: 20_000 }).toMatch(/^-?\d\.\d{3}$/);
-  await page.getByText(/Display range and view change the picture only/).waitFor();
+  await page.getByText(/Shown intensities and the view change the picture only/).waitFor();
   await page.getByText(/not that the molecules interact/).waitFor();
   await shot(page, 'workspace-04-reloaded');
 

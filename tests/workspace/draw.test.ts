@@ -1,21 +1,21 @@
 /** Viewer and tool geometry (pure): drags to shapes, zoom about a point, fit, preview level, scale bar. */
 import { describe, expect, it } from 'vitest';
-import { boxFromDrag, ovalFromDrag, polygonFromClicks, freehandFromStroke, fitView, zoomAt, toImage, previewMax, scaleBar, boundsOf, pathOf } from '../../src/features/workspace/lib/draw';
+import { boxFromDrag, ellipseFromDrag, polygonFromClicks, traceFromStroke, fitView, zoomAt, toImage, previewMax, scaleBar, boundsOf, pathOf } from '../../src/features/workspace/lib/draw';
 import { axisTop } from '../../src/features/workspace/lib/scatterCore';
 
 describe('tool shapes', () => {
   it('box and oval from a drag in any direction; a click without a drag makes nothing', () => {
     expect(boxFromDrag([10, 20], [4, 5])).toEqual({ kind: 'rect', x: 4, y: 5, width: 6, height: 15 });
-    expect(ovalFromDrag([0, 0], [10, 6])).toEqual({ kind: 'ellipse', cx: 5, cy: 3, rx: 5, ry: 3 });
+    expect(ellipseFromDrag([0, 0], [10, 6])).toEqual({ kind: 'ellipse', cx: 5, cy: 3, rx: 5, ry: 3 });
     expect(boxFromDrag([3, 3], [3.2, 9])).toBeNull();
-    expect(ovalFromDrag([3, 3], [3, 3])).toBeNull();
+    expect(ellipseFromDrag([3, 3], [3, 3])).toBeNull();
   });
   it('polygon clicks drop repeats (double click) and a closing point equal to the first', () => {
     expect(polygonFromClicks([[0, 0], [5, 0], [5, 0], [5, 5], [0, 0]])).toEqual({ kind: 'polygon', points: [[0, 0], [5, 0], [5, 5]] });
     expect(polygonFromClicks([[0, 0], [5, 0], [5, 0]])).toBeNull();
   });
   it('freehand strokes are thinned and rounded to 1/100 px', () => {
-    const g = freehandFromStroke([[0, 0], [0.1, 0], [1.234567, 0], [1.3, 1.5], [0, 2]], 1)!;
+    const g = traceFromStroke([[0, 0], [0.1, 0], [1.234567, 0], [1.3, 1.5], [0, 2]], 1)!;
     expect(g).toEqual({ kind: 'freehand', points: [[0, 0], [1.23, 0], [1.3, 1.5], [0, 2]] });
   });
   it('paths and bounds', () => {

@@ -7,7 +7,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { insertField } from './helpers.js';
-import { boxFromDrag, ovalFromDrag, freehandFromStroke, polygonFromClicks } from '../../src/features/workspace/lib/draw';
+import { boxFromDrag, ellipseFromDrag, traceFromStroke, polygonFromClicks } from '../../src/features/workspace/lib/draw';
 import { initialOutlineState, outlineReducer } from '../../src/features/workspace/lib/outlineState';
 import { prepareRegion, scatter, livePreview } from '../../src/features/workspace/lib/scatterCore';
 import { measureRegion, rasterize } from '../../shared/analysis/index';
@@ -47,8 +47,8 @@ edited = outlineReducer(edited, { type: 'insert-vertex', key: 'n1', index: 2, at
 edited = outlineReducer(edited, { type: 'move-handle', key: 'n1', index: 0, to: [2.5, 2.5] });
 const shapes: [string, CellGeometry][] = [
   ['box', boxFromDrag([10.2, 12.7], [3.4, 30.1])!],
-  ['oval', ovalFromDrag([20.3, 10.6], [50.9, 40.2])!],
-  ['freehand', freehandFromStroke(stroke, 1.5)!],
+  ['oval', ellipseFromDrag([20.3, 10.6], [50.9, 40.2])!],
+  ['freehand', traceFromStroke(stroke, 1.5)!],
   ['polygon after vertex edits', edited.outlines[0].geometry],
   ['self-intersecting polygon (even-odd)', polygonFromClicks([[5, 5], [40, 40], [40, 5], [5, 40]])!],
   ['polygon vertex on pixel centres', polygonFromClicks([[10.5, 10.5], [20.5, 10.5], [20.5, 20.5], [10.5, 20.5]])!],

@@ -261,7 +261,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               </Caution>
             )}
             <Caution tone="info" title="What these numbers mean">
-              Display range and view change only the picture, never the numbers. Co-localization at light-microscope resolution (about 200 nm) shows that two labels share the same places, not that the molecules interact.
+              Shown intensities and the view change only the picture, never the numbers. Co-localization at light-microscope resolution (about 200 nm) shows that two labels share the same places, not that the molecules interact.
               Saturated pixels, channel bleed-through, chromatic shift and unequal image adjustment all bias the coefficients. Research use only; not for diagnosis.
             </Caution>
           </div>

@@ -76,7 +76,7 @@ export function CellsPanel({
                 <span className="block truncate font-medium">{o.name}</span>
                 <span className="block text-xs text-ink-soft">
                   {px !== null ? `${px.toLocaleString()} px` : 'saving…'} · {SOURCE_WORD[o.source]}
-                  {o.geometry.kind !== 'label' ? ` · ${o.geometry.kind === 'rect' ? 'box' : o.geometry.kind === 'ellipse' ? 'oval' : o.geometry.kind}` : ''}
+                  {o.geometry.kind !== 'label' ? ` · ${o.geometry.kind === 'rect' ? 'box' : o.geometry.kind === 'freehand' ? 'trace' : o.geometry.kind}` : ''}
                 </span>
               </button>
             )}

@@ -1,5 +1,5 @@
 /**
- * Display controls: which view (both channels or one), display range per channel, z slice. These change the
+ * Display controls: which view (both channels or one), shown intensities per channel, z slice. These change the
  * picture only — never the numbers — and the panel says so.
  */
 import { useEffect, useId, useState } from 'react';
@@ -57,7 +57,7 @@ export function DisplayPanel({ field, display, onChange, autoRanges }: { field: 
         </label>
       )}
       <p className="text-xs text-ink-soft" data-testid="display-note">
-        Display range and view change the picture only. Coefficients always use the raw pixel values{field.sizeZ > 1 ? ' of the chosen slice' : ''}.
+        Shown intensities and the view change the picture only. Coefficients always use the raw pixel values{field.sizeZ > 1 ? ' of the chosen slice' : ''}.
       </p>
     </div>
   );
@@ -68,7 +68,7 @@ export function channelNames(field: FieldDetail): [string, string] {
 }
 
 /**
- * One channel's display range: sliders and two boxes. Typed bounds are checked (shared NumberText) against
+ * One channel's shown intensities: sliders and two boxes. Typed bounds are checked (shared NumberText) against
  * the channel's data range from the field facts, the maximum above the minimum; a refused text stays in its
  * box with a message beside it and the picture keeps the last valid range.
  */
@@ -99,7 +99,7 @@ export function RangeControl({ label, tone, top, dataRange, value, auto, onChang
   return (
     <fieldset className="space-y-1">
       <legend className={cx('flex w-full items-center justify-between text-xs font-medium', tone)}>
-        <span>{label} display range</span>
+        <span>{label}: shown intensities</span>
         {!auto && (
           <button type="button" className="text-ink-soft underline-offset-2 hover:underline" onClick={() => onChange(null)}>
             automatic

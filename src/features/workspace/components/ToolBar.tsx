@@ -4,10 +4,10 @@ import type { Tool } from './Viewer';
 
 export const TOOLS: { tool: Tool; label: string; key: string; hint: string }[] = [
   { tool: 'select', label: 'Select', key: 'V', hint: 'select, move, drag corners; double-click an edge adds a point, Shift-click a point removes it' },
-  { tool: 'polygon', label: 'Polygon', key: 'P', hint: 'click the corners; click the first point, double-click or Enter closes' },
   { tool: 'box', label: 'Box', key: 'B', hint: 'drag from corner to corner' },
-  { tool: 'oval', label: 'Oval', key: 'O', hint: 'drag the box the oval fits in' },
-  { tool: 'freehand', label: 'Freehand', key: 'F', hint: 'hold the button and trace the cell' },
+  { tool: 'ellipse', label: 'Ellipse', key: 'E', hint: 'drag the box the ellipse fits in' },
+  { tool: 'polygon', label: 'Polygon', key: 'P', hint: 'click the corners; click the first point, double-click or Enter closes' },
+  { tool: 'trace', label: 'Trace', key: 'T', hint: 'hold the button and trace around the cell' },
 ];
 
 export function ToolBar({

@@ -7,12 +7,12 @@ import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, typ
 import type { FieldDetail } from '@shared/schemas/fields';
 import type { CellRole } from '@shared/schemas/cells';
 import { cx } from '@/components';
-import { boxFromDrag, fitView, freehandFromStroke, ovalFromDrag, pathOf, polygonFromClicks, previewMax, scaleBar, toImage, zoomAt, type View } from '../lib/draw';
+import { boxFromDrag, fitView, traceFromStroke, ellipseFromDrag, pathOf, polygonFromClicks, previewMax, scaleBar, toImage, zoomAt, type View } from '../lib/draw';
 import { handlesOf, nearestEdge, type Outline, type OutlineAction, type Point } from '../lib/outlineState';
 import { LabelLayer } from './LabelLayer';
 import { plural } from '@shared/format/plural';
 
-export type Tool = 'select' | 'polygon' | 'box' | 'oval' | 'freehand';
+export type Tool = 'select' | 'box' | 'ellipse' | 'polygon' | 'trace';
 
 export interface DisplaySettings {
   view: 'composite' | 'ch1' | 'ch2';
@@ -24,7 +24,7 @@ export interface DisplaySettings {
 
 type Drag =
   | { kind: 'pan'; sx: number; sy: number; v: View }
-  | { kind: 'shape'; tool: 'box' | 'oval'; a: Point; b: Point }
+  | { kind: 'shape'; tool: 'box' | 'ellipse'; a: Point; b: Point }
   | { kind: 'stroke'; points: Point[] }
   | { kind: 'move'; key: string; last: Point; started: boolean }
   | { kind: 'handle'; key: string; index: number; started: boolean };
@@ -38,7 +38,7 @@ export interface ViewerProps {
   canEdit: boolean;
   newRole: CellRole;
   dispatch: (a: OutlineAction) => void;
-  /** ranges the server chose when display ranges are automatic */
+  /** ranges the server chose when the shown intensities are automatic */
   onAutoRanges?: (r: [number, number][]) => void;
   /** true while a drag changes an outline (the save loop waits) */
   onGesture?: (active: boolean) => void;
@@ -248,8 +248,8 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
       setDraft((d) => [...d, p]);
       return;
     }
-    if (tool === 'box' || tool === 'oval') setDrag({ kind: 'shape', tool, a: p, b: p });
-    else if (tool === 'freehand') setDrag({ kind: 'stroke', points: [p] });
+    if (tool === 'box' || tool === 'ellipse') setDrag({ kind: 'shape', tool, a: p, b: p });
+    else if (tool === 'trace') setDrag({ kind: 'stroke', points: [p] });
   };
 
   const onPointerMove = (e: RPointerEvent<HTMLDivElement>) => {
@@ -303,10 +303,10 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
     if (pointers.current.size < 2) pinch.current = null;
     if (!drag) return;
     if (drag.kind === 'shape') {
-      const g = drag.tool === 'box' ? boxFromDrag(drag.a, drag.b) : ovalFromDrag(drag.a, drag.b);
+      const g = drag.tool === 'box' ? boxFromDrag(drag.a, drag.b) : ellipseFromDrag(drag.a, drag.b);
       if (g) dispatch({ type: 'add', geometry: roundGeometry(g), role: newRole });
     } else if (drag.kind === 'stroke') {
-      const g = freehandFromStroke(drag.points, Math.max(0.5, 2 / v.scale));
+      const g = traceFromStroke(drag.points, Math.max(0.5, 2 / v.scale));
       if (g) dispatch({ type: 'add', geometry: g, role: newRole });
     } else if ((drag.kind === 'move' || drag.kind === 'handle') && drag.started) onGesture?.(false);
     setDrag(null);
@@ -331,14 +331,14 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
   const bar = field.pixelSizeUm ? scaleBar(field.pixelSizeUm, v.scale) : null;
   const cursor = drag?.kind === 'pan' ? 'grabbing' : space ? 'grab' : tool === 'select' ? 'default' : 'crosshair';
   const draftPreview =
-    drag?.kind === 'shape' ? (drag.tool === 'box' ? boxFromDrag(drag.a, drag.b) : ovalFromDrag(drag.a, drag.b)) : drag?.kind === 'stroke' && drag.points.length > 1 ? { kind: 'freehand' as const, points: drag.points } : null;
+    drag?.kind === 'shape' ? (drag.tool === 'box' ? boxFromDrag(drag.a, drag.b) : ellipseFromDrag(drag.a, drag.b)) : drag?.kind === 'stroke' && drag.points.length > 1 ? { kind: 'freehand' as const, points: drag.points } : null;
 
   return (
     <div
       ref={box}
       tabIndex={0}
       role="application"
-      aria-label={`Field image ${field.name}, ${W} × ${H} pixels. Tools: V select, P polygon, B box, O oval, F freehand.`}
+      aria-label={`Field image ${field.name}, ${W} × ${H} pixels. Tools: V select, B box, E ellipse, P polygon, T trace.`}
       data-testid="field-viewer"
       className="relative h-full w-full overflow-hidden rounded-md bg-[#14181c] outline-none select-none touch-none focus-visible:ring-2 focus-visible:ring-accent"
       style={{ cursor }}

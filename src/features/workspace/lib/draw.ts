@@ -17,14 +17,14 @@ export function boxFromDrag(a: Point, b: Point): DrawnGeometry | null {
 }
 
 /** The oval inscribed in the dragged box. */
-export function ovalFromDrag(a: Point, b: Point): DrawnGeometry | null {
+export function ellipseFromDrag(a: Point, b: Point): DrawnGeometry | null {
   const rx = Math.abs(a[0] - b[0]) / 2, ry = Math.abs(a[1] - b[1]) / 2;
   if (rx * 2 < MIN_DRAG || ry * 2 < MIN_DRAG) return null;
   return { kind: 'ellipse', cx: (a[0] + b[0]) / 2, cy: (a[1] + b[1]) / 2, rx, ry };
 }
 
 /** A freehand stroke as an outline: thinned to ≥ `step` px between points (screen-size dependent). */
-export function freehandFromStroke(points: Point[], step = 1): DrawnGeometry | null {
+export function traceFromStroke(points: Point[], step = 1): DrawnGeometry | null {
   const pts = thinStroke(points, step);
   if (pts.length < 3) return null;
   return { kind: 'freehand', points: pts.map(([x, y]) => [round2(x), round2(y)] as Point) };
