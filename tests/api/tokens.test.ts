@@ -219,6 +219,22 @@ describe('bad input', () => {
   });
 });
 
+describe('limits', () => {
+  it('at most 50 active tokens per user (409); revoked and expired ones do not count', async () => {
+    const out = await t.login('outsider');
+    const uid = t.world.users.outsider.id;
+    const future = new Date(Date.now() + 86400_000).toISOString();
+    const past = new Date(Date.now() - 1000).toISOString();
+    const rows = (n: number, over: Partial<typeof apiTokens.$inferInsert>) =>
+      Array.from({ length: n }, (_, i) => ({ userId: uid, name: `bulk ${i}`, scope: 'read' as const, tokenHash: `${over.expiresAt}-${over.revokedAt}-${i}`, hint: 'syt_bulk', sessionVersion: 0, expiresAt: future, ...over }));
+    t.ctx.db.insert(apiTokens).values([...rows(49, { expiresAt: future }), ...rows(3, { expiresAt: past }), ...rows(3, { expiresAt: future, revokedAt: past })]).run();
+    await mint(out, { name: 'the fiftieth', scope: 'read', expiresInDays: 1 });
+    const res = await out.post('/api/tokens').send({ name: 'one too many', scope: 'read', expiresInDays: 1 });
+    expect(res.status).toBe(409);
+    expect(res.body.error).toBe('you already have 50 active API tokens (at most 50); revoke one you no longer use first');
+  });
+});
+
 describe('rate limit', () => {
   it('answers 429 with Retry-After beyond TOKEN_REQUESTS_PER_MINUTE, per token', async () => {
     const small = await makeTestApp({ TOKEN_REQUESTS_PER_MINUTE: '3' });
