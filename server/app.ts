@@ -20,6 +20,7 @@ import compareRoutes from './routes/compare.js';
 import reportsRoutes from './routes/reports.js';
 import sharesRoutes from './routes/shares.js';
 import outboxRoutes from './routes/outbox.js';
+import tokensRoutes from './routes/tokens.js';
 
 const DEFAULT_CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
 
@@ -48,7 +49,7 @@ export function createApp(ctx: AppContext) {
     res.json({ ok: true });
   });
   const api = express.Router();
-  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes]) {
+  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes]) {
     api.use(r(ctx));
   }
   app.use('/api', api);

@@ -35,6 +35,8 @@ const EnvSchema = z.object({
   DECODE_HEAP_MB: z.coerce.number().int().min(16).max(65536).default(1024),
   DECODE_TIMEOUT_MS: z.coerce.number().int().min(1).max(3_600_000).default(120_000),
   WORKERS: z.coerce.number().int().min(1).max(64).default(() => defaultWorkers()),
+  /** requests a minute each personal API token may make (server/auth/tokens.ts); beyond it 429 */
+  TOKEN_REQUESTS_PER_MINUTE: z.coerce.number().int().min(1).max(1_000_000).default(600),
   SEED_DEMO: z.enum(['auto', 'never']).default('auto'),
   TRUST_PROXY: z.enum(['0', '1']).default('0'),
   /** production unless told otherwise; `npm run dev` sets development, the test set-up sets test */

@@ -10,6 +10,7 @@
  * Rule meanings:
  *   'public'        no session needed (health, sign-in, sign-out)
  *   'signed-in'     any signed-in user; the handler filters what it returns to what the user may see
+ *   'session'       a signed-in user with a cookie session: a personal API token gets 403 (managing tokens)
  *   { study: A }    requireStudy(…, A) on the study the route's entity belongs to: 404 when the user may not see
  *                   the study, 403 when they may see but not do A
  *   { global: A }   requireCan(user, A): 403 when the user's roles do not allow A
@@ -18,7 +19,7 @@
  */
 import type { GlobalAction, StudyAction } from './policy.js';
 
-export type Rule = 'public' | 'signed-in' | { study: StudyAction } | { global: GlobalAction } | 'share-token' | 'invite-token';
+export type Rule = 'public' | 'signed-in' | 'session' | { study: StudyAction } | { global: GlobalAction } | 'share-token' | 'invite-token';
 
 export const ROUTE_RULES: Record<string, Rule> = {
   // app.ts
@@ -122,6 +123,11 @@ export const ROUTE_RULES: Record<string, Rule> = {
   // outbox.ts
   'GET /api/outbox': { global: 'read_outbox' },
   'GET /api/outbox/:id': { global: 'read_outbox' },
+
+  // tokens.ts: the caller's own tokens
+  'GET /api/tokens': 'session',
+  'POST /api/tokens': 'session',
+  'DELETE /api/tokens/:id': 'session',
 };
 
 /** Rules that let a request through without a session. */

@@ -5,6 +5,7 @@ import { eq, lt, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
 import { revokedSessions, users, type Role } from '../db/schema.js';
 import { unauthorized } from '../http/errors.js';
+import { tokenAuthenticator } from './tokens.js';
 
 export const SESSION_COOKIE = 'syntopy_session';
 
@@ -52,12 +53,18 @@ export function clearSessionCookie(req: Request, res: Response) {
   res.clearCookie(SESSION_COOKIE, { httpOnly: true, sameSite: 'lax', secure: req.secure, path: '/' });
 }
 
-/** Reads the cookie when present; sets req.user for a valid, current session of an enabled user. */
+/**
+ * Reads the cookie when present; sets req.user for a valid, current session of an enabled user. A request with
+ * an Authorization header is authenticated by that header alone, as a personal API token (server/auth/tokens.ts):
+ * the cookie is not read, so a bad token is a 401 and never falls through to a session.
+ */
 export function authenticate(ctx: AppContext): RequestHandler {
   const secret = key(ctx.env.SESSION_SECRET);
+  const byToken = tokenAuthenticator(ctx);
   const revoked = ctx.db.select({ jti: revokedSessions.jti }).from(revokedSessions).where(eq(revokedSessions.jti, sql.placeholder('jti'))).prepare();
   const userById = ctx.db.select().from(users).where(eq(users.id, sql.placeholder('id'))).prepare();
-  return async (req, _res, next) => {
+  return async (req, res, next) => {
+    if (req.get('authorization') !== undefined) return byToken(req, res, next);
     const token = req.cookies?.[SESSION_COOKIE];
     if (!token) return next();
     try {

@@ -40,6 +40,25 @@ export const revokedSessions = sqliteTable('revoked_sessions', {
   expiresAt: text('expires_at').notNull(),
 });
 
+/**
+ * Personal API tokens (server/auth/tokens.ts). Only the SHA-256 of the token is stored; `hint` is its first
+ * characters for recognising it in a list. `sessionVersion` is the owner's at creation: a password change or
+ * disabling (which bump the user's) ends the token like a session.
+ */
+export const apiTokens = sqliteTable('api_tokens', {
+  id: id(),
+  userId: integer('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+  name: text('name').notNull(),
+  scope: text('scope', { enum: ['read', 'write'] }).notNull(),
+  tokenHash: text('token_hash').notNull().unique(),
+  hint: text('hint').notNull(),
+  sessionVersion: integer('session_version').notNull(),
+  expiresAt: text('expires_at').notNull(),
+  lastUsedAt: text('last_used_at'),
+  revokedAt: text('revoked_at'),
+  createdAt: createdAt(),
+}, (t) => [index('api_tokens_user').on(t.userId)]);
+
 export const loginAttempts = sqliteTable('login_attempts', {
   id: id(),
   key: text('key').notNull(),

@@ -3,6 +3,7 @@ import helmet from 'helmet';
 import type { RequestHandler } from 'express';
 import type { AppContext } from '../context.js';
 import { forbidden } from './errors.js';
+import { isBearerRequest } from '../auth/tokens.js';
 
 export function securityHeaders(): RequestHandler {
   return helmet({
@@ -30,13 +31,15 @@ const UNSAFE = new Set(['POST', 'PUT', 'PATCH', 'DELETE']);
 /**
  * Rejects state-changing requests whose Origin (or, lacking it, Referer) names another site.
  * Requests without either header (curl, server-to-server, tests) pass: the SameSite=Lax cookie already
- * keeps cross-site form posts from carrying a session.
+ * keeps cross-site form posts from carrying a session. Requests with `Authorization: Bearer …` pass too, and only
+ * they: they are authenticated by the token alone, never by the cookie (server/auth/session.ts), and a browser
+ * cannot add that header to a cross-site request without a CORS preflight, which this server never grants.
  */
 export function sameOriginWrites(ctx: AppContext): RequestHandler {
   const allowed = new Set<string>();
   if (ctx.env.PUBLIC_URL) allowed.add(new URL(ctx.env.PUBLIC_URL).origin);
   return (req, _res, next) => {
-    if (!UNSAFE.has(req.method)) return next();
+    if (!UNSAFE.has(req.method) || isBearerRequest(req)) return next();
     const raw = req.get('origin') ?? (req.get('referer') ? safeOrigin(req.get('referer')!) : undefined);
     if (!raw) return next();
     const own = `${req.protocol}://${req.get('host')}`;

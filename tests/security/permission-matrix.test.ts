@@ -97,6 +97,32 @@ describe('anonymous', () => {
   });
 });
 
+describe('a personal API token', () => {
+  it('with read scope gets 403 on every route that changes something, before anything is looked up', async () => {
+    const wrong: string[] = [];
+    let checked = 0;
+    for (const r of routes.filter((x) => x.method !== 'GET')) {
+      const m = r.method.toLowerCase() as 'post' | 'put' | 'patch' | 'delete';
+      const res = await supertest(t.app)[m](fillPath(r.path, e)).set('Authorization', `Bearer ${e.apiToken}`).send(bodyFor(r.key) ?? {});
+      checked++;
+      if (res.status !== 403 || !/read scope/.test(res.body.error)) wrong.push(`${r.key} → ${res.status} ${JSON.stringify(res.body).slice(0, 120)}`);
+    }
+    expect(checked).toBeGreaterThan(40);
+    expect(wrong).toEqual([]);
+  });
+
+  it("gets 403 on every 'session' route (token management needs the cookie session)", async () => {
+    const wrong: string[] = [];
+    const sessionRoutes = routes.filter((x) => ruleOf(x) === 'session' && x.method === 'GET');
+    expect(sessionRoutes.length).toBeGreaterThan(0);
+    for (const r of sessionRoutes) {
+      const res = await supertest(t.app).get(fillPath(r.path, e)).set('Authorization', `Bearer ${e.apiToken}`);
+      if (res.status !== 403) wrong.push(`${r.key} → ${res.status}`);
+    }
+    expect(wrong).toEqual([]);
+  });
+});
+
 describe('a lab-B outsider', () => {
   it('gets 404 on every lab-A study-scoped route (reads and writes alike)', async () => {
     const wrong: string[] = [];

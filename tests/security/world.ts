@@ -62,6 +62,9 @@ export interface LabAEntities {
   mailId: number;
   labId: number;
   userId: number;
+  /** a personal API token of the biologist (lab A) with read scope, its id and secret */
+  apiTokenId: number;
+  apiToken: string;
 }
 
 /** Fields, cells, a finished run, a report and a share link in study A (lab A). */
@@ -75,6 +78,8 @@ export async function buildLabA(t: TestApp): Promise<LabAEntities> {
   if (sh.status !== 201) throw new Error(`share: ${sh.status} ${JSON.stringify(sh.body)}`);
   const link = t.ctx.db.select().from(shareLinks).where(eq(shareLinks.reportId, rep.body.id)).get()!;
   const mail = t.ctx.db.select().from(outgoingMail).where(eq(outgoingMail.to, 'reader@example.org')).get()!;
+  const tok = await bio.post('/api/tokens').send({ name: 'security tests', scope: 'read', expiresInDays: 1 });
+  if (tok.status !== 201) throw new Error(`token: ${tok.status} ${JSON.stringify(tok.body)}`);
   const token = /\/shared\/([A-Za-z0-9_-]+\.[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+)/.exec(mail.text)![1];
   return {
     studyId: t.world.studyA,
@@ -90,6 +95,8 @@ export async function buildLabA(t: TestApp): Promise<LabAEntities> {
     mailId: mail.id,
     labId: t.world.labA,
     userId: t.world.users.collaborator.id,
+    apiTokenId: tok.body.id,
+    apiToken: tok.body.token,
   };
 }
 
@@ -127,6 +134,7 @@ export function fillPath(path: string, e: LabAEntities, tokens: { share?: string
             users: e.userId,
             labs: e.labId,
             outbox: e.mailId,
+            tokens: e.apiTokenId,
           };
           const v = byResource[before];
           if (v === undefined) throw new Error(`fillPath: no lab-A entity for ":id" after "${before}" in ${path}; add it to tests/security/world.ts`);

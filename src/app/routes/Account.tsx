@@ -1,7 +1,8 @@
-/** Route module: Account: who you are here, and your password. */
+/** Route module: Account: who you are here, your password and your API tokens. */
 import { useMe } from '@/features/auth';
 import { ChangePasswordForm } from '@/features/auth';
 import { ROLE_DUTIES, RoleBadges } from '@/features/auth';
+import { ApiTokensSection } from '@/features/tokens';
 import { Card } from '@/components/Card';
 import { PageHeader } from '@/components/PageHeader';
 import { Loading } from '@/components/Spinner';
@@ -33,6 +34,9 @@ export function Component() {
         </Card>
         <Card title="Password">
           <ChangePasswordForm email={u.email} />
+        </Card>
+        <Card title="API tokens" className="lg:col-span-2">
+          <ApiTokensSection />
         </Card>
       </div>
     </>

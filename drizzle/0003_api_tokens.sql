@@ -1,0 +1,17 @@
+CREATE TABLE `api_tokens` (
+	`id` integer PRIMARY KEY AUTOINCREMENT NOT NULL,
+	`user_id` integer NOT NULL,
+	`name` text NOT NULL,
+	`scope` text NOT NULL,
+	`token_hash` text NOT NULL,
+	`hint` text NOT NULL,
+	`session_version` integer NOT NULL,
+	`expires_at` text NOT NULL,
+	`last_used_at` text,
+	`revoked_at` text,
+	`created_at` text DEFAULT (strftime('%Y-%m-%dT%H:%M:%fZ','now')) NOT NULL,
+	FOREIGN KEY (`user_id`) REFERENCES `users`(`id`) ON UPDATE no action ON DELETE cascade
+);
+--> statement-breakpoint
+CREATE UNIQUE INDEX `api_tokens_token_hash_unique` ON `api_tokens` (`token_hash`);--> statement-breakpoint
+CREATE INDEX `api_tokens_user` ON `api_tokens` (`user_id`);
