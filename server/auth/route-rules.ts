@@ -10,7 +10,7 @@
  * Rule meanings:
  *   'public'        no session needed (health, sign-in, sign-out)
  *   'signed-in'     any signed-in user; the handler filters what it returns to what the user may see
- *   'session'       a signed-in user with a cookie session: a personal API token gets 403 (managing tokens)
+ *   'session'       a signed-in user with a cookie session: a personal API token gets 403 (managing tokens, password)
  *   { study: A }    requireStudy(…, A) on the study the route's entity belongs to: 404 when the user may not see
  *                   the study, 403 when they may see but not do A
  *   { global: A }   requireCan(user, A): 403 when the user's roles do not allow A
@@ -29,7 +29,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/auth/login': 'public',
   'GET /api/auth/me': 'signed-in',
   'POST /api/auth/logout': 'public',
-  'POST /api/auth/password': 'signed-in',
+  'POST /api/auth/password': 'session',
   'GET /api/auth/invitations/:token': 'invite-token',
   'POST /api/auth/invitations/:token/accept': 'invite-token',
 

@@ -139,9 +139,9 @@ export function tokenAuthenticator(ctx: AppContext): RequestHandler {
   };
 }
 
-/** For routes that must not be reached with an API token (managing tokens): a cookie session is required. */
+/** For routes that must not be reached with an API token (managing tokens, changing the password): a cookie session is required. */
 export const requireSession: RequestHandler = (req, _res, next) => {
   if (!req.user) return next(unauthorized());
-  if (req.apiToken) return next(forbidden('API tokens cannot manage API tokens; sign in with your password in the browser (Account → API tokens)'));
+  if (req.apiToken) return next(forbidden('API tokens cannot manage API tokens or change the password; sign in with your password in the browser (Account)'));
   next();
 };

@@ -38,8 +38,9 @@ function describeZod(err: ZodError) {
   const issues = err.issues.map((i) => {
     const path = i.path.join('.');
     const got = SECRET_PATH.test(path) ? null : received((i as { input?: unknown }).input);
-    // zod's own messages name the expected type or range; our custom refinements quote the value themselves
-    const quoted = got !== null && i.code !== 'custom' && !/\breceived\b/.test(i.message) ? `${i.message} (received ${got})` : i.message;
+    // zod's own messages name only the expected type or range; messages of our own quote the value themselves
+    const quotes = i.code === 'custom' || (got !== null && i.message.includes(got)) || /\b(received|got)\b/.test(i.message);
+    const quoted = got !== null && !quotes ? `${i.message} (received ${got})` : i.message;
     return { path, message: quoted };
   });
   const first = issues[0];

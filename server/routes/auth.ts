@@ -9,6 +9,7 @@ import { DUMMY_HASH, hashPassword, verifyPassword } from '../auth/passwords.js';
 import { clearSessionCookie, requireUser, revokeSession, setSessionCookie, signSession } from '../auth/session.js';
 import { THROTTLED_MESSAGE, THROTTLE, clearFailures, isThrottled, recordFailure } from '../auth/throttle.js';
 import { findInvitation } from '../auth/invitations.js';
+import { requireSession } from '../auth/tokens.js';
 
 export const LOGIN_FAILED = 'that e-mail and password do not match an active account';
 export const INVITATION_USED = 'this invitation link was already used or has expired; ask a facility manager for a new one';
@@ -48,7 +49,7 @@ export default function authRoutes(ctx: AppContext) {
   });
 
   /** Change one's own password: every other session ends (sessionVersion bump); this one gets a new cookie. */
-  r.post('/auth/password', requireUser, async (req, res) => {
+  r.post('/auth/password', requireUser, requireSession, async (req, res) => {
     const body = parse(ChangePasswordRequest, req.body);
     const me = req.user!;
     const u = ctx.db.select().from(users).where(eq(users.id, me.id)).get()!;

@@ -190,6 +190,15 @@ describe('token management needs the cookie session', () => {
     expect(row(id).revokedAt).toBeNull();
     expect((await request(t.app).get('/api/tokens')).status).toBe(401);
   });
+
+  it('a write token cannot change the password (403), even with the right current password', async () => {
+    const micro = await t.login('microscopist');
+    const { token } = await mint(micro, { name: 'script', scope: 'write', expiresInDays: 7 });
+    const res = await request(t.app).post('/api/auth/password').set(bearer(token)).send({ currentPassword: TEST_PASSWORD, newPassword: 'a-new-password-123' });
+    expect(res.status).toBe(403);
+    expect(res.body.error).toMatch(/change the password/);
+    expect((await request(t.app).get('/api/studies').set(bearer(token))).status).toBe(200);
+  });
 });
 
 describe('bad input', () => {
@@ -204,7 +213,7 @@ describe('bad input', () => {
       [{ name: 'x', scope: 'read', expiresInDays: 1.5 }, 'expiresInDays: expiresInDays must be a whole number of days, got 1.5'],
       [{ name: 'x', scope: 'read', expiresInDays: '30' }, 'expiresInDays: expiresInDays must be a whole number of days from 1 to 365, got "30"'],
       [{ name: 42, scope: 'read', expiresInDays: 7 }, 'name: name must be text naming what the token is for, got 42'],
-      [{ name: '   ', scope: 'read', expiresInDays: 7 }, 'name: enter a name saying what the token is for (e.g. "plate-reader script")'],
+      [{ name: '   ', scope: 'read', expiresInDays: 7 }, 'name: enter a name saying what the token is for (e.g. "plate-reader script") (received "")'],
       [{ name: 'n'.repeat(81), scope: 'read', expiresInDays: 7 }, 'name: a token name has at most 80 characters, got 81'],
     ];
     for (const [body, message] of cases) {
