@@ -150,34 +150,48 @@ function parseNumber(v: string, what: string): number {
   return n;
 }
 
+const OPTIONS = {
+  ch1: { type: 'string' },
+  ch2: { type: 'string' },
+  image: { type: 'string' },
+  channels: { type: 'string' },
+  mask: { type: 'string' },
+  rois: { type: 'string' },
+  threshold: { type: 'string' },
+  t1: { type: 'string' },
+  t2: { type: 'string' },
+  json: { type: 'boolean' },
+  objects: { type: 'boolean' },
+  'spot-sigma': { type: 'string' },
+  'spot-k': { type: 'string' },
+  'pair-distance': { type: 'string' },
+  placements: { type: 'string' },
+  seed: { type: 'string' },
+} as const;
+
+/**
+ * `--opt -1` → `--opt=-1` for options that take a value, so a negative number reaches the option's own
+ * check (node's parseArgs would otherwise read "-1" as an option and refuse it as ambiguous).
+ */
+function joinNegativeValues(argv: string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const name = argv[i].startsWith('--') ? argv[i].slice(2) : '';
+    const next = argv[i + 1];
+    if (name in OPTIONS && OPTIONS[name as keyof typeof OPTIONS].type === 'string' && next !== undefined && /^-[\d.]/.test(next)) {
+      out.push(`${argv[i]}=${next}`);
+      i++;
+    } else out.push(argv[i]);
+  }
+  return out;
+}
+
 /** The parsed command line, or 'help' when --help / -h was given (then nothing else is checked). */
 export function parseCli(argv: string[]): CliOptions | 'help' {
   if (argv.includes('--help') || argv.includes('-h')) return 'help';
   let values: Record<string, string | boolean | undefined>;
   try {
-    ({ values } = parseArgs({
-      args: argv,
-      strict: true,
-      allowPositionals: false,
-      options: {
-        ch1: { type: 'string' },
-        ch2: { type: 'string' },
-        image: { type: 'string' },
-        channels: { type: 'string' },
-        mask: { type: 'string' },
-        rois: { type: 'string' },
-        threshold: { type: 'string' },
-        t1: { type: 'string' },
-        t2: { type: 'string' },
-        json: { type: 'boolean' },
-        objects: { type: 'boolean' },
-        'spot-sigma': { type: 'string' },
-        'spot-k': { type: 'string' },
-        'pair-distance': { type: 'string' },
-        placements: { type: 'string' },
-        seed: { type: 'string' },
-      },
-    }));
+    ({ values } = parseArgs({ args: joinNegativeValues(argv), strict: true, allowPositionals: false, options: OPTIONS }));
   } catch (e) {
     throw new UsageError(`${(e as Error).message.split('\n')[0]}; ${USAGE}`);
   }
