@@ -61,8 +61,9 @@ export const HELP = [
   '  --rois ROIS.json            regions as a JSON array of polygons',
   '  --threshold METHOD          none (default), manual (with --t1 and --t2), otsu or costes',
   '  --t1 N --t2 N               manual thresholds of channel 1 and channel 2',
-  '  --objects                   also detect spots in each channel, pair them and test against chance',
-  `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma}; needs --objects)`,
+  '  --objects                   also detect spots in each channel, pair them and test against chance;',
+  '                              the five options below need --objects',
+  `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma})`,
   `  --spot-k K                  keep spots whose filter response exceeds K × the noise (default ${OBJECT_DEFAULTS.spotK})`,
   `  --pair-distance PX          a spot is paired when its nearest partner is at most PX away (default ${OBJECT_DEFAULTS.pairDistance})`,
   `  --placements N              random placements of the channel-2 spots for the p-value, 1 to 1000000 (default ${OBJECT_DEFAULTS.placements})`,
@@ -178,7 +179,7 @@ function joinNegativeValues(argv: string[]): string[] {
   for (let i = 0; i < argv.length; i++) {
     const name = argv[i].startsWith('--') ? argv[i].slice(2) : '';
     const next = argv[i + 1];
-    if (name in OPTIONS && OPTIONS[name as keyof typeof OPTIONS].type === 'string' && next !== undefined && /^-[\d.]/.test(next)) {
+    if (Object.hasOwn(OPTIONS, name) && OPTIONS[name as keyof typeof OPTIONS].type === 'string' && next !== undefined && /^-[\d.]/.test(next)) {
       out.push(`${argv[i]}=${next}`);
       i++;
     } else out.push(argv[i]);
