@@ -1,6 +1,7 @@
 /**
  * `npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j)
- *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]`
+ *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N]
+ *    [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--json]`
  *
  * A contract other tools rely on: option names, JSON shape and exit codes stay as they are.
  *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels).
@@ -10,6 +11,11 @@
  *  - Thresholds are computed once over the pixels of all regions (the whole image when there are none);
  *    the default `none` means T1 = T2 = 0.
  *  - z-stacks: every slice of a region takes part (a label image or ROI applies to each slice).
+ *  - `--objects`: every region also gets `objects`, the object measures of `measureObjects`
+ *    (shared/analysis/objects.ts) with exactly the keys of `OBJECT_RESULT_KEYS`; spot centres as [x, y] in
+ *    the ROI coordinates above (a pixel's centre at +0.5). The settings used are echoed as `objectSettings`.
+ *    `--seed` seeds the Monte Carlo placement test (the command runs no other randomized test). The spot
+ *    options are an error without `--objects`; single-plane images only (spots are located in 2-D).
  *  - Exit 0 on success; 2 with one `error:` line on stderr for bad input; 1 for an internal failure
  *    (also one line). Never a stack trace.
  */
@@ -28,6 +34,9 @@ import {
   type RegionResult,
   type ThresholdInfo,
   type ThresholdOptions,
+  measureObjects,
+  OBJECT_DEFAULTS,
+  type ObjectResult,
 } from '../../shared/analysis/index';
 import { COEFFICIENTS } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
@@ -38,7 +47,7 @@ import { readLabelImage } from '../images/mask';
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -52,6 +61,13 @@ export const HELP = [
   '  --rois ROIS.json            regions as a JSON array of polygons',
   '  --threshold METHOD          none (default), manual (with --t1 and --t2), otsu or costes',
   '  --t1 N --t2 N               manual thresholds of channel 1 and channel 2',
+  '  --objects                   also detect spots in each channel, pair them and test against chance;',
+  '                              the five options below need --objects',
+  `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma})`,
+  `  --spot-k K                  keep spots whose filter response exceeds K × the noise (default ${OBJECT_DEFAULTS.spotK})`,
+  `  --pair-distance PX          a spot is paired when its nearest partner is at most PX away (default ${OBJECT_DEFAULTS.pairDistance})`,
+  `  --placements N              random placements of the channel-2 spots for the p-value, 1 to 1000000 (default ${OBJECT_DEFAULTS.placements})`,
+  `  --seed S                    seed of the placement test, an integer 0 to 4294967295 (default ${OBJECT_DEFAULTS.seed})`,
   '  --json                      print JSON instead of a table',
   '  -h, --help                  print this help',
   '',
@@ -89,7 +105,44 @@ export interface CliOptions {
   mask?: string;
   rois?: string;
   threshold: ThresholdOptions;
+  /** the object settings when --objects was given, else null */
+  objects: ObjectSettings | null;
   json: boolean;
+}
+
+/** The object settings of one run, every option resolved (echoed in the JSON as `objectSettings`). */
+export interface ObjectSettings {
+  spotSigma: number;
+  spotK: number;
+  pairDistance: number;
+  placements: number;
+  seed: number;
+}
+
+const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed'] as const;
+
+/** Reads the --objects options; each bad value is a UsageError quoting what was received. */
+function parseObjectSettings(get: (k: string) => string | undefined): ObjectSettings {
+  const num = (flag: string, dflt: number) => {
+    const v = get(flag);
+    return v === undefined ? dflt : parseNumber(v, `--${flag}`);
+  };
+  const out: ObjectSettings = {
+    spotSigma: num('spot-sigma', OBJECT_DEFAULTS.spotSigma),
+    spotK: num('spot-k', OBJECT_DEFAULTS.spotK),
+    pairDistance: num('pair-distance', OBJECT_DEFAULTS.pairDistance),
+    placements: num('placements', OBJECT_DEFAULTS.placements),
+    seed: num('seed', OBJECT_DEFAULTS.seed),
+  };
+  const q = (flag: string) => JSON.stringify(get(flag));
+  if (!(out.spotSigma > 0 && out.spotSigma <= 50)) throw new UsageError(`--spot-sigma must be a number of pixels in (0, 50], received ${q('spot-sigma')}`);
+  if (!(out.spotK > 0)) throw new UsageError(`--spot-k must be a positive number, received ${q('spot-k')}`);
+  if (!(out.pairDistance >= 0)) throw new UsageError(`--pair-distance must be a non-negative number of pixels, received ${q('pair-distance')}`);
+  if (!(Number.isInteger(out.placements) && out.placements >= 1 && out.placements <= 1_000_000))
+    throw new UsageError(`--placements must be a whole number from 1 to 1000000, received ${q('placements')}`);
+  if (!(Number.isInteger(out.seed) && out.seed >= 0 && out.seed <= 0xffffffff))
+    throw new UsageError(`--seed must be a whole number from 0 to 4294967295, received ${q('seed')}`);
+  return out;
 }
 
 function parseNumber(v: string, what: string): number {
@@ -98,28 +151,48 @@ function parseNumber(v: string, what: string): number {
   return n;
 }
 
+const OPTIONS = {
+  ch1: { type: 'string' },
+  ch2: { type: 'string' },
+  image: { type: 'string' },
+  channels: { type: 'string' },
+  mask: { type: 'string' },
+  rois: { type: 'string' },
+  threshold: { type: 'string' },
+  t1: { type: 'string' },
+  t2: { type: 'string' },
+  json: { type: 'boolean' },
+  objects: { type: 'boolean' },
+  'spot-sigma': { type: 'string' },
+  'spot-k': { type: 'string' },
+  'pair-distance': { type: 'string' },
+  placements: { type: 'string' },
+  seed: { type: 'string' },
+} as const;
+
+/**
+ * `--opt -1` → `--opt=-1` for options that take a value, so a negative number reaches the option's own
+ * check (node's parseArgs would otherwise read "-1" as an option and refuse it as ambiguous).
+ */
+function joinNegativeValues(argv: string[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < argv.length; i++) {
+    const name = argv[i].startsWith('--') ? argv[i].slice(2) : '';
+    const next = argv[i + 1];
+    if (Object.hasOwn(OPTIONS, name) && OPTIONS[name as keyof typeof OPTIONS].type === 'string' && next !== undefined && /^-[\d.]/.test(next)) {
+      out.push(`${argv[i]}=${next}`);
+      i++;
+    } else out.push(argv[i]);
+  }
+  return out;
+}
+
 /** The parsed command line, or 'help' when --help / -h was given (then nothing else is checked). */
 export function parseCli(argv: string[]): CliOptions | 'help' {
   if (argv.includes('--help') || argv.includes('-h')) return 'help';
   let values: Record<string, string | boolean | undefined>;
   try {
-    ({ values } = parseArgs({
-      args: argv,
-      strict: true,
-      allowPositionals: false,
-      options: {
-        ch1: { type: 'string' },
-        ch2: { type: 'string' },
-        image: { type: 'string' },
-        channels: { type: 'string' },
-        mask: { type: 'string' },
-        rois: { type: 'string' },
-        threshold: { type: 'string' },
-        t1: { type: 'string' },
-        t2: { type: 'string' },
-        json: { type: 'boolean' },
-      },
-    }));
+    ({ values } = parseArgs({ args: joinNegativeValues(argv), strict: true, allowPositionals: false, options: OPTIONS }));
   } catch (e) {
     throw new UsageError(`${(e as Error).message.split('\n')[0]}; ${USAGE}`);
   }
@@ -128,7 +201,7 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
   const imageForm = s('image') !== undefined || s('channels') !== undefined;
   if (pairForm && imageForm) throw new UsageError('give either --ch1 and --ch2, or --image and --channels, not both');
   if (!pairForm && !imageForm) throw new UsageError(`no image given; ${USAGE}`);
-  const out: CliOptions = { threshold: { method: 'none' }, json: values.json === true };
+  const out: CliOptions = { threshold: { method: 'none' }, objects: null, json: values.json === true };
   if (pairForm) {
     if (!s('ch1') || !s('ch2')) throw new UsageError(`--ch1 and --ch2 go together; received only ${s('ch1') ? '--ch1' : '--ch2'}`);
     out.ch1 = s('ch1');
@@ -155,6 +228,11 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
   } else {
     if (t1 !== undefined || t2 !== undefined) throw new UsageError(`--t1 and --t2 apply to --threshold manual only, received --threshold ${method}`);
     out.threshold = { method } as ThresholdOptions;
+  }
+  if (values.objects === true) out.objects = parseObjectSettings(s);
+  else {
+    const given = OBJECT_FLAGS.filter((f) => s(f) !== undefined);
+    if (given.length > 0) throw new UsageError(`${given.map((f) => `--${f}`).join(', ')} ${given.length === 1 ? 'applies' : 'apply'} to --objects only; add --objects or leave ${given.length === 1 ? 'it' : 'them'} out`);
   }
   return out;
 }
@@ -199,7 +277,9 @@ export interface AnalyzeOutput {
   height: number;
   slices: number;
   thresholds: ThresholdInfo;
-  regions: (Omit<RegionResult, 'thresholds'> & { label: number | string })[];
+  /** present with --objects: the settings every region's `objects` was measured with */
+  objectSettings?: ObjectSettings;
+  regions: (Omit<RegionResult, 'thresholds'> & { label: number | string; objects?: ObjectResult })[];
 }
 
 export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
@@ -228,6 +308,7 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   const ch1 = concat(s1), ch2 = concat(s2);
   const plane = width * height;
   const nz = s1.length;
+  if (o.objects && nz > 1) throw new UsageError(`--objects needs single-plane images, received ${nz} z slices; export one slice or a projection`);
   // regions as plane indices, then repeated over the z slices
   let planeRegions: { label: number | string; indices: Uint32Array }[] | null = null;
   if (o.mask) {
@@ -271,9 +352,12 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   const results = regions.map((r) => {
     const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
     const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
-    return { label: r.label, ...rest };
+    if (!o.objects) return { label: r.label, ...rest };
+    // single plane here, so the region's indices are plane indices
+    const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
+    return { label: r.label, ...rest, objects };
   });
-  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, regions: results };
+  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), regions: results };
 }
 
 /** Terminal numbers: 4 decimals (p-values in scientific notation), "n/a" when undefined, never "-0.0000". */
@@ -283,19 +367,50 @@ const fmtT = (v: number | null) => (v === null ? 'n/a' : Number.isInteger(v) ? S
 /** The registry measures with a terminal header (`cliLabel`, shared/coefficients.ts), in registry order. */
 const CLI_COLUMNS = COEFFICIENTS.filter((c) => c.cliLabel !== null);
 
+type OutRegion = AnalyzeOutput['regions'][number];
+
+/** Right-aligned columns under a header row (the first column left-aligned). */
+function columns(cols: [string, (r: OutRegion) => string][], regions: OutRegion[]): string[] {
+  const rows = [cols.map((c) => c[0]), ...regions.map((r) => cols.map((c) => c[1](r)))];
+  const widths = cols.map((_, k) => Math.max(...rows.map((row) => row[k].length)));
+  return rows.map((row) => row.map((v, k) => (k === 0 ? v.padEnd(widths[k]) : v.padStart(widths[k]))).join('  '));
+}
+
+/** The objects section: spot counts, paired fractions, mutual pairs, chance fraction and the p-value. */
+function objectLines(out: AnalyzeOutput): string[] {
+  const o = out.objectSettings!;
+  const ob = (r: OutRegion) => r.objects!;
+  return [
+    '',
+    `objects · spot σ ${o.spotSigma} px, k ${o.spotK}, pair distance ${o.pairDistance} px, ${o.placements} placements, seed ${o.seed}`,
+    ...columns(
+      [
+        ['region', (r) => String(r.label)],
+        ['spots1', (r) => fmt(ob(r).count1, 'count')],
+        ['spots2', (r) => fmt(ob(r).count2, 'count')],
+        ['paired1', (r) => fmt(ob(r).paired1, 'fraction')],
+        ['paired2', (r) => fmt(ob(r).paired2, 'fraction')],
+        ['mutual', (r) => fmt(ob(r).mutualPairs, 'count')],
+        ['chance1', (r) => fmt(ob(r).chanceFraction1, 'fraction')],
+        ['p', (r) => fmt(ob(r).pValue, 'pValue')],
+      ],
+      out.regions,
+    ),
+  ];
+}
+
 export function formatTable(out: AnalyzeOutput): string {
   const t = out.thresholds;
   const lines = [
     `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices` : ''} · thresholds ${t.method}: ch1 > ${fmtT(t.ch1)}, ch2 > ${fmtT(t.ch2)}`,
   ];
-  const cols: [string, (r: AnalyzeOutput['regions'][number]) => string][] = [
+  const cols: [string, (r: OutRegion) => string][] = [
     ['region', (r) => String(r.label)],
-    ...CLI_COLUMNS.map((c): [string, (r: AnalyzeOutput['regions'][number]) => string] => [c.cliLabel!, (r) => fmt(r[c.key], c.format)]),
+    ...CLI_COLUMNS.map((c): [string, (r: OutRegion) => string] => [c.cliLabel!, (r) => fmt(r[c.key], c.format)]),
   ];
-  const rows = [cols.map((c) => c[0]), ...out.regions.map((r) => cols.map((c) => c[1](r)))];
-  const widths = cols.map((_, k) => Math.max(...rows.map((row) => row[k].length)));
-  for (const row of rows) lines.push(row.map((v, k) => (k === 0 ? v.padEnd(widths[k]) : v.padStart(widths[k]))).join('  '));
+  lines.push(...columns(cols, out.regions));
   if (out.regions.length === 0) lines.push('(the label image has no regions)');
+  else if (out.objectSettings) lines.push(...objectLines(out));
   return lines.join('\n');
 }
 
