@@ -3,7 +3,7 @@ import crypto from 'node:crypto';
 import { and, eq, isNull } from 'drizzle-orm';
 import type { Request } from 'express';
 import type { AppContext } from '../context.js';
-import type { DbOrTx } from '../db/client.js';
+import type { Db, DbOrTx } from '../db/client.js';
 import { invitations, users } from '../db/schema.js';
 import { HttpError } from '../http/errors.js';
 import { formatDateTime } from '../../shared/format/datetime.js';
@@ -57,9 +57,9 @@ export function escapeHtml(s: string) {
 }
 
 /** Looks up an invitation by raw token with its user. */
-export function findInvitation(ctx: AppContext, token: string) {
+export function findInvitation(db: Db, token: string) {
   if (!/^[A-Za-z0-9_-]{20,100}$/.test(token)) return undefined;
-  return ctx.db
+  return db
     .select({ inv: invitations, user: users })
     .from(invitations)
     .innerJoin(users, eq(users.id, invitations.userId))

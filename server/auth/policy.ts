@@ -7,7 +7,7 @@
  * - a user who may not see a study gets 404; one who may see but not change it gets 403.
  */
 import { and, eq } from 'drizzle-orm';
-import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
 import { labMembers, studies, studyMembers, type Role } from '../db/schema.js';
 import { forbidden, notFound, unauthorized } from '../http/errors.js';
 import type { SessionUser } from './session.js';
@@ -26,14 +26,14 @@ export const hasRole = (u: SessionUser | undefined, r: Role) => !!u && u.roles.i
 export type Study = typeof studies.$inferSelect;
 
 /** What the user may do in this study (empty set: may not even see it). */
-export function studyPermissions(ctx: AppContext, user: SessionUser, study: Study): Set<StudyAction> {
+export function studyPermissions(db: Db, user: SessionUser, study: Study): Set<StudyAction> {
   const p = new Set<StudyAction>();
-  const inLab = !!ctx.db
+  const inLab = !!db
     .select()
     .from(labMembers)
     .where(and(eq(labMembers.labId, study.labId), eq(labMembers.userId, user.id)))
     .get();
-  const member = ctx.db
+  const member = db
     .select()
     .from(studyMembers)
     .where(and(eq(studyMembers.studyId, study.id), eq(studyMembers.userId, user.id)))
@@ -71,11 +71,11 @@ export const notFoundAsked = (a: Asked) => notFound(`no ${a.what} with id ${a.id
  * Loads the study and checks the action: 404 when the user may not see it, 403 when they may see but not act.
  * `asked` is the object the request named (default: the study itself); the 404 names it.
  */
-export function requireStudy(ctx: AppContext, user: SessionUser | undefined, studyId: number, action: StudyAction, asked: Asked = { what: 'study', id: studyId }): Study {
+export function requireStudy(db: Db, user: SessionUser | undefined, studyId: number, action: StudyAction, asked: Asked = { what: 'study', id: studyId }): Study {
   if (!user) throw unauthorized();
-  const study = Number.isInteger(studyId) ? ctx.db.select().from(studies).where(eq(studies.id, studyId)).get() : undefined;
+  const study = Number.isInteger(studyId) ? db.select().from(studies).where(eq(studies.id, studyId)).get() : undefined;
   if (!study) throw notFoundAsked(asked);
-  const perms = studyPermissions(ctx, user, study);
+  const perms = studyPermissions(db, user, study);
   if (!perms.has('read')) throw notFoundAsked(asked);
   if (!perms.has(action)) throw forbidden(`your roles (${user.roles.join(', ')}) do not allow ${ACTION_WORDS[action] ?? `"${action}"`} in this study`);
   return study;

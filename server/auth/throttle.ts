@@ -10,7 +10,7 @@
  * saw (server/app.ts), so a client cannot pick its own address with X-Forwarded-For.
  */
 import { and, eq, gte, lt, sql } from 'drizzle-orm';
-import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
 import { loginAttempts } from '../db/schema.js';
 
 export const THROTTLE = { windowMinutes: 15, perAccountAndAddress: 5, perAddress: 30 };
@@ -23,24 +23,24 @@ function since(now: Date) {
   return new Date(now.getTime() - THROTTLE.windowMinutes * 60_000).toISOString();
 }
 
-function count(ctx: AppContext, key: string, from: string) {
-  return ctx.db
+function count(db: Db, key: string, from: string) {
+  return db
     .select({ n: sql<number>`count(*)` })
     .from(loginAttempts)
     .where(and(eq(loginAttempts.key, key), gte(loginAttempts.at, from)))
     .get()!.n;
 }
 
-export function isThrottled(ctx: AppContext, email: string, ip: string, now = new Date()): boolean {
+export function isThrottled(db: Db, email: string, ip: string, now = new Date()): boolean {
   const k = throttleKeys(email, ip);
   const from = since(now);
-  return count(ctx, k.account, from) >= THROTTLE.perAccountAndAddress || count(ctx, k.address, from) >= THROTTLE.perAddress;
+  return count(db, k.account, from) >= THROTTLE.perAccountAndAddress || count(db, k.address, from) >= THROTTLE.perAddress;
 }
 
-export function recordFailure(ctx: AppContext, email: string, ip: string, now = new Date()) {
+export function recordFailure(db: Db, email: string, ip: string, now = new Date()) {
   const k = throttleKeys(email, ip);
   const at = now.toISOString();
-  ctx.db.transaction((tx) => {
+  db.transaction((tx) => {
     tx.insert(loginAttempts).values([{ key: k.account, at }, { key: k.address, at }]).run();
     // keep the table small: drop rows older than the window
     tx.delete(loginAttempts).where(lt(loginAttempts.at, since(now))).run();
@@ -48,6 +48,6 @@ export function recordFailure(ctx: AppContext, email: string, ip: string, now = 
 }
 
 /** A successful sign-in forgets that account's failures from this address (the address count stays). */
-export function clearFailures(ctx: AppContext, email: string, ip: string) {
-  ctx.db.delete(loginAttempts).where(eq(loginAttempts.key, throttleKeys(email, ip).account)).run();
+export function clearFailures(db: Db, email: string, ip: string) {
+  db.delete(loginAttempts).where(eq(loginAttempts.key, throttleKeys(email, ip).account)).run();
 }

@@ -79,7 +79,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   const db = ctx.db.$client;
   const study = db.prepare('SELECT id FROM studies WHERE id = ?').get(studyId);
   if (!study) throw badRequest(`no study with id ${studyId}`);
-  const src = resolveSource(ctx, studyId, { runId: opts.runId, recipeId: opts.recipeId });
+  const src = resolveSource(ctx.db, studyId, { runId: opts.runId, recipeId: opts.recipeId });
 
   let conds = db.prepare('SELECT id, name FROM conditions WHERE study_id = ? ORDER BY position, id').all(studyId) as { id: number; name: string }[];
   if (opts.conditionIds?.length) {

@@ -9,7 +9,7 @@
  * every value is a bound parameter. Filters and sort keys are validated by zod (shared/schemas/
  * measurements.ts) before they reach this file, so a hostile value is a 400, not SQL.
  */
-import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
 import { badRequest } from '../http/errors.js';
 import { CELL_TABLE_KEYS, byKey } from '../../shared/coefficients.js';
 import { NUMERIC_COLUMNS, type GridFilters, type NumericColumn, type SortKey, type SourceInfo } from '../../shared/schemas/cell-table.js';
@@ -46,8 +46,8 @@ export interface ResolvedSource extends SourceInfo {
   runIds: number[];
 }
 
-export function resolveSource(ctx: AppContext, studyId: number, q: { runId?: number; recipeId?: number }): ResolvedSource {
-  const db = ctx.db.$client;
+export function resolveSource(database: Db, studyId: number, q: { runId?: number; recipeId?: number }): ResolvedSource {
+  const db = database.$client;
   if (q.runId !== undefined) {
     const run = db.prepare('SELECT r.id, r.study_id AS studyId, r.recipe_id AS recipeId, rc.name, rc.version FROM runs r JOIN recipes rc ON rc.id = r.recipe_id WHERE r.id = ?').get(q.runId) as
       | { id: number; studyId: number; recipeId: number; name: string; version: number }

@@ -13,6 +13,7 @@ import path from 'node:path';
 import { pipeline } from 'node:stream/promises';
 import { eq } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
+import type { Db } from '../db/client.js';
 import { auditEvents, conditions, coverslips, fields, files } from '../db/schema.js';
 import { HttpError } from '../http/errors.js';
 import { maxRepresentable, type PixelArray } from './decode.js';
@@ -205,15 +206,15 @@ export function clearPixelCache() {
   cache.clear();
 }
 
-export async function loadFieldRow(ctx: AppContext, fieldId: number): Promise<FieldRow> {
-  const f = Number.isInteger(fieldId) ? ctx.db.select().from(fields).where(eq(fields.id, fieldId)).get() : undefined;
+export async function loadFieldRow(db: Db, fieldId: number): Promise<FieldRow> {
+  const f = Number.isInteger(fieldId) ? db.select().from(fields).where(eq(fields.id, fieldId)).get() : undefined;
   if (!f) throw new HttpError(404, `no field with id ${fieldId}`);
   return f;
 }
 
 /** All z slices of both channels of a field (decoded once, then cached). */
 export async function loadFieldStack(ctx: AppContext, fieldOrId: number | FieldRow): Promise<DecodedStack> {
-  const f = typeof fieldOrId === 'number' ? await loadFieldRow(ctx, fieldOrId) : fieldOrId;
+  const f = typeof fieldOrId === 'number' ? await loadFieldRow(ctx.db, fieldOrId) : fieldOrId;
   const key = stackKey(f);
   const hit = cacheGet(key);
   if (hit) return hit;
@@ -280,7 +281,7 @@ export function selectZ(stack: Pick<DecodedStack, 'ch1' | 'ch2' | 'sizeZ'>, z: Z
 
 /** A field's two channels at one z choice (see ZChoice). Does not check permissions (callers do). */
 export async function loadFieldPixels(ctx: AppContext, fieldId: number, opts: { z?: ZChoice } = {}): Promise<FieldPixels> {
-  const f = await loadFieldRow(ctx, fieldId);
+  const f = await loadFieldRow(ctx.db, fieldId);
   const stack = await loadFieldStack(ctx, f);
   const sel = selectZ(stack, opts.z);
   return {

@@ -220,6 +220,6 @@ export async function prunePreviewCache(dir: string, limit = PREVIEW_CACHE_BYTES
  */
 export async function renderCompositePng(ctx: AppContext, fieldId: number, opts: Partial<PreviewQuery> = {}): Promise<Buffer> {
   const { loadFieldRow } = await import('./intake.js');
-  const f = await loadFieldRow(ctx, fieldId);
+  const f = await loadFieldRow(ctx.db, fieldId);
   return (await renderPreview(ctx, f, { ...opts, view: 'composite' })).png;
 }

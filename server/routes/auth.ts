@@ -23,17 +23,17 @@ export default function authRoutes(ctx: AppContext) {
   r.post('/auth/login', async (req, res) => {
     const body = parse(LoginRequest, req.body);
     const ip = req.ip ?? 'unknown';
-    if (isThrottled(ctx, body.email, ip)) {
+    if (isThrottled(ctx.db, body.email, ip)) {
       res.setHeader('Retry-After', String(THROTTLE.windowMinutes * 60));
       throw new HttpError(429, THROTTLED_MESSAGE);
     }
     const u = ctx.db.select().from(users).where(eq(users.email, body.email)).get();
     const ok = await verifyPassword(body.password, u?.passwordHash ?? DUMMY_HASH);
     if (!u || !ok || u.disabled || !u.passwordHash) {
-      recordFailure(ctx, body.email, ip);
+      recordFailure(ctx.db, body.email, ip);
       throw unauthorized(LOGIN_FAILED);
     }
-    clearFailures(ctx, body.email, ip);
+    clearFailures(ctx.db, body.email, ip);
     setSessionCookie(ctx, req, res, await signSession(ctx, u.id, u.sessionVersion));
     res.json(meOf(u));
   });
@@ -75,7 +75,7 @@ export default function authRoutes(ctx: AppContext) {
   });
 
   function usableInvitation(token: string) {
-    const found = findInvitation(ctx, token);
+    const found = findInvitation(ctx.db, token);
     if (!found) throw notFound('no such invitation; check that the whole link was copied');
     if (found.inv.usedAt || found.inv.expiresAt <= new Date().toISOString() || found.user.disabled) throw gone(INVITATION_USED);
     return found;

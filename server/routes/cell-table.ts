@@ -63,7 +63,7 @@ export default function cellTableRoutes(ctx: AppContext) {
 
   r.get('/studies/:studyId/measurement-sources', requireUser, (req, res) => {
     const studyId = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, studyId, 'read');
+    requireStudy(ctx.db, req.user, studyId, 'read');
     const runs = sqlite
       .prepare(
         `SELECT r.id, r.status, r.created_at AS createdAt, r.provisional, r.recipe_id AS recipeId, rc.name, rc.version,
@@ -106,10 +106,10 @@ export default function cellTableRoutes(ctx: AppContext) {
 
   r.get('/studies/:studyId/cell-table', requireUser, (req, res) => {
     const studyId = idParam(req, 'studyId');
-    const study = requireStudy(ctx, req.user, studyId, 'read');
-    const canExclude = studyPermissions(ctx, req.user!, study).has('exclude');
+    const study = requireStudy(ctx.db, req.user, studyId, 'read');
+    const canExclude = studyPermissions(ctx.db, req.user!, study).has('exclude');
     const q = parse(GridQuery, req.query);
-    const src = resolveSource(ctx, studyId, q);
+    const src = resolveSource(ctx.db, studyId, q);
     const { ids: allIds, total } = orderedIds(studyId, src, q);
     const rowsJson = pageRows(studyId, src, q, allIds);
     const body: Omit<GridResponse, 'rows'> = {
@@ -125,9 +125,9 @@ export default function cellTableRoutes(ctx: AppContext) {
 
   r.get('/studies/:studyId/cells.csv', requireUser, (req, res) => {
     const studyId = idParam(req, 'studyId');
-    const study = requireStudy(ctx, req.user, studyId, 'read');
+    const study = requireStudy(ctx.db, req.user, studyId, 'read');
     const q = parse(CsvQuery, req.query);
-    const src = resolveSource(ctx, studyId, q);
+    const src = resolveSource(ctx.db, studyId, q);
     const g = gridFrom(studyId, src, q);
     const stmt = sqlite.prepare(`${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)}`);
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
@@ -164,7 +164,7 @@ export default function cellTableRoutes(ctx: AppContext) {
   r.post('/cells/:cellId/exclusion', requireUser, (req, res) => {
     const cellId = idParam(req, 'cellId');
     const cell = cellStudy(cellId);
-    requireStudy(ctx, req.user, cell.studyId, 'exclude', { what: 'cell', id: cellId });
+    requireStudy(ctx.db, req.user, cell.studyId, 'exclude', { what: 'cell', id: cellId });
     const body = parse(ExcludeRequest, req.body ?? {});
     if (cell.excluded) throw conflict(`cell ${cellId} is already excluded (reason: ${JSON.stringify(cell.reason)})`);
     sqlite.transaction(() => {
@@ -179,7 +179,7 @@ export default function cellTableRoutes(ctx: AppContext) {
   r.delete('/cells/:cellId/exclusion', requireUser, (req, res) => {
     const cellId = idParam(req, 'cellId');
     const cell = cellStudy(cellId);
-    requireStudy(ctx, req.user, cell.studyId, 'exclude', { what: 'cell', id: cellId });
+    requireStudy(ctx.db, req.user, cell.studyId, 'exclude', { what: 'cell', id: cellId });
     const body = parse(RestoreRequest, req.body ?? {});
     if (!cell.excluded) throw conflict(`cell ${cellId} is not excluded`);
     sqlite.transaction(() => {
@@ -192,7 +192,7 @@ export default function cellTableRoutes(ctx: AppContext) {
   r.get('/cells/:cellId/exclusion-history', requireUser, (req, res) => {
     const cellId = idParam(req, 'cellId');
     const cell = cellStudy(cellId);
-    requireStudy(ctx, req.user, cell.studyId, 'read', { what: 'cell', id: cellId });
+    requireStudy(ctx.db, req.user, cell.studyId, 'read', { what: 'cell', id: cellId });
     const events = sqlite
       .prepare(
         `SELECT a.id, a.at, a.action, u.name AS actor, a.details FROM audit_events a LEFT JOIN users u ON u.id = a.actor_id

@@ -64,7 +64,7 @@ export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fie
     .where(eq(fields.id, fieldId))
     .get();
   if (!row || row.field.status === 'deleted') throw notFoundAsked(asked);
-  requireStudy(ctx, user, row.studyId, action, asked);
+  requireStudy(ctx.db, user, row.studyId, action, asked);
   return row;
 }
 

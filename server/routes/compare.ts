@@ -21,7 +21,7 @@ export default function compareRoutes(ctx: AppContext) {
 
   const compareFor = async (req: Request) => {
     const studyId = idParam(req, 'studyId');
-    const study: Study = requireStudy(ctx, req.user, studyId, 'read');
+    const study: Study = requireStudy(ctx.db, req.user, studyId, 'read');
     const q = parse(CompareQuery, req.query);
     return { study, comparison: await computeComparison(ctx, studyId, q) };
   };

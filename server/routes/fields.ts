@@ -72,7 +72,7 @@ export function loadFieldFor(ctx: AppContext, user: SessionUser | undefined, fie
   const field = ctx.db.select().from(fields).where(eq(fields.id, fieldId)).get();
   if (!field) throw notFoundAsked(asked);
   const cs = coverslipStudy(ctx, field.coverslipId);
-  requireStudy(ctx, user, cs.studyId, action, asked);
+  requireStudy(ctx.db, user, cs.studyId, action, asked);
   return { field, studyId: cs.studyId, conditionId: cs.conditionId };
 }
 
@@ -189,7 +189,7 @@ export default function fieldsRoutes(ctx: AppContext) {
       // permission first: nothing is streamed to disk for a coverslip the user may not change
       const coverslipId = idParam(req, 'id');
       const cs = coverslipStudy(ctx, coverslipId);
-      requireStudy(ctx, req.user, cs.studyId, 'edit_images', { what: 'coverslip', id: coverslipId });
+      requireStudy(ctx.db, req.user, cs.studyId, 'edit_images', { what: 'coverslip', id: coverslipId });
       if (!String(req.headers['content-type'] ?? '').startsWith('multipart/form-data')) {
         throw badRequest('send the files as multipart/form-data (parts "files" and "plan")');
       }
@@ -284,7 +284,7 @@ export default function fieldsRoutes(ctx: AppContext) {
   r.get('/coverslips/:id/fields', (req, res) => {
     const coverslipId = idParam(req, 'id');
     const cs = coverslipStudy(ctx, coverslipId);
-    requireStudy(ctx, req.user, cs.studyId, 'read', { what: 'coverslip', id: coverslipId });
+    requireStudy(ctx.db, req.user, cs.studyId, 'read', { what: 'coverslip', id: coverslipId });
     const rows = ctx.db
       .select()
       .from(fields)
@@ -296,7 +296,7 @@ export default function fieldsRoutes(ctx: AppContext) {
 
   r.get('/studies/:studyId/fields', (req, res) => {
     const studyId = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, studyId, 'read');
+    requireStudy(ctx.db, req.user, studyId, 'read');
     const rows = ctx.db
       .select({ f: fields, conditionId: conditions.id })
       .from(fields)
@@ -311,8 +311,8 @@ export default function fieldsRoutes(ctx: AppContext) {
   r.get('/fields/:id', (req, res) => {
     const fieldId = idParam(req, 'id');
     const { field, studyId, conditionId } = loadFieldFor(ctx, req.user, fieldId, 'read');
-    const study = requireStudy(ctx, req.user, studyId, 'read');
-    const perms = studyPermissions(ctx, req.user!, study);
+    const study = requireStudy(ctx.db, req.user, studyId, 'read');
+    const perms = studyPermissions(ctx.db, req.user!, study);
     const fileRows = ctx.db.select().from(files).where(inArray(files.sha256, [field.file1Sha, field.file2Sha])).all();
     const fileOf = (sha: string, channel: number) => {
       const fr = fileRows.find((x) => x.sha256 === sha);

@@ -18,14 +18,14 @@ export default function reportsRoutes(ctx: AppContext) {
 
   r.get('/studies/:studyId/reports', (req, res) => {
     const studyId = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, studyId, 'read');
+    requireStudy(ctx.db, req.user, studyId, 'read');
     const rows = ctx.db.select().from(reports).where(eq(reports.studyId, studyId)).orderBy(desc(reports.id)).all();
     res.json(ReportListResponse.parse({ reports: toSummaries(ctx, rows) }));
   });
 
   r.post('/studies/:studyId/reports', async (req, res) => {
     const studyId = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, studyId, 'report');
+    requireStudy(ctx.db, req.user, studyId, 'report');
     const body = CreateReportRequest.parse(req.body ?? {});
     const snapshot = await buildSnapshot(ctx, studyId, body);
     const row = ctx.db.transaction((tx) => {
@@ -51,13 +51,13 @@ export default function reportsRoutes(ctx: AppContext) {
 
   r.get('/reports/:id', (req, res) => {
     const row = loadReport(ctx, idParam(req, 'id'));
-    const study = requireStudy(ctx, req.user, row.studyId, 'read', { what: 'report', id: row.id });
-    res.json(toDetail(ctx, row, studyPermissions(ctx, req.user!, study).has('report')));
+    const study = requireStudy(ctx.db, req.user, row.studyId, 'read', { what: 'report', id: row.id });
+    res.json(toDetail(ctx, row, studyPermissions(ctx.db, req.user!, study).has('report')));
   });
 
   r.get('/reports/:id/csv/:table', (req, res) => {
     const row = loadReport(ctx, idParam(req, 'id'));
-    requireStudy(ctx, req.user, row.studyId, 'read', { what: 'report', id: row.id });
+    requireStudy(ctx.db, req.user, row.studyId, 'read', { what: 'report', id: row.id });
     sendCsv(res, row, parse(CsvTable, req.params.table));
   });
 

@@ -107,7 +107,7 @@ export default function runsRoutes(ctx: AppContext) {
     const recipe = ctx.db.select().from(recipes).where(eq(recipes.id, body.recipeId)).get();
     if (!recipe) throw notFound(`no recipe with id ${body.recipeId}`);
     const scope = resolveScope(ctx.db, body.scope.kind, body.scope.id);
-    requireStudy(ctx, req.user, scope.studyId, 'run', { what: body.scope.kind, id: body.scope.id });
+    requireStudy(ctx.db, req.user, scope.studyId, 'run', { what: body.scope.kind, id: body.scope.id });
     if (recipe.status === 'retired') throw conflict(`recipe ${recipe.name} v${recipe.version} is retired; choose a current version`);
     if (!scope.fieldIds.length) throw conflict(`nothing to measure: ${body.scope.kind} "${scope.name}" has no fields`);
     const run = await createRun(ctx, { recipe, scope: { kind: body.scope.kind, id: body.scope.id, ...scope }, userId: req.user.id });
@@ -119,11 +119,11 @@ export default function runsRoutes(ctx: AppContext) {
     if (!req.user) throw unauthorized();
     const q = parse(RunListQuery, req.query);
     const u = req.user;
-    if (q.studyId) requireStudy(ctx, u, q.studyId, 'read');
+    if (q.studyId) requireStudy(ctx.db, u, q.studyId, 'read');
     // the studies this user may read first, so the newest 500 runs are the newest 500 the user may see
     const readable = q.studyId
       ? [q.studyId]
-      : ctx.db.select().from(studies).all().filter((s) => studyPermissions(ctx, u, s).has('read')).map((s) => s.id);
+      : ctx.db.select().from(studies).all().filter((s) => studyPermissions(ctx.db, u, s).has('read')).map((s) => s.id);
     if (!readable.length) return void res.json({ runs: [] });
     const conds = [inArray(runs.studyId, readable)];
     if (q.status) conds.push(eq(runs.status, q.status));
@@ -135,7 +135,7 @@ export default function runsRoutes(ctx: AppContext) {
     const id = idParam(req, 'id');
     const row = ctx.db.select().from(runs).where(eq(runs.id, id)).get();
     if (!row) throw notFoundAsked({ what: 'run', id });
-    requireStudy(ctx, req.user, row.studyId, 'read', { what: 'run', id });
+    requireStudy(ctx.db, req.user, row.studyId, 'read', { what: 'run', id });
     res.json(runDetail(ctx, row));
   });
 

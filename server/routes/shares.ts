@@ -87,14 +87,14 @@ export default function sharesRoutes(ctx: AppContext) {
 
   r.get('/reports/:id/shares', (req, res) => {
     const report = loadReport(ctx, idParam(req, 'id'));
-    requireStudy(ctx, req.user, report.studyId, 'report', { what: 'report', id: report.id });
+    requireStudy(ctx.db, req.user, report.studyId, 'report', { what: 'report', id: report.id });
     const rows = ctx.db.select().from(shareLinks).where(eq(shareLinks.reportId, report.id)).orderBy(desc(shareLinks.id)).all();
     res.json(ShareListResponse.parse({ links: summaries(rows, report.studyId), notSent: [] }));
   });
 
   r.post('/reports/:id/shares', async (req, res) => {
     const report = loadReport(ctx, idParam(req, 'id'));
-    requireStudy(ctx, req.user, report.studyId, 'report', { what: 'report', id: report.id });
+    requireStudy(ctx.db, req.user, report.studyId, 'report', { what: 'report', id: report.id });
     const body = CreateShareRequest.parse(req.body ?? {});
     const expiresAt = new Date(Date.now() + body.expiresInDays * 86400_000).toISOString();
     const invites: { email: string; name: string; token: string; expiresAt: string }[] = [];
@@ -138,7 +138,7 @@ export default function sharesRoutes(ctx: AppContext) {
     const link = ctx.db.select().from(shareLinks).where(eq(shareLinks.id, id)).get();
     if (!link) throw notFoundAsked({ what: 'share link', id });
     const report = loadReport(ctx, link.reportId);
-    requireStudy(ctx, req.user, report.studyId, 'report', { what: 'share link', id });
+    requireStudy(ctx.db, req.user, report.studyId, 'report', { what: 'share link', id });
     return { link, report };
   };
 

@@ -73,7 +73,7 @@ export default function studiesRoutes(ctx: AppContext) {
     const studyOfCond = new Map(conds.map((c) => [c.id, c.studyId]));
     return rows.map((s) => {
       const mySlips = slips.filter((cs) => studyOfCond.get(cs.conditionId) === s.id);
-      const perms = studyPermissions(ctx, user, s);
+      const perms = studyPermissions(ctx.db, user, s);
       return StudySummary.parse({
         id: s.id,
         name: s.name,
@@ -128,13 +128,13 @@ export default function studiesRoutes(ctx: AppContext) {
   function conditionFor(user: SessionUser | undefined, id: number, action: 'read' | 'edit_structure') {
     const cd = db.select().from(conditions).where(eq(conditions.id, id)).get();
     if (!cd) throw notFoundAsked({ what: 'condition', id });
-    return { cd, study: requireStudy(ctx, user, cd.studyId, action, { what: 'condition', id }) };
+    return { cd, study: requireStudy(ctx.db, user, cd.studyId, action, { what: 'condition', id }) };
   }
   function coverslipFor(user: SessionUser | undefined, id: number, action: 'read' | 'edit_structure') {
     const cs = db.select().from(coverslips).where(eq(coverslips.id, id)).get();
     if (!cs) throw notFoundAsked({ what: 'coverslip', id });
     const cd = db.select().from(conditions).where(eq(conditions.id, cs.conditionId)).get()!;
-    return { cs, cd, study: requireStudy(ctx, user, cd.studyId, action, { what: 'coverslip', id }) };
+    return { cs, cd, study: requireStudy(ctx.db, user, cd.studyId, action, { what: 'coverslip', id }) };
   }
 
   const audit = (tx: Tx, req: Request, action: string, entity: string, entityId: number, studyId: number, details: Record<string, unknown> = {}) =>
@@ -163,7 +163,7 @@ export default function studiesRoutes(ctx: AppContext) {
   r.get('/studies', requireUser, (req, res) => {
     const user = req.user!;
     const all = db.select().from(studies).orderBy(studies.name, studies.id).all();
-    const visible = all.filter((s) => studyPermissions(ctx, user, s).has('read'));
+    const visible = all.filter((s) => studyPermissions(ctx.db, user, s).has('read'));
     res.json(StudyListResponse.parse({ studies: summaries(user, visible) }));
   });
 
@@ -189,13 +189,13 @@ export default function studiesRoutes(ctx: AppContext) {
 
   r.get('/studies/:studyId', requireUser, (req, res) => {
     const id = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, id, 'read');
+    requireStudy(ctx.db, req.user, id, 'read');
     res.json(detail(req.user!, id));
   });
 
   r.patch('/studies/:studyId', requireUser, (req, res) => {
     const id = idParam(req, 'studyId');
-    const study = requireStudy(ctx, req.user, id, 'edit_structure');
+    const study = requireStudy(ctx.db, req.user, id, 'edit_structure');
     const body = parse(UpdateStudyRequest, req.body);
     db.transaction((tx) => {
       tx.update(studies).set({ ...(body.name !== undefined && { name: body.name }), ...(body.description !== undefined && { description: body.description }) }).where(eq(studies.id, id)).run();
@@ -206,7 +206,7 @@ export default function studiesRoutes(ctx: AppContext) {
 
   r.delete('/studies/:studyId', requireUser, (req, res) => {
     const id = idParam(req, 'studyId');
-    const study = requireStudy(ctx, req.user, id, 'delete');
+    const study = requireStudy(ctx.db, req.user, id, 'delete');
     const body = parse(DeleteStudyRequest, { confirmName: req.body?.confirmName ?? req.query.confirmName });
     if (body.confirmName.trim() !== study.name) throw issue('confirmName', `type the study name "${study.name}" exactly to delete it`);
     db.transaction((tx) => {
@@ -222,7 +222,7 @@ export default function studiesRoutes(ctx: AppContext) {
   // ---- conditions --------------------------------------------------------------------------------------
   r.post('/studies/:studyId/conditions', requireUser, (req, res) => {
     const id = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, id, 'edit_structure');
+    requireStudy(ctx.db, req.user, id, 'edit_structure');
     const body = parse(CreateConditionRequest, req.body);
     conditionNameFree(id, body.name);
     db.transaction((tx) => {
@@ -307,7 +307,7 @@ export default function studiesRoutes(ctx: AppContext) {
   // ---- reorder -----------------------------------------------------------------------------------------
   r.post('/studies/:studyId/reorder', requireUser, (req, res) => {
     const id = idParam(req, 'studyId');
-    requireStudy(ctx, req.user, id, 'edit_structure');
+    requireStudy(ctx.db, req.user, id, 'edit_structure');
     const body = parse(ReorderRequest, req.body);
     if (!body.conditionIds && !body.coverslips) throw issue('body', 'send conditionIds and/or coverslips');
     const conds = db.select().from(conditions).where(eq(conditions.studyId, id)).all();

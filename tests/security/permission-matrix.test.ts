@@ -171,7 +171,7 @@ describe('study rules follow policy.studyPermissions() for every role', () => {
     let denied = 0;
     for (const w of WHO) {
       const me = (await agents[w].get('/api/auth/me')).body.user as SessionUser;
-      const perms = studyPermissions(t.ctx, me, study);
+      const perms = studyPermissions(t.ctx.db, me, study);
       for (const r of routes.filter((x) => isStudy(ruleOf(x)))) {
         const action = (ruleOf(r) as { study: import('../../server/auth/policy.js').StudyAction }).study;
         const expected = !perms.has('read') ? 404 : !perms.has(action) ? 403 : 'allowed';
