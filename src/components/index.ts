@@ -10,3 +10,4 @@ export { MeasurementCautions } from './MeasurementCautions';
 export { Spinner, Loading } from './Spinner';
 export { cx, focusRing } from '@/lib/cx';
 export { validate, serverErrors, type FieldErrors } from '@/lib/form';
+export { BoxMessage, useNumberBox, type NumberBox, type NumberBoxOptions } from './NumberBox';

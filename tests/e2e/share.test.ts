@@ -6,7 +6,7 @@
  */
 import { expect, it } from 'vitest';
 import fs from 'node:fs';
-import { serverAndBrowser, apiSession, newPage, shot, signIn } from './harness.js';
+import { serverAndBrowser, apiSession, shot, signIn } from './harness.js';
 
 const e2e = serverAndBrowser();
 

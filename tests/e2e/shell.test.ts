@@ -4,11 +4,11 @@
  * Screenshots: test-results/shell-*.png. (common practice)
  */
 import { describe, expect, it } from 'vitest';
-import { serverAndBrowser, newPage, shot, signIn } from './harness.js';
+import { serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
 
 const e2e = serverAndBrowser();
 
-const navOf = async (page: Awaited<ReturnType<typeof newPage>>) => {
+const navOf = async (page: TrackedPage) => {
   const nav = page.getByRole('navigation', { name: 'Main' });
   await nav.waitFor();
   return (await nav.getByRole('link').allTextContents()).map((s) => s.trim());
