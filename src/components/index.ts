@@ -1,6 +1,6 @@
 export { Button, ButtonLink, buttonClass } from './Button';
 export { TextField, TextArea, FieldShell, inputClass } from './TextField';
-export { Dialog, ConfirmDialog } from './Dialog';
+export { Dialog, ConfirmDialog, FormDialog } from './Dialog';
 export { Card } from './Card';
 export { EmptyState } from './EmptyState';
 export { Badge } from './Badge';
