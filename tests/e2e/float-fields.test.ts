@@ -51,6 +51,13 @@ async function demoCoverslip(page: TrackedPage) {
   return { studyId: study.id, coverslipId: detail.conditions[0].coverslips[0].id };
 }
 
+/** A new page signed in as the demo microscopist, and the demo study's first coverslip. */
+async function microscopistAtDemoCoverslip() {
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
+  return { page, ...(await demoCoverslip(page)) };
+}
+
 async function upload(page: TrackedPage, coverslipId: number, files: { name: string; buffer: Buffer }[], plan?: unknown) {
   const form = new FormData();
   if (plan) form.append('plan', JSON.stringify(plan));
@@ -89,9 +96,7 @@ async function openWithCell(page: TrackedPage, studyId: number, fieldId: number,
 }
 
 it('opens a float32 pair (two single-channel files) and shows its scatter and live coefficients', async () => {
-  const page = await e2e.page();
-  await signIn(page, e2e.srv, 'microscopist@demo.test');
-  const { studyId, coverslipId } = await demoCoverslip(page);
+  const { page, studyId, coverslipId } = await microscopistAtDemoCoverslip();
   const px = floatPair(11);
   const fieldId = await upload(
     page,
@@ -107,9 +112,7 @@ it('opens a float32 pair (two single-channel files) and shows its scatter and li
 });
 
 it('opens a 2-page float32 file and shows its scatter and live coefficients', async () => {
-  const page = await e2e.page();
-  await signIn(page, e2e.srv, 'microscopist@demo.test');
-  const { studyId, coverslipId } = await demoCoverslip(page);
+  const { page, studyId, coverslipId } = await microscopistAtDemoCoverslip();
   const px = floatPair(23);
   const fieldId = await upload(page, coverslipId, [{ name: 'float-2page.tif', buffer: writeTiff([px.ch1, px.ch2], W, H, 32, 'float') }]);
   await openWithCell(page, studyId, fieldId, 'Float cell B', px, 'float-02-two-page');
@@ -117,9 +120,7 @@ it('opens a 2-page float32 file and shows its scatter and live coefficients', as
 });
 
 it('a pixel message that does not follow the format is shown as an error, not "Computing…" forever', async () => {
-  const page = await e2e.page();
-  await signIn(page, e2e.srv, 'microscopist@demo.test');
-  const { studyId, coverslipId } = await demoCoverslip(page);
+  const { page, studyId, coverslipId } = await microscopistAtDemoCoverslip();
   const px = floatPair(5);
   const fieldId = await upload(page, coverslipId, [{ name: 'float-cut.tif', buffer: writeTiff([px.ch1, px.ch2], W, H, 32, 'float') }]);
   // the real answer with its last 10 bytes cut off
