@@ -197,12 +197,18 @@ export default function peopleRoutes(ctx: AppContext) {
     res.json({ ok: true });
   });
 
-  r.put('/labs/:id/members/:userId', requireUser, (req, res) => {
+  /** The lab and the user of a membership route: the caller may manage users and both exist (else 403/404). */
+  const membership = (req: Request) => {
     requireCan(req.user, 'manage_users');
     const id = idParam(req, 'id');
     const userId = idParam(req, 'userId');
     labOut(id);
     userOr404(userId);
+    return { id, userId };
+  };
+
+  r.put('/labs/:id/members/:userId', requireUser, (req, res) => {
+    const { id, userId } = membership(req);
     db.transaction((tx) => {
       const added = tx.insert(labMembers).values({ labId: id, userId }).onConflictDoNothing().run();
       if (added.changes) audit(tx, req, 'lab_member_added', 'lab', id, { userId });
@@ -211,11 +217,7 @@ export default function peopleRoutes(ctx: AppContext) {
   });
 
   r.delete('/labs/:id/members/:userId', requireUser, (req, res) => {
-    requireCan(req.user, 'manage_users');
-    const id = idParam(req, 'id');
-    const userId = idParam(req, 'userId');
-    labOut(id);
-    userOr404(userId);
+    const { id, userId } = membership(req);
     db.transaction((tx) => {
       const removed = tx.delete(labMembers).where(and(eq(labMembers.labId, id), eq(labMembers.userId, userId))).run();
       if (removed.changes) audit(tx, req, 'lab_member_removed', 'lab', id, { userId });

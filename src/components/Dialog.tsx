@@ -99,6 +99,40 @@ export function Dialog({ open, onClose, title, description, children, footer, al
   );
 }
 
+export type FormDialogProps = Pick<DialogProps, 'open' | 'onClose' | 'title' | 'description' | 'children'> & {
+  /** the primary button, which submits the form */
+  submitLabel: string;
+  pending: boolean;
+  onSubmit: (e: React.FormEvent<HTMLFormElement>) => void;
+  /** leave checking to the caller (the shared schema's messages) rather than the browser */
+  noValidate?: boolean;
+};
+
+/** A dialog around one form: Cancel and the submit button in the footer, the fields stacked in the body. */
+export function FormDialog({ open, onClose, title, description, submitLabel, pending, onSubmit, noValidate, children }: FormDialogProps) {
+  const formId = useId();
+  return (
+    <Dialog
+      open={open}
+      onClose={onClose}
+      title={title}
+      description={description}
+      footer={
+        <>
+          <Button onClick={onClose}>Cancel</Button>
+          <Button variant="primary" type="submit" form={formId} pending={pending}>
+            {submitLabel}
+          </Button>
+        </>
+      }
+    >
+      <form id={formId} onSubmit={onSubmit} noValidate={noValidate} className="flex flex-col gap-4">
+        {children}
+      </form>
+    </Dialog>
+  );
+}
+
 export type ConfirmDialogProps = {
   open: boolean;
   onClose: () => void;

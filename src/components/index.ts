@@ -1,6 +1,6 @@
 export { Button, ButtonLink, buttonClass } from './Button';
 export { TextField, TextArea, FieldShell, inputClass } from './TextField';
-export { Dialog, ConfirmDialog } from './Dialog';
+export { Dialog, ConfirmDialog, FormDialog } from './Dialog';
 export { Card } from './Card';
 export { EmptyState } from './EmptyState';
 export { Badge } from './Badge';
@@ -10,3 +10,4 @@ export { MeasurementCautions } from './MeasurementCautions';
 export { Spinner, Loading } from './Spinner';
 export { cx, focusRing } from '@/lib/cx';
 export { validate, serverErrors, type FieldErrors } from '@/lib/form';
+export { BoxMessage, useNumberBox, type NumberBox, type NumberBoxOptions } from './NumberBox';

@@ -5,22 +5,12 @@
  * and of Manders' M1 is higher in "treated". Then the Cell table: exclude a cell with a reason, see it marked,
  * undo. Screenshots: test-results/compare-*.png.
  */
-import { afterAll, beforeAll, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { apiSession, launchBrowser, newPage, shot, signIn, startServer, type RunningServer } from './harness.js';
+import { expect, it } from 'vitest';
+import { serverAndBrowser, apiSession, shot, signIn } from './harness.js';
 
-let srv: RunningServer;
-let browser: Browser;
-beforeAll(async () => {
-  srv = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await srv?.stop();
-});
+const e2e = serverAndBrowser();
 
-const session = (email: string) => apiSession(srv, email);
+const session = (email: string) => apiSession(e2e.srv, email);
 
 it('shows the demo effect (treated > untreated) on the Compare page, and exclusions in the Cell table', async () => {
   const bio = await session('biologist@demo.test');
@@ -37,8 +27,8 @@ it('shows the demo effect (treated > untreated) on the Compare page, and exclusi
   }
   expect(status).toBe('done');
 
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'biologist@demo.test');
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'biologist@demo.test');
   const means = async () => {
     const table = page.getByTestId('condition-table');
     await table.waitFor();
@@ -46,7 +36,7 @@ it('shows the demo effect (treated > untreated) on the Compare page, and exclusi
     return { untreated: await read('untreated'), treated: await read('treated') };
   };
 
-  await page.goto(`${srv.url}/studies/${study.id}/compare?coefficient=pearson`);
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/compare?coefficient=pearson`);
   await page.getByTestId('superplot').waitFor();
   const r = await means();
   expect(r.treated).toBeGreaterThan(r.untreated);
@@ -63,7 +53,7 @@ it('shows the demo effect (treated > untreated) on the Compare page, and exclusi
   await shot(page, 'compare-02-manders');
 
   // the Cell table: exclude the first listed cell with a reason, see it marked, undo
-  await page.goto(`${srv.url}/studies/${study.id}/cell-table`);
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/cell-table`);
   const table = page.getByTestId('cell-table');
   await table.waitFor();
   const firstRow = table.locator('tbody tr').first();

@@ -5,22 +5,12 @@
  * the value computed here from the same pixels). A pixel message that does not follow the format shows an
  * error instead of "Computing…". Screenshots: test-results/float-*.png.
  */
-import { afterAll, beforeAll, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer, type TrackedPage } from './harness.js';
+import { expect, it } from 'vitest';
+import { serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
 import { writeTiff } from '../workspace/helpers.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 
-let srv: RunningServer;
-let browser: Browser;
-beforeAll(async () => {
-  srv = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await srv?.stop();
-});
+const e2e = serverAndBrowser();
 
 const W = 96, H = 64;
 /** Two correlated float channels with fractional and negative values (seeded LCG; common practice). */
@@ -55,17 +45,24 @@ function pearson(a: Float32Array, b: Float32Array, idx: Uint32Array) {
 }
 
 async function demoCoverslip(page: TrackedPage) {
-  const studies = (await (await page.request.get(`${srv.url}/api/studies`)).json()) as { studies: { id: number; isDemo?: boolean }[] };
+  const studies = (await (await page.request.get(`${e2e.srv.url}/api/studies`)).json()) as { studies: { id: number; isDemo?: boolean }[] };
   const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
-  const detail = (await (await page.request.get(`${srv.url}/api/studies/${study.id}`)).json()) as { conditions: { coverslips: { id: number }[] }[] };
+  const detail = (await (await page.request.get(`${e2e.srv.url}/api/studies/${study.id}`)).json()) as { conditions: { coverslips: { id: number }[] }[] };
   return { studyId: study.id, coverslipId: detail.conditions[0].coverslips[0].id };
+}
+
+/** A new page signed in as the demo microscopist, and the demo study's first coverslip. */
+async function microscopistAtDemoCoverslip() {
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
+  return { page, ...(await demoCoverslip(page)) };
 }
 
 async function upload(page: TrackedPage, coverslipId: number, files: { name: string; buffer: Buffer }[], plan?: unknown) {
   const form = new FormData();
   if (plan) form.append('plan', JSON.stringify(plan));
   for (const f of files) form.append('files', new Blob([new Uint8Array(f.buffer)], { type: 'image/tiff' }), f.name);
-  const up = await page.request.post(`${srv.url}/api/coverslips/${coverslipId}/fields`, { multipart: form });
+  const up = await page.request.post(`${e2e.srv.url}/api/coverslips/${coverslipId}/fields`, { multipart: form });
   const body = (await up.json()) as { results: { ok: boolean; field?: { id: number; sampleFormat: string; bitDepth: number } }[] };
   expect(up.status(), JSON.stringify(body)).toBe(201);
   const field = body.results[0].field!;
@@ -76,13 +73,13 @@ async function upload(page: TrackedPage, coverslipId: number, files: { name: str
 const RECT = { kind: 'rect' as const, x: 20, y: 12, width: 40, height: 34 };
 
 async function openWithCell(page: TrackedPage, studyId: number, fieldId: number, name: string, px: { ch1: Float32Array; ch2: Float32Array }, shotName: string) {
-  const made = await page.request.post(`${srv.url}/api/fields/${fieldId}/cells`, { data: { name, geometry: RECT } });
+  const made = await page.request.post(`${e2e.srv.url}/api/fields/${fieldId}/cells`, { data: { name, geometry: RECT } });
   expect(made.status()).toBe(201);
   const idx = cellIndices(RECT, W, H);
   const want = pearson(px.ch1, px.ch2, idx);
   expect(want).toBeGreaterThan(0.3); // the data are correlated, so a wrong pairing would show
 
-  await page.goto(`${srv.url}/studies/${studyId}/fields/${fieldId}`);
+  await page.goto(`${e2e.srv.url}/studies/${studyId}/fields/${fieldId}`);
   await page.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 });
   // counts in words: "1 cell", not "1 cells"
   await page.locator('section', { has: page.getByRole('heading', { name: 'Cells' }) }).getByText('1 cell · 0 background regions', { exact: true }).waitFor();
@@ -99,9 +96,7 @@ async function openWithCell(page: TrackedPage, studyId: number, fieldId: number,
 }
 
 it('opens a float32 pair (two single-channel files) and shows its scatter and live coefficients', async () => {
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'microscopist@demo.test');
-  const { studyId, coverslipId } = await demoCoverslip(page);
+  const { page, studyId, coverslipId } = await microscopistAtDemoCoverslip();
   const px = floatPair(11);
   const fieldId = await upload(
     page,
@@ -117,9 +112,7 @@ it('opens a float32 pair (two single-channel files) and shows its scatter and li
 });
 
 it('opens a 2-page float32 file and shows its scatter and live coefficients', async () => {
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'microscopist@demo.test');
-  const { studyId, coverslipId } = await demoCoverslip(page);
+  const { page, studyId, coverslipId } = await microscopistAtDemoCoverslip();
   const px = floatPair(23);
   const fieldId = await upload(page, coverslipId, [{ name: 'float-2page.tif', buffer: writeTiff([px.ch1, px.ch2], W, H, 32, 'float') }]);
   await openWithCell(page, studyId, fieldId, 'Float cell B', px, 'float-02-two-page');
@@ -127,9 +120,7 @@ it('opens a 2-page float32 file and shows its scatter and live coefficients', as
 });
 
 it('a pixel message that does not follow the format is shown as an error, not "Computing…" forever', async () => {
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'microscopist@demo.test');
-  const { studyId, coverslipId } = await demoCoverslip(page);
+  const { page, studyId, coverslipId } = await microscopistAtDemoCoverslip();
   const px = floatPair(5);
   const fieldId = await upload(page, coverslipId, [{ name: 'float-cut.tif', buffer: writeTiff([px.ch1, px.ch2], W, H, 32, 'float') }]);
   // the real answer with its last 10 bytes cut off
@@ -138,7 +129,7 @@ it('a pixel message that does not follow the format is shown as an error, not "C
     const body = await res.body();
     await route.fulfill({ response: res, body: body.subarray(0, body.length - 10) });
   });
-  await page.goto(`${srv.url}/studies/${studyId}/fields/${fieldId}`);
+  await page.goto(`${e2e.srv.url}/studies/${studyId}/fields/${fieldId}`);
   const preview = page.getByTestId('live-preview');
   const alert = preview.getByRole('alert');
   await alert.waitFor({ timeout: 20_000 });

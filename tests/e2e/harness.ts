@@ -2,9 +2,9 @@
  * Browser-test harness: the real server (server/index.ts, child process) on a random loopback port with a
  * fresh seeded DATA_DIR, and Debian's Chromium driven by playwright-core.
  *
- *   const srv = await startServer();            // { url, dataDir, stop() }
- *   const browser = await launchBrowser();
- *   const page = await newPage(browser, srv);   // page errors are collected: page.errors
+ *   const e2e = serverAndBrowser();             // one server + one Chromium per file (beforeAll/afterAll)
+ *   const srv = e2e.srv;                        // inside a test: { url, dataDir, stop() }
+ *   const page = await e2e.page();              // page errors are collected: page.errors
  *   await signIn(page, srv, 'microscopist@demo.test');
  *   await shot(page, 'workspace-01-open');      // test-results/workspace-01-open.png
  */
@@ -13,7 +13,7 @@ import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import { inject } from 'vitest';
+import { afterAll, beforeAll, inject } from 'vitest';
 import { chromium, type Browser, type Page } from 'playwright-core';
 
 export const DEMO_PASSWORD = 'syntopy-demo';
@@ -110,6 +110,44 @@ export async function startServer(opts: { env?: Record<string, string>; dataDir?
 
 export async function launchBrowser(): Promise<Browser> {
   return chromium.launch({ executablePath: CHROMIUM, headless: true, args: CHROMIUM_ARGS });
+}
+
+/** The running server and browser of one test file, readable once its beforeAll has run. */
+export interface E2E {
+  readonly srv: RunningServer;
+  readonly browser: Browser;
+  /** `newPage(browser, srv)` */
+  page(): Promise<TrackedPage>;
+}
+
+/**
+ * Starts one server (startServer(opts)) and one Chromium in the file's beforeAll and stops both in its afterAll.
+ * Call it at the top level of a test file.
+ */
+export function serverAndBrowser(opts: Parameters<typeof startServer>[0] = {}): E2E {
+  let srv: RunningServer | undefined;
+  let browser: Browser | undefined;
+  beforeAll(async () => {
+    srv = await startServer(opts);
+    browser = await launchBrowser();
+  });
+  afterAll(async () => {
+    await browser?.close();
+    await srv?.stop();
+  });
+  const ready = () => {
+    if (!srv || !browser) throw new Error('serverAndBrowser: the server and browser start in beforeAll; read them inside a test');
+    return { srv, browser };
+  };
+  return {
+    get srv() {
+      return ready().srv;
+    },
+    get browser() {
+      return ready().browser;
+    },
+    page: () => newPage(ready().browser, ready().srv),
+  };
 }
 
 export type TrackedPage = Page & { errors: string[] };

@@ -10,12 +10,10 @@
  * The describes run in order and hand state on (ids in `J`); a failing step fails the rest of its role only.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer, type TrackedPage } from './harness.js';
+import { serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
 import { tiffPages, twoChannels } from '../security/tiff.js';
 
-let srv: RunningServer;
-let browser: Browser;
+const e2e = serverAndBrowser();
 const J = {
   studyId: 0,
   coverslipId: 0,
@@ -26,14 +24,6 @@ const J = {
   excludedCellId: 0,
 };
 
-beforeAll(async () => {
-  srv = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await srv?.stop();
-});
 
 /** fetch inside the page: same origin, the page's session cookie, the browser's own Origin header */
 async function api<T = any>(page: TrackedPage, path: string, init: { method?: string; body?: unknown } = {}): Promise<{ status: number; body: T }> {
@@ -71,8 +61,8 @@ async function settled(page: TrackedPage) {
 describe('microscopist', () => {
   let page: TrackedPage;
   beforeAll(async () => {
-    page = await newPage(browser, srv);
-    await signIn(page, srv, 'microscopist@demo.test');
+    page = await e2e.page();
+    await signIn(page, e2e.srv, 'microscopist@demo.test');
     const studies = await api<{ studies: { id: number; isDemo: boolean }[] }>(page, '/api/studies');
     J.studyId = studies.body.studies.find((s) => s.isDemo)!.id;
     const study = await api<{ conditions: { coverslips: { id: number }[] }[] }>(page, `/api/studies/${J.studyId}`);
@@ -81,7 +71,7 @@ describe('microscopist', () => {
   afterAll(() => page?.context().close());
 
   it('uploads a two-channel 16-bit TIFF to a coverslip', async () => {
-    await page.goto(`${srv.url}/studies/${J.studyId}`);
+    await page.goto(`${e2e.srv.url}/studies/${J.studyId}`);
     await page.getByRole('button', { name: 'Add fields…' }).first().waitFor();
     await shot(page, 'journey-microscopist-01-study');
     await page.getByRole('button', { name: 'Add fields…' }).first().click();
@@ -101,7 +91,7 @@ describe('microscopist', () => {
   });
 
   it('outlines a cell on the new field', async () => {
-    await page.goto(`${srv.url}/studies/${J.studyId}/fields/${J.fieldId}`);
+    await page.goto(`${e2e.srv.url}/studies/${J.studyId}/fields/${J.fieldId}`);
     const viewer = page.getByTestId('field-viewer');
     await viewer.waitFor();
     await page.getByText('Loading image…').waitFor({ state: 'detached', timeout: 30_000 });
@@ -120,7 +110,7 @@ describe('microscopist', () => {
   });
 
   it('proposes a recipe and submits it for review', async () => {
-    await page.goto(`${srv.url}/recipes/new`);
+    await page.goto(`${e2e.srv.url}/recipes/new`);
     await page.getByLabel('Name').fill(J.recipeName);
     await page.getByLabel('What it is for').fill('Costes thresholds, every coefficient; proposed in the browser journey.');
     await page.getByRole('button', { name: 'Save draft' }).click();
@@ -132,7 +122,7 @@ describe('microscopist', () => {
   });
 
   it('starts a run of the new recipe on the coverslip (provisional until approved)', async () => {
-    await page.goto(`${srv.url}/runs?studyId=${J.studyId}`);
+    await page.goto(`${e2e.srv.url}/runs?studyId=${J.studyId}`);
     await page.getByLabel('Recipe').selectOption({ label: `${J.recipeName} v1 (submitted: provisional)` });
     await page.getByLabel('Measure').selectOption(`coverslip:${J.coverslipId}`);
     await shot(page, 'journey-microscopist-05-start-run');
@@ -146,7 +136,7 @@ describe('microscopist', () => {
     const detail = await api<{ provisional: boolean; measurements: number }>(page, `/api/runs/${runId}`);
     expect(detail.body.provisional).toBe(true);
     expect(detail.body.measurements).toBeGreaterThan(0);
-    await page.goto(`${srv.url}/runs?studyId=${J.studyId}&run=${runId}`);
+    await page.goto(`${e2e.srv.url}/runs?studyId=${J.studyId}&run=${runId}`);
     await settled(page);
     await shot(page, 'journey-microscopist-06-run-done');
     expect(page.errors).toEqual([]);
@@ -156,14 +146,14 @@ describe('microscopist', () => {
 describe('facility manager', () => {
   let page: TrackedPage;
   beforeAll(async () => {
-    page = await newPage(browser, srv);
-    await signIn(page, srv, 'manager@demo.test');
+    page = await e2e.page();
+    await signIn(page, e2e.srv, 'manager@demo.test');
   });
   afterAll(() => page?.context().close());
 
   it('approves the submitted recipe from the Review queue', async () => {
     expect(J.recipeId).toBeGreaterThan(0);
-    await page.goto(`${srv.url}/review`);
+    await page.goto(`${e2e.srv.url}/review`);
     await page.getByRole('link', { name: J.recipeName }).first().waitFor();
     await shot(page, 'journey-manager-01-review-queue');
     await page.getByRole('link', { name: J.recipeName }).first().click();
@@ -181,13 +171,13 @@ describe('facility manager', () => {
 describe('biologist', () => {
   let page: TrackedPage;
   beforeAll(async () => {
-    page = await newPage(browser, srv);
-    await signIn(page, srv, 'biologist@demo.test');
+    page = await e2e.page();
+    await signIn(page, e2e.srv, 'biologist@demo.test');
   });
   afterAll(() => page?.context().close());
 
   it('measures the whole study with the approved recipe', async () => {
-    await page.goto(`${srv.url}/runs?studyId=${J.studyId}`);
+    await page.goto(`${e2e.srv.url}/runs?studyId=${J.studyId}`);
     await page.getByLabel('Recipe').selectOption({ label: `${J.recipeName} v1` });
     await page.getByLabel('Measure').selectOption(`study:${J.studyId}`);
     const created = page.waitForResponse((r) => r.url().endsWith('/api/runs') && r.request().method() === 'POST');
@@ -195,13 +185,13 @@ describe('biologist', () => {
     const runId = (await (await created).json()).id as number;
     const done = await waitForRun(page, runId);
     expect(done.status, String(done.error)).toBe('done');
-    await page.goto(`${srv.url}/runs?studyId=${J.studyId}&run=${runId}`);
+    await page.goto(`${e2e.srv.url}/runs?studyId=${J.studyId}&run=${runId}`);
     await settled(page);
     await shot(page, 'journey-biologist-01-study-measured');
   });
 
   it('excludes a cell with a reason in the Cell table', async () => {
-    await page.goto(`${srv.url}/studies/${J.studyId}/cell-table?recipeId=${J.recipeId}`);
+    await page.goto(`${e2e.srv.url}/studies/${J.studyId}/cell-table?recipeId=${J.recipeId}`);
     const table = page.getByTestId('cell-table');
     await table.waitFor();
     const row = table.locator('tbody tr').filter({ has: page.getByRole('button', { name: 'Exclude…' }) }).first();
@@ -218,14 +208,14 @@ describe('biologist', () => {
   });
 
   it('compares the conditions', async () => {
-    await page.goto(`${srv.url}/studies/${J.studyId}/compare?recipeId=${J.recipeId}`);
+    await page.goto(`${e2e.srv.url}/studies/${J.studyId}/compare?recipeId=${J.recipeId}`);
     await page.getByTestId('compare-summary').waitFor({ timeout: 60_000 });
     expect(await page.getByTestId('compare-summary').innerText()).toMatch(/untreated|treated/);
     await shot(page, 'journey-biologist-04-compare');
   });
 
   it('freezes a report and shares it with the collaborator by e-mail', async () => {
-    await page.goto(`${srv.url}/studies/${J.studyId}/reports`);
+    await page.goto(`${e2e.srv.url}/studies/${J.studyId}/reports`);
     await page.getByRole('button', { name: /new report|make the first report/i }).first().click();
     await page.getByLabel('Title').fill(J.reportTitle);
     await page.getByLabel('Notes').fill('Made in the browser journey test.');
@@ -247,13 +237,13 @@ describe('biologist', () => {
 describe('collaborator', () => {
   it('opens the e-mailed link from the SMTP sink and reads the report', async () => {
     // the message as the embedded SMTP sink received it, read through the Outbox (a facility manager's view)
-    const mgr = await newPage(browser, srv);
-    await signIn(mgr, srv, 'manager@demo.test');
+    const mgr = await e2e.page();
+    await signIn(mgr, e2e.srv, 'manager@demo.test');
     const list = await api<{ messages: { id: number; to: string; via: string; subject: string }[] }>(mgr, '/api/outbox');
     const msg = list.body.messages.find((m) => m.to.includes('collaborator@demo.test') && m.subject.includes(J.reportTitle))!;
     expect(msg).toBeTruthy();
     expect(msg.via).toBe('sink');
-    await mgr.goto(`${srv.url}/outbox`);
+    await mgr.goto(`${e2e.srv.url}/outbox`);
     await mgr.getByText(msg.subject).first().waitFor();
     await shot(mgr, 'journey-collaborator-01-outbox');
     const full = await api<{ text: string }>(mgr, `/api/outbox/${msg.id}`);
@@ -261,8 +251,8 @@ describe('collaborator', () => {
     const link = /(https?:\/\/\S+\/shared\/[A-Za-z0-9_.-]+)/.exec(full.body.text)![1];
     expect(full.body.text).toContain('The frozen comparison, as promised.');
 
-    const page = await newPage(browser, srv);
-    await signIn(page, srv, 'collaborator@demo.test');
+    const page = await e2e.page();
+    await signIn(page, e2e.srv, 'collaborator@demo.test');
     await shot(page, 'journey-collaborator-02-home');
     await page.goto(link);
     await page.getByRole('heading', { name: J.reportTitle }).waitFor({ timeout: 30_000 });

@@ -4,23 +4,13 @@
  * fresh browser without an account or the app's frame; the print stylesheet hides the controls; after the link is
  * withdrawn it says so. Screenshots: test-results/share-*.png, the printed PDF: test-results/share-report.pdf.
  */
-import { afterAll, beforeAll, expect, it } from 'vitest';
+import { expect, it } from 'vitest';
 import fs from 'node:fs';
-import type { Browser } from 'playwright-core';
-import { apiSession, launchBrowser, newPage, shot, signIn, startServer, type RunningServer } from './harness.js';
+import { serverAndBrowser, apiSession, shot, signIn } from './harness.js';
 
-let srv: RunningServer;
-let browser: Browser;
-beforeAll(async () => {
-  srv = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await srv?.stop();
-});
+const e2e = serverAndBrowser();
 
-const session = (email: string) => apiSession(srv, email);
+const session = (email: string) => apiSession(e2e.srv, email);
 
 it('shares a report by e-mail and the e-mailed link opens it read-only', async () => {
   const bio = await session('biologist@demo.test');
@@ -43,9 +33,9 @@ it('shares a report by e-mail and the e-mailed link opens it read-only', async (
   }
 
   // 1. the biologist freezes a report in the browser
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'biologist@demo.test');
-  await page.goto(`${srv.url}/studies/${study.id}/reports`);
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'biologist@demo.test');
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/reports`);
   await page.getByRole('button', { name: /new report|make the first report/i }).first().click();
   await page.getByLabel('Title').fill('Treatment raises co-localization');
   await page.getByLabel('Notes').fill('Demo data; for the journey test.');
@@ -74,7 +64,7 @@ it('shares a report by e-mail and the e-mailed link opens it read-only', async (
   const link = /(https?:\/\/\S+\/shared\/[A-Za-z0-9_.-]+)/.exec(full.text)![1];
 
   // 4. a fresh browser without an account opens the link
-  const reader = await browser.newContext({ viewport: { width: 1200, height: 900 } });
+  const reader = await e2e.browser.newContext({ viewport: { width: 1200, height: 900 } });
   const rp = await reader.newPage();
   const errors: string[] = [];
   rp.on('pageerror', (e) => errors.push(e.message));

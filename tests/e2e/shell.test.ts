@@ -3,22 +3,12 @@
  * navigation, its part of Home, and (for the biologist) study structure editing end to end.
  * Screenshots: test-results/shell-*.png. (common practice)
  */
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer } from './harness.js';
+import { describe, expect, it } from 'vitest';
+import { serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
 
-let srv: RunningServer;
-let browser: Browser;
-beforeAll(async () => {
-  srv = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await srv?.stop();
-});
+const e2e = serverAndBrowser();
 
-const navOf = async (page: Awaited<ReturnType<typeof newPage>>) => {
+const navOf = async (page: TrackedPage) => {
   const nav = page.getByRole('navigation', { name: 'Main' });
   await nav.waitFor();
   return (await nav.getByRole('link').allTextContents()).map((s) => s.trim());
@@ -26,8 +16,8 @@ const navOf = async (page: Awaited<ReturnType<typeof newPage>>) => {
 
 describe('demo accounts in the browser', () => {
   it('facility manager: review queue, people, outbox', async () => {
-    const page = await newPage(browser, srv);
-    await signIn(page, srv, 'manager@demo.test');
+    const page = await e2e.page();
+    await signIn(page, e2e.srv, 'manager@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Account']);
     await page.getByRole('heading', { name: 'Facility', exact: true }).waitFor();
     await page.getByText('Recipes waiting for review').waitFor();
@@ -44,21 +34,21 @@ describe('demo accounts in the browser', () => {
   });
 
   it('microscopist: fields and runs on Home; no people or outbox', async () => {
-    const page = await newPage(browser, srv);
-    await signIn(page, srv, 'microscopist@demo.test');
+    const page = await e2e.page();
+    await signIn(page, e2e.srv, 'microscopist@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
     await page.getByRole('heading', { name: 'Imaging', exact: true }).waitFor();
     await page.getByRole('heading', { name: 'Fields waiting for cells' }).waitFor();
     await shot(page, 'shell-microscopist-home');
-    await page.goto(`${srv.url}/people`);
+    await page.goto(`${e2e.srv.url}/people`);
     await page.getByRole('heading', { name: 'Nothing here' }).waitFor();
     expect(page.errors).toEqual([]);
     await page.context().close();
   });
 
   it('biologist: own studies on Home; adds, renames, moves and deletes a condition', async () => {
-    const page = await newPage(browser, srv);
-    await signIn(page, srv, 'biologist@demo.test');
+    const page = await e2e.page();
+    await signIn(page, e2e.srv, 'biologist@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
     await page.getByRole('heading', { name: 'Your studies', exact: true }).waitFor();
     await shot(page, 'shell-biologist-home');
@@ -96,8 +86,8 @@ describe('demo accounts in the browser', () => {
   });
 
   it('collaborator: only what was shared; signs out', async () => {
-    const page = await newPage(browser, srv);
-    await signIn(page, srv, 'collaborator@demo.test');
+    const page = await e2e.page();
+    await signIn(page, e2e.srv, 'collaborator@demo.test');
     expect(await navOf(page)).toEqual(['Home', 'Studies', 'Account']);
     await page.getByRole('heading', { name: 'Shared with you', exact: true }).waitFor();
     await shot(page, 'shell-collaborator-home');
@@ -105,15 +95,15 @@ describe('demo accounts in the browser', () => {
     await page.waitForURL(/\/signin/);
     await page.getByRole('button', { name: 'Sign in' }).waitFor();
     await shot(page, 'shell-signin');
-    await page.goto(`${srv.url}/account`);
+    await page.goto(`${e2e.srv.url}/account`);
     await page.waitForURL(/\/signin\?next=%2Faccount/);
     expect(page.errors).toEqual([]);
     await page.context().close();
   });
 
   it('invitation: the manager invites, opens the mail in the Outbox, the link sets a password and signs in', async () => {
-    const page = await newPage(browser, srv);
-    await signIn(page, srv, 'manager@demo.test');
+    const page = await e2e.page();
+    await signIn(page, e2e.srv, 'manager@demo.test');
     await page.getByRole('link', { name: 'People & labs' }).click();
     await page.getByRole('button', { name: 'Invite a person' }).click();
     const dialog = page.getByRole('dialog', { name: 'Invite a person' });
@@ -132,8 +122,8 @@ describe('demo accounts in the browser', () => {
     const token = new URL(href).pathname;
     await page.context().close();
 
-    const guest = await newPage(browser, srv);
-    await guest.goto(srv.url + token);
+    const guest = await e2e.page();
+    await guest.goto(e2e.srv.url + token);
     await guest.getByRole('heading', { name: 'Welcome, New Comer' }).waitFor();
     await guest.getByLabel('New password').fill('a-fresh-password');
     await guest.getByLabel('Repeat the password').fill('a-fresh-password');

@@ -4,21 +4,11 @@
  * see it in the Cells list and saved (a reload keeps it), see its live coefficients (marked preview), drag a
  * vertex and undo it. Screenshots: test-results/workspace-*.png.
  */
-import { afterAll, beforeAll, expect, it } from 'vitest';
-import type { Browser } from 'playwright-core';
-import { launchBrowser, newPage, shot, signIn, startServer, type RunningServer, type TrackedPage } from './harness.js';
+import { expect, it } from 'vitest';
+import { serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
 import { writeTiff } from '../workspace/helpers.js';
 
-let srv: RunningServer;
-let browser: Browser;
-beforeAll(async () => {
-  srv = await startServer();
-  browser = await launchBrowser();
-});
-afterAll(async () => {
-  await browser?.close();
-  await srv?.stop();
-});
+const e2e = serverAndBrowser();
 
 async function apiGet<T>(page: TrackedPage, path: string): Promise<T> {
   return page.evaluate(async (p) => {
@@ -29,8 +19,8 @@ async function apiGet<T>(page: TrackedPage, path: string): Promise<T> {
 }
 
 it('draws a polygon, keeps it after a reload and shows its live coefficients', async () => {
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'microscopist@demo.test');
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
   // a demo field of the demo study
   const studies = await apiGet<{ studies: { id: number; isDemo?: boolean; name: string }[] }>(page, '/api/studies');
   const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
@@ -40,7 +30,7 @@ it('draws a polygon, keeps it after a reload and shows its live coefficients', a
   const field = fields.fields[0];
   const before = await apiGet<{ cells: { id: number; name: string }[] }>(page, `/api/fields/${field.id}/cells`);
 
-  await page.goto(`${srv.url}/studies/${study.id}/fields/${field.id}`);
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/fields/${field.id}`);
   const viewer = page.getByTestId('field-viewer');
   await viewer.waitFor();
   await page.getByText('Loading image…').waitFor({ state: 'detached', timeout: 30_000 });
@@ -102,13 +92,13 @@ it('draws a polygon, keeps it after a reload and shows its live coefficients', a
 });
 
 it('finds cells automatically, marks a background box, links result rows to cells, deletes and undoes by keyboard', async () => {
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'microscopist@demo.test');
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
   const studies = await apiGet<{ studies: { id: number; isDemo?: boolean }[] }>(page, '/api/studies');
   const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
   const fields = await apiGet<{ fields: { id: number }[] }>(page, `/api/studies/${study.id}/fields`);
   const field = fields.fields[1] ?? fields.fields[0];
-  await page.goto(`${srv.url}/studies/${study.id}/fields/${field.id}`);
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/fields/${field.id}`);
   await page.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 });
 
   // automatic outlines
@@ -160,8 +150,8 @@ it('finds cells automatically, marks a background box, links result rows to cell
 });
 
 it('measures the pixel scatter of a 1024 × 1024 field in the browser (whole field, then a threshold drag)', async () => {
-  const page = await newPage(browser, srv);
-  await signIn(page, srv, 'microscopist@demo.test');
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
   const studies = await apiGet<{ studies: { id: number; isDemo?: boolean }[] }>(page, '/api/studies');
   const study = studies.studies.find((s) => s.isDemo) ?? studies.studies[0];
   const detail = await apiGet<{ conditions: { coverslips: { id: number }[] }[] }>(page, `/api/studies/${study.id}`);
@@ -176,13 +166,13 @@ it('measures the pixel scatter of a 1024 × 1024 field in the browser (whole fie
     ch1[i] = a + rnd() * 500;
     ch2[i] = a * 0.7 + rnd() * 800;
   }
-  const up = await page.request.post(`${srv.url}/api/coverslips/${coverslipId}/fields`, {
+  const up = await page.request.post(`${e2e.srv.url}/api/coverslips/${coverslipId}/fields`, {
     multipart: { files: { name: 'big-1024.tif', mimeType: 'image/tiff', buffer: writeTiff([ch1, ch2], W, W, 16) } },
   });
   expect(up.status()).toBeLessThan(300);
   const body = (await up.json()) as { results: { ok: boolean; field?: { id: number } }[] };
   const fieldId = body.results[0].field!.id;
-  await page.goto(`${srv.url}/studies/${study.id}/fields/${fieldId}`);
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/fields/${fieldId}`);
   const scatterEl = page.getByTestId('pixel-scatter');
   await scatterEl.waitFor({ timeout: 60_000 });
   const section = page.locator('section[aria-label="Pixel scatter"]');

@@ -6,13 +6,12 @@
  * §14 predictor; Deflate RFC 1950/1951.
  */
 import zlib from 'node:zlib';
-import fs from 'node:fs';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { decodeChannel, decodeChannels, ImageInputError } from '../../server/images/decode.js';
 import { unpackBits, unpackLzw } from '../../server/images/codecs.js';
 import { differenceRows, lzwEncode, packBitsEncode, packBitsZeroRuns, tiffFromEntries, tiffPages, tiffStripPages, twoChannels } from './tiff.js';
+import { storedState, uploadTiffs } from './stored.js';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -20,19 +19,8 @@ beforeAll(async () => {
 });
 afterAll(() => t?.close());
 
-async function state() {
-  const q = (table: string) => (t.ctx.db.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
-  const temps: string[] = [];
-  const walk = (d: string) => {
-    for (const e of fs.existsSync(d) ? fs.readdirSync(d, { withFileTypes: true }) : []) (e.isDirectory() ? walk(path.join(d, e.name)) : temps.push(e.name));
-  };
-  walk(path.join(t.dataDir, 'tmp'));
-  return { files: q('files'), fields: q('fields'), cells: q('cells'), store: (await t.ctx.store.list()).length, temps };
-}
-
 async function upload(bytes: Buffer, name = 'bomb.tif') {
-  const agent = await t.login('microscopist');
-  return agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', bytes, { filename: name, contentType: 'image/tiff' });
+  return uploadTiffs(t, await t.login('microscopist'), [{ name, bytes }]);
 }
 
 const W = 64;
@@ -56,7 +44,7 @@ describe('LZW, PackBits and Deflate bombs are stopped at the strip size', () => 
   ];
   for (const [what, make, re] of bombs) {
     it(`upload: ${what} → 422, nothing stored`, async () => {
-      const before = await state();
+      const before = await storedState(t);
       const file = make();
       const t0 = performance.now();
       const res = await upload(file);
@@ -64,7 +52,7 @@ describe('LZW, PackBits and Deflate bombs are stopped at the strip size', () => 
       expect(res.status, JSON.stringify(res.body)).toBe(422);
       expect(res.body.error).toMatch(re);
       expect(ms).toBeLessThan(5000);
-      expect(await state()).toEqual(before);
+      expect(await storedState(t)).toEqual(before);
     });
   }
 
@@ -74,12 +62,12 @@ describe('LZW, PackBits and Deflate bombs are stopped at the strip size', () => 
     const up = await upload(tiffPages(W, H, [a, c]), 'field.tif');
     expect(up.status, JSON.stringify(up.body)).toBe(201);
     const fieldId = up.body.results[0].field.id;
-    const before = await state();
+    const before = await storedState(t);
     const bomb = tiffStripPages({ width: W, height: H, bits: 8, compression: 5, pages: [[lzwZeros()]] });
     const res = await agent.post(`/api/fields/${fieldId}/cells/import`).attach('file', bomb, { filename: 'labels.tif', contentType: 'image/tiff' });
     expect(res.status, JSON.stringify(res.body)).toBe(422);
     expect(res.body.error).toMatch(/LZW-compressed block unpacks to more than its declared 4096 bytes/);
-    expect(await state()).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
   });
 });
 

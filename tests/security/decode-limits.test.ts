@@ -5,26 +5,15 @@
  * thread). The memory case is an OME-XML description of 200,000 channel elements (11 MB): parsing it into
  * objects needs far more than a 32 MB heap.
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { tiffFromEntries, tiffPages, twoChannels } from './tiff.js';
+import { storedState } from './stored.js';
 
 function metadataBomb(elements: number) {
   const xml = '<OME><Image><Pixels SizeC="2" SizeZ="1" SizeT="1" DimensionOrder="XYCZT">' + '<Channel Name="c" ID="Channel:0:0" SamplesPerPixel="1"/>'.repeat(elements) + '</Pixels></Image></OME>';
   const desc = Buffer.from(xml + '\0');
   return tiffFromEntries([[256, 4, 1, 1], [257, 4, 1, 1], [258, 3, 1, 8], [270, 2, desc.length, 'blob'], [273, 4, 1, -1], [277, 3, 1, 1], [279, 4, 1, 1]], desc, new Uint8Array(1));
-}
-
-async function state(t: TestApp) {
-  const q = (table: string) => (t.ctx.db.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
-  const temps: string[] = [];
-  const walk = (d: string) => {
-    for (const e of fs.existsSync(d) ? fs.readdirSync(d, { withFileTypes: true }) : []) (e.isDirectory() ? walk(path.join(d, e.name)) : temps.push(e.name));
-  };
-  walk(path.join(t.dataDir, 'tmp'));
-  return { files: q('files'), fields: q('fields'), store: (await t.ctx.store.list()).length, temps };
 }
 
 const [a, c] = twoChannels(16, 16);
@@ -42,11 +31,11 @@ describe('heap limit', () => {
     const url = `/api/coverslips/${t.world.coverslipA}/fields`;
     // the thread starts and decodes a genuine file within the limit
     expect((await agent.post(url).attach('files', good(), 'first.tif')).status).toBe(201);
-    const before = await state(t);
+    const before = await storedState(t);
     const res = await agent.post(url).attach('files', metadataBomb(200_000), 'bomb.tif');
     expect(res.status, JSON.stringify(res.body)).toBe(422);
     expect(res.body.error).toBe('decoding "bomb.tif" needed more than the 32 MB of memory allowed for decoding one upload and was stopped');
-    expect(await state(t)).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
     // the web server answers, and the next upload is decoded by a fresh thread
     expect((await agent.get('/api/health')).status).toBe(200);
     expect((await agent.get(`/api/coverslips/${t.world.coverslipA}/fields`)).body.fields).toHaveLength(1);
@@ -73,11 +62,11 @@ describe('time limit', () => {
 
   it('decoding that overruns DECODE_TIMEOUT_MS is stopped with a one-line 422 and nothing is stored', async () => {
     const agent = await t.login('microscopist');
-    const before = await state(t);
+    const before = await storedState(t);
     const res = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', good(), 'slow.tif');
     expect(res.status, JSON.stringify(res.body)).toBe(422);
     expect(res.body.error).toBe('decoding "slow.tif" took longer than the 1 ms allowed for decoding one upload and was stopped');
-    expect(await state(t)).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
     expect((await agent.get('/api/health')).status).toBe(200);
     expect((await agent.get(`/api/studies/${t.world.studyA}/fields`)).status).toBe(200);
   });

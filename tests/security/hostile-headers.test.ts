@@ -4,13 +4,12 @@
  * is allocated, so each hostile file gets a 4xx within a second and the server keeps serving. Ends with a
  * seeded header fuzzer over a valid two-page TIFF. TIFF structure per TIFF 6.0 (Adobe 1992) §2.
  */
-import fs from 'node:fs';
-import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { Xoshiro128 } from '../../shared/analysis/prng.js';
 import { MAX_PAGES, MAX_PLANES, MAX_SAMPLES_PER_PIXEL } from '../../server/images/tiff-header.js';
 import { lzwEncode, tiffFromEntries, tiffPages, tiffStripPages, twoChannels } from './tiff.js';
+import { storedState, uploadTiffs } from './stored.js';
 
 const MAX_DECODED = 32 * 2 ** 20;
 let t: TestApp;
@@ -24,21 +23,11 @@ beforeAll(async () => {
 });
 afterAll(() => t?.close());
 
-async function counts() {
-  const q = (table: string) => (t.ctx.db.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
-  const temps: string[] = [];
-  const walk = (d: string) => {
-    for (const e of fs.existsSync(d) ? fs.readdirSync(d, { withFileTypes: true }) : []) (e.isDirectory() ? walk(path.join(d, e.name)) : temps.push(e.name));
-  };
-  walk(path.join(t.dataDir, 'tmp'));
-  return { files: q('files'), fields: q('fields'), store: (await t.ctx.store.list()).length, temps };
-}
-
 let agent: Awaited<ReturnType<TestApp['login']>>;
 async function upload(bytes: Buffer, name = 'hostile.tif') {
   agent ??= await t.login('microscopist');
   const t0 = performance.now();
-  const res = await agent.post(`/api/coverslips/${t.world.coverslipA}/fields`).attach('files', bytes, { filename: name, contentType: 'image/tiff' });
+  const res = await uploadTiffs(t, agent, [{ name, bytes }]);
   return { res, ms: performance.now() - t0 };
 }
 
@@ -68,12 +57,12 @@ describe('counts that size allocations are checked first', () => {
   ];
   for (const [what, make, status, re] of cases) {
     it(`${what} → ${status} in under a second, nothing stored`, async () => {
-      const before = await counts();
+      const before = await storedState(t);
       const { res, ms } = await upload(make());
       expect(res.status, JSON.stringify(res.body)).toBe(status);
       expect(res.body.error).toMatch(re);
       expect(ms).toBeLessThan(1000);
-      expect(await counts()).toEqual(before);
+      expect(await storedState(t)).toEqual(before);
     });
   }
 });
@@ -83,7 +72,7 @@ describe('page count and pages × pixels', () => {
     const pages = Array.from({ length: 65_535 }, (_, i) => Uint16Array.of(i));
     const file = tiffPages(1, 1, pages);
     expect(file.length).toBeGreaterThan(8_000_000);
-    const before = await counts();
+    const before = await storedState(t);
     // CPU time of this process (client, server and decoding thread together), robust to a busy machine
     const cpu0 = process.cpuUsage();
     const { res, ms } = await upload(file, 'pages.tif');
@@ -92,7 +81,7 @@ describe('page count and pages × pixels', () => {
     expect(res.body.error).toMatch(/more than 10000 pages/);
     expect((cpu.user + cpu.system) / 1000).toBeLessThan(1000);
     expect(ms).toBeLessThan(5000);
-    expect(await counts()).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
   });
   it(`exactly ${MAX_PAGES} pages (${MAX_PLANES} planes) is still read`, async () => {
     const pages = Array.from({ length: MAX_PAGES }, (_, i) => Uint16Array.of(i, i + 1, i + 2, i + 3));
@@ -106,12 +95,12 @@ describe('page count and pages × pixels', () => {
     const strip = lzwEncode(new Uint8Array(W * W * 2));
     const ok = await upload(tiffStripPages({ width: W, height: W, bits: 16, compression: 5, pages: [[strip], [strip], [strip]] }), 'three.tif');
     expect(ok.res.status, JSON.stringify(ok.res.body)).toBe(201);
-    const before = await counts();
+    const before = await storedState(t);
     const { res, ms } = await upload(tiffStripPages({ width: W, height: W, bits: 16, compression: 5, pages: [[strip], [strip], [strip], [strip], [strip]] }), 'five.tif');
     expect(res.status, JSON.stringify(res.body)).toBe(413);
     expect(res.body.error).toMatch(/\(5 pages\) would unpack to 4\.19e\+7 bytes, more than the limit of 33554432 bytes per file/);
     expect(ms).toBeLessThan(1000);
-    expect(await counts()).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
   });
 });
 

@@ -3,14 +3,13 @@
  * logs no error, stores nothing (no files/fields rows, no store object, no temp file) and keeps serving.
  * Checked for the field upload and the label import, over a real socket.
  */
-import fs from 'node:fs';
 import http from 'node:http';
 import net from 'node:net';
-import path from 'node:path';
 import type { AddressInfo } from 'node:net';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { makeTestApp, TEST_PASSWORD, type TestApp } from '../utils/app.js';
 import { tiffPages, twoChannels } from './tiff.js';
+import { storedState } from './stored.js';
 
 let t: TestApp;
 let server: http.Server;
@@ -33,16 +32,6 @@ afterAll(async () => {
   await new Promise((r) => server.close(r));
   await t?.close();
 });
-
-async function state() {
-  const q = (table: string) => (t.ctx.db.$client.prepare(`select count(*) as n from ${table}`).get() as { n: number }).n;
-  const temps: string[] = [];
-  const walk = (d: string) => {
-    for (const e of fs.existsSync(d) ? fs.readdirSync(d, { withFileTypes: true }) : []) (e.isDirectory() ? walk(path.join(d, e.name)) : temps.push(e.name));
-  };
-  walk(path.join(t.dataDir, 'tmp'));
-  return { files: q('files'), fields: q('fields'), cells: q('cells'), store: (await t.ctx.store.list()).length, temps };
-}
 
 /** Sends the headers and the first `sent` bytes of a multipart body declared as `declared` bytes, then hangs up. */
 async function hangUp(url: string, part: string, file: Buffer) {
@@ -76,11 +65,11 @@ describe('a client hanging up mid-upload', () => {
 
   it('field upload: one info line, no error, nothing stored, server still serving', async () => {
     const info = vi.spyOn(console, 'info');
-    const before = await state();
+    const before = await storedState(t);
     await hangUp(`/api/coverslips/${t.world.coverslipA}/fields`, 'files', file);
-    await settle(async () => info.mock.calls.length > 0 && (await state()).temps.length === 0);
+    await settle(async () => info.mock.calls.length > 0 && (await storedState(t)).temps.length === 0);
     await new Promise((r) => setTimeout(r, 200));
-    expect(await state()).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
     const lines = info.mock.calls.map((x) => x.join(' '));
     expect(lines).toHaveLength(1);
     expect(lines[0]).toMatch(/^\[syntopy\] the client closed the connection during POST \/api\/coverslips\/\d+\/fields; nothing was stored$/);
@@ -94,11 +83,11 @@ describe('a client hanging up mid-upload', () => {
     expect(up.status).toBe(201);
     const fieldId = up.body.results[0].field.id;
     const info = vi.spyOn(console, 'info');
-    const before = await state();
+    const before = await storedState(t);
     await hangUp(`/api/fields/${fieldId}/cells/import`, 'file', file);
     await settle(async () => info.mock.calls.length > 0);
     await new Promise((r) => setTimeout(r, 200));
-    expect(await state()).toEqual(before);
+    expect(await storedState(t)).toEqual(before);
     const lines = info.mock.calls.map((x) => x.join(' '));
     expect(lines).toHaveLength(1);
     expect(lines[0]).toMatch(/^\[syntopy\] the client closed the connection during POST \/api\/fields\/\d+\/cells\/import; nothing was stored$/);

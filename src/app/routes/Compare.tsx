@@ -1,14 +1,13 @@
 /** Route module: Compare — one coefficient across the study's conditions, coverslips as replicates. */
-import { useEffect, useId, useState } from 'react';
 import { useParams, useSearchParams } from 'react-router';
-import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass } from '@/components';
+import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass, BoxMessage, useNumberBox } from '@/components';
 import { useStudy } from '@/features/studies';
 import { SourceSelect } from '@/features/cell-table';
 import { useComparison } from '@/features/compare';
 import { ComparePanel } from '@/features/compare';
 import { COMPARE_COEFFICIENTS, CompareQuery } from '@shared/schemas/compare';
 import { labelOf } from '@shared/coefficients';
-import { NumberTextFor, readNumberText } from '@shared/schemas/common';
+import { NumberTextFor } from '@shared/schemas/common';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 
@@ -90,35 +89,14 @@ const SEED = NumberTextFor('Bootstrap seed', CompareQuery.shape.seed.unwrap());
  * 2³² − 1); a refused text stays in the box with a message beside it and the comparison keeps its last seed.
  */
 export function SeedBox({ value, onChange }: { value: string; onChange: (v: string) => void }) {
-  const [text, setText] = useState(value);
-  const [error, setError] = useState<string | null>(null);
-  useEffect(() => {
-    setText((t) => (readNumberText(SEED, t).value === Number(value) ? t : value));
-  }, [value]);
-  const id = useId();
+  const box = useNumberBox({ schema: SEED, value: Number(value), onChange: (n) => onChange(String(n)) });
   return (
     <div className="flex flex-col gap-1 text-sm font-medium">
       <label className="flex flex-col gap-1">
         Bootstrap seed
-        <input
-          className={`${inputClass(!!error)} w-28`}
-          inputMode="numeric"
-          value={text}
-          aria-invalid={!!error}
-          aria-describedby={error ? id : undefined}
-          onChange={(e) => {
-            setText(e.target.value);
-            const r = readNumberText(SEED, e.target.value);
-            setError(r.error);
-            if (r.value !== null) onChange(String(r.value));
-          }}
-        />
+        <input className={`${inputClass(!!box.error)} w-28`} inputMode="numeric" {...box.input} />
       </label>
-      {error && (
-        <p id={id} role="alert" className="max-w-xs text-xs font-normal text-danger">
-          {error}
-        </p>
-      )}
+      <BoxMessage box={box} className="max-w-xs text-xs font-normal text-danger" />
     </div>
   );
 }

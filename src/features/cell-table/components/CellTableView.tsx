@@ -237,30 +237,8 @@ export function CellTableView({ study }: { study: StudyDetail }) {
             ))}
           </select>
         </label>
-        <div className="w-24">
-          <input
-            aria-label="from"
-            aria-invalid={rangeError?.box === 'from'}
-            aria-describedby={rangeError?.box === 'from' ? rangeErrorId : undefined}
-            className={inputClass(rangeError?.box === 'from')}
-            inputMode="decimal"
-            placeholder="from"
-            value={rangeMin}
-            onChange={(e) => setRangeMin(e.target.value)}
-          />
-        </div>
-        <div className="w-24">
-          <input
-            aria-label="to"
-            aria-invalid={rangeError?.box === 'to'}
-            aria-describedby={rangeError?.box === 'to' ? rangeErrorId : undefined}
-            className={inputClass(rangeError?.box === 'to')}
-            inputMode="decimal"
-            placeholder="to"
-            value={rangeMax}
-            onChange={(e) => setRangeMax(e.target.value)}
-          />
-        </div>
+        <RangeBox which="from" value={rangeMin} onChange={setRangeMin} errorId={rangeError?.box === 'from' ? rangeErrorId : undefined} />
+        <RangeBox which="to" value={rangeMax} onChange={setRangeMax} errorId={rangeError?.box === 'to' ? rangeErrorId : undefined} />
         <Button type="submit" size="sm">
           Add range
         </Button>
@@ -407,6 +385,24 @@ export function CellTableView({ study }: { study: StudyDetail }) {
       <MeasurementCautions saturatedCells={saturatedOnPage} where="on this page" />
 
       <ExcludeDialog cellName={excluding ? `${excluding.cell} (${excluding.field})` : ''} open={!!excluding} onClose={() => setExcluding(null)} onSubmit={doExclude} />
+    </div>
+  );
+}
+
+/** One end of the value-range filter; `errorId` (the message's id) is set while this end is refused. */
+function RangeBox({ which, value, onChange, errorId }: { which: 'from' | 'to'; value: string; onChange: (text: string) => void; errorId: string | undefined }) {
+  return (
+    <div className="w-24">
+      <input
+        aria-label={which}
+        aria-invalid={errorId !== undefined}
+        aria-describedby={errorId}
+        className={inputClass(errorId !== undefined)}
+        inputMode="decimal"
+        placeholder={which}
+        value={value}
+        onChange={(e) => onChange(e.target.value)}
+      />
     </div>
   );
 }

@@ -8,7 +8,8 @@ import { Dialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
 import { UploadChannelRef, type UploadFieldPlan } from '@shared/schemas/fields';
-import { NumberTextFor, readNumberText } from '@shared/schemas/common';
+import { NumberTextFor } from '@shared/schemas/common';
+import { BoxMessage, useNumberBox } from '@/components/NumberBox';
 import { useUploadFields } from '../api/useUploadFields';
 import { formatBytes, inspectTiff, type FileChannels } from '../lib/inspect';
 import { plural } from '@shared/format/plural';
@@ -22,30 +23,11 @@ const CHANNEL = NumberTextFor('Channel', UploadChannelRef.shape.channel.unwrap()
  * plan's bound; a refused text stays with a message beside it and the row keeps its last valid channel.
  */
 function ChannelBox({ value, disabled, onChange }: { value: number; disabled: boolean; onChange: (n: number) => void }) {
-  const [text, setText] = useState(String(value));
-  const [error, setError] = useState<string | null>(null);
-  const id = useId();
+  const box = useNumberBox({ schema: CHANNEL, value, onChange });
   return (
     <>
-      <input
-        className={inputClass(!!error)}
-        inputMode="numeric"
-        value={text}
-        disabled={disabled}
-        aria-invalid={!!error}
-        aria-describedby={error ? id : undefined}
-        onChange={(e) => {
-          setText(e.target.value);
-          const r = readNumberText(CHANNEL, e.target.value);
-          setError(r.error);
-          if (r.value !== null) onChange(r.value);
-        }}
-      />
-      {error && (
-        <span id={id} role="alert" className="block text-xs text-danger">
-          {error}
-        </span>
-      )}
+      <input className={inputClass(!!box.error)} inputMode="numeric" disabled={disabled} {...box.input} />
+      <BoxMessage box={box} as="span" className="block text-xs text-danger" />
     </>
   );
 }

@@ -2,9 +2,8 @@
  * The recipe settings form: one block per setting with its controls and, under them, the sentence that says
  * what the current value does (describeSetting, the same words the methods paragraph uses).
  */
-import { useEffect, useId, useState } from 'react';
-import { cx, inputClass } from '@/components';
-import { NumberText, NumberTextFor, readNumberText } from '@shared/schemas/common';
+import { BoxMessage, cx, inputClass, useNumberBox, type NumberBox } from '@/components';
+import { NumberText, NumberTextFor } from '@shared/schemas/common';
 import {
   BlockSizeSetting,
   COEFFICIENTS,
@@ -36,36 +35,19 @@ function Choice<T extends string>({ name, value, options, onChange, disabled }: 
  * when step is 1); a refused text stays in the box with a message and the recipe keeps its last valid value.
  */
 function Num({ label, value, onChange, disabled, step = 'any', min, max, minExclusive }: { label: string; value: number; onChange: (n: number) => void; disabled?: boolean; step?: string; min?: number; max?: number; minExclusive?: boolean }) {
-  const [text, setText] = useState(String(value));
-  const [error, setError] = useState<string | null>(null);
-  useEffect(() => {
-    setText((t) => (readNumberText(NumberText(label), t).value === value ? t : String(value)));
-  }, [value, label]);
-  const id = useId();
+  const box = useNumberBox({ schema: NumberText(label, { min, max, minExclusive, integer: step === '1' }), value, onChange });
+  return <NumField label={label} box={box} disabled={disabled} inputMode={step === '1' ? 'numeric' : 'decimal'} />;
+}
+
+/** The layout of a numeric setting: its label and box on one line, the message under them. */
+function NumField({ label, box, disabled, inputMode }: { label: string; box: NumberBox; disabled?: boolean; inputMode: 'numeric' | 'decimal' }) {
   return (
     <div className="text-sm">
       <label className="flex items-center gap-2">
         <span className="text-ink-soft">{label}</span>
-        <input
-          className={cx(inputClass(!!error), 'w-28')}
-          inputMode={step === '1' ? 'numeric' : 'decimal'}
-          value={text}
-          disabled={disabled}
-          aria-invalid={!!error}
-          aria-describedby={error ? id : undefined}
-          onChange={(e) => {
-            setText(e.target.value);
-            const r = readNumberText(NumberText(label, { min, max, minExclusive, integer: step === '1' }), e.target.value);
-            setError(r.error);
-            if (r.value !== null) onChange(r.value);
-          }}
-        />
+        <input className={cx(inputClass(!!box.error), 'w-28')} inputMode={inputMode} disabled={disabled} {...box.input} />
       </label>
-      {error && (
-        <p id={id} role="alert" className="mt-1 text-xs text-danger">
-          {error}
-        </p>
-      )}
+      <BoxMessage box={box} className="mt-1 text-xs text-danger" />
     </div>
   );
 }
@@ -77,42 +59,8 @@ function Num({ label, value, onChange, disabled, step = 'any', min, max, minExcl
  */
 const PIXEL_SIZE = NumberTextFor('Pixel size', BlockSizeSetting.options[1].shape.pixelSizeUm.unwrap().unwrap());
 function PixelSizeBox({ value, onChange, disabled }: { value: number | null; onChange: (n: number | null) => void; disabled?: boolean }) {
-  const [text, setText] = useState(value === null ? '' : String(value));
-  const [error, setError] = useState<string | null>(null);
-  useEffect(() => {
-    setText((t) => (t.trim() === '' ? value === null : readNumberText(PIXEL_SIZE, t).value === value) ? t : value === null ? '' : String(value));
-  }, [value]);
-  const id = useId();
-  return (
-    <div className="text-sm">
-      <label className="flex items-center gap-2">
-        <span className="text-ink-soft">Pixel size (µm, empty: from each field)</span>
-        <input
-          className={cx(inputClass(!!error), 'w-28')}
-          inputMode="decimal"
-          value={text}
-          disabled={disabled}
-          aria-invalid={!!error}
-          aria-describedby={error ? id : undefined}
-          onChange={(e) => {
-            setText(e.target.value);
-            if (e.target.value.trim() === '') {
-              setError(null);
-              return onChange(null);
-            }
-            const r = readNumberText(PIXEL_SIZE, e.target.value);
-            setError(r.error);
-            if (r.value !== null) onChange(r.value);
-          }}
-        />
-      </label>
-      {error && (
-        <p id={id} role="alert" className="mt-1 text-xs text-danger">
-          {error}
-        </p>
-      )}
-    </div>
-  );
+  const box = useNumberBox({ schema: PIXEL_SIZE, value, onChange, emptyIsNull: true });
+  return <NumField label="Pixel size (µm, empty: from each field)" box={box} disabled={disabled} inputMode="decimal" />;
 }
 
 export function SettingsEditor({ value: s, onChange, readOnly }: Props) {

@@ -1,7 +1,7 @@
 /** Freeze the study's current comparison into a report: title, notes, the coefficients to show. */
 import { useState } from 'react';
 import { useNavigate } from 'react-router';
-import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
+import { Button, ErrorNotice, FormDialog, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
 import { labelOf } from '@shared/coefficients';
 import { CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
@@ -32,43 +32,36 @@ export function CreateReportDialog({ studyId, open, onClose, initialCoefficients
     );
   };
   return (
-    <Dialog
+    <FormDialog
       open={open}
       onClose={onClose}
       title="New report"
       description="A report freezes today's numbers, plots, recipe versions and exclusions. Later runs or exclusions do not change it; make a newer report to show them."
-      footer={
-        <>
-          <Button onClick={onClose}>Cancel</Button>
-          <Button variant="primary" type="submit" form="create-report" pending={create.isPending}>
-            Freeze report
-          </Button>
-        </>
-      }
+      submitLabel="Freeze report"
+      pending={create.isPending}
+      onSubmit={submit} noValidate
     >
-      <form id="create-report" onSubmit={submit} noValidate className="flex flex-col gap-4">
-        <TextField label="Title" value={title} onChange={(e) => setTitle(e.target.value)} required maxLength={200} error={fieldError('title')} data-autofocus />
-        <TextArea label="Notes" hint="Shown under the title (optional)." value={notes} onChange={(e) => setNotes(e.target.value)} rows={3} maxLength={10000} />
-        <fieldset>
-          <legend className="text-sm font-medium">Coefficients</legend>
-          <div className="mt-1 grid grid-cols-2 gap-1">
-            {REPORT_COEFFICIENTS.map((k) => (
-              <label key={k} className="flex items-center gap-2 text-sm">
-                <input type="checkbox" checked={coefs.includes(k)} onChange={(e) => setCoefs(e.target.checked ? [...coefs, k] : coefs.filter((x) => x !== k))} />
-                {labelOf(k)}
-              </label>
-            ))}
-          </div>
-          {fieldError('coefficients') && <p className="mt-1 text-xs font-medium text-danger">{fieldError('coefficients')}</p>}
-        </fieldset>
-        {create.error && !err?.issues.length && <ErrorNotice error={create.error} />}
-        {create.isPending && (
-          <p role="status" className="text-sm text-ink-soft">
-            Freezing the report: the comparison, figures and methods are computed now; this takes a few seconds.
-          </p>
-        )}
-      </form>
-    </Dialog>
+      <TextField label="Title" value={title} onChange={(e) => setTitle(e.target.value)} required maxLength={200} error={fieldError('title')} data-autofocus />
+      <TextArea label="Notes" hint="Shown under the title (optional)." value={notes} onChange={(e) => setNotes(e.target.value)} rows={3} maxLength={10000} />
+      <fieldset>
+        <legend className="text-sm font-medium">Coefficients</legend>
+        <div className="mt-1 grid grid-cols-2 gap-1">
+          {REPORT_COEFFICIENTS.map((k) => (
+            <label key={k} className="flex items-center gap-2 text-sm">
+              <input type="checkbox" checked={coefs.includes(k)} onChange={(e) => setCoefs(e.target.checked ? [...coefs, k] : coefs.filter((x) => x !== k))} />
+              {labelOf(k)}
+            </label>
+          ))}
+        </div>
+        {fieldError('coefficients') && <p className="mt-1 text-xs font-medium text-danger">{fieldError('coefficients')}</p>}
+      </fieldset>
+      {create.error && !err?.issues.length && <ErrorNotice error={create.error} />}
+      {create.isPending && (
+        <p role="status" className="text-sm text-ink-soft">
+          Freezing the report: the comparison, figures and methods are computed now; this takes a few seconds.
+        </p>
+      )}
+    </FormDialog>
   );
 }
 

@@ -1,6 +1,6 @@
 /** E-mail the report: addresses, a message, how long the links work, and optionally read access to the study. */
 import { useState } from 'react';
-import { Button, Dialog, ErrorNotice, TextArea, TextField } from '@/components';
+import { ErrorNotice, FormDialog, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
 import { CreateShareRequest, DEFAULT_SHARE_DAYS } from '@shared/schemas/shares';
 import { NumberTextFor, readNumberText } from '@shared/schemas/common';
@@ -30,36 +30,29 @@ export function ShareDialog({ reportId, open, onClose }: { reportId: number; ope
     share.mutate({ emails: splitAddresses(emails), message, expiresInDays: daysChecked.value, inviteToStudy: invite }, { onSuccess: (r) => (r.notSent.length ? undefined : onClose()) });
   };
   return (
-    <Dialog
+    <FormDialog
       open={open}
       onClose={onClose}
       title="Share by e-mail"
       description="Each person gets a personal link that opens this report read-only, without an account. You can withdraw a link at any time; every opening is recorded."
-      footer={
-        <>
-          <Button onClick={onClose}>Cancel</Button>
-          <Button variant="primary" type="submit" form="share-report" pending={share.isPending}>
-            Send links
-          </Button>
-        </>
-      }
+      submitLabel="Send links"
+      pending={share.isPending}
+      onSubmit={submit}
     >
-      <form id="share-report" onSubmit={submit} className="flex flex-col gap-4">
-        <TextArea label="E-mail addresses" hint="One or more, separated by commas or new lines." value={emails} onChange={(e) => setEmails(e.target.value)} rows={2} required error={emailError} data-autofocus />
-        <TextArea label="Message" hint="Included in the e-mail (optional)." value={message} onChange={(e) => setMessage(e.target.value)} rows={3} maxLength={5000} />
-        <TextField label="Links work for (days)" inputMode="numeric" value={days} onChange={(e) => setDays(e.target.value)} error={daysChecked.error ?? err?.fieldError('expiresInDays')} />
-        <label className="flex items-start gap-2 text-sm">
-          <input type="checkbox" className="mt-1" checked={invite} onChange={(e) => setInvite(e.target.checked)} />
-          <span>
-            Also give them a read-only account for this study
-            <span className="block text-xs text-ink-soft">They can then see this study's fields, cells and reports, nothing else. New people get an invitation to choose a password.</span>
-          </span>
-        </label>
-        {share.data && share.data.notSent.length > 0 && (
-          <ErrorNotice error={`The links were made, but the e-mail to ${share.data.notSent.join(', ')} could not be sent. Close this and use "Send again" in the links table.`} />
-        )}
-        {share.error && !emailError && !err?.fieldError('expiresInDays') && <ErrorNotice error={share.error} />}
-      </form>
-    </Dialog>
+      <TextArea label="E-mail addresses" hint="One or more, separated by commas or new lines." value={emails} onChange={(e) => setEmails(e.target.value)} rows={2} required error={emailError} data-autofocus />
+      <TextArea label="Message" hint="Included in the e-mail (optional)." value={message} onChange={(e) => setMessage(e.target.value)} rows={3} maxLength={5000} />
+      <TextField label="Links work for (days)" inputMode="numeric" value={days} onChange={(e) => setDays(e.target.value)} error={daysChecked.error ?? err?.fieldError('expiresInDays')} />
+      <label className="flex items-start gap-2 text-sm">
+        <input type="checkbox" className="mt-1" checked={invite} onChange={(e) => setInvite(e.target.checked)} />
+        <span>
+          Also give them a read-only account for this study
+          <span className="block text-xs text-ink-soft">They can then see this study's fields, cells and reports, nothing else. New people get an invitation to choose a password.</span>
+        </span>
+      </label>
+      {share.data && share.data.notSent.length > 0 && (
+        <ErrorNotice error={`The links were made, but the e-mail to ${share.data.notSent.join(', ')} could not be sent. Close this and use "Send again" in the links table.`} />
+      )}
+      {share.error && !emailError && !err?.fieldError('expiresInDays') && <ErrorNotice error={share.error} />}
+    </FormDialog>
   );
 }

@@ -95,7 +95,19 @@ export function RangeControl({ label, tone, top, dataRange, value, auto, onChang
   const untouched = () => (value ? lo === fmt(value[0]) && hi === fmt(value[1]) : lo === '' && hi === '');
   const commitBoxes = () => (untouched() ? setError(null) : commit(lo, hi));
   const step = top > 1000 ? 1 : top / 1000;
-  const box = 'w-20 rounded border border-ink/20 px-1.5 py-0.5 font-mono aria-[invalid=true]:border-danger';
+  const boundBox = (which: 'lo' | 'hi', bound: 'minimum' | 'maximum', text: string, setText: (t: string) => void) => (
+    <input
+      aria-label={`${label} display ${bound} value`}
+      aria-invalid={error?.box === which}
+      aria-describedby={error?.box === which ? errorId : undefined}
+      inputMode="decimal"
+      className="w-20 rounded border border-ink/20 px-1.5 py-0.5 font-mono aria-[invalid=true]:border-danger"
+      value={text}
+      onChange={(e) => setText(e.target.value)}
+      onBlur={commitBoxes}
+      onKeyDown={(e) => e.key === 'Enter' && commitBoxes()}
+    />
+  );
   return (
     <fieldset className="space-y-1">
       <legend className={cx('flex w-full items-center justify-between text-xs font-medium', tone)}>
@@ -111,29 +123,9 @@ export function RangeControl({ label, tone, top, dataRange, value, auto, onChang
         <input type="range" aria-label={`${label} display maximum`} min={dataMin} max={dataMax} step={step} value={Number(hi) || dataMax} onChange={(e) => (setHi(e.target.value), commit(lo, e.target.value))} className="w-full accent-[#0f766e]" />
       </div>
       <div className="flex items-center gap-2 text-xs">
-        <input
-          aria-label={`${label} display minimum value`}
-          aria-invalid={error?.box === 'lo'}
-          aria-describedby={error?.box === 'lo' ? errorId : undefined}
-          inputMode="decimal"
-          className={box}
-          value={lo}
-          onChange={(e) => setLo(e.target.value)}
-          onBlur={commitBoxes}
-          onKeyDown={(e) => e.key === 'Enter' && commitBoxes()}
-        />
+        {boundBox('lo', 'minimum', lo, setLo)}
         <span className="text-ink-faint">to</span>
-        <input
-          aria-label={`${label} display maximum value`}
-          aria-invalid={error?.box === 'hi'}
-          aria-describedby={error?.box === 'hi' ? errorId : undefined}
-          inputMode="decimal"
-          className={box}
-          value={hi}
-          onChange={(e) => setHi(e.target.value)}
-          onBlur={commitBoxes}
-          onKeyDown={(e) => e.key === 'Enter' && commitBoxes()}
-        />
+        {boundBox('hi', 'maximum', hi, setHi)}
         {auto && <span className="text-ink-faint">(automatic)</span>}
       </div>
       {error && (
