@@ -113,21 +113,21 @@ export function regionIndexList(region: Uint8Array | ArrayLike<number> | null, n
 }
 
 /**
- * Median of Float32 values given as their bit patterns (a Uint32Array view of the Float32Array), exact: the
+ * Median of Float32 values given as their bit patterns (an Int32Array view of the Float32Array), exact: the
  * mean of the two middle values for an even count. The bits are mapped to keys that sort as the numbers do
  * (sign bit set: all bits flipped; otherwise the sign bit set); one counting pass over the top 16 key bits
  * finds the bucket of each middle rank, a second over the low 16 bits of that bucket's keys the exact key —
  * the order statistic itself, not an estimate (counting sort by digits; Knuth, The Art of Computer
  * Programming vol. 3, 1998, §5.2.5). Two linear passes, the values untouched.
  */
-export function medianOfFloat32Bits(bits: Uint32Array): number {
+export function medianOfFloat32Bits(bits: Int32Array): number {
   const n = bits.length;
   if (n === 0) throw new RangeError('median of no values');
   const kHi = n >> 1, kLo = n % 2 ? kHi : kHi - 1;
   const hist = new Uint32Array(65536);
   for (let i = 0; i < n; i++) {
     const u = bits[i];
-    hist[(u & 0x80000000 ? ~u : u | 0x80000000) >>> 16]++;
+    hist[(u < 0 ? ~u : u ^ -0x80000000) >>> 16]++;
   }
   // bucket and rank within it of kLo and kHi
   let bLo = -1, bHi = -1, rLo = 0, rHi = 0;
@@ -147,7 +147,7 @@ export function medianOfFloat32Bits(bits: Uint32Array): number {
   const lowLo = new Uint32Array(65536), lowHi = bLo === bHi ? lowLo : new Uint32Array(65536);
   for (let i = 0; i < n; i++) {
     const u = bits[i];
-    const key = (u & 0x80000000 ? ~u : u | 0x80000000) >>> 0;
+    const key = u < 0 ? ~u : u ^ -0x80000000;
     const b = key >>> 16;
     if (b === bLo) lowLo[key & 0xffff]++;
     else if (b === bHi) lowHi[key & 0xffff]++;
@@ -158,15 +158,15 @@ export function medianOfFloat32Bits(bits: Uint32Array): number {
       below += low[l];
       if (r < below) break;
     }
-    const key = ((bucket << 16) | l) >>> 0;
-    KEY_BITS[0] = key & 0x80000000 ? key ^ 0x80000000 : ~key;
+    const key = (bucket << 16) | l;
+    KEY_BITS[0] = key < 0 ? key ^ -0x80000000 : ~key;
     return KEY_FLOAT[0];
   };
   const hi = value(bHi, lowHi, rHi);
   return kLo === kHi ? hi : (value(bLo, lowLo, rLo) + hi) / 2;
 }
 const KEY_FLOAT = new Float32Array(1);
-const KEY_BITS = new Uint32Array(KEY_FLOAT.buffer);
+const KEY_BITS = new Int32Array(KEY_FLOAT.buffer);
 
 /**
  * @param region mask (non-zero inside, full size), linear pixel indices, or null for the whole image
@@ -231,10 +231,10 @@ export function detectSpots(
     vals = new Float32Array(n);
     for (let t = 0; t < n; t++) vals[t] = resp[at(idx[t])];
   }
-  const med = medianOfFloat32Bits(new Uint32Array(vals.buffer, vals.byteOffset, n));
+  const med = medianOfFloat32Bits(new Int32Array(vals.buffer, vals.byteOffset, n));
   const dev = idx === null ? new Float32Array(n) : vals;
   for (let t = 0; t < n; t++) dev[t] = Math.abs(vals[t] - med);
-  const noise = MAD_SCALE * medianOfFloat32Bits(new Uint32Array(dev.buffer, dev.byteOffset, n));
+  const noise = MAD_SCALE * medianOfFloat32Bits(new Int32Array(dev.buffer, dev.byteOffset, n));
   const threshold = k * noise;
   const result: SpotDetection = { spots: [], noise, threshold, window: w, regionPixels: n };
   if (!(noise > 0)) return result;
@@ -362,13 +362,17 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
   let integrated = 0;
   for (let t = 0; t < vals.length; t++) integrated += vals[t] - b;
   let amplitude = 0;
+  // the Gaussian weight is separable, exp(−(dx² + dy²)/2σ²) = exp(−dx²/2σ²)·exp(−dy²/2σ²): one exponential
+  // per window column and row instead of one per pixel
+  const ex = new Float64Array(ww);
   for (let it = 0; it < 50; it++) {
     let s = 0, sx = 0, sy = 0, gg = 0;
+    for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-(x + 0.5 - cx) * (x + 0.5 - cx) * inv);
     for (let y = y0; y <= y1; y++) {
-      const yc = y + 0.5, ey = (yc - cy) * (yc - cy);
+      const yc = y + 0.5, ey = Math.exp(-(yc - cy) * (yc - cy) * inv);
       for (let x = x0; x <= x1; x++) {
         const xc = x + 0.5;
-        const g = Math.exp(-((xc - cx) * (xc - cx) + ey) * inv);
+        const g = ex[x - x0] * ey;
         const wgt = (vals[(y - y0) * ww + (x - x0)] - b) * g;
         s += wgt;
         sx += wgt * xc;
