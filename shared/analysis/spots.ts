@@ -345,11 +345,16 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
   const inv = 1 / (2 * sigma * sigma);
   const ww = x1 - x0 + 1;
   const vals = new Float64Array(ww * (y1 - y0 + 1));
-  for (let y = y0; y <= y1; y++)
-    for (let x = x0; x <= x1; x++) {
-      let v = data[y * width + x];
-      if (others) for (const o of others) v -= o.amplitude * Math.exp(-((x + 0.5 - o.x) ** 2 + (y + 0.5 - o.y) ** 2) * inv);
-      vals[(y - y0) * ww + (x - x0)] = v;
+  for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) vals[(y - y0) * ww + (x - x0)] = data[y * width + x];
+  // neighbours' models, subtracted in turn; each Gaussian separable (one exp per window column and row)
+  const ex = new Float64Array(ww);
+  if (others)
+    for (const o of others) {
+      for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-((x + 0.5 - o.x) ** 2) * inv);
+      for (let y = y0; y <= y1; y++) {
+        const ey = o.amplitude * Math.exp(-((y + 0.5 - o.y) ** 2) * inv);
+        for (let x = x0, t = (y - y0) * ww; x <= x1; x++, t++) vals[t] -= ex[x - x0] * ey;
+      }
     }
   // local background: median of the window's outer ring (of the raw pixels when no neighbours are modelled)
   const ring: number[] = [];
@@ -364,7 +369,6 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
   let amplitude = 0;
   // the Gaussian weight is separable, exp(−(dx² + dy²)/2σ²) = exp(−dx²/2σ²)·exp(−dy²/2σ²): one exponential
   // per window column and row instead of one per pixel
-  const ex = new Float64Array(ww);
   for (let it = 0; it < 50; it++) {
     let s = 0, sx = 0, sy = 0, gg = 0;
     for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-(x + 0.5 - cx) * (x + 0.5 - cx) * inv);
