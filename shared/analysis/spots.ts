@@ -124,10 +124,12 @@ export function medianOfFloat32Bits(bits: Int32Array): number {
   const n = bits.length;
   if (n === 0) throw new RangeError('median of no values');
   const kHi = n >> 1, kLo = n % 2 ? kHi : kHi - 1;
-  const hist = new Uint32Array(65536);
+  // key = u XOR (all ones for a negative value, else the sign bit), without a branch
+  const hist = new Int32Array(65536);
   for (let i = 0; i < n; i++) {
     const u = bits[i];
-    hist[(u < 0 ? ~u : u ^ -0x80000000) >>> 16]++;
+    const b = (u ^ ((u >> 31) | -0x80000000)) >>> 16;
+    hist[b] = (hist[b] + 1) | 0;
   }
   // bucket and rank within it of kLo and kHi
   let bLo = -1, bHi = -1, rLo = 0, rHi = 0;
@@ -144,15 +146,15 @@ export function medianOfFloat32Bits(bits: Int32Array): number {
     }
     below += c;
   }
-  const lowLo = new Uint32Array(65536), lowHi = bLo === bHi ? lowLo : new Uint32Array(65536);
+  const lowLo = new Int32Array(65536), lowHi = bLo === bHi ? lowLo : new Int32Array(65536);
   for (let i = 0; i < n; i++) {
     const u = bits[i];
-    const key = u < 0 ? ~u : u ^ -0x80000000;
+    const key = u ^ ((u >> 31) | -0x80000000);
     const b = key >>> 16;
-    if (b === bLo) lowLo[key & 0xffff]++;
-    else if (b === bHi) lowHi[key & 0xffff]++;
+    if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
+    else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
   }
-  const value = (bucket: number, low: Uint32Array, r: number) => {
+  const value = (bucket: number, low: Int32Array, r: number) => {
     let l = 0;
     for (let below = 0; ; l++) {
       below += low[l];
