@@ -17,6 +17,10 @@
  * reads real pixels around the box, so the response on a box equals the response on the whole image.
  * The input is shifted by `offset` (subtracted before filtering) so that a flat input gives exactly 0.
  * Every input pixel read must be finite; otherwise a RangeError quotes the pixel.
+ *
+ * Memory and order: rows are mirrored and filtered one at a time into a ring of 2R + 1 rows that the column
+ * pass reads while it is still in cache; several taps are added per sweep over a row, in the same order per
+ * pixel as one tap at a time, so the values are those of the plain two-pass loops (Float32 rows, double sums).
  */
 import type { ChannelArray } from './types';
 
