@@ -5,7 +5,7 @@
  * an index list.
  */
 import { describe, expect, it } from 'vitest';
-import { detectSpots, gaussianFilter, gaussianKernels, laplacianOfGaussian, Xoshiro128 } from '../../shared/analysis/index';
+import { analyzeObjects, detectSpots, gaussianFilter, gaussianKernels, laplacianOfGaussian, Xoshiro128 } from '../../shared/analysis/index';
 import { medianOfFloat32Bits } from '../../shared/analysis/spots';
 
 function sortedMedian(a: Float32Array): number {
@@ -130,6 +130,25 @@ describe('whole-image detection', () => {
     const d = detectSpots(img, w, h, m)!;
     expect(Math.abs(d.noise - a.noise) / a.noise).toBeLessThan(0.01);
     expect(d.spots.length).toBe(a.spots.length);
+  });
+
+  it('object measures of the whole image: null and a mask of every pixel agree', () => {
+    const rng = new Xoshiro128(21);
+    const w = 64, h = 64;
+    const make = () => {
+      const img = new Float32Array(w * h);
+      for (let i = 0; i < img.length; i++) img[i] = 50 + 8 * (rng.nextFloat() - 0.5);
+      for (let s = 0; s < 12; s++) {
+        const cx = 6 + rng.nextFloat() * (w - 12), cy = 6 + rng.nextFloat() * (h - 12);
+        for (let y = 0; y < h; y++) for (let x = 0; x < w; x++) img[y * w + x] += 200 * Math.exp(-((x + 0.5 - cx) ** 2 + (y + 0.5 - cy) ** 2) / 4.5);
+      }
+      return img;
+    };
+    const c1 = make(), c2 = make();
+    const a = analyzeObjects(c1, c2, w, h, null, { placements: 99 });
+    const b = analyzeObjects(c1, c2, w, h, new Uint8Array(w * h).fill(1), { placements: 99 });
+    expect(a.result.count1).toBeGreaterThan(5);
+    expect(b).toEqual(a);
   });
 
   it('refuses a non-finite pixel of a float image on the whole-image path, quoting it', () => {
