@@ -359,11 +359,12 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
       }
     }
   // local background: median of the window's outer ring (of the raw pixels when no neighbours are modelled)
-  const ring: number[] = [];
+  const all = new Float64Array(vals.length);
+  let m = 0;
   for (let y = y0; y <= y1; y++)
-    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) ring.push(vals[(y - y0) * ww + (x - x0)]);
-  ring.sort((a, b) => a - b);
-  const m = ring.length;
+    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) all[m++] = vals[(y - y0) * ww + (x - x0)];
+  // typed-array sort: numeric order, as a comparator sort of the same finite values
+  const ring = all.subarray(0, m).sort();
   const b = m % 2 ? ring[(m - 1) / 2] : (ring[m / 2 - 1] + ring[m / 2]) / 2;
   let cx = px + 0.5, cy = py + 0.5;
   let integrated = 0;
