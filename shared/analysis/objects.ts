@@ -77,8 +77,9 @@ export function analyzeObjects(
   checkPlacements(placements);
   const spotOpts: SpotOptions = { sigma: options.spotSigma ?? OBJECT_DEFAULTS.spotSigma, k: options.spotK ?? OBJECT_DEFAULTS.spotK, minSeparation: options.minSeparation };
   const indices = regionIndexList(region, ch1.length);
-  const det1 = detectSpots(ch1, width, height, indices, spotOpts);
-  const det2 = detectSpots(ch2, width, height, indices, spotOpts);
+  // the whole image goes to detection as null: no second copy and check of the index list
+  const det1 = detectSpots(ch1, width, height, region === null ? null : indices, spotOpts);
+  const det2 = detectSpots(ch2, width, height, region === null ? null : indices, spotOpts);
   const result = emptyResult();
   if (det1 === null || det2 === null) return { result, detection1: det1, detection2: det2, envelope: null };
   const x1 = det1.spots.map((s) => s.x), y1 = det1.spots.map((s) => s.y);

@@ -112,39 +112,63 @@ export function regionIndexList(region: Uint8Array | ArrayLike<number> | null, n
   return out;
 }
 
-/** k-th smallest (0-based) of a, rearranging a (Hoare's selection, FIND, Commun. ACM 4:321, 1961) */
-function select(a: Float32Array, k: number): number {
-  let lo = 0, hi = a.length - 1;
-  while (lo < hi) {
-    const pivot = a[(lo + hi) >>> 1];
-    let i = lo, j = hi;
-    while (i <= j) {
-      while (a[i] < pivot) i++;
-      while (a[j] > pivot) j--;
-      if (i <= j) {
-        const t = a[i];
-        a[i] = a[j];
-        a[j] = t;
-        i++;
-        j--;
-      }
-    }
-    if (k <= j) hi = j;
-    else if (k >= i) lo = i;
-    else return a[k];
+/**
+ * Median of Float32 values given as their bit patterns (an Int32Array view of the Float32Array), exact: the
+ * mean of the two middle values for an even count. The bits are mapped to keys that sort as the numbers do
+ * (sign bit set: all bits flipped; otherwise the sign bit set); one counting pass over the top 16 key bits
+ * finds the bucket of each middle rank, a second over the low 16 bits of that bucket's keys the exact key —
+ * the order statistic itself, not an estimate (counting sort by digits; Knuth, The Art of Computer
+ * Programming vol. 3, 1998, §5.2.5). Two linear passes, the values untouched.
+ */
+export function medianOfFloat32Bits(bits: Int32Array): number {
+  const n = bits.length;
+  if (n === 0) throw new RangeError('median of no values');
+  const kHi = n >> 1, kLo = n % 2 ? kHi : kHi - 1;
+  // key = u XOR (all ones for a negative value, else the sign bit), without a branch
+  const hist = new Int32Array(65536);
+  for (let i = 0; i < n; i++) {
+    const u = bits[i];
+    const b = (u ^ ((u >> 31) | -0x80000000)) >>> 16;
+    hist[b] = (hist[b] + 1) | 0;
   }
-  return a[k];
+  // bucket and rank within it of kLo and kHi
+  let bLo = -1, bHi = -1, rLo = 0, rHi = 0;
+  for (let b = 0, below = 0; b < 65536; b++) {
+    const c = hist[b];
+    if (bLo < 0 && kLo < below + c) {
+      bLo = b;
+      rLo = kLo - below;
+    }
+    if (kHi < below + c) {
+      bHi = b;
+      rHi = kHi - below;
+      break;
+    }
+    below += c;
+  }
+  const lowLo = new Int32Array(65536), lowHi = bLo === bHi ? lowLo : new Int32Array(65536);
+  for (let i = 0; i < n; i++) {
+    const u = bits[i];
+    const key = u ^ ((u >> 31) | -0x80000000);
+    const b = key >>> 16;
+    if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
+    else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
+  }
+  const value = (bucket: number, low: Int32Array, r: number) => {
+    let l = 0;
+    for (let below = 0; ; l++) {
+      below += low[l];
+      if (r < below) break;
+    }
+    const key = (bucket << 16) | l;
+    KEY_BITS[0] = key < 0 ? key ^ -0x80000000 : ~key;
+    return KEY_FLOAT[0];
+  };
+  const hi = value(bHi, lowHi, rHi);
+  return kLo === kHi ? hi : (value(bLo, lowLo, rLo) + hi) / 2;
 }
-
-/** median of a (rearranged); mean of the two middle values for an even count */
-function medianInPlace(a: Float32Array): number {
-  const n = a.length;
-  const hi = select(a, n >> 1);
-  if (n % 2) return hi;
-  let lo = -Infinity;
-  for (let i = 0; i < n >> 1; i++) if (a[i] > lo) lo = a[i];
-  return (lo + hi) / 2;
-}
+const KEY_FLOAT = new Float32Array(1);
+const KEY_BITS = new Int32Array(KEY_FLOAT.buffer);
 
 /**
  * @param region mask (non-zero inside, full size), linear pixel indices, or null for the whole image
@@ -160,23 +184,40 @@ export function detectSpots(
   const { sigma, k, minSeparation } = spotOptions(options);
   if (!(Number.isInteger(width) && width > 0 && Number.isInteger(height) && height > 0 && width * height === data.length))
     throw new RangeError(`image size ${width}×${height} does not match ${data.length} pixels`);
-  const idx = regionIndexList(region, data.length);
+  const N = data.length;
+  const listed = region === null ? null : regionIndexList(region, N);
+  // the whole image (null; or a list of every pixel, as the list is sorted and without repeats) needs no
+  // index list: the filter box is then the image itself, and its pixels are the region's in order
+  const idx = listed !== null && listed.length === N ? null : listed;
   const w = Math.ceil(2 * sigma);
-  const n = idx.length;
+  const n = idx === null ? N : idx.length;
   if (n === 0) return null;
   let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
   let low = Infinity;
-  for (let t = 0; t < n; t++) {
-    const i = idx[t];
-    const x = i % width, y = (i - x) / width;
-    if (x < bx0) bx0 = x;
-    if (x > bx1) bx1 = x;
-    if (y < by0) by0 = y;
-    if (y > by1) by1 = y;
-    const v = data[i];
-    if (!Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
-    if (v < low) low = v;
-  }
+  if (idx === null) {
+    bx0 = 0;
+    by0 = 0;
+    bx1 = width - 1;
+    by1 = height - 1;
+    // integer samples are always finite
+    const float = data instanceof Float32Array || data instanceof Float64Array;
+    for (let i = 0; i < N; i++) {
+      const v = data[i];
+      if (float && !Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
+      if (v < low) low = v;
+    }
+  } else
+    for (let t = 0; t < n; t++) {
+      const i = idx[t];
+      const x = i % width, y = (i - x) / width;
+      if (x < bx0) bx0 = x;
+      if (x > bx1) bx1 = x;
+      if (y < by0) by0 = y;
+      if (y > by1) by1 = y;
+      const v = data[i];
+      if (!Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
+      if (v < low) low = v;
+    }
   if (bx1 - bx0 + 1 < 2 * w + 1 || by1 - by0 + 1 < 2 * w + 1) return null;
   // response on the bounding box plus one pixel (the 3×3 neighbours), clipped to the image
   const box: PixelBox = { x0: Math.max(0, bx0 - 1), y0: Math.max(0, by0 - 1), x1: Math.min(width, bx1 + 2), y1: Math.min(height, by1 + 2) };
@@ -186,40 +227,47 @@ export function detectSpots(
     const x = i % width, y = (i - x) / width;
     return (y - box.y0) * bw + (x - box.x0);
   };
-  const vals = new Float32Array(n);
-  for (let t = 0; t < n; t++) vals[t] = resp[at(idx[t])];
-  const med = medianInPlace(vals);
-  for (let t = 0; t < n; t++) vals[t] = Math.abs(vals[t] - med);
-  const noise = MAD_SCALE * medianInPlace(vals);
+  let vals: Float32Array;
+  if (idx === null) vals = resp;
+  else {
+    vals = new Float32Array(n);
+    for (let t = 0; t < n; t++) vals[t] = resp[at(idx[t])];
+  }
+  const med = medianOfFloat32Bits(new Int32Array(vals.buffer, vals.byteOffset, n));
+  const dev = idx === null ? new Float32Array(n) : vals;
+  for (let t = 0; t < n; t++) dev[t] = Math.abs(vals[t] - med);
+  const noise = MAD_SCALE * medianOfFloat32Bits(new Int32Array(dev.buffer, dev.byteOffset, n));
   const threshold = k * noise;
   const result: SpotDetection = { spots: [], noise, threshold, window: w, regionPixels: n };
   if (!(noise > 0)) return result;
 
-  // candidates: strict 3×3 maxima above the threshold
-  const cand: number[] = [];
-  for (let t = 0; t < n; t++) {
-    const i = idx[t];
-    const x = i % width, y = (i - x) / width;
-    const bxi = x - box.x0, byi = y - box.y0;
-    const p = byi * bw + bxi;
+  // candidates: strict 3×3 maxima above the threshold (box coordinates bxi, byi; p = byi · bw + bxi)
+  const isMax = (p: number, bxi: number, byi: number) => {
     const r = resp[p];
-    if (!(r > threshold)) continue;
-    let isMax = true;
-    for (let dy = -1; dy <= 1 && isMax; dy++) {
+    for (let dy = -1; dy <= 1; dy++) {
       const yy = byi + dy;
       if (yy < 0 || yy >= bh) continue;
       for (let dx = -1; dx <= 1; dx++) {
         if (dx === 0 && dy === 0) continue;
         const xx = bxi + dx;
         if (xx < 0 || xx >= bw) continue;
-        if (!(r > resp[yy * bw + xx])) {
-          isMax = false;
-          break;
-        }
+        if (!(r > resp[yy * bw + xx])) return false;
       }
     }
-    if (isMax) cand.push(i);
-  }
+    return true;
+  };
+  const cand: number[] = [];
+  if (idx === null) {
+    for (let byi = 0, p = 0; byi < bh; byi++)
+      for (let bxi = 0; bxi < bw; bxi++, p++) if (resp[p] > threshold && isMax(p, bxi, byi)) cand.push(p);
+  } else
+    for (let t = 0; t < n; t++) {
+      const i = idx[t];
+      const x = i % width, y = (i - x) / width;
+      const bxi = x - box.x0, byi = y - box.y0;
+      const p = byi * bw + bxi;
+      if (resp[p] > threshold && isMax(p, bxi, byi)) cand.push(i);
+    }
   const refined: Refined[] = [];
   for (const i of cand) {
     const s = refineSpot(data, width, height, i % width, Math.floor(i / width), sigma, w, null);
@@ -246,7 +294,7 @@ export function detectSpots(
     }
   }
   result.spots = deblend(data, width, height, kept, sigma, w);
-    return result;
+  return result;
 }
 
 /**
@@ -299,30 +347,39 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
   const inv = 1 / (2 * sigma * sigma);
   const ww = x1 - x0 + 1;
   const vals = new Float64Array(ww * (y1 - y0 + 1));
-  for (let y = y0; y <= y1; y++)
-    for (let x = x0; x <= x1; x++) {
-      let v = data[y * width + x];
-      if (others) for (const o of others) v -= o.amplitude * Math.exp(-((x + 0.5 - o.x) ** 2 + (y + 0.5 - o.y) ** 2) * inv);
-      vals[(y - y0) * ww + (x - x0)] = v;
+  for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) vals[(y - y0) * ww + (x - x0)] = data[y * width + x];
+  // neighbours' models, subtracted in turn; each Gaussian separable (one exp per window column and row)
+  const ex = new Float64Array(ww);
+  if (others)
+    for (const o of others) {
+      for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-((x + 0.5 - o.x) ** 2) * inv);
+      for (let y = y0; y <= y1; y++) {
+        const ey = o.amplitude * Math.exp(-((y + 0.5 - o.y) ** 2) * inv);
+        for (let x = x0, t = (y - y0) * ww; x <= x1; x++, t++) vals[t] -= ex[x - x0] * ey;
+      }
     }
   // local background: median of the window's outer ring (of the raw pixels when no neighbours are modelled)
-  const ring: number[] = [];
+  const all = new Float64Array(vals.length);
+  let m = 0;
   for (let y = y0; y <= y1; y++)
-    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) ring.push(vals[(y - y0) * ww + (x - x0)]);
-  ring.sort((a, b) => a - b);
-  const m = ring.length;
+    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) all[m++] = vals[(y - y0) * ww + (x - x0)];
+  // typed-array sort: numeric order, as a comparator sort of the same finite values
+  const ring = all.subarray(0, m).sort();
   const b = m % 2 ? ring[(m - 1) / 2] : (ring[m / 2 - 1] + ring[m / 2]) / 2;
   let cx = px + 0.5, cy = py + 0.5;
   let integrated = 0;
   for (let t = 0; t < vals.length; t++) integrated += vals[t] - b;
   let amplitude = 0;
+  // the Gaussian weight is separable, exp(−(dx² + dy²)/2σ²) = exp(−dx²/2σ²)·exp(−dy²/2σ²): one exponential
+  // per window column and row instead of one per pixel
   for (let it = 0; it < 50; it++) {
     let s = 0, sx = 0, sy = 0, gg = 0;
+    for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-(x + 0.5 - cx) * (x + 0.5 - cx) * inv);
     for (let y = y0; y <= y1; y++) {
-      const yc = y + 0.5, ey = (yc - cy) * (yc - cy);
+      const yc = y + 0.5, ey = Math.exp(-(yc - cy) * (yc - cy) * inv);
       for (let x = x0; x <= x1; x++) {
         const xc = x + 0.5;
-        const g = Math.exp(-((xc - cx) * (xc - cx) + ey) * inv);
+        const g = ex[x - x0] * ey;
         const wgt = (vals[(y - y0) * ww + (x - x0)] - b) * g;
         s += wgt;
         sx += wgt * xc;

@@ -50,6 +50,11 @@ const full = time(() => {
 }, 3);
 console.log(`${S}×${S}, ${N} spots per channel (found ${found1}, ${found2}): detection of both + pairing ${fmt(full)} (target ≤ 300 ms)`);
 
+// where the time goes: the filter over the whole image against the whole detection of one channel
+const filt = time(() => laplacianOfGaussian(a, S, S, 1.5, { x0: 0, y0: 0, x1: S, y1: S }, 100), 3);
+const one = time(() => detectSpots(a, S, S, null), 3);
+console.log(`one channel: LoG filter ${fmt(filt)}; whole detection ${fmt(one)} (the rest: noise medians, maxima, centroids)`);
+
 const d1 = detectSpots(a, S, S, null)!, d2 = detectSpots(b, S, S, null)!;
 const x1 = d1.spots.map((s) => s.x), y1 = d1.spots.map((s) => s.y), x2 = d2.spots.map((s) => s.x), y2 = d2.spots.map((s) => s.y);
 const grid = time(() => pairSpots(x1, y1, x2, y2, 2), 5);
