@@ -67,3 +67,34 @@ export function encodeRuns(indices: ArrayLike<number>, pixelTotal: number): numb
   }
   return rle;
 }
+
+/** Whether linear pixel index `i` lies in a checked run-length code: binary search over its sorted runs. */
+export function runsContain(rle: ArrayLike<number>, i: number): boolean {
+  let lo = 0;
+  let hi = rle.length / 2 - 1;
+  while (lo <= hi) {
+    const m = (lo + hi) >> 1;
+    const s = rle[2 * m];
+    if (i < s) hi = m - 1;
+    else if (i >= s + rle[2 * m + 1]) lo = m + 1;
+    else return true;
+  }
+  return false;
+}
+
+/**
+ * The pixel-edge bounding box [x0, x1) × [y0, y1) of a checked run-length code in a field `width` pixels wide,
+ * without decoding it (a run that wraps a row spans the whole width). An empty code has an empty box (Infinity).
+ */
+export function runsBounds(rle: ArrayLike<number>, width: number): { x0: number; y0: number; x1: number; y1: number } {
+  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
+  for (let k = 0; k < rle.length; k += 2) {
+    const s = rle[k], e = s + rle[k + 1] - 1;
+    const ys = Math.floor(s / width), ye = Math.floor(e / width);
+    y0 = Math.min(y0, ys);
+    y1 = Math.max(y1, ye + 1);
+    if (ys === ye) (x0 = Math.min(x0, s % width)), (x1 = Math.max(x1, (e % width) + 1));
+    else (x0 = 0), (x1 = width);
+  }
+  return { x0, y0, x1, y1 };
+}

@@ -4,7 +4,7 @@
  * beyond width × height) with messages that quote the run.
  */
 import { describe, expect, it } from 'vitest';
-import { checkRuns, decodeRuns, encodeRuns, RunLengthError } from '../../shared/analysis/rle';
+import { checkRuns, decodeRuns, encodeRuns, runsBounds, runsContain, RunLengthError } from '../../shared/analysis/rle';
 import { labelRegions } from '../../shared/analysis/labels';
 import { CellGeometrySchema, cellIndices } from '../../shared/schemas/cells';
 import { Xoshiro128 } from '../../shared/analysis/prng';
@@ -90,5 +90,27 @@ describe('the cell schema and cellIndices use the same checks', () => {
   it('cellIndices refuses a label cell that runs past the field', () => {
     expect(Array.from(cellIndices({ kind: 'label', label: 1, rle: [3, 2] }, 4, 2))).toEqual([3, 4]);
     expect(() => cellIndices({ kind: 'label', label: 1, rle: [6, 3] }, 4, 2)).toThrow(/ends at pixel 8, beyond the field's 8 pixels/);
+  });
+});
+
+describe('queries on a code without decoding it', () => {
+  it('runsContain agrees with the decoded pixels and runsBounds with their bounding box', () => {
+    const W = 7, H = 5;
+    const codes = [[], [3, 1], [0, 7], [5, 4], [2, 2, 9, 3, 20, 10], [34, 1]];
+    for (const rle of codes) {
+      const px = new Set(decodeRuns(rle, W * H));
+      for (let i = 0; i < W * H; i++) expect(runsContain(rle, i), `${JSON.stringify(rle)} @ ${i}`).toBe(px.has(i));
+      if (px.size === 0) {
+        expect(runsBounds(rle, W).x0).toBe(Infinity);
+        continue;
+      }
+      const xs = [...px].map((i) => i % W), ys = [...px].map((i) => Math.floor(i / W));
+      const b = runsBounds(rle, W);
+      // a run that wraps a row spans the whole width; otherwise the box is exact
+      const wraps = rle.some((_, k) => k % 2 === 0 && Math.floor(rle[k] / W) !== Math.floor((rle[k] + rle[k + 1] - 1) / W));
+      expect([b.y0, b.y1]).toEqual([Math.min(...ys), Math.max(...ys) + 1]);
+      if (wraps) expect([b.x0, b.x1]).toEqual([0, W]);
+      else expect([b.x0, b.x1]).toEqual([Math.min(...xs), Math.max(...xs) + 1]);
+    }
   });
 });

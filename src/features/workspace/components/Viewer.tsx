@@ -11,6 +11,7 @@ import { boxFromDrag, fitView, traceFromStroke, ellipseFromDrag, pathOf, polygon
 import { handlesOf, nearestEdge, type Outline, type OutlineAction, type Point } from '../lib/outlineState';
 import { LabelLayer } from './LabelLayer';
 import { plural } from '@shared/format/plural';
+import { runsContain } from '@shared/analysis/rle';
 
 export type Tool = 'select' | 'box' | 'ellipse' | 'polygon' | 'trace';
 
@@ -441,22 +442,14 @@ function handlesVisible(o: Outline, scale: number): boolean {
   return (len / hs.length) * scale >= 6;
 }
 
-/** The label-image cell whose pixels include the pixel under p (binary search in its runs). */
+/** The label-image cell whose pixels include the pixel under p. */
 function labelAt(outlines: Outline[], p: Point, W: number, H: number): string | null {
   const x = Math.floor(p[0]), y = Math.floor(p[1]);
   if (x < 0 || y < 0 || x >= W || y >= H) return null;
   const i = y * W + x;
   for (const o of outlines) {
     if (o.geometry.kind !== 'label') continue;
-    const r = o.geometry.rle;
-    let lo = 0, hi = r.length / 2 - 1;
-    while (lo <= hi) {
-      const m = (lo + hi) >> 1;
-      const s = r[2 * m];
-      if (i < s) hi = m - 1;
-      else if (i >= s + r[2 * m + 1]) lo = m + 1;
-      else return o.key;
-    }
+    if (runsContain(o.geometry.rle, i)) return o.key;
   }
   return null;
 }

@@ -5,6 +5,7 @@
  */
 import type { CellGeometry, DrawnGeometry } from '@shared/schemas/cells';
 import { thinStroke, type Point } from './outlineState';
+import { runsBounds } from '@shared/analysis/rle';
 
 /** Smallest drawn box/oval side in image pixels (a click without a drag makes nothing). */
 export const MIN_DRAG = 1;
@@ -74,18 +75,8 @@ export function boundsOf(g: CellGeometry, fieldWidth: number): { x0: number; y0:
       return { x0: g.x, y0: g.y, x1: g.x + g.width, y1: g.y + g.height };
     case 'ellipse':
       return { x0: g.cx - g.rx, y0: g.cy - g.ry, x1: g.cx + g.rx, y1: g.cy + g.ry };
-    case 'label': {
-      let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
-      for (let k = 0; k < g.rle.length; k += 2) {
-        const s = g.rle[k], e = s + g.rle[k + 1] - 1;
-        const ys = Math.floor(s / fieldWidth), ye = Math.floor(e / fieldWidth);
-        y0 = Math.min(y0, ys);
-        y1 = Math.max(y1, ye + 1);
-        if (ys === ye) (x0 = Math.min(x0, s % fieldWidth)), (x1 = Math.max(x1, (e % fieldWidth) + 1));
-        else (x0 = 0), (x1 = fieldWidth);
-      }
-      return { x0, y0, x1, y1 };
-    }
+    case 'label':
+      return runsBounds(g.rle, fieldWidth);
   }
 }
 
