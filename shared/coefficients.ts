@@ -209,6 +209,8 @@ function keysWhere<K extends CoefficientKey>(pred: (c: CoefficientEntry) => bool
 
 /** Compare and report choices. */
 export const COMPARE_KEYS = keysWhere<KeysWhere<'compare', true>>((c) => c.compare);
+/** Preselected when freezing a report: the Compare choices the Cell table shows by default. */
+export const REPORT_DEFAULT_KEYS: readonly CoefficientKey[] = COEFFICIENTS.filter((c) => c.compare && c.cellTable === 'default').map((c) => c.key);
 /** Averaged through Fisher's z: exactly the correlation coefficients r, ρ and τ-b. */
 export const FISHER_Z_KEYS = keysWhere<KeysWhere<'fisherZ', true>>((c) => c.fisherZ);
 /** Columns of the Cell table (and its filters, sorting and CSV export). */

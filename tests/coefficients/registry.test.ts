@@ -8,7 +8,7 @@ import { getTableColumns } from 'drizzle-orm';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { measurements } from '../../server/db/schema.js';
 import { measureRegion, MEASURE_KEYS } from '../../shared/analysis/index.js';
-import { CELL_TABLE_KEYS, COEFFICIENT_CITATIONS, COEFFICIENT_KEYS, COEFFICIENTS, COMPARE_KEYS, FISHER_Z_KEYS, PREVIEW_KEYS, RECIPE_CHOICES, byKey } from '../../shared/coefficients.js';
+import { CELL_TABLE_KEYS, COEFFICIENT_CITATIONS, COEFFICIENT_KEYS, COEFFICIENTS, COMPARE_KEYS, FISHER_Z_KEYS, PREVIEW_KEYS, RECIPE_CHOICES, REPORT_DEFAULT_KEYS, byKey } from '../../shared/coefficients.js';
 import { COLUMN_LABELS, DEFAULT_VISIBLE_COLUMNS, EXPORT_COLUMNS, GridRow, NUMERIC_COLUMNS } from '../../shared/schemas/cell-table.js';
 import { COMPARE_COEFFICIENTS, CompareQuery } from '../../shared/schemas/compare.js';
 import { REPORT_COEFFICIENTS } from '../../shared/schemas/reports.js';
@@ -101,5 +101,10 @@ describe('coefficient registry', () => {
     const header = text.split('\n')[1].trim().split(/\s{2,}/);
     expect(header).toEqual(['region', ...COEFFICIENTS.filter((c) => c.cliLabel !== null).map((c) => c.cliLabel)]);
     expect(text).not.toMatch(/-0\.0000/);
+  });
+
+  it('a new report preselects the Cell table default measures that Compare offers (r, ρ, M1, M2)', () => {
+    expect([...REPORT_DEFAULT_KEYS]).toEqual(['pearson', 'spearman', 'mandersM1', 'mandersM2']);
+    for (const k of REPORT_DEFAULT_KEYS) expect(COMPARE_KEYS).toContain(k);
   });
 });

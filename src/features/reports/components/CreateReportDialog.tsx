@@ -3,12 +3,12 @@ import { useState } from 'react';
 import { useNavigate } from 'react-router';
 import { Button, ErrorNotice, FormDialog, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
-import { labelOf } from '@shared/coefficients';
+import { labelOf, REPORT_DEFAULT_KEYS } from '@shared/coefficients';
 import { CreateReportRequest, REPORT_COEFFICIENTS, type ReportCoefficient } from '@shared/schemas/reports';
 import { validate, type FieldErrors } from '@/lib/form';
 import { useCreateReport } from '../api/useCreateReport';
 
-const DEFAULT: ReportCoefficient[] = ['pearson', 'spearman', 'mandersM1', 'mandersM2'];
+const DEFAULT = REPORT_DEFAULT_KEYS as ReportCoefficient[];
 
 export function CreateReportDialog({ studyId, open, onClose, initialCoefficients, recipeId, runId }: { studyId: number; open: boolean; onClose: () => void; initialCoefficients?: ReportCoefficient[]; recipeId?: number; runId?: number }) {
   const [title, setTitle] = useState('');
