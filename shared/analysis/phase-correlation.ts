@@ -9,7 +9,7 @@
  *
  * Method:
  *  1. each channel minus its mean (over finite pixels; NaN pixels carry no intensity and enter as the mean),
- *     tapered by a Tukey window (α = 0.5: cosine edges over a quarter of each side, flat in the middle;
+ *     tapered by a Tukey window (α = 0.25: cosine edges over an eighth of each side, flat in the middle;
  *     Harris FJ 1978, Proc. IEEE 66:51, doi:10.1109/PROC.1978.10837) so the image border, which both
  *     channels share, does not pull the peak towards zero shift, then zero-padded to the next power of two in
  *     each direction (so any size is accepted);
@@ -59,7 +59,7 @@ export function tukeyWindow(n: number, alpha: number): Float64Array {
 }
 
 /** Taper fraction of the window (see the module comment). */
-export const SHIFT_TAPER = 0.5;
+export const SHIFT_TAPER = 0.25;
 
 /** Channel minus its finite mean, tapered, zero-padded into a W × H grid; null when it has no variation. */
 function centred(ch: ChannelArray, width: number, height: number, W: number, H: number, what: string): Float64Array | null {
