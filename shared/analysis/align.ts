@@ -53,7 +53,7 @@ export function alignChannel(ch: ChannelArray, width: number, height: number, dx
     for (let j = 0; j < height; j++) {
       const y0 = cy.i0[j];
       if (y0 < 0) continue;
-      const fy = cy.f[j];
+      const fy = cy.f[j], wy0 = 1 - fy;
       const r0 = base + y0 * width, r1 = fy === 0 ? r0 : r0 + width;
       const o = base + j * width;
       for (let i = 0; i < width; i++) {
@@ -61,7 +61,9 @@ export function alignChannel(ch: ChannelArray, width: number, height: number, dx
         if (x0 < 0) continue;
         const fx = cx.f[i];
         const x1 = fx === 0 ? x0 : x0 + 1;
-        out[o + i] = (1 - fx) * (1 - fy) * ch[r0 + x0] + fx * (1 - fy) * ch[r0 + x1] + (1 - fx) * fy * ch[r1 + x0] + fx * fy * ch[r1 + x1];
+        // SciPy's order of operations (value × y weight × x weight, summed row by row), so the results
+        // are the same to the last bit and ties between pixels stay ties for the rank coefficients
+        out[o + i] = ch[r0 + x0] * wy0 * (1 - fx) + ch[r0 + x1] * wy0 * fx + ch[r1 + x0] * fy * (1 - fx) + ch[r1 + x1] * fy * fx;
       }
     }
   }
