@@ -1,7 +1,8 @@
 /**
  * `npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j)
  *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N]
- *    [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--json]`
+ *    [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]]
+ *    [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]`
  *
  * A contract other tools rely on: option names, JSON shape and exit codes stay as they are.
  *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels).
@@ -16,6 +17,15 @@
  *    the ROI coordinates above (a pixel's centre at +0.5). The settings used are echoed as `objectSettings`.
  *    `--seed` seeds the Monte Carlo placement test (the command runs no other randomized test). The spot
  *    options are an error without `--objects`; single-plane images only (spots are located in 2-D).
+ *  - Calibration (order: read → measure shift → align → measure bleed → unmix → measure):
+ *    `--measure-shift` adds a top-level `"shift": { "dx", "dy" }` of the channels as read (channel 2 is
+ *    displaced by (dx, dy): ch2(x + dx, y + dy) ≈ ch1(x, y); x right, y down, px; the whole image, z slices
+ *    summed). `--shift DX,DY` samples channel 2 at (x + DX, y + DY) bilinearly (pixel (i, j) at integer
+ *    position (i, j)); pixels whose position falls outside [0, W−1] × [0, H−1] are dropped from every
+ *    region. `--measure-bleed 1|2` (a control labelled in channel 1 or 2; after `--shift`, over the union of
+ *    the regions or the whole image) adds `"bleed": { "a21" }` or `{ "a12" }`. `--bleed A21,A12` unmixes
+ *    o1 = t1 + A12·t2, o2 = A21·t1 + t2 per pixel, negatives set to 0 (after `--shift`). Corrected values
+ *    are floating point. `--objects` does not combine with `--shift` (spot detection keeps every pixel).
  *  - Exit 0 on success; 2 with one `error:` line on stderr for bad input; 1 for an internal failure
  *    (also one line). Never a stack trace.
  */
@@ -38,6 +48,7 @@ import {
   OBJECT_DEFAULTS,
   type ObjectResult,
 } from '../../shared/analysis/index';
+import { alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '../../shared/analysis/index';
 import { COEFFICIENTS } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
@@ -47,7 +58,7 @@ import { readLabelImage } from '../images/mask';
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -68,6 +79,11 @@ export const HELP = [
   `  --pair-distance PX          a spot is paired when its nearest partner is at most PX away (default ${OBJECT_DEFAULTS.pairDistance})`,
   `  --placements N              random placements of the channel-2 spots for the p-value, 1 to 1000000 (default ${OBJECT_DEFAULTS.placements})`,
   `  --seed S                    seed of the placement test, an integer 0 to 4294967295 (default ${OBJECT_DEFAULTS.seed})`,
+  '  --measure-shift             measure how far channel 2 is displaced from channel 1 (adds "shift": dx, dy in px)',
+  '  --shift DX,DY               align first: sample channel 2 at (x + DX, y + DY); pixels that fall outside are dropped',
+  '  --bleed A21,A12             remove bleed-through (after --shift): A21 of channel 1 seen in channel 2, A12 the reverse,',
+  '                              each a fraction in [0, 1)',
+  '  --measure-bleed 1|2         on a control labelled only in channel 1 (or 2): add "bleed": a21 (or a12)',
   '  --json                      print JSON instead of a table',
   '  -h, --help                  print this help',
   '',
@@ -107,6 +123,14 @@ export interface CliOptions {
   threshold: ThresholdOptions;
   /** the object settings when --objects was given, else null */
   objects: ObjectSettings | null;
+  /** --measure-shift */
+  measureShift: boolean;
+  /** --shift DX,DY: channel 2 is sampled at (x + dx, y + dy) */
+  shift: { dx: number; dy: number } | null;
+  /** --bleed A21,A12 */
+  bleed: { a21: number; a12: number } | null;
+  /** --measure-bleed: the labelled channel of the control */
+  measureBleed: 1 | 2 | null;
   json: boolean;
 }
 
@@ -145,6 +169,15 @@ function parseObjectSettings(get: (k: string) => string | undefined): ObjectSett
   return out;
 }
 
+/** "A,B" → two finite numbers, or a UsageError quoting the text (`names` say what A and B are). */
+function parseNumberPair(v: string, opt: string, names: string): [number, number] {
+  const m = /^([^,]+),([^,]+)$/.exec(v);
+  const a = m ? Number(m[1]) : NaN, b = m ? Number(m[2]) : NaN;
+  if (!m || m[1].trim() === '' || m[2].trim() === '' || !Number.isFinite(a) || !Number.isFinite(b))
+    throw new UsageError(`${opt} must be two numbers ${names} separated by a comma, received ${JSON.stringify(v)}`);
+  return [a, b];
+}
+
 function parseNumber(v: string, what: string): number {
   const n = Number(v);
   if (v.trim() === '' || !Number.isFinite(n)) throw new UsageError(`${what} must be a number, received ${JSON.stringify(v)}`);
@@ -168,6 +201,10 @@ const OPTIONS = {
   'pair-distance': { type: 'string' },
   placements: { type: 'string' },
   seed: { type: 'string' },
+  'measure-shift': { type: 'boolean' },
+  shift: { type: 'string' },
+  bleed: { type: 'string' },
+  'measure-bleed': { type: 'string' },
 } as const;
 
 /**
@@ -201,7 +238,7 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
   const imageForm = s('image') !== undefined || s('channels') !== undefined;
   if (pairForm && imageForm) throw new UsageError('give either --ch1 and --ch2, or --image and --channels, not both');
   if (!pairForm && !imageForm) throw new UsageError(`no image given; ${USAGE}`);
-  const out: CliOptions = { threshold: { method: 'none' }, objects: null, json: values.json === true };
+  const out: CliOptions = { threshold: { method: 'none' }, objects: null, measureShift: values['measure-shift'] === true, shift: null, bleed: null, measureBleed: null, json: values.json === true };
   if (pairForm) {
     if (!s('ch1') || !s('ch2')) throw new UsageError(`--ch1 and --ch2 go together; received only ${s('ch1') ? '--ch1' : '--ch2'}`);
     out.ch1 = s('ch1');
@@ -229,6 +266,25 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
     if (t1 !== undefined || t2 !== undefined) throw new UsageError(`--t1 and --t2 apply to --threshold manual only, received --threshold ${method}`);
     out.threshold = { method } as ThresholdOptions;
   }
+  const shift = s('shift');
+  if (shift !== undefined) {
+    const [dx, dy] = parseNumberPair(shift, '--shift', 'DX,DY (pixels)');
+    out.shift = { dx, dy };
+  }
+  const bleed = s('bleed');
+  if (bleed !== undefined) {
+    const [a21, a12] = parseNumberPair(bleed, '--bleed', 'A21,A12 (fractions in [0, 1))');
+    for (const [name, v] of [['A21', a21], ['A12', a12]] as const)
+      if (!(v >= 0 && v < 1)) throw new UsageError(`--bleed ${name} must be a fraction in [0, 1), received ${JSON.stringify(bleed)}`);
+    out.bleed = { a21, a12 };
+  }
+  const mb = s('measure-bleed');
+  if (mb !== undefined) {
+    if (mb !== '1' && mb !== '2') throw new UsageError(`--measure-bleed must be 1 or 2 (the labelled channel of the control), received ${JSON.stringify(mb)}`);
+    out.measureBleed = mb === '1' ? 1 : 2;
+  }
+  if (values.objects === true && out.shift)
+    throw new UsageError('--objects cannot be combined with --shift: spot detection measures every pixel, and aligned pixels at the border are not measured');
   if (values.objects === true) out.objects = parseObjectSettings(s);
   else {
     const given = OBJECT_FLAGS.filter((f) => s(f) !== undefined);
@@ -258,6 +314,13 @@ async function about<T>(opt: string, path: string, what: () => Promise<T>): Prom
   }
 }
 
+/** The sum over z of a stack (Float64, one plane): the lateral shift of a stack is measured on it. */
+function sumSlices(ch: ChannelArray, plane: number, nz: number): Float64Array {
+  const out = new Float64Array(plane);
+  for (let z = 0; z < nz; z++) for (let i = 0; i < plane; i++) out[i] += ch[z * plane + i];
+  return out;
+}
+
 function concat(slices: PixelArray[]): ChannelArray {
   if (slices.length === 1) return slices[0];
   const total = slices.reduce((s, a) => s + a.length, 0);
@@ -279,6 +342,10 @@ export interface AnalyzeOutput {
   thresholds: ThresholdInfo;
   /** present with --objects: the settings every region's `objects` was measured with */
   objectSettings?: ObjectSettings;
+  /** present with --measure-shift: channel 2's displacement, ch2(x + dx, y + dy) ≈ ch1(x, y), in pixels */
+  shift?: { dx: number | null; dy: number | null };
+  /** present with --measure-bleed: the coefficient of the control's labelled channel */
+  bleed?: { a21: number | null } | { a12: number | null };
   regions: (Omit<RegionResult, 'thresholds'> & { label: number | string; objects?: ObjectResult })[];
 }
 
@@ -305,9 +372,15 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     s1 = a.slices;
     s2 = b.slices;
   }
-  const ch1 = concat(s1), ch2 = concat(s2);
   const plane = width * height;
   const nz = s1.length;
+  let ch1: ChannelArray = concat(s1), ch2: ChannelArray = concat(s2);
+  const measured: Pick<AnalyzeOutput, 'shift' | 'bleed'> = {};
+  if (o.measureShift) {
+    const r = nz === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, nz), sumSlices(ch2, plane, nz), width, height);
+    measured.shift = { dx: r.dx, dy: r.dy };
+  }
+  if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, nz);
   if (o.objects && nz > 1) throw new UsageError(`--objects needs single-plane images, received ${nz} z slices; export one slice or a projection`);
   // regions as plane indices, then repeated over the z slices
   let planeRegions: { label: number | string; indices: Uint32Array }[] | null = null;
@@ -345,6 +418,11 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     for (const r of regions) for (const i of r.indices!) m[i] = 1;
     union = maskToIndices(m);
   }
+  if (o.measureBleed !== null) {
+    const region = union === null ? null : { kind: 'indices' as const, indices: union };
+    measured.bleed = o.measureBleed === 1 ? { a21: bleedThroughSlope(ch1, ch2, region) } : { a12: bleedThroughSlope(ch2, ch1, region) };
+  }
+  if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12));
   // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
   const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
   const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
@@ -357,7 +435,7 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
     return { label: r.label, ...rest, objects };
   });
-  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), regions: results };
+  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
 }
 
 /** Terminal numbers: 4 decimals (p-values in scientific notation), "n/a" when undefined, never "-0.0000". */
@@ -408,6 +486,8 @@ export function formatTable(out: AnalyzeOutput): string {
     ['region', (r) => String(r.label)],
     ...CLI_COLUMNS.map((c): [string, (r: OutRegion) => string] => [c.cliLabel!, (r) => fmt(r[c.key], c.format)]),
   ];
+  if (out.shift) lines.push(`shift of channel 2: dx ${out.shift.dx === null ? 'n/a' : formatFixed(out.shift.dx, 2)} px, dy ${out.shift.dy === null ? 'n/a' : formatFixed(out.shift.dy, 2)} px`);
+  if (out.bleed) lines.push('a21' in out.bleed ? `bleed-through a21 ${fmt(out.bleed.a21, 'fraction')}` : `bleed-through a12 ${fmt(out.bleed.a12, 'fraction')}`);
   lines.push(...columns(cols, out.regions));
   if (out.regions.length === 0) lines.push('(the label image has no regions)');
   else if (out.objectSettings) lines.push(...objectLines(out));

@@ -148,3 +148,9 @@ export { PointGrid, pairSpots, nearestNeighbours, type PairingResult, type Neare
 export { spotPlacementTest, SPOT_TEST_DEFAULTS, type SpotTestResult, type KEnvelope } from './spot-test';
 export { crossK, type CrossK, type KCorrection, type KWindow } from './ripley';
 export { measureObjects, analyzeObjects, OBJECT_DEFAULTS, OBJECT_RESULT_KEYS, type ObjectResult, type ObjectOptions, type ObjectAnalysis } from './objects';
+export { nextPowerOfTwo, realFft2dPair, inverseRealFft2d } from './fft';
+export { measureShift, tukeyWindow, SHIFT_TAPER, type ShiftResult, type ShiftOptions } from './phase-correlation';
+export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-correlation';
+export { alignChannel } from './align';
+export { bleedThroughSlope } from './bleed';
+export { unmixChannels, checkBleedCoefficient } from './unmix';
