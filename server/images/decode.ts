@@ -314,7 +314,7 @@ function planFromHeader(h: TiffHeader, plainPages: PlainPages = 'channels'): Pla
       for (let z = 0; z < ome.sizeZ; z++) {
         const page = ifdOf[planeIndex(ome.order, sizes, { C: c, Z: z, T: 0 })];
         if (page >= h.pages.length) {
-          throw new ImageInputError(`the OME description places channel ${c + 1}, slice ${z + 1} on page ${page + 1}, but the file has only ${h.pages.length} pages (multi-file OME datasets are not supported; upload a single-file OME-TIFF)`);
+          throw new ImageInputError(`the OME description declares ${sizesText(ome.sizeC, ome.sizeZ, ome.sizeT)} and places channel ${c + 1}, slice ${z + 1} on page ${page + 1}, but the file has ${plural(h.pages.length, 'page')}; the file is incomplete or its description is wrong (multi-file OME datasets are not supported; upload a single-file OME-TIFF)`);
         }
         zs.push({ page, sample: 0 });
       }
