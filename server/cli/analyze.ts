@@ -1,24 +1,32 @@
 /**
  * `npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j)
- *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N]
+ *    [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N]
  *    [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]]
  *    [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]`
  *
  * A contract other tools rely on: option names, JSON shape and exit codes stay as they are.
- *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels).
- *  - `--mask`: label image (0 = background, each positive value one region, `label` = the value).
- *  - `--rois`: JSON array of { "name": string, "points": [[x, y], ...] } polygons in pixel coordinates
- *    (x right, y down, origin at the top-left corner of pixel (0, 0)); pixel-centre even-odd rule.
- *  - Thresholds are computed once over the pixels of all regions (the whole image when there are none);
- *    the default `none` means T1 = T2 = 0.
- *  - z-stacks: every slice of a region takes part (a label image or ROI applies to each slice).
+ *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels; the
+ *    slices come from the OME metadata or the sizes the image description states). With `--ch1`/`--ch2`
+ *    each file is one channel and its pages are the z slices.
+ *  - `--z`: `all` (the default) measures every slice in 3D, voxel by voxel; `N` one slice (1-based); `A-B`
+ *    slices A..B in 3D; `mip` / `mip:A-B` the maximum-intensity projection of all / of slices A..B
+ *    (server/images/projection.ts), measured as one plane. The JSON states `depth` (planes measured: the
+ *    slice count in 3D, 1 for one slice or a projection) and `z` ({ from, to, projection }).
+ *  - `--mask`: label image (0 = background, each positive value one region, `label` = the value): one
+ *    plane, applied to every measured slice, or a label stack with the image's slice count (3D regions: one
+ *    value is one region across slices; only the measured slices take part).
+ *  - `--rois`: JSON array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] } polygons in pixel
+ *    coordinates (x right, y down, origin at the top-left corner of pixel (0, 0)); pixel-centre even-odd
+ *    rule; `z` (1-based, inclusive, default every slice) extrudes the polygon over slices from..to.
+ *  - `pixels` counts voxels. Thresholds are computed once over the voxels of all regions (the whole volume
+ *    when there are none); the default `none` means T1 = T2 = 0.
  *  - `--objects`: every region also gets `objects`, the object measures of `measureObjects`
  *    (shared/analysis/objects.ts) with exactly the keys of `OBJECT_RESULT_KEYS`; spot centres as [x, y] in
  *    the ROI coordinates above (a pixel's centre at +0.5). The settings used are echoed as `objectSettings`.
  *    `--seed` seeds the Monte Carlo placement test (the command runs no other randomized test). The spot
- *    options are an error without `--objects`; single-plane images only (spots are located in 2-D).
+ *    options are an error without `--objects`; one measured plane only (spots are located in 2-D).
  *  - Calibration (order: read → measure shift → align → measure bleed → unmix → measure):
- *    `--measure-shift` adds a top-level `"shift": { "dx", "dy" }` of the channels as read (channel 2 is
+ *    `--measure-shift` adds a top-level `"shift": { "dx", "dy" }` of the measured slices (channel 2 is
  *    displaced by (dx, dy): ch2(x + dx, y + dy) ≈ ch1(x, y); x right, y down, px; the whole image, z slices
  *    summed). `--shift DX,DY` samples channel 2 at (x + DX, y + DY) bilinearly (pixel (i, j) at integer
  *    position (i, j)); pixels whose position falls outside [0, W−1] × [0, H−1] are dropped from every
@@ -52,13 +60,14 @@ import { alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '..
 import { COEFFICIENTS } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
-import { readLabelImage } from '../images/mask';
+import { readLabelStack } from '../images/mask';
+import { project } from '../images/projection';
 
 /** Bad input: exit code 2 and the message on one line. */
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -66,10 +75,14 @@ export const HELP = [
   '',
   'Co-localization coefficients of two channels, for the whole image or per region.',
   '',
-  '  --ch1 A.tif --ch2 B.tif     the two channels as two single-channel TIFFs',
+  '  --ch1 A.tif --ch2 B.tif     the two channels as two single-channel TIFFs (their pages are z slices)',
   '  --image X.tif --channels i,j  one multi-channel TIFF and its two channels (1-based)',
-  '  --mask LABELS.tif           a label image: one region per non-zero label',
-  '  --rois ROIS.json            regions as a JSON array of polygons',
+  '  --z WHICH                   z slices of a stack: all (default, every slice in 3D, voxel by voxel),',
+  '                              N (one slice, 1-based), A-B (slices A to B in 3D),',
+  '                              mip or mip:A-B (maximum-intensity projection, measured as one plane)',
+  '  --mask LABELS.tif           a label image: one region per non-zero label; one plane (used on every',
+  '                              measured slice) or a stack with as many slices as the image (3D regions)',
+  '  --rois ROIS.json            regions as a JSON array of polygons, each with an optional "z": [from, to]',
   '  --threshold METHOD          none (default), manual (with --t1 and --t2), otsu or costes',
   '  --t1 N --t2 N               manual thresholds of channel 1 and channel 2',
   '  --objects                   also detect spots in each channel, pair them and test against chance;',
@@ -93,6 +106,8 @@ export const HELP = [
 interface Roi {
   name: string;
   points: [number, number][];
+  /** 1-based inclusive slice range; absent = every slice */
+  z?: [number, number];
 }
 
 /** Checks the --rois file shape; returns the first problem as a sentence, or the ROIs. */
@@ -109,6 +124,9 @@ function checkRois(v: unknown): Roi[] | string {
       if (!Array.isArray(p) || p.length !== 2 || !p.every((c) => typeof c === 'number' && Number.isFinite(c)))
         return `item ${k} ("${r.name}") point ${j} is ${JSON.stringify(p)}, not [x, y] with two finite numbers`;
     }
+    const z = (r as { z?: unknown }).z;
+    if (z !== undefined && !(Array.isArray(z) && z.length === 2 && z.every((v) => Number.isInteger(v) && v >= 1) && z[0] <= z[1]))
+      return `item ${k} ("${r.name}") has "z": ${JSON.stringify(z)}, not [from, to] with 1-based slice numbers, from ≤ to`;
   }
   return v as Roi[];
 }
@@ -120,6 +138,8 @@ export interface CliOptions {
   channels?: [number, number];
   mask?: string;
   rois?: string;
+  /** which z slices are measured (see `--z`) */
+  z: ZChoice;
   threshold: ThresholdOptions;
   /** the object settings when --objects was given, else null */
   objects: ObjectSettings | null;
@@ -141,6 +161,28 @@ export interface ObjectSettings {
   pairDistance: number;
   placements: number;
   seed: number;
+}
+
+/**
+ * `--z`: slices from..to (1-based, inclusive; null = up to the first / last slice), measured in 3D or as
+ * their maximum-intensity projection.
+ */
+export interface ZChoice {
+  projection: 'mip' | null;
+  from: number | null;
+  to: number | null;
+}
+
+/** Reads `--z`; a bad value is a UsageError quoting it. The range is checked against the image later. */
+export function parseZ(v: string | undefined): ZChoice {
+  if (v === undefined || v === 'all') return { projection: null, from: null, to: null };
+  if (v === 'mip') return { projection: 'mip', from: null, to: null };
+  const m = /^(mip:)?(\d+)(?:-(\d+))?$/.exec(v);
+  const bad = () => new UsageError(`--z must be all, N, A-B, mip or mip:A-B with 1-based slice numbers and A ≤ B, received ${JSON.stringify(v)}`);
+  if (!m || (m[1] && m[3] === undefined)) throw bad();
+  const from = Number(m[2]), to = m[3] === undefined ? from : Number(m[3]);
+  if (!(from >= 1 && to >= from && Number.isSafeInteger(to))) throw bad();
+  return { projection: m[1] ? 'mip' : null, from, to };
 }
 
 const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed'] as const;
@@ -191,6 +233,7 @@ const OPTIONS = {
   channels: { type: 'string' },
   mask: { type: 'string' },
   rois: { type: 'string' },
+  z: { type: 'string' },
   threshold: { type: 'string' },
   t1: { type: 'string' },
   t2: { type: 'string' },
@@ -238,7 +281,7 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
   const imageForm = s('image') !== undefined || s('channels') !== undefined;
   if (pairForm && imageForm) throw new UsageError('give either --ch1 and --ch2, or --image and --channels, not both');
   if (!pairForm && !imageForm) throw new UsageError(`no image given; ${USAGE}`);
-  const out: CliOptions = { threshold: { method: 'none' }, objects: null, measureShift: values['measure-shift'] === true, shift: null, bleed: null, measureBleed: null, json: values.json === true };
+  const out: CliOptions = { threshold: { method: 'none' }, z: parseZ(s('z')), objects: null, measureShift: values['measure-shift'] === true, shift: null, bleed: null, measureBleed: null, json: values.json === true };
   if (pairForm) {
     if (!s('ch1') || !s('ch2')) throw new UsageError(`--ch1 and --ch2 go together; received only ${s('ch1') ? '--ch1' : '--ch2'}`);
     out.ch1 = s('ch1');
@@ -338,7 +381,12 @@ export interface AnalyzeOutput {
   engineVersion: string;
   width: number;
   height: number;
+  /** z slices in the image */
   slices: number;
+  /** planes measured: the slice count measured in 3D, 1 for one slice or a projection */
+  depth: number;
+  /** the measured slices (1-based, inclusive) and whether they were projected */
+  z: { from: number; to: number; projection: 'mip' | null };
   thresholds: ThresholdInfo;
   /** present with --objects: the settings every region's `objects` was measured with */
   objectSettings?: ObjectSettings;
@@ -347,6 +395,27 @@ export interface AnalyzeOutput {
   /** present with --measure-bleed: the coefficient of the control's labelled channel */
   bleed?: { a21: number | null } | { a12: number | null };
   regions: (Omit<RegionResult, 'thresholds'> & { label: number | string; objects?: ObjectResult })[];
+}
+
+/** The --z choice resolved against the image's slice count (1-based, inclusive). */
+function resolveZ(z: ZChoice, nz: number): { from: number; to: number; projection: 'mip' | null } {
+  const from = z.from ?? 1, to = z.to ?? nz;
+  if (to > nz) {
+    const asked = z.from === z.to ? `slice ${z.from}` : `slices ${z.from}-${z.to}`;
+    throw new UsageError(`--z asks for ${asked}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
+  }
+  return { from, to, projection: z.projection };
+}
+
+/** Region voxel indices in the measured volume (depth planes of width × height, measured slice `from` first). */
+type Region = { label: number | string; indices: Uint32Array | null };
+
+/** Plane indices repeated over the measured slices zFrom..zTo (0-based within the measured volume). */
+function extrude(indices: Uint32Array, plane: number, zFrom: number, zTo: number): Uint32Array {
+  const n = indices.length;
+  const out = new Uint32Array(n * Math.max(0, zTo - zFrom + 1));
+  for (let z = zFrom; z <= zTo; z++) for (let k = 0; k < n; k++) out[(z - zFrom) * n + k] = indices[k] + z * plane;
+  return out;
 }
 
 export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
@@ -362,8 +431,8 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     const p1 = o.ch1!, p2 = o.ch2!;
     await mustExist(p1, '--ch1');
     await mustExist(p2, '--ch2');
-    const a = await about('--ch1', p1, () => decodeChannel(p1, 1));
-    const b = await about('--ch2', p2, () => decodeChannel(p2, 1));
+    const a = await about('--ch1', p1, () => decodeChannel(p1, 1, { pages: 'slices' }));
+    const b = await about('--ch2', p2, () => decodeChannel(p2, 1, { pages: 'slices' }));
     if (a.width !== b.width || a.height !== b.height)
       throw new UsageError(`--ch2 ${p2} is ${b.width}×${b.height} but --ch1 ${p1} is ${a.width}×${a.height}; both channels must have the same size`);
     if (a.slices.length !== b.slices.length)
@@ -372,23 +441,32 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     s1 = a.slices;
     s2 = b.slices;
   }
-  const plane = width * height;
   const nz = s1.length;
-  let ch1: ChannelArray = concat(s1), ch2: ChannelArray = concat(s2);
+  const z = resolveZ(o.z, nz);
+  const z0 = z.from - 1, z1 = z.to - 1;
+  const depth = z.projection ? 1 : z.to - z.from + 1;
+  const plane = width * height;
+  // the measured volume: slices z0..z1 one after the other, or their projection
+  let ch1: ChannelArray = z.projection ? project(s1, z0, z1) : concat(s1.slice(z0, z1 + 1));
+  let ch2: ChannelArray = z.projection ? project(s2, z0, z1) : concat(s2.slice(z0, z1 + 1));
   const measured: Pick<AnalyzeOutput, 'shift' | 'bleed'> = {};
   if (o.measureShift) {
-    const r = nz === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, nz), sumSlices(ch2, plane, nz), width, height);
+    const r = depth === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, depth), sumSlices(ch2, plane, depth), width, height);
     measured.shift = { dx: r.dx, dy: r.dy };
   }
-  if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, nz);
-  if (o.objects && nz > 1) throw new UsageError(`--objects needs single-plane images, received ${nz} z slices; export one slice or a projection`);
-  // regions as plane indices, then repeated over the z slices
-  let planeRegions: { label: number | string; indices: Uint32Array }[] | null = null;
+  if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
+  if (o.objects && depth > 1)
+    throw new UsageError(`--objects needs single-plane images, received ${depth} z slices to measure in 3D; measure one slice (--z N) or a projection (--z mip)`);
+  let regions: Region[] = [{ label: 0, indices: null }];
   if (o.mask) {
     const path = o.mask;
     await mustExist(path, '--mask');
-    const lab = await about('--mask', path, () => readLabelImage(path, { width, height }));
-    planeRegions = labelRegions(lab.labels);
+    const lab = await about('--mask', path, () => readLabelStack(path, { width, height }));
+    const lz = lab.slices.length;
+    if (lz === 1) regions = labelRegions(lab.slices[0]).map((r) => ({ label: r.label, indices: extrude(r.indices, plane, 0, depth - 1) }));
+    else if (lz !== nz) throw new UsageError(`--mask ${path} has ${lz} slices but the image has ${nz}; give a label stack with ${nz} slices or one plane`);
+    else if (z.projection) throw new UsageError(`--mask ${path} is a label stack of ${lz} slices, but --z ${z.projection} measures one projected plane; give a one-plane label image or measure in 3D`);
+    else regions = labelRegions(concat(lab.slices.slice(z0, z1 + 1))).map((r) => ({ label: r.label, indices: r.indices }));
   } else if (o.rois) {
     const path = o.rois;
     await mustExist(path, '--rois');
@@ -399,21 +477,20 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       throw new UsageError(`--rois ${path}: not valid JSON (${(e as Error).message.split('\n')[0]})`);
     }
     const rois = checkRois(parsed);
-    if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...] }; ${rois}`);
-    planeRegions = rois.map((roi) => ({ label: roi.name, indices: maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height)) }));
+    if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] }; ${rois}`);
+    regions = rois.map((roi, k) => {
+      const inPlane = maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height));
+      if (!roi.z) return { label: roi.name, indices: extrude(inPlane, plane, 0, depth - 1) };
+      if (roi.z[1] > nz) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z": ${JSON.stringify(roi.z)}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
+      if (z.projection) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z", but --z ${z.projection} measures one projected plane; leave "z" out or measure in 3D`);
+      // the ROI's slices within the measured ones (none: an empty region, its measures null)
+      return { label: roi.name, indices: extrude(inPlane, plane, Math.max(roi.z[0] - 1, z0) - z0, Math.min(roi.z[1] - 1, z1) - z0) };
+    });
   }
-  const regions =
-    planeRegions === null
-      ? [{ label: 0 as number | string, indices: null as Uint32Array | null }]
-      : planeRegions.map((r) => {
-          if (nz === 1) return r;
-          const out = new Uint32Array(r.indices.length * nz);
-          for (let z = 0; z < nz; z++) for (let k = 0; k < r.indices.length; k++) out[z * r.indices.length + k] = r.indices[k] + z * plane;
-          return { label: r.label, indices: out };
-        });
-  // thresholds once over the union of all regions
+  const whole = regions.length === 1 && regions[0].indices === null;
+  // thresholds once over the union of all regions' voxels
   let union: Uint32Array | null = null;
-  if (planeRegions !== null) {
+  if (!whole) {
     const m = new Uint8Array(ch1.length);
     for (const r of regions) for (const i of r.indices!) m[i] = 1;
     union = maskToIndices(m);
@@ -431,11 +508,11 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
     const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
     if (!o.objects) return { label: r.label, ...rest };
-    // single plane here, so the region's indices are plane indices
+    // one measured plane here, so the region's indices are plane indices
     const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
     return { label: r.label, ...rest, objects };
   });
-  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
+  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
 }
 
 /** Terminal numbers: 4 decimals (p-values in scientific notation), "n/a" when undefined, never "-0.0000". */
@@ -477,10 +554,15 @@ function objectLines(out: AnalyzeOutput): string[] {
   ];
 }
 
+function zText(z: AnalyzeOutput['z']): string {
+  const range = z.from === z.to ? `slice ${z.from}` : `slices ${z.from}-${z.to}`;
+  return z.projection ? `maximum projection of ${range}` : z.from === z.to ? range : `${range} in 3D`;
+}
+
 export function formatTable(out: AnalyzeOutput): string {
   const t = out.thresholds;
   const lines = [
-    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices` : ''} · thresholds ${t.method}: ch1 > ${fmtT(t.ch1)}, ch2 > ${fmtT(t.ch2)}`,
+    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices · ${zText(out.z)}` : ''} · thresholds ${t.method}: ch1 > ${fmtT(t.ch1)}, ch2 > ${fmtT(t.ch2)}`,
   ];
   const cols: [string, (r: OutRegion) => string][] = [
     ['region', (r) => String(r.label)],
