@@ -102,10 +102,8 @@ class Work {
   readonly rows: Int32Array;
   readonly counts: Int32Array;
   readonly c: Int32Array;
-  readonly col: Float64Array;
-  readonly pre: Float64Array;
-  /** W layers j = 1..maxRows, each p + 1 long */
-  readonly W: Float64Array[];
+  readonly best: Float64Array;
+  private w = new Float64Array(0);
   constructor(n: number, L: number, maxRows: number) {
     this.f = new Float64Array(n + 1);
     for (let k = 2; k <= n; k++) this.f[k] = k * Math.log(k);
@@ -119,10 +117,12 @@ class Work {
     this.rows = new Int32Array(n);
     this.counts = new Int32Array(n);
     this.c = new Int32Array(L + 1);
-    this.col = new Float64Array(L + 1);
-    this.pre = new Float64Array(L + 1);
-    this.W = [];
-    for (let j = 0; j <= maxRows; j++) this.W.push(new Float64Array(L + 1));
+    this.best = new Float64Array(maxRows + 2);
+  }
+  /** the DP table, at least `size` long (grown when needed) */
+  layers(size: number): Float64Array {
+    if (this.w.length < size) this.w = new Float64Array(Math.max(size, 2 * this.w.length));
+    return this.w;
   }
 }
 
@@ -192,81 +192,68 @@ function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work):
   return p;
 }
 
-/** col[s] = T(s, t) for s = t−1 down to 0: the column of clumps s+1..t, built by adding one clump at a time. */
-function sweep(t: number, w: Work): void {
-  const { f, cnt, off, rows, counts, c, col } = w;
-  let S = 0;
-  const ct = c[t];
-  for (let s = t - 1; s >= 0; s--) {
-    const e1 = off[s + 1];
-    for (let e = off[s]; e < e1; e++) {
-      const r = rows[e];
-      const a = cnt[r];
-      const b = a + counts[e];
-      S += f[b] - f[a];
-      cnt[r] = b;
-    }
-    col[s] = S - f[ct - c[s]];
-  }
-  for (let e = 0, e1 = off[t]; e < e1; e++) cnt[rows[e]] = 0;
-}
-
 /**
  * OptimizeXAxis: for j = 2..maxCols, the largest mutual information (nats) of grids with the given rows and
  * at most j columns made of consecutive (super)clumps; written to out[j − 2].
+ *
+ * For each t, the last column (clumps s+1..t) is grown one clump at a time as s goes down, so T(s, t) costs
+ * the clump's few row counts, and every layer j takes its candidate W(s, j − 1) + T(s, t) at once
+ * (W is stored t-major: the layers of one t are adjacent).
  */
 function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, maxCols: number, w: Work, out: Float64Array) {
-  const { f, cnt, off, rows, counts, c, col, pre, W } = w;
+  const { f, cnt, off, rows, counts, c, best } = w;
   let hq = f[n];
   for (let r = 0; r < q; r++) hq -= f[rowTotals[r]];
   if (p === 1) {
     out.fill(0, 0, maxCols - 1);
     return;
   }
-  // prefix sizes c[t] (items in clumps 1..t) and W(t, 1) = T(0, t), the first t clumps as one column
-  let S0 = 0;
   c[0] = 0;
   for (let t = 1; t <= p; t++) {
     let m = c[t - 1];
-    for (let e = off[t - 1], e1 = off[t]; e < e1; e++) {
-      const r = rows[e];
-      const a = cnt[r];
-      const b = a + counts[e];
-      m += counts[e];
-      S0 += f[b] - f[a];
-      cnt[r] = b;
-    }
+    for (let e = off[t - 1], e1 = off[t]; e < e1; e++) m += counts[e];
     c[t] = m;
-    pre[t] = S0 - f[m];
   }
-  cnt.fill(0, 0, q);
   const J = maxCols;
-  // W[j][t]: best sum of T over at most j columns of the first t clumps; layers 1..J−1 for every t < p
-  W[1].set(pre.subarray(0, p + 1));
-  // layer j at t = 1 is one clump: nothing to split
-  for (let j = 2; j < J; j++) W[j][1] = pre[1];
-  if (J >= 3)
-    for (let t = 2; t < p; t++) {
-      sweep(t, w);
-      for (let j = 2; j < J; j++) {
-        const prev = W[j - 1];
-        let best = prev[t];
-        for (let s = 1; s < t; s++) {
-          const v = prev[s] + col[s];
-          if (v > best) best = v;
-        }
-        W[j][t] = best;
+  // W[t * J + (j − 1)], j = 1..J−1: best sum of T over at most j columns of the first t clumps (t < p)
+  const W = w.layers((p + 1) * J);
+  // for t = p every layer up to J is needed; for t < p, layers up to J − 1
+  for (let t = 1; t <= p; t++) {
+    const top = t === p ? J : J - 1;
+    const wt = t * J;
+    // the sweep: s = t−1 … 0, column = clumps s+1..t
+    let S = 0;
+    const ct = c[t];
+    for (let j = 2; j <= top; j++) best[j] = -Infinity;
+    for (let s = t - 1; s >= 0; s--) {
+      let d = 0;
+      for (let e = off[s], e1 = off[s + 1]; e < e1; e++) {
+        const r = rows[e];
+        const a0 = cnt[r];
+        const b0 = a0 + counts[e];
+        d += f[b0] - f[a0];
+        cnt[r] = b0;
+      }
+      S += d;
+      const T = S - f[ct - c[s]];
+      if (s === 0) {
+        W[wt] = T;
+        break;
+      }
+      const ws = s * J - 1;
+      for (let j = 2; j <= top; j++) {
+        const v = W[ws + j - 1] + T;
+        if (v > best[j]) best[j] = v;
       }
     }
-  sweep(p, w);
-  let best = pre[p];
-  for (let j = 2; j <= J; j++) {
-    const prev = W[j - 1];
-    for (let s = 1; s < p; s++) {
-      const v = prev[s] + col[s];
-      if (v > best) best = v;
+    for (let e = 0, e1 = off[t]; e < e1; e++) cnt[rows[e]] = 0;
+    let prev = W[wt];
+    for (let j = 2; j <= top; j++) {
+      const v = best[j] > prev ? best[j] : prev;
+      if (j < J) W[wt + j - 1] = v;
+      prev = v;
+      if (t === p) out[j - 2] = (hq + v) / n;
     }
-    out[j - 2] = (hq + best) / n;
   }
 }
 
