@@ -33,6 +33,7 @@ export { randomizationTest, RANDOMIZATION_DEFAULTS } from './randomization';
 export { mic, micOptions, equipartition, MIC_DEFAULTS, type MicOptions, type MicResult } from './mic';
 export { jointHistogram, histogram1d } from './histogram';
 export { chiSquaredDistance, earthMoversDistance1d } from './distances';
+export { quadraticChiDistance, triangleSimilarity } from './quadratic-chi';
 export { rasterize, fillPolygon, fillEllipse, maskToIndices, type Shape, type Point } from './rasterize';
 export { labelRegions, type LabelRegion } from './labels';
 export { NeumaierSum, neumaierSum, FenwickCount, Fenwick4 } from './numeric';
