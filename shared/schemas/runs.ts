@@ -82,6 +82,8 @@ export const MeasurementProvenance = z.object({
   note: z.string().nullable(),
   /** pixels of the cell left out because a channel holds NaN there (float data); absent on rows measured before it was recorded */
   nanPixels: z.number().int().nonnegative().optional(),
+  /** the objects section as applied (σ and d in pixels), when it was on; absent otherwise */
+  objects: z.object({ sigmaPx: z.number(), k: z.number(), minSeparationPx: z.number(), pairDistancePx: z.number(), placements: z.number().int(), seed: z.number().int() }).optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;
