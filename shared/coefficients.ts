@@ -15,7 +15,7 @@
  *
  * This module may import types from the engine; the engine imports nothing from here.
  */
-import { MEASURE_KEYS, type MeasureKey, type RegionResult } from './analysis/types';
+import { MEASURE_KEYS, OBJECT_MEASURE_KEYS, type MeasureKey, type ObjectMeasureKey, type RegionResult } from './analysis/types';
 import { formatNumber, type NumberKind } from './format/number';
 
 export type CoefficientKey = MeasureKey;
@@ -40,6 +40,9 @@ export const COEFFICIENT_CITATIONS = {
   mic: { key: 'Reshef et al. 2011', text: 'Reshef DN, Reshef YA, Finucane HK, Grossman SR, McVean G, Turnbaugh PJ, Lander ES, Mitzenmacher M, Sabeti PC (2011) Detecting novel associations in large data sets. Science 334:1518–1524. doi:10.1126/science.1205438' },
   micE: { key: 'Reshef et al. 2016', text: 'Reshef YA, Reshef DN, Finucane HK, Sabeti PC, Mitzenmacher M (2016) Measuring dependence powerfully and equitably. J. Mach. Learn. Res. 17(212):1–63' },
   li: { key: 'Li et al. 2004', text: 'Li Q, Lau A, Morris TJ, Guo L, Fordyce CB, Stanley EF (2004) A syntaxin 1, Gαo, and N-type calcium channel complex at a presynaptic nerve terminal: analysis by quantitative immunocolocalization. J. Neurosci. 24:4070–4081. doi:10.1523/JNEUROSCI.0346-04.2004' },
+  lindeberg: { key: 'Lindeberg 1998', text: 'Lindeberg T (1998) Feature detection with automatic scale selection. Int. J. Comput. Vis. 30:79–116. doi:10.1023/A:1008045108935' },
+  lachmanovich: { key: 'Lachmanovich et al. 2003', text: 'Lachmanovich E, Shvartsman DE, Malka Y, Botvin C, Henis YI, Weiss AM (2003) Co-localization analysis of complex formation among membrane proteins by computerized fluorescence microscopy: application to immunofluorescence co-patching studies. J. Microsc. 212:122–131. doi:10.1046/j.1365-2818.2003.01239.x' },
+  besagDiggle: { key: 'Besag & Diggle 1977', text: 'Besag J, Diggle PJ (1977) Simple Monte Carlo tests for spatial pattern. Appl. Stat. 26:327–333. doi:10.2307/2346974' },
 } as const satisfies Record<string, Citation>;
 export type CoefficientCitationKey = keyof typeof COEFFICIENT_CITATIONS;
 
@@ -81,7 +84,7 @@ export interface CoefficientSpec {
   fisherZ: boolean;
   /** natural axis range; null = from the data */
   axis: readonly [number, number] | null;
-  /** the recipe choice that computes it; null = always computed (pixels) or decided elsewhere (randomization test) */
+  /** the recipe choice that computes it; null = always computed (pixels) or decided elsewhere (randomization test, the objects section) */
   recipeChoice: RecipeChoice | null;
   /** O(n log L) coefficient the browser preview skips (`skipSlow`) */
   slow: boolean;
@@ -106,6 +109,11 @@ const DCOR_METHODS = 'distance correlation dCor (V-statistic, not squared; {dcor
 const MANDERS_METHODS = "Manders' split coefficients M1 and M2 over pixels above the thresholds ({manders})";
 const K_METHODS = "Manders' k1 and k2 coefficients ({manders})";
 const MIC_METHODS = 'the equicharacteristic-matrix estimators MICe and TICe ({micE}) of the maximal information coefficient ({mic}), with grids of at most B(n) = n^α cells and at most c·B(n)/l clumps on the free axis (α and c as stated in the recipe), TICe being the sum (not the mean) of the matrix';
+const SPOT_METHODS = 'spot counts per channel, spots found as local maxima of a scale-normalised Laplacian-of-Gaussian filter ({lindeberg})';
+const PAIR_METHODS = "the fraction of each channel's spots whose nearest spot of the other channel lies within the pair distance d, mutual nearest-neighbour pairs and median nearest-neighbour distances ({lachmanovich})";
+const CHANCE_METHODS = 'a Monte Carlo test of the channel-1 paired fraction against uniform random placement of the channel-2 spots in the cell, conditioned on the counts ({besagDiggle}), with the mean paired fraction under chance';
+/** the object measures (recipe objects section): shared fields */
+const OBJ = { recipeChoice: null, slow: false, preview: false, results: false, fisherZ: false, cliLabel: null, cellTable: 'optional' } as const;
 
 /** The entries, keyed by the engine's result key. `satisfies Record<MeasureKey, …>`: a key missing or extra fails to compile. */
 const SPECS = {
@@ -194,6 +202,42 @@ const SPECS = {
     label: 'Randomization fraction below', shortLabel: 'rand. below', cliLabel: null, description: "share of scrambles whose r is below the observed r", column: 'randomization_fraction_below', format: 'fraction',
     fisherZ: false, axis: [0, 1], recipeChoice: null, slow: false, compare: false, cellTable: 'none', preview: false, results: false, citations: ['costes'], methods: null,
   },
+  spotCount1: {
+    ...OBJ, label: 'Spots in channel 1', shortLabel: 'spots 1', description: 'spots detected in channel 1 within the cell', column: 'spot_count1', format: 'count',
+    axis: null, compare: true, citations: ['lindeberg'], methods: SPOT_METHODS,
+  },
+  spotCount2: {
+    ...OBJ, label: 'Spots in channel 2', shortLabel: 'spots 2', description: 'spots detected in channel 2 within the cell', column: 'spot_count2', format: 'count',
+    axis: null, compare: true, citations: ['lindeberg'], methods: SPOT_METHODS,
+  },
+  spotPaired1: {
+    ...OBJ, label: 'Channel-1 spots paired within d', shortLabel: 'paired 1', description: 'share of channel-1 spots whose nearest channel-2 spot is within the pair distance d', column: 'spot_paired1', format: 'fraction',
+    axis: [0, 1], compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotPaired2: {
+    ...OBJ, label: 'Channel-2 spots paired within d', shortLabel: 'paired 2', description: 'share of channel-2 spots whose nearest channel-1 spot is within the pair distance d', column: 'spot_paired2', format: 'fraction',
+    axis: [0, 1], compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotMutualPairs: {
+    ...OBJ, label: 'Mutual spot pairs', shortLabel: 'mutual', description: 'pairs of spots that are each other’s nearest neighbour and within d', column: 'spot_mutual_pairs', format: 'count',
+    axis: null, compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotMedianNearest1: {
+    ...OBJ, label: 'Median nearest distance 1→2 (px)', shortLabel: 'nn 1→2', description: 'median distance from a channel-1 spot to its nearest channel-2 spot, pixels', column: 'spot_median_nearest1', format: 'statistic',
+    axis: null, compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotMedianNearest2: {
+    ...OBJ, label: 'Median nearest distance 2→1 (px)', shortLabel: 'nn 2→1', description: 'median distance from a channel-2 spot to its nearest channel-1 spot, pixels', column: 'spot_median_nearest2', format: 'statistic',
+    axis: null, compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotPValue: {
+    ...OBJ, label: 'Chance placement p', shortLabel: 'chance p', description: 'p-value of the channel-1 paired fraction against random placement of the channel-2 spots in the cell', column: 'spot_p_value', format: 'pValue',
+    axis: [0, 1], compare: false, citations: ['besagDiggle'], methods: CHANCE_METHODS,
+  },
+  spotChanceFraction1: {
+    ...OBJ, label: 'Channel-1 spots paired by chance', shortLabel: 'chance 1', description: 'mean channel-1 paired fraction over the random placements', column: 'spot_chance_fraction1', format: 'fraction',
+    axis: [0, 1], compare: true, citations: ['besagDiggle'], methods: CHANCE_METHODS,
+  },
 } as const satisfies Record<MeasureKey, CoefficientSpec>;
 
 export interface CoefficientEntry extends CoefficientSpec {
@@ -248,4 +292,11 @@ export const labelOf = (key: string) => byKey(key).label;
 export const formatCoefficient = (key: CoefficientKey, v: number | null | undefined) => formatNumber(v, byKey(key).format);
 
 /** Registry keys whose engine result type is `number | null` (checked at compile time: the keys index RegionResult). */
-export type CoefficientValues = { [K in CoefficientKey]: RegionResult[K] };
+export type CoefficientValues = { [K in CoefficientKey]: K extends keyof RegionResult ? RegionResult[K] : number | null };
+
+/** The registry entries filled by the objects section of a recipe (objects.ts `objectMeasures`). */
+export const OBJECT_KEYS: readonly ObjectMeasureKey[] = OBJECT_MEASURE_KEYS;
+export const isObjectKey = (key: string): key is ObjectMeasureKey => (OBJECT_MEASURE_KEYS as readonly string[]).includes(key);
+/** The measures of the pixel engine (`measureRegion`), i.e. every key but the object measures. */
+export type PixelMeasureKey = Exclude<CoefficientKey, ObjectMeasureKey>;
+export const isPixelEntry = (c: CoefficientEntry): c is CoefficientEntry & { key: PixelMeasureKey } => !isObjectKey(c.key);

@@ -60,7 +60,7 @@ import {
   type ObjectResult,
 } from '../../shared/analysis/index';
 import { alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '../../shared/analysis/index';
-import { COEFFICIENTS } from '../../shared/coefficients';
+import { COEFFICIENTS, isPixelEntry } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
 import { readLabelStack } from '../images/mask';
@@ -530,7 +530,7 @@ const fmt = (v: number | null, kind: NumberKind) => (v === null ? 'n/a' : kind =
 const fmtT = (v: number | null) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : formatFixed(v, 3));
 
 /** The registry measures with a terminal header (`cliLabel`, shared/coefficients.ts), in registry order. */
-const CLI_COLUMNS = COEFFICIENTS.filter((c) => c.cliLabel !== null);
+const CLI_COLUMNS = COEFFICIENTS.filter(isPixelEntry).filter((c) => c.cliLabel !== null);
 
 type OutRegion = AnalyzeOutput['regions'][number];
 

@@ -153,7 +153,7 @@ export { detectSpots, spotOptions, SPOT_DEFAULTS, type Spot, type SpotDetection,
 export { PointGrid, pairSpots, nearestNeighbours, type PairingResult, type NearestResult } from './pairing';
 export { spotPlacementTest, SPOT_TEST_DEFAULTS, type SpotTestResult, type KEnvelope } from './spot-test';
 export { crossK, type CrossK, type KCorrection, type KWindow } from './ripley';
-export { measureObjects, analyzeObjects, OBJECT_DEFAULTS, OBJECT_RESULT_KEYS, type ObjectResult, type ObjectOptions, type ObjectAnalysis } from './objects';
+export { measureObjects, analyzeObjects, objectMeasures, OBJECT_DEFAULTS, OBJECT_RESULT_KEYS, OBJECT_MEASURE_SOURCE, type ObjectResult, type ObjectOptions, type ObjectAnalysis } from './objects';
 export { nextPowerOfTwo, realFft2dPair, inverseRealFft2d } from './fft';
 export { measureShift, tukeyWindow, SHIFT_TAPER, type ShiftResult, type ShiftOptions } from './phase-correlation';
 export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-correlation';

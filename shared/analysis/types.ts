@@ -148,6 +148,26 @@ export const RANDOMIZATION_RESULT_KEYS = ['randomizationP', 'randomizationFracti
 /** MICe and TICe: computed only when asked for (`mic` option; recipe choice 'mic', `analyze --mic`). */
 export const MIC_RESULT_KEYS = ['micE', 'ticE'] as const;
 
-/** Every numeric per-cell measure the engine reports: the region coefficients, MICe/TICe, then the randomization test. */
-export const MEASURE_KEYS = [...REGION_RESULT_KEYS, ...MIC_RESULT_KEYS, ...RANDOMIZATION_RESULT_KEYS] as const;
+
+/**
+ * The per-cell object measures (objects.ts `measureObjects`, stored by runs when the recipe's objects section
+ * is on), named for the measurements table; `OBJECT_MEASURE_SOURCE` (objects.ts) maps each to its key of the
+ * `analyze` contract (`OBJECT_RESULT_KEYS`).
+ */
+export const OBJECT_MEASURE_KEYS = [
+  'spotCount1',
+  'spotCount2',
+  'spotPaired1',
+  'spotPaired2',
+  'spotMutualPairs',
+  'spotMedianNearest1',
+  'spotMedianNearest2',
+  'spotPValue',
+  'spotChanceFraction1',
+] as const;
+export type ObjectMeasureKey = (typeof OBJECT_MEASURE_KEYS)[number];
+
+
+/** Every numeric per-cell measure the engine reports: the region coefficients, MICe/TICe, the randomization test, then the object measures. */
+export const MEASURE_KEYS = [...REGION_RESULT_KEYS, ...MIC_RESULT_KEYS, ...RANDOMIZATION_RESULT_KEYS, ...OBJECT_MEASURE_KEYS] as const;
 export type MeasureKey = (typeof MEASURE_KEYS)[number];

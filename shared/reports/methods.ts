@@ -91,6 +91,8 @@ function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => stri
       cited('costes');
       sentence += ' The p-value counts the observed image among the scrambles.';
     }
+    if (key === 'objects' && s.objects.enabled)
+      for (const k of ['lindeberg', 'besagDiggle'] as const) sentence = sentence.replace(CITATIONS[k].key, `${CITATIONS[k].key} ${ref(k)}`);
     out.push(sentence);
   }
   return out;

@@ -82,6 +82,42 @@ export const MeasurementProvenance = z.object({
   note: z.string().nullable(),
   /** pixels of the cell left out because a channel holds NaN there (float data); absent on rows measured before it was recorded */
   nanPixels: z.number().int().nonnegative().optional(),
+  /** the objects section as applied (σ and d in pixels), when it was on; absent otherwise */
+  objects: z.lazy(() => AppliedObjectSettings).optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;
+
+/** The objects section as a run applied it: σ, minimum separation and pair distance d in pixels. */
+export const AppliedObjectSettings = z.object({
+  sigmaPx: z.number(),
+  k: z.number(),
+  minSeparationPx: z.number(),
+  pairDistancePx: z.number(),
+  placements: z.number().int(),
+  seed: z.number().int(),
+});
+export type AppliedObjectSettings = z.infer<typeof AppliedObjectSettings>;
+
+/** One detected spot: centre (x right, y down, pixels, origin the top-left corner of pixel (0, 0)), peak and integrated intensity. */
+export const SpotRow = z.object({
+  cellId: z.number().int(),
+  channel: z.union([z.literal(1), z.literal(2)]),
+  x: z.number(),
+  y: z.number(),
+  peak: z.number(),
+  integrated: z.number(),
+});
+export type SpotRow = z.infer<typeof SpotRow>;
+
+/**
+ * `GET /api/runs/:id/fields/:fieldId/spots`: the spots a run found in one field's cells, by cell and channel.
+ * `settings` is null when the run's recipe had the objects section off (then `spots` is empty).
+ */
+export const FieldSpotsResponse = z.object({
+  runId: z.number().int(),
+  fieldId: z.number().int(),
+  settings: AppliedObjectSettings.nullable(),
+  spots: z.array(SpotRow),
+});
+export type FieldSpotsResponse = z.infer<typeof FieldSpotsResponse>;

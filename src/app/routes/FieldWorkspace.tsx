@@ -1,6 +1,7 @@
 /**
  * Route module: the field workspace (/studies/:studyId/fields/:fieldId). The image with its outlines, the
- * Cells list, the Pixel scatter with live coefficients (preview), per-cell results and the cautions.
+ * Cells list, the Pixel scatter with live coefficients (preview), per-cell results, the Spots panel (the
+ * latest run's spots drawn over the image, or live detection at the sliders' σ and k) and the cautions.
  * Keys: V P B O F tools · M background mode · Ctrl+Z / Ctrl+Shift+Z undo/redo · Delete removes the selected
  * outline · arrows nudge it (Shift: 10 px) · + − 0 1 zoom · Esc deselects.
  */
@@ -23,6 +24,9 @@ import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace';
+import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
+import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
+import { cellIndices } from '@shared/schemas/cells';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 import { plural } from '@shared/format/plural';
@@ -82,6 +86,40 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false), [scatter, regionKey, geometry]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
 
+  // spots: the latest run's (stored per cell), or live detection in the worker at the sliders' σ and k
+  const runId = results.data?.source?.runId ?? results.data?.rows.find((r) => r.runId !== null)?.runId ?? null;
+  const fieldSpots = useFieldSpots(runId, fieldId);
+  const [spotToggles, setSpotToggles] = useState<SpotToggles>({ ch1: true, ch2: true, pairs: true });
+  const [liveSpots, setLiveSpots] = useState<LiveSpotSettings>({ on: false, sigma: OBJECT_DEFAULTS.spotSigma, k: OBJECT_DEFAULTS.spotK });
+  useEffect(() => {
+    if (!scatter.ready || !liveSpots.on || gesture) return;
+    scatter.requestSpots(regionKey, geometry, liveSpots.sigma, liveSpots.k);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [scatter.ready, liveSpots, regionKey, gesture]);
+  const stored = fieldSpots.data?.settings;
+  const pairDistancePx = stored?.pairDistancePx ?? OBJECT_DEFAULTS.pairDistance;
+  const livePreviewSpots = liveSpots.on && scatter.spots && scatter.spots.regionKey === regionKey ? scatter.spots : null;
+  const shownSpots = useMemo(() => {
+    // per cell: spots and pairs within d (pairs never cross cells, as in the run)
+    if (liveSpots.on) {
+      if (!livePreviewSpots) return null;
+      const { pairs } = pairsWithin(livePreviewSpots.spots1, livePreviewSpots.spots2, pairDistancePx);
+      return { spots1: livePreviewSpots.spots1, spots2: livePreviewSpots.spots2, pairs, byCell: null };
+    }
+    const rows = fieldSpots.data?.spots;
+    if (!rows?.length) return null;
+    const byCell = new Map<number, { spots1: Xy[]; spots2: Xy[] }>();
+    for (const s of rows) {
+      let c = byCell.get(s.cellId);
+      if (!c) byCell.set(s.cellId, (c = { spots1: [], spots2: [] }));
+      (s.channel === 1 ? c.spots1 : c.spots2).push([s.x, s.y]);
+    }
+    const pairs: SpotPair[] = [];
+    for (const c of byCell.values()) pairs.push(...pairsWithin(c.spots1, c.spots2, pairDistancePx).pairs);
+    return { spots1: [...byCell.values()].flatMap((c) => c.spots1), spots2: [...byCell.values()].flatMap((c) => c.spots2), pairs, byCell };
+  }, [liveSpots.on, livePreviewSpots, fieldSpots.data, pairDistancePx]);
+  const spotRadius = 1.414 * (liveSpots.on ? liveSpots.sigma : (stored?.sigmaPx ?? OBJECT_DEFAULTS.spotSigma));
+
   // keyboard
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
@@ -127,6 +165,19 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const selectedCellId = state.selected ? (state.saved[state.selected]?.id ?? null) : null;
   const live = scatter.live;
   const liveStale = !!scatter.live && (scatter.live.regionKey !== regionKey || (!!scatter.view && (scatter.view.t1 !== scatter.live.t1 || scatter.view.t2 !== scatter.live.t2)));
+  const selectedRow = selectedCellId !== null ? results.data?.rows.find((r) => r.cellId === selectedCellId) : undefined;
+  const selectedSpots =
+    selectedOutline && selectedOutline.role === 'cell'
+      ? liveSpots.on
+        ? livePreviewSpots && { spots1: livePreviewSpots.spots1, spots2: livePreviewSpots.spots2 }
+        : selectedCellId !== null
+          ? (shownSpots?.byCell?.get(selectedCellId) ?? { spots1: [], spots2: [] })
+          : null
+      : null;
+  const spotCell =
+    selectedOutline && selectedSpots
+      ? { name: selectedOutline.name, row: selectedRow, ...selectedSpots, areaPx: selectedRow?.pixels ?? cellIndices(selectedOutline.geometry, field.width, field.height).length }
+      : null;
   const regionSaturated = scatter.view && scatter.view.regionKey === regionKey ? (scatter.view.saturated.ch1 ?? 0) > 0 || (scatter.view.saturated.ch2 ?? 0) > 0 : false;
 
   const status =
@@ -197,6 +248,11 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onAutoRanges={setAutoRanges}
               onGesture={setGesture}
               command={command}
+              overlay={
+                shownSpots && (
+                  <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
+                )
+              }
             />
           </div>
           <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
@@ -253,6 +309,21 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             ) : (
               <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
             )}
+          </section>
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3">
+            <SpotsPanel
+              names={names}
+              toggles={spotToggles}
+              onToggles={setSpotToggles}
+              live={liveSpots}
+              onLive={setLiveSpots}
+              preview={livePreviewSpots && { count1: livePreviewSpots.spots1.length, count2: livePreviewSpots.spots2.length, ms: livePreviewSpots.ms, regionName }}
+              previewError={scatter.spotsError}
+              stored={fieldSpots.isSuccess ? stored : undefined}
+              runId={runId}
+              cell={spotCell}
+              pairDistancePx={pairDistancePx}
+            />
           </section>
           <div className="space-y-2" aria-label="Cautions">
             {(field.saturated || regionSaturated) && (
