@@ -128,6 +128,9 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/tokens': 'session',
   'POST /api/tokens': 'session',
   'DELETE /api/tokens/:id': 'session',
+
+  // api-reference.ts
+  'GET /api/openapi.json': 'signed-in',
 };
 
 /** Rules that let a request through without a session. */
