@@ -141,6 +141,13 @@ export const OPERATIONS: Record<string, Operation> = {
   'POST /api/runs': { summary: 'Start a run of a recipe version over a study, condition, coverslip or field', query: null, body: N(runs, 'CreateRunRequest'), response: N(runs, 'RunDetail'), status: 201 },
   'GET /api/runs': { summary: 'Runs in the studies you may see', query: N(runs, 'RunListQuery'), body: null, response: N(runs, 'RunListResponse') },
   'GET /api/runs/:id': { summary: 'A run with its per-field progress', query: null, body: null, response: N(runs, 'RunDetail') },
+  'GET /api/runs/:id/measurements': {
+    summary: "A run's measurements, one page at a time (every registry measure, the ids of cell, field, coverslip and condition, provenance)",
+    query: N(runs, 'RunMeasurementsQuery'),
+    body: null,
+    response: N(runs, 'RunMeasurementsPage'),
+  },
+  'GET /api/runs/:id/measurements.csv': { summary: "All of a run's measurements as CSV, streamed", query: null, body: null, response: CSV('one row per measurement, the columns of MEASUREMENT_CSV_COLUMNS') },
 
   'GET /api/studies/:studyId/measurement-sources': { summary: 'The recipes and runs that measured a study', query: null, body: null, response: N(cellTable, 'MeasurementSources') },
   'GET /api/studies/:studyId/cell-table': { summary: 'One page of the Cell table', query: N(cellTable, 'GridQuery'), body: null, response: N(cellTable, 'GridResponse') },

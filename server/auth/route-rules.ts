@@ -92,6 +92,8 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/runs': { study: 'run' }, // the study of the scope in the body
   'GET /api/runs': 'signed-in', // filtered to readable studies; ?studyId= checks 'read'
   'GET /api/runs/:id': { study: 'read' },
+  'GET /api/runs/:id/measurements': { study: 'read' },
+  'GET /api/runs/:id/measurements.csv': { study: 'read' },
 
   // cell-table.ts
   'GET /api/studies/:studyId/measurement-sources': { study: 'read' },
