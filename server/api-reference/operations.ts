@@ -125,6 +125,20 @@ export const OPERATIONS: Record<string, Operation> = {
   'PATCH /api/cells/:id': { summary: 'Change an outline', query: null, body: N(cells, 'UpdateCellRequest'), response: N(cells, 'CellResponse') },
   'DELETE /api/cells/:id': { summary: 'Delete an outline', query: null, body: null, response: N(cells, 'DeleteCellResponse') },
   'POST /api/fields/:id/cells/import': { summary: 'Import cells from a label-image TIFF', query: null, body: { multipart: { file: 'file' } }, response: N(cells, 'ImportLabelsResponse'), status: 201 },
+  'GET /api/fields/:id/cells.geojson': {
+    summary: "A field's outlines as GeoJSON (RFC 7946) in pixel coordinates",
+    query: null,
+    body: null,
+    response: { media: 'application/geo+json', description: 'a FeatureCollection of Polygon and MultiPolygon features (the OutlineCollection schema)' },
+  },
+  'POST /api/fields/:id/cells/geojson': {
+    summary: 'Import outlines from a GeoJSON file (all or nothing; ?replace=1 replaces earlier GeoJSON imports)',
+    query: null,
+    body: { multipart: { file: N(cells, 'OutlineCollection') } },
+    response: N(cells, 'ImportOutlinesResponse'),
+    status: 201,
+  },
+  'GET /api/fields/:id/cells/labels.tiff': { summary: "A field's cells as a label-image TIFF (0 = no cell)", query: null, body: null, response: { media: 'image/tiff', description: 'a 16- or 32-bit label image' } },
   'POST /api/fields/:id/cells/auto': { summary: 'Find cells automatically', query: null, body: N(cells, 'AutoOutlineRequest'), response: N(cells, 'AutoOutlineResponse'), status: 201 },
 
   'GET /api/recipes': { summary: 'Recipe versions', query: N(recipes, 'RecipeListQuery'), body: null, response: N(recipes, 'RecipeListResponse') },

@@ -75,6 +75,9 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'DELETE /api/cells/:id': { study: 'edit_images' },
   'POST /api/fields/:id/cells/import': { study: 'edit_images' },
   'POST /api/fields/:id/cells/auto': { study: 'edit_images' },
+  'GET /api/fields/:id/cells.geojson': { study: 'read' },
+  'POST /api/fields/:id/cells/geojson': { study: 'edit_images' },
+  'GET /api/fields/:id/cells/labels.tiff': { study: 'read' },
 
   // recipes.ts: recipes are facility-wide, not study-scoped
   'GET /api/recipes': { global: 'read_recipes' },
