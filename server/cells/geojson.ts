@@ -8,8 +8,8 @@
  * (shared/analysis/outline-trace.ts): a Polygon with holes, or a MultiPolygon for a mask in several parts.
  *
  * Import (the reverse): `kind: "rect" | "ellipse"` with a valid `shape` is stored as that shape; a Polygon
- * with one ring as a polygon (`kind: "freehand"`: a trace) with its vertices kept; a Polygon with holes or a
- * MultiPolygon as the pixel mask its rings cover (even-odd per polygon, polygons joined; shared/analysis/
+ * with one ring as a polygon (`kind: "freehand"`: a trace) with its vertices kept; `kind: "label"`, a Polygon
+ * with holes or a MultiPolygon as the pixel mask its rings cover (even-odd per polygon, polygons joined; shared/analysis/
  * rasterize.ts fillRings), so holes are kept and export gives back the same outline. Every feature is checked
  * before anything is stored; the first fault is an error naming the feature (index and name) and what is wrong.
  */
@@ -155,7 +155,7 @@ export function readOutlines(doc: Json, width: number, height: number): Imported
       const parsed = (kind === 'rect' ? RectGeometry : EllipseGeometry).safeParse({ kind, ...(isObj(props.shape) ? props.shape : {}) });
       if (!parsed.success) throw bad(`kind "${kind}" needs its exact shape in properties.shape (${parsed.error.issues[0].path.join('.') || 'shape'}: ${parsed.error.issues[0].message})`, 'properties.shape');
       out[i] = { name, role, geometry: parsed.data, pixelCount: count(parsed.data, at) };
-    } else if (polygons.length === 1 && polygons[0].length === 1) {
+    } else if (kind !== 'label' && polygons.length === 1 && polygons[0].length === 1) {
       const geometry: CellGeometry = { kind: kind === 'freehand' ? 'freehand' : 'polygon', points: polygons[0][0] };
       out[i] = { name, role, geometry, pixelCount: count(geometry, at) };
     } else {
