@@ -4,7 +4,7 @@ export { useFieldResults } from './api/useFieldResults';
 export { CellsPanel } from './components/CellsPanel';
 export { DisplayPanel, channelNames } from './components/DisplayPanel';
 export { LivePreview } from './components/LivePreview';
-export { AutoOutlineDialog, ImportLabelsDialog } from './components/OutlineActions';
+export { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from './components/OutlineActions';
 export { PixelScatter } from './components/PixelScatter';
 export { ResultsTable } from './components/ResultsTable';
 export { TOOLS, ToolBar } from './components/ToolBar';
