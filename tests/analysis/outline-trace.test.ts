@@ -3,12 +3,15 @@
  * (rasterize.ts fillRings, per polygon, polygons joined) gives back exactly the pixel set; outer rings have
  * positive and holes negative shoelace area, and their areas sum to the pixel count; outer rings minus holes
  * is the Euler number of the set with 4-connected pixels and 8-connected background (Gray 1971, IEEE Trans.
- * Computers C-20(5):551–561 — from memory), counted here from 2 × 2 neighbourhoods (by definition).
+ * Computers C-20(5):551–561 — from memory), counted here from 2 × 2 neighbourhoods (by definition) and
+ * taken from scikit-image (tests/fixtures/outlines/generate.py: `measure.euler_number`, and `measure.label`
+ * for the 4-connected components, one outer ring each).
  */
 import { describe, expect, it } from 'vitest';
 import { traceOutline, ringArea } from '../../shared/analysis/outline-trace';
 import { fillRings, maskToIndices } from '../../shared/analysis/rasterize';
 import { Xoshiro128 } from '../../shared/analysis/prng';
+import expected from '../fixtures/outlines/expected.json';
 
 function refill(polys: ReturnType<typeof traceOutline>, w: number, h: number) {
   const mask = new Uint8Array(w * h);
@@ -83,5 +86,16 @@ describe('traceOutline', () => {
     expect(traceOutline(idx, w, h)).toEqual([{ rings: [[[2998, 1999], [3000, 1999], [3000, 2000], [2998, 2000]]] }]);
     expect(traceOutline([], w, h)).toEqual([]);
     expect(() => traceOutline([w * h], w, h)).toThrow(/outside the 3000 × 2000 field/);
+  });
+});
+
+describe('traceOutline against scikit-image', () => {
+  it.each(expected.cases.map((c, i) => [i, c] as const))('case %i: one polygon per 4-connected component, components − holes = Euler number', (_i, c) => {
+    const mask = Uint8Array.from(c.mask, (ch) => (ch === '1' ? 1 : 0));
+    const polys = traceOutline(maskToIndices(mask), c.width, c.height);
+    expect(polys.length).toBe(c.components); // skimage.measure.label(connectivity=1)
+    const holes = polys.reduce((s, p) => s + p.rings.length - 1, 0);
+    expect(polys.length - holes).toBe(c.euler); // skimage.measure.euler_number(connectivity=1)
+    expect(refill(polys, c.width, c.height)).toEqual(mask);
   });
 });
