@@ -146,7 +146,8 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       slipMeanZ.set(s.id, z);
       m = back(z);
     }
-    return { id: s.id, name: s.name, replicate: s.replicate, conditionId: s.conditionId, colorIndex: i, nCells: vals.length, mean: nn(m), median: vals.length ? nn(median(vals)) : null, sd: vals.length > 1 ? nn(sd(vals)) : null };
+    const meanZ = fisher && slipMeanZ.has(s.id) ? nn(slipMeanZ.get(s.id)!) : null;
+    return { id: s.id, name: s.name, replicate: s.replicate, conditionId: s.conditionId, colorIndex: i, nCells: vals.length, mean: nn(m), meanZ, median: vals.length ? nn(median(vals)) : null, sd: vals.length > 1 ? nn(sd(vals)) : null };
   });
 
   // ---- bootstrap (coverslips, then cells)
@@ -165,6 +166,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       nCoverslips: ms.length,
       nCells: hierarchy[i].reduce((s, v) => s + v.length, 0),
       mean: ms.length ? nn(back(mean(ms))) : null,
+      meanZ: fisher && ms.length ? nn(mean(ms)) : null,
       sdOfCoverslipMeans: ms.length > 1 ? nn(sd(ms)) : null,
       ci: { lower: nn(boot.conditions[i].lower), upper: nn(boot.conditions[i].upper) },
     };
@@ -257,7 +259,15 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
     coefficient,
     label,
     averaging: fisher ? 'fisher_z' : 'arithmetic',
-    source: { runId: src.runId, recipeId: src.recipeId, recipeName: src.recipeName, recipeVersion: src.recipeVersion },
+    source: {
+      kind: src.runId !== null ? 'run' : src.recipeId !== null ? 'recipe' : 'none',
+      pinned: opts.runId !== undefined || opts.recipeId !== undefined,
+      runId: src.runId,
+      recipeId: src.recipeId,
+      recipeName: src.recipeName,
+      recipeVersion: src.recipeVersion,
+    },
+    scale: fisher ? 'fisher_z' : 'identity',
     bootstrap: { resamples: boot.resamples, seed: boot.seed, confidence: boot.confidence },
     points: used.map((r) => ({ cellId: r.cellId, fieldId: r.fieldId, coverslipId: r.coverslipId, conditionId: r.conditionId, value: r.value as number })),
     coverslips,

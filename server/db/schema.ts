@@ -163,7 +163,7 @@ export const cells = sqliteTable('cells', {
   /** 'cell' regions are measured; 'background' marks a region for background subtraction */
   role: text('role', { enum: ['cell', 'background'] }).notNull().default('cell'),
   geometry: text('geometry', { mode: 'json' }).$type<CellGeometry>().notNull(),
-  source: text('source', { enum: ['drawn', 'label_image', 'automatic', 'seed'] }).notNull().default('drawn'),
+  source: text('source', { enum: ['drawn', 'label_image', 'automatic', 'seed', 'geojson'] }).notNull().default('drawn'),
   pixelCount: integer('pixel_count').notNull().default(0),
   excluded: integer('excluded', { mode: 'boolean' }).notNull().default(false),
   exclusionReason: text('exclusion_reason'),

@@ -1,6 +1,10 @@
 /** Runs: one recipe version applied to a scope (field, coverslip, condition, study); progress and provenance. */
 import { z } from 'zod';
 import { RecipeSettings, RecipeStatus } from './recipes.js';
+import { MEASURE_KEYS, type MeasureKey } from '../analysis/types.js';
+
+/** What a run stores per cell besides the registry's measures: the recipe's per-cell inputs and channel means. */
+export const MEASUREMENT_INPUT_KEYS = ['threshold1', 'threshold2', 'background1', 'background2', 'saturatedFraction1', 'saturatedFraction2', 'mean1', 'mean2'] as const;
 
 export const RunScopeKind = z.enum(['field', 'coverslip', 'condition', 'study']);
 export type RunScopeKind = z.infer<typeof RunScopeKind>;
@@ -121,3 +125,72 @@ export const FieldSpotsResponse = z.object({
   spots: z.array(SpotRow),
 });
 export type FieldSpotsResponse = z.infer<typeof FieldSpotsResponse>;
+
+/**
+ * GET /api/runs/:id/measurements: a run's measurements, one page at a time in measurement-id order. `cursor`
+ * is the `nextCursor` of the previous page (absent for the first); the last page has `nextCursor: null`.
+ * Cells deleted since the run are left out, as in the Cell table.
+ */
+export const MAX_MEASUREMENTS_PAGE = 5000;
+export const RunMeasurementsQuery = z.object({
+  cursor: z
+    .string()
+    .refine((v) => /^(0|[1-9][0-9]{0,15})$/.test(v) && Number.isSafeInteger(Number(v)), {
+      error: (iss) => `expected the nextCursor of the previous page (a whole number), got ${JSON.stringify(iss.input)}`,
+    })
+    .transform(Number)
+    .optional(),
+  limit: z.coerce.number().int().min(1).max(MAX_MEASUREMENTS_PAGE).default(1000),
+});
+export type RunMeasurementsQuery = z.infer<typeof RunMeasurementsQuery>;
+
+const Measure = z.number().nullable();
+/** One measurement: where the cell is (ids and names), every registry measure, the per-cell inputs, provenance. */
+export const RunMeasurement = z.object({
+  measurementId: z.number().int(),
+  runId: z.number().int(),
+  cellId: z.number().int(),
+  cell: z.string(),
+  fieldId: z.number().int(),
+  field: z.string(),
+  coverslipId: z.number().int(),
+  coverslip: z.string(),
+  replicate: z.number().int(),
+  conditionId: z.number().int(),
+  condition: z.string(),
+  ...(Object.fromEntries(MEASURE_KEYS.map((k) => [k, Measure])) as Record<MeasureKey, typeof Measure>),
+  ...(Object.fromEntries(MEASUREMENT_INPUT_KEYS.map((k) => [k, Measure])) as Record<(typeof MEASUREMENT_INPUT_KEYS)[number], typeof Measure>),
+  thresholdMethod: z.string().nullable(),
+  provisional: z.boolean(),
+  excluded: z.boolean(),
+  provenance: MeasurementProvenance,
+});
+export type RunMeasurement = z.infer<typeof RunMeasurement>;
+
+export const RunMeasurementsPage = z.object({
+  run: z.object({
+    id: z.number().int(),
+    studyId: z.number().int(),
+    status: RunStatus,
+    provisional: z.boolean(),
+    recipeId: z.number().int(),
+    recipeName: z.string(),
+    recipeVersion: z.number().int(),
+  }),
+  measurements: z.array(RunMeasurement),
+  nextCursor: z.number().int().nullable(),
+});
+export type RunMeasurementsPage = z.infer<typeof RunMeasurementsPage>;
+
+/** Columns of GET /api/runs/:id/measurements.csv, in order: the JSON keys with provenance flattened to its main parts. */
+export const MEASUREMENT_CSV_COLUMNS = [
+  ...(Object.keys(RunMeasurement.shape).filter((k) => k !== 'provenance') as Exclude<keyof RunMeasurement, 'provenance'>[]),
+  'recipeId',
+  'recipeVersion',
+  'engineVersion',
+  'seed',
+  'z',
+  'input1Sha256',
+  'input2Sha256',
+  'computedAt',
+] as const;

@@ -13,6 +13,7 @@ const NAV: { to: string; label: string; roles?: Role[] }[] = [
   { to: '/people', label: 'People & labs', roles: ['facility_manager'] },
   { to: '/outbox', label: 'Outbox', roles: ['facility_manager'] },
   { to: '/account', label: 'Account' },
+  { to: '/api-reference', label: 'API reference' },
 ];
 
 export function Shell() {

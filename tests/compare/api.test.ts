@@ -178,9 +178,9 @@ describe('CSV exports (RFC 4180)', () => {
     const res = await bio.get(`/api/studies/${t.world.studyA}/compare/coverslips.csv?coefficient=mandersM1&resamples=200`);
     expect(res.status).toBe(200);
     const lines = res.text.split('\r\n').filter(Boolean);
-    expect(lines[0]).toBe('condition,coverslip,replicate,coverslipId,cells,mean_mandersM1,median_mandersM1,sd_mandersM1,averaging');
+    expect(lines[0]).toBe('condition,conditionId,coverslip,replicate,coverslipId,cells,mean_mandersM1,mean_z_mandersM1,median_mandersM1,sd_mandersM1,averaging,sourceKind,runId,recipeId,recipeName,recipeVersion,scale');
     expect(lines).toHaveLength(1 + 7 + 1); // 7 seeded coverslips + the world's empty CS1
-    expect(lines.find((l) => l.startsWith('untreated,untreated CS2,2,'))).toMatch(/,10,/);
+    expect(lines.find((l) => /^untreated,\d+,untreated CS2,2,/.test(l))).toMatch(/,10,/);
     expect(lines.some((l) => l.startsWith('"treated, ""high""",'))).toBe(true);
   });
 });

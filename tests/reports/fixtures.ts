@@ -7,6 +7,7 @@ import { eq } from 'drizzle-orm';
 import type { AppContext } from '../../server/context.js';
 import { cells, conditions, coverslips, measurements, recipes, runFields, runs } from '../../server/db/schema.js';
 import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
+import type { MeasurementProvenance } from '../../shared/schemas/runs.js';
 import type { World } from '../utils/app.js';
 import { addField, gridCells, syntheticPair } from '../runs/helpers.js';
 
@@ -93,7 +94,23 @@ export function insertRun(ctx: AppContext, studyId: number, rw: ReportWorld, val
           saturatedFraction1: 0,
           saturatedFraction2: 0,
           provisional: !!opts.provisional,
-          provenance: { recipeId: rw.recipeId, engineVersion: opts.engine ?? 'syntopy-engine 1.0.0', z: 'range 1-3', seed: rw.settings.seed },
+          provenance: {
+            recipeId: rw.recipeId,
+            recipeName: 'Facility standard',
+            recipeVersion: 2,
+            recipeStatus: opts.provisional ? 'draft' : 'approved',
+            engineVersion: opts.engine ?? 'syntopy-engine 1.0.0',
+            inputSha256: ['1'.repeat(64), '2'.repeat(64)],
+            channels: [0, 1],
+            thresholds: { method: 'costes', ch1: 200 + s, ch2: 150 + c },
+            background: [97, 83],
+            seed: rw.settings.seed,
+            z: 'range 1-3',
+            randomizationBlock: null,
+            randomizationCount: 0,
+            note: null,
+            computedAt: '2026-12-01T10:00:00.000Z',
+          } satisfies MeasurementProvenance,
         })
         .run();
     }

@@ -23,7 +23,7 @@ import { DisplayPanel, channelNames } from '@/features/workspace';
 import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
-import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace';
+import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -56,7 +56,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [display, setDisplay] = useState<DisplaySettings>({ view: 'composite', z: undefined, range1: null, range2: null });
   const [autoRanges, setAutoRanges] = useState<[number, number][] | null>(null);
   const [command, setCommand] = useState<{ kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null>(null);
-  const [dialog, setDialog] = useState<null | 'labels' | 'auto'>(null);
+  const [dialog, setDialog] = useState<null | 'labels' | 'outlines' | 'auto'>(null);
   const [notice, setNotice] = useState<string | null>(null);
   const [manual, setManual] = useState<{ t1: number; t2: number } | null>(null);
   const loaded = useRef(false);
@@ -205,12 +205,21 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         ]}
         description={`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''}${field.pixelSizeUm ? ` · ${field.pixelSizeUm} µm/px` : ''} · ${names[0]} and ${names[1]}`}
         actions={
-          canEdit ? (
-            <>
-              <Button onClick={() => setDialog('labels')}>Import label image</Button>
-              <Button onClick={() => setDialog('auto')}>Find cells…</Button>
-            </>
-          ) : undefined
+          <>
+            <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells.geojson`} download>
+              Outlines (GeoJSON)
+            </a>
+            <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells/labels.tiff`} download>
+              Label image (TIFF)
+            </a>
+            {canEdit && (
+              <>
+                <Button onClick={() => setDialog('labels')}>Import label image</Button>
+                <Button onClick={() => setDialog('outlines')}>Import outlines…</Button>
+                <Button onClick={() => setDialog('auto')}>Find cells…</Button>
+              </>
+            )}
+          </>
         }
       />
       {notice && (
@@ -339,6 +348,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         </aside>
       </div>
       <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
+      <ImportOutlinesDialog fieldId={fieldId} open={dialog === 'outlines'} onClose={() => setDialog(null)} onDone={setNotice} />
       <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} pixelCount={field.width * field.height} />
     </div>
   );

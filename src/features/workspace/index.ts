@@ -5,7 +5,7 @@ export { useFieldSpots } from './api/useFieldSpots';
 export { CellsPanel } from './components/CellsPanel';
 export { DisplayPanel, channelNames } from './components/DisplayPanel';
 export { LivePreview } from './components/LivePreview';
-export { AutoOutlineDialog, ImportLabelsDialog } from './components/OutlineActions';
+export { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from './components/OutlineActions';
 export { PixelScatter } from './components/PixelScatter';
 export { ResultsTable } from './components/ResultsTable';
 export { SpotLayer } from './components/SpotLayer';
