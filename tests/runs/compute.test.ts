@@ -54,6 +54,22 @@ describe('computeField', () => {
     }
   });
 
+  it('MICe/TICe: off in a new recipe (null), computed with the recipe\'s alpha and c when chosen', () => {
+    const g = rect(8, 8, 20, 16);
+    const idx = cellIndices(g, W, H);
+    const cell = [{ id: 1, role: 'cell' as const, geometry: g }];
+    expect(RecipeSettings.parse({}).coefficients).not.toContain('mic');
+    const [off] = computeField(job({ threshold: { method: 'none' } }, cell), { width: W, height: H, ch1: A, ch2: B });
+    expect(off.micE).toBeNull();
+    expect(off.ticE).toBeNull();
+    const [on] = computeField(job({ threshold: { method: 'none' }, coefficients: ['pearson', 'mic'], mic: { alpha: 0.7, c: 5 } }, cell), { width: W, height: H, ch1: A, ch2: B });
+    const ref = measureRegion(A, B, idx, { threshold: { method: 'none' }, mic: { alpha: 0.7, c: 5 } });
+    expect(on.micE).toBe(ref.micE);
+    expect(on.ticE).toBe(ref.ticE);
+    expect(on.micE).not.toBe(measureRegion(A, B, idx, { mic: {} }).micE);
+    expect(() => RecipeSettings.parse({ mic: { alpha: 0, c: 15 } })).toThrow(/alpha must be above 0/);
+  });
+
   it('saturation "exclude" drops pixels saturated in either channel; fractions count them', () => {
     const a = A.slice(), b = B.slice();
     const g = rect(4, 4, 10, 10);
