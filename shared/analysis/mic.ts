@@ -302,7 +302,8 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
     for (let i = 0; i < nRows; i++) {
       const l = i + 2;
       const m = M[i].length;
-      const maxCols = Math.min(l, m + 1);
+      // side 0 stops below the diagonal k = l: that entry comes from side 1 (x equipartitioned)
+      const maxCols = Math.min(side === 0 ? l - 1 : l, m + 1);
       if (maxCols < 2) continue;
       const cap = Math.max(Math.trunc(c * (m + 1)), 1);
       const { rowOf, q, totals } = rowsOf(eq, n, l);
