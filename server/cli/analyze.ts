@@ -89,7 +89,7 @@ export const HELP = [
   '  --threshold METHOD          none (default), manual (with --t1 and --t2), otsu or costes',
   '  --t1 N --t2 N               manual thresholds of channel 1 and channel 2',
   `  --mic                       also compute MICe and TICe (Reshef et al. 2016; alpha ${MIC_DEFAULTS.alpha}, c ${MIC_DEFAULTS.c}),`,
-  '                              about 0.1 s per 20,000 pixels; adds "micE" and "ticE" to each region',
+  '                              up to about 0.5 s per 20,000 pixels; adds "micE" and "ticE" to each region',
   '  --objects                   also detect spots in each channel, pair them and test against chance;',
   '                              the five options below need --objects',
   `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma})`,

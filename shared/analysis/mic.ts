@@ -94,13 +94,13 @@ class Work {
   readonly f: Float64Array;
   readonly cnt: Int32Array;
   readonly touched: Int32Array;
+  /** per clump: its row, or −1 − level for a mixed tie group */
   readonly label: Int32Array;
-  readonly groupOf: Int32Array;
   readonly size: Int32Array;
   readonly sup: Int32Array;
   readonly off: Int32Array;
-  readonly rows: Int32Array;
-  readonly counts: Int32Array;
+  /** clump entries: row, count, row, count, … */
+  readonly rc: Int32Array;
   readonly c: Int32Array;
   readonly best: Float64Array;
   private w = new Float64Array(0);
@@ -110,12 +110,10 @@ class Work {
     this.cnt = new Int32Array(maxRows + 1);
     this.touched = new Int32Array(maxRows + 1);
     this.label = new Int32Array(L);
-    this.groupOf = new Int32Array(L);
     this.size = new Int32Array(L);
     this.sup = new Int32Array(L);
     this.off = new Int32Array(L + 1);
-    this.rows = new Int32Array(n);
-    this.counts = new Int32Array(n);
+    this.rc = new Int32Array(2 * n);
     this.c = new Int32Array(L + 1);
     this.best = new Float64Array(maxRows + 2);
   }
@@ -128,68 +126,66 @@ class Work {
 
 /**
  * The (super)clumps of the free axis for a given row of each level of the equipartitioned axis: returns
- * their number p and fills w.off/rows/counts (clump g's sparse row counts at off[g] .. off[g+1]).
+ * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]).
  */
 function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work): number {
   const { L, start, other, counts: levelCounts } = free;
-  const { label, groupOf, cnt, touched, off, rows, counts } = w;
-  // label per free level: its row when all its items share one, else −1 (a mixed tie group)
+  const { label, size, sup, cnt, touched, off, rc } = w;
+  // clumps in free-axis order: consecutive levels whose items all lie in one row merge (label = that row);
+  // a level whose tied items lie in different rows is a clump of its own (label −1 − level)
+  let p = 0;
+  let prev = -1;
   for (let k = 0; k < L; k++) {
     const a = start[k];
-    const b = start[k + 1];
-    const r = rowOf[other[a]];
-    let lab = r;
-    for (let i = a + 1; i < b; i++)
-      if (rowOf[other[i]] !== r) {
-        lab = -1;
+    const m = levelCounts[k];
+    let lab = rowOf[other[a]];
+    for (let i = a + 1; i < a + m; i++)
+      if (rowOf[other[i]] !== lab) {
+        lab = -1 - k;
         break;
       }
-    label[k] = lab;
+    if (lab >= 0 && lab === prev) size[p - 1] += m;
+    else {
+      label[p] = lab;
+      size[p] = m;
+      p++;
+    }
+    prev = lab;
   }
-  // clump per free level: consecutive pure levels of the same row merge; a mixed level stands alone
-  let p = 0;
-  groupOf[0] = 0;
-  for (let k = 1; k < L; k++) {
-    const lab = label[k];
-    if (lab < 0 || lab !== label[k - 1]) p++;
-    groupOf[k] = p;
-  }
-  p++;
-  if (p > cap) {
-    const { size, sup } = w;
-    size.fill(0, 0, p);
-    for (let k = 0; k < L; k++) size[groupOf[k]] += levelCounts[k];
-    p = equipartition(size, p, n, cap, sup);
-    for (let k = 0; k < L; k++) groupOf[k] = sup[groupOf[k]];
-  }
-  // sparse row counts per group (the levels of a group are consecutive)
+  // superclumps: the clumps equipartitioned by size into at most about `cap` groups
+  const grouped = p > cap;
+  const groups = grouped ? equipartition(size, p, n, cap, sup) : p;
+  // sparse (row, count) entries per group (the clumps of a group are consecutive)
   let e = 0;
-  let k = 0;
-  for (let g = 0; g < p; g++) {
+  let j = 0;
+  for (let g = 0; g < groups; g++) {
     off[g] = e;
     let nt = 0;
-    while (k < L && groupOf[k] === g) {
-      const lab = label[k];
+    while (j < p && (grouped ? sup[j] : j) === g) {
+      const lab = label[j];
       if (lab >= 0) {
         if (cnt[lab] === 0) touched[nt++] = lab;
-        cnt[lab] += levelCounts[k];
-      } else
+        cnt[lab] += size[j];
+      } else {
+        const k = -1 - lab;
         for (let i = start[k]; i < start[k + 1]; i++) {
           const r = rowOf[other[i]];
           if (cnt[r] === 0) touched[nt++] = r;
           cnt[r]++;
         }
-      k++;
+      }
+      j++;
     }
     for (let u = 0; u < nt; u++) {
       const r = touched[u];
-      rows[e] = r;
-      counts[e++] = cnt[r];
+      rc[2 * e] = r;
+      rc[2 * e + 1] = cnt[r];
+      e++;
       cnt[r] = 0;
     }
   }
-  off[p] = e;
-  return p;
+  off[groups] = e;
+  return groups;
 }
 
 /**
@@ -201,52 +197,61 @@ function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work):
  * (W is stored t-major: the layers of one t are adjacent).
  */
 function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, maxCols: number, w: Work, out: Float64Array) {
-  const { f, cnt, off, rows, counts, c, best } = w;
+  const { f, cnt, off, rc, c, best } = w;
   let hq = f[n];
   for (let r = 0; r < q; r++) hq -= f[rowTotals[r]];
   if (p === 1) {
     out.fill(0, 0, maxCols - 1);
     return;
   }
-  c[0] = 0;
-  for (let t = 1; t <= p; t++) {
-    let m = c[t - 1];
-    for (let e = off[t - 1], e1 = off[t]; e < e1; e++) m += counts[e];
-    c[t] = m;
-  }
   const J = maxCols;
   // W[t * J + (j − 1)], j = 1..J−1: best sum of T over at most j columns of the first t clumps (t < p)
   const W = w.layers((p + 1) * J);
-  // for t = p every layer up to J is needed; for t < p, layers up to J − 1
+  // prefix sizes c[t] and W(t, 1) = T(0, t) (the first t clumps as one column), in one forward pass
+  c[0] = 0;
+  let S0 = 0;
   for (let t = 1; t <= p; t++) {
+    let m = c[t - 1];
+    for (let e = 2 * off[t - 1], e1 = 2 * off[t]; e < e1; e += 2) {
+      const r = rc[e];
+      const k = rc[e + 1];
+      const a0 = cnt[r];
+      S0 += f[a0 + k] - f[a0];
+      cnt[r] = a0 + k;
+      m += k;
+    }
+    c[t] = m;
+    W[t * J] = S0 - f[m];
+  }
+  cnt.fill(0, 0, q);
+  // one clump: every layer equals one column
+  for (let j = 2; j < J; j++) W[J + j - 1] = W[J];
+  // for t = p every layer up to J is needed; for t < p, layers 2..J−1 (none when J = 2)
+  for (let t = J > 2 ? 2 : p; t <= p; t++) {
     const top = t === p ? J : J - 1;
     const wt = t * J;
-    // the sweep: s = t−1 … 0, column = clumps s+1..t
+    // the sweep: s = t−1 … 1, column = clumps s+1..t grown one clump at a time
     let S = 0;
     const ct = c[t];
     for (let j = 2; j <= top; j++) best[j] = -Infinity;
-    for (let s = t - 1; s >= 0; s--) {
+    for (let s = t - 1; s >= 1; s--) {
       let d = 0;
-      for (let e = off[s], e1 = off[s + 1]; e < e1; e++) {
-        const r = rows[e];
+      for (let e = 2 * off[s], e1 = 2 * off[s + 1]; e < e1; e += 2) {
+        const r = rc[e];
         const a0 = cnt[r];
-        const b0 = a0 + counts[e];
+        const b0 = a0 + rc[e + 1];
         d += f[b0] - f[a0];
         cnt[r] = b0;
       }
       S += d;
       const T = S - f[ct - c[s]];
-      if (s === 0) {
-        W[wt] = T;
-        break;
-      }
       const ws = s * J - 1;
       for (let j = 2; j <= top; j++) {
         const v = W[ws + j - 1] + T;
         if (v > best[j]) best[j] = v;
       }
     }
-    for (let e = 0, e1 = off[t]; e < e1; e++) cnt[rows[e]] = 0;
+    for (let e = 2 * off[1], e1 = 2 * off[t]; e < e1; e += 2) cnt[rc[e]] = 0;
     let prev = W[wt];
     for (let j = 2; j <= top; j++) {
       const v = best[j] > prev ? best[j] : prev;
@@ -297,7 +302,8 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
     for (let i = 0; i < nRows; i++) {
       const l = i + 2;
       const m = M[i].length;
-      const maxCols = Math.min(l, m + 1);
+      // side 0 stops below the diagonal k = l: that entry comes from side 1 (x equipartitioned)
+      const maxCols = Math.min(side === 0 ? l - 1 : l, m + 1);
       if (maxCols < 2) continue;
       const cap = Math.max(Math.trunc(c * (m + 1)), 1);
       const { rowOf, q, totals } = rowsOf(eq, n, l);

@@ -178,7 +178,7 @@ export const SETTING_LABELS: Record<SettingKey, string> = {
 };
 
 /** Measured cost of MICe/TICe at α 0.6, c 15 (tests/bench/mic.bench.ts), stated in the recipe sentence. */
-const MIC_COST = '0.1 s of one processor core';
+const MIC_COST = 'They cost up to about half a second of one processor core per 20,000-pixel cell of 16-bit data (about 35 ms for 8-bit data with many ties)';
 
 /** The parts of the objects section, each with its own sentence (the editor shows them one by one). */
 export const OBJECT_SETTING_KEYS = ['scale', 'k', 'minSeparationPx', 'pairDistance', 'placements', 'seed'] as const;
@@ -281,8 +281,8 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
       const on = s.coefficients.includes('mic');
       const params = `grids of at most n^${fmt(s.mic.alpha)} cells for n pixels and at most ${fmt(s.mic.c)} × n^${fmt(s.mic.alpha)} / rows clumps`;
       return on
-        ? `MICe and TICe (Reshef et al. 2016) are computed with ${params}; this costs about ${MIC_COST} per 20,000-pixel cell, more than all other coefficients together.`
-        : `MICe and TICe are not computed (choosing them costs about ${MIC_COST} per 20,000-pixel cell with ${params}).`;
+        ? `MICe and TICe (Reshef et al. 2016) are computed with ${params}. ${MIC_COST}, more than all other coefficients together.`
+        : `MICe and TICe are not computed. ${MIC_COST} when chosen (${params}).`;
     }
     case 'seed':
       return `The random generator starts from seed ${s.seed}, so the same run gives the same numbers again.`;

@@ -52,6 +52,15 @@ describe('methods paragraph', () => {
     expect(snap.methods).toContain('"Facility standard" version 2');
   });
 
+  it('states the MICe/TICe parameters (and cites them) only when the recipe computes them', () => {
+    expect(snap.methods).not.toContain('MICe and TICe');
+    const settings = (r: (typeof snap.recipes)[number]) => ({ ...(r.settings as Record<string, unknown>), coefficients: ['pearson', 'mic'], mic: { alpha: 0.55, c: 12 } });
+    const withMic = { ...snap, recipes: snap.recipes.map((r) => ({ ...r, settings: settings(r) })) };
+    const text = methodsParagraph(withMic);
+    expect(text).toContain(describeSetting('mic', RecipeSettings.parse(settings(snap.recipes[0]))).replace(/\.$/, ''));
+    expect(text).toContain('n^0.55');
+  });
+
   it('states cells and coverslips per condition, the engine and the tests', () => {
     expect(snap.methods).toContain('control: 12 cells on 3 coverslips');
     expect(snap.methods).toContain('treated: 12 cells on 3 coverslips');
