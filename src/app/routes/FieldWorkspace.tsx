@@ -71,15 +71,18 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const saturationLevel = field.sampleFormat === 'float' ? null : 2 ** field.bitDepth - 1;
   const scatter = useScatter(pixels.data, saturationLevel);
   const selectedOutline = state.outlines.find((o) => o.key === state.selected) ?? null;
-  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : 'field';
+  // the whole field's default thresholds are computed over the outlined cells (scatterBasis.ts): its key follows them
+  const cellGeometries = useMemo(() => state.outlines.filter((o) => o.role === 'cell').map((o) => o.geometry), [state.outlines]);
+  const cellsKey = useMemo(() => hashGeometry(cellGeometries), [cellGeometries]);
+  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : `field:${cellsKey}`;
   const regionName = selectedOutline ? selectedOutline.name : 'the whole field';
   const geometry = selectedOutline?.geometry ?? null;
   useEffect(() => {
     if (!scatter.ready || gesture) return;
-    scatter.request(regionKey, geometry, manual?.t1 ?? null, manual?.t2 ?? null, true);
+    scatter.request(regionKey, geometry, manual?.t1 ?? null, manual?.t2 ?? null, true, cellGeometries);
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [scatter.ready, regionKey, gesture, manual]);
-  const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false), [scatter, regionKey, geometry]);
+  const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false, cellGeometries), [scatter, regionKey, geometry, cellGeometries]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
 
   // keyboard
