@@ -68,6 +68,8 @@ export const ConditionStats = z.object({
   nCells: z.number().int(),
   /** mean of coverslip means (Fisher's z averaged for correlation coefficients) */
   mean: Num,
+  /** median of the coverslip medians, shown beside the mean (reports frozen before it existed read null) */
+  median: Num.default(null),
   /** SD of coverslip means (on the z scale for correlation coefficients) */
   sdOfCoverslipMeans: Num,
   ci: z.object({ lower: Num, upper: Num }),
