@@ -24,6 +24,7 @@ import {
   CreateCellRequest,
   UpdateCellRequest,
   cellIndices,
+  originOfRow,
   type Cell,
   type CellGeometry,
   type CellOrigin,
@@ -42,20 +43,8 @@ type FieldRow = typeof fields.$inferSelect;
 export const MAX_CELLS_PER_REQUEST = 5000;
 
 
-/** How a row was made: its `origin`, or for rows stored before origins were recorded, what `source` tells. */
-export function originOf(r: Pick<CellRow, 'origin' | 'source'>): CellOrigin {
-  if (r.origin) return r.origin;
-  switch (r.source) {
-    case 'drawn':
-      return { how: 'drawn' };
-    case 'label_image':
-      return { how: 'imported', file: null, label: null, edited: false };
-    case 'automatic':
-      return { how: 'found', settings: null, edited: false };
-    case 'seed':
-      return { how: 'demo' };
-  }
-}
+/** How a row was made (shared/schemas/cells.ts `originOf`). */
+export const originOf = (r: Pick<CellRow, 'origin' | 'source'>): CellOrigin => originOfRow(r.origin, r.source);
 
 /** The origin of a cell whose outline was changed by hand: drawn stays drawn, imported or found becomes edited. */
 const editedOrigin = (o: CellOrigin): CellOrigin => (o.how === 'imported' || o.how === 'found' ? { ...o, edited: true } : o);

@@ -99,6 +99,21 @@ export const CellOrigin = z.discriminatedUnion('how', [
 ]);
 export type CellOrigin = z.infer<typeof CellOrigin>;
 
+/** A stored cell's origin: its `origin` column, or for rows stored before origins were recorded, what `source` tells. */
+export function originOfRow(origin: CellOrigin | null | undefined, source: z.infer<typeof CellSource>): CellOrigin {
+  if (origin) return origin;
+  switch (source) {
+    case 'drawn':
+      return { how: 'drawn' };
+    case 'label_image':
+      return { how: 'imported', file: null, label: null, edited: false };
+    case 'automatic':
+      return { how: 'found', settings: null, edited: false };
+    case 'seed':
+      return { how: 'demo' };
+  }
+}
+
 export const Cell = z.object({
   id: z.number().int(),
   fieldId: z.number().int(),
