@@ -271,7 +271,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         </aside>
       </div>
       <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
-      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} pixelCount={field.width * field.height} />
+      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} size={[field.width, field.height]} pixelSizeUm={field.pixelSizeUm} />
     </div>
   );
 }
