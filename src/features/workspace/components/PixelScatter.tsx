@@ -21,6 +21,8 @@ const STOPS: [number, number, number][] = [
 ];
 /** bins holding saturated pixels (a warm red, apart from the teal-to-ink count scale) */
 const SATURATED: [number, number, number] = [190, 18, 60];
+/** beyond this many marked bins the colour of the bins alone shows them */
+const MAX_SATURATED_RINGS = 200;
 
 function colour(t: number): [number, number, number] {
   const x = Math.max(0, Math.min(1, t)) * (STOPS.length - 1);
@@ -92,6 +94,9 @@ export function PixelScatter({
   const q = data.quadrants;
   const sat = data.saturatedMarks;
   const satTotal = sat.only1 + sat.only2 + sat.both;
+  // a bin is about one screen pixel: the marked bins also get a ring, so a few saturated pixels stay visible
+  const satRings: [number, number][] = [];
+  for (let i = 0; i < sat.marks.length && satRings.length <= MAX_SATURATED_RINGS; i++) if (sat.marks[i]) satRings.push([i % data.bins, Math.floor(i / data.bins)]);
 
   return (
     <div>
@@ -134,6 +139,10 @@ export function PixelScatter({
             <svg className="pointer-events-none absolute inset-0" width={SIZE} height={SIZE}>
               <line x1={px(data.t1)} x2={px(data.t1)} y1={0} y2={SIZE} stroke="#b45309" strokeWidth={1.5} />
               <line y1={py(data.t2)} y2={py(data.t2)} x1={0} x2={SIZE} stroke="#b45309" strokeWidth={1.5} />
+              {satRings.length <= MAX_SATURATED_RINGS &&
+                satRings.map(([bx, by]) => (
+                  <circle key={`${bx}-${by}`} cx={((bx + 0.5) / data.bins) * SIZE} cy={SIZE - ((by + 0.5) / data.bins) * SIZE} r={4} fill="none" stroke={`rgb(${SATURATED.join(',')})`} strokeWidth={1.5} data-saturated-ring="" />
+                ))}
             </svg>
             <span className="absolute right-1 top-1 rounded bg-white/80 px-1 text-[11px] font-mono" title="both above threshold">{fmtPct(q.both, data.n)}</span>
             <span className="absolute left-1 top-1 rounded bg-white/80 px-1 text-[11px] font-mono" title={`only ${names[1]} above`}>{fmtPct(q.only2, data.n)}</span>
@@ -156,7 +165,7 @@ export function PixelScatter({
         <p className="mt-0.5 flex items-baseline gap-1 text-[11px] text-ink-soft" data-testid="scatter-saturated">
           <span aria-hidden="true" className="inline-block h-2 w-2 shrink-0" style={{ background: `rgb(${SATURATED.join(',')})` }} />
           <span>
-            {plural(satTotal, 'saturated pixel')} (only {names[0]} {sat.only1.toLocaleString('en-US')}, only {names[1]} {sat.only2.toLocaleString('en-US')}, both {sat.both.toLocaleString('en-US')}) drawn in red
+            {plural(satTotal, 'saturated pixel')} (only {names[0]} {sat.only1.toLocaleString('en-US')}, only {names[1]} {sat.only2.toLocaleString('en-US')}, both {sat.both.toLocaleString('en-US')}) drawn in red (ringed)
             {sat.beyondAxes > 0 ? `; ${sat.beyondAxes.toLocaleString('en-US')} beyond the axes are drawn on the edge` : ''}.
           </span>
         </p>
