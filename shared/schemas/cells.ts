@@ -5,7 +5,7 @@
  * rule (shared/analysis/rasterize.ts is the one implementation).
  */
 import { z } from 'zod';
-import { rasterize, maskToIndices, type Shape } from '../analysis/rasterize';
+import { rasterize, rasterizeInto, maskToIndices, type Shape } from '../analysis/rasterize';
 import { checkRuns, decodeRuns } from '../analysis/rle';
 
 /** Largest vertex count accepted for one outline (freehand strokes are thinned on the client). */
@@ -211,6 +211,20 @@ export function shapeOfGeometry(g: CellGeometry): Shape | null {
     case 'label':
       return null;
   }
+}
+
+/**
+ * Mask (1 = in at least one cell) of the union of cells in a width × height field: the same pixels as the union
+ * of their `cellIndices`, drawn into one mask (no full-field mask per cell).
+ */
+export function cellsMask(geometries: readonly CellGeometry[], width: number, height: number): Uint8Array {
+  const mask = new Uint8Array(width * height);
+  for (const g of geometries) {
+    const shape = shapeOfGeometry(g);
+    if (shape) rasterizeInto(mask, shape, width, height);
+    else for (const i of decodeRuns((g as { rle: number[] }).rle, width * height)) mask[i] = 1;
+  }
+  return mask;
 }
 
 /** Linear pixel indices (y·width + x, ascending) of a cell in a width × height field. */

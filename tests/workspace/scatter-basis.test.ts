@@ -9,7 +9,8 @@ import path from 'node:path';
 import { describe, expect, it } from 'vitest';
 import { defaultThresholds, describeBasis, saturatedMarks } from '../../src/features/workspace/lib/scatterBasis';
 import { prepareRegion, scatter } from '../../src/features/workspace/lib/scatterCore';
-import { cellIndices, type CellGeometry } from '../../shared/schemas/cells';
+import { cellIndices, cellsMask, type CellGeometry } from '../../shared/schemas/cells';
+import { encodeRuns } from '../../shared/analysis/rle';
 
 const DIR = path.join(import.meta.dirname, '../fixtures/workspace');
 const ref = JSON.parse(fs.readFileSync(path.join(DIR, 'expected.json'), 'utf8'));
@@ -68,6 +69,26 @@ describe('default thresholds (scikit-image threshold_otsu on the same pixels)', 
     const q = scatter(r, r.otsu.t1!, r.otsu.t2!).quadrants;
     expect(q.both).toBeGreaterThan(0);
     expect(q.neither).toBeLessThan(r.n);
+  });
+});
+
+describe('the union of the outlined cells', () => {
+  it('one mask for all cells holds exactly the union of each cell\'s pixels (box, ellipse, polygon, trace, label)', () => {
+    const W = 60, H = 40;
+    const geoms: CellGeometry[] = [
+      { kind: 'rect', x: 2.3, y: 1.7, width: 20.2, height: 10.9 },
+      { kind: 'ellipse', cx: 18, cy: 12, rx: 9.5, ry: 6.2 },
+      { kind: 'polygon', points: [[30, 2], [55, 8], [40, 30], [33, 25]] },
+      { kind: 'freehand', points: [[5, 30], [12, 22], [20, 35], [8, 39]] },
+      { kind: 'label', label: 4, rle: encodeRuns(Uint32Array.from([61 * 1, 61 * 1 + 1, 1500, 1501, 1502, 2399]), W * H) },
+    ];
+    const want = new Set<number>();
+    for (const g of geoms) for (const i of cellIndices(g, W, H)) want.add(i);
+    const mask = cellsMask(geoms, W, H);
+    const got = new Set<number>();
+    mask.forEach((v, i) => v && got.add(i));
+    expect(got).toEqual(want);
+    expect(want.size).toBeLessThan(geoms.reduce((a, g) => a + cellIndices(g, W, H).length, 0)); // the outlines overlap
   });
 });
 

@@ -15,7 +15,8 @@
  * Pure functions on typed arrays; unit-tested in tests/workspace/scatter-basis.test.ts.
  */
 import { collectPairs, computeThresholds, prepare } from '@shared/analysis/index';
-import { cellIndices, type CellGeometry } from '@shared/schemas/cells';
+import { cellsMask, type CellGeometry } from '@shared/schemas/cells';
+import { maskToIndices } from '@shared/analysis/rasterize';
 import type { SampleArray } from '@shared/pixels/codec';
 import { plural } from '@shared/format/plural';
 
@@ -59,16 +60,7 @@ export function defaultThresholds(img: BasisImage, region: Uint32Array | null, c
   if (!region) {
     if (cells.length > 0) {
       over = 'cells';
-      const inCell = new Uint8Array(width * height);
-      let count = 0;
-      for (const g of cells)
-        for (const i of cellIndices(g, width, height))
-          if (!inCell[i]) {
-            inCell[i] = 1;
-            count++;
-          }
-      candidates = new Uint32Array(count);
-      for (let i = 0, k = 0; i < inCell.length; i++) if (inCell[i]) candidates[k++] = i;
+      candidates = maskToIndices(cellsMask(cells, width, height));
     } else over = 'field';
   }
   const total = candidates ? candidates.length : width * height;
