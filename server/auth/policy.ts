@@ -3,6 +3,8 @@
  * - facility managers see every study (read) and manage accounts, labs and recipe reviews;
  * - lab members see their lab's studies; microscopists and biologists of the lab may change study content;
  *   biologists (and the owner) manage conditions, coverslips, exclusions, reports and share links;
+ * - microscopists who may change a study's content (lab members, or study members with write access) add
+ *   coverslips and upload fields: in a facility the person at the microscope creates the coverslips they image;
  * - collaborators see only studies they were added to (study_members), read-only;
  * - a user who may not see a study gets 404; one who may see but not change it gets 403.
  */
@@ -15,6 +17,7 @@ import type { SessionUser } from './session.js';
 export type StudyAction =
   | 'read' // see the study, its fields, cells, measurements, reports
   | 'edit_structure' // conditions, coverslips, study name
+  | 'add_coverslips' // add coverslips to a condition (the person at the microscope creates what they image)
   | 'edit_images' // upload fields, outline cells
   | 'run' // start analysis runs
   | 'exclude' // exclude / restore cells
@@ -44,9 +47,11 @@ export function studyPermissions(db: Db, user: SessionUser, study: Study): Set<S
   if (canWrite && (hasRole(user, 'microscopist') || hasRole(user, 'biologist') || isOwner)) {
     p.add('edit_images');
     p.add('run');
+    if (hasRole(user, 'microscopist')) p.add('add_coverslips');
   }
   if (isOwner || (inLab && hasRole(user, 'biologist'))) {
     p.add('edit_structure');
+    p.add('add_coverslips');
     p.add('exclude');
     p.add('report');
   }
@@ -109,6 +114,7 @@ export function can(user: SessionUser | undefined, action: GlobalAction): boolea
 const ACTION_WORDS: Record<StudyAction | GlobalAction, string> = {
   read: 'reading',
   edit_structure: 'changing conditions and coverslips',
+  add_coverslips: 'adding coverslips',
   edit_images: 'uploading fields or outlining cells',
   run: 'starting runs',
   exclude: 'excluding or restoring cells',

@@ -54,7 +54,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/studies/:studyId/conditions': { study: 'edit_structure' },
   'PATCH /api/conditions/:id': { study: 'edit_structure' },
   'DELETE /api/conditions/:id': { study: 'edit_structure' },
-  'POST /api/conditions/:id/coverslips': { study: 'edit_structure' },
+  'POST /api/conditions/:id/coverslips': { study: 'add_coverslips' },
   'PATCH /api/coverslips/:id': { study: 'edit_structure' },
   'DELETE /api/coverslips/:id': { study: 'edit_structure' },
   'POST /api/studies/:studyId/reorder': { study: 'edit_structure' },

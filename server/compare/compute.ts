@@ -4,7 +4,9 @@
  * - Points: every included cell (not excluded, value defined), with its coverslip and condition.
  * - Coverslip summary: number of cells, mean (Fisher's z average for correlation coefficients, Fisher 1915
  *   Biometrika 10:507), median, SD.
- * - Condition summary: number of coverslips, mean of coverslip means, and a hierarchical bootstrap interval
+ * - Condition summary: number of coverslips, mean of coverslip means, median of coverslip medians (shown
+ *   beside the mean; "Read with care" says when a Fisher-z mean and its median differ materially, see
+ *   MEAN_MEDIAN_GAP), and a hierarchical bootstrap interval
  *   (resample coverslips, then cells; Saravanan et al. 2020 Neurons Behav. Data Anal. Theory 3(5)).
  * - Effects: every pair of conditions, difference of means of coverslip means with its bootstrap interval.
  * - Tests on coverslip means (the replicate level; Lord et al. 2020 J. Cell Biol. 219:e202001064): Welch's t
@@ -56,6 +58,14 @@ const TEST_LABELS: Record<TestRow['test'], string> = {
   one_way_anova: 'one-way ANOVA',
   kruskal_wallis: 'Kruskal–Wallis test',
 };
+
+/**
+ * A mean through Fisher's z and the median of the same values "differ materially" when they are at least this
+ * far apart in the coefficient's own units (a coverslip of 3 or more cells, or a condition of 2 or more
+ * coverslips): on the z scale values near 1 weigh far more than the rest (atanh(0.999) ≈ 3.8, atanh(0.2) ≈ 0.2),
+ * so the mean can sit well above most cells. Our rule (no outside source for the cut-off).
+ */
+export const MEAN_MEDIAN_GAP = 0.1;
 
 /** resamples × cells drawn per comparison, at most */
 export const BOOTSTRAP_BUDGET = 5e7;
@@ -167,6 +177,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       nCells: hierarchy[i].reduce((s, v) => s + v.length, 0),
       mean: ms.length ? nn(back(mean(ms))) : null,
       meanZ: fisher && ms.length ? nn(mean(ms)) : null,
+      median: medianOfMedians(coverslips.filter((s) => s.conditionId === c.id)),
       sdOfCoverslipMeans: ms.length > 1 ? nn(sd(ms)) : null,
       ci: { lower: nn(boot.conditions[i].lower), upper: nn(boot.conditions[i].upper) },
     };
@@ -250,6 +261,10 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   }
   if (resamples < opts.resamples) warnings.push(`With ${nUsed} cells the bootstrap used ${resamples} resamples instead of ${opts.resamples} to keep the page responsive.`);
   if (fisher) warnings.push("Correlation coefficients are averaged through Fisher's z (|r| clamped at 1 − 1e−7).");
+  if (fisher) {
+    const gap = meanMedianGaps(coverslips, conditions);
+    if (gap) warnings.push(gap);
+  }
 
   const label = entry.label;
   const summary = sentence(label, fisher, conditions, effects, tests, opts.confidence);
@@ -280,6 +295,27 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
     summary,
     generatedAt: new Date().toISOString(),
   });
+}
+
+function medianOfMedians(slips: CoverslipStats[]): number | null {
+  const ms = slips.map((s) => s.median).filter((v): v is number => v !== null);
+  return ms.length ? nn(median(ms)) : null;
+}
+
+/**
+ * The "Read with care" line when a Fisher-z mean and its median differ by MEAN_MEDIAN_GAP or more: coverslips
+ * (mean of cells vs median of cells, 3 or more cells) and conditions (mean of coverslip means vs median of
+ * coverslip medians, 2 or more coverslips). Null when none does.
+ */
+export function meanMedianGaps(coverslips: CoverslipStats[], conditions: ConditionStats[]): string | null {
+  const far = (m: number | null, md: number | null) => m !== null && md !== null && Math.abs(m - md) >= MEAN_MEDIAN_GAP - 1e-12;
+  const items = [
+    ...conditions.filter((c) => c.nCoverslips >= 2 && far(c.mean, c.median)).map((c) => `${c.name}: mean ${formatMagnitude(c.mean)}, median ${formatMagnitude(c.median)}`),
+    ...coverslips.filter((s) => s.nCells >= 3 && far(s.mean, s.median)).map((s) => `${s.name}: mean ${formatMagnitude(s.mean)}, median ${formatMagnitude(s.median)}`),
+  ];
+  if (!items.length) return null;
+  const shown = items.slice(0, 4).join('; ') + (items.length > 4 ? `; and ${items.length - 4} more` : '');
+  return `The mean through Fisher's z and the median differ by ${MEAN_MEDIAN_GAP} or more (${shown}): values near 1 weigh most on the z scale, so a few cells can pull the mean above most of the others. Read the medians beside the means.`;
 }
 
 /** Upper-case the first letter when a name opens a sentence ("treated" → "Treated"); the rest is kept as written. */

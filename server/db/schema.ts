@@ -4,6 +4,7 @@
  */
 import { sqliteTable, text, integer, real, primaryKey, index, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import { sql } from 'drizzle-orm';
+import type { CellOrigin } from '../../shared/schemas/cells.js';
 
 const now = sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`;
 const id = () => integer('id').primaryKey({ autoIncrement: true });
@@ -164,6 +165,8 @@ export const cells = sqliteTable('cells', {
   role: text('role', { enum: ['cell', 'background'] }).notNull().default('cell'),
   geometry: text('geometry', { mode: 'json' }).$type<CellGeometry>().notNull(),
   source: text('source', { enum: ['drawn', 'label_image', 'automatic', 'seed', 'geojson'] }).notNull().default('drawn'),
+  /** how the cell was made, with the settings (shared/schemas/cells.ts CellOrigin); null on rows stored before */
+  origin: text('origin', { mode: 'json' }).$type<CellOrigin>(),
   pixelCount: integer('pixel_count').notNull().default(0),
   excluded: integer('excluded', { mode: 'boolean' }).notNull().default(false),
   exclusionReason: text('exclusion_reason'),

@@ -14,7 +14,7 @@ import { cells, conditions, coverslips, fields, measurements, recipes, runs, stu
 import { badRequest, notFound } from '../http/errors.js';
 import type { CellScatter, Composite, ConditionSummary, CoverslipSummary, ReportCoefficient, ReportSnapshot, SnapshotCell, StatisticRow } from '../../shared/schemas/reports.js';
 import type { Comparison } from '../../shared/schemas/compare.js';
-import { cellIndices } from '../../shared/schemas/cells.js';
+import { cellIndices, originOfRow } from '../../shared/schemas/cells.js';
 import { CAUTIONS, methodsParagraph } from '../../shared/reports/methods.js';
 import { median, sd } from '../../shared/stats/index.js';
 import { computeComparison } from '../compare/compute.js';
@@ -114,6 +114,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
       saturatedFraction1: nn(m?.saturatedFraction1),
       saturatedFraction2: nn(m?.saturatedFraction2),
       randomizationP: nn(m?.randomizationP),
+      origin: originOfRow(c.origin, c.source),
     });
   }
   const used = snapCells.filter((c) => !c.excluded && c.runId !== null);

@@ -27,9 +27,14 @@ import {
   CreateCellRequest,
   UpdateCellRequest,
   cellIndices,
+  originOfRow,
   type Cell,
   type CellGeometry,
+  type CellOrigin,
+  type FoundWith,
 } from '../../shared/schemas/cells.js';
+import { gaussianFilter } from '../../shared/analysis/gaussian.js';
+import type { ChannelArray } from '../../shared/analysis/types.js';
 import { labelRegions } from '../../shared/analysis/labels.js';
 import { encodeRuns } from '../../shared/analysis/rle.js';
 import { autoLevel, segmentCells } from '../../shared/analysis/segment.js';
@@ -44,6 +49,12 @@ type FieldRow = typeof fields.$inferSelect;
 export const MAX_CELLS_PER_REQUEST = 5000;
 
 
+/** How a row was made (shared/schemas/cells.ts `originOf`). */
+export const originOf = (r: Pick<CellRow, 'origin' | 'source'>): CellOrigin => originOfRow(r.origin, r.source);
+
+/** The origin of a cell whose outline was changed by hand: drawn stays drawn, imported or found becomes edited. */
+const editedOrigin = (o: CellOrigin): CellOrigin => (o.how === 'imported' || o.how === 'found' ? { ...o, edited: true } : o);
+
 export function toCell(r: CellRow): Cell {
   return {
     id: r.id,
@@ -52,6 +63,7 @@ export function toCell(r: CellRow): Cell {
     role: r.role,
     geometry: r.geometry as Cell['geometry'],
     source: r.source,
+    origin: originOf(r),
     pixelCount: r.pixelCount,
     excluded: r.excluded,
     exclusionReason: r.exclusionReason,
@@ -134,7 +146,7 @@ export default function cellsRoutes(ctx: AppContext) {
     const row = ctx.db.transaction((tx) => {
       const c = tx
         .insert(cells)
-        .values({ fieldId, name: body.name ?? nextName(ctx, fieldId, body.role), role: body.role, geometry: body.geometry, source: 'drawn', pixelCount, createdBy: req.user!.id })
+        .values({ fieldId, name: body.name ?? nextName(ctx, fieldId, body.role), role: body.role, geometry: body.geometry, source: 'drawn', origin: { how: 'drawn' }, pixelCount, createdBy: req.user!.id })
         .returning()
         .get();
       tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'cell.create', entity: 'cell', entityId: c.id, studyId, details: { fieldId, role: c.role, kind: body.geometry.kind, pixelCount } }).run();
@@ -153,6 +165,7 @@ export default function cellsRoutes(ctx: AppContext) {
     if (body.geometry) {
       patch.geometry = body.geometry;
       patch.pixelCount = pixelCountOf(body.geometry, field);
+      patch.origin = editedOrigin(originOf(cell));
     }
     const row = ctx.db.transaction((tx) => {
       let out: CellRow;
@@ -222,7 +235,7 @@ export default function cellsRoutes(ctx: AppContext) {
         out.push(
           tx
             .insert(cells)
-            .values({ fieldId, name: `Label ${reg.label}`, role: 'cell', geometry: { kind: 'label', label: reg.label, rle }, source: 'label_image', pixelCount: reg.indices.length, createdBy: req.user!.id })
+            .values({ fieldId, name: `Label ${reg.label}`, role: 'cell', geometry: { kind: 'label', label: reg.label, rle }, source: 'label_image', origin: { how: 'imported', file: req.file!.originalname, label: reg.label, edited: false }, pixelCount: reg.indices.length, createdBy: req.user!.id })
             .returning()
             .get(),
         );
@@ -269,7 +282,7 @@ export default function cellsRoutes(ctx: AppContext) {
     const created = ctx.db.transaction((tx) => {
       if (replace) for (const c of tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'geojson'), isNull(cells.deletedAt))).all()) removeCell(tx, c);
       const rows = outlines.map((o) =>
-        tx.insert(cells).values({ fieldId, name: o.name, role: o.role, geometry: o.geometry, source: 'geojson', pixelCount: o.pixelCount, createdBy: req.user!.id }).returning().get(),
+        tx.insert(cells).values({ fieldId, name: o.name, role: o.role, geometry: o.geometry, source: 'geojson', origin: { how: 'imported', file: req.file!.originalname, label: null, edited: false }, pixelCount: o.pixelCount, createdBy: req.user!.id }).returning().get(),
       );
       tx.insert(auditEvents)
         .values({ actorId: req.user!.id, action: 'cell.import_geojson', entity: 'field', entityId: fieldId, studyId, details: { features: outlines.length, file: req.file!.originalname, replace } })
@@ -296,6 +309,13 @@ export default function cellsRoutes(ctx: AppContext) {
       for (let i = 0; i < n; i++) s[i] = px.ch1[i] + px.ch2[i];
       values = s;
     }
+    if (body.smoothing > 0) {
+      try {
+        values = gaussianFilter(values as ChannelArray, px.width, px.height, body.smoothing, { x0: 0, y0: 0, x1: px.width, y1: px.height });
+      } catch (e) {
+        throw new HttpError(422, `smoothing needs a value in every pixel: ${(e as Error).message}; set smoothing to 0`);
+      }
+    }
     const level = body.threshold.method === 'manual' ? body.threshold.level : autoLevel(values);
     if (level === null) throw new HttpError(422, `the ${body.channel === 'sum' ? 'summed channels are' : body.channel + ' is'} constant over the field; no Otsu level exists — give a manual level`);
     const seg = segmentCells(values, px.width, px.height, {
@@ -306,8 +326,29 @@ export default function cellsRoutes(ctx: AppContext) {
       minPixels: body.minPixels,
       maxPixels: body.maxPixels,
     });
+    const counts = { level, found: seg.found, droppedSmall: seg.droppedSmall, droppedLarge: seg.droppedLarge };
+    const outlines = seg.objects.map((o) => ({ points: o.points, pixels: o.pixelCount }));
+    if (body.preview) {
+      // nothing is stored: the person looks at the outlines first, then keeps them with the same settings
+      if (seg.objects.length > MAX_CELLS_PER_REQUEST) throw new HttpError(422, `${seg.objects.length} objects found; at most ${MAX_CELLS_PER_REQUEST} at once — raise the threshold or the minimum size`);
+      res.json({ cells: [], outlines, kept: false, ...counts });
+      return;
+    }
     if (seg.objects.length > MAX_CELLS_PER_REQUEST)
       throw new HttpError(422, `${seg.objects.length} objects found; at most ${MAX_CELLS_PER_REQUEST} at once — raise the threshold or the minimum size`);
+    const settings: FoundWith = {
+      channel: body.channel,
+      method: body.threshold.method,
+      level,
+      smoothing: body.smoothing,
+      z: px.sizeZ > 1 ? (body.z ?? 0) : null,
+      fillHoles: body.fillHoles,
+      split: body.split,
+      seedDistance: body.seedDistance,
+      minPixels: body.minPixels,
+      maxPixels: body.maxPixels,
+      pixelSizeUm: field.pixelSizeUm ?? null,
+    };
     const created = ctx.db.transaction((tx) => {
       if (body.replace) {
         const old = tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'automatic'), isNull(cells.deletedAt))).all();
@@ -320,7 +361,7 @@ export default function cellsRoutes(ctx: AppContext) {
         out.push(
           tx
             .insert(cells)
-            .values({ fieldId, name: `Auto ${start + k + 1}`, role: 'cell', geometry, source: 'automatic', pixelCount: pixelCountOf(geometry, field), createdBy: req.user!.id })
+            .values({ fieldId, name: `Auto ${start + k + 1}`, role: 'cell', geometry, source: 'automatic', origin: { how: 'found', settings, edited: false }, pixelCount: pixelCountOf(geometry, field), createdBy: req.user!.id })
             .returning()
             .get(),
         );
@@ -337,7 +378,7 @@ export default function cellsRoutes(ctx: AppContext) {
         .run();
       return out;
     });
-    res.status(201).json({ cells: created.map(toCell), level, found: seg.found, droppedSmall: seg.droppedSmall, droppedLarge: seg.droppedLarge });
+    res.status(201).json({ cells: created.map(toCell), outlines, kept: true, ...counts });
   });
 
   return r;

@@ -27,7 +27,7 @@ import { notFoundAsked, requireCan, requireStudy, studyPermissions, hasRole, typ
 import { idParam } from '../http/params.js';
 
 type Tx = Parameters<Parameters<AppContext['db']['transaction']>[0]>[0];
-const ACTION_ORDER: StudyAction[] = ['read', 'edit_structure', 'edit_images', 'run', 'exclude', 'report', 'delete'];
+const ACTION_ORDER: StudyAction[] = ['read', 'edit_structure', 'add_coverslips', 'edit_images', 'run', 'exclude', 'report', 'delete'];
 
 const issue = (path: string, message: string) => badRequest(`${path}: ${message}`, { issues: [{ path, message }] });
 
@@ -125,7 +125,7 @@ export default function studiesRoutes(ctx: AppContext) {
   }
 
   /** condition → its study, checked for `action` (404 for an unknown id or an invisible study). */
-  function conditionFor(user: SessionUser | undefined, id: number, action: 'read' | 'edit_structure') {
+  function conditionFor(user: SessionUser | undefined, id: number, action: 'read' | 'edit_structure' | 'add_coverslips') {
     const cd = db.select().from(conditions).where(eq(conditions.id, id)).get();
     if (!cd) throw notFoundAsked({ what: 'condition', id });
     return { cd, study: requireStudy(ctx.db, user, cd.studyId, action, { what: 'condition', id }) };
@@ -257,7 +257,7 @@ export default function studiesRoutes(ctx: AppContext) {
 
   // ---- coverslips --------------------------------------------------------------------------------------
   r.post('/conditions/:id/coverslips', requireUser, (req, res) => {
-    const { cd, study } = conditionFor(req.user, idParam(req, 'id'), 'edit_structure');
+    const { cd, study } = conditionFor(req.user, idParam(req, 'id'), 'add_coverslips');
     const body = parse(CreateCoverslipRequest, req.body ?? {});
     db.transaction((tx) => {
       const agg = tx

@@ -103,7 +103,16 @@ export function fillEllipse(mask: Uint8Array, width: number, height: number, s: 
 /** Mask (1 = inside) of one shape. */
 export function rasterize(shape: Shape, width: number, height: number): Uint8Array {
   checkSize(width, height);
-  const mask = new Uint8Array(width * height);
+  return rasterizeInto(new Uint8Array(width * height), shape, width, height);
+}
+
+/**
+ * Sets the pixels of one shape to 1 in an existing width × height mask (pixels already set stay set), so the
+ * union of many shapes takes one mask instead of one per shape. Same rule as `rasterize`.
+ */
+export function rasterizeInto(mask: Uint8Array, shape: Shape, width: number, height: number): Uint8Array {
+  checkSize(width, height);
+  if (mask.length !== width * height) throw new RangeError(`mask has ${mask.length} pixels, expected ${width * height}`);
   if (shape.kind === 'polygon') fillPolygon(mask, width, height, shape.points);
   else if (shape.kind === 'rectangle') {
     const { x, y, width: w, height: h } = shape;

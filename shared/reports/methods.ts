@@ -2,10 +2,12 @@
  * The auto-written methods paragraph of a report: a pure function of the frozen snapshot (no I/O, no clock),
  * so the same snapshot always yields the same text (server writes it into the snapshot; the client can re-render).
  *
- * It states every parameter of every recipe version used. Known settings get a sentence; every setting
- * (known or not) is also listed in full as `path = value`, so a setting added to RecipeSettings later is never
- * silently left out. It gives cells and coverslips per condition, the statistical tests, and cites each
- * method's paper.
+ * It reads as the methods section of a paper: how the outlines were made (drawn, imported, or found
+ * automatically and with which settings), the pixel size, every parameter of every recipe version used in words
+ * with its unit (the recipe editor's sentences, `describeSetting`; no internal setting keys), z handling in
+ * 1-based slice words, cells and coverslips per condition, when cells were excluded, the statistical tests,
+ * and each method's paper. tests/reports/methods.test.ts changes every setting in turn and checks that the text
+ * changes with it, so a setting added to RecipeSettings later cannot be left out silently.
  *
  * References (authors, year, journal, DOI): the coefficients' papers come from the coefficient registry
  * (shared/coefficients.ts), the thresholding and statistics papers are listed below. The Fisher 1915 and test
@@ -14,6 +16,9 @@
 import { COEFFICIENT_CITATIONS, byKey, type Citation } from '../coefficients.js';
 import type { ReportSnapshot } from '../schemas/reports.js';
 import { RecipeSettings, SETTING_KEYS, describeSetting } from '../schemas/recipes.js';
+import type { FoundWith } from '../schemas/cells.js';
+import { formatAmount, foundStepsWords } from '../format/origin.js';
+import { plural } from '../format/plural.js';
 
 export type { Citation };
 
@@ -67,14 +72,13 @@ export function formatSettingValue(v: unknown): string {
   return JSON.stringify(v);
 }
 
-const fmt = (v: unknown) => formatSettingValue(v);
 
 /**
  * One sentence per recipe setting. Settings that parse as RecipeSettings reuse its `describeSetting`
  * sentences (the same words as the recipe editor) with numbered citations added; anything else falls back
  * to the full `path = value` list alone.
  */
-function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => string): string[] {
+function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => string, stacks: boolean): string[] {
   const parsed = RecipeSettings.safeParse(settings);
   if (!parsed.success) return [];
   const s = parsed.data;
@@ -82,6 +86,10 @@ function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => stri
   for (const key of SETTING_KEYS) {
     if (key === 'coefficients') continue; // stated with citations in the coefficient paragraph
     if (key === 'mic' && !s.coefficients.includes('mic')) continue; // parameters of a measure not computed
+    if (key === 'z' && !stacks) {
+      out.push('Every field is a single optical section (no z-stacks).');
+      continue;
+    }
     let sentence = describeSetting(key, s);
     const cited = (k: keyof typeof CITATIONS) => (sentence = sentence.replace(/\.$/, ` ${ref(k)}.`));
     if (key === 'threshold' && s.threshold.method === 'otsu') cited('otsu');
@@ -117,30 +125,35 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   const ref = (k: keyof typeof CITATIONS) => cite(k).slice(CITATIONS[k].key.length + 1);
   const parts: string[] = [];
 
-  // 1. data
+  // 1. data: fields, pixel size, how the outlines were made, cells per condition, exclusions
   const condText = snap.conditions.map(
     (c) => `${c.name}: ${c.cellsIncluded} cell${c.cellsIncluded === 1 ? '' : 's'} on ${c.coverslipsUsed} coverslip${c.coverslipsUsed === 1 ? '' : 's'}${c.cellsExcluded ? ` (${c.cellsExcluded} excluded)` : ''}`,
   );
-  const excl = snap.exclusions.length
-    ? ` ${snap.exclusions.length} cell${snap.exclusions.length === 1 ? ' was' : 's were'} excluded before analysis, each with a recorded reason (listed in the exclusions table).`
-    : ' No cells were excluded.';
   parts.push(
-    `Two-channel fields (${snap.fields.length} in total) of the study "${snap.study.name}" were analysed cell by cell; each cell is a region of interest outlined in image pixel coordinates, and a pixel belongs to a cell when its centre lies inside the outline (even-odd rule). Cells and coverslips per condition — ${condText.join('; ')}.${excl}`,
+    [
+      `Two-channel fields (${snap.fields.length} in total) of the study "${snap.study.name}" were analysed cell by cell.`,
+      pixelSizeSentence(snap),
+      outlineSentence(snap, cite),
+      'Each cell is a region of interest in image pixel coordinates; a pixel belongs to a cell when its centre lies inside the outline (even-odd rule).',
+      `Cells and coverslips per condition — ${condText.join('; ')}.`,
+      exclusionSentence(snap),
+    ]
+      .filter(Boolean)
+      .join(' '),
   );
 
   // 2. recipes
+  const stacks = snap.fields.some((f) => f.sizeZ > 1);
   for (const r of snap.recipes) {
     const s = isObj(r.settings) ? r.settings : {};
     const runs = snap.runs.filter((x) => r.runIds.includes(x.id));
     const seeds = [...new Set(runs.map((x) => x.seed))];
     const engines = [...new Set(runs.map((x) => x.engineVersion).filter((e): e is string => !!e))];
-    const zs = [...new Set(runs.map((x) => x.zHandling).filter((e): e is string => !!e))];
-    const leaves = settingLeaves(s);
+    const sentences = recipeSentences(s, ref, stacks);
     parts.push(
       [
-        `Quantification used the recipe "${r.name}" version ${r.version} (${r.provisional ? 'PROVISIONAL: run before the recipe was approved' : `status ${r.status}`}; analysis engine ${engines.length ? engines.join(', ') : 'version not recorded'}; run${runs.length === 1 ? '' : 's'} ${runs.map((x) => `#${x.id}`).join(', ')}${seeds.length ? `, random seed ${seeds.join(', ')}` : ''}${zs.length ? `, z handling ${zs.join(', ')}` : ''}).`,
-        ...recipeSentences(s, ref),
-        leaves.length ? `Recipe settings in full: ${leaves.map(([p, v]) => `${p} = ${fmt(v)}`).join('; ')}.` : 'The recipe recorded no settings.',
+        `Quantification used the recipe "${r.name}" version ${r.version} (${r.provisional ? 'PROVISIONAL: run before the recipe was approved' : `status ${r.status}`}; analysis engine ${engines.length ? engines.join(', ') : 'version not recorded'}; run${runs.length === 1 ? '' : 's'} ${runs.map((x) => `#${x.id}`).join(', ')}${seeds.length ? `, random seed ${seeds.join(', ')}` : ''}).`,
+        ...(sentences.length ? sentences : ['Its settings could not be read as recipe settings and are not described here.']),
       ].join(' '),
     );
   }
@@ -150,7 +163,7 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   const phrases = [...new Set(snap.coefficients.map((k) => byKey(k).methods).filter((m): m is string => m !== null))];
   const coefText = phrases.map((m) => m.replace(/\{(\w+)\}/g, (_, k: string) => cite(k)));
   parts.push(
-    `Per cell, the report shows ${joinList(coefText)} (${snap.coefficients.map((k) => byKey(k).label).join(', ')}). Undefined values (an empty cell, a constant channel) are reported as missing, not as zero.`,
+    `Per cell, the report shows ${joinList(snap.coefficients.map((k) => byKey(k).label))}: ${joinList(coefText)}. Undefined values (an empty cell, a constant channel) are reported as missing, not as zero.`,
   );
 
   // 4. statistics
@@ -192,6 +205,75 @@ export function methodsParagraph(snap: ReportSnapshot): string {
 
   const refs = used.map((k, i) => `[${i + 1}] ${CITATIONS[k].text}`);
   return `${parts.join('\n\n')}\n\nReferences\n${refs.join('\n')}`;
+}
+
+/** "Pixel size: 0.065 µm (from the image files)." — or the sizes per field, or that none was recorded. */
+function pixelSizeSentence(snap: ReportSnapshot): string {
+  if (!snap.fields.length) return '';
+  const bySize = new Map<number, number>();
+  let unknown = 0;
+  for (const f of snap.fields) {
+    if (f.pixelSizeUm === null) unknown++;
+    else bySize.set(f.pixelSizeUm, (bySize.get(f.pixelSizeUm) ?? 0) + 1);
+  }
+  if (!bySize.size) return 'The image files recorded no pixel size, so sizes are given in pixels.';
+  const sizes = [...bySize].sort((a, b) => a[0] - b[0]);
+  const known = sizes.length === 1 && !unknown ? `${formatAmount(sizes[0][0])} µm` : sizes.map(([u, n]) => `${formatAmount(u)} µm (${plural(n, 'field')})`).join(', ');
+  return `Pixel size${sizes.length > 1 ? 's' : ''}: ${known}, as recorded in the image files${unknown ? `; not recorded for ${plural(unknown, 'field')}` : ''}.`;
+}
+
+/** How the outlines were made: by hand, imported from label images, found automatically (with settings), demo. */
+function outlineSentence(snap: ReportSnapshot, cite: (k: keyof typeof CITATIONS) => string): string {
+  const cells = snap.cells;
+  if (!cells.length) return '';
+  const drawn = cells.filter((c) => c.origin?.how === 'drawn').length;
+  const demo = cells.filter((c) => c.origin?.how === 'demo').length;
+  const unknown = cells.filter((c) => !c.origin).length;
+  const imported = cells.flatMap((c) => (c.origin?.how === 'imported' ? [c.origin] : []));
+  const found = cells.flatMap((c) => (c.origin?.how === 'found' ? [c.origin] : []));
+  const edited = [...imported, ...found].filter((o) => o.edited).length;
+  const items: string[] = [];
+  if (drawn) items.push(`${plural(drawn, 'cell was', 'cells were')} outlined by hand`);
+  if (imported.length) {
+    const files = [...new Set(imported.map((o) => o.file).filter((f): f is string => !!f))];
+    items.push(`${plural(imported.length, 'cell was', 'cells were')} imported from label images${files.length ? ` (${files.join(', ')})` : ''}, one cell per label`);
+  }
+  if (found.length) {
+    // one group per setting (the level differs per field under Otsu's method: given as a range)
+    const groups = new Map<string, { s: FoundWith | null; n: number; levels: number[] }>();
+    for (const o of found) {
+      const k = o.settings ? JSON.stringify({ ...o.settings, level: 0 }) : 'unknown';
+      const g = groups.get(k) ?? groups.set(k, { s: o.settings, n: 0, levels: [] }).get(k)!;
+      g.n++;
+      if (o.settings) g.levels.push(o.settings.level);
+    }
+    for (const g of groups.values()) {
+      if (!g.s) {
+        items.push(`${plural(g.n, 'cell was', 'cells were')} found automatically (settings not recorded)`);
+        continue;
+      }
+      const lo = Math.min(...g.levels), hi = Math.max(...g.levels);
+      const level = lo === hi ? `threshold level ${formatAmount(lo)} intensity units` : `threshold levels ${formatAmount(lo)} to ${formatAmount(hi)} intensity units across fields`;
+      const otsu = g.s.method === 'otsu' ? ` (${cite('otsu')})` : '';
+      items.push(`${plural(g.n, 'cell was', 'cells were')} found automatically from ${foundStepsWords(g.s).join(', ')}, at ${level}${otsu}`);
+    }
+  }
+  if (demo) items.push(`${plural(demo, 'outline', 'outlines')} came with the invented demo data`);
+  if (unknown) items.push(`for ${plural(unknown, 'cell')} the report does not record how the outline was made`);
+  const text = `Outlines: ${items.length > 1 ? `${items.slice(0, -1).join('; ')}; and ${items[items.length - 1]}` : items[0]}.`;
+  return edited ? `${text} ${plural(edited, 'imported or found outline was', 'imported or found outlines were')} then corrected by hand.` : text;
+}
+
+/** Exclusions: after measurement (the cell has a measurement in the report) or before; each with a reason. */
+function exclusionSentence(snap: ReportSnapshot): string {
+  if (!snap.exclusions.length) return 'No cells were excluded.';
+  const measured = new Set(snap.cells.filter((c) => c.runId !== null).map((c) => c.cellId));
+  const after = snap.exclusions.filter((e) => measured.has(e.cellId)).length;
+  const before = snap.exclusions.length - after;
+  const parts: string[] = [];
+  if (after) parts.push(`${plural(after, 'cell was', 'cells were')} excluded after measurement`);
+  if (before) parts.push(`${plural(before, 'cell was', 'cells were')} excluded before ${before === 1 ? 'it was' : 'they were'} measured`);
+  return `${parts.join(' and ')}, ${snap.exclusions.length === 1 ? 'with a recorded reason' : 'each with a recorded reason'} (listed in the exclusions table); excluded cells are left out of every summary and test.`;
 }
 
 /** the comparisons' bootstrap settings (resamples, seed, confidence) */

@@ -5,7 +5,7 @@
  * rule (shared/analysis/rasterize.ts is the one implementation).
  */
 import { z } from 'zod';
-import { rasterize, maskToIndices, type Shape } from '../analysis/rasterize';
+import { rasterize, rasterizeInto, maskToIndices, type Shape } from '../analysis/rasterize';
 import { checkRuns, decodeRuns } from '../analysis/rle';
 
 /** Largest vertex count accepted for one outline (freehand strokes are thinned on the client). */
@@ -64,6 +64,57 @@ export const CellRole = z.enum(['cell', 'background']);
 export type CellRole = z.infer<typeof CellRole>;
 export const CellSource = z.enum(['drawn', 'label_image', 'automatic', 'seed', 'geojson']);
 
+/** The settings "Find cells…" used, as the cell records them (sizes in pixels; the field's pixel size beside them). */
+export const FoundWith = z.object({
+  channel: z.enum(['ch1', 'ch2', 'sum']),
+  /** 'otsu' (on values clipped at their 99.5th percentile) or 'manual' */
+  method: z.enum(['otsu', 'manual']),
+  /** the foreground level used (value > level) */
+  level: z.number(),
+  /** Gaussian smoothing σ in pixels before the threshold, 0 = none */
+  smoothing: z.number().min(0),
+  /** z slice (0-based) or 'mip'; null for single-plane fields */
+  z: z.union([z.number().int().nonnegative(), z.literal('mip')]).nullable(),
+  fillHoles: z.boolean(),
+  split: z.boolean(),
+  /** watershed seed distance in pixels */
+  seedDistance: z.number(),
+  minPixels: z.number().int(),
+  maxPixels: z.number().int().nullable(),
+  /** µm per pixel of the field when the cell was found, null when the file did not say */
+  pixelSizeUm: z.number().positive().nullable(),
+});
+export type FoundWith = z.infer<typeof FoundWith>;
+
+/**
+ * How a cell was made (the cells table's `origin` column): drawn with an outline tool, imported from a label
+ * image, found by "Find cells…" with its settings, or part of the invented demo data. `edited` marks an
+ * imported or found outline whose shape was changed by hand afterwards.
+ */
+export const CellOrigin = z.discriminatedUnion('how', [
+  z.object({ how: z.literal('drawn') }),
+  z.object({ how: z.literal('imported'), file: z.string().nullable(), label: z.number().int().nullable(), edited: z.boolean().default(false) }),
+  z.object({ how: z.literal('found'), settings: FoundWith.nullable(), edited: z.boolean().default(false) }),
+  z.object({ how: z.literal('demo') }),
+]);
+export type CellOrigin = z.infer<typeof CellOrigin>;
+
+/** A stored cell's origin: its `origin` column, or for rows stored before origins were recorded, what `source` tells. */
+export function originOfRow(origin: CellOrigin | null | undefined, source: z.infer<typeof CellSource>): CellOrigin {
+  if (origin) return origin;
+  switch (source) {
+    case 'drawn':
+      return { how: 'drawn' };
+    case 'label_image':
+    case 'geojson':
+      return { how: 'imported', file: null, label: null, edited: false };
+    case 'automatic':
+      return { how: 'found', settings: null, edited: false };
+    case 'seed':
+      return { how: 'demo' };
+  }
+}
+
 export const Cell = z.object({
   id: z.number().int(),
   fieldId: z.number().int(),
@@ -71,6 +122,8 @@ export const Cell = z.object({
   role: CellRole,
   geometry: CellGeometrySchema,
   source: CellSource,
+  /** how the cell was made (rows stored before this was recorded: from `source`, settings unknown) */
+  origin: CellOrigin,
   pixelCount: z.number().int(),
   excluded: z.boolean(),
   exclusionReason: z.string().nullable(),
@@ -108,6 +161,8 @@ export const AutoOutlineRequest = z.object({
   threshold: z.discriminatedUnion('method', [z.object({ method: z.literal('otsu') }), z.object({ method: z.literal('manual'), level: z.number().finite() })]).default({ method: 'otsu' }),
   /** z slice or maximum-intensity projection for stacks */
   z: z.union([z.number().int().nonnegative(), z.literal('mip')]).optional(),
+  /** Gaussian smoothing σ in pixels before the threshold (0 = none): cells stand out as bodies, not puncta */
+  smoothing: z.number().finite().min(0).max(200).default(0),
   fillHoles: z.boolean().default(true),
   /** split touching cells by a distance-transform watershed */
   split: z.boolean().default(true),
@@ -117,11 +172,17 @@ export const AutoOutlineRequest = z.object({
   maxPixels: z.number().int().min(1).nullable().default(null),
   /** when true, existing automatic outlines of the field are replaced (deleted or soft-deleted) */
   replace: z.boolean().default(false),
+  /** when true, nothing is stored: the answer carries the outlines for a look before keeping them */
+  preview: z.boolean().default(false),
 });
 export type AutoOutlineRequest = z.input<typeof AutoOutlineRequest>;
 
 export const AutoOutlineResponse = z.object({
+  /** the stored cells (empty for a preview) */
   cells: z.array(Cell),
+  /** the outlines found, stored or not: outer pixel-edge polygon and pixel count */
+  outlines: z.array(z.object({ points: z.array(z.tuple([z.number(), z.number()])), pixels: z.number().int() })),
+  kept: z.boolean(),
   level: z.number().nullable(),
   found: z.number().int(),
   droppedSmall: z.number().int(),
@@ -197,6 +258,20 @@ export function shapeOfGeometry(g: CellGeometry): Shape | null {
     case 'label':
       return null;
   }
+}
+
+/**
+ * Mask (1 = in at least one cell) of the union of cells in a width × height field: the same pixels as the union
+ * of their `cellIndices`, drawn into one mask (no full-field mask per cell).
+ */
+export function cellsMask(geometries: readonly CellGeometry[], width: number, height: number): Uint8Array {
+  const mask = new Uint8Array(width * height);
+  for (const g of geometries) {
+    const shape = shapeOfGeometry(g);
+    if (shape) rasterizeInto(mask, shape, width, height);
+    else for (const i of decodeRuns((g as { rle: number[] }).rle, width * height)) mask[i] = 1;
+  }
+  return mask;
 }
 
 /** Linear pixel indices (y·width + x, ascending) of a cell in a width × height field. */

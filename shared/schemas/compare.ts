@@ -73,6 +73,8 @@ export const ConditionStats = z.object({
   mean: Num,
   /** mean of the coverslips' z means (null for coefficients not averaged through z; absent in older reports) */
   meanZ: Num.optional(),
+  /** median of the coverslip medians, shown beside the mean (reports frozen before it existed read null) */
+  median: Num.default(null),
   /** SD of coverslip means (on the z scale for correlation coefficients) */
   sdOfCoverslipMeans: Num,
   ci: z.object({ lower: Num, upper: Num }),

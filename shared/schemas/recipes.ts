@@ -237,7 +237,7 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
       const b = s.background;
       if (b.method === 'none') return 'Raw intensities are used; no background is subtracted.';
       if (b.method === 'constant')
-        return `A constant background of ${fmt(b.ch1)} (channel 1) and ${fmt(b.ch2)} (channel 2) is subtracted from every pixel; values below it become 0.`;
+        return `A constant background of ${fmt(b.ch1)} (channel 1) and ${fmt(b.ch2)} (channel 2) intensity units is subtracted from every pixel; values below it become 0.`;
       return "The mean intensity of the field's marked background region is subtracted from every pixel, per channel; values below it become 0.";
     }
     case 'saturation':
@@ -248,7 +248,7 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
       const t = s.threshold;
       if (t.method === 'none') return "No threshold: every pixel of the cell counts as foreground for Manders' M1 and M2.";
       if (t.method === 'manual')
-        return `Fixed thresholds: channel 1 counts as foreground above ${fmt(t.t1)} and channel 2 above ${fmt(t.t2)}.`;
+        return `Fixed thresholds: channel 1 counts as foreground above ${fmt(t.t1)} and channel 2 above ${fmt(t.t2)} intensity units.`;
       const where = s.thresholdScope === 'cell' ? 'for each cell over its own pixels' : 'once per field over the pixels of all its cells';
       if (t.method === 'otsu') return `Each channel's threshold is chosen ${where} by Otsu's method (Otsu 1979) on the full intensity histogram; foreground is above it.`;
       return (

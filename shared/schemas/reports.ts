@@ -14,6 +14,7 @@
 import { z } from 'zod';
 import { Id, IsoDate } from './common.js';
 import { COMPARE_COEFFICIENTS, Comparison } from './compare.js';
+import { CellOrigin } from './cells.js';
 
 /** Per-cell values a report can carry: the same set Compare offers (registry `compare`, shared/coefficients.ts). */
 export const REPORT_COEFFICIENTS = COMPARE_COEFFICIENTS;
@@ -117,6 +118,8 @@ export const SnapshotCell = z.object({
   saturatedFraction1: Num,
   saturatedFraction2: Num,
   randomizationP: Num,
+  /** how the cell was made (absent in reports made before it was recorded) */
+  origin: CellOrigin.optional(),
 });
 export type SnapshotCell = z.infer<typeof SnapshotCell>;
 

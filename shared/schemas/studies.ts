@@ -21,7 +21,7 @@
 import { z } from 'zod';
 import { Id, IsoDate, Name } from './common.js';
 
-export const StudyAction = z.enum(['read', 'edit_structure', 'edit_images', 'run', 'exclude', 'report', 'delete']);
+export const StudyAction = z.enum(['read', 'edit_structure', 'add_coverslips', 'edit_images', 'run', 'exclude', 'report', 'delete']);
 export type StudyAction = z.infer<typeof StudyAction>;
 
 export const StudySummary = z.object({

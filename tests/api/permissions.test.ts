@@ -63,7 +63,7 @@ const ROWS: Row[] = [
   { family: 'conditions', method: 'patch', path: (t) => `/api/conditions/${w(t).conditionA}`, body: () => ({ name: uniq('control') }), expect: [401, 403, 403, 200, 403, 404] },
   { family: 'conditions', method: 'delete', setup: freshCondition, path: (_t, s) => `/api/conditions/${s.id}`, expect: [401, 403, 403, 200, 403, 404] },
   // ---- coverslips
-  { family: 'coverslips', method: 'post', path: (t) => `/api/conditions/${w(t).conditionA}/coverslips`, body: () => ({ name: uniq('cs') }), expect: [401, 403, 403, 201, 403, 404] },
+  { family: 'coverslips', method: 'post', path: (t) => `/api/conditions/${w(t).conditionA}/coverslips`, body: () => ({ name: uniq('cs') }), expect: [401, 201, 403, 201, 403, 404] },
   { family: 'coverslips', method: 'patch', path: (t) => `/api/coverslips/${w(t).coverslipA}`, body: () => ({ notes: uniq('n') }), expect: [401, 403, 403, 200, 403, 404] },
   { family: 'coverslips', method: 'patch', path: (t) => `/api/coverslips/${w(t).coverslipB}`, body: () => ({ notes: uniq('n') }), expect: [401, 404, 403, 404, 404, 200] },
   { family: 'coverslips', method: 'delete', setup: freshCoverslip, path: (_t, s) => `/api/coverslips/${s.id}`, expect: [401, 403, 403, 200, 403, 404] },

@@ -35,7 +35,7 @@ describe('studies', () => {
     expect(res.status).toBe(201);
     const d = StudyDetail.parse(res.body);
     expect(d).toMatchObject({ name: 'Mito contacts', description: 'pilot', labId: t.world.labA, labName: 'Lab A', ownerName: 'biologist', conditions: [], fieldCount: 0 });
-    expect(d.permissions).toEqual(['read', 'edit_structure', 'edit_images', 'run', 'exclude', 'report', 'delete']);
+    expect(d.permissions).toEqual(['read', 'edit_structure', 'add_coverslips', 'edit_images', 'run', 'exclude', 'report', 'delete']);
     id = d.id;
   });
 
@@ -153,7 +153,7 @@ describe('studies', () => {
     const mic = await t.login('microscopist');
     const list = StudyListResponse.parse((await mic.get('/api/studies')).body);
     const a = list.studies.find((s) => s.id === t.world.studyA)!;
-    expect(a.permissions).toEqual(['read', 'edit_images', 'run']);
+    expect(a.permissions).toEqual(['read', 'add_coverslips', 'edit_images', 'run']);
     expect(new Set(list.studies.map((s) => s.id)).size).toBe(list.studies.length);
   });
 });

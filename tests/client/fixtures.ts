@@ -1,7 +1,7 @@
 /** Small invented study shapes for client tests (parsed with the shared schema so they stay in step). */
 import { StudyDetail, type StudyAction } from '@shared/schemas/studies';
 
-export function makeStudy(permissions: StudyAction[] = ['read', 'edit_structure', 'edit_images', 'run', 'exclude', 'report', 'delete']): StudyDetail {
+export function makeStudy(permissions: StudyAction[] = ['read', 'edit_structure', 'add_coverslips', 'edit_images', 'run', 'exclude', 'report', 'delete']): StudyDetail {
   const cs = (id: number, conditionId: number, replicate: number, fieldCount = 0, cellCount = 0) => ({
     id,
     conditionId,

@@ -204,16 +204,19 @@ describe('find cells', () => {
     ch2: { min: 1, max: 900, mean: 80, saturatedFraction: 0, plateauFraction: null },
   };
 
+  const answer = (kept: boolean) => ({ body: { cells: [], outlines: [{ points: [[1, 1], [9, 1], [9, 9], [1, 9]], pixels: 64 }, { points: [[20, 20], [30, 20], [30, 30]], pixels: 50 }], kept, level: 250, found: 3, droppedSmall: 1, droppedLarge: 0 } });
+
   it('checks the level against the chosen intensities and the sizes against the field, and sends nothing while refused', async () => {
-    const calls = mockApi(on('POST', '/fields/5/cells/auto', () => ({ body: { cells: [], level: 250, found: 0, droppedSmall: 0, droppedLarge: 0 } })));
+    const calls = mockApi(on('POST', '/fields/5/cells/auto', (req) => answer(!(req.body as { preview?: boolean }).preview)));
     const onDone = vi.fn();
-    render(withQueries(<AutoOutlineDialog fieldId={5} open onClose={() => {}} names={['GFP', 'RFP']} onDone={onDone} facts={facts} pixelCount={64 * 64} />));
+    render(withQueries(<AutoOutlineDialog fieldId={5} open onClose={() => {}} names={['GFP', 'RFP']} onDone={onDone} facts={facts} size={[64, 64]} pixelSizeUm={null} />));
     const user = userEvent.setup();
+    expect(screen.getByTestId('find-cells-scale').textContent).toMatch(/no pixel size, so sizes are in pixels/);
     await user.selectOptions(screen.getByLabelText('Threshold'), 'manual');
     const level = screen.getByLabelText('Level (cells are brighter than this)');
     expect(messageOf(level)).toBeNull(); // nothing typed yet
 
-    await user.click(screen.getByRole('button', { name: 'Find cells' }));
+    await user.click(screen.getByRole('button', { name: 'Preview' }));
     expect(messageOf(level)).toBe('Level must be a number between 4 and 4900, got ""'); // sum of both channels
     await user.type(level, '5000');
     expect(messageOf(level)).toBe('Level must be between 4 and 4900, got "5000"');
@@ -225,7 +228,8 @@ describe('find cells', () => {
 
     const smallest = screen.getByLabelText('Smallest cell (pixels)');
     const largest = screen.getByLabelText('Largest cell (pixels, empty = no limit)');
-    const distance = screen.getByLabelText('Least distance between cell centres (px)');
+    const distance = screen.getByLabelText('Least distance between cell centres (pixels)');
+    const smoothing = screen.getByLabelText('Smoothing before the threshold (pixels, 0 = none)');
     await user.clear(smallest);
     await user.type(smallest, '12.5');
     expect(messageOf(smallest)).toBe('Smallest cell must be a whole number, got "12.5"');
@@ -239,25 +243,46 @@ describe('find cells', () => {
     await user.clear(distance);
     await user.type(distance, 'far');
     expect(messageOf(distance)).toBe('Least distance must be a number between 1 and 500, got "far"');
-    await user.click(screen.getByRole('button', { name: 'Find cells' }));
+    await user.click(screen.getByRole('button', { name: 'Preview' }));
     expect(calls.filter((c) => c.method === 'POST')).toEqual([]);
+    expect((screen.getByRole('button', { name: 'Keep' }) as HTMLButtonElement).disabled).toBe(true);
 
     await user.clear(largest);
     await user.type(largest, '900');
     await user.clear(distance);
     await user.type(distance, '7.5');
-    await user.click(screen.getByRole('button', { name: 'Find cells' }));
+    await user.clear(smoothing);
+    await user.type(smoothing, '0');
+    await user.click(screen.getByRole('button', { name: 'Preview' }));
+    // the preview stores nothing and shows what was found
+    expect(await screen.findByText(/2 cells of 50 to 64 pixels \(median 57 pixels\); 1 smaller and 0 larger objects left out/)).toBeTruthy();
+    expect(screen.getByTestId('find-cells-preview-image').querySelectorAll('polygon').length).toBe(2);
+    expect(onDone).not.toHaveBeenCalled();
+    const body = { channel: 'ch2', threshold: { method: 'manual', level: 250 }, smoothing: 0, fillHoles: true, split: true, seedDistance: 7.5, minPixels: 40, maxPixels: 900, replace: true };
+    expect(calls.filter((c) => c.method === 'POST').map((c) => c.body)).toEqual([{ ...body, preview: true }]);
+    await user.click(screen.getByRole('button', { name: 'Keep 2 outlines' }));
     await waitFor(() => expect(onDone).toHaveBeenCalled());
-    expect(calls.find((c) => c.method === 'POST')!.body).toEqual({
-      channel: 'ch2',
-      threshold: { method: 'manual', level: 250 },
-      fillHoles: true,
-      split: true,
-      seedDistance: 7.5,
-      minPixels: 40,
-      maxPixels: 900,
-      replace: true,
-    });
+    expect(calls.filter((c) => c.method === 'POST').at(-1)!.body).toEqual(body);
+  });
+
+  it('with a pixel size: sizes in µm² and µm with defaults for cells at that scale, converted to pixels for the request', async () => {
+    const calls = mockApi(on('POST', '/fields/5/cells/auto', () => answer(false)));
+    render(withQueries(<AutoOutlineDialog fieldId={5} open onClose={() => {}} names={['GFP', 'RFP']} onDone={() => {}} facts={facts} size={[1024, 1024]} pixelSizeUm={0.065} />));
+    const user = userEvent.setup();
+    expect(screen.getByTestId('find-cells-scale').textContent).toContain('pixel size 0.065 µm');
+    expect((screen.getByLabelText('Smallest cell (µm²)') as HTMLInputElement).value).toBe('40');
+    expect((screen.getByLabelText('Largest cell (µm², empty = no limit)') as HTMLInputElement).value).toBe('4000');
+    expect((screen.getByLabelText('Smoothing before the threshold (µm, 0 = none)') as HTMLInputElement).value).toBe('1');
+    expect((screen.getByLabelText('Least distance between cell centres (µm)') as HTMLInputElement).value).toBe('8');
+    await user.click(screen.getByRole('button', { name: 'Preview' }));
+    await waitFor(() => expect(calls.filter((c) => c.method === 'POST')).toHaveLength(1));
+    const sent = calls.find((c) => c.method === 'POST')!.body as Record<string, number>;
+    // 40 µm² / (0.065 µm)² = 9,467.46 pixels → 9,467 (arithmetic)
+    expect(sent.minPixels).toBe(Math.round(40 / 0.065 ** 2));
+    expect(sent.maxPixels).toBe(Math.round(4000 / 0.065 ** 2));
+    expect(sent.smoothing).toBeCloseTo(1 / 0.065, 12);
+    expect(sent.seedDistance).toBeCloseTo(8 / 0.065, 12);
+    expect(await screen.findByText(/2 cells of 0.211 to 0.27 µm²/)).toBeTruthy();
   });
 });
 

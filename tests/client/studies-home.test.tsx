@@ -65,7 +65,7 @@ describe('Home by role', () => {
   });
 
   it('microscopist: coverslips whose fields have no cells yet', async () => {
-    const study = makeStudy(['read', 'edit_images', 'run']);
+    const study = makeStudy(['read', 'add_coverslips', 'edit_images', 'run']);
     mockApi(asUser(demoUser(['microscopist'])), on('GET', '/studies', () => ({ body: { studies: [summary] } })), on('GET', '/studies/3', () => ({ body: study })), on('GET', '/runs', () => ({ body: { runs: [] } })));
     renderRoutes([{ path: '/', Component: Home }], '/');
     expect(await screen.findByText('2 fields, no cells')).toBeTruthy();

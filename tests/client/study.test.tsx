@@ -142,6 +142,15 @@ describe('Study page', () => {
     expect(screen.queryByRole('button', { name: /Move|Delete|Rename|Add|Edit/ })).toBeNull();
   });
 
+  it('shows a microscopist of the lab "Add coverslip" and "Add fields…", but no structure controls', async () => {
+    mockApi(asUser(demoUser(['microscopist'])), on('GET', '/studies/3', () => ({ body: makeStudy(['read', 'add_coverslips', 'edit_images', 'run']) })));
+    renderRoutes(routes, '/studies/3');
+    await screen.findByRole('heading', { level: 1, name: 'Puncta sharing' });
+    expect(screen.getAllByRole('button', { name: 'Add coverslip' }).length).toBe(2);
+    expect((await screen.findAllByRole('button', { name: 'Add fields…' })).length).toBeGreaterThan(0);
+    expect(screen.queryByRole('button', { name: /Move|Delete|Rename|Edit|Add condition/ })).toBeNull();
+  });
+
   it('answers a study the user may not see with the not-found page', async () => {
     mockApi(asUser(demoUser(['collaborator'])), on('GET', '/studies/9', () => ({ status: 404, body: { error: 'no study with id 9' } })));
     renderRoutes(routes, '/studies/9');

@@ -104,10 +104,17 @@ it('finds cells automatically, marks a background box, links result rows to cell
   // automatic outlines
   await page.getByRole('button', { name: 'Find cells…' }).click();
   const dialog = page.getByRole('dialog');
-  await dialog.getByRole('button', { name: 'Find cells', exact: true }).click();
-  await page.getByText(/cells? found \(level/).waitFor({ timeout: 30_000 });
+  // a preview first: nothing is stored until the outlines are kept
+  await dialog.getByRole('button', { name: 'Preview', exact: true }).click();
+  await dialog.getByText(/Nothing is stored until you keep them/).waitFor({ timeout: 30_000 });
+  expect(await dialog.getByTestId('find-cells-preview-image').locator('polygon').count()).toBeGreaterThan(3);
+  await shot(page, 'workspace-06a-find-cells-preview');
+  await dialog.getByRole('button', { name: /^Keep \d+ outlines$/ }).click();
+  await page.getByText(/cells? found and kept \(level/).waitFor({ timeout: 30_000 });
   const list = page.getByTestId('cells-list');
   await list.getByText('Auto 1', { exact: true }).waitFor();
+  // the Cells list says how each cell was made
+  expect(await list.getByText(/found automatically/).count()).toBeGreaterThan(3);
   const auto = (await apiGet<{ cells: { name: string; source: string }[] }>(page, `/api/fields/${field.id}/cells`)).cells.filter((c) => c.source === 'automatic');
   expect(auto.length).toBeGreaterThan(3);
   await shot(page, 'workspace-06-auto');

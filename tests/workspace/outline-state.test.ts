@@ -21,6 +21,7 @@ const cell = (id: number, over: Partial<Cell> = {}): Cell => ({
   role: 'cell',
   geometry: tri,
   source: 'drawn',
+  origin: { how: 'drawn' },
   pixelCount: 50,
   excluded: false,
   exclusionReason: null,

@@ -195,7 +195,7 @@ export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
         db.transaction((tx) => {
           for (const c of synth.cells) {
             const pixelCount = maskToIndices(rasterize({ kind: 'polygon', points: c.points }, synth.width, synth.height)).length;
-            tx.insert(cells).values({ fieldId, name: c.name, geometry: { kind: 'polygon', points: c.points }, source: 'seed', pixelCount, createdBy: ids.microscopist }).run();
+            tx.insert(cells).values({ fieldId, name: c.name, geometry: { kind: 'polygon', points: c.points }, source: 'seed', origin: { how: 'demo' }, pixelCount, createdBy: ids.microscopist }).run();
           }
         });
         opts.onFieldDone?.(++done);

@@ -75,15 +75,18 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const saturationLevel = field.sampleFormat === 'float' ? null : 2 ** field.bitDepth - 1;
   const scatter = useScatter(pixels.data, saturationLevel);
   const selectedOutline = state.outlines.find((o) => o.key === state.selected) ?? null;
-  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : 'field';
+  // the whole field's default thresholds are computed over the outlined cells (scatterBasis.ts): its key follows them
+  const cellGeometries = useMemo(() => state.outlines.filter((o) => o.role === 'cell').map((o) => o.geometry), [state.outlines]);
+  const cellsKey = useMemo(() => hashGeometry(cellGeometries), [cellGeometries]);
+  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : `field:${cellsKey}`;
   const regionName = selectedOutline ? selectedOutline.name : 'the whole field';
   const geometry = selectedOutline?.geometry ?? null;
   useEffect(() => {
     if (!scatter.ready || gesture) return;
-    scatter.request(regionKey, geometry, manual?.t1 ?? null, manual?.t2 ?? null, true);
+    scatter.request(regionKey, geometry, manual?.t1 ?? null, manual?.t2 ?? null, true, cellGeometries);
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [scatter.ready, regionKey, gesture, manual]);
-  const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false), [scatter, regionKey, geometry]);
+  const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false, cellGeometries), [scatter, regionKey, geometry, cellGeometries]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
 
   // spots: the latest run's (stored per cell), or live detection in the worker at the sliders' σ and k
@@ -288,7 +291,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               <span className="text-xs text-ink-soft">{plural(state.outlines.filter((o) => o.role === 'cell').length, 'cell')} · {plural(state.outlines.filter((o) => o.role === 'background').length, 'background region')}</span>
             </div>
             <div className="max-h-64 overflow-auto">
-              {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} />}
+              {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} pixelSizeUm={field.pixelSizeUm} />}
             </div>
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">
@@ -349,7 +352,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
       </div>
       <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
       <ImportOutlinesDialog fieldId={fieldId} open={dialog === 'outlines'} onClose={() => setDialog(null)} onDone={setNotice} />
-      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} pixelCount={field.width * field.height} />
+      <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} size={[field.width, field.height]} pixelSizeUm={field.pixelSizeUm} />
     </div>
   );
 }

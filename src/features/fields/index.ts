@@ -3,3 +3,4 @@ export { useField } from './api/useField';
 export { useFieldPixels } from './api/useFieldPixels';
 export { FieldList } from './components/FieldList';
 export { UploadFields } from './components/UploadFields';
+export { fieldPreviewUrl } from './api/fieldPreviewUrl';

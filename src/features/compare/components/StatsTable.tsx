@@ -19,7 +19,8 @@ export function StatsTable({ data }: { data: Comparison }) {
             <th className={th}>condition</th>
             <th className={`${th} text-right`}>coverslips</th>
             <th className={`${th} text-right`}>cells</th>
-            <th className={`${th} text-right`}>mean of coverslip means</th>
+            <th className={`${th} text-right`}>mean of coverslip means{data.averaging === 'fisher_z' ? ' (Fisher’s z)' : ''}</th>
+            <th className={`${th} text-right`}>median of coverslip medians</th>
             <th className={`${th} text-right`}>{pct} interval</th>
           </tr>
         </thead>
@@ -31,6 +32,9 @@ export function StatsTable({ data }: { data: Comparison }) {
               <td className={num}>{c.nCells}</td>
               <td className={num} data-testid="condition-mean">
                 {f(c.mean)}
+              </td>
+              <td className={num} data-testid="condition-median">
+                {f(c.median)}
               </td>
               <td className={num}>
                 {f(c.ci.lower)} to {f(c.ci.upper)}
@@ -97,7 +101,7 @@ export function StatsTable({ data }: { data: Comparison }) {
             <th className={th}>condition</th>
             <th className={th}>coverslip</th>
             <th className={`${th} text-right`}>cells</th>
-            <th className={`${th} text-right`}>mean</th>
+            <th className={`${th} text-right`}>mean{data.averaging === 'fisher_z' ? ' (Fisher’s z)' : ''}</th>
             <th className={`${th} text-right`}>median</th>
           </tr>
         </thead>

@@ -6,6 +6,8 @@
  * and works inside report pages.
  */
 import { forwardRef, useMemo } from 'react';
+import { byKey } from '@shared/coefficients';
+import { plotDomain } from '../lib/plotDomain';
 import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3';
 import type { Comparison } from '@shared/schemas/compare';
 import { coverslipColor, coverslipMarker, type Marker } from '../lib/palette';
@@ -49,21 +51,10 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
       .range([0, iw])
       .paddingInner(0.25)
       .paddingOuter(0.15);
-    let lo = Infinity;
-    let hi = -Infinity;
-    const see = (v: number | null) => {
-      if (v === null) return;
-      if (v < lo) lo = v;
-      if (v > hi) hi = v;
-    };
-    for (const p of data.points) see(p.value);
-    for (const c of data.conditions) [c.ci.lower, c.ci.upper, c.mean].forEach(see);
-    if (!Number.isFinite(lo)) [lo, hi] = [0, 1];
-    if (lo === hi) [lo, hi] = [lo - 0.5, hi + 0.5];
-    const pad = (hi - lo) * 0.05;
+    const values: (number | null)[] = data.points.map((p) => p.value);
+    for (const c of data.conditions) values.push(c.ci.lower, c.ci.upper, c.mean);
     const y = scaleLinear()
-      .domain([lo - pad, hi + pad])
-      .nice()
+      .domain(plotDomain(values, byKey(data.coefficient).axis))
       .range([ih, 0]);
     let drawn = data.points;
     if (drawn.length > MAX_DRAWN_POINTS) {

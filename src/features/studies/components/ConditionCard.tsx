@@ -33,6 +33,7 @@ export function ConditionCard({
 }) {
   const canEdit = study.permissions.includes('edit_structure');
   const canUpload = study.permissions.includes('edit_images');
+  const canAddCoverslip = study.permissions.includes('add_coverslips');
   const rename = useUpdateCondition();
   const remove = useDeleteCondition();
   const addCoverslip = useCreateCoverslip();
@@ -92,7 +93,7 @@ export function ConditionCard({
       <div className="px-4 py-3">
         {condition.coverslips.length === 0 ? (
           <EmptyState title="No coverslips in this condition" className="py-5">
-            {canEdit ? 'Each coverslip is one biological replicate. Add the first.' : 'The study owner adds coverslips.'}
+            {canAddCoverslip ? 'Each coverslip is one biological replicate. Add the first.' : 'The study owner or the lab’s microscopists add coverslips.'}
           </EmptyState>
         ) : (
           <ol className="flex flex-col divide-y divide-ink/10" aria-label={`Coverslips of ${condition.name}`}>
@@ -131,7 +132,7 @@ export function ConditionCard({
             ))}
           </ol>
         )}
-        {canEdit && (
+        {canAddCoverslip && (
           <div className="mt-3">
             <Button size="sm" onClick={() => setAdding(true)}>
               Add coverslip

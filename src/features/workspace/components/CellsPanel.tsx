@@ -5,12 +5,12 @@
 import { useEffect, useRef, useState } from 'react';
 import { Badge, cx } from '@/components';
 import type { Cell } from '@shared/schemas/cells';
+import { formatAmount, originDetail, originLabel } from '@shared/format/origin';
 import type { Outline, OutlineAction } from '../lib/outlineState';
 
 /** Cells smaller than this are flagged: too few pixels for stable coefficients (common practice, decided here). */
 export const SMALL_CELL_PIXELS = 50;
 
-const SOURCE_WORD: Record<Cell['source'], string> = { drawn: 'drawn', label_image: 'label image', automatic: 'automatic', seed: 'demo', geojson: 'GeoJSON' };
 
 export function CellsPanel({
   outlines,
@@ -19,6 +19,7 @@ export function CellsPanel({
   dispatch,
   canEdit,
   unsaved,
+  pixelSizeUm = null,
 }: {
   outlines: Outline[];
   saved: Record<string, Cell>;
@@ -26,6 +27,8 @@ export function CellsPanel({
   dispatch: (a: OutlineAction) => void;
   canEdit: boolean;
   unsaved: Set<string>;
+  /** µm per pixel of the field: sizes are also given in µm² when known */
+  pixelSizeUm?: number | null;
 }) {
   const [editing, setEditing] = useState<string | null>(null);
   const list = useRef<HTMLUListElement>(null);
@@ -74,8 +77,8 @@ export function CellsPanel({
                 }}
               >
                 <span className="block truncate font-medium">{o.name}</span>
-                <span className="block text-xs text-ink-soft">
-                  {px !== null ? `${px.toLocaleString()} px` : 'saving…'} · {SOURCE_WORD[o.source]}
+                <span className="block text-xs text-ink-soft" title={originDetail(saved[o.key]?.origin ?? { how: 'drawn' })} data-testid="cell-origin">
+                  {px !== null ? `${px.toLocaleString()} px${pixelSizeUm ? ` (${formatAmount(px * pixelSizeUm * pixelSizeUm)} µm²)` : ''}` : 'saving…'} · {originLabel(saved[o.key]?.origin ?? { how: 'drawn' })}
                   {o.geometry.kind !== 'label' ? ` · ${o.geometry.kind === 'rect' ? 'box' : o.geometry.kind === 'freehand' ? 'trace' : o.geometry.kind}` : ''}
                 </span>
               </button>

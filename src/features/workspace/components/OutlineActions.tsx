@@ -1,9 +1,11 @@
 /** "Import label image", "Import outlines" (GeoJSON) and "Find cells" (automatic outlines) dialogs. */
 import { useId, useState } from 'react';
 import { Button, Dialog, ErrorNotice } from '@/components';
-import { AutoOutlineRequest } from '@shared/schemas/cells';
 import type { FieldSummary } from '@shared/schemas/fields';
-import { NumberText, NumberTextFor, readNumberText } from '@shared/schemas/common';
+import { NumberText, readNumberText } from '@shared/schemas/common';
+import { formatAmount } from '@shared/format/origin';
+import { fieldPreviewUrl } from '@/features/fields';
+import { CELL_DEFAULTS_UM, SEED_MAX_PX, SEED_MIN_PX, SMOOTHING_MAX_PX, areaUnit, defaultsFor, lengthUnit, pixelsToArea, previewSummary, requestFor } from '../lib/findCells';
 import { useImportLabels } from '../api/useImportLabels';
 import { useImportOutlines } from '../api/useImportOutlines';
 import { useAutoOutline } from '../api/useAutoOutline';
@@ -124,43 +126,69 @@ function NumberBox({ label, value, onChange, error, inputMode }: { label: string
   );
 }
 
-const SEED_DISTANCE = NumberTextFor('Least distance', AutoOutlineRequest.shape.seedDistance.unwrap());
-
 /**
- * Automatic outlines. Typed numbers are checked as they are typed: the manual level against the data range of
- * the chosen intensities (field facts; the sum of both channels spans the sum of their ranges), the seed
- * distance against the request schema, cell sizes as whole numbers from 1 to the field's pixel count (the
- * largest at least the smallest). While a box is refused its message stands beside it and nothing is sent.
+ * Automatic outlines, previewed before they are kept. Sizes and distances are in µm² / µm when the field's
+ * pixel size is known (lib/findCells.ts: defaults for cultured cells at that scale, stated in the dialog), in
+ * pixels otherwise. Typed numbers are checked as they are typed: the manual level against the data range of
+ * the chosen intensities (field facts; the sum of both channels spans the sum of their ranges), sizes from
+ * one pixel to the field. "Preview" stores nothing and shows what would be kept over the field; "Keep" stores
+ * exactly those outlines (same settings); any change of a setting asks for a new preview.
  */
-export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z, facts, pixelCount }: { fieldId: number; open: boolean; onClose: () => void; names: [string, string]; onDone: (msg: string) => void; z?: number | 'mip'; facts: FieldSummary['facts']; pixelCount: number }) {
-  const m = useAutoOutline(fieldId);
+export function AutoOutlineDialog({
+  fieldId,
+  open,
+  onClose,
+  names,
+  onDone,
+  z,
+  facts,
+  size,
+  pixelSizeUm,
+}: {
+  fieldId: number;
+  open: boolean;
+  onClose: () => void;
+  names: [string, string];
+  onDone: (msg: string) => void;
+  z?: number | 'mip';
+  facts: FieldSummary['facts'];
+  size: [number, number];
+  pixelSizeUm: number | null;
+}) {
+  const look = useAutoOutline(fieldId);
+  const keep = useAutoOutline(fieldId);
+  const scale = { pixelSizeUm };
+  const d = defaultsFor(scale);
+  const pixelCount = size[0] * size[1];
+  const fieldArea = pixelsToArea(pixelCount, scale);
   const [channel, setChannel] = useState<'ch1' | 'ch2' | 'sum'>('sum');
   const [method, setMethod] = useState<'otsu' | 'manual'>('otsu');
   const [level, setLevel] = useState('');
   const [levelTyped, setLevelTyped] = useState(false);
   const [tried, setTried] = useState(false);
   const [split, setSplit] = useState(true);
-  const [seedDistance, setSeedDistance] = useState('10');
-  const [minPixels, setMinPixels] = useState('30');
-  const [maxPixels, setMaxPixels] = useState('');
+  const [smoothing, setSmoothing] = useState(String(d.smoothing));
+  const [seedDistance, setSeedDistance] = useState(String(d.seedDistance));
+  const [minArea, setMinArea] = useState(String(d.minArea));
+  const [maxArea, setMaxArea] = useState(d.maxArea === null ? '' : String(d.maxArea));
   const [replace, setReplace] = useState(true);
+  const au = areaUnit(scale), lu = lengthUnit(scale);
   const range: [number, number] = channel === 'sum' ? [facts.ch1.min + facts.ch2.min, facts.ch1.max + facts.ch2.max] : [facts[channel].min, facts[channel].max];
   const lv = method === 'manual' ? readNumberText(NumberText('Level', { min: range[0], max: range[1] }), level) : null;
-  const sd = split ? readNumberText(SEED_DISTANCE, seedDistance) : null;
-  const lo = readNumberText(NumberText('Smallest cell', { min: 1, max: pixelCount, integer: true }), minPixels);
-  const hi = maxPixels.trim() === '' ? null : readNumberText(NumberText('Largest cell', { min: lo.value ?? 1, max: pixelCount, integer: true }), maxPixels);
-  const invalid = !!(lv?.error || sd?.error || lo.error || hi?.error);
-  const body = (): AutoOutlineRequest => ({
-    channel,
-    threshold: lv?.value != null ? { method: 'manual', level: lv.value } : { method: 'otsu' },
-    fillHoles: true,
-    split,
-    ...(sd?.value != null ? { seedDistance: sd.value } : {}),
-    minPixels: lo.value!,
-    maxPixels: hi?.value ?? null,
-    replace,
-    ...(z !== undefined ? { z } : {}),
-  });
+  // bounds in the shown unit: the request schema's pixel bounds times the pixel size; areas up to the field
+  const u = pixelSizeUm ?? 1;
+  const sm = readNumberText(NumberText('Smoothing', { min: 0, max: SMOOTHING_MAX_PX * u }), smoothing);
+  const sd = split ? readNumberText(NumberText('Least distance', { min: SEED_MIN_PX * u, max: SEED_MAX_PX * u }), seedDistance) : null;
+  const lo = readNumberText(NumberText('Smallest cell', pixelSizeUm ? { min: 0, max: fieldArea } : { min: 1, max: pixelCount, integer: true }), minArea);
+  const hi = maxArea.trim() === '' ? null : readNumberText(NumberText('Largest cell', pixelSizeUm ? { min: lo.value ?? 0, max: fieldArea } : { min: lo.value ?? 1, max: pixelCount, integer: true }), maxArea);
+  const boxError = lv?.error || sm.error || sd?.error || lo.error || hi?.error;
+  const req = boxError
+    ? null
+    : requestFor({ channel, level: lv?.value ?? null, smoothing: sm.value!, split, seedDistance: sd?.value ?? 1, minArea: lo.value!, maxArea: hi?.value ?? null, replace, z }, scale, pixelCount);
+  const key = req && !req.error ? JSON.stringify(req.body) : null;
+  const previewed = look.data && look.variables && key === JSON.stringify({ ...look.variables, preview: undefined }) ? look.data : null;
+  const summary = previewed ? previewSummary(previewed.outlines, scale) : null;
+  const fmtA = (v: number) => formatAmount(v);
   const field = 'rounded border border-ink/20 bg-white px-1.5 py-1 text-sm';
   return (
     <Dialog
@@ -168,30 +196,45 @@ export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z, fa
       onClose={onClose}
       width="lg"
       title="Find cells automatically"
-      description="Threshold the image, fill holes, split touching cells along the valleys of their distance map (watershed), and drop objects outside the size range. The outlines are ordinary, editable outlines."
+      description="Smooth the image, threshold it, fill holes, split touching cells along the valleys of their distance map (watershed), and drop objects outside the size range. Look at the result first; the outlines you keep are ordinary, editable outlines that remember these settings."
       footer={
         <>
           <Button onClick={onClose}>Cancel</Button>
           <Button
-            variant="primary"
-            pending={m.isPending}
+            pending={look.isPending}
             onClick={() => {
               setTried(true);
-              if (invalid) return;
-              m.mutate(body(), {
+              if (!req || req.error) return;
+              look.mutate({ ...req.body, preview: true });
+            }}
+          >
+            Preview
+          </Button>
+          <Button
+            variant="primary"
+            disabled={!previewed || previewed.outlines.length === 0}
+            pending={keep.isPending}
+            onClick={() => {
+              if (!previewed || !req) return;
+              keep.mutate(req.body, {
                 onSuccess: (r) => {
-                  onDone(`${plural(r.cells.length, 'cell')} found (level ${r.level === null ? '—' : Number(r.level.toPrecision(5))}; ${r.droppedSmall} too small, ${r.droppedLarge} too large left out)`);
+                  onDone(`${plural(r.cells.length, 'cell')} found and kept (level ${r.level === null ? '—' : Number(r.level.toPrecision(5))}; ${r.droppedSmall} too small, ${r.droppedLarge} too large left out)`);
                   onClose();
                 },
               });
             }}
           >
-            Find cells
+            {previewed ? `Keep ${plural(previewed.outlines.length, 'outline')}` : 'Keep'}
           </Button>
         </>
       }
     >
       <div className="grid grid-cols-2 gap-3 text-sm">
+        <p className="col-span-2 text-xs text-ink-soft" data-testid="find-cells-scale">
+          {pixelSizeUm
+            ? `Sizes in µm² and µm (pixel size ${formatAmount(pixelSizeUm)} µm, from the file). Suggested for cultured cells at this scale: ${CELL_DEFAULTS_UM.minAreaUm2} to ${CELL_DEFAULTS_UM.maxAreaUm2.toLocaleString('en-US')} µm² per cell, smoothing ${CELL_DEFAULTS_UM.smoothingUm} µm so puncta merge into their cell, cell centres at least ${CELL_DEFAULTS_UM.seedDistanceUm} µm apart.`
+            : 'The file records no pixel size, so sizes are in pixels. Set the smallest and largest cell to what a cell covers in this image.'}
+        </p>
         <label className="flex flex-col gap-1">
           <span className="text-ink-soft">Intensities</span>
           <select className={field} value={channel} onChange={(e) => setChannel(e.target.value as typeof channel)}>
@@ -210,21 +253,53 @@ export function AutoOutlineDialog({ fieldId, open, onClose, names, onDone, z, fa
         {method === 'manual' && (
           <NumberBox label="Level (cells are brighter than this)" value={level} onChange={(v) => (setLevel(v), setLevelTyped(true))} error={levelTyped || tried ? (lv?.error ?? null) : null} inputMode="decimal" />
         )}
+        <NumberBox label={`Smoothing before the threshold (${lu}, 0 = none)`} value={smoothing} onChange={setSmoothing} error={sm.error} inputMode="decimal" />
         <label className="flex items-center gap-2">
           <input type="checkbox" checked={split} onChange={(e) => setSplit(e.target.checked)} /> Split touching cells
         </label>
-        {split && (
-          <NumberBox label="Least distance between cell centres (px)" value={seedDistance} onChange={setSeedDistance} error={sd?.error ?? null} inputMode="decimal" />
-        )}
-        <NumberBox label="Smallest cell (pixels)" value={minPixels} onChange={setMinPixels} error={lo.error} inputMode="numeric" />
-        <NumberBox label="Largest cell (pixels, empty = no limit)" value={maxPixels} onChange={setMaxPixels} error={hi?.error ?? null} inputMode="numeric" />
+        {split && <NumberBox label={`Least distance between cell centres (${lu})`} value={seedDistance} onChange={setSeedDistance} error={sd?.error ?? null} inputMode="decimal" />}
+        <NumberBox label={`Smallest cell (${au})`} value={minArea} onChange={setMinArea} error={lo.error} inputMode="decimal" />
+        <NumberBox label={`Largest cell (${au}, empty = no limit)`} value={maxArea} onChange={setMaxArea} error={hi?.error ?? null} inputMode="decimal" />
         <label className="col-span-2 flex items-center gap-2">
           <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> Replace earlier automatic outlines of this field
         </label>
+        {req?.error && (
+          <p role="alert" className="col-span-2 text-xs text-danger">
+            {req.error}
+          </p>
+        )}
+        <div className="col-span-2" data-testid="find-cells-preview" aria-live="polite">
+          {previewed ? (
+            <div className="space-y-2">
+              <p>
+                {summary
+                  ? `${plural(summary.count, 'cell')} of ${fmtA(summary.smallest)} to ${fmtA(summary.largest)} ${au} (median ${fmtA(summary.median)} ${au})`
+                  : 'No cell within the size range'}
+                ; {previewed.droppedSmall} smaller and {previewed.droppedLarge} larger objects left out; threshold level {previewed.level === null ? '—' : formatAmount(previewed.level)}. Nothing is stored until you keep them.
+              </p>
+              <PreviewOutlines fieldId={fieldId} size={size} outlines={previewed.outlines} />
+            </div>
+          ) : (
+            <p className="text-xs text-ink-soft">Preview shows the outlines over the field before anything is stored.</p>
+          )}
+        </div>
         <div className="col-span-2">
-          <ErrorNotice error={m.error} />
+          <ErrorNotice error={look.error ?? keep.error} />
         </div>
       </div>
     </Dialog>
+  );
+}
+
+/** The previewed outlines drawn over the field's picture, at the dialog's width. */
+function PreviewOutlines({ fieldId, size, outlines }: { fieldId: number; size: [number, number]; outlines: { points: [number, number][] }[] }) {
+  const [w, h] = size;
+  return (
+    <svg viewBox={`0 0 ${w} ${h}`} className="max-h-72 w-full rounded border border-ink/15 bg-ink" role="img" aria-label={`${plural(outlines.length, 'outline')} found, drawn over the field`} data-testid="find-cells-preview-image">
+      <image href={fieldPreviewUrl(fieldId, { max: 512 })} x={0} y={0} width={w} height={h} preserveAspectRatio="none" />
+      {outlines.map((o, i) => (
+        <polygon key={i} points={o.points.map((p) => p.join(',')).join(' ')} fill="none" stroke="#facc15" strokeWidth={Math.max(1, w / 400)} vectorEffect="non-scaling-stroke" />
+      ))}
+    </svg>
   );
 }

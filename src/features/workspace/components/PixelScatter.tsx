@@ -2,12 +2,15 @@
  * Pixel scatter: the 2-D joint histogram of channel 1 (across) and channel 2 (up) over the selected cell or
  * the whole field, log-scaled counts, threshold lines T1 / T2 that can be dragged (or typed), and the share
  * of pixels in each quadrant. Computed in a Web Worker (useScatter); the numbers are exact ("above" means
- * strictly greater than the threshold).
+ * strictly greater than the threshold). Default thresholds describe the cells (scatterBasis.ts: over the
+ * outlined cells, saturated pixels left out; the sentence under the plot says which), and the bins holding
+ * saturated pixels are drawn in their own colour, on the edge when they lie beyond the axes.
  */
 import { useEffect, useRef, useState } from 'react';
 import type { ScatterView } from '../lib/useScatter';
 import { NumberText, readNumberText } from '@shared/schemas/common';
 import { plural } from '@shared/format/plural';
+import { describeBasis } from '../lib/scatterBasis';
 
 const SIZE = 264;
 const STOPS: [number, number, number][] = [
@@ -16,6 +19,10 @@ const STOPS: [number, number, number][] = [
   [15, 118, 110], // accent
   [31, 42, 51], // ink
 ];
+/** bins holding saturated pixels (a warm red, apart from the teal-to-ink count scale) */
+const SATURATED: [number, number, number] = [190, 18, 60];
+/** beyond this many marked bins the colour of the bins alone shows them */
+const MAX_SATURATED_RINGS = 200;
 
 function colour(t: number): [number, number, number] {
   const x = Math.max(0, Math.min(1, t)) * (STOPS.length - 1);
@@ -64,7 +71,7 @@ export function PixelScatter({
       for (let bx = 0; bx < bins; bx++) {
         const cnt = data.counts[by * bins + bx];
         const o = ((bins - 1 - by) * bins + bx) * 4;
-        const [r, g, b] = cnt ? colour(0.12 + (0.88 * Math.log1p(cnt)) / lm) : STOPS[0];
+        const [r, g, b] = data.saturatedMarks.marks[by * bins + bx] ? SATURATED : cnt ? colour(0.12 + (0.88 * Math.log1p(cnt)) / lm) : STOPS[0];
         im.data[o] = r;
         im.data[o + 1] = g;
         im.data[o + 2] = b;
@@ -85,6 +92,11 @@ export function PixelScatter({
   };
   const snap = (v: number) => (Number.isInteger(data.t1) && x1 - x0 > 50 ? Math.round(v) : v);
   const q = data.quadrants;
+  const sat = data.saturatedMarks;
+  const satTotal = sat.only1 + sat.only2 + sat.both;
+  // a bin is about one screen pixel: the marked bins also get a ring, so a few saturated pixels stay visible
+  const satRings: [number, number][] = [];
+  for (let i = 0; i < sat.marks.length && satRings.length <= MAX_SATURATED_RINGS; i++) if (sat.marks[i]) satRings.push([i % data.bins, Math.floor(i / data.bins)]);
 
   return (
     <div>
@@ -127,6 +139,10 @@ export function PixelScatter({
             <svg className="pointer-events-none absolute inset-0" width={SIZE} height={SIZE}>
               <line x1={px(data.t1)} x2={px(data.t1)} y1={0} y2={SIZE} stroke="#b45309" strokeWidth={1.5} />
               <line y1={py(data.t2)} y2={py(data.t2)} x1={0} x2={SIZE} stroke="#b45309" strokeWidth={1.5} />
+              {satRings.length <= MAX_SATURATED_RINGS &&
+                satRings.map(([bx, by]) => (
+                  <circle key={`${bx}-${by}`} cx={((bx + 0.5) / data.bins) * SIZE} cy={SIZE - ((by + 0.5) / data.bins) * SIZE} r={4} fill="none" stroke={`rgb(${SATURATED.join(',')})`} strokeWidth={1.5} data-saturated-ring="" />
+                ))}
             </svg>
             <span className="absolute right-1 top-1 rounded bg-white/80 px-1 text-[11px] font-mono" title="both above threshold">{fmtPct(q.both, data.n)}</span>
             <span className="absolute left-1 top-1 rounded bg-white/80 px-1 text-[11px] font-mono" title={`only ${names[1]} above`}>{fmtPct(q.only2, data.n)}</span>
@@ -145,10 +161,19 @@ export function PixelScatter({
           {data.outside.toLocaleString()} brightest pixels lie beyond the axes (up to {fmtV(data.dataMax[0])} / {fmtV(data.dataMax[1])}); the quadrant shares count them.
         </p>
       )}
+      {satTotal > 0 && (
+        <p className="mt-0.5 flex items-baseline gap-1 text-[11px] text-ink-soft" data-testid="scatter-saturated">
+          <span aria-hidden="true" className="inline-block h-2 w-2 shrink-0" style={{ background: `rgb(${SATURATED.join(',')})` }} />
+          <span>
+            {plural(satTotal, 'saturated pixel')} (only {names[0]} {sat.only1.toLocaleString('en-US')}, only {names[1]} {sat.only2.toLocaleString('en-US')}, both {sat.both.toLocaleString('en-US')}) drawn in red (ringed)
+            {sat.beyondAxes > 0 ? `; ${sat.beyondAxes.toLocaleString('en-US')} beyond the axes are drawn on the edge` : ''}.
+          </span>
+        </p>
+      )}
       <ThresholdInputs t1={data.t1} t2={data.t2} range1={[data.rangeX[0], data.dataMax[0]]} range2={[data.rangeY[0], data.dataMax[1]]} onChange={onThresholdsDone} />
       <div className="mt-1 flex items-start justify-between gap-2 text-xs text-ink-soft">
         <span>
-          Thresholds {manual ? 'set by hand' : 'by Otsu (1979) on this region'}; above = strictly greater.
+          <span data-testid="threshold-basis">{manual ? 'Thresholds set by hand.' : describeBasis(data.basis)}</span> Above = strictly greater.
         </span>
         {manual && (
           <button type="button" className="shrink-0 text-accent underline-offset-2 hover:underline" onClick={onReset}>

@@ -8,15 +8,16 @@ import { previewSpots } from './spotPreview';
 import type { Xy } from './spotView';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
+import type { SaturatedMarks, ThresholdBasis } from './scatterBasis';
 
 export type ScatterRequest =
   | { type: 'pixels'; width: number; height: number; ch1: SampleArray; ch2: SampleArray; saturationLevel: number | null }
-  | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean }
+  | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean; cells: CellGeometry[] }
   /** live spot detection at the sliders' σ and k (spotPreview.ts) */
   | { type: 'spots'; seq: number; regionKey: string; geometry: CellGeometry | null; sigma: number; k: number };
 
 export type ScatterReply =
-  | { type: 'scatter'; seq: number; regionKey: string; n: number; bins: number; counts: Uint32Array | null; max: number; outside: number; dataMax: [number, number]; rangeX: [number, number]; rangeY: [number, number]; t1: number; t2: number; otsu: { t1: number | null; t2: number | null }; quadrants: { both: number; only1: number; only2: number; neither: number }; saturated: { ch1: number | null; ch2: number | null }; ms: number }
+  | { type: 'scatter'; seq: number; regionKey: string; n: number; bins: number; counts: Uint32Array | null; max: number; outside: number; dataMax: [number, number]; rangeX: [number, number]; rangeY: [number, number]; t1: number; t2: number; otsu: { t1: number | null; t2: number | null }; quadrants: { both: number; only1: number; only2: number; neither: number }; saturated: { ch1: number | null; ch2: number | null }; basis: ThresholdBasis; saturatedMarks: Omit<SaturatedMarks, 'marks'> & { marks: Uint8Array | null }; ms: number }
   | { type: 'measure'; seq: number; regionKey: string; result: import('@shared/analysis/types').RegionResult; ms: number }
   | { type: 'spots'; seq: number; regionKey: string; sigma: number; k: number; spots1: Xy[]; spots2: Xy[]; pixels: number; ms: number }
   | { type: 'error'; seq: number; message: string; spots?: boolean };
@@ -46,7 +47,7 @@ self.onmessage = (e: MessageEvent<ScatterRequest>) => {
     if (!img) throw new Error('pixels not loaded yet');
     const t0 = performance.now();
     const fresh = !region || region.key !== m.regionKey;
-    if (fresh) region = { key: m.regionKey, r: prepareRegion(img, m.geometry) };
+    if (fresh) region = { key: m.regionKey, r: prepareRegion(img, m.geometry, 256, m.cells) };
     const r = region!.r;
     const t1 = m.t1 ?? r.otsu.t1 ?? 0;
     const t2 = m.t2 ?? r.otsu.t2 ?? 0;
@@ -69,9 +70,11 @@ self.onmessage = (e: MessageEvent<ScatterRequest>) => {
       otsu: r.otsu,
       quadrants: s.quadrants,
       saturated: r.saturated,
+      basis: r.basis,
+      saturatedMarks: { ...r.saturatedMarks, marks: fresh ? r.saturatedMarks.marks.slice() : null },
       ms: performance.now() - t0,
     };
-    (self as unknown as Worker).postMessage(reply, reply.counts ? [reply.counts.buffer] : []);
+    (self as unknown as Worker).postMessage(reply, reply.counts ? [reply.counts.buffer, reply.saturatedMarks.marks!.buffer] : []);
     if (m.measure) {
       const t2m = performance.now();
       const result = livePreview(r, t1, t2);

@@ -5,7 +5,8 @@
  * (shared/analysis/index.ts measurePairs, the core of measureRegion). Regions come from cellIndices (the one rasterization rule).
  */
 import { jointHistogram, type Histogram2D } from '@shared/analysis/histogram';
-import { computeThresholds, measurePairs, collectPairs, prepare, type PreparedPairs, type RegionResult } from '@shared/analysis/index';
+import { measurePairs, collectPairs, prepare, type PreparedPairs, type RegionResult } from '@shared/analysis/index';
+import { defaultThresholds, saturatedMarks, type SaturatedMarks, type ThresholdBasis } from './scatterBasis';
 import { cellIndices, type CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 
@@ -26,12 +27,16 @@ export interface Region {
   y: Float64Array | Uint16Array;
   max1: number;
   max2: number;
+  /** default thresholds: Otsu over the pixels that describe the cells, saturated pixels left out (scatterBasis.ts) */
   otsu: { t1: number | null; t2: number | null };
+  basis: ThresholdBasis;
   pairs: PreparedPairs;
   /** joint histogram, computed once per region (it does not depend on the thresholds) */
   hist: Histogram2D;
   /** fraction of the region's pixels at the saturation level, per channel (null for float data) */
   saturated: { ch1: number | null; ch2: number | null };
+  /** where the saturated pixels fall on the histogram's grid */
+  saturatedMarks: SaturatedMarks;
 }
 
 export interface ScatterResult {
@@ -44,8 +49,11 @@ export interface ScatterResult {
   ms: number;
 }
 
-/** Collects a region's values once (re-used while thresholds are dragged). */
-export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, bins = 256): Region {
+/**
+ * Collects a region's values once (re-used while thresholds are dragged). `cells` are the field's outlined
+ * cells: the whole field's default thresholds are computed over them (scatterBasis.ts).
+ */
+export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, bins = 256, cells: readonly CellGeometry[] = []): Region {
   const indices = geometry ? cellIndices(geometry, img.width, img.height) : null;
   const p = prepare(collectPairs(img.ch1, img.ch2, indices ? { kind: 'indices', indices } : null));
   let max1 = 0, max2 = 0, min1 = Infinity, min2 = Infinity, sat1 = 0, sat2 = 0;
@@ -60,14 +68,15 @@ export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, 
     if (b >= L) sat2++;
   }
   const saturated = img.saturationLevel == null || p.n === 0 ? { ch1: null, ch2: null } : { ch1: sat1 / p.n, ch2: sat2 / p.n };
-  const th = computeThresholds(p, { method: 'otsu' });
+  const th = defaultThresholds(img, indices, cells);
   // axes from the region's minimum (0 when it holds zeros or negatives) to just above the 99.95th percentile,
   // so a few saturated or hot pixels don't squash the cloud into a corner; pixels beyond are counted in
   // hist.outside (the quadrant counts stay exact over all pixels)
   const top1 = axisTop(p.x, p.n, max1), top2 = axisTop(p.y, p.n, max2);
   const lo1 = p.n && min1 > 0 && min1 < top1 ? min1 : 0, lo2 = p.n && min2 > 0 && min2 < top2 ? min2 : 0;
   const hist = jointHistogram(p.x, p.y, { binsX: bins, binsY: bins, rangeX: [lo1, Math.max(top1, lo1 + 1)], rangeY: [lo2, Math.max(top2, lo2 + 1)] }, p.n);
-  return { indices, n: p.n, x: p.x, y: p.y, max1, max2, otsu: { t1: th.ch1, t2: th.ch2 }, pairs: p, hist, saturated };
+  const marks = saturatedMarks(p.x, p.y, p.n, img.saturationLevel ?? null, bins, hist.rangeX, hist.rangeY);
+  return { indices, n: p.n, x: p.x, y: p.y, max1, max2, otsu: { t1: th.t1, t2: th.t2 }, basis: th.basis, pairs: p, hist, saturated, saturatedMarks: marks };
 }
 
 /** Upper axis end: the 99.95th percentile (from a 4096-bin count over [0, max]) rounded up to its bin edge. */

@@ -8,7 +8,8 @@ import type { RegionResult } from '@shared/analysis/types';
 import type { PixelPlanes } from '@shared/pixels/codec';
 import type { ScatterReply, ScatterRequest } from './scatter.worker';
 
-export type ScatterView = Extract<ScatterReply, { type: 'scatter' }> & { counts: Uint32Array };
+type ScatterMessage = Extract<ScatterReply, { type: 'scatter' }>;
+export type ScatterView = ScatterMessage & { counts: Uint32Array; saturatedMarks: ScatterMessage['saturatedMarks'] & { marks: Uint8Array } };
 export interface LiveResult {
   regionKey: string;
   result: RegionResult;
@@ -24,7 +25,7 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   const busy = useRef(false);
   const waiting = useRef<Extract<ScatterRequest, { type: 'update' }> | null>(null);
   const seq = useRef(0);
-  const countsByRegion = useRef(new Map<string, Uint32Array>());
+  const countsByRegion = useRef(new Map<string, { counts: Uint32Array; marks: Uint8Array }>());
   const lastThresholds = useRef<{ t1: number; t2: number }>({ t1: 0, t2: 0 });
   const [view, setView] = useState<ScatterView | null>(null);
   const [live, setLive] = useState<LiveResult | null>(null);
@@ -69,10 +70,10 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
         return;
       }
       if (m.type === 'scatter') {
-        if (m.counts) countsByRegion.current.set(m.regionKey, m.counts);
-        const counts = m.counts ?? countsByRegion.current.get(m.regionKey);
+        if (m.counts && m.saturatedMarks.marks) countsByRegion.current.set(m.regionKey, { counts: m.counts, marks: m.saturatedMarks.marks });
+        const kept = countsByRegion.current.get(m.regionKey);
         lastThresholds.current = { t1: m.t1, t2: m.t2 };
-        if (counts) setView({ ...m, counts });
+        if (kept) setView({ ...m, counts: kept.counts, saturatedMarks: { ...m.saturatedMarks, marks: kept.marks } });
         setError(null);
         // a measure reply follows when asked for; otherwise the worker is free now
         if (!pendingMeasure.current.has(m.seq)) {
@@ -106,11 +107,15 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
 
   const pendingMeasure = useRef(new Set<number>());
 
-  /** Ask for the scatter of a region (null geometry = whole field); `measure` adds the live coefficients. */
-  const request = (regionKey: string, geometry: CellGeometry | null, t1: number | null, t2: number | null, measure: boolean) => {
+  /**
+   * Ask for the scatter of a region (null geometry = whole field); `measure` adds the live coefficients.
+   * `cells` are the field's outlined cells, over which the whole field's default thresholds are computed; the
+   * region key must change when they do.
+   */
+  const request = (regionKey: string, geometry: CellGeometry | null, t1: number | null, t2: number | null, measure: boolean, cells: CellGeometry[]) => {
     const w = worker.current;
     if (!w) return;
-    const msg: Extract<ScatterRequest, { type: 'update' }> = { type: 'update', seq: ++seq.current, regionKey, geometry, t1, t2, measure };
+    const msg: Extract<ScatterRequest, { type: 'update' }> = { type: 'update', seq: ++seq.current, regionKey, geometry, t1, t2, measure, cells: geometry ? [] : cells };
     if (measure) pendingMeasure.current.add(msg.seq);
     if (waiting.current?.measure) pendingMeasure.current.delete(waiting.current.seq);
     waiting.current = msg;
