@@ -33,7 +33,7 @@ interface Props {
   live: LiveSpotSettings;
   onLive: (l: LiveSpotSettings) => void;
   /** what the live detection found (null until it answers), with its time in the worker */
-  preview: { count1: number; count2: number; ms: number; regionName: string } | null;
+  preview: { count1: number; count2: number; paired1: number; ms: number; regionName: string } | null;
   previewError: string | null;
   /** the latest run's settings for this field: null = its recipe had spots off; undefined = no run or not loaded */
   stored: AppliedObjectSettings | null | undefined;
@@ -96,7 +96,7 @@ export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, p
               {previewError
                 ? `Detection failed: ${previewError}`
                 : preview
-                  ? `${plural(preview.count1, 'spot')} in ${names[0]}, ${plural(preview.count2, 'spot')} in ${names[1]} in ${preview.regionName} · raw pixels of the shown slice · ${preview.ms.toFixed(0)} ms in the browser`
+                  ? `${plural(preview.count1, 'spot')} in ${names[0]}, ${plural(preview.count2, 'spot')} in ${names[1]} in ${preview.regionName}, ${preview.paired1} of the ${names[0]} spots paired within d = ${formatFixed(pairDistancePx, 2)} px · raw pixels of the shown slice · ${preview.ms.toFixed(0)} ms in the browser`
                   : 'Detecting…'}
             </p>
             <p className="text-xs text-ink-faint">The recipe decides the numbers of a run; this shows what a σ and k would find.</p>
