@@ -37,6 +37,8 @@ export const COEFFICIENT_CITATIONS = {
   dcorFast: { key: 'Huo & Székely 2016', text: 'Huo X, Székely GJ (2016) Fast computing for distance covariance. Technometrics 58:435–447. doi:10.1080/00401706.2015.1054435' },
   manders: { key: 'Manders et al. 1993', text: 'Manders EMM, Verbeek FJ, Aten JA (1993) Measurement of co-localization of objects in dual-colour confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x' },
   costes: { key: 'Costes et al. 2004', text: 'Costes SV, Daelemans D, Cho EH, Dobbin Z, Pavlakis G, Lockett S (2004) Automatic and quantitative measurement of protein-protein colocalization in live cells. Biophys. J. 86:3993–4003. doi:10.1529/biophysj.103.038422' },
+  mic: { key: 'Reshef et al. 2011', text: 'Reshef DN, Reshef YA, Finucane HK, Grossman SR, McVean G, Turnbaugh PJ, Lander ES, Mitzenmacher M, Sabeti PC (2011) Detecting novel associations in large data sets. Science 334:1518–1524. doi:10.1126/science.1205438' },
+  micE: { key: 'Reshef et al. 2016', text: 'Reshef YA, Reshef DN, Finucane HK, Sabeti PC, Mitzenmacher M (2016) Measuring dependence powerfully and equitably. J. Mach. Learn. Res. 17(212):1–63' },
   li: { key: 'Li et al. 2004', text: 'Li Q, Lau A, Morris TJ, Guo L, Fordyce CB, Stanley EF (2004) A syntaxin 1, Gαo, and N-type calcium channel complex at a presynaptic nerve terminal: analysis by quantitative immunocolocalization. J. Neurosci. 24:4070–4081. doi:10.1523/JNEUROSCI.0346-04.2004' },
   lindeberg: { key: 'Lindeberg 1998', text: 'Lindeberg T (1998) Feature detection with automatic scale selection. Int. J. Comput. Vis. 30:79–116. doi:10.1023/A:1008045108935' },
   lachmanovich: { key: 'Lachmanovich et al. 2003', text: 'Lachmanovich E, Shvartsman DE, Malka Y, Botvin C, Henis YI, Weiss AM (2003) Co-localization analysis of complex formation among membrane proteins by computerized fluorescence microscopy: application to immunofluorescence co-patching studies. J. Microsc. 212:122–131. doi:10.1046/j.1365-2818.2003.01239.x' },
@@ -48,8 +50,12 @@ export type CoefficientCitationKey = keyof typeof COEFFICIENT_CITATIONS;
  * The recipe's choices of what to compute (shared/schemas/recipes.ts `coefficients`): one choice can fill
  * several measures (e.g. 'manders' → M1 and M2).
  */
-export const RECIPE_CHOICES = ['pearson', 'spearman', 'kendallTauB', 'distanceCorrelation', 'manders', 'overlap', 'icq'] as const;
+export const RECIPE_CHOICES = ['pearson', 'spearman', 'kendallTauB', 'distanceCorrelation', 'manders', 'overlap', 'icq', 'mic'] as const;
 export type RecipeChoice = (typeof RECIPE_CHOICES)[number];
+/** Choices a new recipe leaves off (their cost is stated in the recipe's sentence): MICe/TICe. */
+export const RECIPE_CHOICES_OFF_BY_DEFAULT: readonly RecipeChoice[] = ['mic'];
+/** The choices a new recipe computes. */
+export const DEFAULT_RECIPE_CHOICES = RECIPE_CHOICES.filter((c) => !RECIPE_CHOICES_OFF_BY_DEFAULT.includes(c));
 export const RECIPE_CHOICE_LABELS: Record<RecipeChoice, string> = {
   pearson: "Pearson's r",
   spearman: "Spearman's ρ",
@@ -58,6 +64,7 @@ export const RECIPE_CHOICE_LABELS: Record<RecipeChoice, string> = {
   manders: "Manders' M1 and M2",
   overlap: "Manders' overlap coefficient with k1 and k2",
   icq: "Li's intensity correlation quotient (ICQ)",
+  mic: 'maximal and total information coefficients (MICe, TICe)',
 };
 
 export interface CoefficientSpec {
@@ -101,6 +108,7 @@ export interface CoefficientSpec {
 const DCOR_METHODS = 'distance correlation dCor (V-statistic, not squared; {dcor}), computed exactly on every pixel in O(n log n) ({dcorFast})';
 const MANDERS_METHODS = "Manders' split coefficients M1 and M2 over pixels above the thresholds ({manders})";
 const K_METHODS = "Manders' k1 and k2 coefficients ({manders})";
+const MIC_METHODS = 'the equicharacteristic-matrix estimators MICe and TICe ({micE}) of the maximal information coefficient ({mic}), with grids of at most B(n) = n^α cells and at most c·B(n)/l clumps on the free axis (α and c as stated in the recipe), TICe being the sum (not the mean) of the matrix';
 const SPOT_METHODS = 'spot counts per channel, spots found as local maxima of a scale-normalised Laplacian-of-Gaussian filter ({lindeberg})';
 const PAIR_METHODS = "the fraction of each channel's spots whose nearest spot of the other channel lies within the pair distance d, mutual nearest-neighbour pairs and median nearest-neighbour distances ({lachmanovich})";
 const CHANCE_METHODS = 'a Monte Carlo test of the channel-1 paired fraction against uniform random placement of the channel-2 spots in the cell, conditioned on the counts ({besagDiggle}), with the mean paired fraction under chance';
@@ -175,6 +183,16 @@ const SPECS = {
     label: 'ICQ', shortLabel: 'ICQ', cliLabel: 'ICQ', description: "Li's intensity correlation quotient", column: 'icq', format: 'coefficient',
     fisherZ: false, axis: [-0.5, 0.5], recipeChoice: 'icq', slow: false, compare: true, cellTable: 'optional', preview: true, results: true, citations: ['li'],
     methods: "Li's intensity correlation quotient ICQ ({li})",
+  },
+  micE: {
+    label: 'MICe', shortLabel: 'MICe', cliLabel: 'MICe', description: 'maximal information coefficient, equicharacteristic-matrix estimator (Reshef et al. 2016), in [0, 1]', column: 'mic_e', format: 'coefficient',
+    fisherZ: false, axis: [0, 1], recipeChoice: 'mic', slow: false, compare: true, cellTable: 'optional', preview: false, results: false, citations: ['micE', 'mic'],
+    methods: MIC_METHODS,
+  },
+  ticE: {
+    label: 'TICe', shortLabel: 'TICe', cliLabel: 'TICe', description: 'total information coefficient: the sum of the equicharacteristic matrix (Reshef et al. 2016)', column: 'tic_e', format: 'statistic',
+    fisherZ: false, axis: null, recipeChoice: 'mic', slow: false, compare: true, cellTable: 'optional', preview: false, results: false, citations: ['micE', 'mic'],
+    methods: MIC_METHODS,
   },
   randomizationP: {
     label: 'Randomization p', shortLabel: 'rand. p', cliLabel: null, description: "p-value of the block-scrambling test of Pearson's r (Costes et al. 2004)", column: 'randomization_p', format: 'pValue',

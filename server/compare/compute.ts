@@ -10,7 +10,8 @@
  * - Tests on coverslip means (the replicate level; Lord et al. 2020 J. Cell Biol. 219:e202001064): Welch's t
  *   and Mann–Whitney U for two conditions, one-way ANOVA and Kruskal–Wallis for more (shared/stats).
  * - Histograms of the coefficient and of the per-cell mean intensity of each channel, per condition, with
- *   the chi-squared and Earth Mover's distances between every pair of conditions.
+ *   the chi-squared, Earth Mover's and quadratic-chi (QCS m = 0.5, QCN m = 0.9, A_ij = max(0, 1 − |i − j|/2);
+ *   Pele & Werman 2010) distances between every pair of conditions.
  *
  * Used by GET /api/studies/:id/compare (server/routes/cell-table.ts) and by report snapshots .
  */
@@ -30,6 +31,9 @@ import {
 import {
   chiSquaredDistance,
   earthMoversDistance,
+  QUADRATIC_CHI,
+  quadraticChiDistance,
+  triangleSimilarity,
   equalEdges,
   fisherZ,
   hierarchicalBootstrap,
@@ -204,10 +208,20 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       counts: histogram(used.filter((r) => r.conditionId === c.id).map(get).filter((v): v is number => v !== null), edges).counts,
     }));
     const width = edges[1] - edges[0];
+    const similarity = triangleSimilarity(edges.length - 1, QUADRATIC_CHI.similarityBins);
     const distances: HistogramSet['distances'] = [];
     for (let a = 0; a < conds.length; a++)
-      for (let b = a + 1; b < conds.length; b++)
-        distances.push({ a: conds[a].id, b: conds[b].id, chiSquared: nn(chiSquaredDistance(byCondition[a].counts, byCondition[b].counts)), emd: nn(earthMoversDistance(byCondition[a].counts, byCondition[b].counts, width)) });
+      for (let b = a + 1; b < conds.length; b++) {
+        const [ha, hb] = [byCondition[a].counts, byCondition[b].counts];
+        distances.push({
+          a: conds[a].id,
+          b: conds[b].id,
+          chiSquared: nn(chiSquaredDistance(ha, hb)),
+          emd: nn(earthMoversDistance(ha, hb, width)),
+          quadraticChiS: nn(quadraticChiDistance(ha, hb, similarity, QUADRATIC_CHI.mS)),
+          quadraticChiN: nn(quadraticChiDistance(ha, hb, similarity, QUADRATIC_CHI.mN)),
+        });
+      }
     histograms.push({ key, label, edges, byCondition, distances });
   };
   addHist('coefficient', entry.label, (r) => r.value, entry.axis ? [entry.axis[0], entry.axis[1]] : null);

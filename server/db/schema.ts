@@ -248,6 +248,8 @@ export const measurements = sqliteTable('measurements', {
   k1: real('k1'),
   k2: real('k2'),
   icq: real('icq'),
+  micE: real('mic_e'),
+  ticE: real('tic_e'),
   randomizationP: real('randomization_p'),
   randomizationFractionBelow: real('randomization_fraction_below'),
   spotCount1: real('spot_count1'),

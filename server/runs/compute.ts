@@ -278,6 +278,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
       threshold: fieldThresholds ?? threshold,
       randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed } : undefined,
       skipSlow: !slow,
+      mic: want.has('mic') ? s.mic : undefined,
     });
     provenance.thresholds = { method: r.thresholds.method, ch1: r.thresholds.ch1, ch2: r.thresholds.ch2 };
     provenance.randomizationCount = r.randomizationCount;

@@ -106,7 +106,18 @@ export const HistogramSet = z.object({
   label: z.string(),
   edges: z.array(z.number()),
   byCondition: z.array(z.object({ conditionId: z.number().int(), counts: z.array(z.number().int()) })),
-  distances: z.array(z.object({ a: z.number().int(), b: z.number().int(), chiSquared: Num, emd: Num })),
+  distances: z.array(
+    z.object({
+      a: z.number().int(),
+      b: z.number().int(),
+      chiSquared: Num,
+      emd: Num,
+      /** quadratic-chi, m = 0.5, A_ij = max(0, 1 − |i − j|/2) (Pele & Werman 2010); null in reports frozen before it */
+      quadraticChiS: Num.default(null),
+      /** quadratic-chi, m = 0.9, same A */
+      quadraticChiN: Num.default(null),
+    }),
+  ),
 });
 export type HistogramSet = z.infer<typeof HistogramSet>;
 

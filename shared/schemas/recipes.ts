@@ -16,7 +16,7 @@
  *   doi:10.2307/2346974 (spots: the chance placement test)
  */
 import { z } from 'zod';
-import { RECIPE_CHOICES, RECIPE_CHOICE_LABELS } from '../coefficients';
+import { DEFAULT_RECIPE_CHOICES, RECIPE_CHOICES, RECIPE_CHOICE_LABELS } from '../coefficients';
 
 // ---------------------------------------------------------------- settings
 
@@ -62,6 +62,13 @@ export const RandomizationSetting = z.object({
   blockSize: BlockSizeSetting.default({ kind: 'pixels', pixels: 3 }),
 });
 export type RandomizationSetting = z.infer<typeof RandomizationSetting>;
+
+/** MICe/TICe parameters (Reshef et al. 2016): grid budget B(n) = n^alpha, at most c·B(n)/l clumps. */
+export const MicSetting = z.object({
+  alpha: z.number().gt(0, 'alpha must be above 0').max(1).default(0.6),
+  c: z.number().gt(0, 'c must be above 0').max(100).default(15),
+});
+export type MicSetting = z.infer<typeof MicSetting>;
 
 export const ZSetting = z.discriminatedUnion('mode', [
   /** one slice, 0-based */
@@ -141,10 +148,12 @@ export const RecipeSettings = z.object({
   z: ZSetting.default({ mode: 'slice', slice: 0 }),
   /** cells with fewer measured pixels get a measurement row with every coefficient null */
   minCellPixels: z.number().int().min(0).max(100_000_000).default(20),
-  coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...COEFFICIENTS])
+  coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...DEFAULT_RECIPE_CHOICES])
     .transform((a) => COEFFICIENTS.filter((c) => a.includes(c))),
   /** seed of the randomization test's generator (a run with the same seed repeats exactly) */
   seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
+  /** parameters of MICe/TICe (used when `coefficients` has 'mic') */
+  mic: MicSetting.default({ alpha: 0.6, c: 15 }),
   /** spots, pairs within d and the chance placement test (off by default) */
   objects: ObjectsSetting.default(DEFAULT_OBJECTS_SETTING),
 });
@@ -153,7 +162,7 @@ export type RecipeSettingsInput = z.input<typeof RecipeSettings>;
 
 export const DEFAULT_RECIPE_SETTINGS: RecipeSettings = RecipeSettings.parse({});
 
-export const SETTING_KEYS = ['background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'seed', 'objects'] as const;
+export const SETTING_KEYS = ['background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'mic', 'seed', 'objects'] as const;
 export type SettingKey = (typeof SETTING_KEYS)[number];
 export const SETTING_LABELS: Record<SettingKey, string> = {
   background: 'Background',
@@ -163,9 +172,13 @@ export const SETTING_LABELS: Record<SettingKey, string> = {
   z: 'Z slices',
   minCellPixels: 'Smallest cell',
   coefficients: 'Coefficients',
+  mic: 'MICe and TICe',
   seed: 'Seed',
   objects: 'Spots',
 };
+
+/** Measured cost of MICe/TICe at α 0.6, c 15 (tests/bench/mic.bench.ts), stated in the recipe sentence. */
+const MIC_COST = '0.1 s of one processor core';
 
 /** The parts of the objects section, each with its own sentence (the editor shows them one by one). */
 export const OBJECT_SETTING_KEYS = ['scale', 'k', 'minSeparationPx', 'pairDistance', 'placements', 'seed'] as const;
@@ -264,6 +277,13 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
         : 'Every cell is measured, however small.';
     case 'coefficients':
       return `Computed: ${s.coefficients.map((c) => COEFFICIENT_LABELS[c]).join(', ')}.`;
+    case 'mic': {
+      const on = s.coefficients.includes('mic');
+      const params = `grids of at most n^${fmt(s.mic.alpha)} cells for n pixels and at most ${fmt(s.mic.c)} × n^${fmt(s.mic.alpha)} / rows clumps`;
+      return on
+        ? `MICe and TICe (Reshef et al. 2016) are computed with ${params}; this costs about ${MIC_COST} per 20,000-pixel cell, more than all other coefficients together.`
+        : `MICe and TICe are not computed (choosing them costs about ${MIC_COST} per 20,000-pixel cell with ${params}).`;
+    }
     case 'seed':
       return `The random generator starts from seed ${s.seed}, so the same run gives the same numbers again.`;
     case 'objects':

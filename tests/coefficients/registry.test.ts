@@ -98,7 +98,7 @@ describe('coefficient registry', () => {
     expect(PREVIEW_COEFFICIENTS.map((c) => c.key)).toEqual([...PREVIEW_KEYS]);
     expect(PREVIEW_COEFFICIENTS.map((c) => c.label)).toEqual(PREVIEW_KEYS.map((k) => byKey(k).label));
     const regionResult = Object.fromEntries(COEFFICIENT_KEYS.map((k) => [k, k === 'pixels' ? 10 : -0.00001]));
-    const text = formatTable({ engineVersion: 'x', width: 4, height: 4, slices: 1, thresholds: { method: 'none', ch1: 0, ch2: 0 }, regions: [{ label: 1, ...regionResult, randomizationCount: 0 } as never] });
+    const text = formatTable({ engineVersion: 'x', width: 4, height: 4, slices: 1, depth: 1, z: { from: 1, to: 1, projection: null }, thresholds: { method: 'none', ch1: 0, ch2: 0 }, regions: [{ label: 1, ...regionResult, randomizationCount: 0 } as never] });
     const header = text.split('\n')[1].trim().split(/\s{2,}/);
     expect(header).toEqual(['region', ...COEFFICIENTS.filter((c) => c.cliLabel !== null).map((c) => c.cliLabel)]);
     expect(text).not.toMatch(/-0\.0000/);

@@ -4,6 +4,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';
 import { Comparison } from '../../shared/schemas/compare.js';
 import { GridResponse } from '../../shared/schemas/cell-table.js';
+import { quadraticChiDistance, triangleSimilarity } from '../../shared/stats/histogram.js';
 
 let t: TestApp;
 let s: Seeded;
@@ -208,6 +209,12 @@ describe('comparison', () => {
     expect(c.histograms.map((h) => h.key)).toEqual(['coefficient', 'mean1', 'mean2']);
     expect(c.histograms[0].byCondition[0].counts.reduce((a, b) => a + b, 0)).toBe(30);
     expect(c.histograms[0].distances[0].emd!).toBeGreaterThan(0.2);
+    // quadratic-chi beside χ² and EMD, from the histograms shown (Pele & Werman 2010; A_ij = max(0, 1 − |i − j|/2))
+    const [h0, h1] = c.histograms[0].byCondition.map((b) => b.counts);
+    const A = triangleSimilarity(h0.length, 2);
+    expect(c.histograms[0].distances[0].quadraticChiS).toBe(quadraticChiDistance(h0, h1, A, 0.5));
+    expect(c.histograms[0].distances[0].quadraticChiN).toBe(quadraticChiDistance(h0, h1, A, 0.9));
+    expect(c.histograms[0].distances[0].quadraticChiS!).toBeGreaterThan(0);
     const again = Comparison.parse((await bio.get(url)).body);
     expect(again.effects).toEqual(c.effects);
     // coverslip mean through Fisher's z

@@ -339,6 +339,12 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
         ))}
       </div>
     ),
+    mic: (
+      <div className="flex flex-wrap gap-4">
+        <Num label="Grid exponent α" disabled={d} min={0} minExclusive max={1} value={s.mic.alpha} onChange={(n) => set({ mic: { ...s.mic, alpha: n } })} />
+        <Num label="Clump factor c" disabled={d} min={0} minExclusive max={100} value={s.mic.c} onChange={(n) => set({ mic: { ...s.mic, c: n } })} />
+      </div>
+    ),
     seed: <Num label="Seed" disabled={d} step="1" min={0} max={2 ** 32 - 1} value={s.seed} onChange={(n) => set({ seed: Math.max(0, Math.round(n)) })} />,
     objects: <ObjectsControls disabled={d} value={s.objects ?? DEFAULT_OBJECTS_SETTING} onChange={(o) => set({ objects: o })} />,
   };
