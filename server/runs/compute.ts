@@ -23,7 +23,8 @@
  *   spot profiles), over the cell's pixels that have a value (saturated pixels stay: a saturated spot is still
  *   a spot, and dropping pixels would punch holes into the filter's neighbourhoods). σ and d in µm are turned
  *   into pixels with the recipe's or the field's pixel size. A cell below minCellPixels gets every measure
- *   null, the object measures included, and no spots.
+ *   null, the object measures included, and no spots. A float field with NaN pixels fails with the count when
+ *   spots are on (the filter reaches beyond the cell, so no pixel may lack a value).
  */
 import { measureRegion, computeThresholds, collectPairs, prepare, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
@@ -191,6 +192,14 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
   const z = describeZ(s.z);
   const objects = objectOptions(s, job.pixelSizeUm);
   const spots: SpotValues[] = [];
+  // the spot filter reaches beyond each cell, so every pixel it may read needs a value
+  if (objects)
+    for (const [c, a] of [[1, raw1], [2, raw2]] as const) {
+      if (isIntegerArray(a)) continue;
+      let nan = 0;
+      for (let i = 0; i < a.length; i++) if (!Number.isFinite(a[i])) nan++;
+      if (nan > 0) throw new FieldJobError(`spot detection needs a value at every pixel, but channel ${c} of field "${job.fieldName}" has ${plural(nan, 'pixel')} without one (NaN)`);
+    }
 
   const measured = job.cells
     .filter((c) => c.role === 'cell')

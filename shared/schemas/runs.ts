@@ -66,6 +66,17 @@ export const RunListQuery = z.object({
 export const RunListResponse = z.object({ runs: z.array(RunSummary) });
 
 /** What every measurement row records about how it was made (measurements.provenance). */
+/** The objects section as a run applied it: σ, minimum separation and pair distance d in pixels. */
+export const AppliedObjectSettings = z.object({
+  sigmaPx: z.number(),
+  k: z.number(),
+  minSeparationPx: z.number(),
+  pairDistancePx: z.number(),
+  placements: z.number().int(),
+  seed: z.number().int(),
+});
+export type AppliedObjectSettings = z.infer<typeof AppliedObjectSettings>;
+
 export const MeasurementProvenance = z.object({
   recipeId: z.number().int(),
   recipeName: z.string(),
@@ -87,21 +98,11 @@ export const MeasurementProvenance = z.object({
   /** pixels of the cell left out because a channel holds NaN there (float data); absent on rows measured before it was recorded */
   nanPixels: z.number().int().nonnegative().optional(),
   /** the objects section as applied (σ and d in pixels), when it was on; absent otherwise */
-  objects: z.lazy(() => AppliedObjectSettings).optional(),
+  objects: AppliedObjectSettings.optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;
 
-/** The objects section as a run applied it: σ, minimum separation and pair distance d in pixels. */
-export const AppliedObjectSettings = z.object({
-  sigmaPx: z.number(),
-  k: z.number(),
-  minSeparationPx: z.number(),
-  pairDistancePx: z.number(),
-  placements: z.number().int(),
-  seed: z.number().int(),
-});
-export type AppliedObjectSettings = z.infer<typeof AppliedObjectSettings>;
 
 /** One detected spot: centre (x right, y down, pixels, origin the top-left corner of pixel (0, 0)), peak and integrated intensity. */
 export const SpotRow = z.object({

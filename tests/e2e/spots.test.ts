@@ -65,5 +65,14 @@ it('shows a run’s spots per channel, toggles them, and previews detection live
   await panel.getByLabel('k', { exact: true }).press('End');
   await expect.poll(async () => (await status.textContent())?.includes('ms in the browser') && (await count()) <= loose, { timeout: 20_000 }).toBe(true);
   await shot(page, 'spots-04-live');
+
+  // the recipe's Spots section: one sentence per part, d in words
+  await page.goto(`${e2e.srv.url}/recipes/${recipe.body.id}`);
+  const section = page.getByRole('region', { name: 'Spots' });
+  await section.getByText('Pairs within d').first().waitFor({ timeout: 20_000 });
+  await section.getByText(/chromatic shift between channels/).waitFor();
+  await section.getByText(/places the channel-2 spots uniformly at random in the cell 99 times/).waitFor();
+  await section.scrollIntoViewIfNeeded();
+  await shot(page, 'spots-05-recipe');
   expect(page.errors).toEqual([]);
 });

@@ -158,6 +158,17 @@ describe('a run with the objects section on', () => {
     // the one coverslip: the plain mean of its two cells, 4/6 and 0/3
     expect(c.coverslips.map((x) => [x.nCells, x.mean])).toEqual([[2, (4 / 6 + 0) / 2]]);
   });
+
+  it('a report offers the spot measures and its methods paragraph states the Spots section', async () => {
+    const bio = await t.login('biologist');
+    const res = await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'Spots', coefficients: ['spotCount1', 'spotPaired1'] });
+    expect(res.status, JSON.stringify(res.body)).toBe(201);
+    const snap = res.body.snapshot;
+    const left = snap.cells.find((x: { cellId: number }) => x.cellId === cellIds[0]);
+    expect(left.values).toEqual({ spotCount1: 6, spotPaired1: 4 / 6 });
+    expect(snap.methods).toContain('d = 0.2 µm in the specimen');
+    expect(snap.methods).toMatch(/Lachmanovich et al\. 2003 \[\d+\]/);
+  });
 });
 
 describe('a run with the objects section off', () => {

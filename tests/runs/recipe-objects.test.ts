@@ -17,7 +17,8 @@ import {
   pairDistancePx,
   spotSigmaPx,
 } from '../../shared/schemas/recipes.js';
-import { objectOptions, FieldJobError } from '../../server/runs/compute.js';
+import { computeFieldResult, objectOptions, FieldJobError } from '../../server/runs/compute.js';
+import type { FieldJob } from '../../server/runs/job.js';
 
 let t: TestApp;
 type Agent = Awaited<ReturnType<TestApp['login']>>;
@@ -70,6 +71,29 @@ describe('objects section schema', () => {
     expect(objectOptions(RecipeSettings.parse({}), null)).toBeNull();
     expect(objectOptions(RecipeSettings.parse({ objects: { enabled: true } }), null)).toEqual({ spotSigma: 1.5, spotK: 5, minSeparation: 3, pairDistance: 2, placements: 999, seed: 1 });
     expect(() => objectOptions(RecipeSettings.parse({ objects: { ...psf, enabled: true } }), null)).toThrow(FieldJobError);
+  });
+});
+
+describe('objects section in a run of a float field', () => {
+  it('refuses NaN pixels with their count (the filter reaches beyond the cell), and measures once they are gone', () => {
+    const W = 24, H = 24;
+    const ch1 = new Float32Array(W * H).fill(10), ch2 = new Float32Array(W * H).fill(10);
+    ch2[5] = NaN;
+    ch2[7] = NaN;
+    const job: FieldJob = {
+      runId: 1, fieldId: 1, fieldName: 'Float', width: W, height: H, sizeZ: 1, bitDepth: 32, sampleFormat: 'float', pixelSizeUm: null,
+      sources: [{ key: 'k', sha256: 'a'.repeat(64), channel: 1 }, { key: 'k', sha256: 'a'.repeat(64), channel: 2 }],
+      cells: [{ id: 1, role: 'cell', geometry: { kind: 'rect', x: 2, y: 2, width: 20, height: 20 } }],
+      settings: RecipeSettings.parse({ threshold: { method: 'none' }, objects: { enabled: true } }),
+      recipe: { id: 1, name: 'R', version: 1, status: 'approved' }, provisional: false,
+    };
+    expect(() => computeFieldResult(job, { width: W, height: H, ch1, ch2 })).toThrow(/channel 2 of field "Float" has 2 pixels without one \(NaN\)/);
+    ch2[5] = 10;
+    ch2[7] = 10;
+    // flat channels: no spots (noise 0), counts 0, fractions null
+    const r = computeFieldResult(job, { width: W, height: H, ch1, ch2 });
+    expect(r.spots).toEqual([]);
+    expect(r.measurements[0]).toMatchObject({ spotCount1: 0, spotCount2: 0, spotPaired1: null, spotPValue: null });
   });
 });
 

@@ -329,7 +329,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onToggles={setSpotToggles}
               live={liveSpots}
               onLive={setLiveSpots}
-              preview={livePreviewSpots && { count1: livePreviewSpots.spots1.length, count2: livePreviewSpots.spots2.length, ms: livePreviewSpots.ms, regionName }}
+              preview={livePreviewSpots && { count1: livePreviewSpots.spots1.length, count2: livePreviewSpots.spots2.length, paired1: shownSpots?.pairs.length ?? 0, ms: livePreviewSpots.ms, regionName }}
               previewError={scatter.spotsError}
               stored={fieldSpots.isSuccess ? stored : undefined}
               runId={runId}

@@ -33,7 +33,7 @@ interface Props {
   live: LiveSpotSettings;
   onLive: (l: LiveSpotSettings) => void;
   /** what the live detection found (null until it answers), with its time in the worker */
-  preview: { count1: number; count2: number; ms: number; regionName: string } | null;
+  preview: { count1: number; count2: number; paired1: number; ms: number; regionName: string } | null;
   previewError: string | null;
   /** the latest run's settings for this field: null = its recipe had spots off; undefined = no run or not loaded */
   stored: AppliedObjectSettings | null | undefined;
@@ -96,7 +96,7 @@ export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, p
               {previewError
                 ? `Detection failed: ${previewError}`
                 : preview
-                  ? `${plural(preview.count1, 'spot')} in ${names[0]}, ${plural(preview.count2, 'spot')} in ${names[1]} in ${preview.regionName} · raw pixels of the shown slice · ${preview.ms.toFixed(0)} ms in the browser`
+                  ? `${plural(preview.count1, 'spot')} in ${names[0]}, ${plural(preview.count2, 'spot')} in ${names[1]} in ${preview.regionName}, ${preview.paired1} of the ${names[0]} spots paired within d = ${formatFixed(pairDistancePx, 2)} px · raw pixels of the shown slice · ${preview.ms.toFixed(0)} ms in the browser`
                   : 'Detecting…'}
             </p>
             <p className="text-xs text-ink-faint">The recipe decides the numbers of a run; this shows what a σ and k would find.</p>
@@ -104,7 +104,7 @@ export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, p
         )}
       </div>
 
-      {cell ? <CellSpots cell={cell} pairDistancePx={pairDistancePx} /> : <p className="text-sm text-ink-soft">Select a cell to see its spot measures and distances.</p>}
+      {cell ? <CellSpots cell={cell} pairDistancePx={pairDistancePx} runId={runId} live={live.on} /> : <p className="text-sm text-ink-soft">Select a cell to see its spot measures and distances.</p>}
     </section>
   );
 }
@@ -112,7 +112,7 @@ export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, p
 function Slider({ label, value, min, max, step, onChange }: { label: string; value: number; min: number; max: number; step: number; onChange: (v: number) => void }) {
   return (
     <label className="flex items-center gap-2">
-      <span className="w-12 text-ink-soft">{label}</span>
+      <span className="w-14 shrink-0 text-ink-soft">{label}</span>
       <input type="range" aria-label={label} min={min} max={max} step={step} value={value} onChange={(e) => onChange(Number(e.target.value))} className="w-full accent-[#0f766e]" />
       <span className="w-10 text-right font-mono">{value}</span>
     </label>
@@ -122,7 +122,7 @@ function Slider({ label, value, min, max, step, onChange }: { label: string; val
 const HIST_W = 300;
 const HIST_H = 110;
 
-function CellSpots({ cell, pairDistancePx }: { cell: NonNullable<Props['cell']>; pairDistancePx: number }) {
+function CellSpots({ cell, pairDistancePx, runId, live }: { cell: NonNullable<Props['cell']>; pairDistancePx: number; runId: number | null; live: boolean }) {
   const d = pairDistancePx;
   const { nearest } = pairsWithin(cell.spots1, cell.spots2, d);
   // up to the longest distance (at least 4d, at most 64 px; longer ones go into the last bar)
@@ -139,6 +139,7 @@ function CellSpots({ cell, pairDistancePx }: { cell: NonNullable<Props['cell']>;
       <h3 className="text-sm font-semibold">Spots of {cell.name}</h3>
       {cell.row && cell.row.measurementId !== null ? (
         <table className="w-full text-sm">
+          <caption className="text-left text-xs text-ink-soft">Measured by run #{cell.row.runId ?? runId}</caption>
           <tbody>
             {OBJECT_KEYS.map((k) => (
               <tr key={k} className="border-b border-ink/5 last:border-0">
@@ -176,7 +177,7 @@ function CellSpots({ cell, pairDistancePx }: { cell: NonNullable<Props['cell']>;
           <p className="text-sm text-ink-soft">{cell.spots1.length === 0 ? 'No channel-1 spots in this cell.' : 'No channel-2 spots in this cell, so no distances.'}</p>
         )}
         <figcaption className="text-xs text-ink-soft">
-          Bars: distance (px) from each channel-1 spot to its nearest channel-2 spot ({plural(cell.spots1.length, 'spot')}). Line: what randomly placed channel-2 spots would give, ignoring the cell's edge. Dashed: d = {formatFixed(d, 2)} px.
+          Bars: distance (px) from each channel-1 spot to its nearest channel-2 spot ({plural(cell.spots1.length, 'spot')}, {live ? 'live detection' : 'as the run found them'}). Line: what randomly placed channel-2 spots would give, ignoring the cell's edge. Dashed: d = {formatFixed(d, 2)} px.
         </figcaption>
       </figure>
     </div>
