@@ -76,6 +76,18 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/fields/:id/cells/import': { study: 'edit_images' },
   'POST /api/fields/:id/cells/auto': { study: 'edit_images' },
 
+  // instruments.ts: instruments and calibrations are facility-wide, not study-scoped
+  'GET /api/instruments': { global: 'read_instruments' },
+  'POST /api/instruments': { global: 'manage_instruments' },
+  'GET /api/instruments/:id': { global: 'read_instruments' },
+  'POST /api/instruments/:id/calibrations': { global: 'propose_calibration' },
+  'GET /api/calibrations/:id': { global: 'read_instruments' },
+  'PATCH /api/calibrations/:id': { global: 'propose_calibration' }, // plus: proposer or facility manager
+  'POST /api/calibrations/:id/submit': { global: 'propose_calibration' }, // plus: proposer or facility manager
+  'POST /api/calibrations/:id/approve': { global: 'review_calibration' },
+  'POST /api/calibrations/:id/return': { global: 'review_calibration' },
+  'POST /api/calibrations/:id/retire': { global: 'review_calibration' },
+
   // recipes.ts: recipes are facility-wide, not study-scoped
   'GET /api/recipes': { global: 'read_recipes' },
   'POST /api/recipes': { global: 'propose_recipe' },
