@@ -142,6 +142,8 @@ export const fields = sqliteTable('fields', {
   bitDepth: integer('bit_depth').notNull(),
   sampleFormat: text('sample_format', { enum: ['uint', 'float'] }).notNull(),
   pixelSizeUm: real('pixel_size_um'),
+  /** the instrument the field was recorded on (its approved calibration is what runs apply); null when not given */
+  instrumentId: integer('instrument_id').references(() => instruments.id),
   facts: text('facts', { mode: 'json' }).$type<{ ch1: ChannelFacts; ch2: ChannelFacts }>().notNull(),
   status: text('status', { enum: ['ready', 'deleted'] }).notNull().default('ready'),
   uploadedBy: integer('uploaded_by').references(() => users.id),

@@ -25,6 +25,7 @@ import {
 } from '../../shared/schemas/instruments.js';
 import type { RecipeStatus } from '../../shared/schemas/recipes.js';
 import { RECIPE_TRANSITIONS, userNames } from './recipes.js';
+import { approvedCalibration } from '../runs/records.js';
 
 type CalibrationRow = typeof calibrations.$inferSelect;
 type InstrumentRow = typeof instruments.$inferSelect;
@@ -58,18 +59,8 @@ function calibrationSummary(c: CalibrationRow, name: Names): CalibrationSummary 
   };
 }
 
-/** The calibration runs apply: the instrument's highest approved version, or undefined. */
-export function approvedCalibration(ctx: Pick<AppContext, 'db'>, instrumentId: number): CalibrationRow | undefined {
-  return ctx.db
-    .select()
-    .from(calibrations)
-    .where(and(eq(calibrations.instrumentId, instrumentId), eq(calibrations.status, 'approved')))
-    .orderBy(desc(calibrations.version))
-    .get();
-}
-
 function instrumentSummary(ctx: AppContext, i: InstrumentRow): InstrumentSummary {
-  const a = approvedCalibration(ctx, i.id);
+  const a = approvedCalibration(ctx.db, i.id);
   const name = userNames(ctx, a ? [a.proposerId, a.reviewerId] : []);
   return { id: i.id, name: i.name, objective: i.objective, channel1: i.channel1, channel2: i.channel2, createdAt: i.createdAt, approved: a ? calibrationSummary(a, name) : null };
 }

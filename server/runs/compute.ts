@@ -18,8 +18,14 @@
  *   through projection and background subtraction and is left out of everything measured: the pixel count,
  *   means, background-region means, thresholds (per cell and over the field) and coefficients. How many of a
  *   cell's pixels were left out this way is recorded in the provenance (`nanPixels`).
+ * - calibration (recipe setting 'approved', 2026-12-02): channel 2 is aligned with the instrument's approved
+ *   shift first (bilinear; pixels whose sample position is outside become NaN, so they are not measured and
+ *   count in `nanPixels`), then background is subtracted, then bleed-through is unmixed (a missing
+ *   coefficient is 0). Saturation is judged on the recorded values: an aligned channel-2 pixel is saturated
+ *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
+ *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, type CoefficientValues } from '../../shared/coefficients.js';
 import type { RecipeSettings } from '../../shared/schemas/recipes.js';
@@ -136,9 +142,21 @@ const nullCoefficients = Object.fromEntries(COEFFICIENTS.filter((c) => c.key !==
 export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): MeasurementValues[] {
   const s = job.settings;
   const { width, height } = px;
-  const raw1 = px.ch1;
-  const raw2 = px.ch2;
   const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
+  // calibration: channel 2 aligned first (NaN where its sample position is outside: not measured)
+  if (s.calibration === 'approved' && !job.calibration) throw new FieldJobError(job.calibrationProblem ?? `field "${job.fieldName}" has no calibration to apply`);
+  const cal = s.calibration === 'approved' ? job.calibration : null;
+  const shifted = cal !== null && cal.dx !== null && cal.dy !== null && (cal.dx !== 0 || cal.dy !== 0);
+  const raw1 = px.ch1;
+  const raw2 = shifted ? alignChannel(px.ch2, width, height, cal.dx!, cal.dy!) : px.ch2;
+  // saturation of channel 2 after alignment: any saturated pixel with weight in the interpolation
+  const sat2 = (i: number) => (shifted ? satAligned![i] > 0 : raw2[i] >= sat!);
+  let satAligned: Float64Array | null = null;
+  if (shifted && sat != null) {
+    const m = new Uint8Array(px.ch2.length);
+    for (let i = 0; i < m.length; i++) m[i] = px.ch2[i] >= sat ? 1 : 0;
+    satAligned = alignChannel(m, width, height, cal.dx!, cal.dy!);
+  }
 
   // background
   let bg1: number | null = null;
@@ -158,8 +176,10 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     bg1 = meanOver(raw1, valued);
     bg2 = meanOver(raw2, valued);
   }
-  const ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
-  const ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
+  let ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
+  let ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
+  // then bleed-through, on the background-subtracted channels
+  if (cal && (cal.a21 !== null || cal.a12 !== null)) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, cal.a21 ?? 0, cal.a12 ?? 0));
 
   const block = blockPixels(s, job.pixelSizeUm);
   const want = new Set(s.coefficients);
@@ -175,7 +195,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       const nanPixels = all.length - idx.length;
       if (s.saturation === 'exclude' && sat != null) {
         const keep: number[] = [];
-        for (let k = 0; k < idx.length; k++) if (raw1[idx[k]] < sat && raw2[idx[k]] < sat) keep.push(idx[k]);
+        for (let k = 0; k < idx.length; k++) if (raw1[idx[k]] < sat && !sat2(idx[k])) keep.push(idx[k]);
         idx = Uint32Array.from(keep);
       }
       return { cell, all, idx, nanPixels };
@@ -199,7 +219,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     if (sat != null)
       for (let k = 0; k < all.length; k++) {
         if (raw1[all[k]] >= sat) s1++;
-        if (raw2[all[k]] >= sat) s2++;
+        if (sat2(all[k])) s2++;
       }
     const n = idx.length;
     const provenance = {
@@ -218,6 +238,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       randomizationCount: 0,
       note: null as string | null,
       nanPixels,
+      calibration: cal,
       computedAt,
     };
     const base = {

@@ -82,6 +82,11 @@ export const MeasurementProvenance = z.object({
   note: z.string().nullable(),
   /** pixels of the cell left out because a channel holds NaN there (float data); absent on rows measured before it was recorded */
   nanPixels: z.number().int().nonnegative().optional(),
+  /** the calibration applied before measuring (recipe setting 'approved'); absent or null when none */
+  calibration: z
+    .object({ id: z.number().int(), instrumentId: z.number().int(), instrument: z.string(), version: z.number().int(), dx: z.number().nullable(), dy: z.number().nullable(), a21: z.number().nullable(), a12: z.number().nullable() })
+    .nullable()
+    .optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;

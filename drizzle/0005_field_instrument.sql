@@ -1,0 +1,1 @@
+ALTER TABLE `fields` ADD `instrument_id` integer REFERENCES instruments(id);
