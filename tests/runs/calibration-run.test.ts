@@ -79,6 +79,16 @@ describe('runs with the approved calibration', () => {
     expect(row.mandersM1).toBe(ref.mandersM1);
     const p = MeasurementProvenance.parse(row.provenance);
     expect(p.calibration).toEqual({ id: calibrationId, instrumentId, instrument: 'Confocal 1', version: 1, dx: 1.5, dy: -0.75, a21: 0.1, a12: 0.04 });
+    // the report's methods paragraph states the shift and the coefficients used, and cites both methods
+    const bio = await t.login('biologist');
+    const rep = await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'calibrated', coefficients: ['pearson'], runId: run.id });
+    expect(rep.status, JSON.stringify(rep.body).slice(0, 400)).toBe(201);
+    const methods = (await bio.get(`/api/reports/${rep.body.id}`)).body.snapshot.methods as string;
+    expect(methods).toMatch(/Channel calibration: calibration v1 of instrument Confocal 1 for 1 cell: channel 2 shifted into register by dx = 1.5 px, dy = -0.75 px/);
+    expect(methods).toMatch(/linear unmixing with a21 = 0.1 and a12 = 0.04/);
+    expect(methods).toContain('Guizar-Sicairos M, Thurman ST, Fienup JR (2008)');
+    expect(methods).toContain('Zimmermann T, Rietdorf J, Pepperkok R (2003)');
+    expect(methods).not.toMatch(/mix calibrations/);
   });
 
   it('a recipe without the setting measures the channels as recorded (no calibration in the provenance)', async () => {
