@@ -105,3 +105,24 @@ describe('runs with the approved calibration', () => {
     expect(run.fields[0].error).toMatch(/field beads has no instrument/);
   });
 });
+
+describe('Compare warns when measurements mix calibrations', () => {
+  it('one recipe, field 1 measured with calibration v1 and field 2 with v2 → a warning; one calibration → none', async () => {
+    const f2 = await addField(t.ctx, t.world.coverslipA, { name: 'beads 2', width: W, height: H, ch1: A, ch2: B, cells: [{ geometry }] });
+    for (const id of [fieldId, f2.fieldId]) expect((await mic.put(`/api/fields/${id}/instrument`).send({ instrumentId })).status).toBe(200);
+    const recipe = (await mic.post('/api/recipes').send({ name: 'mixed calibrations', settings: { threshold: { method: 'none' }, coefficients: ['pearson'], calibration: 'approved' } })).body;
+    const runOn = async (id: number) => {
+      const run = await mic.post('/api/runs').send({ recipeId: recipe.id, scope: { kind: 'field', id } });
+      expect((await waitForRun(async () => (await mic.get(`/api/runs/${run.body.id}`)).body)).status).toBe('done');
+    };
+    const warnings = async () => ((await mic.get(`/api/studies/${t.world.studyA}/compare`).query({ recipeId: recipe.id })).body as { warnings: string[] }).warnings;
+    await runOn(fieldId);
+    await runOn(f2.fieldId);
+    expect((await warnings()).some((w) => /mix channel calibrations/.test(w))).toBe(false);
+    const v2 = (await mic.post(`/api/instruments/${instrumentId}/calibrations`).send({ dx: 1.4 })).body.id;
+    await mic.post(`/api/calibrations/${v2}/submit`).send({});
+    await fm.post(`/api/calibrations/${v2}/approve`).send({});
+    await runOn(f2.fieldId);
+    expect(await warnings()).toContain('The measurements mix channel calibrations (2 different): shift and bleed-through corrections differ between cells, so differences may come from the calibration.');
+  });
+});
