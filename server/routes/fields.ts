@@ -234,6 +234,8 @@ export default function fieldsRoutes(ctx: AppContext) {
           for (const ref of [p.ch1, p.ch2]) {
             if (ref.file >= up.length) throw badRequest(`field ${i + 1} of the plan refers to file ${ref.file}, but only ${up.length} file(s) were uploaded`);
           }
+          if (p.instrumentId != null && !ctx.db.select({ id: instruments.id }).from(instruments).where(eq(instruments.id, p.instrumentId)).get())
+            throw badRequest(`field ${i + 1} of the plan names instrument ${p.instrumentId}, which does not exist`);
         }
         const uses = new Map<number, number>();
         for (const p of plan) for (const i of new Set([p.ch1.file, p.ch2.file])) uses.set(i, (uses.get(i) ?? 0) + 1);
@@ -249,6 +251,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 coverslipId,
                 userId: req.user!.id,
                 name,
+                instrumentId: p.instrumentId ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
                   { path: f2.path, originalName: f2.originalname, channel: p.ch2.channel, sha256: f2.sha256 },

@@ -76,6 +76,8 @@ export const UploadFieldPlan = z.object({
   name: z.string().trim().max(200).optional(),
   ch1: UploadChannelRef,
   ch2: UploadChannelRef,
+  /** the instrument that recorded the field (its approved calibration is what recipes apply) */
+  instrumentId: z.number().int().positive().nullable().optional(),
 });
 export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
 export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;

@@ -9,7 +9,8 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { eq } from 'drizzle-orm';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { measurements } from '../../server/db/schema.js';
-import { FieldSummary } from '../../shared/schemas/fields.js';
+import path from 'node:path';
+import { FieldSummary, UploadResponse } from '../../shared/schemas/fields.js';
 import { MeasurementProvenance } from '../../shared/schemas/runs.js';
 import { alignChannel, measureRegion, unmixChannels } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
@@ -55,6 +56,24 @@ describe('runs with the approved calibration', () => {
     expect((await mic.put(`/api/fields/${fieldId}/instrument`).send({ instrumentId: 999999 })).body.error).toMatch(/no instrument with id 999999/);
     expect((await (await t.login('collaborator')).put(`/api/fields/${fieldId}/instrument`).send({ instrumentId: null })).status).toBe(403);
     expect((await mic.put(`/api/fields/${fieldId}/instrument`).send({ instrumentId: 'x' })).status).toBe(400);
+  });
+
+  it('the instrument can be given at upload, per field of the plan; an unknown one refuses the upload', async () => {
+    const pair = path.join(import.meta.dirname, '../fixtures/calibration/pair.tif');
+    const up = await mic
+      .post(`/api/coverslips/${t.world.coverslipA}/fields`)
+      .field('plan', JSON.stringify([{ name: 'with instrument', ch1: { file: 0, channel: 1 }, ch2: { file: 0, channel: 2 }, instrumentId }]))
+      .attach('files', pair);
+    expect(up.status, JSON.stringify(up.body)).toBe(201);
+    const r = UploadResponse.parse(up.body).results[0];
+    expect(r.ok && r.field.instrumentId).toBe(instrumentId);
+    const bad = await mic
+      .post(`/api/coverslips/${t.world.coverslipA}/fields`)
+      .field('plan', JSON.stringify([{ ch1: { file: 0, channel: 1 }, ch2: { file: 0, channel: 2 }, instrumentId: 424242 }]))
+      .attach('files', pair);
+    expect(bad.status).toBe(400);
+    expect(bad.body.error).toMatch(/names instrument 424242, which does not exist/);
+    if (r.ok) expect((await mic.delete(`/api/fields/${r.field.id}`)).status).toBe(200);
   });
 
   it('the field fails with the reason while the instrument has no approved calibration', async () => {
