@@ -87,7 +87,8 @@ export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: nu
   transpose(z, h, w, zt);
   rowTransforms(zt, w, h, false);
   const hw = w / 2 + 1;
-  const A = new Float64Array(2 * hw * h), Bs = new Float64Array(2 * hw * h);
+  // A takes the row pass's buffer (no longer needed after the transpose): one 16-byte-per-pixel array less
+  const A = z.subarray(0, 2 * hw * h), Bs = new Float64Array(2 * hw * h);
   for (let kx = 0; kx < hw; kx++) {
     const mx = (w - kx) % w;
     for (let ky = 0; ky < h; ky++) {

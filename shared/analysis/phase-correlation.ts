@@ -65,15 +65,26 @@ export const SHIFT_TAPER = 0.25;
 function centred(ch: ChannelArray, width: number, height: number, W: number, H: number, what: string): Float64Array | null {
   let s = 0, n = 0;
   let first = NaN, varies = false;
-  for (let i = 0; i < width * height; i++) {
-    const v = ch[i];
-    if (Number.isNaN(v)) continue;
-    if (!Number.isFinite(v)) throw new RangeError(`${what} has an infinite value at pixel ${i}: ${v}`);
-    if (n === 0) first = v;
-    else if (v !== first) varies = true;
-    s += v;
-    n++;
-  }
+  const N = width * height;
+  if (!(ch instanceof Float32Array || ch instanceof Float64Array)) {
+    // integer data: no NaN or infinity to look for
+    first = ch[0];
+    for (let i = 0; i < N; i++) {
+      const v = ch[i];
+      if (v !== first) varies = true;
+      s += v;
+    }
+    n = N;
+  } else
+    for (let i = 0; i < N; i++) {
+      const v = ch[i];
+      if (Number.isNaN(v)) continue;
+      if (!Number.isFinite(v)) throw new RangeError(`${what} has an infinite value at pixel ${i}: ${v}`);
+      if (n === 0) first = v;
+      else if (v !== first) varies = true;
+      s += v;
+      n++;
+    }
   if (!varies) return null;
   const m = s / n;
   const wx = tukeyWindow(width, SHIFT_TAPER), wy = tukeyWindow(height, SHIFT_TAPER);
