@@ -14,6 +14,7 @@ import studiesRoutes from './routes/studies.js';
 import fieldsRoutes from './routes/fields.js';
 import cellsRoutes from './routes/cells.js';
 import recipesRoutes from './routes/recipes.js';
+import instrumentsRoutes from './routes/instruments.js';
 import runsRoutes from './routes/runs.js';
 import cellTableRoutes from './routes/cell-table.js';
 import compareRoutes from './routes/compare.js';
@@ -50,7 +51,7 @@ export function createApp(ctx: AppContext) {
     res.json({ ok: true });
   });
   const api = express.Router();
-  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes]) {
+  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, instrumentsRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes]) {
     api.use(r(ctx));
   }
   app.use('/api', api);

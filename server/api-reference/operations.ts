@@ -12,6 +12,7 @@ import * as cells from '../../shared/schemas/cells.js';
 import { IdParam, LinkToken, OkResponse } from '../../shared/schemas/common.js';
 import * as compare from '../../shared/schemas/compare.js';
 import * as fields from '../../shared/schemas/fields.js';
+import * as instruments from '../../shared/schemas/instruments.js';
 import * as outbox from '../../shared/schemas/outbox.js';
 import * as people from '../../shared/schemas/people.js';
 import * as recipes from '../../shared/schemas/recipes.js';
@@ -113,6 +114,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'GET /api/studies/:studyId/fields': { summary: 'Every field of a study', query: null, body: null, response: N(fields, 'StudyFieldsResponse') },
   'GET /api/fields/:id': { summary: 'A field with its files and channel facts', query: null, body: null, response: N(fields, 'FieldDetail') },
   'DELETE /api/fields/:id': { summary: 'Delete a field', query: null, body: null, response: N(fields, 'DeleteFieldResponse') },
+  'PUT /api/fields/:id/instrument': { summary: 'Set or clear the instrument a field was acquired on', query: null, body: N(fields, 'SetFieldInstrumentRequest'), response: N(fields, 'FieldSummary') },
   'GET /api/fields/:id/preview.png': { summary: 'A two-channel colour preview', query: N(fields, 'PreviewQuery'), body: null, response: { media: 'image/png', description: 'the preview picture' } },
   'GET /api/fields/:id/pixels': {
     summary: "A field's raw pixels of both channels",
@@ -152,6 +154,17 @@ export const OPERATIONS: Record<string, Operation> = {
   'POST /api/recipes/:id/approve': { summary: 'Approve a submitted recipe', query: null, body: N(recipes, 'RecipeTransitionRequest'), response: N(recipes, 'RecipeDetail') },
   'POST /api/recipes/:id/return': { summary: 'Return a submitted recipe with a note', query: null, body: N(recipes, 'RecipeTransitionRequest'), response: N(recipes, 'RecipeDetail') },
   'POST /api/recipes/:id/retire': { summary: 'Retire an approved recipe', query: null, body: N(recipes, 'RecipeTransitionRequest'), response: N(recipes, 'RecipeDetail') },
+
+  'GET /api/instruments': { summary: 'Instruments with their latest calibrations', query: null, body: null, response: N(instruments, 'InstrumentListResponse') },
+  'POST /api/instruments': { summary: 'Record an instrument (name, objective, channel pair)', query: null, body: N(instruments, 'CreateInstrumentRequest'), response: N(instruments, 'InstrumentDetail'), status: 201 },
+  'GET /api/instruments/:id': { summary: 'An instrument with every calibration version', query: null, body: null, response: N(instruments, 'InstrumentDetail') },
+  'POST /api/instruments/:id/calibrations': { summary: "Start a new calibration version (draft) of an instrument's shift and bleed-through", query: null, body: N(instruments, 'CreateCalibrationRequest'), response: N(instruments, 'CalibrationDetail'), status: 201 },
+  'GET /api/calibrations/:id': { summary: 'A calibration version with its history', query: null, body: null, response: N(instruments, 'CalibrationDetail') },
+  'PATCH /api/calibrations/:id': { summary: 'Change a draft calibration', query: null, body: N(instruments, 'UpdateCalibrationRequest'), response: N(instruments, 'CalibrationDetail') },
+  'POST /api/calibrations/:id/submit': { summary: 'Submit a calibration for review', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
+  'POST /api/calibrations/:id/approve': { summary: 'Approve a submitted calibration', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
+  'POST /api/calibrations/:id/return': { summary: 'Return a submitted calibration with a note', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
+  'POST /api/calibrations/:id/retire': { summary: 'Retire an approved calibration', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
 
   'POST /api/runs': { summary: 'Start a run of a recipe version over a study, condition, coverslip or field', query: null, body: N(runs, 'CreateRunRequest'), response: N(runs, 'RunDetail'), status: 201 },
   'GET /api/runs': { summary: 'Runs in the studies you may see', query: N(runs, 'RunListQuery'), body: null, response: N(runs, 'RunListResponse') },

@@ -93,7 +93,11 @@ export type GlobalAction =
   | 'read_outbox' // facility managers
   | 'propose_recipe' // anyone but collaborators
   | 'review_recipe' // facility managers
-  | 'read_recipes'; // anyone but collaborators
+  | 'read_recipes' // anyone but collaborators
+  | 'manage_instruments' // facility managers: record instruments
+  | 'read_instruments' // anyone but collaborators
+  | 'propose_calibration' // anyone but collaborators
+  | 'review_calibration'; // facility managers
 
 export function can(user: SessionUser | undefined, action: GlobalAction): boolean {
   if (!user) return false;
@@ -103,9 +107,13 @@ export function can(user: SessionUser | undefined, action: GlobalAction): boolea
     case 'manage_users':
     case 'read_outbox':
     case 'review_recipe':
+    case 'manage_instruments':
+    case 'review_calibration':
       return hasRole(user, 'facility_manager');
     case 'propose_recipe':
     case 'read_recipes':
+    case 'read_instruments':
+    case 'propose_calibration':
       return user.roles.some((r) => r !== 'collaborator');
   }
 }
@@ -126,6 +134,10 @@ const ACTION_WORDS: Record<StudyAction | GlobalAction, string> = {
   propose_recipe: 'proposing recipes',
   review_recipe: 'reviewing recipes',
   read_recipes: 'reading recipes',
+  manage_instruments: 'recording instruments',
+  read_instruments: 'reading instruments and calibrations',
+  propose_calibration: 'proposing calibrations',
+  review_calibration: 'reviewing calibrations',
 };
 
 export function requireCan(user: SessionUser | undefined, action: GlobalAction) {

@@ -65,6 +65,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/studies/:studyId/fields': { study: 'read' },
   'GET /api/fields/:id': { study: 'read' },
   'DELETE /api/fields/:id': { study: 'edit_images' },
+  'PUT /api/fields/:id/instrument': { study: 'edit_images' },
   'GET /api/fields/:id/preview.png': { study: 'read' },
   'GET /api/fields/:id/pixels': { study: 'read' },
 
@@ -78,6 +79,18 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/fields/:id/cells.geojson': { study: 'read' },
   'POST /api/fields/:id/cells/geojson': { study: 'edit_images' },
   'GET /api/fields/:id/cells/labels.tiff': { study: 'read' },
+
+  // instruments.ts: instruments and calibrations are facility-wide, not study-scoped
+  'GET /api/instruments': { global: 'read_instruments' },
+  'POST /api/instruments': { global: 'manage_instruments' },
+  'GET /api/instruments/:id': { global: 'read_instruments' },
+  'POST /api/instruments/:id/calibrations': { global: 'propose_calibration' },
+  'GET /api/calibrations/:id': { global: 'read_instruments' },
+  'PATCH /api/calibrations/:id': { global: 'propose_calibration' }, // plus: proposer or facility manager
+  'POST /api/calibrations/:id/submit': { global: 'propose_calibration' }, // plus: proposer or facility manager
+  'POST /api/calibrations/:id/approve': { global: 'review_calibration' },
+  'POST /api/calibrations/:id/return': { global: 'review_calibration' },
+  'POST /api/calibrations/:id/retire': { global: 'review_calibration' },
 
   // recipes.ts: recipes are facility-wide, not study-scoped
   'GET /api/recipes': { global: 'read_recipes' },

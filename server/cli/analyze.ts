@@ -508,7 +508,8 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     const region = union === null ? null : { kind: 'indices' as const, indices: union };
     measured.bleed = o.measureBleed === 1 ? { a21: bleedThroughSlope(ch1, ch2, region) } : { a12: bleedThroughSlope(ch2, ch1, region) };
   }
-  if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12));
+  // channel 2 is the command's own copy once aligned, so the unmixed channel 2 may overwrite it
+  if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12, { reuse: o.shift !== null }));
   // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
   const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
   const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;

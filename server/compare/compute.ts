@@ -83,6 +83,8 @@ interface CellRow {
   excluded: number;
   provisional: number | null;
   saturated: number;
+  /** id of the calibration applied before measuring (provenance), null when none */
+  calibrationId: number | null;
 }
 
 export async function computeComparison(ctx: AppContext, studyId: number, options: CompareOptions): Promise<Comparison> {
@@ -113,7 +115,8 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
     .prepare(
       `SELECT c.id AS cellId, f.id AS fieldId, cs.id AS coverslipId, cd.id AS conditionId, m.${entry.column} AS value,
         m.mean1 AS mean1, m.mean2 AS mean2, c.excluded AS excluded, m.provisional AS provisional,
-        (coalesce(m.saturated_fraction1, 0) > 0 OR coalesce(m.saturated_fraction2, 0) > 0) AS saturated
+        (coalesce(m.saturated_fraction1, 0) > 0 OR coalesce(m.saturated_fraction2, 0) > 0) AS saturated,
+        json_extract(m.provenance, '$.calibration.id') AS calibrationId
       FROM cells c
       JOIN fields f ON f.id = c.field_id AND f.status = 'ready'
       JOIN coverslips cs ON cs.id = f.coverslip_id
@@ -250,6 +253,11 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
   if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${entry.label} (for example no pixels above threshold or a constant channel) and are left out.`);
   if (omitted.excluded) warnings.push(`${omitted.excluded} excluded cell${omitted.excluded === 1 ? ' is' : 's are'} left out (reasons in the Cell table).`);
   if (omitted.provisional) warnings.push(`${omitted.provisional} cell values come from provisional measurements (a recipe not yet approved).`);
+  const calibrationsUsed = new Set(used.map((r) => r.calibrationId ?? 0));
+  if (calibrationsUsed.size > 1)
+    warnings.push(
+      `The measurements mix channel calibrations (${calibrationsUsed.size} different${calibrationsUsed.has(0) ? ', counting uncorrected cells as one' : ''}): shift and bleed-through corrections differ between cells, so differences may come from the calibration.`,
+    );
   if (omitted.saturated) warnings.push(`${omitted.saturated} cells contain saturated pixels, which bias co-localization coefficients.`);
   if (withData.length === 2) {
     // smallest two-sided exact Mann–Whitney p with these coverslip counts: 2 / C(n1 + n2, n1)

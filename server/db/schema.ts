@@ -143,6 +143,8 @@ export const fields = sqliteTable('fields', {
   bitDepth: integer('bit_depth').notNull(),
   sampleFormat: text('sample_format', { enum: ['uint', 'float'] }).notNull(),
   pixelSizeUm: real('pixel_size_um'),
+  /** the instrument the field was recorded on (its approved calibration is what runs apply); null when not given */
+  instrumentId: integer('instrument_id').references(() => instruments.id),
   facts: text('facts', { mode: 'json' }).$type<{ ch1: ChannelFacts; ch2: ChannelFacts }>().notNull(),
   status: text('status', { enum: ['ready', 'deleted'] }).notNull().default('ready'),
   uploadedBy: integer('uploaded_by').references(() => users.id),
@@ -195,6 +197,39 @@ export const recipes = sqliteTable('recipes', {
   reviewedAt: text('reviewed_at'),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('recipes_family_version').on(t.familyId, t.version)]);
+
+/** A microscope set-up (objective and channel pair) whose calibrations runs apply (issue 15). */
+export const instruments = sqliteTable('instruments', {
+  id: id(),
+  name: text('name').notNull().unique(),
+  objective: text('objective').notNull().default(''),
+  channel1: text('channel1').notNull(),
+  channel2: text('channel2').notNull(),
+  createdBy: integer('created_by').references(() => users.id),
+  createdAt: createdAt(),
+});
+
+/**
+ * A versioned calibration of an instrument: channel 2's shift (dx, dy, px; ch2(x + dx, y + dy) ≈ ch1(x, y)) and
+ * the bleed-through coefficients a21, a12, each null until measured; the recipe life cycle (RECIPE_STATUSES).
+ */
+export const calibrations = sqliteTable('calibrations', {
+  id: id(),
+  instrumentId: integer('instrument_id').notNull().references(() => instruments.id),
+  version: integer('version').notNull(),
+  status: text('status', { enum: RECIPE_STATUSES }).notNull().default('draft'),
+  dx: real('dx'),
+  dy: real('dy'),
+  a21: real('a21'),
+  a12: real('a12'),
+  note: text('note').notNull().default(''),
+  proposerId: integer('proposer_id').references(() => users.id),
+  reviewerId: integer('reviewer_id').references(() => users.id),
+  reviewNote: text('review_note'),
+  submittedAt: text('submitted_at'),
+  reviewedAt: text('reviewed_at'),
+  createdAt: createdAt(),
+}, (t) => [uniqueIndex('calibrations_instrument_version').on(t.instrumentId, t.version)]);
 
 export const runs = sqliteTable('runs', {
   id: id(),

@@ -42,6 +42,8 @@ export interface IngestRequest {
   name: string;
   /** two entries (channel 1, channel 2); the same path twice for one multi-channel file */
   sources: IngestSource[];
+  /** the instrument that recorded the field (checked to exist by the caller), or none */
+  instrumentId?: number | null;
 }
 
 export interface IngestOptions {
@@ -143,6 +145,7 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
           sampleFormat: stack.sampleFormat,
           pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? null,
           facts,
+          instrumentId: req.instrumentId ?? null,
           uploadedBy: req.userId ?? null,
         })
         .returning()

@@ -15,6 +15,7 @@ import { badRequest, notFound } from '../http/errors.js';
 import type { CellScatter, Composite, ConditionSummary, CoverslipSummary, ReportCoefficient, ReportSnapshot, SnapshotCell, StatisticRow } from '../../shared/schemas/reports.js';
 import type { Comparison } from '../../shared/schemas/compare.js';
 import { cellIndices, originOfRow } from '../../shared/schemas/cells.js';
+import { MeasurementProvenance } from '../../shared/schemas/runs.js';
 import { CAUTIONS, methodsParagraph } from '../../shared/reports/methods.js';
 import { median, sd } from '../../shared/stats/index.js';
 import { computeComparison } from '../compare/compute.js';
@@ -309,6 +310,20 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     if (typeof k === 'number' && k > 0) (nanPixelCount += k), nanCells++;
   }
 
+  // ---- calibrations applied to the measured cells (provenance.calibration since issue 15)
+  const applied = new Map<number, NonNullable<ReportSnapshot['calibrations']>['applied'][number]>();
+  let uncalibratedCells = 0;
+  for (const c of used) {
+    const m = latest.get(c.cellId);
+    if (!m) continue;
+    const cal = MeasurementProvenance.shape.calibration.safeParse((m.provenance as { calibration?: unknown } | undefined)?.calibration);
+    if (cal.success && cal.data) {
+      const a = applied.get(cal.data.id) ?? { id: cal.data.id, instrument: cal.data.instrument, version: cal.data.version, dx: cal.data.dx, dy: cal.data.dy, a21: cal.data.a21, a12: cal.data.a12, cells: 0 };
+      a.cells++;
+      applied.set(cal.data.id, a);
+    } else uncalibratedCells++;
+  }
+
   const engineVersions = [...new Set(snapRuns.map((r) => r.engineVersion).filter((e): e is string => !!e))];
   const snap: ReportSnapshot = {
     schemaVersion: 1,
@@ -345,6 +360,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     scatters,
     saturation,
     nanPixels: { pixels: nanPixelCount, cells: nanCells },
+    calibrations: { applied: [...applied.values()], uncalibratedCells },
     methods: '',
     cautions: [...CAUTIONS],
   };

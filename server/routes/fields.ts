@@ -19,12 +19,12 @@ import { Router, type Request } from 'express';
 import multer, { type StorageEngine } from 'multer';
 import { and, asc, eq, inArray, or } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { auditEvents, cells, conditions, coverslips, fields, files, measurements, runFields } from '../db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, instruments, measurements, runFields } from '../db/schema.js';
 import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
-import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
+import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
@@ -45,6 +45,7 @@ export function toFieldSummary(f: FieldRow): FieldSummary {
     sampleFormat: f.sampleFormat,
     channelNames: f.channelNames,
     pixelSizeUm: f.pixelSizeUm ?? null,
+    instrumentId: f.instrumentId ?? null,
     facts: f.facts,
     saturated: flag(f.facts.ch1) || flag(f.facts.ch2),
     status: f.status,
@@ -233,6 +234,8 @@ export default function fieldsRoutes(ctx: AppContext) {
           for (const ref of [p.ch1, p.ch2]) {
             if (ref.file >= up.length) throw badRequest(`field ${i + 1} of the plan refers to file ${ref.file}, but only ${up.length} file(s) were uploaded`);
           }
+          if (p.instrumentId != null && !ctx.db.select({ id: instruments.id }).from(instruments).where(eq(instruments.id, p.instrumentId)).get())
+            throw badRequest(`field ${i + 1} of the plan names instrument ${p.instrumentId}, which does not exist`);
         }
         const uses = new Map<number, number>();
         for (const p of plan) for (const i of new Set([p.ch1.file, p.ch2.file])) uses.set(i, (uses.get(i) ?? 0) + 1);
@@ -248,6 +251,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 coverslipId,
                 userId: req.user!.id,
                 name,
+                instrumentId: p.instrumentId ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
                   { path: f2.path, originalName: f2.originalname, channel: p.ch2.channel, sha256: f2.sha256 },
@@ -327,6 +331,22 @@ export default function fieldsRoutes(ctx: AppContext) {
       canEdit: perms.has('edit_images'),
     };
     res.json(detail);
+  });
+
+  /** Which instrument the field was recorded on (recipes that apply the approved calibration use it); audited. */
+  r.put('/fields/:id/instrument', (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
+    const { instrumentId } = parse(SetFieldInstrumentRequest, req.body);
+    if (instrumentId !== null && !ctx.db.select({ id: instruments.id }).from(instruments).where(eq(instruments.id, instrumentId)).get())
+      throw notFoundAsked({ what: 'instrument', id: instrumentId });
+    const next = ctx.db.transaction((tx) => {
+      const row = tx.update(fields).set({ instrumentId }).where(eq(fields.id, fieldId)).returning().get();
+      tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'field.instrument', entity: 'field', entityId: fieldId, studyId, details: { from: field.instrumentId, to: instrumentId } }).run();
+      return row;
+    });
+    res.json(toFieldSummary(next));
   });
 
   r.delete('/fields/:id', async (req, res) => {

@@ -43,7 +43,7 @@ export function loadRecipe(ctx: AppContext, id: number): RecipeRow {
   return row;
 }
 
-function userNames(ctx: AppContext, ids: (number | null)[]) {
+export function userNames(ctx: AppContext, ids: (number | null)[]) {
   const wanted = [...new Set(ids.filter((x): x is number => x != null))];
   const m = new Map<number, string>();
   if (wanted.length) for (const u of ctx.db.select({ id: users.id, name: users.name }).from(users).where(inArray(users.id, wanted)).all()) m.set(u.id, u.name);

@@ -25,8 +25,14 @@
  *   into pixels with the recipe's or the field's pixel size. A cell below minCellPixels gets every measure
  *   null, the object measures included, and no spots. A float field with NaN pixels fails with the count when
  *   spots are on (the filter reaches beyond the cell, so no pixel may lack a value).
+ * - calibration (recipe setting 'approved', 2026-12-02): channel 2 is aligned with the instrument's approved
+ *   shift first (bilinear; pixels whose sample position is outside become NaN, so they are not measured and
+ *   count in `nanPixels`), then background is subtracted, then bleed-through is unmixed (a missing
+ *   coefficient is 0). Saturation is judged on the recorded values: an aligned channel-2 pixel is saturated
+ *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
+ *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
 import { pairDistancePx, spotSigmaPx, type RecipeSettings } from '../../shared/schemas/recipes.js';
@@ -160,9 +166,21 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
 export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): { measurements: MeasurementValues[]; spots: SpotValues[] } {
   const s = job.settings;
   const { width, height } = px;
-  const raw1 = px.ch1;
-  const raw2 = px.ch2;
   const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
+  // calibration: channel 2 aligned first (NaN where its sample position is outside: not measured)
+  if (s.calibration === 'approved' && !job.calibration) throw new FieldJobError(job.calibrationProblem ?? `field "${job.fieldName}" has no calibration to apply`);
+  const cal = s.calibration === 'approved' ? job.calibration : null;
+  const shifted = cal !== null && cal.dx !== null && cal.dy !== null && (cal.dx !== 0 || cal.dy !== 0);
+  const raw1 = px.ch1;
+  const raw2 = shifted ? alignChannel(px.ch2, width, height, cal.dx!, cal.dy!) : px.ch2;
+  // saturation of channel 2 after alignment: any saturated pixel with weight in the interpolation
+  const sat2 = (i: number) => (shifted ? satAligned![i] > 0 : raw2[i] >= sat!);
+  let satAligned: Float64Array | null = null;
+  if (shifted && sat != null) {
+    const m = new Uint8Array(px.ch2.length);
+    for (let i = 0; i < m.length; i++) m[i] = px.ch2[i] >= sat ? 1 : 0;
+    satAligned = alignChannel(m, width, height, cal.dx!, cal.dy!);
+  }
 
   // background
   let bg1: number | null = null;
@@ -182,8 +200,10 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
     bg1 = meanOver(raw1, valued);
     bg2 = meanOver(raw2, valued);
   }
-  const ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
-  const ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
+  let ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
+  let ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
+  // then bleed-through, on the background-subtracted channels
+  if (cal && (cal.a21 !== null || cal.a12 !== null)) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, cal.a21 ?? 0, cal.a12 ?? 0));
 
   const block = blockPixels(s, job.pixelSizeUm);
   const want = new Set(s.coefficients);
@@ -210,7 +230,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
       const nanPixels = all.length - idx.length;
       if (s.saturation === 'exclude' && sat != null) {
         const keep: number[] = [];
-        for (let k = 0; k < idx.length; k++) if (raw1[idx[k]] < sat && raw2[idx[k]] < sat) keep.push(idx[k]);
+        for (let k = 0; k < idx.length; k++) if (raw1[idx[k]] < sat && !sat2(idx[k])) keep.push(idx[k]);
         idx = Uint32Array.from(keep);
       }
       return { cell, all, idx, valued, nanPixels };
@@ -234,7 +254,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
     if (sat != null)
       for (let k = 0; k < all.length; k++) {
         if (raw1[all[k]] >= sat) s1++;
-        if (raw2[all[k]] >= sat) s2++;
+        if (sat2(all[k])) s2++;
       }
     const n = idx.length;
     const provenance = {
@@ -253,6 +273,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
       randomizationCount: 0,
       note: null as string | null,
       nanPixels,
+      calibration: cal,
       ...(objects
         ? { objects: { sigmaPx: objects.spotSigma, k: objects.spotK, minSeparationPx: objects.minSeparation, pairDistancePx: objects.pairDistance, placements: objects.placements, seed: objects.seed } }
         : {}),

@@ -24,6 +24,10 @@ export interface FieldJob {
   settings: RecipeSettings;
   recipe: { id: number; name: string; version: number; status: RecipeStatus };
   provisional: boolean;
+  /** the calibration to apply (recipe setting 'approved'), resolved when the job is built; else null */
+  calibration: NonNullable<MeasurementProvenance['calibration']> | null;
+  /** when the recipe asks for a calibration and none can be applied: why (the field fails with it) */
+  calibrationProblem: string | null;
 }
 
 /**

@@ -3,10 +3,10 @@
  * recording a field's result in one transaction (measurements + run_fields done + run counters), and the
  * run's final status. Idempotent: a result for a field already done is ignored, so no field counts twice.
  */
-import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
+import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../db/client.js';
 import type { RunQueue } from '../services.js';
-import { auditEvents, cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, spots, studies } from '../db/schema.js';
+import { auditEvents, calibrations, cells, conditions, coverslips, fields, files, instruments, measurements, recipes, runFields, runs, spots, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { RunScopeKind } from '../../shared/schemas/runs.js';
 import { notFound } from '../http/errors.js';
@@ -62,6 +62,29 @@ export function runSettings(db: Db, run: { id: number; recipeId: number }): Reci
   return RecipeSettings.parse(recipe?.settings ?? {});
 }
 
+/** The calibration runs apply for an instrument: its highest approved version, or undefined. */
+export function approvedCalibration(db: DbOrTx, instrumentId: number): typeof calibrations.$inferSelect | undefined {
+  return db
+    .select()
+    .from(calibrations)
+    .where(and(eq(calibrations.instrumentId, instrumentId), eq(calibrations.status, 'approved')))
+    .orderBy(desc(calibrations.version))
+    .get();
+}
+
+/**
+ * The calibration a field's job applies when its recipe asks for one ('approved'), or the sentence saying why
+ * none can be (the field then fails with it, and is not measured uncorrected).
+ */
+function fieldCalibration(db: Db, settings: RecipeSettings, f: typeof fields.$inferSelect): Pick<FieldJob, 'calibration' | 'calibrationProblem'> {
+  if (settings.calibration === 'none') return { calibration: null, calibrationProblem: null };
+  if (f.instrumentId === null) return { calibration: null, calibrationProblem: `field ${f.name} has no instrument, so the recipe's calibration cannot be applied` };
+  const inst = db.select().from(instruments).where(eq(instruments.id, f.instrumentId)).get()!;
+  const c = approvedCalibration(db, inst.id);
+  if (!c) return { calibration: null, calibrationProblem: `instrument ${inst.name} of field ${f.name} has no approved calibration` };
+  return { calibration: { id: c.id, instrumentId: inst.id, instrument: inst.name, version: c.version, dx: c.dx, dy: c.dy, a21: c.a21, a12: c.a12 }, calibrationProblem: null };
+}
+
 /** Everything a stateless worker needs for one field of a run. */
 export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
   const run = db.select().from(runs).where(eq(runs.id, runId)).get();
@@ -81,6 +104,7 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
     .where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt)))
     .orderBy(cells.id)
     .all();
+  const settings = runSettings(db, run);
   return {
     runId,
     fieldId,
@@ -96,9 +120,10 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
     sampleFormat: f.sampleFormat,
     pixelSizeUm: f.pixelSizeUm,
     cells: cellRows,
-    settings: runSettings(db, run),
+    settings,
     recipe: { id: recipe.id, name: recipe.name, version: recipe.version, status: recipe.status },
     provisional: run.provisional,
+    ...fieldCalibration(db, settings, f),
   };
 }
 

@@ -28,7 +28,7 @@ export function alignChannel(ch: ChannelArray, width: number, height: number, dx
     throw new RangeError(`image size must be positive whole numbers, received ${width}×${height}×${slices}`);
   const plane = width * height;
   if (ch.length !== plane * slices) throw new RangeError(`channel has ${ch.length} values, ${width}×${height}×${slices} needs ${plane * slices}`);
-  const out = new Float64Array(ch.length).fill(NaN);
+  const out = new Float64Array(ch.length);
   // per column: the left neighbour and weight (or −1 outside); likewise per row
   const col = (dx: number, n: number) => {
     const i0 = new Int32Array(n).fill(-1), f = new Float64Array(n);
@@ -52,13 +52,19 @@ export function alignChannel(ch: ChannelArray, width: number, height: number, dx
     const base = z * plane;
     for (let j = 0; j < height; j++) {
       const y0 = cy.i0[j];
-      if (y0 < 0) continue;
+      if (y0 < 0) {
+        out.fill(NaN, base + j * width, base + (j + 1) * width);
+        continue;
+      }
       const fy = cy.f[j], wy0 = 1 - fy;
       const r0 = base + y0 * width, r1 = fy === 0 ? r0 : r0 + width;
       const o = base + j * width;
       for (let i = 0; i < width; i++) {
         const x0 = cx.i0[i];
-        if (x0 < 0) continue;
+        if (x0 < 0) {
+          out[o + i] = NaN;
+          continue;
+        }
         const fx = cx.f[i];
         const x1 = fx === 0 ? x0 : x0 + 1;
         // SciPy's order of operations (value × y weight × x weight, summed row by row), so the results

@@ -8,8 +8,10 @@
  * J. Sound Vib. 12:315, doi:10.1016/0022-460X(70)90075-1). The inverse of a Hermitian spectrum is real, so
  * its rows are inverted two at a time the same way. Spectra are kept on the half plane kx = 0 … w/2 only.
  *
- * Layout: complex values interleaved (re, im) in a Float64Array; a half-plane spectrum of an h × w image is
- * h rows of (w/2 + 1) complex values, row ky (0 … h−1, numpy's order: ky ≥ h/2 stands for ky − h).
+ * Layout: complex values interleaved (re, im) in a Float64Array. A half-plane spectrum of an h × w image is
+ * stored column by column: w/2 + 1 columns kx = 0 … w/2, each of h values ky = 0 … h−1 (numpy's order:
+ * ky ≥ h/2 stands for ky − h), at index 2·(kx·h + ky). The column transforms then run on contiguous memory
+ * (the image is transposed once in cache-sized blocks instead of gathering every column).
  */
 import FFT from 'fft.js';
 
@@ -33,41 +35,40 @@ function plan(n: number): InstanceType<typeof FFT> {
   return p;
 }
 
-/** Complex FFT of every column of an interleaved h × cols complex array, in place (inverse when `inverse`). */
-function columnTransform(z: Float64Array, h: number, cols: number, stride: number, inverse: boolean): void {
-  const f = plan(h);
-  // a block of columns at a time: gathered rows stay in cache
-  const B = 8;
-  const tin = new Float64Array(2 * h * B);
-  const tout = new Float64Array(2 * h);
-  for (let c0 = 0; c0 < cols; c0 += B) {
-    const nb = Math.min(B, cols - c0);
-    for (let y = 0; y < h; y++) {
-      const row = y * stride + 2 * c0;
-      for (let b = 0; b < nb; b++) {
-        tin[b * 2 * h + 2 * y] = z[row + 2 * b];
-        tin[b * 2 * h + 2 * y + 1] = z[row + 2 * b + 1];
-      }
-    }
-    for (let b = 0; b < nb; b++) {
-      const col = tin.subarray(b * 2 * h, (b + 1) * 2 * h);
-      if (inverse) f.inverseTransform(tout, col);
-      else f.transform(tout, col);
-      col.set(tout);
-    }
-    for (let y = 0; y < h; y++) {
-      const row = y * stride + 2 * c0;
-      for (let b = 0; b < nb; b++) {
-        z[row + 2 * b] = tin[b * 2 * h + 2 * y];
-        z[row + 2 * b + 1] = tin[b * 2 * h + 2 * y + 1];
+/** Transpose of an interleaved complex rows × cols array into cols × rows, in 32 × 32 blocks. */
+function transpose(src: Float64Array, rows: number, cols: number, dst: Float64Array): void {
+  const B = 32;
+  for (let r0 = 0; r0 < rows; r0 += B) {
+    const r1 = Math.min(rows, r0 + B);
+    for (let c0 = 0; c0 < cols; c0 += B) {
+      const c1 = Math.min(cols, c0 + B);
+      for (let r = r0; r < r1; r++) {
+        let si = 2 * (r * cols + c0);
+        for (let c = c0; c < c1; c++, si += 2) {
+          const di = 2 * (c * rows + r);
+          dst[di] = src[si];
+          dst[di + 1] = src[si + 1];
+        }
       }
     }
   }
 }
 
+/** Complex FFT of each of `count` contiguous rows of n values, in place (inverse when `inverse`). */
+function rowTransforms(z: Float64Array, count: number, n: number, inverse: boolean): void {
+  const f = plan(n);
+  const tmp = new Float64Array(2 * n);
+  for (let r = 0; r < count; r++) {
+    const row = z.subarray(2 * n * r, 2 * n * (r + 1));
+    if (inverse) f.inverseTransform(tmp, row);
+    else f.transform(tmp, row);
+    row.set(tmp);
+  }
+}
+
 /**
- * The half-plane spectra of two real w × h images (row-major, w and h powers of two), unnormalised:
- * A(ky, kx) = Σ a(y, x) e^{−2πi (ky y / h + kx x / w)}.
+ * The half-plane spectra (layout above) of two real w × h images (row-major, w and h powers of two),
+ * unnormalised: A(ky, kx) = Σ a(y, x) e^{−2πi (ky y / h + kx x / w)}.
  */
 export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: number): { A: Float64Array; B: Float64Array } {
   checkSize(w, h);
@@ -82,36 +83,40 @@ export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: nu
     }
     fr.transform(z.subarray(2 * w * y, 2 * w * (y + 1)), tin);
   }
-  columnTransform(z, h, w, 2 * w, false);
+  const zt = new Float64Array(2 * w * h);
+  transpose(z, h, w, zt);
+  rowTransforms(zt, w, h, false);
   const hw = w / 2 + 1;
-  const A = new Float64Array(2 * hw * h), Bs = new Float64Array(2 * hw * h);
-  for (let ky = 0; ky < h; ky++) {
-    const my = (h - ky) % h;
-    for (let kx = 0; kx < hw; kx++) {
-      const mx = (w - kx) % w;
-      const p = 2 * (ky * w + kx), q = 2 * (my * w + mx);
-      const zr = z[p], zi = z[p + 1], mr = z[q], mi = z[q + 1];
-      const o = 2 * (ky * hw + kx);
-      A[o] = (zr + mr) / 2;
-      A[o + 1] = (zi - mi) / 2;
-      Bs[o] = (zi + mi) / 2;
-      Bs[o + 1] = (mr - zr) / 2;
+  // A takes the row pass's buffer (no longer needed after the transpose): one 16-byte-per-pixel array less
+  const A = z.subarray(0, 2 * hw * h), Bs = new Float64Array(2 * hw * h);
+  for (let kx = 0; kx < hw; kx++) {
+    const mx = (w - kx) % w;
+    for (let ky = 0; ky < h; ky++) {
+      const my = (h - ky) % h;
+      const p = 2 * (kx * h + ky), q = 2 * (mx * h + my);
+      const zr = zt[p], zi = zt[p + 1], mr = zt[q], mi = zt[q + 1];
+      A[p] = (zr + mr) / 2;
+      A[p + 1] = (zi - mi) / 2;
+      Bs[p] = (zi + mi) / 2;
+      Bs[p + 1] = (mr - zr) / 2;
     }
   }
   return { A, B: Bs };
 }
 
 /**
- * The real w × h image of a Hermitian spectrum given on the half plane (as from `realFft2dPair`),
- * normalised: c(y, x) = (1 / wh) Σ_k S(k) e^{+2πi (ky y / h + kx x / w)}. The imaginary parts of the
- * kx = 0 and kx = w/2 columns, which a Hermitian spectrum has only from rounding, are ignored.
+ * The real w × h image of a Hermitian spectrum given on the half plane (layout above, as from
+ * `realFft2dPair`), normalised: c(y, x) = (1 / wh) Σ_k S(k) e^{+2πi (ky y / h + kx x / w)}. The imaginary
+ * parts of the kx = 0 and kx = w/2 columns, which a Hermitian spectrum has only from rounding, are ignored.
  */
 export function inverseRealFft2d(S: Float64Array, w: number, h: number): Float64Array {
   checkSize(w, h);
   const hw = w / 2 + 1;
   if (S.length !== 2 * hw * h) throw new RangeError(`a half-plane spectrum of ${w}×${h} has ${2 * hw * h} values, received ${S.length}`);
-  const g = S.slice();
-  columnTransform(g, h, hw, 2 * hw, true);
+  const gc = S.slice();
+  rowTransforms(gc, hw, h, true);
+  const g = new Float64Array(2 * hw * h);
+  transpose(gc, hw, h, g);
   const fr = plan(w);
   const out = new Float64Array(w * h);
   const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);

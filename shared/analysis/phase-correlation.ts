@@ -65,15 +65,26 @@ export const SHIFT_TAPER = 0.25;
 function centred(ch: ChannelArray, width: number, height: number, W: number, H: number, what: string): Float64Array | null {
   let s = 0, n = 0;
   let first = NaN, varies = false;
-  for (let i = 0; i < width * height; i++) {
-    const v = ch[i];
-    if (Number.isNaN(v)) continue;
-    if (!Number.isFinite(v)) throw new RangeError(`${what} has an infinite value at pixel ${i}: ${v}`);
-    if (n === 0) first = v;
-    else if (v !== first) varies = true;
-    s += v;
-    n++;
-  }
+  const N = width * height;
+  if (!(ch instanceof Float32Array || ch instanceof Float64Array)) {
+    // integer data: no NaN or infinity to look for
+    first = ch[0];
+    for (let i = 0; i < N; i++) {
+      const v = ch[i];
+      if (v !== first) varies = true;
+      s += v;
+    }
+    n = N;
+  } else
+    for (let i = 0; i < N; i++) {
+      const v = ch[i];
+      if (Number.isNaN(v)) continue;
+      if (!Number.isFinite(v)) throw new RangeError(`${what} has an infinite value at pixel ${i}: ${v}`);
+      if (n === 0) first = v;
+      else if (v !== first) varies = true;
+      s += v;
+      n++;
+    }
   if (!varies) return null;
   const m = s / n;
   const wx = tukeyWindow(width, SHIFT_TAPER), wy = tukeyWindow(height, SHIFT_TAPER);
@@ -92,50 +103,50 @@ function centred(ch: ChannelArray, width: number, height: number, W: number, H: 
  */
 function refine(P: Float64Array, W: number, H: number, cu: number, cv: number, step: number, m: number): { u: number; v: number; c: number } {
   const hw = W / 2 + 1, n = 2 * m + 1;
-  // column kernel: weight(kx) · e^{2πi kx v_j / W}
-  const kr = new Float64Array(n * hw), ki = new Float64Array(n * hw);
-  for (let j = 0; j < n; j++) {
-    const v = cv + (j - m) * step;
-    for (let kx = 0; kx < hw; kx++) {
-      const wgt = kx === 0 || kx === W / 2 ? 1 : 2;
-      const a = (2 * Math.PI * kx * v) / W;
-      kr[j * hw + kx] = wgt * Math.cos(a);
-      ki[j * hw + kx] = wgt * Math.sin(a);
+  // row kernel: e^{2πi fy u_i / H} (fy in numpy's fftfreq order)
+  const kr = new Float64Array(n * H), ki = new Float64Array(n * H);
+  for (let i = 0; i < n; i++) {
+    const u = cu + (i - m) * step;
+    for (let ky = 0; ky < H; ky++) {
+      const a = (2 * Math.PI * (ky < H / 2 ? ky : ky - H) * u) / H;
+      kr[i * H + ky] = Math.cos(a);
+      ki[i * H + ky] = Math.sin(a);
     }
   }
-  // T(ky, j) = Σ_kx P(ky, kx) · kernel(kx, j)
-  const tr = new Float64Array(H * n), ti = new Float64Array(H * n);
-  for (let ky = 0; ky < H; ky++) {
-    const row = 2 * hw * ky;
-    for (let j = 0; j < n; j++) {
-      const o = j * hw;
+  // T(kx, i) = Σ_ky P(kx, ky) · kernel(i, ky): P is stored column by column (fft.ts), so each sum runs over
+  // contiguous memory
+  const tr = new Float64Array(hw * n), ti = new Float64Array(hw * n);
+  for (let kx = 0; kx < hw; kx++) {
+    const col = 2 * H * kx;
+    for (let i = 0; i < n; i++) {
+      const o = i * H;
       let sr = 0, si = 0;
-      for (let kx = 0; kx < hw; kx++) {
-        const pr = P[row + 2 * kx], pi = P[row + 2 * kx + 1];
-        const cr = kr[o + kx], ci = ki[o + kx];
+      for (let ky = 0; ky < H; ky++) {
+        const pr = P[col + 2 * ky], pi = P[col + 2 * ky + 1];
+        const cr = kr[o + ky], ci = ki[o + ky];
         sr += pr * cr - pi * ci;
         si += pr * ci + pi * cr;
       }
-      tr[ky * n + j] = sr;
-      ti[ky * n + j] = si;
+      tr[kx * n + i] = sr;
+      ti[kx * n + i] = si;
     }
   }
-  // c(i, j) = Re Σ_ky T(ky, j) e^{2πi fy u_i / H}
+  // c(i, j) = Re Σ_kx weight(kx) · T(kx, i) · e^{2πi kx v_j / W}
   let best = -Infinity, bu = cu, bv = cv;
-  for (let i = 0; i < n; i++) {
-    const u = cu + (i - m) * step;
+  for (let j = 0; j < n; j++) {
+    const v = cv + (j - m) * step;
     const ac = new Float64Array(n);
-    for (let ky = 0; ky < H; ky++) {
-      const fy = ky < H / 2 ? ky : ky - H;
-      const a = (2 * Math.PI * fy * u) / H;
-      const c = Math.cos(a), s = Math.sin(a);
-      for (let j = 0; j < n; j++) ac[j] += tr[ky * n + j] * c - ti[ky * n + j] * s;
+    for (let kx = 0; kx < hw; kx++) {
+      const wgt = kx === 0 || kx === W / 2 ? 1 : 2;
+      const a = (2 * Math.PI * kx * v) / W;
+      const c = wgt * Math.cos(a), sn = wgt * Math.sin(a);
+      for (let i = 0; i < n; i++) ac[i] += tr[kx * n + i] * c - ti[kx * n + i] * sn;
     }
-    for (let j = 0; j < n; j++)
-      if (ac[j] > best) {
-        best = ac[j];
-        bu = u;
-        bv = cv + (j - m) * step;
+    for (let i = 0; i < n; i++)
+      if (ac[i] > best) {
+        best = ac[i];
+        bu = cu + (i - m) * step;
+        bv = v;
       }
   }
   return { u: bu, v: bv, c: best / (W * H) };
@@ -161,7 +172,7 @@ export function measureShift(ch1: ChannelArray, ch2: ChannelArray, width: number
   for (let i = 0; i < P.length; i += 2) {
     const br = B[i], bi = B[i + 1], ar = A[i], ai = -A[i + 1];
     const re = br * ar - bi * ai, im = br * ai + bi * ar;
-    const mag = Math.hypot(re, im);
+    const mag = Math.sqrt(re * re + im * im);
     P[i] = mag > 0 ? re / mag : 0;
     P[i + 1] = mag > 0 ? im / mag : 0;
   }

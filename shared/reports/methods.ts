@@ -32,6 +32,8 @@ export const CITATIONS: Record<string, Citation> = {
   mannWhitney: { key: 'Mann & Whitney 1947', text: 'Mann HB, Whitney DR (1947) On a test of whether one of two random variables is stochastically larger than the other. Ann. Math. Statist. 18:50–60. doi:10.1214/aoms/1177730491' },
   kruskal: { key: 'Kruskal & Wallis 1952', text: 'Kruskal WH, Wallis WA (1952) Use of ranks in one-criterion variance analysis. J. Am. Stat. Assoc. 47:583–621. doi:10.1080/01621459.1952.10483441' },
   anova: { key: 'Fisher 1925', text: 'Fisher RA (1925) Statistical Methods for Research Workers. Oliver and Boyd, Edinburgh (one-way analysis of variance).' },
+  guizarSicairos: { key: 'Guizar-Sicairos et al. 2008', text: 'Guizar-Sicairos M, Thurman ST, Fienup JR (2008) Efficient subpixel image registration algorithms. Opt. Lett. 33:156–158. doi:10.1364/OL.33.000156' },
+  unmixing: { key: 'Zimmermann et al. 2003', text: 'Zimmermann T, Rietdorf J, Pepperkok R (2003) Spectral imaging and its applications in live cell microscopy. FEBS Lett. 546:87–92. doi:10.1016/S0014-5793(03)00521-0' },
   bootstrap: { key: 'Efron 1979', text: 'Efron B (1979) Bootstrap methods: another look at the jackknife. Ann. Statist. 7:1–26. doi:10.1214/aos/1176344552' },
 };
 
@@ -201,6 +203,20 @@ export function methodsParagraph(snap: ReportSnapshot): string {
     parts.push(
       `Missing values: ${nan.pixels} pixel${nan.pixels === 1 ? '' : 's'} in ${nan.cells} cell${nan.cells === 1 ? '' : 's'} had no value (NaN) in at least one channel and ${nan.pixels === 1 ? 'was' : 'were'} left out of every pixel count, mean, threshold and coefficient.`,
     );
+  // 7. channel calibration (said only when some cells were corrected)
+  const cals = snap.calibrations;
+  if (cals && cals.applied.length > 0) {
+    const num = (v: number | null) => (v === null ? 'not given' : String(Number(v.toPrecision(6))));
+    const one = (a: (typeof cals.applied)[number]) => {
+      const shift = a.dx !== null && a.dy !== null ? `channel 2 shifted into register by dx = ${num(a.dx)} px, dy = ${num(a.dy)} px (measured by phase correlation with upsampled refinement, ${cite('guizarSicairos')}; bilinear interpolation, pixels whose position fell outside the image not measured)` : 'no shift';
+      const bleed = a.a21 !== null || a.a12 !== null ? `bleed-through removed by linear unmixing with a21 = ${num(a.a21 ?? 0)} and a12 = ${num(a.a12 ?? 0)} (${cite('unmixing')}; negative results set to 0)` : 'no bleed-through correction';
+      return `calibration v${a.version} of instrument ${a.instrument} for ${a.cells} cell${a.cells === 1 ? '' : 's'}: ${shift}, then ${bleed}`;
+    };
+    parts.push(
+      `Channel calibration: ${cals.applied.map(one).join('; ')}.` +
+        (cals.applied.length > 1 || cals.uncalibratedCells > 0 ? ` The measurements mix calibrations${cals.uncalibratedCells > 0 ? ` (${cals.uncalibratedCells} cell${cals.uncalibratedCells === 1 ? ' was' : 's were'} measured without one)` : ''}; compare them with care.` : ''),
+    );
+  }
   if (snap.anyProvisional) parts.push('Some measurements come from a recipe version that was not approved when it ran; these results are provisional.');
 
   const refs = used.map((k, i) => `[${i + 1}] ${CITATIONS[k].text}`);

@@ -26,6 +26,8 @@ export const FieldSummary = z.object({
   sampleFormat: z.enum(['uint', 'float']),
   channelNames: z.tuple([z.string().nullable(), z.string().nullable()]),
   pixelSizeUm: z.number().nullable(),
+  /** the instrument the field was recorded on (its approved calibration is what recipes apply), or null */
+  instrumentId: z.number().int().nullable(),
   facts: z.object({ ch1: ChannelFacts, ch2: ChannelFacts }),
   /** true when either channel has more than SATURATION_FLAG_FRACTION saturated or plateau pixels */
   saturated: z.boolean(),
@@ -34,6 +36,9 @@ export const FieldSummary = z.object({
   createdAt: z.string(),
 });
 export type FieldSummary = z.infer<typeof FieldSummary>;
+
+/** PUT /api/fields/:id/instrument: the instrument the field was recorded on, or null for none. */
+export const SetFieldInstrumentRequest = z.object({ instrumentId: z.number().int().positive().nullable() });
 
 export const FieldFile = z.object({
   sha256: z.string(),
@@ -71,6 +76,8 @@ export const UploadFieldPlan = z.object({
   name: z.string().trim().max(200).optional(),
   ch1: UploadChannelRef,
   ch2: UploadChannelRef,
+  /** the instrument that recorded the field (its approved calibration is what recipes apply) */
+  instrumentId: z.number().int().positive().nullable().optional(),
 });
 export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
 export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;

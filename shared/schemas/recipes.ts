@@ -152,6 +152,8 @@ export const RecipeSettings = z.object({
     .transform((a) => COEFFICIENTS.filter((c) => a.includes(c))),
   /** seed of the randomization test's generator (a run with the same seed repeats exactly) */
   seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
+  /** 'approved': align and unmix each field with its instrument's approved calibration before measuring */
+  calibration: z.enum(['none', 'approved']).default('none'),
   /** parameters of MICe/TICe (used when `coefficients` has 'mic') */
   mic: MicSetting.default({ alpha: 0.6, c: 15 }),
   /** spots, pairs within d and the chance placement test (off by default) */
@@ -162,9 +164,10 @@ export type RecipeSettingsInput = z.input<typeof RecipeSettings>;
 
 export const DEFAULT_RECIPE_SETTINGS: RecipeSettings = RecipeSettings.parse({});
 
-export const SETTING_KEYS = ['background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'mic', 'seed', 'objects'] as const;
+export const SETTING_KEYS = ['calibration', 'background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'mic', 'seed', 'objects'] as const;
 export type SettingKey = (typeof SETTING_KEYS)[number];
 export const SETTING_LABELS: Record<SettingKey, string> = {
+  calibration: 'Channel calibration',
   background: 'Background',
   saturation: 'Saturated pixels',
   threshold: 'Threshold',
@@ -233,6 +236,10 @@ const fmt = (n: number) => (Number.isInteger(n) ? String(n) : String(Number(n.to
 /** One plain sentence explaining the current value of one setting (the editor shows it; reports reuse it). */
 export function describeSetting(key: SettingKey, s: RecipeSettings): string {
   switch (key) {
+    case 'calibration':
+      return s.calibration === 'none'
+        ? 'Channels are measured as recorded: no shift or bleed-through correction.'
+        : "Each field is corrected with its instrument's approved calibration first: channel 2 is shifted into register by bilinear interpolation (pixels that fall outside are not measured), then bleed-through is removed by linear unmixing (negative results set to 0). Fields without an instrument or an approved calibration are not measured.";
     case 'background': {
       const b = s.background;
       if (b.method === 'none') return 'Raw intensities are used; no background is subtracted.';

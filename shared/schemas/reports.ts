@@ -243,6 +243,14 @@ export const ReportSnapshot = z.object({
   saturation: z.object({ maxFraction1: Num, maxFraction2: Num, fieldsWithSaturation: z.number().int() }),
   /** pixels of the reported cells left out because a channel holds NaN there, and in how many cells (absent in older reports) */
   nanPixels: z.object({ pixels: z.number().int().nonnegative(), cells: z.number().int().nonnegative() }).optional(),
+  /** the calibrations applied to the reported cells (provenance), with how many cells each; absent in older reports */
+  calibrations: z
+    .object({
+      applied: z.array(z.object({ id: z.number().int(), instrument: z.string(), version: z.number().int(), dx: Num, dy: Num, a21: Num, a12: Num, cells: z.number().int().nonnegative() })),
+      /** reported cells measured without a calibration */
+      uncalibratedCells: z.number().int().nonnegative(),
+    })
+    .optional(),
   methods: z.string(),
   cautions: z.array(z.string()),
 });

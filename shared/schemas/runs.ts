@@ -99,6 +99,11 @@ export const MeasurementProvenance = z.object({
   nanPixels: z.number().int().nonnegative().optional(),
   /** the objects section as applied (σ and d in pixels), when it was on; absent otherwise */
   objects: AppliedObjectSettings.optional(),
+  /** the calibration applied before measuring (recipe setting 'approved'); absent or null when none */
+  calibration: z
+    .object({ id: z.number().int(), instrumentId: z.number().int(), instrument: z.string(), version: z.number().int(), dx: z.number().nullable(), dy: z.number().nullable(), a21: z.number().nullable(), a12: z.number().nullable() })
+    .nullable()
+    .optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;

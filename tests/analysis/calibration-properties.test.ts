@@ -44,7 +44,6 @@ describe('fft (common practice: the DFT definition)', () => {
     const w = 16, h = 8, r = rng(3);
     const a = Float64Array.from({ length: w * h }, r), b = Float64Array.from({ length: w * h }, r);
     const { A, B } = realFft2dPair(a, b, w, h);
-    const hw = w / 2 + 1;
     for (const [ky, kx] of [[0, 0], [1, 2], [5, 8], [7, 3]]) {
       for (const [img, S] of [[a, A], [b, B]] as const) {
         let re = 0, im = 0;
@@ -54,8 +53,8 @@ describe('fft (common practice: the DFT definition)', () => {
             re += img[y * w + x] * Math.cos(t);
             im += img[y * w + x] * Math.sin(t);
           }
-        expect(S[2 * (ky * hw + kx)]).toBeCloseTo(re, 12);
-        expect(S[2 * (ky * hw + kx) + 1]).toBeCloseTo(im, 12);
+        expect(S[2 * (kx * h + ky)]).toBeCloseTo(re, 12);
+        expect(S[2 * (kx * h + ky) + 1]).toBeCloseTo(im, 12);
       }
     }
     const back = inverseRealFft2d(A, w, h);
@@ -143,6 +142,15 @@ describe('unmixChannels and bleedThroughSlope', () => {
       expect(u.t1[i]).toBeCloseTo(t1[i], 9);
       expect(u.t2[i]).toBeCloseTo(t2[i], 9);
     }
+  });
+  it('writing over channel 2 gives the same result as a new array', () => {
+    const o1 = new Float64Array([10, 200, 30, 0]), o2 = new Float64Array([5, 40, 300, 7]);
+    const fresh = unmixChannels(o1, o2, 0.1, 0.2);
+    const copy = o2.slice();
+    const reused = unmixChannels(o1, copy, 0.1, 0.2, { reuse: true });
+    expect(reused.t2).toBe(copy);
+    expect(Array.from(reused.t2)).toEqual(Array.from(fresh.t2));
+    expect(Array.from(reused.t1)).toEqual(Array.from(fresh.t1));
   });
   it('sets negative results to 0, keeps NaN, refuses coefficients outside [0, 1)', () => {
     const u = unmixChannels(new Float64Array([0, NaN, 100]), new Float64Array([50, 1, 0]), 0.5, 0.5);

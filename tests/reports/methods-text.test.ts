@@ -139,6 +139,7 @@ describe('recipe settings in words', () => {
       'z.slice': { ...baseSettings, z: { mode: 'slice', slice: 3 } },
       minCellPixels: { ...baseSettings, minCellPixels: 38 },
       seed: { ...baseSettings, seed: 4243 },
+      calibration: { ...baseSettings, calibration: 'approved' },
     };
     // settings stated only when their part is on (MICe computed, spots on): each variant against that part on
     const micOn: RecipeSettingsInput = { ...baseSettings, coefficients: ['pearson', 'manders', 'mic'], mic: { alpha: 0.6, c: 15 } };

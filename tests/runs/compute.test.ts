@@ -7,7 +7,7 @@ import { computeField, blockPixels, project, zRange, FieldJobError } from '../..
 import { selectZ } from '../../server/images/intake.js';
 import type { FieldJob } from '../../server/runs/job.js';
 import { RecipeSettings, describeSetting, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
-import { measureRegion } from '../../shared/analysis/index.js';
+import { alignChannel, measureRegion, unmixChannels } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { syntheticPair } from './helpers.js';
 import { COEFFICIENTS } from '../../shared/coefficients.js';
@@ -32,6 +32,8 @@ function job(settings: RecipeSettingsInput, cells: FieldJob['cells'], extra: Par
     settings: RecipeSettings.parse(settings),
     recipe: { id: 1, name: 'R', version: 1, status: 'approved' },
     provisional: false,
+    calibration: null,
+    calibrationProblem: null,
     ...extra,
   };
 }
@@ -160,5 +162,33 @@ describe('computeField', () => {
     // the same function serves the pixels/preview endpoints (selectZ 'mip')
     const sel = selectZ({ ch1: s, ch2: s, sizeZ: 3 }, 'mip');
     expect(Array.from(sel.ch1)).toEqual([3, 7, N, 5]);
+  });
+});
+
+describe('computeField with a calibration (recipe setting "approved")', () => {
+  const cal = { id: 7, instrumentId: 3, instrument: 'Scope', version: 2, dx: 1.25, dy: -0.6, a21: 0.1, a12: 0.05 };
+  const g = rect(40, 0, 24, 20); // reaches the top and right borders, which the shift drops
+  it('aligns channel 2, then unmixes, then measures; equals the engine on independently corrected channels; records the calibration', () => {
+    const [m] = computeField(job({ threshold: { method: 'none' }, calibration: 'approved' }, [{ id: 1, role: 'cell', geometry: g }], { calibration: cal }), { width: W, height: H, ch1: A, ch2: B });
+    const { t1, t2 } = unmixChannels(A, alignChannel(B, W, H, 1.25, -0.6), 0.1, 0.05);
+    const all = cellIndices(g, W, H);
+    const idx = all.filter((i) => !Number.isNaN(t2[i]));
+    const ref = measureRegion(t1, t2, Uint32Array.from(idx), { width: W, height: H, threshold: { method: 'none' } });
+    // columns x + 1.25 > 63 (2) and the row y − 0.6 < 0 (1) are not measured
+    expect(m.pixels).toBe(all.length - 2 * 20 - 22);
+    expect(m.pixels).toBe(ref.pixels);
+    for (const k of ['pearson', 'spearman', 'kendallTauB', 'mandersM1', 'overlap', 'icq'] as const) expect(m[k], k).toBe(ref[k]);
+    expect(m.provenance.calibration).toEqual(cal);
+    expect(m.provenance.nanPixels).toBe(2 * 20 + 22);
+  });
+  it('without the setting nothing is corrected, even when a calibration is present', () => {
+    const [m] = computeField(job({ threshold: { method: 'none' } }, [{ id: 1, role: 'cell', geometry: g }], { calibration: cal }), { width: W, height: H, ch1: A, ch2: B });
+    expect(m.pixels).toBe(cellIndices(g, W, H).length);
+    expect(m.provenance.calibration).toBeNull();
+  });
+  it('a field without an approved calibration fails with the reason instead of being measured uncorrected', () => {
+    const j = job({ calibration: 'approved' }, [{ id: 1, role: 'cell', geometry: g }], { calibrationProblem: 'instrument Scope of field F has no approved calibration' });
+    expect(() => computeField(j, { width: W, height: H, ch1: A, ch2: B })).toThrow(FieldJobError);
+    expect(() => computeField(j, { width: W, height: H, ch1: A, ch2: B })).toThrow(/Scope of field F has no approved calibration/);
   });
 });

@@ -85,7 +85,7 @@ describe('objects section in a run of a float field', () => {
       sources: [{ key: 'k', sha256: 'a'.repeat(64), channel: 1 }, { key: 'k', sha256: 'a'.repeat(64), channel: 2 }],
       cells: [{ id: 1, role: 'cell', geometry: { kind: 'rect', x: 2, y: 2, width: 20, height: 20 } }],
       settings: RecipeSettings.parse({ threshold: { method: 'none' }, objects: { enabled: true } }),
-      recipe: { id: 1, name: 'R', version: 1, status: 'approved' }, provisional: false,
+      recipe: { id: 1, name: 'R', version: 1, status: 'approved' }, provisional: false, calibration: null, calibrationProblem: null,
     };
     expect(() => computeFieldResult(job, { width: W, height: H, ch1, ch2 })).toThrow(/channel 2 of field "Float" has 2 pixels without one \(NaN\)/);
     ch2[5] = 10;

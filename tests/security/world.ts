@@ -6,7 +6,7 @@
  */
 import { eq } from 'drizzle-orm';
 import type { TestApp } from '../utils/app.js';
-import { outgoingMail, shareLinks } from '../../server/db/schema.js';
+import { calibrations, instruments, outgoingMail, shareLinks } from '../../server/db/schema.js';
 import { buildReportWorld, insertRun } from '../reports/fixtures.js';
 
 export interface ApiRoute {
@@ -55,6 +55,8 @@ export interface LabAEntities {
   fieldId: number;
   cellId: number;
   recipeId: number;
+  instrumentId: number;
+  calibrationId: number;
   runId: number;
   reportId: number;
   shareId: number;
@@ -80,6 +82,7 @@ export async function buildLabA(t: TestApp): Promise<LabAEntities> {
   const mail = t.ctx.db.select().from(outgoingMail).where(eq(outgoingMail.to, 'reader@example.org')).get()!;
   const tok = await bio.post('/api/tokens').send({ name: 'security tests', scope: 'read', expiresInDays: 1 });
   if (tok.status !== 201) throw new Error(`token: ${tok.status} ${JSON.stringify(tok.body)}`);
+  const instrument = t.ctx.db.insert(instruments).values({ name: 'Security scope', channel1: 'GFP', channel2: 'mCherry' }).returning().get();
   const token = /\/shared\/([A-Za-z0-9_-]+\.[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+)/.exec(mail.text)![1];
   return {
     studyId: t.world.studyA,
@@ -88,6 +91,8 @@ export async function buildLabA(t: TestApp): Promise<LabAEntities> {
     fieldId: rw.fieldIds[0],
     cellId: rw.cellIds[0][0],
     recipeId: rw.recipeId,
+    instrumentId: instrument.id,
+    calibrationId: t.ctx.db.insert(calibrations).values({ instrumentId: instrument.id, version: 1, status: 'draft', dx: 0.5, dy: -0.25 }).returning().get().id,
     runId,
     reportId: rep.body.id,
     shareId: link.id,
@@ -130,6 +135,8 @@ export function fillPath(path: string, e: LabAEntities, tokens: { share?: string
             fields: e.fieldId,
             cells: e.cellId,
             recipes: e.recipeId,
+            instruments: e.instrumentId,
+            calibrations: e.calibrationId,
             runs: e.runId,
             reports: e.reportId,
             shares: e.shareId,

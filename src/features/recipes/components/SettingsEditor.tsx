@@ -183,6 +183,18 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
         )}
       </div>
     ),
+    calibration: (
+      <Choice
+        name="calibration"
+        disabled={d}
+        value={s.calibration}
+        options={[
+          ['none', 'As recorded'],
+          ['approved', "Instrument's approved calibration"],
+        ]}
+        onChange={(v) => set({ calibration: v })}
+      />
+    ),
     saturation: (
       <Choice
         name="saturation"

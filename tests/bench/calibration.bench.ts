@@ -1,0 +1,91 @@
+/**
+ * Calibration benchmark. Targets on a 2048 × 2048 16-bit pair, one core: shift measurement (phase
+ * correlation + 1/100 px refinement) ≤ 400 ms; alignment (bilinear, sub-pixel shift) + unmixing ≤ 60 ms.
+ * Ratios against baselines measured in the same run:
+ *  (a) a direct spatial cross-correlation over the same ±8 px search window (Σ ch1(x)·ch2(x + δ) for every
+ *      integer δ; integer only, so it does less than the phase correlation and still costs more);
+ *  (b) alignment + unmixing written per pixel the straightforward way (floor, bounds and four reads per
+ *      pixel, then the 2×2 solve) against the engine's precomputed per-row/column weights.
+ * Also: the van Steensel curves within ±8 px (a diagnostic). Times are the best of several repeats, wall
+ * clock and CPU time of this process. Run: `npm run bench` (BENCH=calibration) or
+ * `npx tsx tests/bench/calibration.bench.ts [size]`.
+ */
+import { alignChannel, crossCorrelationCurves, measureShift, unmixChannels, Xoshiro128 } from '../../shared/analysis/index';
+
+function time(fn: () => unknown, repeats: number) {
+  let wall = Infinity, cpu = Infinity;
+  for (let r = 0; r < repeats; r++) {
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    fn();
+    wall = Math.min(wall, performance.now() - t0);
+    const c = process.cpuUsage(c0);
+    cpu = Math.min(cpu, (c.user + c.system) / 1000);
+  }
+  return { wall, cpu };
+}
+const fmt = (t: { wall: number; cpu: number }) => `${t.wall.toFixed(1)} ms wall, ${t.cpu.toFixed(1)} ms CPU`;
+
+const S = Number(process.argv[2] ?? 2048), N = Math.round((2000 * S * S) / (2048 * 2048));
+const DX = 2.37, DY = -1.62;
+/** A bead field: N Gaussian beads (σ 1.5 px) on a background with noise; channel 2's beads displaced by (DX, DY). */
+function field(dx: number, dy: number): Uint16Array {
+  const rng = new Xoshiro128(7);
+  const noise = new Xoshiro128(dx === 0 ? 1 : 2);
+  const f = new Float32Array(S * S);
+  for (let i = 0; i < f.length; i++) f[i] = 200 + 30 * (noise.nextFloat() + noise.nextFloat() + noise.nextFloat() - 1.5);
+  for (let k = 0; k < N; k++) {
+    const cx = 4 + rng.nextFloat() * (S - 8) + dx, cy = 4 + rng.nextFloat() * (S - 8) + dy, a = 300 + 900 * rng.nextFloat();
+    for (let y = Math.max(0, Math.floor(cy - 7)); y < Math.min(S, cy + 7); y++)
+      for (let x = Math.max(0, Math.floor(cx - 7)); x < Math.min(S, cx + 7); x++) f[y * S + x] += a * Math.exp(-((x - cx) ** 2 + (y - cy) ** 2) / 4.5);
+  }
+  return Uint16Array.from(f, (v) => Math.min(65535, Math.round(v)));
+}
+const a = field(0, 0), b = field(DX, DY);
+
+let got = measureShift(a, b, S, S);
+const shift = time(() => (got = measureShift(a, b, S, S)), 3);
+console.log(`${S}×${S}, ${N} beads, channel 2 displaced by (${DX}, ${DY}) px: measured (${got.dx}, ${got.dy}), peak ${got.peak?.toFixed(3)}`);
+console.log(`shift measurement: ${fmt(shift)} (target ≤ 400 ms)`);
+
+const M = 8;
+const direct = time(() => {
+  let best = -Infinity;
+  for (let ddy = -M; ddy <= M; ddy++)
+    for (let ddx = -M; ddx <= M; ddx++) {
+      let s = 0;
+      for (let y = Math.max(0, -ddy); y < Math.min(S, S - ddy); y++) {
+        const r1 = y * S, r2 = (y + ddy) * S + ddx;
+        for (let x = Math.max(0, -ddx); x < Math.min(S, S - ddx); x++) s += a[r1 + x] * b[r2 + x];
+      }
+      if (s > best) best = s;
+    }
+}, 1);
+console.log(`baseline (a) direct spatial cross-correlation over ±${M} px (integer shifts only): ${fmt(direct)}; ratio ${(direct.cpu / shift.cpu).toFixed(1)}× (CPU)`);
+
+const ccf = time(() => crossCorrelationCurves(a, b, S, S, M), 1);
+console.log(`van Steensel curves within ±${M} px (${2 * (2 * M + 1)} Pearson's r over the image): ${fmt(ccf)}`);
+
+const A21 = 0.12, A12 = 0.05;
+const fast = time(() => {
+  const al = alignChannel(b, S, S, DX, DY);
+  unmixChannels(a, al, A21, A12, { reuse: true });
+}, 5);
+const naive = time(() => {
+  const t1 = new Float64Array(S * S), t2 = new Float64Array(S * S);
+  const det = 1 - A12 * A21;
+  for (let j = 0; j < S; j++)
+    for (let i = 0; i < S; i++) {
+      const x = i + DX, y = j + DY, k = j * S + i;
+      let v = NaN;
+      if (x >= 0 && x <= S - 1 && y >= 0 && y <= S - 1) {
+        const x0 = Math.min(Math.floor(x), S - 2), y0 = Math.min(Math.floor(y), S - 2);
+        const fx = x - x0, fy = y - y0;
+        v = b[y0 * S + x0] * (1 - fy) * (1 - fx) + b[y0 * S + x0 + 1] * (1 - fy) * fx + b[(y0 + 1) * S + x0] * fy * (1 - fx) + b[(y0 + 1) * S + x0 + 1] * fy * fx;
+      }
+      const u = (a[k] - A12 * v) / det, w = (v - A21 * a[k]) / det;
+      t1[k] = u < 0 ? 0 : u;
+      t2[k] = w < 0 ? 0 : w;
+    }
+}, 3);
+console.log(`alignment + unmixing: ${fmt(fast)} (target ≤ 60 ms); baseline (b) per-pixel ${fmt(naive)}; ratio ${(naive.cpu / fast.cpu).toFixed(2)}× (CPU)`);
