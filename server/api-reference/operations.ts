@@ -12,6 +12,7 @@ import * as cells from '../../shared/schemas/cells.js';
 import { IdParam, LinkToken, OkResponse } from '../../shared/schemas/common.js';
 import * as compare from '../../shared/schemas/compare.js';
 import * as fields from '../../shared/schemas/fields.js';
+import * as notifications from '../../shared/schemas/notifications.js';
 import * as outbox from '../../shared/schemas/outbox.js';
 import * as people from '../../shared/schemas/people.js';
 import * as recipes from '../../shared/schemas/recipes.js';
@@ -192,6 +193,9 @@ export const OPERATIONS: Record<string, Operation> = {
   'GET /api/tokens': { summary: 'Your personal API tokens', query: null, body: null, response: N(tokens, 'TokenListResponse') },
   'POST /api/tokens': { summary: 'Create a personal API token (the secret is shown once)', query: null, body: N(tokens, 'CreateTokenRequest'), response: N(tokens, 'CreatedToken'), status: 201 },
   'DELETE /api/tokens/:id': { summary: 'Revoke a personal API token', query: null, body: null, response: N(tokens, 'TokenSummary') },
+
+  'GET /api/notifications': { summary: 'Which e-mail notifications you receive', query: null, body: null, response: N(notifications, 'NotificationSettings') },
+  'PUT /api/notifications': { summary: 'Choose which e-mail notifications you receive (the kinds listed are turned off)', query: null, body: N(notifications, 'UpdateNotificationsRequest'), response: N(notifications, 'NotificationSettings') },
 
   'GET /api/openapi.json': { summary: 'This API as an OpenAPI 3.1 document', query: null, body: null, response: { name: 'ApiDocument', schema: ApiDocument } },
 };

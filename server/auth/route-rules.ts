@@ -134,6 +134,10 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/tokens': 'session',
   'DELETE /api/tokens/:id': 'session',
 
+  // notifications.ts: the caller's own e-mail choices
+  'GET /api/notifications': 'signed-in',
+  'PUT /api/notifications': 'signed-in',
+
   // api-reference.ts
   'GET /api/openapi.json': 'signed-in',
 };
