@@ -86,6 +86,7 @@ export type GlobalAction =
   | 'create_study' // biologists
   | 'manage_users' // facility managers
   | 'read_outbox' // facility managers
+  | 'read_usage' // facility managers
   | 'propose_recipe' // anyone but collaborators
   | 'review_recipe' // facility managers
   | 'read_recipes'; // anyone but collaborators
@@ -97,6 +98,7 @@ export function can(user: SessionUser | undefined, action: GlobalAction): boolea
       return hasRole(user, 'biologist');
     case 'manage_users':
     case 'read_outbox':
+    case 'read_usage':
     case 'review_recipe':
       return hasRole(user, 'facility_manager');
     case 'propose_recipe':
@@ -117,6 +119,7 @@ const ACTION_WORDS: Record<StudyAction | GlobalAction, string> = {
   create_study: 'creating studies',
   manage_users: 'managing accounts and labs',
   read_outbox: 'reading the Outbox',
+  read_usage: 'reading facility usage',
   propose_recipe: 'proposing recipes',
   review_recipe: 'reviewing recipes',
   read_recipes: 'reading recipes',

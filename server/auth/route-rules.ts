@@ -138,6 +138,10 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/notifications': 'signed-in',
   'PUT /api/notifications': 'signed-in',
 
+  // usage.ts
+  'GET /api/usage': { global: 'read_usage' },
+  'GET /api/usage.csv': { global: 'read_usage' },
+
   // api-reference.ts
   'GET /api/openapi.json': 'signed-in',
 };
