@@ -23,6 +23,8 @@ import sharesRoutes from './routes/shares.js';
 import outboxRoutes from './routes/outbox.js';
 import tokensRoutes from './routes/tokens.js';
 import apiReferenceRoutes from './routes/api-reference.js';
+import notificationsRoutes from './routes/notifications.js';
+import usageRoutes from './routes/usage.js';
 
 const DEFAULT_CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
 
@@ -51,7 +53,7 @@ export function createApp(ctx: AppContext) {
     res.json({ ok: true });
   });
   const api = express.Router();
-  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, instrumentsRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes]) {
+  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, instrumentsRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes, notificationsRoutes, usageRoutes]) {
     api.use(r(ctx));
   }
   app.use('/api', api);

@@ -6,6 +6,7 @@ import type { FileStore, Mailer, RunQueue } from './services.js';
 import { createMailer } from './mail/transport.js';
 import { createFileStore } from './images/store.js';
 import { createRunQueue } from './runs/queue.js';
+import { notifyRunFinished } from './mail/notify.js';
 
 export interface AppContext {
   env: Env;
@@ -29,7 +30,9 @@ export async function createContext(env: Env): Promise<AppContext> {
     const mail = await createMailer({ db, smtpUrl: env.SMTP_URL, from: env.MAIL_FROM });
     closers.unshift(() => mail.close());
     const store = createFileStore(env);
-    const runs = await createRunQueue({ db, settings: env });
+    const onRunFinished = (runId: number) =>
+      void notifyRunFinished({ db, mail, env }, runId).catch((e: Error) => console.warn(`[notify] run ${runId}: ${e.message}`));
+    const runs = await createRunQueue({ db, settings: env, onRunFinished });
     closers.unshift(() => runs.close());
     return { env, db, mail, store, runs, dataVersion: 0, closers };
   } catch (e) {

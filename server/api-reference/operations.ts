@@ -13,6 +13,7 @@ import { IdParam, LinkToken, OkResponse } from '../../shared/schemas/common.js';
 import * as compare from '../../shared/schemas/compare.js';
 import * as fields from '../../shared/schemas/fields.js';
 import * as instruments from '../../shared/schemas/instruments.js';
+import * as notifications from '../../shared/schemas/notifications.js';
 import * as outbox from '../../shared/schemas/outbox.js';
 import * as people from '../../shared/schemas/people.js';
 import * as recipes from '../../shared/schemas/recipes.js';
@@ -21,6 +22,7 @@ import * as runs from '../../shared/schemas/runs.js';
 import * as shares from '../../shared/schemas/shares.js';
 import * as studies from '../../shared/schemas/studies.js';
 import * as tokens from '../../shared/schemas/tokens.js';
+import * as usage from '../../shared/schemas/usage.js';
 import { ApiDocument } from '../../shared/schemas/api-reference.js';
 import { PIXELS_CONTENT_TYPE } from '../../shared/pixels/codec.js';
 
@@ -207,6 +209,12 @@ export const OPERATIONS: Record<string, Operation> = {
   'GET /api/tokens': { summary: 'Your personal API tokens', query: null, body: null, response: N(tokens, 'TokenListResponse') },
   'POST /api/tokens': { summary: 'Create a personal API token (the secret is shown once)', query: null, body: N(tokens, 'CreateTokenRequest'), response: N(tokens, 'CreatedToken'), status: 201 },
   'DELETE /api/tokens/:id': { summary: 'Revoke a personal API token', query: null, body: null, response: N(tokens, 'TokenSummary') },
+
+  'GET /api/notifications': { summary: 'Which e-mail notifications you receive', query: null, body: null, response: N(notifications, 'NotificationSettings') },
+  'PUT /api/notifications': { summary: 'Choose which e-mail notifications you receive (the kinds listed are turned off)', query: null, body: N(notifications, 'UpdateNotificationsRequest'), response: N(notifications, 'NotificationSettings') },
+
+  'GET /api/usage': { summary: 'Facility usage per lab and month', query: N(usage, 'UsageQuery'), body: null, response: N(usage, 'UsageResponse') },
+  'GET /api/usage.csv': { summary: 'Facility usage per lab and month as CSV', query: N(usage, 'UsageQuery'), body: null, response: CSV('one row per lab and month') },
 
   'GET /api/openapi.json': { summary: 'This API as an OpenAPI 3.1 document', query: null, body: null, response: { name: 'ApiDocument', schema: ApiDocument } },
 };

@@ -13,7 +13,7 @@ export const INVITATION_DAYS = 7;
 export const hashToken = (token: string) => crypto.createHash('sha256').update(token).digest('hex');
 
 /** The public address links in e-mails point to: PUBLIC_URL, else the request's own origin. */
-export function publicOrigin(ctx: AppContext, req?: Request): string {
+export function publicOrigin(ctx: Pick<AppContext, 'env'>, req?: Request): string {
   if (ctx.env.PUBLIC_URL) return ctx.env.PUBLIC_URL.replace(/\/+$/, '');
   if (req) return `${req.protocol}://${req.get('host')}`;
   return `http://localhost:${ctx.env.PORT}`;

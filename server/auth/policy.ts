@@ -91,6 +91,7 @@ export type GlobalAction =
   | 'create_study' // biologists
   | 'manage_users' // facility managers
   | 'read_outbox' // facility managers
+  | 'read_usage' // facility managers
   | 'propose_recipe' // anyone but collaborators
   | 'review_recipe' // facility managers
   | 'read_recipes' // anyone but collaborators
@@ -106,6 +107,7 @@ export function can(user: SessionUser | undefined, action: GlobalAction): boolea
       return hasRole(user, 'biologist');
     case 'manage_users':
     case 'read_outbox':
+    case 'read_usage':
     case 'review_recipe':
     case 'manage_instruments':
     case 'review_calibration':
@@ -131,6 +133,7 @@ const ACTION_WORDS: Record<StudyAction | GlobalAction, string> = {
   create_study: 'creating studies',
   manage_users: 'managing accounts and labs',
   read_outbox: 'reading the Outbox',
+  read_usage: 'reading facility usage',
   propose_recipe: 'proposing recipes',
   review_recipe: 'reviewing recipes',
   read_recipes: 'reading recipes',

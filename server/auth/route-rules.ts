@@ -148,6 +148,14 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/tokens': 'session',
   'DELETE /api/tokens/:id': 'session',
 
+  // notifications.ts: the caller's own e-mail choices
+  'GET /api/notifications': 'signed-in',
+  'PUT /api/notifications': 'signed-in',
+
+  // usage.ts
+  'GET /api/usage': { global: 'read_usage' },
+  'GET /api/usage.csv': { global: 'read_usage' },
+
   // api-reference.ts
   'GET /api/openapi.json': 'signed-in',
 };

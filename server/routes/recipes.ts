@@ -7,6 +7,7 @@
 import { Router } from 'express';
 import { and, desc, eq, inArray, max } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
+import { notifyRecipe } from '../mail/notify.js';
 import { auditEvents, recipes, runs, users } from '../db/schema.js';
 import { can, hasRole, requireCan } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
@@ -241,7 +242,7 @@ export default function recipesRoutes(ctx: AppContext) {
   });
 
   for (const t of Object.keys(RECIPE_TRANSITIONS) as Transition[]) {
-    r.post(`/recipes/:id/${t}`, (req, res) => {
+    r.post(`/recipes/:id/${t}`, async (req, res) => {
       const rule = RECIPE_TRANSITIONS[t];
       requireCan(req.user, rule.reviewer ? 'review_recipe' : 'propose_recipe');
       const u = req.user!;
@@ -269,6 +270,7 @@ export default function recipesRoutes(ctx: AppContext) {
         audit(tx, u.id, t, next, { from: cur.status, to: rule.to, note: note ?? null });
         return next;
       });
+      await notifyRecipe(ctx, t, row, u);
       res.json(recipeDetail(ctx, u, row));
     });
   }

@@ -30,16 +30,19 @@ export class BullRunQueue implements RunQueue {
   private results!: Worker<FieldJobResult>;
   private events!: QueueEvents;
 
-  private constructor(private db: Db) {}
+  private constructor(
+    private db: Db,
+    private onRunFinished?: (runId: number) => void,
+  ) {}
 
-  static async create(db: Db, queueUrl: string) {
-    const q = new BullRunQueue(db);
+  static async create(db: Db, queueUrl: string, onRunFinished?: (runId: number) => void) {
+    const q = new BullRunQueue(db, onRunFinished);
     const connection = connectionOf(queueUrl);
     q.fields = new Queue<FieldJob>(FIELDS_QUEUE, { connection });
     q.results = new Worker<FieldJobResult>(
       RESULTS_QUEUE,
       async (job) => {
-        recordFieldResult(db, job.data);
+        recordFieldResult(db, job.data, onRunFinished);
       },
       { connection, concurrency: 1, removeOnComplete: { count: 0 }, removeOnFail: { count: 1000 } },
     );
@@ -67,7 +70,7 @@ export class BullRunQueue implements RunQueue {
       try {
         data = buildJob(this.db, w.runId, w.fieldId);
       } catch (e) {
-        recordFieldResult(this.db, { runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
+        recordFieldResult(this.db, { runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 }, this.onRunFinished);
         continue;
       }
       jobs.push({ name: 'field', data, opts: { jobId: jobIdOf(w.runId, w.fieldId), removeOnComplete: 1000, removeOnFail: 1000, attempts: 2 } });

@@ -31,6 +31,7 @@ export class PoolRunQueue implements RunQueue {
   constructor(
     private db: Db,
     settings: RunQueueSettings,
+    private onRunFinished?: (runId: number) => void,
   ) {
     this.workers = settings.WORKERS;
     this.pool = new Piscina({
@@ -98,7 +99,7 @@ export class PoolRunQueue implements RunQueue {
   private record(res: FieldJobResult) {
     if (this.closed) return;
     try {
-      recordFieldResult(this.db, res);
+      recordFieldResult(this.db, res, this.onRunFinished);
     } catch (e) {
       // the database refused (e.g. closing); the field stays running and resume() picks it up
       console.warn(`[runs] could not record field ${res.fieldId} of run ${res.runId}: ${(e as Error).message}`);

@@ -8,12 +8,13 @@ import type { Db } from '../db/client.js';
 import type { RunQueue, RunQueueSettings } from '../services.js';
 import { PoolRunQueue } from './pool.js';
 
-export async function createRunQueue(deps: { db: Db; settings: RunQueueSettings }): Promise<RunQueue> {
-  const { db, settings } = deps;
+/** `onRunFinished` is called once when a field's result finishes its run (done, failed or partial). */
+export async function createRunQueue(deps: { db: Db; settings: RunQueueSettings; onRunFinished?: (runId: number) => void }): Promise<RunQueue> {
+  const { db, settings, onRunFinished } = deps;
   if (settings.QUEUE_URL) {
     // loaded only when used: BullMQ and its Redis client take most of a second to import
     const { BullRunQueue } = await import('./bullmq.js');
-    return BullRunQueue.create(db, settings.QUEUE_URL);
+    return BullRunQueue.create(db, settings.QUEUE_URL, onRunFinished);
   }
-  return new PoolRunQueue(db, settings);
+  return new PoolRunQueue(db, settings, onRunFinished);
 }

@@ -145,7 +145,7 @@ export function markFieldStarted(db: Db, runId: number, fieldId: number, fieldNa
  * Writes a field's result in one transaction. Returns false when the field was already finished
  * (a duplicate delivery), so nothing is written twice.
  */
-export function recordFieldResult(db: Db, result: FieldJobResult): boolean {
+export function recordFieldResult(db: Db, result: FieldJobResult, onRunFinished?: (runId: number) => void): boolean {
   const wrote = db.transaction((tx) => {
     const rf = tx.select().from(runFields).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).get();
     if (!rf || rf.status === 'done' || rf.status === 'failed') return false;
@@ -170,6 +170,8 @@ export function recordFieldResult(db: Db, result: FieldJobResult): boolean {
     refreshRun(tx, result.runId);
     return true;
   });
+  // this result finished the run (a duplicate delivery wrote nothing, so it cannot finish it twice)
+  if (wrote && onRunFinished && db.select({ s: runs.status }).from(runs).where(eq(runs.id, result.runId)).get()?.s.match(/^(done|failed|partial)$/)) onRunFinished(result.runId);
   return wrote;
 }
 

@@ -12,6 +12,7 @@ const NAV: { to: string; label: string; roles?: Role[] }[] = [
   { to: '/runs', label: 'Runs', roles: ['microscopist', 'facility_manager', 'biologist'] },
   { to: '/people', label: 'People & labs', roles: ['facility_manager'] },
   { to: '/outbox', label: 'Outbox', roles: ['facility_manager'] },
+  { to: '/usage', label: 'Facility usage', roles: ['facility_manager'] },
   { to: '/account', label: 'Account' },
   { to: '/api-reference', label: 'API reference' },
 ];

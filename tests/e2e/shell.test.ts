@@ -18,7 +18,7 @@ describe('demo accounts in the browser', () => {
   it('facility manager: review queue, people, outbox', async () => {
     const page = await e2e.page();
     await signIn(page, e2e.srv, 'manager@demo.test');
-    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Account']);
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Facility usage', 'Account', 'API reference']);
     await page.getByRole('heading', { name: 'Facility', exact: true }).waitFor();
     await page.getByText('Recipes waiting for review').waitFor();
     await shot(page, 'shell-manager-home');
@@ -29,6 +29,12 @@ describe('demo accounts in the browser', () => {
     await page.getByRole('link', { name: 'Outbox' }).click();
     await page.getByRole('heading', { name: 'Outbox' }).waitFor();
     await shot(page, 'shell-manager-outbox');
+    await page.getByRole('link', { name: 'Facility usage' }).click();
+    await page.getByRole('heading', { name: 'Facility usage' }).waitFor();
+    await page.getByRole('table').waitFor();
+    await page.getByRole('link', { name: 'API reference' }).click();
+    await page.getByRole('heading', { name: 'API reference' }).waitFor();
+    await page.getByText(/^\d+ of \d+ routes$/).waitFor(); // the real document, parsed by the shared schema
     expect(page.errors).toEqual([]);
     await page.context().close();
   });
@@ -36,7 +42,7 @@ describe('demo accounts in the browser', () => {
   it('microscopist: fields and runs on Home; no people or outbox', async () => {
     const page = await e2e.page();
     await signIn(page, e2e.srv, 'microscopist@demo.test');
-    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account', 'API reference']);
     await page.getByRole('heading', { name: 'Imaging', exact: true }).waitFor();
     await page.getByRole('heading', { name: 'Fields waiting for cells' }).waitFor();
     await shot(page, 'shell-microscopist-home');
@@ -49,7 +55,7 @@ describe('demo accounts in the browser', () => {
   it('biologist: own studies on Home; adds, renames, moves and deletes a condition', async () => {
     const page = await e2e.page();
     await signIn(page, e2e.srv, 'biologist@demo.test');
-    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account']);
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Runs', 'Account', 'API reference']);
     await page.getByRole('heading', { name: 'Your studies', exact: true }).waitFor();
     await shot(page, 'shell-biologist-home');
     await page.getByRole('link', { name: 'Studies' }).click();
@@ -88,7 +94,7 @@ describe('demo accounts in the browser', () => {
   it('collaborator: only what was shared; signs out', async () => {
     const page = await e2e.page();
     await signIn(page, e2e.srv, 'collaborator@demo.test');
-    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Account']);
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Account', 'API reference']);
     await page.getByRole('heading', { name: 'Shared with you', exact: true }).waitFor();
     await shot(page, 'shell-collaborator-home');
     await page.getByRole('button', { name: 'Sign out' }).click();

@@ -1,8 +1,9 @@
-/** Route module: Account: who you are here, your password and your API tokens. */
+/** Route module: Account: who you are here, your password, your e-mail notices and your API tokens. */
 import { useMe } from '@/features/auth';
 import { ChangePasswordForm } from '@/features/auth';
 import { ROLE_DUTIES, RoleBadges } from '@/features/auth';
 import { ApiTokensSection } from '@/features/tokens';
+import { NotificationsSection } from '@/features/notifications';
 import { Card } from '@/components/Card';
 import { PageHeader } from '@/components/PageHeader';
 import { Loading } from '@/components/Spinner';
@@ -34,6 +35,9 @@ export function Component() {
         </Card>
         <Card title="Password">
           <ChangePasswordForm email={u.email} />
+        </Card>
+        <Card title="E-mail notices" className="lg:col-span-2">
+          <NotificationsSection />
         </Card>
         <Card title="API tokens" className="lg:col-span-2">
           <ApiTokensSection />
