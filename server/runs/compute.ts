@@ -4,7 +4,11 @@
  * Used alike by the in-process pool threads (pool-worker.ts) and the BullMQ worker (worker-main.ts).
  *
  * Decisions (2026-12-01), stated in each setting's sentence (shared/schemas/recipes.ts describeSetting):
- * - z 'range' and 'mip' are maximum-intensity projections over the chosen slices.
+ * - z 'range' and 'mip' are maximum-intensity projections over the chosen slices; 'volume' (2026-12-02, the
+ *   default) measures every slice voxel by voxel in 3D: the slices are one flat array (`concatSlices`) and each
+ *   cell's and background region's outline is extruded over every slice (`extrudeIndices`); pixel counts,
+ *   means, saturated fractions and field thresholds are then over voxels. The randomization test scrambles
+ *   2-D blocks, so a stack measured in 3D with the test switched on is refused (the field fails with a message).
  * - saturation: a value equal to the largest representable value of the bit depth (integer data) is
  *   saturated; float data has no saturation level (fractions null). 'exclude' drops pixels saturated in
  *   either channel before thresholds and coefficients.
@@ -19,13 +23,13 @@
  *   means, background-region means, thresholds (per cell and over the field) and coefficients. How many of a
  *   cell's pixels were left out this way is recorded in the provenance (`nanPixels`).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, extrudeIndices, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, type CoefficientValues } from '../../shared/coefficients.js';
 import type { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../services.js';
 import { decodeChannel } from '../images/decode.js';
-import { project } from '../images/projection.js';
+import { concatSlices, project } from '../images/projection.js';
 import type { FieldJob, FieldJobResult, MeasurementValues } from './job.js';
 import { plural } from '../../shared/format/plural.js';
 
@@ -34,6 +38,8 @@ export { ENGINE_VERSION };
 export interface FieldPixels {
   width: number;
   height: number;
+  /** planes in ch1/ch2 (z 'volume': the field's slices; otherwise, and when absent, 1) */
+  depth?: number;
   ch1: ChannelArray;
   ch2: ChannelArray;
 }
@@ -45,12 +51,13 @@ export class FieldJobError extends Error {
 export { project };
 
 export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] {
-  const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1];
+  const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1]; // mip, volume: every slice
   if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${plural(sizeZ, 'slice')}`);
   return [a, b];
 }
 
-export const describeZ = (z: RecipeSettings['z']) => (z.mode === 'slice' ? `slice ${z.slice}` : z.mode === 'range' ? `mip ${z.from}-${z.to}` : 'mip all');
+/** The z handling in a measurement's provenance; `depth` planes were measured (z 'volume' on one plane is that plane). */
+export const describeZ = (z: RecipeSettings['z'], depth = 1) => (z.mode === 'volume' ? (depth > 1 ? `3D 0-${depth - 1}` : 'slice 0') : z.mode === 'slice' ? `slice ${z.slice}` : z.mode === 'range' ? `mip ${z.from}-${z.to}` : 'mip all');
 
 /** Reads and decodes both channels of a job's field from the file store, applying the z handling. */
 export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<FieldPixels> {
@@ -66,9 +73,12 @@ export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<Fi
     const d = await decodeChannel(new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength), src.channel);
     if (d.width !== job.width || d.height !== job.height)
       throw new FieldJobError(`stored file ${src.key} is ${d.width}×${d.height}, the field record says ${job.width}×${job.height}`);
-    out.push(project(d.slices as ChannelArray[], from, Math.min(to, d.slices.length - 1)));
+    const last = Math.min(to, d.slices.length - 1);
+    out.push(job.settings.z.mode === 'volume' ? concatSlices(d.slices as ChannelArray[], from, last) : project(d.slices as ChannelArray[], from, last));
   }
-  return { width: job.width, height: job.height, ch1: out[0], ch2: out[1] };
+  const depth = out[0].length / (job.width * job.height);
+  if (out[1].length !== out[0].length) throw new FieldJobError(`the two channels of field "${job.fieldName}" have ${depth} and ${out[1].length / (job.width * job.height)} slices`);
+  return { width: job.width, height: job.height, depth, ch1: out[0], ch2: out[1] };
 }
 
 const isIntegerArray = (a: ChannelArray) => !(a instanceof Float32Array || a instanceof Float64Array);
@@ -136,6 +146,15 @@ const nullCoefficients = Object.fromEntries(COEFFICIENTS.filter((c) => c.key !==
 export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): MeasurementValues[] {
   const s = job.settings;
   const { width, height } = px;
+  const plane = width * height;
+  const depth = px.depth ?? 1;
+  if (px.ch1.length !== plane * depth || px.ch2.length !== plane * depth)
+    throw new FieldJobError(`field "${job.fieldName}": ${px.ch1.length} and ${px.ch2.length} pixels do not make ${depth} slice${depth === 1 ? '' : 's'} of ${width}×${height}`);
+  /** a stored outline's pixels on every measured slice */
+  const voxelsOf = (geometry: Parameters<typeof cellIndices>[0]) => {
+    const inPlane = cellIndices(geometry, width, height);
+    return depth === 1 ? inPlane : extrudeIndices(inPlane, plane, 0, depth - 1);
+  };
   const raw1 = px.ch1;
   const raw2 = px.ch2;
   const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
@@ -148,9 +167,9 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
     bg2 = s.background.ch2;
   } else if (s.background.method === 'region') {
     const regions = job.cells.filter((c) => c.role === 'background');
-    const seen = new Uint8Array(width * height);
+    const seen = new Uint8Array(plane * depth);
     const idx: number[] = [];
-    for (const r of regions) for (const i of cellIndices(r.geometry, width, height)) if (!seen[i]) (seen[i] = 1), idx.push(i);
+    for (const r of regions) for (const i of voxelsOf(r.geometry)) if (!seen[i]) (seen[i] = 1), idx.push(i);
     if (idx.length === 0) throw new FieldJobError(`the recipe subtracts the mean of a marked background region, but field "${job.fieldName}" has none marked`);
     const valued = measurable(raw1, raw2, Uint32Array.from(idx));
     if (valued.length === 0)
@@ -162,15 +181,17 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   const ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
 
   const block = blockPixels(s, job.pixelSizeUm);
+  if (block != null && depth > 1)
+    throw new FieldJobError(`field "${job.fieldName}" is measured in 3D over ${depth} slices, but the randomization test scrambles 2-D blocks; measure one slice or a projection, or switch the test off`);
   const want = new Set(s.coefficients);
   const slow = COEFFICIENTS.some((c) => c.slow && c.recipeChoice !== null && want.has(c.recipeChoice));
   const threshold = thresholdOptions(s.threshold);
-  const z = describeZ(s.z);
+  const z = describeZ(s.z, depth);
 
   const measured = job.cells
     .filter((c) => c.role === 'cell')
     .map((cell) => {
-      const all = cellIndices(cell.geometry, width, height);
+      const all = voxelsOf(cell.geometry);
       let idx: Uint32Array = measurable(ch1, ch2, all);
       const nanPixels = all.length - idx.length;
       if (s.saturation === 'exclude' && sat != null) {
@@ -183,7 +204,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   // field-wide thresholds over the union of the measured cells
   let fieldThresholds: ThresholdInfo | null = null;
   if (s.thresholdScope === 'field' && (s.threshold.method === 'otsu' || s.threshold.method === 'costes')) {
-    const m = new Uint8Array(width * height);
+    const m = new Uint8Array(plane * depth);
     for (const c of measured) if (c.idx.length >= Math.max(1, s.minCellPixels)) for (const i of c.idx) m[i] = 1;
     let n = 0;
     for (let i = 0; i < m.length; i++) n += m[i];

@@ -33,6 +33,7 @@ export { jointHistogram, histogram1d } from './histogram';
 export { chiSquaredDistance, earthMoversDistance1d } from './distances';
 export { rasterize, fillPolygon, fillEllipse, maskToIndices, type Shape, type Point } from './rasterize';
 export { labelRegions, type LabelRegion } from './labels';
+export { extrudeIndices } from './volume';
 export { NeumaierSum, neumaierSum, FenwickCount, Fenwick4 } from './numeric';
 export { Xoshiro128 } from './prng';
 

@@ -60,6 +60,8 @@ export const RandomizationSetting = z.object({
 export type RandomizationSetting = z.infer<typeof RandomizationSetting>;
 
 export const ZSetting = z.discriminatedUnion('mode', [
+  /** every slice, voxel by voxel (3D): a cell's outline applies to every slice (the default; single-plane fields: their one slice) */
+  z.object({ mode: z.literal('volume') }),
   /** one slice, 0-based */
   z.object({ mode: z.literal('slice'), slice: z.number().int().min(0).default(0) }),
   /** maximum-intensity projection of slices from..to (0-based, inclusive) */
@@ -82,7 +84,7 @@ export const RecipeSettings = z.object({
   /** Otsu / Costes thresholds computed for each cell over its own pixels, or once per field over the union of its cells */
   thresholdScope: z.enum(['cell', 'field']).default('cell'),
   randomization: RandomizationSetting.default({ enabled: false, count: 200, blockSize: { kind: 'pixels', pixels: 3 } }),
-  z: ZSetting.default({ mode: 'slice', slice: 0 }),
+  z: ZSetting.default({ mode: 'volume' }),
   /** cells with fewer measured pixels get a measurement row with every coefficient null */
   minCellPixels: z.number().int().min(0).max(100_000_000).default(20),
   coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...COEFFICIENTS])
@@ -147,6 +149,7 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
     }
     case 'z': {
       const z = s.z;
+      if (z.mode === 'volume') return 'Every slice of each stack is measured voxel by voxel in 3D, each cell outline applying to every slice (the only slice for single-plane fields).';
       if (z.mode === 'slice') return `Slice ${z.slice + 1} of each stack is measured (the only slice for single-plane fields).`;
       if (z.mode === 'range') return `The maximum-intensity projection of slices ${z.from + 1} to ${z.to + 1} is measured.`;
       return 'The maximum-intensity projection of all slices is measured.';

@@ -209,11 +209,12 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
           disabled={d}
           value={s.z.mode}
           options={[
+            ['volume', 'Every slice, voxel by voxel (3D)'],
             ['slice', 'One slice'],
             ['range', 'Projection of a range'],
             ['mip', 'Projection of all slices'],
           ]}
-          onChange={(m) => set({ z: m === 'slice' ? { mode: 'slice', slice: 0 } : m === 'range' ? { mode: 'range', from: 0, to: 0 } : { mode: 'mip' } })}
+          onChange={(m) => set({ z: m === 'volume' ? { mode: 'volume' } : m === 'slice' ? { mode: 'slice', slice: 0 } : m === 'range' ? { mode: 'range', from: 0, to: 0 } : { mode: 'mip' } })}
         />
         {s.z.mode === 'slice' && <Num label="Slice (1 = first)" disabled={d} step="1" min={1} value={s.z.slice + 1} onChange={(n) => set({ z: { mode: 'slice', slice: Math.max(0, Math.round(n) - 1) } })} />}
         {s.z.mode === 'range' &&
