@@ -142,6 +142,8 @@ export const fields = sqliteTable('fields', {
   bitDepth: integer('bit_depth').notNull(),
   sampleFormat: text('sample_format', { enum: ['uint', 'float'] }).notNull(),
   pixelSizeUm: real('pixel_size_um'),
+  /** distance between z slices in µm (OME PhysicalSizeZ), null when unknown or a single plane */
+  zStepUm: real('z_step_um'),
   facts: text('facts', { mode: 'json' }).$type<{ ch1: ChannelFacts; ch2: ChannelFacts }>().notNull(),
   status: text('status', { enum: ['ready', 'deleted'] }).notNull().default('ready'),
   uploadedBy: integer('uploaded_by').references(() => users.id),

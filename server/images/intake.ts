@@ -142,6 +142,7 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
           bitDepth: stack.bitDepth,
           sampleFormat: stack.sampleFormat,
           pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? null,
+          zStepUm: stack.sizeZ > 1 ? (stack.info1.zStepUm ?? stack.info2.zStepUm ?? null) : null,
           facts,
           uploadedBy: req.userId ?? null,
         })

@@ -45,6 +45,7 @@ export function toFieldSummary(f: FieldRow): FieldSummary {
     sampleFormat: f.sampleFormat,
     channelNames: f.channelNames,
     pixelSizeUm: f.pixelSizeUm ?? null,
+    zStepUm: f.zStepUm ?? null,
     facts: f.facts,
     saturated: flag(f.facts.ch1) || flag(f.facts.ch2),
     status: f.status,

@@ -26,6 +26,8 @@ export const FieldSummary = z.object({
   sampleFormat: z.enum(['uint', 'float']),
   channelNames: z.tuple([z.string().nullable(), z.string().nullable()]),
   pixelSizeUm: z.number().nullable(),
+  /** distance between z slices in µm (from OME-XML), null when unknown or a single plane */
+  zStepUm: z.number().nullable(),
   facts: z.object({ ch1: ChannelFacts, ch2: ChannelFacts }),
   /** true when either channel has more than SATURATION_FLAG_FRACTION saturated or plateau pixels */
   saturated: z.boolean(),
