@@ -7,8 +7,9 @@
  * - z 'range' and 'mip' are maximum-intensity projections over the chosen slices; 'volume' (2026-12-02, the
  *   default) measures every slice voxel by voxel in 3D: the slices are one flat array (`concatSlices`) and each
  *   cell's and background region's outline is extruded over every slice (`extrudeIndices`); pixel counts,
- *   means, saturated fractions and field thresholds are then over voxels. The randomization test scrambles
- *   2-D blocks, so a stack measured in 3D with the test switched on is refused (the field fails with a message).
+ *   means, saturated fractions and field thresholds are then over voxels. The randomization test then
+ *   scrambles 3-D blocks (`blockSlices`: the block depth in slices, given or from the PSF's axial width and
+ *   the z step); without a block depth the field fails with a message rather than guessing one.
  * - saturation: a value equal to the largest representable value of the bit depth (integer data) is
  *   saturated; float data has no saturation level (fractions null). 'exclude' drops pixels saturated in
  *   either channel before thresholds and coefficients.
@@ -139,6 +140,22 @@ export function blockPixels(s: RecipeSettings, fieldPixelSizeUm: number | null):
   return Math.max(1, Math.round(b.psfWidthUm / px));
 }
 
+/**
+ * Block depth of the randomization test in slices, for a stack measured in 3D: the recipe's `slices`, or
+ * round(psfDepthUm / z step) with the recipe's z step or the field's. Missing values fail the field.
+ */
+export function blockSlices(s: RecipeSettings, fieldZStepUm: number | null, fieldName = 'the field'): number {
+  const b = s.randomization.blockSize;
+  if (b.kind === 'pixels') {
+    if (b.slices === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the randomization blocks have no depth; give the block depth in slices, or measure one slice or a projection`);
+    return b.slices;
+  }
+  if (b.psfDepthUm === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the recipe gives no axial point-spread width for the randomization blocks`);
+  const step = b.zStepUm ?? fieldZStepUm;
+  if (!step) throw new FieldJobError(`the randomization block depth comes from the axial point-spread width, but neither the recipe nor ${fieldName} gives the z step between slices`);
+  return Math.max(1, Math.round(b.psfDepthUm / step));
+}
+
 /** Every registry measure but the pixel count, null: the row of a cell too small to measure. */
 const nullCoefficients = Object.fromEntries(COEFFICIENTS.filter((c) => c.key !== 'pixels').map((c) => [c.key, null])) as Omit<CoefficientValues, 'pixels'>;
 
@@ -181,8 +198,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   const ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
 
   const block = blockPixels(s, job.pixelSizeUm);
-  if (block != null && depth > 1)
-    throw new FieldJobError(`field "${job.fieldName}" is measured in 3D over ${depth} slices, but the randomization test scrambles 2-D blocks; measure one slice or a projection, or switch the test off`);
+  const blockZ = block != null && depth > 1 ? blockSlices(s, job.zStepUm ?? null, `field "${job.fieldName}"`) : 1;
   const want = new Set(s.coefficients);
   const slow = COEFFICIENTS.some((c) => c.slow && c.recipeChoice !== null && want.has(c.recipeChoice));
   const threshold = thresholdOptions(s.threshold);
@@ -259,7 +275,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       width,
       height,
       threshold: fieldThresholds ?? threshold,
-      randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed } : undefined,
+      randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed, depth, blockDepth: blockZ } : undefined,
       skipSlow: !slow,
     });
     provenance.thresholds = { method: r.thresholds.method, ch1: r.thresholds.ch1, ch2: r.thresholds.ch2 };

@@ -127,7 +127,7 @@ export function measureRegion(ch1: ChannelArray, ch2: ChannelArray, region: Regi
   if (rz && (rz.count ?? 200) > 0) {
     const width = options.width;
     if (width === undefined) throw new RangeError('the randomization test needs the image width');
-    const height = options.height ?? ch1.length / width;
+    const height = options.height ?? ch1.length / (width * (rz.depth ?? 1));
     let indices: ArrayLike<number> | null = null;
     if (spec?.kind === 'indices') indices = spec.indices;
     else if (spec?.kind === 'mask') {

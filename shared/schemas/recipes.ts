@@ -46,9 +46,20 @@ export const ThresholdSetting = z.discriminatedUnion('method', [
 export type ThresholdSetting = z.infer<typeof ThresholdSetting>;
 
 export const BlockSizeSetting = z.discriminatedUnion('kind', [
-  z.object({ kind: z.literal('pixels'), pixels: z.number().int().min(1).max(256) }),
-  /** block edge = round(psfWidthUm / pixel size); pixel size from the recipe, or the field's when null */
-  z.object({ kind: z.literal('psf'), psfWidthUm: z.number().positive().max(100), pixelSizeUm: z.number().positive().max(100).nullable().default(null) }),
+  /** `slices`: block extent in z for stacks measured in 3D (required there) */
+  z.object({ kind: z.literal('pixels'), pixels: z.number().int().min(1).max(256), slices: z.number().int().min(1).max(256).optional() }),
+  /**
+   * block edge = round(psfWidthUm / pixel size); pixel size from the recipe, or the field's when null. For
+   * stacks measured in 3D, block depth = round(psfDepthUm / z step) slices (the PSF's axial width; required
+   * there), z step from the recipe or the field's.
+   */
+  z.object({
+    kind: z.literal('psf'),
+    psfWidthUm: z.number().positive().max(100),
+    pixelSizeUm: z.number().positive().max(100).nullable().default(null),
+    psfDepthUm: z.number().positive().max(1000).optional(),
+    zStepUm: z.number().positive().max(1000).nullable().optional(),
+  }),
 ]);
 export type BlockSizeSetting = z.infer<typeof BlockSizeSetting>;
 
@@ -143,8 +154,8 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
       if (!r.enabled) return 'No randomization test is run.';
       const block =
         r.blockSize.kind === 'pixels'
-          ? `${r.blockSize.pixels} × ${r.blockSize.pixels}-pixel blocks`
-          : `blocks as wide as the point-spread function (${fmt(r.blockSize.psfWidthUm)} µm at ${r.blockSize.pixelSizeUm == null ? "the field's pixel size" : `${fmt(r.blockSize.pixelSizeUm)} µm per pixel`})`;
+          ? `${r.blockSize.pixels} × ${r.blockSize.pixels}-pixel blocks${r.blockSize.slices ? ` (${r.blockSize.slices} slices deep in stacks measured in 3D)` : ''}`
+          : `blocks as wide as the point-spread function (${fmt(r.blockSize.psfWidthUm)} µm at ${r.blockSize.pixelSizeUm == null ? "the field's pixel size" : `${fmt(r.blockSize.pixelSizeUm)} µm per pixel`}${r.blockSize.psfDepthUm ? `; in stacks measured in 3D as deep as its axial width, ${fmt(r.blockSize.psfDepthUm)} µm at ${r.blockSize.zStepUm == null ? "the field's z step" : `${fmt(r.blockSize.zStepUm)} µm between slices`}` : ''})`;
       return `Channel 1 is scrambled in ${block} ${r.count} times and the fraction of scrambles with Pearson's r at least the observed one is reported (Costes et al. 2004).`;
     }
     case 'z': {

@@ -103,10 +103,32 @@ describe('recipes: z "every slice, voxel by voxel (3D)"', () => {
     expect(flat[0].threshold1).toBe(rows[0].threshold1);
     expect(flat[0].threshold2).toBe(rows[0].threshold2);
   });
-  it('the randomization test (2-D blocks) on a stack measured in 3D is refused with a message', async () => {
-    const zeros = { width: W, height: H, depth: NZ, ch1: new Uint16Array(W * H * NZ), ch2: new Uint16Array(W * H * NZ) };
-    expect(() => computeField(job({ ...manual, randomization: { enabled: true, count: 5 } }), zeros)).toThrow(FieldJobError);
-    expect(() => computeField(job({ ...manual, randomization: { enabled: true, count: 5 } }), { width: W, height: H, depth: NZ, ch1: new Uint16Array(W * H * NZ), ch2: new Uint16Array(W * H * NZ) })).toThrow(/measured in 3D over 5 slices, but the randomization test scrambles 2-D blocks/);
+  it('the randomization test scrambles 3-D blocks: depth given in slices, or from the axial PSF width and the z step', async () => {
+    const v = await volume();
+    const run = (blockSize: RecipeSettingsInput['randomization'] extends infer R ? (R extends { blockSize?: infer B } ? B : never) : never, extra: Partial<FieldJob> = {}) =>
+      computeField(job({ ...manual, randomization: { enabled: true, count: 19, blockSize }, seed: 3 }, extra), v);
+    const a = run({ kind: 'pixels', pixels: 3, slices: 2 });
+    for (const r of a) {
+      expect(r.provenance.randomizationCount).toBe(19);
+      expect(r.randomizationP!).toBeGreaterThan(0);
+      expect(r.randomizationP!).toBeLessThanOrEqual(1);
+    }
+    // 0.7 µm axial width at the field's 0.35 µm z step = 2 slices: the same blocks, the same numbers
+    const b = run({ kind: 'psf', psfWidthUm: 0.3, pixelSizeUm: 0.1, psfDepthUm: 0.7 }, { zStepUm: 0.35 });
+    expect(b.map((r) => r.randomizationP)).toEqual(a.map((r) => r.randomizationP));
+    const c = run({ kind: 'psf', psfWidthUm: 0.3, pixelSizeUm: 0.1, psfDepthUm: 0.7, zStepUm: 0.35 });
+    expect(c.map((r) => r.randomizationP)).toEqual(a.map((r) => r.randomizationP));
+    expect(describeSetting('randomization', RecipeSettings.parse({ randomization: { enabled: true, blockSize: { kind: 'pixels', pixels: 3, slices: 2 } } }))).toContain('3 × 3-pixel blocks (2 slices deep in stacks measured in 3D)');
+  });
+  it('3-D randomization without a block depth fails the field with a message (no guessed depth)', async () => {
+    const v = await volume();
+    expect(() => computeField(job({ ...manual, randomization: { enabled: true, count: 5 } }), v)).toThrow(FieldJobError);
+    expect(() => computeField(job({ ...manual, randomization: { enabled: true, count: 5 } }), v)).toThrow(/measured in 3D, but the randomization blocks have no depth/);
+    expect(() => computeField(job({ ...manual, randomization: { enabled: true, count: 5, blockSize: { kind: 'psf', psfWidthUm: 0.3, pixelSizeUm: 0.1 } } }), v)).toThrow(/no axial point-spread width/);
+    expect(() => computeField(job({ ...manual, randomization: { enabled: true, count: 5, blockSize: { kind: 'psf', psfWidthUm: 0.3, pixelSizeUm: 0.1, psfDepthUm: 0.7 } } }), v)).toThrow(/neither the recipe nor field "F" gives the z step/);
+    // a single slice of the same stack needs no depth
+    const one = computeField(job({ ...manual, z: { mode: 'slice', slice: 2 }, randomization: { enabled: true, count: 5 } }), { width: W, height: H, ch1: v.ch1.subarray(2 * W * H, 3 * W * H), ch2: v.ch2.subarray(2 * W * H, 3 * W * H) });
+    expect(one[0].provenance.randomizationCount).toBe(5);
   });
   it('pixels that do not make whole slices are refused', () => {
     expect(() => computeField(job(manual), { width: W, height: H, depth: 2, ch1: new Uint16Array(W * H), ch2: new Uint16Array(W * H) })).toThrow(/396 and 396 pixels do not make 2 slices of 22×18/);
