@@ -330,6 +330,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
       sizeZ: f.sizeZ,
       bitDepth: f.bitDepth,
       pixelSizeUm: nn(f.pixelSizeUm),
+      zStepUm: nn(f.zStepUm),
       saturatedFraction1: nn(f.facts?.ch1?.saturatedFraction),
       saturatedFraction2: nn(f.facts?.ch2?.saturatedFraction),
       channelNames: [f.channelNames?.[0] ?? null, f.channelNames?.[1] ?? null],

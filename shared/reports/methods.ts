@@ -121,8 +121,15 @@ export function methodsParagraph(snap: ReportSnapshot): string {
   const excl = snap.exclusions.length
     ? ` ${snap.exclusions.length} cell${snap.exclusions.length === 1 ? ' was' : 's were'} excluded before analysis, each with a recorded reason (listed in the exclusions table).`
     : ' No cells were excluded.';
+  // z-stacks and their voxel sizes (x = y = the pixel size, z = the step between slices), when stated
+  const stacks = snap.fields.filter((f) => f.sizeZ > 1);
+  const um = (v: number) => String(Number(v.toPrecision(4)));
+  const voxels = [...new Set(stacks.map((f) => (f.pixelSizeUm != null && f.zStepUm != null ? `${um(f.pixelSizeUm)} × ${um(f.pixelSizeUm)} × ${um(f.zStepUm)} µm` : 'not stated')))];
+  const stackText = stacks.length
+    ? ` ${stacks.length === snap.fields.length ? (stacks.length === 1 ? 'The field is a z-stack' : 'All fields are z-stacks') : stacks.length === 1 ? '1 of the fields is a z-stack' : `${stacks.length} of the fields are z-stacks`} (${[...new Set(stacks.map((f) => f.sizeZ))].sort((a, b) => a - b).join(', ')} slices; voxel size ${voxels.join(', ')}).`
+    : '';
   parts.push(
-    `Two-channel fields (${snap.fields.length} in total) of the study "${snap.study.name}" were analysed cell by cell; each cell is a region of interest outlined in image pixel coordinates, and a pixel belongs to a cell when its centre lies inside the outline (even-odd rule). Cells and coverslips per condition — ${condText.join('; ')}.${excl}`,
+    `Two-channel fields (${snap.fields.length} in total) of the study "${snap.study.name}" were analysed cell by cell; each cell is a region of interest outlined in image pixel coordinates, and a pixel belongs to a cell when its centre lies inside the outline (even-odd rule).${stackText} Cells and coverslips per condition — ${condText.join('; ')}.${excl}`,
   );
 
   // 2. recipes
