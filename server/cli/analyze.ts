@@ -45,6 +45,7 @@ import {
   collectPairs,
   computeThresholds,
   ENGINE_VERSION,
+  extrudeIndices,
   labelRegions,
   maskToIndices,
   measurePairs,
@@ -64,7 +65,7 @@ import { COEFFICIENTS, isPixelEntry } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
 import { readLabelStack } from '../images/mask';
-import { project } from '../images/projection';
+import { concatSlices, project } from '../images/projection';
 
 /** Bad input: exit code 2 and the message on one line. */
 export class UsageError extends Error {}
@@ -372,18 +373,6 @@ function sumSlices(ch: ChannelArray, plane: number, nz: number): Float64Array {
   return out;
 }
 
-function concat(slices: PixelArray[]): ChannelArray {
-  if (slices.length === 1) return slices[0];
-  const total = slices.reduce((s, a) => s + a.length, 0);
-  const Ctor = slices[0].constructor as new (n: number) => PixelArray;
-  const out = new Ctor(total);
-  let o = 0;
-  for (const a of slices) {
-    out.set(a as never, o);
-    o += a.length;
-  }
-  return out;
-}
 
 export interface AnalyzeOutput {
   engineVersion: string;
@@ -419,14 +408,6 @@ function resolveZ(z: ZChoice, nz: number): { from: number; to: number; projectio
 /** Region voxel indices in the measured volume (depth planes of width × height, measured slice `from` first). */
 type Region = { label: number | string; indices: Uint32Array | null };
 
-/** Plane indices repeated over the measured slices zFrom..zTo (0-based within the measured volume). */
-function extrude(indices: Uint32Array, plane: number, zFrom: number, zTo: number): Uint32Array {
-  const n = indices.length;
-  const out = new Uint32Array(n * Math.max(0, zTo - zFrom + 1));
-  for (let z = zFrom; z <= zTo; z++) for (let k = 0; k < n; k++) out[(z - zFrom) * n + k] = indices[k] + z * plane;
-  return out;
-}
-
 export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   let width: number, height: number, s1: PixelArray[], s2: PixelArray[];
   if (o.image) {
@@ -456,8 +437,8 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   const depth = z.projection ? 1 : z.to - z.from + 1;
   const plane = width * height;
   // the measured volume: slices z0..z1 one after the other, or their projection
-  let ch1: ChannelArray = z.projection ? project(s1, z0, z1) : concat(s1.slice(z0, z1 + 1));
-  let ch2: ChannelArray = z.projection ? project(s2, z0, z1) : concat(s2.slice(z0, z1 + 1));
+  let ch1: ChannelArray = z.projection ? project(s1, z0, z1) : concatSlices(s1, z0, z1);
+  let ch2: ChannelArray = z.projection ? project(s2, z0, z1) : concatSlices(s2, z0, z1);
   const measured: Pick<AnalyzeOutput, 'shift' | 'bleed'> = {};
   if (o.measureShift) {
     const r = depth === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, depth), sumSlices(ch2, plane, depth), width, height);
@@ -472,10 +453,10 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     await mustExist(path, '--mask');
     const lab = await about('--mask', path, () => readLabelStack(path, { width, height }));
     const lz = lab.slices.length;
-    if (lz === 1) regions = labelRegions(lab.slices[0]).map((r) => ({ label: r.label, indices: extrude(r.indices, plane, 0, depth - 1) }));
+    if (lz === 1) regions = labelRegions(lab.slices[0]).map((r) => ({ label: r.label, indices: extrudeIndices(r.indices, plane, 0, depth - 1) }));
     else if (lz !== nz) throw new UsageError(`--mask ${path} has ${lz} slices but the image has ${nz}; give a label stack with ${nz} slices or one plane`);
     else if (z.projection) throw new UsageError(`--mask ${path} is a label stack of ${lz} slices, but --z ${z.projection} measures one projected plane; give a one-plane label image or measure in 3D`);
-    else regions = labelRegions(concat(lab.slices.slice(z0, z1 + 1))).map((r) => ({ label: r.label, indices: r.indices }));
+    else regions = labelRegions(concatSlices(lab.slices, z0, z1)).map((r) => ({ label: r.label, indices: r.indices }));
   } else if (o.rois) {
     const path = o.rois;
     await mustExist(path, '--rois');
@@ -489,11 +470,11 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] }; ${rois}`);
     regions = rois.map((roi, k) => {
       const inPlane = maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height));
-      if (!roi.z) return { label: roi.name, indices: extrude(inPlane, plane, 0, depth - 1) };
+      if (!roi.z) return { label: roi.name, indices: extrudeIndices(inPlane, plane, 0, depth - 1) };
       if (roi.z[1] > nz) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z": ${JSON.stringify(roi.z)}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
       if (z.projection) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z", but --z ${z.projection} measures one projected plane; leave "z" out or measure in 3D`);
       // the ROI's slices within the measured ones (none: an empty region, its measures null)
-      return { label: roi.name, indices: extrude(inPlane, plane, Math.max(roi.z[0] - 1, z0) - z0, Math.min(roi.z[1] - 1, z1) - z0) };
+      return { label: roi.name, indices: extrudeIndices(inPlane, plane, Math.max(roi.z[0] - 1, z0) - z0, Math.min(roi.z[1] - 1, z1) - z0) };
     });
   }
   const whole = regions.length === 1 && regions[0].indices === null;

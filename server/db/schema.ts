@@ -151,6 +151,8 @@ export const fields = sqliteTable('fields', {
   pixelSizeUm: real('pixel_size_um'),
   /** the instrument the field was recorded on (its approved calibration is what runs apply); null when not given */
   instrumentId: integer('instrument_id').references(() => instruments.id),
+  /** distance between z slices in µm (OME PhysicalSizeZ), null when unknown or a single plane */
+  zStepUm: real('z_step_um'),
   facts: text('facts', { mode: 'json' }).$type<{ ch1: ChannelFacts; ch2: ChannelFacts }>().notNull(),
   status: text('status', { enum: ['ready', 'deleted'] }).notNull().default('ready'),
   uploadedBy: integer('uploaded_by').references(() => users.id),

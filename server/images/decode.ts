@@ -56,6 +56,8 @@ export interface TiffInfo {
   sizeZ: number;
   sizeT: number;
   pixelSizeUm: number | null;
+  /** distance between z slices in µm (OME PhysicalSizeZ), null when not stated or a single plane */
+  zStepUm: number | null;
   bigTiff: boolean;
   compression: string;
   /** 'ome-tiff' | 'tiff' | 'bigtiff' | 'ome-bigtiff' */
@@ -193,6 +195,7 @@ interface OmeMeta {
   order: string;
   names: (string | null)[];
   pixelSizeUm: number | null;
+  zStepUm: number | null;
   tiffData: { ifd: number; firstC: number; firstZ: number; firstT: number; planeCount: number | null }[];
 }
 
@@ -224,13 +227,16 @@ function parseOme(desc: string | null): OmeMeta | null {
     const n = chans[i]?.Name;
     return typeof n === 'string' && n.trim() ? n.trim() : n != null && typeof n !== 'object' ? String(n) : null;
   });
-  let pixelSizeUm: number | null = null;
-  const ps = Number(px.PhysicalSizeX);
-  if (Number.isFinite(ps) && ps > 0) {
-    const unit = typeof px.PhysicalSizeXUnit === 'string' ? px.PhysicalSizeXUnit : 'µm';
-    const f = UNIT_TO_UM[unit];
-    pixelSizeUm = f ? ps * f : null;
-  }
+  // a physical size in µm (OME's default unit is µm); null when absent, not positive or in an unknown unit
+  const physical = (axis: 'X' | 'Z'): number | null => {
+    const v = Number(px[`PhysicalSize${axis}`]);
+    if (!(Number.isFinite(v) && v > 0)) return null;
+    const unit = px[`PhysicalSize${axis}Unit`];
+    const f = UNIT_TO_UM[typeof unit === 'string' ? unit : 'µm'];
+    return f ? v * f : null;
+  };
+  const pixelSizeUm = physical('X');
+  const zStepUm = sizeZ > 1 ? physical('Z') : null;
   const tiffData = (Array.isArray(px.TiffData) ? px.TiffData : []).map((t: any) => ({
     ifd: Number(t?.IFD ?? 0) || 0,
     firstC: Number(t?.FirstC ?? 0) || 0,
@@ -238,7 +244,7 @@ function parseOme(desc: string | null): OmeMeta | null {
     firstT: Number(t?.FirstT ?? 0) || 0,
     planeCount: t?.PlaneCount != null ? Number(t.PlaneCount) || null : null,
   }));
-  return { sizeC, sizeZ, sizeT, order, names, pixelSizeUm, tiffData };
+  return { sizeC, sizeZ, sizeT, order, names, pixelSizeUm, zStepUm, tiffData };
 }
 
 /** Plane index of (c, z, t) under an OME DimensionOrder (letters after XY, fastest first). */
@@ -294,6 +300,7 @@ function planFromHeader(h: TiffHeader, plainPages: PlainPages = 'channels'): Pla
   let sizeZ = 1;
   let sizeT = 1;
   let pixelSizeUm: number | null = null;
+  let zStepUm: number | null = null;
   let dimensionOrder: string | null = null;
   if (ome && h.pages.every((p) => p.samplesPerPixel === 1)) {
     const sizes = { C: ome.sizeC, Z: ome.sizeZ, T: ome.sizeT };
@@ -325,6 +332,7 @@ function planFromHeader(h: TiffHeader, plainPages: PlainPages = 'channels'): Pla
     sizeZ = ome.sizeZ;
     sizeT = ome.sizeT;
     pixelSizeUm = ome.pixelSizeUm;
+    zStepUm = ome.zStepUm;
     dimensionOrder = ome.order;
   } else if (stated && singleSample) {
     const total = stated.channels * stated.slices * stated.frames;
@@ -372,6 +380,7 @@ function planFromHeader(h: TiffHeader, plainPages: PlainPages = 'channels'): Pla
     sizeZ,
     sizeT,
     pixelSizeUm,
+    zStepUm,
     bigTiff: h.bigTiff,
     compression: compressionName(p0.compression),
     format: `${ome ? 'ome-' : ''}${h.bigTiff ? 'bigtiff' : 'tiff'}`,

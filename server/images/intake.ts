@@ -20,7 +20,7 @@ import { maxRepresentable, type PixelArray } from './decode.js';
 import { decodePoolOf } from './decode-pool.js';
 import { decodeSources, type DecodedStack } from './sources.js';
 import { channelFacts, hasValue } from './facts.js';
-import { project } from './projection.js';
+import { concatSlices, project } from './projection.js';
 import { ImageInputError } from './errors.js';
 import { keyForSha } from './store.js';
 
@@ -144,6 +144,7 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
           bitDepth: stack.bitDepth,
           sampleFormat: stack.sampleFormat,
           pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? null,
+          zStepUm: stack.sizeZ > 1 ? (stack.info1.zStepUm ?? stack.info2.zStepUm ?? null) : null,
           facts,
           instrumentId: req.instrumentId ?? null,
           uploadedBy: req.userId ?? null,
@@ -231,12 +232,13 @@ export async function loadFieldStack(ctx: AppContext, fieldOrId: number | FieldR
 }
 
 /**
- * Which z to analyse: a slice index (0-based), 'mip' (maximum-intensity projection over all slices), or
- * a slice range { from, to } (inclusive, 0-based) returned as one volume (slices concatenated, `depth`
+ * Which z to analyse: a slice index (0-based), 'mip' (maximum-intensity projection over all slices),
+ * 'all' (every slice as one volume, as recipes with z 'volume' measure), or a slice range { from, to }
+ * (inclusive, 0-based) returned as one volume (slices concatenated, `depth`
  * slices of width × height; coefficients are then over voxels and 2-D cells apply to every slice).
  * Default: slice 0 for single-plane fields, the middle slice floor((sizeZ-1)/2) for stacks.
  */
-export type ZChoice = number | 'mip' | { from: number; to: number };
+export type ZChoice = number | 'mip' | 'all' | { from: number; to: number };
 
 export interface FieldPixels {
   width: number;
@@ -254,10 +256,6 @@ export interface FieldPixels {
   pixelSizeUm: number | null;
 }
 
-function like(a: PixelArray, n: number): PixelArray {
-  return new (a.constructor as { new (n: number): PixelArray })(n);
-}
-
 export function selectZ(stack: Pick<DecodedStack, 'ch1' | 'ch2' | 'sizeZ'>, z: ZChoice | undefined) {
   const n = stack.sizeZ;
   if (z === undefined || z === null) z = n === 1 ? 0 : Math.floor((n - 1) / 2);
@@ -265,17 +263,12 @@ export function selectZ(stack: Pick<DecodedStack, 'ch1' | 'ch2' | 'sizeZ'>, z: Z
     const proj = (sl: PixelArray[]) => project(sl, 0, sl.length - 1);
     return { ch1: proj(stack.ch1), ch2: proj(stack.ch2), depth: 1, z: 'mip' as ZChoice, zLabel: n === 1 ? 'single plane' : `maximum-intensity projection of ${n} slices` };
   }
+  if (z === 'all') z = { from: 0, to: n - 1 };
   if (typeof z === 'object') {
     const from = Math.trunc(z.from);
     const to = Math.trunc(z.to);
     if (!(from >= 0 && to >= from && to < n)) throw new HttpError(400, `z range ${JSON.stringify(z)} is outside slices 0–${n - 1}`);
-    const cat = (sl: PixelArray[]) => {
-      const len = sl[0].length;
-      const out = like(sl[0], len * (to - from + 1));
-      for (let k = from; k <= to; k++) out.set(sl[k] as never, (k - from) * len);
-      return out;
-    };
-    return { ch1: cat(stack.ch1), ch2: cat(stack.ch2), depth: to - from + 1, z: { from, to } as ZChoice, zLabel: `slices ${from + 1}–${to + 1} of ${n} as a volume` };
+    return { ch1: concatSlices(stack.ch1, from, to), ch2: concatSlices(stack.ch2, from, to), depth: to - from + 1, z: { from, to } as ZChoice, zLabel: `slices ${from + 1}–${to + 1} of ${n} as a volume` };
   }
   const zi = Number(z);
   if (!Number.isInteger(zi) || zi < 0 || zi >= n) throw new HttpError(400, `z=${JSON.stringify(z)} is not a slice of this field (0–${n - 1})`);

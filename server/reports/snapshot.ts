@@ -16,6 +16,7 @@ import type { CellScatter, Composite, ConditionSummary, CoverslipSummary, Report
 import type { Comparison } from '../../shared/schemas/compare.js';
 import { cellIndices, originOfRow } from '../../shared/schemas/cells.js';
 import { MeasurementProvenance } from '../../shared/schemas/runs.js';
+import { extrudeIndices } from '../../shared/analysis/index.js';
 import { CAUTIONS, methodsParagraph } from '../../shared/reports/methods.js';
 import { median, sd } from '../../shared/stats/index.js';
 import { computeComparison } from '../compare/compute.js';
@@ -345,6 +346,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
       sizeZ: f.sizeZ,
       bitDepth: f.bitDepth,
       pixelSizeUm: nn(f.pixelSizeUm),
+      zStepUm: nn(f.zStepUm),
       saturatedFraction1: nn(f.facts?.ch1?.saturatedFraction),
       saturatedFraction2: nn(f.facts?.ch2?.saturatedFraction),
       channelNames: [f.channelNames?.[0] ?? null, f.channelNames?.[1] ?? null],
@@ -395,9 +397,10 @@ const SCATTER_BINS = 64;
 
 export const MAX_SCATTERS = 24;
 
-/** z plane for the scatter: the recipe's slice, or the maximum-intensity projection for 'mip' and 'range' */
-function zForPixels(settings: Record<string, unknown> | undefined): { z?: number | 'mip' } {
+/** z for the scatter: the recipe's slice, the maximum-intensity projection for 'mip' and 'range', every slice for 'volume' */
+function zForPixels(settings: Record<string, unknown> | undefined): { z?: number | 'mip' | 'all' } {
   const z = settings?.z as { mode?: string; slice?: number } | undefined;
+  if (z?.mode === 'volume') return { z: 'all' };
   if (z?.mode === 'slice' && typeof z.slice === 'number') return { z: z.slice };
   if (z?.mode === 'mip' || z?.mode === 'range') return { z: 'mip' };
   return {};
@@ -405,7 +408,9 @@ function zForPixels(settings: Record<string, unknown> | undefined): { z?: number
 
 /** 2-D histogram of the cell's raw (ch1, ch2) pairs on [0, max] × [0, max], SCATTER_BINS per axis. */
 function cellScatter(px: FieldPixels, f: typeof fields.$inferSelect, cell: typeof cells.$inferSelect, sc: SnapshotCell): CellScatter {
-  const idx = cellIndices(cell.geometry, px.width, px.height);
+  const inPlane = cellIndices(cell.geometry, px.width, px.height);
+  // a volume (every slice): the outline's pixels on each slice, as the run measured them
+  const idx = px.depth > 1 ? extrudeIndices(inPlane, px.width * px.height, 0, px.depth - 1) : inPlane;
   let max1 = 0;
   let max2 = 0;
   // a pixel with NaN in either channel carries no intensity: not counted, not plotted

@@ -46,6 +46,7 @@ export function toFieldSummary(f: FieldRow): FieldSummary {
     channelNames: f.channelNames,
     pixelSizeUm: f.pixelSizeUm ?? null,
     instrumentId: f.instrumentId ?? null,
+    zStepUm: f.zStepUm ?? null,
     facts: f.facts,
     saturated: flag(f.facts.ch1) || flag(f.facts.ch2),
     status: f.status,

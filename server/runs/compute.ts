@@ -4,7 +4,12 @@
  * Used alike by the in-process pool threads (pool-worker.ts) and the BullMQ worker (worker-main.ts).
  *
  * Decisions (2026-12-01), stated in each setting's sentence (shared/schemas/recipes.ts describeSetting):
- * - z 'range' and 'mip' are maximum-intensity projections over the chosen slices.
+ * - z 'range' and 'mip' are maximum-intensity projections over the chosen slices; 'volume' (2026-12-02, the
+ *   default) measures every slice voxel by voxel in 3D: the slices are one flat array (`concatSlices`) and each
+ *   cell's and background region's outline is extruded over every slice (`extrudeIndices`); pixel counts,
+ *   means, saturated fractions and field thresholds are then over voxels. The randomization test then
+ *   scrambles 3-D blocks (`blockSlices`: the block depth in slices, given or from the PSF's axial width and
+ *   the z step); without a block depth the field fails with a message rather than guessing one.
  * - saturation: a value equal to the largest representable value of the bit depth (integer data) is
  *   saturated; float data has no saturation level (fractions null). 'exclude' drops pixels saturated in
  *   either channel before thresholds and coefficients.
@@ -32,13 +37,13 @@
  *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
  *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, extrudeIndices, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
 import { pairDistancePx, spotSigmaPx, type RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../services.js';
 import { decodeChannel } from '../images/decode.js';
-import { project } from '../images/projection.js';
+import { concatSlices, project } from '../images/projection.js';
 import type { FieldJob, FieldJobResult, MeasurementValues, SpotValues } from './job.js';
 import { plural } from '../../shared/format/plural.js';
 
@@ -47,6 +52,8 @@ export { ENGINE_VERSION };
 export interface FieldPixels {
   width: number;
   height: number;
+  /** planes in ch1/ch2 (z 'volume': the field's slices; otherwise, and when absent, 1) */
+  depth?: number;
   ch1: ChannelArray;
   ch2: ChannelArray;
 }
@@ -58,12 +65,13 @@ export class FieldJobError extends Error {
 export { project };
 
 export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] {
-  const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1];
+  const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1]; // mip, volume: every slice
   if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${plural(sizeZ, 'slice')}`);
   return [a, b];
 }
 
-export const describeZ = (z: RecipeSettings['z']) => (z.mode === 'slice' ? `slice ${z.slice}` : z.mode === 'range' ? `mip ${z.from}-${z.to}` : 'mip all');
+/** The z handling in a measurement's provenance; `depth` planes were measured (z 'volume' on one plane is that plane). */
+export const describeZ = (z: RecipeSettings['z'], depth = 1) => (z.mode === 'volume' ? (depth > 1 ? `3D 0-${depth - 1}` : 'slice 0') : z.mode === 'slice' ? `slice ${z.slice}` : z.mode === 'range' ? `mip ${z.from}-${z.to}` : 'mip all');
 
 /** Reads and decodes both channels of a job's field from the file store, applying the z handling. */
 export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<FieldPixels> {
@@ -79,9 +87,12 @@ export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<Fi
     const d = await decodeChannel(new Uint8Array(buf.buffer, buf.byteOffset, buf.byteLength), src.channel);
     if (d.width !== job.width || d.height !== job.height)
       throw new FieldJobError(`stored file ${src.key} is ${d.width}×${d.height}, the field record says ${job.width}×${job.height}`);
-    out.push(project(d.slices as ChannelArray[], from, Math.min(to, d.slices.length - 1)));
+    const last = Math.min(to, d.slices.length - 1);
+    out.push(job.settings.z.mode === 'volume' ? concatSlices(d.slices as ChannelArray[], from, last) : project(d.slices as ChannelArray[], from, last));
   }
-  return { width: job.width, height: job.height, ch1: out[0], ch2: out[1] };
+  const depth = out[0].length / (job.width * job.height);
+  if (out[1].length !== out[0].length) throw new FieldJobError(`the two channels of field "${job.fieldName}" have ${depth} and ${out[1].length / (job.width * job.height)} slices`);
+  return { width: job.width, height: job.height, depth, ch1: out[0], ch2: out[1] };
 }
 
 const isIntegerArray = (a: ChannelArray) => !(a instanceof Float32Array || a instanceof Float64Array);
@@ -154,6 +165,22 @@ export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null
   }
 }
 
+/**
+ * Block depth of the randomization test in slices, for a stack measured in 3D: the recipe's `slices`, or
+ * round(psfDepthUm / z step) with the recipe's z step or the field's. Missing values fail the field.
+ */
+export function blockSlices(s: RecipeSettings, fieldZStepUm: number | null, fieldName = 'the field'): number {
+  const b = s.randomization.blockSize;
+  if (b.kind === 'pixels') {
+    if (b.slices === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the randomization blocks have no depth; give the block depth in slices, or measure one slice or a projection`);
+    return b.slices;
+  }
+  if (b.psfDepthUm === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the recipe gives no axial point-spread width for the randomization blocks`);
+  const step = b.zStepUm ?? fieldZStepUm;
+  if (!step) throw new FieldJobError(`the randomization block depth comes from the axial point-spread width, but neither the recipe nor ${fieldName} gives the z step between slices`);
+  return Math.max(1, Math.round(b.psfDepthUm / step));
+}
+
 /** Every registry measure but the pixel count, null: the row of a cell too small to measure. */
 const nullCoefficients = Object.fromEntries(COEFFICIENTS.filter((c) => c.key !== 'pixels').map((c) => [c.key, null])) as Omit<CoefficientValues, 'pixels'>;
 
@@ -166,20 +193,29 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
 export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): { measurements: MeasurementValues[]; spots: SpotValues[] } {
   const s = job.settings;
   const { width, height } = px;
+  const plane = width * height;
+  const depth = px.depth ?? 1;
+  if (px.ch1.length !== plane * depth || px.ch2.length !== plane * depth)
+    throw new FieldJobError(`field "${job.fieldName}": ${px.ch1.length} and ${px.ch2.length} pixels do not make ${depth} slice${depth === 1 ? '' : 's'} of ${width}×${height}`);
+  /** a stored outline's pixels on every measured slice */
+  const voxelsOf = (geometry: Parameters<typeof cellIndices>[0]) => {
+    const inPlane = cellIndices(geometry, width, height);
+    return depth === 1 ? inPlane : extrudeIndices(inPlane, plane, 0, depth - 1);
+  };
   const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
   // calibration: channel 2 aligned first (NaN where its sample position is outside: not measured)
   if (s.calibration === 'approved' && !job.calibration) throw new FieldJobError(job.calibrationProblem ?? `field "${job.fieldName}" has no calibration to apply`);
   const cal = s.calibration === 'approved' ? job.calibration : null;
   const shifted = cal !== null && cal.dx !== null && cal.dy !== null && (cal.dx !== 0 || cal.dy !== 0);
   const raw1 = px.ch1;
-  const raw2 = shifted ? alignChannel(px.ch2, width, height, cal.dx!, cal.dy!) : px.ch2;
+  const raw2 = shifted ? alignChannel(px.ch2, width, height, cal.dx!, cal.dy!, depth) : px.ch2;
   // saturation of channel 2 after alignment: any saturated pixel with weight in the interpolation
   const sat2 = (i: number) => (shifted ? satAligned![i] > 0 : raw2[i] >= sat!);
   let satAligned: Float64Array | null = null;
   if (shifted && sat != null) {
     const m = new Uint8Array(px.ch2.length);
     for (let i = 0; i < m.length; i++) m[i] = px.ch2[i] >= sat ? 1 : 0;
-    satAligned = alignChannel(m, width, height, cal.dx!, cal.dy!);
+    satAligned = alignChannel(m, width, height, cal.dx!, cal.dy!, depth);
   }
 
   // background
@@ -190,9 +226,9 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
     bg2 = s.background.ch2;
   } else if (s.background.method === 'region') {
     const regions = job.cells.filter((c) => c.role === 'background');
-    const seen = new Uint8Array(width * height);
+    const seen = new Uint8Array(plane * depth);
     const idx: number[] = [];
-    for (const r of regions) for (const i of cellIndices(r.geometry, width, height)) if (!seen[i]) (seen[i] = 1), idx.push(i);
+    for (const r of regions) for (const i of voxelsOf(r.geometry)) if (!seen[i]) (seen[i] = 1), idx.push(i);
     if (idx.length === 0) throw new FieldJobError(`the recipe subtracts the mean of a marked background region, but field "${job.fieldName}" has none marked`);
     const valued = measurable(raw1, raw2, Uint32Array.from(idx));
     if (valued.length === 0)
@@ -206,12 +242,15 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
   if (cal && (cal.a21 !== null || cal.a12 !== null)) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, cal.a21 ?? 0, cal.a12 ?? 0));
 
   const block = blockPixels(s, job.pixelSizeUm);
+  const blockZ = block != null && depth > 1 ? blockSlices(s, job.zStepUm ?? null, `field "${job.fieldName}"`) : 1;
   const want = new Set(s.coefficients);
   const slow = COEFFICIENTS.some((c) => c.slow && c.recipeChoice !== null && want.has(c.recipeChoice));
   const threshold = thresholdOptions(s.threshold);
-  const z = describeZ(s.z);
+  const z = describeZ(s.z, depth);
   const objects = objectOptions(s, job.pixelSizeUm);
   const spots: SpotValues[] = [];
+  if (objects && depth > 1)
+    throw new FieldJobError(`spots are found in one plane, but field "${job.fieldName}" is measured in 3D (${depth} slices); measure one slice or a projection, or turn Spots off`);
   // the spot filter reaches beyond each cell, so every pixel it may read needs a value
   if (objects)
     for (const [c, a] of [[1, raw1], [2, raw2]] as const) {
@@ -224,7 +263,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
   const measured = job.cells
     .filter((c) => c.role === 'cell')
     .map((cell) => {
-      const all = cellIndices(cell.geometry, width, height);
+      const all = voxelsOf(cell.geometry);
       let idx: Uint32Array = measurable(ch1, ch2, all);
       const valued = idx;
       const nanPixels = all.length - idx.length;
@@ -238,7 +277,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
   // field-wide thresholds over the union of the measured cells
   let fieldThresholds: ThresholdInfo | null = null;
   if (s.thresholdScope === 'field' && (s.threshold.method === 'otsu' || s.threshold.method === 'costes')) {
-    const m = new Uint8Array(width * height);
+    const m = new Uint8Array(plane * depth);
     for (const c of measured) if (c.idx.length >= Math.max(1, s.minCellPixels)) for (const i of c.idx) m[i] = 1;
     let n = 0;
     for (let i = 0; i < m.length; i++) n += m[i];
@@ -297,7 +336,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
       width,
       height,
       threshold: fieldThresholds ?? threshold,
-      randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed } : undefined,
+      randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed, depth, blockDepth: blockZ } : undefined,
       skipSlow: !slow,
       mic: want.has('mic') ? s.mic : undefined,
     });

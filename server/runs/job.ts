@@ -19,6 +19,8 @@ export interface FieldJob {
   bitDepth: number;
   sampleFormat: 'uint' | 'float';
   pixelSizeUm: number | null;
+  /** µm between slices (OME PhysicalSizeZ), null when unknown; absent in jobs made before it was stored */
+  zStepUm?: number | null;
   /** role 'cell' regions are measured; role 'background' regions feed the 'region' background method */
   cells: { id: number; role: 'cell' | 'background'; geometry: CellGeometry }[];
   settings: RecipeSettings;

@@ -119,6 +119,7 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
     bitDepth: f.bitDepth,
     sampleFormat: f.sampleFormat,
     pixelSizeUm: f.pixelSizeUm,
+    zStepUm: f.zStepUm ?? null,
     cells: cellRows,
     settings,
     recipe: { id: recipe.id, name: recipe.name, version: recipe.version, status: recipe.status },

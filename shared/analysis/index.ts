@@ -36,6 +36,7 @@ export { chiSquaredDistance, earthMoversDistance1d } from './distances';
 export { quadraticChiDistance, triangleSimilarity } from './quadratic-chi';
 export { rasterize, fillPolygon, fillEllipse, maskToIndices, type Shape, type Point } from './rasterize';
 export { labelRegions, type LabelRegion } from './labels';
+export { extrudeIndices } from './volume';
 export { NeumaierSum, neumaierSum, FenwickCount, Fenwick4 } from './numeric';
 export { Xoshiro128 } from './prng';
 
@@ -132,7 +133,7 @@ export function measureRegion(ch1: ChannelArray, ch2: ChannelArray, region: Regi
   if (rz && (rz.count ?? 200) > 0) {
     const width = options.width;
     if (width === undefined) throw new RangeError('the randomization test needs the image width');
-    const height = options.height ?? ch1.length / width;
+    const height = options.height ?? ch1.length / (width * (rz.depth ?? 1));
     let indices: ArrayLike<number> | null = null;
     if (spec?.kind === 'indices') indices = spec.indices;
     else if (spec?.kind === 'mask') {

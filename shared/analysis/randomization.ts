@@ -1,11 +1,13 @@
 /**
  * Costes randomization test (Costes et al. 2004, Biophys. J. 86:3993, doi:10.1529/biophysj.103.038422):
- * channel 1 is cut into square blocks about the size of the point-spread function, the blocks are shuffled
+ * channel 1 is cut into square blocks about the size of the point-spread function (in a volume: boxes of
+ * B × B pixels × Bz slices, from the PSF's lateral and axial widths), the blocks are shuffled
  * (Fisher–Yates with the seeded xoshiro128** generator, prng.ts), and Pearson's r against the unmoved
  * channel 2 is recomputed; repeated N times.
  *
- * Decided here: the block grid is anchored at the top-left corner of the region's bounding box and covers
- * the whole blocks that fit inside it (and the image); region pixels outside whole blocks take no part.
+ * Decided here: the block grid is anchored at the top-left (and first-slice) corner of the region's bounding
+ * box and covers the whole blocks that fit inside it (and the image); region pixels outside whole blocks
+ * take no part. A single plane (depth 1, Bz 1) is the same computation as before volumes existed.
  * Each region pixel keeps its channel-2 value and takes the channel-1 value at the same offset inside the
  * block moved there. The observed r is computed over the same pixels (the identity arrangement).
  * Reported: fraction below = #{r_rand < r_obs} / N and p = (1 + #{r_rand ≥ r_obs}) / (N + 1)
@@ -53,26 +55,33 @@ export function randomizationTest(
   const count = options.count ?? RANDOMIZATION_DEFAULTS.count;
   const B = options.blockSize ?? RANDOMIZATION_DEFAULTS.blockSize;
   const seed = options.seed ?? RANDOMIZATION_DEFAULTS.seed;
+  const depth = options.depth ?? 1;
+  const Bz = options.blockDepth ?? 1;
   if (!(Number.isInteger(count) && count >= 0)) throw new RangeError(`randomization count must be a non-negative integer, received ${count}`);
   if (!(Number.isInteger(B) && B >= 1)) throw new RangeError(`block size must be a positive integer, received ${B}`);
-  if (!(Number.isInteger(width) && width > 0 && Number.isInteger(height) && height > 0 && width * height === ch1.length))
-    throw new RangeError(`image size ${width}×${height} does not match ${ch1.length} pixels`);
+  if (!(Number.isInteger(Bz) && Bz >= 1)) throw new RangeError(`block depth must be a positive integer, received ${Bz}`);
+  if (!(Number.isInteger(width) && width > 0 && Number.isInteger(height) && height > 0 && Number.isInteger(depth) && depth > 0 && width * height * depth === ch1.length))
+    throw new RangeError(`image size ${width}×${height}${depth === 1 ? '' : `×${depth}`} does not match ${ch1.length} pixels`);
+  const plane = width * height;
   const none: RandomizationDetail = { randomizationP: null, randomizationFractionBelow: null, randomizationCount: 0, rObserved: null, blocks: 0, pixelsUsed: 0 };
   if (count === 0) return none;
-  const total = indices === null ? width * height : indices.length;
+  const total = indices === null ? plane * depth : indices.length;
   if (total === 0) return none;
   const at = (k: number) => (indices === null ? k : indices[k]);
-  let x0 = width, y0 = height, x1 = -1, y1 = -1;
+  let x0 = width, y0 = height, z0 = depth, x1 = -1, y1 = -1, z1 = -1;
   for (let k = 0; k < total; k++) {
     const i = at(k);
-    const px = i % width, py = (i - px) / width;
+    const pz = Math.floor(i / plane), r = i - pz * plane;
+    const px = r % width, py = (r - px) / width;
     if (px < x0) x0 = px;
     if (px > x1) x1 = px;
     if (py < y0) y0 = py;
     if (py > y1) y1 = py;
+    if (pz < z0) z0 = pz;
+    if (pz > z1) z1 = pz;
   }
-  const nbx = Math.floor((x1 - x0 + 1) / B), nby = Math.floor((y1 - y0 + 1) / B);
-  const blocks = nbx * nby;
+  const nbx = Math.floor((x1 - x0 + 1) / B), nby = Math.floor((y1 - y0 + 1) / B), nbz = Math.floor((z1 - z0 + 1) / Bz);
+  const blocks = nbx * nby * nbz;
   if (blocks < 2) return { ...none, blocks };
   // pixels inside whole blocks: block id and offset
   const blockOf = new Int32Array(total);
@@ -81,18 +90,22 @@ export function randomizationTest(
   let m = 0;
   for (let k = 0; k < total; k++) {
     const i = at(k);
-    const px = i % width, py = (i - px) / width;
-    const gx = px - x0, gy = py - y0;
-    const bxi = Math.floor(gx / B), byi = Math.floor(gy / B);
-    if (bxi >= nbx || byi >= nby) continue;
-    blockOf[m] = byi * nbx + bxi;
-    offOf[m] = (gy - byi * B) * width + (gx - bxi * B);
+    const pz = Math.floor(i / plane), r = i - pz * plane;
+    const px = r % width, py = (r - px) / width;
+    const gx = px - x0, gy = py - y0, gz = pz - z0;
+    const bxi = Math.floor(gx / B), byi = Math.floor(gy / B), bzi = Math.floor(gz / Bz);
+    if (bxi >= nbx || byi >= nby || bzi >= nbz) continue;
+    blockOf[m] = (bzi * nby + byi) * nbx + bxi;
+    offOf[m] = (gz - bzi * Bz) * plane + (gy - byi * B) * width + (gx - bxi * B);
     ys[m] = ch2[i];
     m++;
   }
   if (m < 2) return { ...none, blocks };
   const base = new Int32Array(blocks);
-  for (let b = 0; b < blocks; b++) base[b] = (y0 + Math.floor(b / nbx) * B) * width + x0 + (b % nbx) * B;
+  for (let b = 0; b < blocks; b++) {
+    const bx = b % nbx, byz = (b - bx) / nbx, by = byz % nby, bz = (byz - by) / nby;
+    base[b] = (z0 + bz * Bz) * plane + (y0 + by * B) * width + x0 + bx * B;
+  }
   // shift both channels by a rounded mean over the used pixels (keeps products small)
   let sy0 = 0;
   let sx0 = 0;

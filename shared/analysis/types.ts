@@ -69,6 +69,10 @@ export interface RandomizationOptions {
   blockSize?: number;
   /** seed of the xoshiro128** generator (default 1) */
   seed?: number;
+  /** slices in ch1/ch2 (a volume of width × height × depth, slice after slice; default 1) */
+  depth?: number;
+  /** block extent in z, in slices, about the point-spread function's axial width (default 1) */
+  blockDepth?: number;
 }
 
 export interface MeasureOptions {

@@ -135,6 +135,7 @@ export function methodsParagraph(snap: ReportSnapshot): string {
     [
       `Two-channel fields (${snap.fields.length} in total) of the study "${snap.study.name}" were analysed cell by cell.`,
       pixelSizeSentence(snap),
+      stackSentence(snap),
       outlineSentence(snap, cite),
       'Each cell is a region of interest in image pixel coordinates; a pixel belongs to a cell when its centre lies inside the outline (even-odd rule).',
       `Cells and coverslips per condition — ${condText.join('; ')}.`,
@@ -224,6 +225,16 @@ export function methodsParagraph(snap: ReportSnapshot): string {
 }
 
 /** "Pixel size: 0.065 µm (from the image files)." — or the sizes per field, or that none was recorded. */
+/** z-stacks and their voxel sizes (x = y = the pixel size, z = the step between slices), when stated; '' without stacks. */
+function stackSentence(snap: ReportSnapshot): string {
+  const stacks = snap.fields.filter((f) => f.sizeZ > 1);
+  if (!stacks.length) return '';
+  const um = (v: number) => String(Number(v.toPrecision(4)));
+  const voxels = [...new Set(stacks.map((f) => (f.pixelSizeUm != null && f.zStepUm != null ? `${um(f.pixelSizeUm)} × ${um(f.pixelSizeUm)} × ${um(f.zStepUm)} µm` : 'not stated')))];
+  const which = stacks.length === snap.fields.length ? (stacks.length === 1 ? 'The field is a z-stack' : 'All fields are z-stacks') : stacks.length === 1 ? '1 of the fields is a z-stack' : `${stacks.length} of the fields are z-stacks`;
+  return `${which} (${[...new Set(stacks.map((f) => f.sizeZ))].sort((a, b) => a - b).join(', ')} slices; voxel size ${voxels.join(', ')}).`;
+}
+
 function pixelSizeSentence(snap: ReportSnapshot): string {
   if (!snap.fields.length) return '';
   const bySize = new Map<number, number>();

@@ -28,6 +28,8 @@ export const FieldSummary = z.object({
   pixelSizeUm: z.number().nullable(),
   /** the instrument the field was recorded on (its approved calibration is what recipes apply), or null */
   instrumentId: z.number().int().nullable(),
+  /** distance between z slices in µm (from OME-XML), null when unknown or a single plane */
+  zStepUm: z.number().nullable(),
   facts: z.object({ ch1: ChannelFacts, ch2: ChannelFacts }),
   /** true when either channel has more than SATURATION_FLAG_FRACTION saturated or plateau pixels */
   saturated: z.boolean(),

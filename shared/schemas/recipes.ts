@@ -50,9 +50,20 @@ export const ThresholdSetting = z.discriminatedUnion('method', [
 export type ThresholdSetting = z.infer<typeof ThresholdSetting>;
 
 export const BlockSizeSetting = z.discriminatedUnion('kind', [
-  z.object({ kind: z.literal('pixels'), pixels: z.number().int().min(1).max(256) }),
-  /** block edge = round(psfWidthUm / pixel size); pixel size from the recipe, or the field's when null */
-  z.object({ kind: z.literal('psf'), psfWidthUm: z.number().positive().max(100), pixelSizeUm: z.number().positive().max(100).nullable().default(null) }),
+  /** `slices`: block extent in z for stacks measured in 3D (required there) */
+  z.object({ kind: z.literal('pixels'), pixels: z.number().int().min(1).max(256), slices: z.number().int().min(1).max(256).optional() }),
+  /**
+   * block edge = round(psfWidthUm / pixel size); pixel size from the recipe, or the field's when null. For
+   * stacks measured in 3D, block depth = round(psfDepthUm / z step) slices (the PSF's axial width; required
+   * there), z step from the recipe or the field's.
+   */
+  z.object({
+    kind: z.literal('psf'),
+    psfWidthUm: z.number().positive().max(100),
+    pixelSizeUm: z.number().positive().max(100).nullable().default(null),
+    psfDepthUm: z.number().positive().max(1000).optional(),
+    zStepUm: z.number().positive().max(1000).nullable().optional(),
+  }),
 ]);
 export type BlockSizeSetting = z.infer<typeof BlockSizeSetting>;
 
@@ -71,6 +82,8 @@ export const MicSetting = z.object({
 export type MicSetting = z.infer<typeof MicSetting>;
 
 export const ZSetting = z.discriminatedUnion('mode', [
+  /** every slice, voxel by voxel (3D): a cell's outline applies to every slice (the default; single-plane fields: their one slice) */
+  z.object({ mode: z.literal('volume') }),
   /** one slice, 0-based */
   z.object({ mode: z.literal('slice'), slice: z.number().int().min(0).default(0) }),
   /** maximum-intensity projection of slices from..to (0-based, inclusive) */
@@ -145,7 +158,7 @@ export const RecipeSettings = z.object({
   /** Otsu / Costes thresholds computed for each cell over its own pixels, or once per field over the union of its cells */
   thresholdScope: z.enum(['cell', 'field']).default('cell'),
   randomization: RandomizationSetting.default({ enabled: false, count: 200, blockSize: { kind: 'pixels', pixels: 3 } }),
-  z: ZSetting.default({ mode: 'slice', slice: 0 }),
+  z: ZSetting.default({ mode: 'volume' }),
   /** cells with fewer measured pixels get a measurement row with every coefficient null */
   minCellPixels: z.number().int().min(0).max(100_000_000).default(20),
   coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...DEFAULT_RECIPE_CHOICES])
@@ -268,12 +281,13 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
       if (!r.enabled) return 'No randomization test is run.';
       const block =
         r.blockSize.kind === 'pixels'
-          ? `${r.blockSize.pixels} × ${r.blockSize.pixels}-pixel blocks`
-          : `blocks as wide as the point-spread function (${fmt(r.blockSize.psfWidthUm)} µm at ${r.blockSize.pixelSizeUm == null ? "the field's pixel size" : `${fmt(r.blockSize.pixelSizeUm)} µm per pixel`})`;
+          ? `${r.blockSize.pixels} × ${r.blockSize.pixels}-pixel blocks${r.blockSize.slices ? ` (${r.blockSize.slices} slices deep in stacks measured in 3D)` : ''}`
+          : `blocks as wide as the point-spread function (${fmt(r.blockSize.psfWidthUm)} µm at ${r.blockSize.pixelSizeUm == null ? "the field's pixel size" : `${fmt(r.blockSize.pixelSizeUm)} µm per pixel`}${r.blockSize.psfDepthUm ? `; in stacks measured in 3D as deep as its axial width, ${fmt(r.blockSize.psfDepthUm)} µm at ${r.blockSize.zStepUm == null ? "the field's z step" : `${fmt(r.blockSize.zStepUm)} µm between slices`}` : ''})`;
       return `Channel 1 is scrambled in ${block} ${r.count} times and the fraction of scrambles with Pearson's r at least the observed one is reported (Costes et al. 2004).`;
     }
     case 'z': {
       const z = s.z;
+      if (z.mode === 'volume') return 'Every slice of each stack is measured voxel by voxel in 3D, each cell outline applying to every slice (the only slice for single-plane fields).';
       if (z.mode === 'slice') return `Slice ${z.slice + 1} of each stack is measured (the only slice for single-plane fields).`;
       if (z.mode === 'range') return `The maximum-intensity projection of slices ${z.from + 1} to ${z.to + 1} is measured.`;
       return 'The maximum-intensity projection of all slices is measured.';

@@ -94,6 +94,8 @@ export const SnapshotField = z.object({
   sizeZ: z.number().int(),
   bitDepth: z.number().int(),
   pixelSizeUm: Num,
+  /** µm between z slices (absent in snapshots made before it was stored) */
+  zStepUm: Num.optional(),
   saturatedFraction1: Num,
   saturatedFraction2: Num,
   channelNames: z.tuple([z.string().nullable(), z.string().nullable()]),

@@ -7,7 +7,7 @@
  */
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { collectPairs, computeThresholds, labelRegions, measurePairs, pairsFromArrays, prepare, REGION_RESULT_KEYS, type ChannelArray } from '../../shared/analysis/index';
+import { collectPairs, computeThresholds, labelRegions, measurePairs, pairsFromArrays, prepare, randomizationTest, REGION_RESULT_KEYS, type ChannelArray } from '../../shared/analysis/index';
 import { Xoshiro128 } from '../../shared/analysis/prng';
 import { decodeChannel, decodeChannels, type PixelArray } from '../../server/images/decode';
 import { readLabelStack } from '../../server/images/mask';
@@ -97,4 +97,28 @@ describe('3-D regions are voxel sets (order of voxels does not matter)', () => {
       }
     });
   }
+});
+
+describe('randomization test in 3-D blocks (Costes et al. 2004, blocks of B × B pixels × Bz slices)', () => {
+  it('the block grid covers the whole blocks of the bounding box: 7 × 6 × 2 blocks of 3 × 3 × 2 in 22 × 18 × 5', async () => {
+    const v = await volume('u16');
+    const r = randomizationTest(v.ch1, v.ch2, 22, 18, null, { count: 9, blockSize: 3, seed: 4, depth: 5, blockDepth: 2 });
+    // by the definition in randomization.ts (common practice: whole blocks only)
+    expect(r.blocks).toBe(7 * 6 * 2);
+    expect(r.pixelsUsed).toBe(21 * 18 * 4);
+    expect(r.randomizationCount).toBe(9);
+  });
+  it('one plane with block depth 1 is the 2-D test unchanged; a perfectly co-localized volume gives the smallest p', async () => {
+    const v = await volume('u16');
+    const plane = 22 * 18;
+    const s1 = v.ch1.subarray(plane, 2 * plane), s2 = v.ch2.subarray(plane, 2 * plane);
+    expect(randomizationTest(s1, s2, 22, 18, null, { count: 15, blockSize: 3, seed: 2, depth: 1, blockDepth: 1 })).toEqual(randomizationTest(s1, s2, 22, 18, null, { count: 15, blockSize: 3, seed: 2 }));
+    const same = randomizationTest(v.ch1, v.ch1, 22, 18, null, { count: 29, blockSize: 3, seed: 2, depth: 5, blockDepth: 2 });
+    // r_obs = 1 and a scramble reaches it only by restoring every block: p = 1 / (N + 1)
+    expect(same.randomizationP).toBeCloseTo(1 / 30, 12);
+  });
+  it('refuses a volume whose size does not match, quoting it', () => {
+    expect(() => randomizationTest(new Uint16Array(100), new Uint16Array(100), 5, 5, null, { depth: 3 })).toThrow(/image size 5×5×3 does not match 100 pixels/);
+    expect(() => randomizationTest(new Uint16Array(75), new Uint16Array(75), 5, 5, null, { depth: 3, blockDepth: 0 })).toThrow(/block depth must be a positive integer, received 0/);
+  });
 });

@@ -39,6 +39,7 @@ const field = (over: Partial<FieldSummary> = {}): FieldSummary => ({
   channelNames: ['GFP', null],
   pixelSizeUm: 0.065,
   instrumentId: null,
+  zStepUm: null,
   facts: {
     ch1: { min: 0, max: 65535, mean: 1000, saturatedFraction: 0.02, plateauFraction: 0.02 },
     ch2: { min: 3, max: 4000, mean: 500, saturatedFraction: 0, plateauFraction: null },

@@ -145,3 +145,15 @@ describe('methods paragraph', () => {
     expect(snap.methods).not.toContain('Lindeberg');
   });
 });
+
+describe('methods paragraph: z-stacks', () => {
+  it('states which fields are z-stacks, their slice counts and voxel sizes (x × y × z µm, or "not stated")', () => {
+    expect(methodsParagraph(snap)).toContain('Every field is a single optical section (no z-stacks).');
+    expect(methodsParagraph(snap)).not.toMatch(/is a z-stack|are z-stacks/);
+    const fields = snap.fields.map((f, k) => (k === 0 ? { ...f, sizeZ: 12, pixelSizeUm: 0.065, zStepUm: 0.3 } : f));
+    const one = methodsParagraph({ ...snap, fields });
+    expect(one).toContain('1 of the fields is a z-stack (12 slices; voxel size 0.065 × 0.065 × 0.3 µm).');
+    const all = methodsParagraph({ ...snap, fields: snap.fields.map((f) => ({ ...f, sizeZ: 5, pixelSizeUm: null, zStepUm: undefined })) });
+    expect(all).toContain('All fields are z-stacks (5 slices; voxel size not stated).');
+  });
+});

@@ -206,7 +206,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           { to: '/studies', label: 'Studies' },
           { to: `/studies/${studyId}`, label: study.data?.name ?? 'Study' },
         ]}
-        description={`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''}${field.pixelSizeUm ? ` · ${field.pixelSizeUm} µm/px` : ''} · ${names[0]} and ${names[1]}`}
+        description={`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''}${field.pixelSizeUm ? ` · ${field.pixelSizeUm} µm/px` : ''}${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
         actions={
           <>
             <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells.geojson`} download>

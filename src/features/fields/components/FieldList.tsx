@@ -75,6 +75,7 @@ export function FieldList({ coverslipId, studyId, canEdit = false }: { coverslip
                 <p className="text-xs text-ink-soft">
                   {f.width}×{f.height} · {f.bitDepth}-bit {f.sampleFormat === 'float' ? 'float' : 'integer'}
                   {f.pixelSizeUm != null && ` · ${num(f.pixelSizeUm)} µm/pixel`}
+                  {f.zStepUm != null && ` · ${num(f.zStepUm)} µm between slices`}
                 </p>
                 <dl className="mt-1 grid grid-cols-[auto_1fr] gap-x-2 text-xs">
                   {(['ch1', 'ch2'] as const).map((k, i) => (

@@ -158,6 +158,18 @@ function ObjectsControls({ value: o, onChange, disabled: d }: { value: ObjectsSe
   );
 }
 
+/**
+ * The 3-D block depth settings (stacks measured voxel by voxel): empty means "not set" (a 3-D run with the
+ * test on then fails with a message); the z step's empty means "each field's". Bounds from the shared schema.
+ */
+const BLOCK_SLICES = NumberTextFor('Block depth', BlockSizeSetting.options[0].shape.slices.unwrap());
+const PSF_DEPTH = NumberTextFor('Axial PSF width', BlockSizeSetting.options[1].shape.psfDepthUm.unwrap());
+const Z_STEP = NumberTextFor('Z step', BlockSizeSetting.options[1].shape.zStepUm.unwrap().unwrap());
+function OptionalBox({ label, schema, value, onChange, disabled, integer }: { label: string; schema: typeof Z_STEP; value: number | null; onChange: (n: number | null) => void; disabled?: boolean; integer?: boolean }) {
+  const box = useNumberBox({ schema, value, onChange, emptyIsNull: true });
+  return <NumField label={label} box={box} disabled={disabled} inputMode={integer ? 'numeric' : 'decimal'} />;
+}
+
 export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
   const set = (patch: Partial<RecipeSettings>) => onChange?.({ ...s, ...patch });
   const d = readOnly;
@@ -293,7 +305,15 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
               onChange={(k) => set({ randomization: { ...s.randomization, blockSize: k === 'pixels' ? { kind: 'pixels', pixels: 3 } : { kind: 'psf', psfWidthUm: 0.25, pixelSizeUm: null } } })}
             />
             {s.randomization.blockSize.kind === 'pixels' ? (
-              <Num label="Edge (px)" disabled={d} step="1" min={1} max={256} value={s.randomization.blockSize.pixels} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { kind: 'pixels', pixels: Math.max(1, Math.round(n)) } } })} />
+              (() => {
+                const b = s.randomization.blockSize;
+                return (
+                  <>
+                    <Num label="Edge (px)" disabled={d} step="1" min={1} max={256} value={b.pixels} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, pixels: Math.max(1, Math.round(n)) } } })} />
+                    <OptionalBox label="Depth in 3D (slices)" schema={BLOCK_SLICES} integer disabled={d} value={b.slices ?? null} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, slices: n == null ? undefined : Math.max(1, Math.round(n)) } } })} />
+                  </>
+                );
+              })()
             ) : (
               (() => {
                 const b = s.randomization.blockSize;
@@ -301,6 +321,8 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
                   <>
                     <Num label="PSF width (µm)" disabled={d} min={0} minExclusive max={100} value={b.psfWidthUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfWidthUm: n } } })} />
                     <PixelSizeBox disabled={d} value={b.pixelSizeUm} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, pixelSizeUm: n } } })} />
+                    <OptionalBox label="Axial PSF width in 3D (µm)" schema={PSF_DEPTH} disabled={d} value={b.psfDepthUm ?? null} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, psfDepthUm: n ?? undefined } } })} />
+                    <OptionalBox label="Z step (µm, empty: from each field)" schema={Z_STEP} disabled={d} value={b.zStepUm ?? null} onChange={(n) => set({ randomization: { ...s.randomization, blockSize: { ...b, zStepUm: n } } })} />
                   </>
                 );
               })()
@@ -316,11 +338,12 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
           disabled={d}
           value={s.z.mode}
           options={[
+            ['volume', 'Every slice, voxel by voxel (3D)'],
             ['slice', 'One slice'],
             ['range', 'Projection of a range'],
             ['mip', 'Projection of all slices'],
           ]}
-          onChange={(m) => set({ z: m === 'slice' ? { mode: 'slice', slice: 0 } : m === 'range' ? { mode: 'range', from: 0, to: 0 } : { mode: 'mip' } })}
+          onChange={(m) => set({ z: m === 'volume' ? { mode: 'volume' } : m === 'slice' ? { mode: 'slice', slice: 0 } : m === 'range' ? { mode: 'range', from: 0, to: 0 } : { mode: 'mip' } })}
         />
         {s.z.mode === 'slice' && <Num label="Slice (1 = first)" disabled={d} step="1" min={1} value={s.z.slice + 1} onChange={(n) => set({ z: { mode: 'slice', slice: Math.max(0, Math.round(n) - 1) } })} />}
         {s.z.mode === 'range' &&

@@ -1,0 +1,1 @@
+ALTER TABLE `fields` ADD `z_step_um` real;
