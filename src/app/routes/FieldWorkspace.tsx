@@ -201,7 +201,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </div>
           <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
             <section aria-label="Display" className="rounded-md border border-ink/10 bg-white/70 p-3">
-              <h3 className="mb-2 text-sm font-semibold">Display</h3>
+              <h2 className="mb-2 text-sm font-semibold">Display</h2>
               <DisplayPanel field={field} display={display} onChange={setDisplay} autoRanges={autoRanges} />
             </section>
             <div className="rounded-md border border-ink/10 bg-white/70 p-3">

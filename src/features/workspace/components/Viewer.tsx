@@ -415,7 +415,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
             ['out', '−', 'Zoom out (−)'],
             ['in', '+', 'Zoom in (+)'],
             ['fit', 'Fit', 'Fit to window (0)'],
-            ['one', '1:1', 'One image pixel per screen pixel (1)'],
+            ['one', '1:1', '1:1, one image pixel per screen pixel (1)'],
           ] as const
         ).map(([k, label, title]) => (
           <button key={k} type="button" title={title} aria-label={title} onClick={() => applyCommand(k)} className={cx('rounded bg-black/55 px-2 py-1 text-xs font-medium text-white hover:bg-black/75')}>
