@@ -7,6 +7,7 @@ export { LivePreview } from './components/LivePreview';
 export { AutoOutlineDialog, ImportLabelsDialog } from './components/OutlineActions';
 export { PixelScatter } from './components/PixelScatter';
 export { ResultsTable } from './components/ResultsTable';
+export { ShortcutHelp } from './components/ShortcutHelp';
 export { TOOLS, ToolBar } from './components/ToolBar';
 export { Viewer, isTyping } from './components/Viewer';
 export type { DisplaySettings, Tool } from './components/Viewer';

@@ -31,7 +31,13 @@ export function CellsPanel({
   const list = useRef<HTMLUListElement>(null);
   useEffect(() => {
     if (!selected) return;
-    list.current?.querySelector(`[data-key="${selected}"]`)?.scrollIntoView({ block: 'nearest' });
+    // scroll the list's own box only: scrollIntoView would scroll the page too and move the image under the pointer
+    const item = list.current?.querySelector(`[data-key="${selected}"]`);
+    const box = list.current?.parentElement;
+    if (!item || !box) return;
+    const r = item.getBoundingClientRect(), b = box.getBoundingClientRect();
+    if (r.top < b.top) box.scrollTop -= b.top - r.top;
+    else if (r.bottom > b.bottom) box.scrollTop += r.bottom - b.bottom;
   }, [selected]);
 
   if (!outlines.length)
