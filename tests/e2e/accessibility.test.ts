@@ -10,7 +10,7 @@
 import { createRequire } from 'node:module';
 import fs from 'node:fs';
 import { expect, it } from 'vitest';
-import { apiSession, serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
+import { apiSession, demoMeasured, serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
 
 const e2e = serverAndBrowser();
 const axeSource = fs.readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
@@ -73,13 +73,8 @@ it('prepares a frozen report and a share link on the demo study', async () => {
   const bio = await apiSession(e2e.srv, 'biologist@demo.test');
   const study = ((await bio('/studies')).body.studies as { id: number; isDemo: boolean }[]).find((s) => s.isDemo)!;
   const fields = (await bio(`/studies/${study.id}/fields`)).body.fields as { id: number }[];
-  // the demo run starts in the background after seeding; a report needs its measurements
-  let made = { status: 0, body: null as any };
-  for (let i = 0; i < 240; i++) {
-    made = await bio(`/studies/${study.id}/reports`, { method: 'POST', body: JSON.stringify({ title: 'Accessibility check', coefficients: ['pearson', 'mandersM1'] }) });
-    if (made.status === 201 || made.status === 200) break;
-    await new Promise((r) => setTimeout(r, 500));
-  }
+  await demoMeasured(bio, study.id);
+  const made = await bio(`/studies/${study.id}/reports`, { method: 'POST', body: JSON.stringify({ title: 'Accessibility check', coefficients: ['pearson', 'mandersM1'] }) });
   expect(made.status, JSON.stringify(made.body)).toBeLessThan(300);
   const reportId = made.body.id ?? made.body.report?.id;
   const share = await bio(`/reports/${reportId}/shares`, { method: 'POST', body: JSON.stringify({ emails: ['reader@example.org'], message: 'For the check.' }) });
