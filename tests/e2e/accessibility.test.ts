@@ -3,7 +3,8 @@
  * on the seeded demo, and no screen may have a serious or critical violation. Screens: signed out (sign-in, a
  * dead invitation link, a shared report and a dead share link), then each demo role's screens of the main
  * navigation and the study pages it can reach (study, field workspace, Cell table, Compare, Reports, a frozen
- * report, recipe editor). The structure rules region, landmark-one-main, heading-order, empty-table-header,
+ * report, recipe editor), and the dialogs met on the way (workspace keys and find cells, upload, share, new
+ * report). The structure rules region, landmark-one-main, heading-order, empty-table-header,
  * page-has-heading-one and landmark-unique are held as well. Screenshots: test-results/a11y-<role>-<screen>.png.
  * Rule levels are axe-core's own impact ratings (axe-core 4.14 documentation).
  */
@@ -137,11 +138,30 @@ const roleScreens: Record<string, () => [string, string, ((p: TrackedPage) => Pr
   ],
 };
 
+/** dialogs, each opened on its screen: [label, path, open it] */
+const roleDialogs: Record<string, () => [string, string, (p: TrackedPage) => Promise<unknown>][]> = {
+  microscopist: () => [
+    ['workspace-keys', `/studies/${demo.studyId}/fields/${demo.fieldId}`, async (p) => (await p.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 }), await p.keyboard.press('?'))],
+    ['workspace-find-cells', `/studies/${demo.studyId}/fields/${demo.fieldId}`, (p) => p.getByRole('button', { name: 'Find cells…' }).click()],
+    ['study-upload', `/studies/${demo.studyId}`, (p) => p.getByRole('button', { name: 'Add fields…' }).first().click()],
+  ],
+  biologist: () => [
+    ['report-share', `/reports/${demo.reportId}`, (p) => p.getByRole('button', { name: 'Share by e-mail' }).click()],
+    ['reports-new', `/studies/${demo.studyId}/reports`, (p) => p.getByRole('button', { name: /new report|make the first report/i }).first().click()],
+  ],
+};
+
 for (const [role, screens] of Object.entries(roleScreens)) {
   it(`${role}: every screen`, async () => {
     const page = await e2e.page();
     await signIn(page, e2e.srv, `${role}@demo.test`);
     for (const [name, path, ready] of screens()) await check(page, `${role}-${name}`, path, ready);
+    for (const [name, path, open] of roleDialogs[role]?.() ?? [])
+      await check(page, `${role}-${name}`, path, async (p) => {
+        await settled(p);
+        await open(p);
+        await p.getByRole('dialog').waitFor();
+      });
     expect(page.errors).toEqual([]);
     await page.context().close();
   });
