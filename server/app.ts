@@ -21,6 +21,7 @@ import reportsRoutes from './routes/reports.js';
 import sharesRoutes from './routes/shares.js';
 import outboxRoutes from './routes/outbox.js';
 import tokensRoutes from './routes/tokens.js';
+import apiReferenceRoutes from './routes/api-reference.js';
 
 const DEFAULT_CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
 
@@ -49,7 +50,7 @@ export function createApp(ctx: AppContext) {
     res.json({ ok: true });
   });
   const api = express.Router();
-  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes]) {
+  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes]) {
     api.use(r(ctx));
   }
   app.use('/api', api);

@@ -15,7 +15,7 @@
  *
  * This module may import types from the engine; the engine imports nothing from here.
  */
-import { MEASURE_KEYS, type MeasureKey, type RegionResult } from './analysis/types';
+import { MEASURE_KEYS, OBJECT_MEASURE_KEYS, type MeasureKey, type ObjectMeasureKey, type RegionResult } from './analysis/types';
 import { formatNumber, type NumberKind } from './format/number';
 
 export type CoefficientKey = MeasureKey;
@@ -37,7 +37,12 @@ export const COEFFICIENT_CITATIONS = {
   dcorFast: { key: 'Huo & Székely 2016', text: 'Huo X, Székely GJ (2016) Fast computing for distance covariance. Technometrics 58:435–447. doi:10.1080/00401706.2015.1054435' },
   manders: { key: 'Manders et al. 1993', text: 'Manders EMM, Verbeek FJ, Aten JA (1993) Measurement of co-localization of objects in dual-colour confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x' },
   costes: { key: 'Costes et al. 2004', text: 'Costes SV, Daelemans D, Cho EH, Dobbin Z, Pavlakis G, Lockett S (2004) Automatic and quantitative measurement of protein-protein colocalization in live cells. Biophys. J. 86:3993–4003. doi:10.1529/biophysj.103.038422' },
+  mic: { key: 'Reshef et al. 2011', text: 'Reshef DN, Reshef YA, Finucane HK, Grossman SR, McVean G, Turnbaugh PJ, Lander ES, Mitzenmacher M, Sabeti PC (2011) Detecting novel associations in large data sets. Science 334:1518–1524. doi:10.1126/science.1205438' },
+  micE: { key: 'Reshef et al. 2016', text: 'Reshef YA, Reshef DN, Finucane HK, Sabeti PC, Mitzenmacher M (2016) Measuring dependence powerfully and equitably. J. Mach. Learn. Res. 17(212):1–63' },
   li: { key: 'Li et al. 2004', text: 'Li Q, Lau A, Morris TJ, Guo L, Fordyce CB, Stanley EF (2004) A syntaxin 1, Gαo, and N-type calcium channel complex at a presynaptic nerve terminal: analysis by quantitative immunocolocalization. J. Neurosci. 24:4070–4081. doi:10.1523/JNEUROSCI.0346-04.2004' },
+  lindeberg: { key: 'Lindeberg 1998', text: 'Lindeberg T (1998) Feature detection with automatic scale selection. Int. J. Comput. Vis. 30:79–116. doi:10.1023/A:1008045108935' },
+  lachmanovich: { key: 'Lachmanovich et al. 2003', text: 'Lachmanovich E, Shvartsman DE, Malka Y, Botvin C, Henis YI, Weiss AM (2003) Co-localization analysis of complex formation among membrane proteins by computerized fluorescence microscopy: application to immunofluorescence co-patching studies. J. Microsc. 212:122–131. doi:10.1046/j.1365-2818.2003.01239.x' },
+  besagDiggle: { key: 'Besag & Diggle 1977', text: 'Besag J, Diggle PJ (1977) Simple Monte Carlo tests for spatial pattern. Appl. Stat. 26:327–333. doi:10.2307/2346974' },
 } as const satisfies Record<string, Citation>;
 export type CoefficientCitationKey = keyof typeof COEFFICIENT_CITATIONS;
 
@@ -45,8 +50,12 @@ export type CoefficientCitationKey = keyof typeof COEFFICIENT_CITATIONS;
  * The recipe's choices of what to compute (shared/schemas/recipes.ts `coefficients`): one choice can fill
  * several measures (e.g. 'manders' → M1 and M2).
  */
-export const RECIPE_CHOICES = ['pearson', 'spearman', 'kendallTauB', 'distanceCorrelation', 'manders', 'overlap', 'icq'] as const;
+export const RECIPE_CHOICES = ['pearson', 'spearman', 'kendallTauB', 'distanceCorrelation', 'manders', 'overlap', 'icq', 'mic'] as const;
 export type RecipeChoice = (typeof RECIPE_CHOICES)[number];
+/** Choices a new recipe leaves off (their cost is stated in the recipe's sentence): MICe/TICe. */
+export const RECIPE_CHOICES_OFF_BY_DEFAULT: readonly RecipeChoice[] = ['mic'];
+/** The choices a new recipe computes. */
+export const DEFAULT_RECIPE_CHOICES = RECIPE_CHOICES.filter((c) => !RECIPE_CHOICES_OFF_BY_DEFAULT.includes(c));
 export const RECIPE_CHOICE_LABELS: Record<RecipeChoice, string> = {
   pearson: "Pearson's r",
   spearman: "Spearman's ρ",
@@ -55,6 +64,7 @@ export const RECIPE_CHOICE_LABELS: Record<RecipeChoice, string> = {
   manders: "Manders' M1 and M2",
   overlap: "Manders' overlap coefficient with k1 and k2",
   icq: "Li's intensity correlation quotient (ICQ)",
+  mic: 'maximal and total information coefficients (MICe, TICe)',
 };
 
 export interface CoefficientSpec {
@@ -74,7 +84,7 @@ export interface CoefficientSpec {
   fisherZ: boolean;
   /** natural axis range; null = from the data */
   axis: readonly [number, number] | null;
-  /** the recipe choice that computes it; null = always computed (pixels) or decided elsewhere (randomization test) */
+  /** the recipe choice that computes it; null = always computed (pixels) or decided elsewhere (randomization test, the objects section) */
   recipeChoice: RecipeChoice | null;
   /** O(n log L) coefficient the browser preview skips (`skipSlow`) */
   slow: boolean;
@@ -98,6 +108,12 @@ export interface CoefficientSpec {
 const DCOR_METHODS = 'distance correlation dCor (V-statistic, not squared; {dcor}), computed exactly on every pixel in O(n log n) ({dcorFast})';
 const MANDERS_METHODS = "Manders' split coefficients M1 and M2 over pixels above the thresholds ({manders})";
 const K_METHODS = "Manders' k1 and k2 coefficients ({manders})";
+const MIC_METHODS = 'the equicharacteristic-matrix estimators MICe and TICe ({micE}) of the maximal information coefficient ({mic}), with grids of at most B(n) = n^α cells and at most c·B(n)/l clumps on the free axis (α and c as stated in the recipe), TICe being the sum (not the mean) of the matrix';
+const SPOT_METHODS = 'spot counts per channel, spots found as local maxima of a scale-normalised Laplacian-of-Gaussian filter ({lindeberg})';
+const PAIR_METHODS = "the fraction of each channel's spots whose nearest spot of the other channel lies within the pair distance d, mutual nearest-neighbour pairs and median nearest-neighbour distances ({lachmanovich})";
+const CHANCE_METHODS = 'a Monte Carlo test of the channel-1 paired fraction against uniform random placement of the channel-2 spots in the cell, conditioned on the counts ({besagDiggle}), with the mean paired fraction under chance';
+/** the object measures (recipe objects section): shared fields */
+const OBJ = { recipeChoice: null, slow: false, preview: false, results: false, fisherZ: false, cliLabel: null, cellTable: 'optional' } as const;
 
 /** The entries, keyed by the engine's result key. `satisfies Record<MeasureKey, …>`: a key missing or extra fails to compile. */
 const SPECS = {
@@ -168,6 +184,16 @@ const SPECS = {
     fisherZ: false, axis: [-0.5, 0.5], recipeChoice: 'icq', slow: false, compare: true, cellTable: 'optional', preview: true, results: true, citations: ['li'],
     methods: "Li's intensity correlation quotient ICQ ({li})",
   },
+  micE: {
+    label: 'MICe', shortLabel: 'MICe', cliLabel: 'MICe', description: 'maximal information coefficient, equicharacteristic-matrix estimator (Reshef et al. 2016), in [0, 1]', column: 'mic_e', format: 'coefficient',
+    fisherZ: false, axis: [0, 1], recipeChoice: 'mic', slow: false, compare: true, cellTable: 'optional', preview: false, results: false, citations: ['micE', 'mic'],
+    methods: MIC_METHODS,
+  },
+  ticE: {
+    label: 'TICe', shortLabel: 'TICe', cliLabel: 'TICe', description: 'total information coefficient: the sum of the equicharacteristic matrix (Reshef et al. 2016)', column: 'tic_e', format: 'statistic',
+    fisherZ: false, axis: null, recipeChoice: 'mic', slow: false, compare: true, cellTable: 'optional', preview: false, results: false, citations: ['micE', 'mic'],
+    methods: MIC_METHODS,
+  },
   randomizationP: {
     label: 'Randomization p', shortLabel: 'rand. p', cliLabel: null, description: "p-value of the block-scrambling test of Pearson's r (Costes et al. 2004)", column: 'randomization_p', format: 'pValue',
     fisherZ: false, axis: [0, 1], recipeChoice: null, slow: false, compare: false, cellTable: 'optional', preview: false, results: false, citations: ['costes'], methods: null,
@@ -175,6 +201,42 @@ const SPECS = {
   randomizationFractionBelow: {
     label: 'Randomization fraction below', shortLabel: 'rand. below', cliLabel: null, description: "share of scrambles whose r is below the observed r", column: 'randomization_fraction_below', format: 'fraction',
     fisherZ: false, axis: [0, 1], recipeChoice: null, slow: false, compare: false, cellTable: 'none', preview: false, results: false, citations: ['costes'], methods: null,
+  },
+  spotCount1: {
+    ...OBJ, label: 'Spots in channel 1', shortLabel: 'spots 1', description: 'spots detected in channel 1 within the cell', column: 'spot_count1', format: 'count',
+    axis: null, compare: true, citations: ['lindeberg'], methods: SPOT_METHODS,
+  },
+  spotCount2: {
+    ...OBJ, label: 'Spots in channel 2', shortLabel: 'spots 2', description: 'spots detected in channel 2 within the cell', column: 'spot_count2', format: 'count',
+    axis: null, compare: true, citations: ['lindeberg'], methods: SPOT_METHODS,
+  },
+  spotPaired1: {
+    ...OBJ, label: 'Channel-1 spots paired within d', shortLabel: 'paired 1', description: 'share of channel-1 spots whose nearest channel-2 spot is within the pair distance d', column: 'spot_paired1', format: 'fraction',
+    axis: [0, 1], compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotPaired2: {
+    ...OBJ, label: 'Channel-2 spots paired within d', shortLabel: 'paired 2', description: 'share of channel-2 spots whose nearest channel-1 spot is within the pair distance d', column: 'spot_paired2', format: 'fraction',
+    axis: [0, 1], compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotMutualPairs: {
+    ...OBJ, label: 'Mutual spot pairs', shortLabel: 'mutual', description: 'pairs of spots that are each other’s nearest neighbour and within d', column: 'spot_mutual_pairs', format: 'count',
+    axis: null, compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotMedianNearest1: {
+    ...OBJ, label: 'Median nearest distance 1→2 (px)', shortLabel: 'nn 1→2', description: 'median distance from a channel-1 spot to its nearest channel-2 spot, pixels', column: 'spot_median_nearest1', format: 'statistic',
+    axis: null, compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotMedianNearest2: {
+    ...OBJ, label: 'Median nearest distance 2→1 (px)', shortLabel: 'nn 2→1', description: 'median distance from a channel-2 spot to its nearest channel-1 spot, pixels', column: 'spot_median_nearest2', format: 'statistic',
+    axis: null, compare: true, citations: ['lachmanovich'], methods: PAIR_METHODS,
+  },
+  spotPValue: {
+    ...OBJ, label: 'Chance placement p', shortLabel: 'chance p', description: 'p-value of the channel-1 paired fraction against random placement of the channel-2 spots in the cell', column: 'spot_p_value', format: 'pValue',
+    axis: [0, 1], compare: false, citations: ['besagDiggle'], methods: CHANCE_METHODS,
+  },
+  spotChanceFraction1: {
+    ...OBJ, label: 'Channel-1 spots paired by chance', shortLabel: 'chance 1', description: 'mean channel-1 paired fraction over the random placements', column: 'spot_chance_fraction1', format: 'fraction',
+    axis: [0, 1], compare: true, citations: ['besagDiggle'], methods: CHANCE_METHODS,
   },
 } as const satisfies Record<MeasureKey, CoefficientSpec>;
 
@@ -230,4 +292,11 @@ export const labelOf = (key: string) => byKey(key).label;
 export const formatCoefficient = (key: CoefficientKey, v: number | null | undefined) => formatNumber(v, byKey(key).format);
 
 /** Registry keys whose engine result type is `number | null` (checked at compile time: the keys index RegionResult). */
-export type CoefficientValues = { [K in CoefficientKey]: RegionResult[K] };
+export type CoefficientValues = { [K in CoefficientKey]: K extends keyof RegionResult ? RegionResult[K] : number | null };
+
+/** The registry entries filled by the objects section of a recipe (objects.ts `objectMeasures`). */
+export const OBJECT_KEYS: readonly ObjectMeasureKey[] = OBJECT_MEASURE_KEYS;
+export const isObjectKey = (key: string): key is ObjectMeasureKey => (OBJECT_MEASURE_KEYS as readonly string[]).includes(key);
+/** The measures of the pixel engine (`measureRegion`), i.e. every key but the object measures. */
+export type PixelMeasureKey = Exclude<CoefficientKey, ObjectMeasureKey>;
+export const isPixelEntry = (c: CoefficientEntry): c is CoefficientEntry & { key: PixelMeasureKey } => !isObjectKey(c.key);

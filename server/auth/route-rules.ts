@@ -75,6 +75,9 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'DELETE /api/cells/:id': { study: 'edit_images' },
   'POST /api/fields/:id/cells/import': { study: 'edit_images' },
   'POST /api/fields/:id/cells/auto': { study: 'edit_images' },
+  'GET /api/fields/:id/cells.geojson': { study: 'read' },
+  'POST /api/fields/:id/cells/geojson': { study: 'edit_images' },
+  'GET /api/fields/:id/cells/labels.tiff': { study: 'read' },
 
   // recipes.ts: recipes are facility-wide, not study-scoped
   'GET /api/recipes': { global: 'read_recipes' },
@@ -92,6 +95,9 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'POST /api/runs': { study: 'run' }, // the study of the scope in the body
   'GET /api/runs': 'signed-in', // filtered to readable studies; ?studyId= checks 'read'
   'GET /api/runs/:id': { study: 'read' },
+  'GET /api/runs/:id/fields/:fieldId/spots': { study: 'read' }, // as the run's measurements
+  'GET /api/runs/:id/measurements': { study: 'read' },
+  'GET /api/runs/:id/measurements.csv': { study: 'read' },
 
   // cell-table.ts
   'GET /api/studies/:studyId/measurement-sources': { study: 'read' },
@@ -128,6 +134,9 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/tokens': 'session',
   'POST /api/tokens': 'session',
   'DELETE /api/tokens/:id': 'session',
+
+  // api-reference.ts
+  'GET /api/openapi.json': 'signed-in',
 };
 
 /** Rules that let a request through without a session. */

@@ -1,21 +1,41 @@
 /**
  * `npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j)
- *    [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N]
- *    [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--json]`
+ *    [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic]
+ *    [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]]
+ *    [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]`
  *
  * A contract other tools rely on: option names, JSON shape and exit codes stay as they are.
- *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels).
- *  - `--mask`: label image (0 = background, each positive value one region, `label` = the value).
- *  - `--rois`: JSON array of { "name": string, "points": [[x, y], ...] } polygons in pixel coordinates
- *    (x right, y down, origin at the top-left corner of pixel (0, 0)); pixel-centre even-odd rule.
- *  - Thresholds are computed once over the pixels of all regions (the whole image when there are none);
- *    the default `none` means T1 = T2 = 0.
- *  - z-stacks: every slice of a region takes part (a label image or ROI applies to each slice).
+ *  - `--channels i,j` are 1-based channels of one file (pages, samples of RGB files, OME channels; the
+ *    slices come from the OME metadata or the sizes the image description states). With `--ch1`/`--ch2`
+ *    each file is one channel and its pages are the z slices.
+ *  - `--z`: `all` (the default) measures every slice in 3D, voxel by voxel; `N` one slice (1-based); `A-B`
+ *    slices A..B in 3D; `mip` / `mip:A-B` the maximum-intensity projection of all / of slices A..B
+ *    (server/images/projection.ts), measured as one plane. The JSON states `depth` (planes measured: the
+ *    slice count in 3D, 1 for one slice or a projection) and `z` ({ from, to, projection }).
+ *  - `--mask`: label image (0 = background, each positive value one region, `label` = the value): one
+ *    plane, applied to every measured slice, or a label stack with the image's slice count (3D regions: one
+ *    value is one region across slices; only the measured slices take part).
+ *  - `--rois`: JSON array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] } polygons in pixel
+ *    coordinates (x right, y down, origin at the top-left corner of pixel (0, 0)); pixel-centre even-odd
+ *    rule; `z` (1-based, inclusive, default every slice) extrudes the polygon over slices from..to.
+ *  - `pixels` counts voxels. Thresholds are computed once over the voxels of all regions (the whole volume
+ *    when there are none); the default `none` means T1 = T2 = 0.
+ *  - `--mic`: every region also gets `micE` and `ticE` (shared/analysis/mic.ts, α 0.6, c 15; TICe is the sum
+ *    of the equicharacteristic matrix); without it the two keys are absent.
  *  - `--objects`: every region also gets `objects`, the object measures of `measureObjects`
  *    (shared/analysis/objects.ts) with exactly the keys of `OBJECT_RESULT_KEYS`; spot centres as [x, y] in
  *    the ROI coordinates above (a pixel's centre at +0.5). The settings used are echoed as `objectSettings`.
  *    `--seed` seeds the Monte Carlo placement test (the command runs no other randomized test). The spot
- *    options are an error without `--objects`; single-plane images only (spots are located in 2-D).
+ *    options are an error without `--objects`; one measured plane only (spots are located in 2-D).
+ *  - Calibration (order: read → measure shift → align → measure bleed → unmix → measure):
+ *    `--measure-shift` adds a top-level `"shift": { "dx", "dy" }` of the measured slices (channel 2 is
+ *    displaced by (dx, dy): ch2(x + dx, y + dy) ≈ ch1(x, y); x right, y down, px; the whole image, z slices
+ *    summed). `--shift DX,DY` samples channel 2 at (x + DX, y + DY) bilinearly (pixel (i, j) at integer
+ *    position (i, j)); pixels whose position falls outside [0, W−1] × [0, H−1] are dropped from every
+ *    region. `--measure-bleed 1|2` (a control labelled in channel 1 or 2; after `--shift`, over the union of
+ *    the regions or the whole image) adds `"bleed": { "a21" }` or `{ "a12" }`. `--bleed A21,A12` unmixes
+ *    o1 = t1 + A12·t2, o2 = A21·t1 + t2 per pixel, negatives set to 0 (after `--shift`). Corrected values
+ *    are floating point. `--objects` does not combine with `--shift` (spot detection keeps every pixel).
  *  - Exit 0 on success; 2 with one `error:` line on stderr for bad input; 1 for an internal failure
  *    (also one line). Never a stack trace.
  */
@@ -36,18 +56,21 @@ import {
   type ThresholdOptions,
   measureObjects,
   OBJECT_DEFAULTS,
+  MIC_DEFAULTS,
   type ObjectResult,
 } from '../../shared/analysis/index';
-import { COEFFICIENTS } from '../../shared/coefficients';
+import { alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '../../shared/analysis/index';
+import { COEFFICIENTS, isPixelEntry } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
-import { readLabelImage } from '../images/mask';
+import { readLabelStack } from '../images/mask';
+import { project } from '../images/projection';
 
 /** Bad input: exit code 2 and the message on one line. */
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -55,12 +78,18 @@ export const HELP = [
   '',
   'Co-localization coefficients of two channels, for the whole image or per region.',
   '',
-  '  --ch1 A.tif --ch2 B.tif     the two channels as two single-channel TIFFs',
+  '  --ch1 A.tif --ch2 B.tif     the two channels as two single-channel TIFFs (their pages are z slices)',
   '  --image X.tif --channels i,j  one multi-channel TIFF and its two channels (1-based)',
-  '  --mask LABELS.tif           a label image: one region per non-zero label',
-  '  --rois ROIS.json            regions as a JSON array of polygons',
+  '  --z WHICH                   z slices of a stack: all (default, every slice in 3D, voxel by voxel),',
+  '                              N (one slice, 1-based), A-B (slices A to B in 3D),',
+  '                              mip or mip:A-B (maximum-intensity projection, measured as one plane)',
+  '  --mask LABELS.tif           a label image: one region per non-zero label; one plane (used on every',
+  '                              measured slice) or a stack with as many slices as the image (3D regions)',
+  '  --rois ROIS.json            regions as a JSON array of polygons, each with an optional "z": [from, to]',
   '  --threshold METHOD          none (default), manual (with --t1 and --t2), otsu or costes',
   '  --t1 N --t2 N               manual thresholds of channel 1 and channel 2',
+  `  --mic                       also compute MICe and TICe (Reshef et al. 2016; alpha ${MIC_DEFAULTS.alpha}, c ${MIC_DEFAULTS.c}),`,
+  '                              up to about 0.5 s per 20,000 pixels; adds "micE" and "ticE" to each region',
   '  --objects                   also detect spots in each channel, pair them and test against chance;',
   '                              the five options below need --objects',
   `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma})`,
@@ -68,6 +97,11 @@ export const HELP = [
   `  --pair-distance PX          a spot is paired when its nearest partner is at most PX away (default ${OBJECT_DEFAULTS.pairDistance})`,
   `  --placements N              random placements of the channel-2 spots for the p-value, 1 to 1000000 (default ${OBJECT_DEFAULTS.placements})`,
   `  --seed S                    seed of the placement test, an integer 0 to 4294967295 (default ${OBJECT_DEFAULTS.seed})`,
+  '  --measure-shift             measure how far channel 2 is displaced from channel 1 (adds "shift": dx, dy in px)',
+  '  --shift DX,DY               align first: sample channel 2 at (x + DX, y + DY); pixels that fall outside are dropped',
+  '  --bleed A21,A12             remove bleed-through (after --shift): A21 of channel 1 seen in channel 2, A12 the reverse,',
+  '                              each a fraction in [0, 1)',
+  '  --measure-bleed 1|2         on a control labelled only in channel 1 (or 2): add "bleed": a21 (or a12)',
   '  --json                      print JSON instead of a table',
   '  -h, --help                  print this help',
   '',
@@ -77,6 +111,8 @@ export const HELP = [
 interface Roi {
   name: string;
   points: [number, number][];
+  /** 1-based inclusive slice range; absent = every slice */
+  z?: [number, number];
 }
 
 /** Checks the --rois file shape; returns the first problem as a sentence, or the ROIs. */
@@ -93,6 +129,9 @@ function checkRois(v: unknown): Roi[] | string {
       if (!Array.isArray(p) || p.length !== 2 || !p.every((c) => typeof c === 'number' && Number.isFinite(c)))
         return `item ${k} ("${r.name}") point ${j} is ${JSON.stringify(p)}, not [x, y] with two finite numbers`;
     }
+    const z = (r as { z?: unknown }).z;
+    if (z !== undefined && !(Array.isArray(z) && z.length === 2 && z.every((v) => Number.isInteger(v) && v >= 1) && z[0] <= z[1]))
+      return `item ${k} ("${r.name}") has "z": ${JSON.stringify(z)}, not [from, to] with 1-based slice numbers, from ≤ to`;
   }
   return v as Roi[];
 }
@@ -104,9 +143,21 @@ export interface CliOptions {
   channels?: [number, number];
   mask?: string;
   rois?: string;
+  /** which z slices are measured (see `--z`) */
+  z: ZChoice;
   threshold: ThresholdOptions;
   /** the object settings when --objects was given, else null */
   objects: ObjectSettings | null;
+  /** --mic: MICe and TICe with the default parameters */
+  mic: boolean;
+  /** --measure-shift */
+  measureShift: boolean;
+  /** --shift DX,DY: channel 2 is sampled at (x + dx, y + dy) */
+  shift: { dx: number; dy: number } | null;
+  /** --bleed A21,A12 */
+  bleed: { a21: number; a12: number } | null;
+  /** --measure-bleed: the labelled channel of the control */
+  measureBleed: 1 | 2 | null;
   json: boolean;
 }
 
@@ -117,6 +168,28 @@ export interface ObjectSettings {
   pairDistance: number;
   placements: number;
   seed: number;
+}
+
+/**
+ * `--z`: slices from..to (1-based, inclusive; null = up to the first / last slice), measured in 3D or as
+ * their maximum-intensity projection.
+ */
+export interface ZChoice {
+  projection: 'mip' | null;
+  from: number | null;
+  to: number | null;
+}
+
+/** Reads `--z`; a bad value is a UsageError quoting it. The range is checked against the image later. */
+export function parseZ(v: string | undefined): ZChoice {
+  if (v === undefined || v === 'all') return { projection: null, from: null, to: null };
+  if (v === 'mip') return { projection: 'mip', from: null, to: null };
+  const m = /^(mip:)?(\d+)(?:-(\d+))?$/.exec(v);
+  const bad = () => new UsageError(`--z must be all, N, A-B, mip or mip:A-B with 1-based slice numbers and A ≤ B, received ${JSON.stringify(v)}`);
+  if (!m || (m[1] && m[3] === undefined)) throw bad();
+  const from = Number(m[2]), to = m[3] === undefined ? from : Number(m[3]);
+  if (!(from >= 1 && to >= from && Number.isSafeInteger(to))) throw bad();
+  return { projection: m[1] ? 'mip' : null, from, to };
 }
 
 const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed'] as const;
@@ -145,6 +218,15 @@ function parseObjectSettings(get: (k: string) => string | undefined): ObjectSett
   return out;
 }
 
+/** "A,B" → two finite numbers, or a UsageError quoting the text (`names` say what A and B are). */
+function parseNumberPair(v: string, opt: string, names: string): [number, number] {
+  const m = /^([^,]+),([^,]+)$/.exec(v);
+  const a = m ? Number(m[1]) : NaN, b = m ? Number(m[2]) : NaN;
+  if (!m || m[1].trim() === '' || m[2].trim() === '' || !Number.isFinite(a) || !Number.isFinite(b))
+    throw new UsageError(`${opt} must be two numbers ${names} separated by a comma, received ${JSON.stringify(v)}`);
+  return [a, b];
+}
+
 function parseNumber(v: string, what: string): number {
   const n = Number(v);
   if (v.trim() === '' || !Number.isFinite(n)) throw new UsageError(`${what} must be a number, received ${JSON.stringify(v)}`);
@@ -158,16 +240,22 @@ const OPTIONS = {
   channels: { type: 'string' },
   mask: { type: 'string' },
   rois: { type: 'string' },
+  z: { type: 'string' },
   threshold: { type: 'string' },
   t1: { type: 'string' },
   t2: { type: 'string' },
   json: { type: 'boolean' },
   objects: { type: 'boolean' },
+  mic: { type: 'boolean' },
   'spot-sigma': { type: 'string' },
   'spot-k': { type: 'string' },
   'pair-distance': { type: 'string' },
   placements: { type: 'string' },
   seed: { type: 'string' },
+  'measure-shift': { type: 'boolean' },
+  shift: { type: 'string' },
+  bleed: { type: 'string' },
+  'measure-bleed': { type: 'string' },
 } as const;
 
 /**
@@ -201,7 +289,7 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
   const imageForm = s('image') !== undefined || s('channels') !== undefined;
   if (pairForm && imageForm) throw new UsageError('give either --ch1 and --ch2, or --image and --channels, not both');
   if (!pairForm && !imageForm) throw new UsageError(`no image given; ${USAGE}`);
-  const out: CliOptions = { threshold: { method: 'none' }, objects: null, json: values.json === true };
+  const out: CliOptions = { threshold: { method: 'none' }, z: parseZ(s('z')), objects: null, mic: values.mic === true, measureShift: values['measure-shift'] === true, shift: null, bleed: null, measureBleed: null, json: values.json === true };
   if (pairForm) {
     if (!s('ch1') || !s('ch2')) throw new UsageError(`--ch1 and --ch2 go together; received only ${s('ch1') ? '--ch1' : '--ch2'}`);
     out.ch1 = s('ch1');
@@ -229,6 +317,25 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
     if (t1 !== undefined || t2 !== undefined) throw new UsageError(`--t1 and --t2 apply to --threshold manual only, received --threshold ${method}`);
     out.threshold = { method } as ThresholdOptions;
   }
+  const shift = s('shift');
+  if (shift !== undefined) {
+    const [dx, dy] = parseNumberPair(shift, '--shift', 'DX,DY (pixels)');
+    out.shift = { dx, dy };
+  }
+  const bleed = s('bleed');
+  if (bleed !== undefined) {
+    const [a21, a12] = parseNumberPair(bleed, '--bleed', 'A21,A12 (fractions in [0, 1))');
+    for (const [name, v] of [['A21', a21], ['A12', a12]] as const)
+      if (!(v >= 0 && v < 1)) throw new UsageError(`--bleed ${name} must be a fraction in [0, 1), received ${JSON.stringify(bleed)}`);
+    out.bleed = { a21, a12 };
+  }
+  const mb = s('measure-bleed');
+  if (mb !== undefined) {
+    if (mb !== '1' && mb !== '2') throw new UsageError(`--measure-bleed must be 1 or 2 (the labelled channel of the control), received ${JSON.stringify(mb)}`);
+    out.measureBleed = mb === '1' ? 1 : 2;
+  }
+  if (values.objects === true && out.shift)
+    throw new UsageError('--objects cannot be combined with --shift: spot detection measures every pixel, and aligned pixels at the border are not measured');
   if (values.objects === true) out.objects = parseObjectSettings(s);
   else {
     const given = OBJECT_FLAGS.filter((f) => s(f) !== undefined);
@@ -258,6 +365,13 @@ async function about<T>(opt: string, path: string, what: () => Promise<T>): Prom
   }
 }
 
+/** The sum over z of a stack (Float64, one plane): the lateral shift of a stack is measured on it. */
+function sumSlices(ch: ChannelArray, plane: number, nz: number): Float64Array {
+  const out = new Float64Array(plane);
+  for (let z = 0; z < nz; z++) for (let i = 0; i < plane; i++) out[i] += ch[z * plane + i];
+  return out;
+}
+
 function concat(slices: PixelArray[]): ChannelArray {
   if (slices.length === 1) return slices[0];
   const total = slices.reduce((s, a) => s + a.length, 0);
@@ -275,11 +389,42 @@ export interface AnalyzeOutput {
   engineVersion: string;
   width: number;
   height: number;
+  /** z slices in the image */
   slices: number;
+  /** planes measured: the slice count measured in 3D, 1 for one slice or a projection */
+  depth: number;
+  /** the measured slices (1-based, inclusive) and whether they were projected */
+  z: { from: number; to: number; projection: 'mip' | null };
   thresholds: ThresholdInfo;
   /** present with --objects: the settings every region's `objects` was measured with */
   objectSettings?: ObjectSettings;
-  regions: (Omit<RegionResult, 'thresholds'> & { label: number | string; objects?: ObjectResult })[];
+  /** present with --measure-shift: channel 2's displacement, ch2(x + dx, y + dy) ≈ ch1(x, y), in pixels */
+  shift?: { dx: number | null; dy: number | null };
+  /** present with --measure-bleed: the coefficient of the control's labelled channel */
+  bleed?: { a21: number | null } | { a12: number | null };
+  /** `micE` and `ticE` are present with --mic only */
+  regions: (Omit<RegionResult, 'thresholds' | 'micE' | 'ticE'> & Partial<Pick<RegionResult, 'micE' | 'ticE'>> & { label: number | string; objects?: ObjectResult })[];
+}
+
+/** The --z choice resolved against the image's slice count (1-based, inclusive). */
+function resolveZ(z: ZChoice, nz: number): { from: number; to: number; projection: 'mip' | null } {
+  const from = z.from ?? 1, to = z.to ?? nz;
+  if (to > nz) {
+    const asked = z.from === z.to ? `slice ${z.from}` : `slices ${z.from}-${z.to}`;
+    throw new UsageError(`--z asks for ${asked}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
+  }
+  return { from, to, projection: z.projection };
+}
+
+/** Region voxel indices in the measured volume (depth planes of width × height, measured slice `from` first). */
+type Region = { label: number | string; indices: Uint32Array | null };
+
+/** Plane indices repeated over the measured slices zFrom..zTo (0-based within the measured volume). */
+function extrude(indices: Uint32Array, plane: number, zFrom: number, zTo: number): Uint32Array {
+  const n = indices.length;
+  const out = new Uint32Array(n * Math.max(0, zTo - zFrom + 1));
+  for (let z = zFrom; z <= zTo; z++) for (let k = 0; k < n; k++) out[(z - zFrom) * n + k] = indices[k] + z * plane;
+  return out;
 }
 
 export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
@@ -295,8 +440,8 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     const p1 = o.ch1!, p2 = o.ch2!;
     await mustExist(p1, '--ch1');
     await mustExist(p2, '--ch2');
-    const a = await about('--ch1', p1, () => decodeChannel(p1, 1));
-    const b = await about('--ch2', p2, () => decodeChannel(p2, 1));
+    const a = await about('--ch1', p1, () => decodeChannel(p1, 1, { pages: 'slices' }));
+    const b = await about('--ch2', p2, () => decodeChannel(p2, 1, { pages: 'slices' }));
     if (a.width !== b.width || a.height !== b.height)
       throw new UsageError(`--ch2 ${p2} is ${b.width}×${b.height} but --ch1 ${p1} is ${a.width}×${a.height}; both channels must have the same size`);
     if (a.slices.length !== b.slices.length)
@@ -305,17 +450,32 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     s1 = a.slices;
     s2 = b.slices;
   }
-  const ch1 = concat(s1), ch2 = concat(s2);
-  const plane = width * height;
   const nz = s1.length;
-  if (o.objects && nz > 1) throw new UsageError(`--objects needs single-plane images, received ${nz} z slices; export one slice or a projection`);
-  // regions as plane indices, then repeated over the z slices
-  let planeRegions: { label: number | string; indices: Uint32Array }[] | null = null;
+  const z = resolveZ(o.z, nz);
+  const z0 = z.from - 1, z1 = z.to - 1;
+  const depth = z.projection ? 1 : z.to - z.from + 1;
+  const plane = width * height;
+  // the measured volume: slices z0..z1 one after the other, or their projection
+  let ch1: ChannelArray = z.projection ? project(s1, z0, z1) : concat(s1.slice(z0, z1 + 1));
+  let ch2: ChannelArray = z.projection ? project(s2, z0, z1) : concat(s2.slice(z0, z1 + 1));
+  const measured: Pick<AnalyzeOutput, 'shift' | 'bleed'> = {};
+  if (o.measureShift) {
+    const r = depth === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, depth), sumSlices(ch2, plane, depth), width, height);
+    measured.shift = { dx: r.dx, dy: r.dy };
+  }
+  if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
+  if (o.objects && depth > 1)
+    throw new UsageError(`--objects needs single-plane images, received ${depth} z slices to measure in 3D; measure one slice (--z N) or a projection (--z mip)`);
+  let regions: Region[] = [{ label: 0, indices: null }];
   if (o.mask) {
     const path = o.mask;
     await mustExist(path, '--mask');
-    const lab = await about('--mask', path, () => readLabelImage(path, { width, height }));
-    planeRegions = labelRegions(lab.labels);
+    const lab = await about('--mask', path, () => readLabelStack(path, { width, height }));
+    const lz = lab.slices.length;
+    if (lz === 1) regions = labelRegions(lab.slices[0]).map((r) => ({ label: r.label, indices: extrude(r.indices, plane, 0, depth - 1) }));
+    else if (lz !== nz) throw new UsageError(`--mask ${path} has ${lz} slices but the image has ${nz}; give a label stack with ${nz} slices or one plane`);
+    else if (z.projection) throw new UsageError(`--mask ${path} is a label stack of ${lz} slices, but --z ${z.projection} measures one projected plane; give a one-plane label image or measure in 3D`);
+    else regions = labelRegions(concat(lab.slices.slice(z0, z1 + 1))).map((r) => ({ label: r.label, indices: r.indices }));
   } else if (o.rois) {
     const path = o.rois;
     await mustExist(path, '--rois');
@@ -326,38 +486,43 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       throw new UsageError(`--rois ${path}: not valid JSON (${(e as Error).message.split('\n')[0]})`);
     }
     const rois = checkRois(parsed);
-    if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...] }; ${rois}`);
-    planeRegions = rois.map((roi) => ({ label: roi.name, indices: maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height)) }));
+    if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] }; ${rois}`);
+    regions = rois.map((roi, k) => {
+      const inPlane = maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height));
+      if (!roi.z) return { label: roi.name, indices: extrude(inPlane, plane, 0, depth - 1) };
+      if (roi.z[1] > nz) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z": ${JSON.stringify(roi.z)}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
+      if (z.projection) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z", but --z ${z.projection} measures one projected plane; leave "z" out or measure in 3D`);
+      // the ROI's slices within the measured ones (none: an empty region, its measures null)
+      return { label: roi.name, indices: extrude(inPlane, plane, Math.max(roi.z[0] - 1, z0) - z0, Math.min(roi.z[1] - 1, z1) - z0) };
+    });
   }
-  const regions =
-    planeRegions === null
-      ? [{ label: 0 as number | string, indices: null as Uint32Array | null }]
-      : planeRegions.map((r) => {
-          if (nz === 1) return r;
-          const out = new Uint32Array(r.indices.length * nz);
-          for (let z = 0; z < nz; z++) for (let k = 0; k < r.indices.length; k++) out[z * r.indices.length + k] = r.indices[k] + z * plane;
-          return { label: r.label, indices: out };
-        });
-  // thresholds once over the union of all regions
+  const whole = regions.length === 1 && regions[0].indices === null;
+  // thresholds once over the union of all regions' voxels
   let union: Uint32Array | null = null;
-  if (planeRegions !== null) {
+  if (!whole) {
     const m = new Uint8Array(ch1.length);
     for (const r of regions) for (const i of r.indices!) m[i] = 1;
     union = maskToIndices(m);
   }
+  if (o.measureBleed !== null) {
+    const region = union === null ? null : { kind: 'indices' as const, indices: union };
+    measured.bleed = o.measureBleed === 1 ? { a21: bleedThroughSlope(ch1, ch2, region) } : { a12: bleedThroughSlope(ch2, ch1, region) };
+  }
+  if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12));
   // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
   const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
   const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
   const thresholds = computeThresholds(unionPairs ?? prepare({ n: 0, x: new Uint16Array(0), y: new Uint16Array(0), integer: true }), o.threshold);
   const results = regions.map((r) => {
     const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
-    const { thresholds: _t, ...rest } = measurePairs(pairs, thresholds);
+    const { thresholds: _t, micE, ticE, ...computed } = measurePairs(pairs, thresholds, o.mic ? { mic: MIC_DEFAULTS } : {});
+    const rest = o.mic ? { ...computed, micE, ticE } : computed;
     if (!o.objects) return { label: r.label, ...rest };
-    // single plane here, so the region's indices are plane indices
+    // one measured plane here, so the region's indices are plane indices
     const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
     return { label: r.label, ...rest, objects };
   });
-  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), regions: results };
+  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
 }
 
 /** Terminal numbers: 4 decimals (p-values in scientific notation), "n/a" when undefined, never "-0.0000". */
@@ -365,7 +530,7 @@ const fmt = (v: number | null, kind: NumberKind) => (v === null ? 'n/a' : kind =
 const fmtT = (v: number | null) => (v === null ? 'n/a' : Number.isInteger(v) ? String(v) : formatFixed(v, 3));
 
 /** The registry measures with a terminal header (`cliLabel`, shared/coefficients.ts), in registry order. */
-const CLI_COLUMNS = COEFFICIENTS.filter((c) => c.cliLabel !== null);
+const CLI_COLUMNS = COEFFICIENTS.filter(isPixelEntry).filter((c) => c.cliLabel !== null);
 
 type OutRegion = AnalyzeOutput['regions'][number];
 
@@ -399,15 +564,23 @@ function objectLines(out: AnalyzeOutput): string[] {
   ];
 }
 
+function zText(z: AnalyzeOutput['z']): string {
+  const range = z.from === z.to ? `slice ${z.from}` : `slices ${z.from}-${z.to}`;
+  return z.projection ? `maximum projection of ${range}` : z.from === z.to ? range : `${range} in 3D`;
+}
+
 export function formatTable(out: AnalyzeOutput): string {
   const t = out.thresholds;
   const lines = [
-    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices` : ''} · thresholds ${t.method}: ch1 > ${fmtT(t.ch1)}, ch2 > ${fmtT(t.ch2)}`,
+    `image ${out.width}×${out.height}${out.slices > 1 ? ` × ${out.slices} slices · ${zText(out.z)}` : ''} · thresholds ${t.method}: ch1 > ${fmtT(t.ch1)}, ch2 > ${fmtT(t.ch2)}`,
   ];
   const cols: [string, (r: OutRegion) => string][] = [
     ['region', (r) => String(r.label)],
-    ...CLI_COLUMNS.map((c): [string, (r: OutRegion) => string] => [c.cliLabel!, (r) => fmt(r[c.key], c.format)]),
+    // measures computed on request only (MICe/TICe) are columns when the regions carry them
+    ...CLI_COLUMNS.filter((c) => out.regions.length === 0 || c.key in out.regions[0]).map((c): [string, (r: OutRegion) => string] => [c.cliLabel!, (r) => fmt(r[c.key] ?? null, c.format)]),
   ];
+  if (out.shift) lines.push(`shift of channel 2: dx ${out.shift.dx === null ? 'n/a' : formatFixed(out.shift.dx, 2)} px, dy ${out.shift.dy === null ? 'n/a' : formatFixed(out.shift.dy, 2)} px`);
+  if (out.bleed) lines.push('a21' in out.bleed ? `bleed-through a21 ${fmt(out.bleed.a21, 'fraction')}` : `bleed-through a12 ${fmt(out.bleed.a12, 'fraction')}`);
   lines.push(...columns(cols, out.regions));
   if (out.regions.length === 0) lines.push('(the label image has no regions)');
   else if (out.objectSettings) lines.push(...objectLines(out));

@@ -10,7 +10,8 @@
  * - Tests on coverslip means (the replicate level; Lord et al. 2020 J. Cell Biol. 219:e202001064): Welch's t
  *   and Mann–Whitney U for two conditions, one-way ANOVA and Kruskal–Wallis for more (shared/stats).
  * - Histograms of the coefficient and of the per-cell mean intensity of each channel, per condition, with
- *   the chi-squared and Earth Mover's distances between every pair of conditions.
+ *   the chi-squared, Earth Mover's and quadratic-chi (QCS m = 0.5, QCN m = 0.9, A_ij = max(0, 1 − |i − j|/2);
+ *   Pele & Werman 2010) distances between every pair of conditions.
  *
  * Used by GET /api/studies/:id/compare (server/routes/cell-table.ts) and by report snapshots .
  */
@@ -30,6 +31,9 @@ import {
 import {
   chiSquaredDistance,
   earthMoversDistance,
+  QUADRATIC_CHI,
+  quadraticChiDistance,
+  triangleSimilarity,
   equalEdges,
   fisherZ,
   hierarchicalBootstrap,
@@ -142,7 +146,8 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       slipMeanZ.set(s.id, z);
       m = back(z);
     }
-    return { id: s.id, name: s.name, replicate: s.replicate, conditionId: s.conditionId, colorIndex: i, nCells: vals.length, mean: nn(m), median: vals.length ? nn(median(vals)) : null, sd: vals.length > 1 ? nn(sd(vals)) : null };
+    const meanZ = fisher && slipMeanZ.has(s.id) ? nn(slipMeanZ.get(s.id)!) : null;
+    return { id: s.id, name: s.name, replicate: s.replicate, conditionId: s.conditionId, colorIndex: i, nCells: vals.length, mean: nn(m), meanZ, median: vals.length ? nn(median(vals)) : null, sd: vals.length > 1 ? nn(sd(vals)) : null };
   });
 
   // ---- bootstrap (coverslips, then cells)
@@ -161,6 +166,7 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       nCoverslips: ms.length,
       nCells: hierarchy[i].reduce((s, v) => s + v.length, 0),
       mean: ms.length ? nn(back(mean(ms))) : null,
+      meanZ: fisher && ms.length ? nn(mean(ms)) : null,
       sdOfCoverslipMeans: ms.length > 1 ? nn(sd(ms)) : null,
       ci: { lower: nn(boot.conditions[i].lower), upper: nn(boot.conditions[i].upper) },
     };
@@ -204,10 +210,20 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
       counts: histogram(used.filter((r) => r.conditionId === c.id).map(get).filter((v): v is number => v !== null), edges).counts,
     }));
     const width = edges[1] - edges[0];
+    const similarity = triangleSimilarity(edges.length - 1, QUADRATIC_CHI.similarityBins);
     const distances: HistogramSet['distances'] = [];
     for (let a = 0; a < conds.length; a++)
-      for (let b = a + 1; b < conds.length; b++)
-        distances.push({ a: conds[a].id, b: conds[b].id, chiSquared: nn(chiSquaredDistance(byCondition[a].counts, byCondition[b].counts)), emd: nn(earthMoversDistance(byCondition[a].counts, byCondition[b].counts, width)) });
+      for (let b = a + 1; b < conds.length; b++) {
+        const [ha, hb] = [byCondition[a].counts, byCondition[b].counts];
+        distances.push({
+          a: conds[a].id,
+          b: conds[b].id,
+          chiSquared: nn(chiSquaredDistance(ha, hb)),
+          emd: nn(earthMoversDistance(ha, hb, width)),
+          quadraticChiS: nn(quadraticChiDistance(ha, hb, similarity, QUADRATIC_CHI.mS)),
+          quadraticChiN: nn(quadraticChiDistance(ha, hb, similarity, QUADRATIC_CHI.mN)),
+        });
+      }
     histograms.push({ key, label, edges, byCondition, distances });
   };
   addHist('coefficient', entry.label, (r) => r.value, entry.axis ? [entry.axis[0], entry.axis[1]] : null);
@@ -243,7 +259,15 @@ export async function computeComparison(ctx: AppContext, studyId: number, option
     coefficient,
     label,
     averaging: fisher ? 'fisher_z' : 'arithmetic',
-    source: { runId: src.runId, recipeId: src.recipeId, recipeName: src.recipeName, recipeVersion: src.recipeVersion },
+    source: {
+      kind: src.runId !== null ? 'run' : src.recipeId !== null ? 'recipe' : 'none',
+      pinned: opts.runId !== undefined || opts.recipeId !== undefined,
+      runId: src.runId,
+      recipeId: src.recipeId,
+      recipeName: src.recipeName,
+      recipeVersion: src.recipeVersion,
+    },
+    scale: fisher ? 'fisher_z' : 'identity',
     bootstrap: { resamples: boot.resamples, seed: boot.seed, confidence: boot.confidence },
     points: used.map((r) => ({ cellId: r.cellId, fieldId: r.fieldId, coverslipId: r.coverslipId, conditionId: r.conditionId, value: r.value as number })),
     coverslips,

@@ -163,7 +163,7 @@ export const cells = sqliteTable('cells', {
   /** 'cell' regions are measured; 'background' marks a region for background subtraction */
   role: text('role', { enum: ['cell', 'background'] }).notNull().default('cell'),
   geometry: text('geometry', { mode: 'json' }).$type<CellGeometry>().notNull(),
-  source: text('source', { enum: ['drawn', 'label_image', 'automatic', 'seed'] }).notNull().default('drawn'),
+  source: text('source', { enum: ['drawn', 'label_image', 'automatic', 'seed', 'geojson'] }).notNull().default('drawn'),
   pixelCount: integer('pixel_count').notNull().default(0),
   excluded: integer('excluded', { mode: 'boolean' }).notNull().default(false),
   exclusionReason: text('exclusion_reason'),
@@ -248,8 +248,19 @@ export const measurements = sqliteTable('measurements', {
   k1: real('k1'),
   k2: real('k2'),
   icq: real('icq'),
+  micE: real('mic_e'),
+  ticE: real('tic_e'),
   randomizationP: real('randomization_p'),
   randomizationFractionBelow: real('randomization_fraction_below'),
+  spotCount1: real('spot_count1'),
+  spotCount2: real('spot_count2'),
+  spotPaired1: real('spot_paired1'),
+  spotPaired2: real('spot_paired2'),
+  spotMutualPairs: real('spot_mutual_pairs'),
+  spotMedianNearest1: real('spot_median_nearest1'),
+  spotMedianNearest2: real('spot_median_nearest2'),
+  spotPValue: real('spot_p_value'),
+  spotChanceFraction1: real('spot_chance_fraction1'),
   threshold1: real('threshold1'),
   threshold2: real('threshold2'),
   thresholdMethod: text('threshold_method'),
@@ -264,6 +275,23 @@ export const measurements = sqliteTable('measurements', {
   provenance: text('provenance', { mode: 'json' }).$type<Record<string, unknown>>().notNull(),
   createdAt: createdAt(),
 }, (t) => [uniqueIndex('measurements_run_cell').on(t.runId, t.cellId), index('measurements_field').on(t.fieldId)]);
+
+/**
+ * The spots a run found in each measured cell (recipe objects section on), per channel: centre (x right, y down,
+ * pixels, origin the top-left corner of pixel (0, 0)), peak pixel intensity and integrated intensity above the
+ * local background (shared/analysis/spots.ts). Read by the field workspace.
+ */
+export const spots = sqliteTable('spots', {
+  id: id(),
+  runId: integer('run_id').notNull().references(() => runs.id, { onDelete: 'cascade' }),
+  fieldId: integer('field_id').notNull().references(() => fields.id, { onDelete: 'cascade' }),
+  cellId: integer('cell_id').notNull().references(() => cells.id, { onDelete: 'cascade' }),
+  channel: integer('channel').notNull(),
+  x: real('x').notNull(),
+  y: real('y').notNull(),
+  peak: real('peak').notNull(),
+  integrated: real('integrated').notNull(),
+}, (t) => [index('spots_run_field').on(t.runId, t.fieldId)]);
 
 export const reports = sqliteTable('reports', {
   id: id(),

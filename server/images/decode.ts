@@ -11,8 +11,13 @@
  *  - OME-TIFF (ImageDescription holds OME-XML, one sample per page): channels are the OME channels
  *    (SizeC), each with SizeZ slices (time point 0 of SizeT), planes located by DimensionOrder and TiffData.
  *    OME data model: Goldberg et al. 2005, Genome Biol. 6:R47, doi:10.1186/gb-2005-6-5-r47.
- *  - plain TIFF: every full-resolution page contributes its samples as channels, in page order
- *    (page 1 samples 1..n, then page 2 ...); reduced-resolution pages (NewSubfileType bit 0) are skipped.
+ *    Without TiffData the pages are the planes in order, and their number must be SizeC × SizeZ × SizeT.
+ *  - plain multi-page TIFF whose ImageDescription states the sizes as `key=value` lines (`channels=`,
+ *    `slices=`, `frames=`): pages ordered channel fastest, then slice, then time point; the page count must
+ *    equal the stated product.
+ *  - other plain TIFF: every full-resolution page contributes its samples as channels, in page order
+ *    (page 1 samples 1..n, then page 2 ...); with `pages: 'slices'` (a per-channel stack) every page is
+ *    a z slice of the one channel instead. Reduced-resolution pages (NewSubfileType bit 0) are skipped.
  *
  * Accepted pixel types: 8/16/32-bit unsigned integer and 32-bit IEEE float (TIFF 6.0 tag 339).
  * Accepted compression: none (1), LZW (5), Deflate (8, 32946), PackBits (32773), with or without the
@@ -23,6 +28,7 @@ import { fromArrayBuffer } from 'geotiff';
 import { checkRawSize } from './codecs.js';
 import { XMLParser } from 'fast-xml-parser';
 import { ImageInputError } from './errors.js';
+import { plural } from '../../shared/format/plural.js';
 import { bufferReader, checkPageExtents, MAX_PLANES, checkTrailingData, fileReader, pageBlocks, readTiffHeader, type ByteReader, type PageHeader, type TiffHeader } from './tiff-header.js';
 
 export { ImageInputError };
@@ -76,6 +82,8 @@ export interface DecodeOptions {
   pixelBudget?: number;
   /** most bytes the image data of one file may unpack to (all pages, all samples); default 2 GiB */
   maxDecodedBytes?: number;
+  /** how the pages of a plain multi-page file are read (default 'channels'; see `PlainPages`) */
+  pages?: PlainPages;
 }
 
 /** Input: bytes in memory or a path to a local file (read with bounded reads for the checks). */
@@ -241,9 +249,46 @@ function planeIndex(order: string, sizes: Record<'C' | 'Z' | 'T', number>, idx: 
 
 // ---------------------------------------------------------------- plan
 
-function planFromHeader(h: TiffHeader): Plan {
+/**
+ * Sizes stated in a plain multi-page file's ImageDescription as `key=value` lines (`channels=C`, `slices=Z`,
+ * `frames=T`, optionally `images=N`), the pages ordered channel fastest, then slice, then time point. null
+ * when the description is not made only of such lines or states none of the three sizes.
+ */
+export function parseStatedSizes(desc: string | null): { channels: number; slices: number; frames: number; images: number | null } | null {
+  if (!desc) return null;
+  const lines = desc.split(/\r?\n/).map((l) => l.trim()).filter((l) => l !== '');
+  if (lines.length === 0 || !lines.every((l) => /^[A-Za-z][\w.]*=/.test(l))) return null;
+  const kv = new Map(lines.map((l) => [l.slice(0, l.indexOf('=')).toLowerCase(), l.slice(l.indexOf('=') + 1).trim()]));
+  if (!kv.has('channels') && !kv.has('slices') && !kv.has('frames')) return null;
+  const count = (key: string): number | null => {
+    const v = kv.get(key);
+    if (v === undefined) return null;
+    const n = Number(v);
+    if (!/^\d+$/.test(v) || !Number.isSafeInteger(n) || n < 1) throw new ImageInputError(`the image description states ${key}=${JSON.stringify(v)}, which is not a whole number of at least 1`);
+    return n;
+  };
+  const out = { channels: count('channels') ?? 1, slices: count('slices') ?? 1, frames: count('frames') ?? 1, images: count('images') };
+  if (out.channels * out.slices * out.frames > MAX_PLANES) {
+    throw new ImageInputError(`the image description states ${out.channels} channels × ${out.slices} slices × ${out.frames} time points, more than the ${MAX_PLANES} image planes Syntopy reads from one file`, 413);
+  }
+  return out;
+}
+
+const sizesText = (c: number, z: number, t: number) => `${plural(c, 'channel')} × ${plural(z, 'slice')} × ${plural(t, 'time point')} = ${plural(c * z * t, 'plane')}`;
+
+/**
+ * How the pages of a plain multi-page file (no OME-XML, no stated sizes) are read: as channels (a field's
+ * file, the intake default) or as the z slices of one channel (a per-channel stack: `analyze --ch1/--ch2`,
+ * label stacks).
+ */
+export type PlainPages = 'channels' | 'slices';
+
+function planFromHeader(h: TiffHeader, plainPages: PlainPages = 'channels'): Plan {
   const ome = parseOme(h.description);
   const p0 = h.pages[0];
+  const fullRes = h.pages.filter((p) => !(p.newSubfileType & 1) || p === p0);
+  const singleSample = fullRes.every((p) => p.samplesPerPixel === 1);
+  const stated = ome ? null : parseStatedSizes(h.description);
   const planes: PlaneRef[][] = [];
   const channels: TiffChannelInfo[] = [];
   let sizeZ = 1;
@@ -253,6 +298,10 @@ function planFromHeader(h: TiffHeader): Plan {
   if (ome && h.pages.every((p) => p.samplesPerPixel === 1)) {
     const sizes = { C: ome.sizeC, Z: ome.sizeZ, T: ome.sizeT };
     const total = ome.sizeC * ome.sizeZ * ome.sizeT;
+    // without TiffData the planes are the pages in order, so the counts must agree
+    if (ome.tiffData.length === 0 && fullRes.length !== total) {
+      throw new ImageInputError(`the OME description declares ${sizesText(ome.sizeC, ome.sizeZ, ome.sizeT)}, but the file has ${plural(fullRes.length, 'page')}; the file is incomplete or its description is wrong`);
+    }
     const ifdOf = new Array<number>(total);
     for (let i = 0; i < total; i++) ifdOf[i] = i;
     for (const td of ome.tiffData) {
@@ -265,7 +314,7 @@ function planFromHeader(h: TiffHeader): Plan {
       for (let z = 0; z < ome.sizeZ; z++) {
         const page = ifdOf[planeIndex(ome.order, sizes, { C: c, Z: z, T: 0 })];
         if (page >= h.pages.length) {
-          throw new ImageInputError(`the OME description places channel ${c + 1}, slice ${z + 1} on page ${page + 1}, but the file has only ${h.pages.length} pages (multi-file OME datasets are not supported; upload a single-file OME-TIFF)`);
+          throw new ImageInputError(`the OME description declares ${sizesText(ome.sizeC, ome.sizeZ, ome.sizeT)} and places channel ${c + 1}, slice ${z + 1} on page ${page + 1}, but the file has ${plural(h.pages.length, 'page')}; the file is incomplete or its description is wrong (multi-file OME datasets are not supported; upload a single-file OME-TIFF)`);
         }
         zs.push({ page, sample: 0 });
       }
@@ -277,9 +326,34 @@ function planFromHeader(h: TiffHeader): Plan {
     sizeT = ome.sizeT;
     pixelSizeUm = ome.pixelSizeUm;
     dimensionOrder = ome.order;
+  } else if (stated && singleSample) {
+    const total = stated.channels * stated.slices * stated.frames;
+    if (stated.images !== null && stated.images !== total) {
+      throw new ImageInputError(`the image description states images=${stated.images} but ${sizesText(stated.channels, stated.slices, stated.frames)}; the description is inconsistent`);
+    }
+    if (fullRes.length !== total) {
+      throw new ImageInputError(`the image description states ${sizesText(stated.channels, stated.slices, stated.frames)}, but the file has ${plural(fullRes.length, 'page')}; the file is incomplete or its description is wrong`);
+    }
+    // channel fastest, then slice, then time point; time point 0 is read
+    for (let c = 0; c < stated.channels; c++) {
+      const zs: PlaneRef[] = [];
+      for (let z = 0; z < stated.slices; z++) zs.push({ page: fullRes[c + stated.channels * z].index, sample: 0 });
+      planes.push(zs);
+      const pg = h.pages[zs[0].page];
+      channels.push({ index: c + 1, name: null, width: pg.width, height: pg.height });
+    }
+    sizeZ = stated.slices;
+    sizeT = stated.frames;
+  } else if (plainPages === 'slices') {
+    if (!singleSample) {
+      const p = fullRes.find((q) => q.samplesPerPixel > 1)!;
+      throw new ImageInputError(`page ${p.index + 1} holds ${p.samplesPerPixel} samples per pixel (colour or several channels); a per-channel stack has one sample per pixel on every page`, 415);
+    }
+    planes.push(fullRes.map((p) => ({ page: p.index, sample: 0 })));
+    channels.push({ index: 1, name: null, width: p0.width, height: p0.height });
+    sizeZ = fullRes.length;
   } else {
-    for (const p of h.pages) {
-      if (p.newSubfileType & 1 && p !== p0) continue; // reduced-resolution copy
+    for (const p of fullRes) {
       for (let s = 0; s < p.samplesPerPixel; s++) {
         planes.push([{ page: p.index, sample: s }]);
         const rgb = p.photometric === 2 && p.samplesPerPixel >= 3 ? (['red', 'green', 'blue'][s] ?? null) : null;
@@ -330,7 +404,7 @@ async function planOf(r: ByteReader, opts: DecodeOptions): Promise<Plan> {
   const header = await readTiffHeader(r);
   checkBudget(header.pages[0], opts.pixelBudget ?? DEFAULT_BUDGET, 'the image');
   checkDecodedBytes(header, opts.maxDecodedBytes ?? DEFAULT_MAX_DECODED_BYTES);
-  return planFromHeader(header);
+  return planFromHeader(header, opts.pages);
 }
 
 /** Reads what the file holds (sizes, channels, type, OME metadata) with bounded reads; decodes no pixels. */

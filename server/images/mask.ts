@@ -30,3 +30,26 @@ export async function readLabelImage(input: TiffInput, field: { width: number; h
   const labels = d.slices[0] as PixelArray;
   return { width: d.width, height: d.height, labels: labels as LabelImage['labels'] };
 }
+
+export interface LabelStack {
+  width: number;
+  height: number;
+  /** one label plane per z slice (a 2-D label image is a stack of one); a value is one cell across slices */
+  slices: LabelImage['labels'][];
+}
+
+/**
+ * Reads a label stack for a field of the given size: one channel whose pages (or OME / stated slices) are z
+ * slices, integer pixels, every slice the field's width × height; the slice count is checked by the caller
+ * (it depends on what is measured). Checked before decoding, like `readLabelImage`.
+ */
+export async function readLabelStack(input: TiffInput, field: { width: number; height: number }, opts: DecodeOptions = {}): Promise<LabelStack> {
+  const o: DecodeOptions = { ...opts, pages: 'slices' };
+  const info = await readTiffInfo(input, o);
+  checkMaskSize({ width: info.channels[0]?.width ?? info.width, height: info.channels[0]?.height ?? info.height }, field);
+  if (info.channelCount !== 1) throw new ImageInputError(`the label image has ${info.channelCount} channels; give a single-channel label image`, 422);
+  if (info.sampleFormat !== 'uint') throw new ImageInputError('the label image holds floating-point pixels; labels must be whole numbers (8, 16 or 32-bit unsigned)', 422);
+  const d = await decodeChannel(input, 1, o);
+  if (d.slices.some((s) => s instanceof Float32Array)) throw new ImageInputError('the label image holds floating-point pixels; labels must be whole numbers (8, 16 or 32-bit unsigned)', 422);
+  return { width: d.width, height: d.height, slices: d.slices as LabelImage['labels'][] };
+}

@@ -6,6 +6,9 @@
  *   DELETE /api/cells/:id                   delete; soft delete when measurements refer to the cell
  *   POST   /api/fields/:id/cells/import     label TIFF (multipart field "file"): one cell per positive label
  *   POST   /api/fields/:id/cells/auto       automatic outlines (shared/analysis/segment.ts)
+ *   GET    /api/fields/:id/cells.geojson    outlines as GeoJSON in pixel coordinates (server/cells/geojson.ts)
+ *   POST   /api/fields/:id/cells/geojson    import GeoJSON outlines (multipart field "file"), all or nothing
+ *   GET    /api/fields/:id/cells/labels.tiff  the cells as a label-image TIFF (server/cells/label-tiff.ts)
  * pixelCount is always computed here with the shared rasterizer (shared/schemas/cells.ts cellIndices).
  * Every change writes an audit event in the same transaction.
  */
@@ -30,6 +33,9 @@ import {
 import { labelRegions } from '../../shared/analysis/labels.js';
 import { encodeRuns } from '../../shared/analysis/rle.js';
 import { autoLevel, segmentCells } from '../../shared/analysis/segment.js';
+import { outlinesToGeoJson, readOutlines } from '../cells/geojson.js';
+import { labelTiffOf } from '../cells/label-tiff.js';
+import { fileSafe } from '../compare/csv.js';
 
 type CellRow = typeof cells.$inferSelect;
 type FieldRow = typeof fields.$inferSelect;
@@ -107,6 +113,8 @@ function removeCell(tx: DbOrTx, cell: CellRow): boolean {
 }
 
 const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 512 * 1024 * 1024, files: 1 } });
+/** GeoJSON outlines: text, far smaller than images (5000 outlines of a few hundred vertices fit easily). */
+const geojsonUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 64 * 1024 * 1024, files: 1 } });
 
 export default function cellsRoutes(ctx: AppContext) {
   const r = Router();
@@ -225,6 +233,50 @@ export default function cellsRoutes(ctx: AppContext) {
       return out;
     });
     res.status(201).json({ cells: created.map(toCell), labels: regions.length });
+  });
+
+  const liveCells = (fieldId: number) => ctx.db.select().from(cells).where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt))).orderBy(asc(cells.id)).all().map(toCell);
+
+  r.get('/fields/:id/cells.geojson', (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    res.setHeader('content-type', 'application/geo+json; charset=utf-8');
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(field.name)}-outlines.geojson"`);
+    res.send(JSON.stringify(outlinesToGeoJson(field, liveCells(fieldId))));
+  });
+
+  r.get('/fields/:id/cells/labels.tiff', (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    const tiff = labelTiffOf(liveCells(fieldId), field.width, field.height);
+    res.setHeader('content-type', 'image/tiff');
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(field.name)}-labels.tif"`);
+    res.end(tiff);
+  });
+
+  r.post('/fields/:id/cells/geojson', canImport, geojsonUpload.single('file'), (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (!req.file) throw badRequest('attach the GeoJSON file as the form field "file"');
+    let doc: unknown;
+    try {
+      doc = JSON.parse(req.file.buffer.toString('utf8'));
+    } catch (e) {
+      throw badRequest(`the file is not valid JSON: ${(e as Error).message}`);
+    }
+    const outlines = readOutlines(doc, field.width, field.height);
+    const replace = req.query.replace === '1' || req.query.replace === 'true';
+    const created = ctx.db.transaction((tx) => {
+      if (replace) for (const c of tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'geojson'), isNull(cells.deletedAt))).all()) removeCell(tx, c);
+      const rows = outlines.map((o) =>
+        tx.insert(cells).values({ fieldId, name: o.name, role: o.role, geometry: o.geometry, source: 'geojson', pixelCount: o.pixelCount, createdBy: req.user!.id }).returning().get(),
+      );
+      tx.insert(auditEvents)
+        .values({ actorId: req.user!.id, action: 'cell.import_geojson', entity: 'field', entityId: fieldId, studyId, details: { features: outlines.length, file: req.file!.originalname, replace } })
+        .run();
+      return rows;
+    });
+    res.status(201).json({ cells: created.map(toCell), features: outlines.length });
   });
 
   r.post('/fields/:id/cells/auto', async (req, res) => {

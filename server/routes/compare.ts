@@ -12,7 +12,7 @@ import { requireUser } from '../auth/session.js';
 import { requireStudy, type Study } from '../auth/policy.js';
 import { parse } from '../http/errors.js';
 import { idParam } from '../http/params.js';
-import { CompareQuery } from '../../shared/schemas/compare.js';
+import { CompareQuery, type Comparison } from '../../shared/schemas/compare.js';
 import { computeComparison } from '../compare/compute.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
@@ -30,14 +30,19 @@ export default function compareRoutes(ctx: AppContext) {
     res.json((await compareFor(req)).comparison);
   });
 
+  /** Every export row names where its numbers come from and on which scale they were averaged and tested. */
+  const sourceColumns = ['sourceKind', 'runId', 'recipeId', 'recipeName', 'recipeVersion', 'scale'];
+  const sourceValues = (c: Comparison) => [c.source.kind, c.source.runId, c.source.recipeId, c.source.recipeName, c.source.recipeVersion, c.scale];
+  const sourceFile = (c: Comparison) => (c.source.runId !== null ? `run-${c.source.runId}` : c.source.recipeId !== null ? `${fileSafe(c.source.recipeName ?? 'recipe')}-v${c.source.recipeVersion}` : 'unmeasured');
+
   r.get('/studies/:studyId/compare/coverslips.csv', requireUser, async (req, res) => {
     const { study, comparison: c } = await compareFor(req);
     const condName = new Map(c.conditions.map((x) => [x.id, x.name]));
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
-    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-coverslips.csv"`);
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-${sourceFile(c)}-coverslips.csv"`);
     res.end(
-      csvLine(['condition', 'coverslip', 'replicate', 'coverslipId', 'cells', `mean_${c.coefficient}`, `median_${c.coefficient}`, `sd_${c.coefficient}`, 'averaging']) +
-        c.coverslips.map((s) => csvLine([condName.get(s.conditionId), s.name, s.replicate, s.id, s.nCells, s.mean, s.median, s.sd, c.averaging])).join(''),
+      csvLine(['condition', 'conditionId', 'coverslip', 'replicate', 'coverslipId', 'cells', `mean_${c.coefficient}`, `mean_z_${c.coefficient}`, `median_${c.coefficient}`, `sd_${c.coefficient}`, 'averaging', ...sourceColumns]) +
+        c.coverslips.map((s) => csvLine([condName.get(s.conditionId), s.conditionId, s.name, s.replicate, s.id, s.nCells, s.mean, s.meanZ, s.median, s.sd, c.averaging, ...sourceValues(c)])).join(''),
     );
   });
 
@@ -46,10 +51,10 @@ export default function compareRoutes(ctx: AppContext) {
     const condName = new Map(c.conditions.map((x) => [x.id, x.name]));
     const slip = new Map(c.coverslips.map((x) => [x.id, x]));
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
-    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-cells.csv"`);
+    res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-${c.coefficient}-${sourceFile(c)}-cells.csv"`);
     res.end(
-      csvLine(['condition', 'coverslip', 'replicate', 'fieldId', 'cellId', c.coefficient]) +
-        c.points.map((p) => csvLine([condName.get(p.conditionId), slip.get(p.coverslipId)?.name, slip.get(p.coverslipId)?.replicate, p.fieldId, p.cellId, p.value])).join(''),
+      csvLine(['condition', 'conditionId', 'coverslip', 'coverslipId', 'replicate', 'fieldId', 'cellId', c.coefficient, ...sourceColumns]) +
+        c.points.map((p) => csvLine([condName.get(p.conditionId), p.conditionId, slip.get(p.coverslipId)?.name, p.coverslipId, slip.get(p.coverslipId)?.replicate, p.fieldId, p.cellId, p.value, ...sourceValues(c)])).join(''),
     );
   });
 

@@ -2,16 +2,24 @@
  * Runs: `POST /api/runs { recipeId, scope: { kind, id } }` applies one recipe version to a field, coverslip,
  * condition or whole study; `GET /api/runs?studyId=` lists; `GET /api/runs/:id` shows progress per field.
  * A run whose recipe version is not approved is provisional (and so is every measurement it writes).
+ * `GET /api/runs/:id/fields/:fieldId/spots` lists the spots the run found in one field (objects section on),
+ * readable by whoever may read the run's measurements.
  */
-import { Router } from 'express';
+import { once } from 'node:events';
+import { Router, type Request } from 'express';
 import { and, desc, eq, inArray, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { conditions, coverslips, fields, measurements, recipes, runFields, runs, studies, users } from '../db/schema.js';
+import { conditions, coverslips, fields, measurements, recipes, runFields, runs, spots, studies, users } from '../db/schema.js';
 import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
 import { conflict, notFound, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { createRun } from '../runs/records.js';
-import { CreateRunRequest, RunListQuery, type RunDetail, type RunSummary } from '../../shared/schemas/runs.js';
+import { CreateRunRequest, FieldSpotsResponse, MEASUREMENT_CSV_COLUMNS, RunListQuery, RunMeasurementsQuery, type RunDetail, type RunMeasurementsPage, type RunSummary } from '../../shared/schemas/runs.js';
+import { csvValues, measurementPage } from '../runs/export.js';
+import { csvLine, fileSafe } from '../compare/csv.js';
+
+/** Rows per page of the streamed measurements CSV. */
+const CSV_PAGE = 2000;
 import { resolveScope, runSettings } from '../runs/records.js';
 
 type RunRow = typeof runs.$inferSelect;
@@ -131,12 +139,68 @@ export default function runsRoutes(ctx: AppContext) {
     res.json({ runs: rows.map((x) => runSummary(ctx, x)) });
   });
 
-  r.get('/runs/:id', (req, res) => {
+  /** The run of path segment :id, after checking the caller may read its study. */
+  const readableRun = (req: Request) => {
     const id = idParam(req, 'id');
     const row = ctx.db.select().from(runs).where(eq(runs.id, id)).get();
     if (!row) throw notFoundAsked({ what: 'run', id });
     requireStudy(ctx.db, req.user, row.studyId, 'read', { what: 'run', id });
-    res.json(runDetail(ctx, row));
+    return row;
+  };
+
+  r.get('/runs/:id', (req, res) => {
+    res.json(runDetail(ctx, readableRun(req)));
+  });
+
+  r.get('/runs/:id/measurements', (req, res) => {
+    const run = readableRun(req);
+    const q = parse(RunMeasurementsQuery, req.query);
+    const recipe = ctx.db.select().from(recipes).where(eq(recipes.id, run.recipeId)).get()!;
+    const page = measurementPage(ctx.db, run.id, q.cursor ?? 0, q.limit);
+    const body: RunMeasurementsPage = {
+      run: { id: run.id, studyId: run.studyId, status: run.status, provisional: !!run.provisional, recipeId: recipe.id, recipeName: recipe.name, recipeVersion: recipe.version },
+      measurements: page.rows,
+      nextCursor: page.nextCursor,
+    };
+    res.json(body);
+  });
+
+  // streamed: pages of CSV_PAGE rows, waiting for the client to drain between pages (no query stays open meanwhile)
+  r.get('/runs/:id/measurements.csv', async (req, res) => {
+    const run = readableRun(req);
+    const recipe = ctx.db.select().from(recipes).where(eq(recipes.id, run.recipeId)).get()!;
+    res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
+    res.setHeader('content-disposition', `attachment; filename="run-${run.id}-${fileSafe(recipe.name)}-v${recipe.version}-measurements.csv"`);
+    res.write(csvLine([...MEASUREMENT_CSV_COLUMNS]));
+    let cursor: number | null = 0;
+    while (cursor !== null) {
+      if (res.destroyed) return;
+      const page = measurementPage(ctx.db, run.id, cursor, CSV_PAGE);
+      const text = page.rows.map((m) => csvLine(csvValues(m, MEASUREMENT_CSV_COLUMNS))).join('');
+      cursor = page.nextCursor;
+      if (!res.write(text) && cursor !== null) await once(res, 'drain');
+    }
+    res.end();
+  });
+
+  r.get('/runs/:id/fields/:fieldId/spots', (req, res) => {
+    const id = idParam(req, 'id');
+    const fieldId = idParam(req, 'fieldId');
+    const row = ctx.db.select().from(runs).where(eq(runs.id, id)).get();
+    if (!row) throw notFoundAsked({ what: 'run', id });
+    requireStudy(ctx.db, req.user, row.studyId, 'read', { what: 'run', id });
+    const inRun = ctx.db.select({ fieldId: runFields.fieldId }).from(runFields).where(and(eq(runFields.runId, id), eq(runFields.fieldId, fieldId))).get();
+    if (!inRun) throw notFound(`run ${id} has no field with id ${fieldId}`);
+    const rows = ctx.db
+      .select({ cellId: spots.cellId, channel: spots.channel, x: spots.x, y: spots.y, peak: spots.peak, integrated: spots.integrated })
+      .from(spots)
+      .where(and(eq(spots.runId, id), eq(spots.fieldId, fieldId)))
+      .orderBy(spots.cellId, spots.channel, spots.id)
+      .all();
+    // the settings as applied are in every measurement's provenance (absent when the objects section was off)
+    const m = ctx.db.select({ provenance: measurements.provenance }).from(measurements).where(and(eq(measurements.runId, id), eq(measurements.fieldId, fieldId))).limit(1).get();
+    const settings = (m?.provenance as { objects?: unknown } | undefined)?.objects ?? null;
+    res.json(FieldSpotsResponse.parse({ runId: id, fieldId, settings, spots: rows }));
   });
 
   return r;

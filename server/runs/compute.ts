@@ -18,15 +18,21 @@
  *   through projection and background subtraction and is left out of everything measured: the pixel count,
  *   means, background-region means, thresholds (per cell and over the field) and coefficients. How many of a
  *   cell's pixels were left out this way is recorded in the provenance (`nanPixels`).
+ * - objects section on (2026-12-02): `analyzeObjects` per cell on the projected intensities before background
+ *   subtraction (the Laplacian-of-Gaussian filter ignores a constant offset, and clipping at 0 would bend the
+ *   spot profiles), over the cell's pixels that have a value (saturated pixels stay: a saturated spot is still
+ *   a spot, and dropping pixels would punch holes into the filter's neighbourhoods). σ and d in µm are turned
+ *   into pixels with the recipe's or the field's pixel size. A cell below minCellPixels gets every measure
+ *   null, the object measures included, and no spots.
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, ENGINE_VERSION, type ChannelArray, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
-import { COEFFICIENTS, type CoefficientValues } from '../../shared/coefficients.js';
-import type { RecipeSettings } from '../../shared/schemas/recipes.js';
+import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
+import { pairDistancePx, spotSigmaPx, type RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../services.js';
 import { decodeChannel } from '../images/decode.js';
 import { project } from '../images/projection.js';
-import type { FieldJob, FieldJobResult, MeasurementValues } from './job.js';
+import type { FieldJob, FieldJobResult, MeasurementValues, SpotValues } from './job.js';
 import { plural } from '../../shared/format/plural.js';
 
 export { ENGINE_VERSION };
@@ -129,11 +135,28 @@ export function blockPixels(s: RecipeSettings, fieldPixelSizeUm: number | null):
   return Math.max(1, Math.round(b.psfWidthUm / px));
 }
 
+/** The objects section as the engine takes it (σ, d in pixels), or null when it is off. */
+export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null): Required<Omit<ObjectOptions, 'kRadii'>> | null {
+  const o = s.objects;
+  if (!o.enabled) return null;
+  try {
+    const spotSigma = spotSigmaPx(o, fieldPixelSizeUm);
+    return { spotSigma, spotK: o.k, minSeparation: o.minSeparationPx ?? 2 * spotSigma, pairDistance: pairDistancePx(o, fieldPixelSizeUm), placements: o.placements, seed: o.seed };
+  } catch (e) {
+    throw new FieldJobError((e as Error).message);
+  }
+}
+
 /** Every registry measure but the pixel count, null: the row of a cell too small to measure. */
 const nullCoefficients = Object.fromEntries(COEFFICIENTS.filter((c) => c.key !== 'pixels').map((c) => [c.key, null])) as Omit<CoefficientValues, 'pixels'>;
 
 /** Measures every 'cell' region of a field. Throws FieldJobError for a problem with this field. */
 export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): MeasurementValues[] {
+  return computeFieldResult(job, px, computedAt).measurements;
+}
+
+/** Measures every 'cell' region of a field and, when the recipe's objects section is on, lists its spots. */
+export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): { measurements: MeasurementValues[]; spots: SpotValues[] } {
   const s = job.settings;
   const { width, height } = px;
   const raw1 = px.ch1;
@@ -166,19 +189,22 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   const slow = COEFFICIENTS.some((c) => c.slow && c.recipeChoice !== null && want.has(c.recipeChoice));
   const threshold = thresholdOptions(s.threshold);
   const z = describeZ(s.z);
+  const objects = objectOptions(s, job.pixelSizeUm);
+  const spots: SpotValues[] = [];
 
   const measured = job.cells
     .filter((c) => c.role === 'cell')
     .map((cell) => {
       const all = cellIndices(cell.geometry, width, height);
       let idx: Uint32Array = measurable(ch1, ch2, all);
+      const valued = idx;
       const nanPixels = all.length - idx.length;
       if (s.saturation === 'exclude' && sat != null) {
         const keep: number[] = [];
         for (let k = 0; k < idx.length; k++) if (raw1[idx[k]] < sat && raw2[idx[k]] < sat) keep.push(idx[k]);
         idx = Uint32Array.from(keep);
       }
-      return { cell, all, idx, nanPixels };
+      return { cell, all, idx, valued, nanPixels };
     });
   // field-wide thresholds over the union of the measured cells
   let fieldThresholds: ThresholdInfo | null = null;
@@ -194,7 +220,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   }
 
   const rows: MeasurementValues[] = [];
-  for (const { cell, all, idx, nanPixels } of measured) {
+  for (const { cell, all, idx, valued, nanPixels } of measured) {
     let s1 = 0, s2 = 0;
     if (sat != null)
       for (let k = 0; k < all.length; k++) {
@@ -218,6 +244,9 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       randomizationCount: 0,
       note: null as string | null,
       nanPixels,
+      ...(objects
+        ? { objects: { sigmaPx: objects.spotSigma, k: objects.spotK, minSeparationPx: objects.minSeparation, pairDistancePx: objects.pairDistance, placements: objects.placements, seed: objects.seed } }
+        : {}),
       computedAt,
     };
     const base = {
@@ -240,11 +269,19 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       threshold: fieldThresholds ?? threshold,
       randomization: block != null ? { count: s.randomization.count, blockSize: block, seed: s.seed } : undefined,
       skipSlow: !slow,
+      mic: want.has('mic') ? s.mic : undefined,
     });
     provenance.thresholds = { method: r.thresholds.method, ch1: r.thresholds.ch1, ch2: r.thresholds.ch2 };
     provenance.randomizationCount = r.randomizationCount;
     // a measure is kept when its recipe choice was asked for; the randomization test's results always (the recipe switches the test itself)
-    const values = Object.fromEntries(COEFFICIENTS.map((c) => [c.key, c.recipeChoice === null || want.has(c.recipeChoice) ? r[c.key] : null])) as CoefficientValues;
+    const values = Object.fromEntries(COEFFICIENTS.filter(isPixelEntry).map((c) => [c.key, c.recipeChoice === null || want.has(c.recipeChoice) ? r[c.key] : null])) as CoefficientValues;
+    for (const k of OBJECT_KEYS) values[k] = null;
+    if (objects) {
+      const a = analyzeObjects(raw1, raw2, width, height, valued, objects);
+      Object.assign(values, objectMeasures(a.result));
+      for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)
+        for (const sp of det?.spots ?? []) spots.push({ cellId: cell.id, channel, x: sp.x, y: sp.y, peak: sp.peak, integrated: sp.integrated });
+    }
     rows.push({
       ...base,
       ...values,
@@ -256,7 +293,7 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
       provenance,
     });
   }
-  return rows;
+  return { measurements: rows, spots };
 }
 
 /** Load + compute, never throwing: a failure becomes `{ ok: false, error }` with a one-line message. */
@@ -264,8 +301,8 @@ export async function runFieldJob(store: FileStore, job: FieldJob): Promise<Fiel
   const t0 = performance.now();
   try {
     const px = await loadJobPixels(store, job);
-    const measurements = computeField(job, px);
-    return { runId: job.runId, fieldId: job.fieldId, ok: true, measurements, ms: performance.now() - t0 };
+    const { measurements, spots } = computeFieldResult(job, px);
+    return { runId: job.runId, fieldId: job.fieldId, ok: true, measurements, spots, ms: performance.now() - t0 };
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);
     return { runId: job.runId, fieldId: job.fieldId, ok: false, error: msg.split('\n')[0].slice(0, 500), ms: performance.now() - t0 };

@@ -43,6 +43,16 @@ export type MeasurementValues = { cellId: number } & CoefficientValues & {
   provenance: MeasurementProvenance;
 };
 
+/** One detected spot of a cell (recipe objects section on), as stored in `spots`. */
+export interface SpotValues {
+  cellId: number;
+  channel: 1 | 2;
+  x: number;
+  y: number;
+  peak: number;
+  integrated: number;
+}
+
 export type FieldJobResult =
-  | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; ms: number }
+  | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; spots: SpotValues[]; ms: number }
   | { runId: number; fieldId: number; ok: false; error: string; ms: number };

@@ -6,7 +6,7 @@
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../db/client.js';
 import type { RunQueue } from '../services.js';
-import { auditEvents, cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, studies } from '../db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, measurements, recipes, runFields, runs, spots, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { RunScopeKind } from '../../shared/schemas/runs.js';
 import { notFound } from '../http/errors.js';
@@ -133,6 +133,10 @@ export function recordFieldResult(db: Db, result: FieldJobResult): boolean {
       for (let i = 0; i < result.measurements.length; i += chunk) {
         const part = result.measurements.slice(i, i + chunk).map((m) => ({ ...m, runId: result.runId, fieldId: result.fieldId, provisional: run.provisional }));
         if (part.length) tx.insert(measurements).values(part).onConflictDoNothing().run();
+      }
+      for (let i = 0; i < result.spots.length; i += chunk) {
+        const part = result.spots.slice(i, i + chunk).map((s) => ({ ...s, runId: result.runId, fieldId: result.fieldId }));
+        tx.insert(spots).values(part).run();
       }
       tx.update(runFields).set({ status: 'done', error: null, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
     } else {

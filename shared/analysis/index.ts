@@ -14,6 +14,7 @@ import { icq } from './icq';
 import { otsuThreshold } from './otsu';
 import { costesThresholds } from './costes';
 import { randomizationTest } from './randomization';
+import { mic } from './mic';
 import type { ChannelArray, MeasureOptions, RegionResult, RegionSpec, ThresholdInfo, ThresholdOptions } from './types';
 
 export * from './types';
@@ -29,8 +30,10 @@ export { icq } from './icq';
 export { otsuThreshold } from './otsu';
 export { costesThresholds } from './costes';
 export { randomizationTest, RANDOMIZATION_DEFAULTS } from './randomization';
+export { mic, micOptions, equipartition, MIC_DEFAULTS, type MicOptions, type MicResult } from './mic';
 export { jointHistogram, histogram1d } from './histogram';
 export { chiSquaredDistance, earthMoversDistance1d } from './distances';
+export { quadraticChiDistance, triangleSimilarity } from './quadratic-chi';
 export { rasterize, fillPolygon, fillEllipse, maskToIndices, type Shape, type Point } from './rasterize';
 export { labelRegions, type LabelRegion } from './labels';
 export { NeumaierSum, neumaierSum, FenwickCount, Fenwick4 } from './numeric';
@@ -78,13 +81,14 @@ export function computeThresholds(p: Pairs, t: ThresholdOptions = { method: 'non
 }
 
 /** All coefficients of already-collected pairs (no randomization: it needs the image geometry). */
-export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: ThresholdInfo, options: { skipSlow?: boolean } = {}): RegionResult {
+export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: ThresholdInfo, options: Pick<MeasureOptions, 'skipSlow' | 'mic'> = {}): RegionResult {
   const p = prepare(pairs);
   const n = p.n;
   const m = centeredMoments(p.x, p.y, n, p.integer);
   const d = options.skipSlow ? null : distanceCorrelation(p);
   const md = manders(p, thresholds.ch1, thresholds.ch2);
   const ov = overlapCoefficients(p);
+  const mi = options.mic ? mic(p, options.mic) : null;
   return {
     pixels: n,
     pearson: pearsonFromMoments(m),
@@ -101,6 +105,8 @@ export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: Threshold
     k1: ov.k1,
     k2: ov.k2,
     icq: icq(p),
+    micE: mi?.micE ?? null,
+    ticE: mi?.ticE ?? null,
     thresholds,
     randomizationP: null,
     randomizationFractionBelow: null,
@@ -114,7 +120,7 @@ export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: Threshold
  * @param ch2 channel 2, same size
  * @param region mask (Uint8Array, non-zero inside), linear pixel indices, or null for the whole image
  * @param options thresholds (computed over this region's pixels unless given as ThresholdInfo), the
- *   randomization test (needs `width`), `skipSlow`
+ *   randomization test (needs `width`), `skipSlow`, `mic` (MICe/TICe parameters; omitted = not computed)
  */
 export function measureRegion(ch1: ChannelArray, ch2: ChannelArray, region: RegionInput, options: MeasureOptions = {}): RegionResult {
   const spec = toRegionSpec(region);
@@ -147,4 +153,10 @@ export { detectSpots, spotOptions, SPOT_DEFAULTS, type Spot, type SpotDetection,
 export { PointGrid, pairSpots, nearestNeighbours, type PairingResult, type NearestResult } from './pairing';
 export { spotPlacementTest, SPOT_TEST_DEFAULTS, type SpotTestResult, type KEnvelope } from './spot-test';
 export { crossK, type CrossK, type KCorrection, type KWindow } from './ripley';
-export { measureObjects, analyzeObjects, OBJECT_DEFAULTS, OBJECT_RESULT_KEYS, type ObjectResult, type ObjectOptions, type ObjectAnalysis } from './objects';
+export { measureObjects, analyzeObjects, objectMeasures, OBJECT_DEFAULTS, OBJECT_RESULT_KEYS, OBJECT_MEASURE_SOURCE, type ObjectResult, type ObjectOptions, type ObjectAnalysis } from './objects';
+export { nextPowerOfTwo, realFft2dPair, inverseRealFft2d } from './fft';
+export { measureShift, tukeyWindow, SHIFT_TAPER, type ShiftResult, type ShiftOptions } from './phase-correlation';
+export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-correlation';
+export { alignChannel } from './align';
+export { bleedThroughSlope } from './bleed';
+export { unmixChannels, checkBleedCoefficient } from './unmix';

@@ -17,7 +17,7 @@
 import { pairSpots, checkPairDistance } from './pairing';
 import { detectSpots, regionIndexList, type SpotDetection, type SpotOptions } from './spots';
 import { checkPlacements, spotPlacementTest, SPOT_TEST_DEFAULTS, type KEnvelope } from './spot-test';
-import type { ChannelArray } from './types';
+import type { ChannelArray, ObjectMeasureKey } from './types';
 
 export const OBJECT_DEFAULTS = { spotSigma: 1.5, spotK: 5, pairDistance: 2, placements: 999, seed: 1 } as const;
 
@@ -50,6 +50,26 @@ export interface ObjectResult {
 export const OBJECT_RESULT_KEYS = [
   'count1', 'count2', 'paired1', 'paired2', 'mutualPairs', 'medianNearest1', 'medianNearest2', 'pValue', 'chanceFraction1', 'spots1', 'spots2',
 ] as const satisfies readonly (keyof ObjectResult)[];
+
+/** The per-cell object measure (measurements column, registry key) → its key of the `analyze` contract. */
+export const OBJECT_MEASURE_SOURCE = {
+  spotCount1: 'count1',
+  spotCount2: 'count2',
+  spotPaired1: 'paired1',
+  spotPaired2: 'paired2',
+  spotMutualPairs: 'mutualPairs',
+  spotMedianNearest1: 'medianNearest1',
+  spotMedianNearest2: 'medianNearest2',
+  spotPValue: 'pValue',
+  spotChanceFraction1: 'chanceFraction1',
+} as const satisfies Record<ObjectMeasureKey, Exclude<keyof ObjectResult, 'spots1' | 'spots2'>>;
+
+/** The per-cell object measures of a result, under their registry keys. */
+export function objectMeasures(r: ObjectResult): Record<ObjectMeasureKey, number | null> {
+  const out = {} as Record<ObjectMeasureKey, number | null>;
+  for (const k of Object.keys(OBJECT_MEASURE_SOURCE) as ObjectMeasureKey[]) out[k] = r[OBJECT_MEASURE_SOURCE[k]];
+  return out;
+}
 
 export interface ObjectAnalysis {
   result: ObjectResult;

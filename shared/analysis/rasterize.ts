@@ -32,28 +32,42 @@ function finite(v: number, what: string): void {
 
 /** Even-odd polygon fill into `mask` (sets 1). */
 export function fillPolygon(mask: Uint8Array, width: number, height: number, points: Point[]): void {
+  fillRings(mask, width, height, [points]);
+}
+
+/**
+ * Even-odd fill of several rings at once (a polygon with holes: the crossings of every ring count together,
+ * so a pixel centre inside the outer ring and inside one hole is outside). Rings of fewer than 3 vertices
+ * add nothing. Sets 1 in `mask`.
+ */
+export function fillRings(mask: Uint8Array, width: number, height: number, rings: Point[][]): void {
   checkSize(width, height);
   if (mask.length !== width * height) throw new RangeError(`mask has ${mask.length} pixels, expected ${width * height}`);
-  const m = points.length;
-  for (const [px, py] of points) {
-    finite(px, 'polygon x');
-    finite(py, 'polygon y');
-  }
-  if (m < 3) return;
   let ymin = Infinity, ymax = -Infinity;
-  for (const [, py] of points) {
-    if (py < ymin) ymin = py;
-    if (py > ymax) ymax = py;
-  }
+  const used = rings.filter((r) => r.length >= 3);
+  for (const ring of rings)
+    for (const [px, py] of ring) {
+      finite(px, 'polygon x');
+      finite(py, 'polygon y');
+    }
+  for (const ring of used)
+    for (const [, py] of ring) {
+      if (py < ymin) ymin = py;
+      if (py > ymax) ymax = py;
+    }
+  if (!used.length) return;
   const j0 = Math.max(0, Math.floor(ymin - 0.5)), j1 = Math.min(height - 1, Math.ceil(ymax - 0.5));
   const xs: number[] = [];
   for (let j = j0; j <= j1; j++) {
     const yc = j + 0.5;
     xs.length = 0;
-    for (let e = 0; e < m; e++) {
-      const [ax, ay] = points[e];
-      const [bx, by] = points[(e + 1) % m];
-      if (ay > yc !== by > yc) xs.push(ax + ((yc - ay) * (bx - ax)) / (by - ay));
+    for (const points of used) {
+      const m = points.length;
+      for (let e = 0; e < m; e++) {
+        const [ax, ay] = points[e];
+        const [bx, by] = points[(e + 1) % m];
+        if (ay > yc !== by > yc) xs.push(ax + ((yc - ay) * (bx - ax)) / (by - ay));
+      }
     }
     xs.sort((a, b) => a - b);
     for (let k = 0; k + 1 < xs.length; k += 2) {

@@ -81,6 +81,8 @@ export interface MeasureOptions {
   randomization?: RandomizationOptions;
   /** skip the O(n log L) coefficients (τ-b, dCor) e.g. for a quick preview */
   skipSlow?: boolean;
+  /** compute MICe and TICe with these parameters (omitted = not computed, both null) */
+  mic?: { alpha?: number; c?: number };
 }
 
 export interface RandomizationResult {
@@ -111,6 +113,10 @@ export interface RegionResult extends RandomizationResult {
   k1: number | null;
   k2: number | null;
   icq: number | null;
+  /** MICe (Reshef et al. 2016), in [0, 1]; null unless asked for (`mic` option) */
+  micE: number | null;
+  /** TICe (Reshef et al. 2016): the sum of the equicharacteristic matrix; null unless asked for */
+  ticE: number | null;
   thresholds: ThresholdInfo;
 }
 
@@ -139,6 +145,29 @@ export const REGION_RESULT_KEYS = [
 /** The numeric results of the randomization test that are stored per cell (the count is provenance). */
 export const RANDOMIZATION_RESULT_KEYS = ['randomizationP', 'randomizationFractionBelow'] as const;
 
-/** Every numeric per-cell measure the engine reports: the region coefficients, then the randomization test. */
-export const MEASURE_KEYS = [...REGION_RESULT_KEYS, ...RANDOMIZATION_RESULT_KEYS] as const;
+/** MICe and TICe: computed only when asked for (`mic` option; recipe choice 'mic', `analyze --mic`). */
+export const MIC_RESULT_KEYS = ['micE', 'ticE'] as const;
+
+
+/**
+ * The per-cell object measures (objects.ts `measureObjects`, stored by runs when the recipe's objects section
+ * is on), named for the measurements table; `OBJECT_MEASURE_SOURCE` (objects.ts) maps each to its key of the
+ * `analyze` contract (`OBJECT_RESULT_KEYS`).
+ */
+export const OBJECT_MEASURE_KEYS = [
+  'spotCount1',
+  'spotCount2',
+  'spotPaired1',
+  'spotPaired2',
+  'spotMutualPairs',
+  'spotMedianNearest1',
+  'spotMedianNearest2',
+  'spotPValue',
+  'spotChanceFraction1',
+] as const;
+export type ObjectMeasureKey = (typeof OBJECT_MEASURE_KEYS)[number];
+
+
+/** Every numeric per-cell measure the engine reports: the region coefficients, MICe/TICe, the randomization test, then the object measures. */
+export const MEASURE_KEYS = [...REGION_RESULT_KEYS, ...MIC_RESULT_KEYS, ...RANDOMIZATION_RESULT_KEYS, ...OBJECT_MEASURE_KEYS] as const;
 export type MeasureKey = (typeof MEASURE_KEYS)[number];

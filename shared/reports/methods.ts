@@ -81,6 +81,7 @@ function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => stri
   const out: string[] = [];
   for (const key of SETTING_KEYS) {
     if (key === 'coefficients') continue; // stated with citations in the coefficient paragraph
+    if (key === 'mic' && !s.coefficients.includes('mic')) continue; // parameters of a measure not computed
     let sentence = describeSetting(key, s);
     const cited = (k: keyof typeof CITATIONS) => (sentence = sentence.replace(/\.$/, ` ${ref(k)}.`));
     if (key === 'threshold' && s.threshold.method === 'otsu') cited('otsu');
@@ -90,6 +91,8 @@ function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => stri
       cited('costes');
       sentence += ' The p-value counts the observed image among the scrambles.';
     }
+    if (key === 'objects' && s.objects.enabled)
+      for (const k of ['lindeberg', 'besagDiggle'] as const) sentence = sentence.replace(CITATIONS[k].key, `${CITATIONS[k].key} ${ref(k)}`);
     out.push(sentence);
   }
   return out;

@@ -6,22 +6,13 @@
 import { z } from 'zod';
 import { CELL_TABLE_KEYS, COEFFICIENTS, byKey, formatCoefficient, isCoefficientKey } from '../coefficients';
 import { formatNumber } from '../format/number';
+import { MEASUREMENT_INPUT_KEYS } from './runs';
 
 /**
  * Numeric measurement columns: sortable, filterable by range, exportable. Keys are the API names: the registry's
  * Cell table measures (shared/coefficients.ts `cellTable`), then the recipe's per-cell inputs.
  */
-export const NUMERIC_COLUMNS = [
-  ...CELL_TABLE_KEYS,
-  'threshold1',
-  'threshold2',
-  'background1',
-  'background2',
-  'saturatedFraction1',
-  'saturatedFraction2',
-  'mean1',
-  'mean2',
-] as const;
+export const NUMERIC_COLUMNS = [...CELL_TABLE_KEYS, ...MEASUREMENT_INPUT_KEYS] as const;
 export type NumericColumn = (typeof NUMERIC_COLUMNS)[number];
 
 /** Cell table columns shown until the user picks others: the registry's `cellTable: 'default'` plus the flags. */
@@ -62,9 +53,12 @@ export type SortKey = (typeof SORT_KEYS)[number];
 /** Columns a CSV export may carry, in this order by default. */
 export const EXPORT_COLUMNS = [
   'cellId',
+  'conditionId',
   'condition',
+  'coverslipId',
   'coverslip',
   'replicate',
+  'fieldId',
   'field',
   'cell',
   ...NUMERIC_COLUMNS,

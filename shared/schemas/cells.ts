@@ -62,7 +62,7 @@ export type DrawnGeometry = z.infer<typeof DrawnGeometrySchema>;
 
 export const CellRole = z.enum(['cell', 'background']);
 export type CellRole = z.infer<typeof CellRole>;
-export const CellSource = z.enum(['drawn', 'label_image', 'automatic', 'seed']);
+export const CellSource = z.enum(['drawn', 'label_image', 'automatic', 'seed', 'geojson']);
 
 export const Cell = z.object({
   id: z.number().int(),
@@ -131,6 +131,52 @@ export type AutoOutlineResponse = z.infer<typeof AutoOutlineResponse>;
 
 export const ImportLabelsResponse = z.object({ cells: z.array(Cell), labels: z.number().int() });
 export type ImportLabelsResponse = z.infer<typeof ImportLabelsResponse>;
+
+/**
+ * Outlines as GeoJSON (RFC 7946, Butler et al. 2016, doi:10.17487/RFC7946): GET /api/fields/:id/cells.geojson
+ * and POST /api/fields/:id/cells/geojson. Coordinates are pixels, not longitude/latitude (stated in the
+ * collection's `properties`, a foreign member RFC 7946 §6.1 allows); each feature's properties carry the name,
+ * the background flag and how the outline is stored (server/cells/geojson.ts).
+ */
+export const PIXEL_CONVENTION =
+  'pixel coordinates, not longitude/latitude: x to the right, y down, origin at the top-left corner of pixel (0, 0); pixel (i, j) covers [i, i+1) × [j, j+1) and belongs to an outline when its centre (i + 0.5, j + 0.5) is inside by the even-odd rule over the rings of a polygon';
+const Position = z.tuple([z.number(), z.number()]);
+const Ring = z.array(Position);
+export const OutlineGeometry = z.discriminatedUnion('type', [
+  z.object({ type: z.literal('Polygon'), coordinates: z.array(Ring) }),
+  z.object({ type: z.literal('MultiPolygon'), coordinates: z.array(z.array(Ring)) }),
+]);
+export const OUTLINE_KINDS = ['polygon', 'freehand', 'rect', 'ellipse', 'label'] as const;
+export const OutlineProperties = z.object({
+  name: z.string(),
+  /** a background region (for background subtraction), not a cell */
+  background: z.boolean(),
+  /** how the outline is stored: a rect or ellipse comes back exactly from `shape`, the polygon drawn for other tools */
+  kind: z.enum(OUTLINE_KINDS),
+  shape: z.union([RectGeometry.omit({ kind: true }), EllipseGeometry.omit({ kind: true })]).optional(),
+  /** the label number of a cell imported from a label image */
+  label: z.number().int().positive().optional(),
+  cellId: z.number().int(),
+  excluded: z.boolean(),
+});
+export const OutlineFeature = z.object({ type: z.literal('Feature'), id: z.number().int(), geometry: OutlineGeometry, properties: OutlineProperties });
+export const OutlineCollection = z.object({
+  type: z.literal('FeatureCollection'),
+  properties: z.object({
+    coordinates: z.literal('pixel'),
+    convention: z.string(),
+    fieldId: z.number().int(),
+    field: z.string(),
+    width: z.number().int(),
+    height: z.number().int(),
+  }),
+  features: z.array(OutlineFeature),
+});
+export type OutlineCollection = z.infer<typeof OutlineCollection>;
+export type OutlineFeature = z.infer<typeof OutlineFeature>;
+
+export const ImportOutlinesResponse = z.object({ cells: z.array(Cell), features: z.number().int() });
+export type ImportOutlinesResponse = z.infer<typeof ImportOutlinesResponse>;
 
 // ---------------------------------------------------------------------------------------------------------
 // The one mapping from a stored cell geometry to its pixels, used by the server (pixelCount, runs) and the

@@ -13,10 +13,14 @@ export const IdParam = z
     error: (iss) => `expected a positive whole-number id, got ${JSON.stringify(iss.input)}`,
   })
   .transform(Number);
+/** A token from an e-mailed link (a share link or an invitation), as it appears in the path. */
+export const LinkToken = z.string().min(1);
 export const Id = z.number().int().positive();
 export const IsoDate = z.string();
 export const OkResponse = z.object({ ok: z.literal(true) });
 export type OkResponse = z.infer<typeof OkResponse>;
+/** Every 4xx/5xx answer of the API (server/http/errors.ts): a message, and per-field issues for a refused request. */
+export const ErrorResponse = z.object({ error: z.string(), issues: z.array(z.object({ path: z.string(), message: z.string() })).optional() });
 export const Name = (what: string, max = 120) => z.string({ message: `enter a ${what}` }).trim().min(1, `enter a ${what}`).max(max, `a ${what} has at most ${max} characters`);
 
 /**

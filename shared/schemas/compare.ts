@@ -54,8 +54,11 @@ export const CoverslipStats = z.object({
   /** position in the colour palette, 0-based, stable within the comparison */
   colorIndex: z.number().int(),
   nCells: z.number().int(),
-  /** mean of cells (through Fisher's z for correlation coefficients) */
+  /** mean of cells (through Fisher's z for correlation coefficients), on the coefficient's own (r) scale */
   mean: Num,
+  /** the same mean on Fisher's z scale, the scale the tests and intervals use: mean of atanh(r) over the cells;
+   * null for coefficients not averaged through z. Absent in reports made before it was recorded. */
+  meanZ: Num.optional(),
   median: Num,
   sd: Num,
 });
@@ -66,8 +69,10 @@ export const ConditionStats = z.object({
   name: z.string(),
   nCoverslips: z.number().int(),
   nCells: z.number().int(),
-  /** mean of coverslip means (Fisher's z averaged for correlation coefficients) */
+  /** mean of coverslip means (Fisher's z averaged for correlation coefficients), on the r scale */
   mean: Num,
+  /** mean of the coverslips' z means (null for coefficients not averaged through z; absent in older reports) */
+  meanZ: Num.optional(),
   /** SD of coverslip means (on the z scale for correlation coefficients) */
   sdOfCoverslipMeans: Num,
   ci: z.object({ lower: Num, upper: Num }),
@@ -106,16 +111,44 @@ export const HistogramSet = z.object({
   label: z.string(),
   edges: z.array(z.number()),
   byCondition: z.array(z.object({ conditionId: z.number().int(), counts: z.array(z.number().int()) })),
-  distances: z.array(z.object({ a: z.number().int(), b: z.number().int(), chiSquared: Num, emd: Num })),
+  distances: z.array(
+    z.object({
+      a: z.number().int(),
+      b: z.number().int(),
+      chiSquared: Num,
+      emd: Num,
+      /** quadratic-chi, m = 0.5, A_ij = max(0, 1 − |i − j|/2) (Pele & Werman 2010); null in reports frozen before it */
+      quadraticChiS: Num.default(null),
+      /** quadratic-chi, m = 0.9, same A */
+      quadraticChiN: Num.default(null),
+    }),
+  ),
 });
 export type HistogramSet = z.infer<typeof HistogramSet>;
+
+export const CompareSourceKind = z.enum(['run', 'recipe', 'none']);
+export const CompareScale = z.enum(['fisher_z', 'identity']);
 
 export const Comparison = z.object({
   studyId: z.number().int(),
   coefficient: CompareCoefficient,
   label: z.string(),
   averaging: z.enum(['arithmetic', 'fisher_z']),
-  source: z.object({ runId: z.number().int().nullable(), recipeId: z.number().int().nullable(), recipeName: z.string().nullable(), recipeVersion: z.number().int().nullable() }),
+  source: z.object({
+    /** run: one run's measurements; recipe: the latest measurement per cell among the study's runs of a recipe
+     * version; none: nothing measured yet (absent in reports made before it was recorded) */
+    kind: CompareSourceKind.optional(),
+    /** whether the request named the source (runId or recipeId); unpinned requests take the recipe of the
+     * study's most recent run with measurements (absent in older reports) */
+    pinned: z.boolean().optional(),
+    runId: z.number().int().nullable(),
+    recipeId: z.number().int().nullable(),
+    recipeName: z.string().nullable(),
+    recipeVersion: z.number().int().nullable(),
+  }),
+  /** the scale coverslip means are averaged, tested and bootstrapped on: Fisher's z for correlation
+   * coefficients, the coefficient's own values otherwise (absent in reports made before it was recorded) */
+  scale: CompareScale.optional(),
   bootstrap: z.object({ resamples: z.number().int(), seed: z.number().int(), confidence: z.number() }),
   points: z.array(ComparePoint),
   coverslips: z.array(CoverslipStats),

@@ -10,9 +10,13 @@
  *   live cells. Biophys. J. 86:3993–4003. doi:10.1529/biophysj.103.038422
  * - Manders E.M.M., Verbeek F.J., Aten J.A. (1993) Measurement of co-localization of objects in dual-colour
  *   confocal images. J. Microsc. 169:375–382. doi:10.1111/j.1365-2818.1993.tb03313.x
+ * - Lindeberg T. (1998) Feature detection with automatic scale selection. Int. J. Comput. Vis. 30:79–116.
+ *   doi:10.1023/A:1008045108935 (spots: Laplacian of Gaussian)
+ * - Besag J., Diggle P.J. (1977) Simple Monte Carlo tests for spatial pattern. Appl. Stat. 26:327–333.
+ *   doi:10.2307/2346974 (spots: the chance placement test)
  */
 import { z } from 'zod';
-import { RECIPE_CHOICES, RECIPE_CHOICE_LABELS } from '../coefficients';
+import { DEFAULT_RECIPE_CHOICES, RECIPE_CHOICES, RECIPE_CHOICE_LABELS } from '../coefficients';
 
 // ---------------------------------------------------------------- settings
 
@@ -59,6 +63,13 @@ export const RandomizationSetting = z.object({
 });
 export type RandomizationSetting = z.infer<typeof RandomizationSetting>;
 
+/** MICe/TICe parameters (Reshef et al. 2016): grid budget B(n) = n^alpha, at most c·B(n)/l clumps. */
+export const MicSetting = z.object({
+  alpha: z.number().gt(0, 'alpha must be above 0').max(1).default(0.6),
+  c: z.number().gt(0, 'c must be above 0').max(100).default(15),
+});
+export type MicSetting = z.infer<typeof MicSetting>;
+
 export const ZSetting = z.discriminatedUnion('mode', [
   /** one slice, 0-based */
   z.object({ mode: z.literal('slice'), slice: z.number().int().min(0).default(0) }),
@@ -68,6 +79,58 @@ export const ZSetting = z.discriminatedUnion('mode', [
   z.object({ mode: z.literal('mip') }),
 ]).refine((z) => z.mode !== 'range' || z.from <= z.to, { message: 'z range: "from" must not be after "to"' });
 export type ZSetting = z.infer<typeof ZSetting>;
+
+/**
+ * Spot filter scale σ: in pixels, or from the point-spread function's full width at half maximum:
+ * σ = FWHM / (2√(2 ln 2)) / pixel size (the Gaussian whose FWHM is the PSF's); pixel size from the recipe, or
+ * the field's when null.
+ */
+export const SpotScaleSetting = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('pixels'), sigmaPx: z.number().positive().max(50) }),
+  z.object({ kind: z.literal('psf'), psfWidthUm: z.number().positive().max(100), pixelSizeUm: z.number().positive().max(100).nullable().default(null) }),
+]);
+export type SpotScaleSetting = z.infer<typeof SpotScaleSetting>;
+
+/** Pair distance d (a spot is paired when its nearest spot of the other channel is at most d away): pixels or µm. */
+export const PairDistanceSetting = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('pixels'), pixels: z.number().min(0).max(1000) }),
+  /** converted with the recipe's pixel size, or the field's when null */
+  z.object({ kind: z.literal('um'), um: z.number().min(0).max(1000), pixelSizeUm: z.number().positive().max(100).nullable().default(null) }),
+]);
+export type PairDistanceSetting = z.infer<typeof PairDistanceSetting>;
+
+/** Object-based co-localization: spots per channel, pairs within d, the chance placement test (shared/analysis/objects.ts). */
+export const ObjectsSetting = z.object({
+  enabled: z.boolean().default(false),
+  scale: SpotScaleSetting.default({ kind: 'pixels', sigmaPx: 1.5 }),
+  /** a spot's filter response must exceed k × the robust noise estimate of the cell */
+  k: z.number().positive().max(1000).default(5),
+  /** smallest centre-to-centre distance of two spots of one channel, pixels; null = 2σ */
+  minSeparationPx: z.number().min(0).max(1000).nullable().default(null),
+  pairDistance: PairDistanceSetting.default({ kind: 'pixels', pixels: 2 }),
+  /** random placements of the chance placement test */
+  placements: z.number().int().min(1).max(100_000).default(999),
+  /** seed of the chance placement test's generator */
+  seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
+});
+export type ObjectsSetting = z.infer<typeof ObjectsSetting>;
+export const DEFAULT_OBJECTS_SETTING: ObjectsSetting = ObjectsSetting.parse({});
+
+/** σ of the spot filter in pixels (the field's pixel size is used when the recipe gives none). Throws when neither gives one. */
+export function spotSigmaPx(o: ObjectsSetting, fieldPixelSizeUm: number | null): number {
+  if (o.scale.kind === 'pixels') return o.scale.sigmaPx;
+  const px = o.scale.pixelSizeUm ?? fieldPixelSizeUm;
+  if (!px) throw new RangeError('the spot scale comes from the point-spread width, but neither the recipe nor the field gives a pixel size');
+  return o.scale.psfWidthUm / (2 * Math.sqrt(2 * Math.LN2)) / px;
+}
+
+/** Pair distance d in pixels (the field's pixel size is used when the recipe gives none). Throws when neither gives one. */
+export function pairDistancePx(o: ObjectsSetting, fieldPixelSizeUm: number | null): number {
+  if (o.pairDistance.kind === 'pixels') return o.pairDistance.pixels;
+  const px = o.pairDistance.pixelSizeUm ?? fieldPixelSizeUm;
+  if (!px) throw new RangeError('the pair distance is given in µm, but neither the recipe nor the field gives a pixel size');
+  return o.pairDistance.um / px;
+}
 
 /** What a recipe may compute: the registry's recipe choices (shared/coefficients.ts). */
 export const COEFFICIENTS = RECIPE_CHOICES;
@@ -85,17 +148,21 @@ export const RecipeSettings = z.object({
   z: ZSetting.default({ mode: 'slice', slice: 0 }),
   /** cells with fewer measured pixels get a measurement row with every coefficient null */
   minCellPixels: z.number().int().min(0).max(100_000_000).default(20),
-  coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...COEFFICIENTS])
+  coefficients: z.array(Coefficient).min(1, 'choose at least one coefficient').default([...DEFAULT_RECIPE_CHOICES])
     .transform((a) => COEFFICIENTS.filter((c) => a.includes(c))),
   /** seed of the randomization test's generator (a run with the same seed repeats exactly) */
   seed: z.number().int().min(0).max(2 ** 32 - 1).default(1),
+  /** parameters of MICe/TICe (used when `coefficients` has 'mic') */
+  mic: MicSetting.default({ alpha: 0.6, c: 15 }),
+  /** spots, pairs within d and the chance placement test (off by default) */
+  objects: ObjectsSetting.default(DEFAULT_OBJECTS_SETTING),
 });
 export type RecipeSettings = z.infer<typeof RecipeSettings>;
 export type RecipeSettingsInput = z.input<typeof RecipeSettings>;
 
 export const DEFAULT_RECIPE_SETTINGS: RecipeSettings = RecipeSettings.parse({});
 
-export const SETTING_KEYS = ['background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'seed'] as const;
+export const SETTING_KEYS = ['background', 'saturation', 'threshold', 'randomization', 'z', 'minCellPixels', 'coefficients', 'mic', 'seed', 'objects'] as const;
 export type SettingKey = (typeof SETTING_KEYS)[number];
 export const SETTING_LABELS: Record<SettingKey, string> = {
   background: 'Background',
@@ -105,8 +172,61 @@ export const SETTING_LABELS: Record<SettingKey, string> = {
   z: 'Z slices',
   minCellPixels: 'Smallest cell',
   coefficients: 'Coefficients',
+  mic: 'MICe and TICe',
   seed: 'Seed',
+  objects: 'Spots',
 };
+
+/** Measured cost of MICe/TICe at α 0.6, c 15 (tests/bench/mic.bench.ts), stated in the recipe sentence. */
+const MIC_COST = 'They cost up to about half a second of one processor core per 20,000-pixel cell of 16-bit data (about 35 ms for 8-bit data with many ties)';
+
+/** The parts of the objects section, each with its own sentence (the editor shows them one by one). */
+export const OBJECT_SETTING_KEYS = ['scale', 'k', 'minSeparationPx', 'pairDistance', 'placements', 'seed'] as const;
+export type ObjectSettingKey = (typeof OBJECT_SETTING_KEYS)[number];
+export const OBJECT_SETTING_LABELS: Record<ObjectSettingKey, string> = {
+  scale: 'Spot size',
+  k: 'Detection strictness',
+  minSeparationPx: 'Closest spots',
+  pairDistance: 'Pairs within d',
+  placements: 'Chance placement test',
+  seed: 'Placement seed',
+};
+
+const sigmaText = (o: ObjectsSetting) =>
+  o.scale.kind === 'pixels'
+    ? `σ = ${fmt(o.scale.sigmaPx)} px`
+    : `σ = ${fmt(o.scale.psfWidthUm)} µm / 2.355 at ${o.scale.pixelSizeUm == null ? "the field's pixel size" : `${fmt(o.scale.pixelSizeUm)} µm per pixel`}`;
+
+/** One plain sentence for one part of the objects section. */
+export function describeObjectSetting(key: ObjectSettingKey, o: ObjectsSetting): string {
+  switch (key) {
+    case 'scale':
+      return o.scale.kind === 'pixels'
+        ? `Spots are found in each channel with a Laplacian-of-Gaussian filter (Lindeberg 1998) of width σ = ${fmt(o.scale.sigmaPx)} pixels, about the radius of one spot.`
+        : `Spots are found in each channel with a Laplacian-of-Gaussian filter (Lindeberg 1998) as wide as the point-spread function: a full width at half maximum of ${fmt(o.scale.psfWidthUm)} µm gives ${sigmaText(o)} pixels.`;
+    case 'k':
+      return `A local maximum counts as a spot when its filter response is more than ${fmt(o.k)} times the cell's noise level (1.4826 × the median absolute deviation of the response); a higher value finds fewer, brighter spots.`;
+    case 'minSeparationPx':
+      return o.minSeparationPx === null
+        ? 'Two spots of one channel closer than 2σ are taken as one (the brighter is kept).'
+        : `Two spots of one channel closer than ${fmt(o.minSeparationPx)} pixels are taken as one (the brighter is kept).`;
+    case 'pairDistance': {
+      const p = o.pairDistance;
+      const d =
+        p.kind === 'pixels'
+          ? `${fmt(p.pixels)} pixels (multiply by the pixel size for the distance in the specimen)`
+          : `${fmt(p.um)} µm in the specimen (converted with ${p.pixelSizeUm == null ? "each field's pixel size" : `${fmt(p.pixelSizeUm)} µm per pixel`})`;
+      return `A spot is paired when the nearest spot of the other channel has its centre at most d = ${d} away: d is how far apart two labels on the same structure may appear, so it should cover the chromatic shift between channels plus the localisation error, and stay below the typical spacing of unrelated spots.`;
+    }
+    case 'placements':
+      return `The chance placement test (Besag & Diggle 1977) places the channel-2 spots uniformly at random in the cell ${o.placements} times and reports how often chance pairs at least as many channel-1 spots (p = (1 + count) / ${o.placements + 1}, so p cannot be below ${fmt(1 / (o.placements + 1))}); time grows in proportion to the placements.`;
+    case 'seed':
+      return `The chance placements start from seed ${o.seed}, so the same run gives the same p-values again.`;
+  }
+}
+
+/** Every part's sentence, in editor order. */
+export const describeObjectSettings = (o: ObjectsSetting) => OBJECT_SETTING_KEYS.map((k) => ({ key: k, label: OBJECT_SETTING_LABELS[k], sentence: describeObjectSetting(k, o) }));
 
 const fmt = (n: number) => (Number.isInteger(n) ? String(n) : String(Number(n.toPrecision(6))));
 
@@ -157,8 +277,19 @@ export function describeSetting(key: SettingKey, s: RecipeSettings): string {
         : 'Every cell is measured, however small.';
     case 'coefficients':
       return `Computed: ${s.coefficients.map((c) => COEFFICIENT_LABELS[c]).join(', ')}.`;
+    case 'mic': {
+      const on = s.coefficients.includes('mic');
+      const params = `grids of at most n^${fmt(s.mic.alpha)} cells for n pixels and at most ${fmt(s.mic.c)} × n^${fmt(s.mic.alpha)} / rows clumps`;
+      return on
+        ? `MICe and TICe (Reshef et al. 2016) are computed with ${params}. ${MIC_COST}, more than all other coefficients together.`
+        : `MICe and TICe are not computed. ${MIC_COST} when chosen (${params}).`;
+    }
     case 'seed':
       return `The random generator starts from seed ${s.seed}, so the same run gives the same numbers again.`;
+    case 'objects':
+      return s.objects.enabled
+        ? OBJECT_SETTING_KEYS.map((k) => describeObjectSetting(k, s.objects)).join(' ')
+        : 'No spots are detected (object-based measures are off).';
   }
 }
 

@@ -1,6 +1,10 @@
 /** Runs: one recipe version applied to a scope (field, coverslip, condition, study); progress and provenance. */
 import { z } from 'zod';
 import { RecipeSettings, RecipeStatus } from './recipes.js';
+import { MEASURE_KEYS, type MeasureKey } from '../analysis/types.js';
+
+/** What a run stores per cell besides the registry's measures: the recipe's per-cell inputs and channel means. */
+export const MEASUREMENT_INPUT_KEYS = ['threshold1', 'threshold2', 'background1', 'background2', 'saturatedFraction1', 'saturatedFraction2', 'mean1', 'mean2'] as const;
 
 export const RunScopeKind = z.enum(['field', 'coverslip', 'condition', 'study']);
 export type RunScopeKind = z.infer<typeof RunScopeKind>;
@@ -82,6 +86,111 @@ export const MeasurementProvenance = z.object({
   note: z.string().nullable(),
   /** pixels of the cell left out because a channel holds NaN there (float data); absent on rows measured before it was recorded */
   nanPixels: z.number().int().nonnegative().optional(),
+  /** the objects section as applied (σ and d in pixels), when it was on; absent otherwise */
+  objects: z.lazy(() => AppliedObjectSettings).optional(),
   computedAt: z.string(),
 });
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;
+
+/** The objects section as a run applied it: σ, minimum separation and pair distance d in pixels. */
+export const AppliedObjectSettings = z.object({
+  sigmaPx: z.number(),
+  k: z.number(),
+  minSeparationPx: z.number(),
+  pairDistancePx: z.number(),
+  placements: z.number().int(),
+  seed: z.number().int(),
+});
+export type AppliedObjectSettings = z.infer<typeof AppliedObjectSettings>;
+
+/** One detected spot: centre (x right, y down, pixels, origin the top-left corner of pixel (0, 0)), peak and integrated intensity. */
+export const SpotRow = z.object({
+  cellId: z.number().int(),
+  channel: z.union([z.literal(1), z.literal(2)]),
+  x: z.number(),
+  y: z.number(),
+  peak: z.number(),
+  integrated: z.number(),
+});
+export type SpotRow = z.infer<typeof SpotRow>;
+
+/**
+ * `GET /api/runs/:id/fields/:fieldId/spots`: the spots a run found in one field's cells, by cell and channel.
+ * `settings` is null when the run's recipe had the objects section off (then `spots` is empty).
+ */
+export const FieldSpotsResponse = z.object({
+  runId: z.number().int(),
+  fieldId: z.number().int(),
+  settings: AppliedObjectSettings.nullable(),
+  spots: z.array(SpotRow),
+});
+export type FieldSpotsResponse = z.infer<typeof FieldSpotsResponse>;
+
+/**
+ * GET /api/runs/:id/measurements: a run's measurements, one page at a time in measurement-id order. `cursor`
+ * is the `nextCursor` of the previous page (absent for the first); the last page has `nextCursor: null`.
+ * Cells deleted since the run are left out, as in the Cell table.
+ */
+export const MAX_MEASUREMENTS_PAGE = 5000;
+export const RunMeasurementsQuery = z.object({
+  cursor: z
+    .string()
+    .refine((v) => /^(0|[1-9][0-9]{0,15})$/.test(v) && Number.isSafeInteger(Number(v)), {
+      error: (iss) => `expected the nextCursor of the previous page (a whole number), got ${JSON.stringify(iss.input)}`,
+    })
+    .transform(Number)
+    .optional(),
+  limit: z.coerce.number().int().min(1).max(MAX_MEASUREMENTS_PAGE).default(1000),
+});
+export type RunMeasurementsQuery = z.infer<typeof RunMeasurementsQuery>;
+
+const Measure = z.number().nullable();
+/** One measurement: where the cell is (ids and names), every registry measure, the per-cell inputs, provenance. */
+export const RunMeasurement = z.object({
+  measurementId: z.number().int(),
+  runId: z.number().int(),
+  cellId: z.number().int(),
+  cell: z.string(),
+  fieldId: z.number().int(),
+  field: z.string(),
+  coverslipId: z.number().int(),
+  coverslip: z.string(),
+  replicate: z.number().int(),
+  conditionId: z.number().int(),
+  condition: z.string(),
+  ...(Object.fromEntries(MEASURE_KEYS.map((k) => [k, Measure])) as Record<MeasureKey, typeof Measure>),
+  ...(Object.fromEntries(MEASUREMENT_INPUT_KEYS.map((k) => [k, Measure])) as Record<(typeof MEASUREMENT_INPUT_KEYS)[number], typeof Measure>),
+  thresholdMethod: z.string().nullable(),
+  provisional: z.boolean(),
+  excluded: z.boolean(),
+  provenance: MeasurementProvenance,
+});
+export type RunMeasurement = z.infer<typeof RunMeasurement>;
+
+export const RunMeasurementsPage = z.object({
+  run: z.object({
+    id: z.number().int(),
+    studyId: z.number().int(),
+    status: RunStatus,
+    provisional: z.boolean(),
+    recipeId: z.number().int(),
+    recipeName: z.string(),
+    recipeVersion: z.number().int(),
+  }),
+  measurements: z.array(RunMeasurement),
+  nextCursor: z.number().int().nullable(),
+});
+export type RunMeasurementsPage = z.infer<typeof RunMeasurementsPage>;
+
+/** Columns of GET /api/runs/:id/measurements.csv, in order: the JSON keys with provenance flattened to its main parts. */
+export const MEASUREMENT_CSV_COLUMNS = [
+  ...(Object.keys(RunMeasurement.shape).filter((k) => k !== 'provenance') as Exclude<keyof RunMeasurement, 'provenance'>[]),
+  'recipeId',
+  'recipeVersion',
+  'engineVersion',
+  'seed',
+  'z',
+  'input1Sha256',
+  'input2Sha256',
+  'computedAt',
+] as const;

@@ -45,3 +45,11 @@ export function histogram(values: ArrayLike<number>, edges: number[]): Histogram
  * times the bin width); null when either histogram is empty.
  */
 export { chiSquaredDistance, earthMoversDistance1d as earthMoversDistance } from '../analysis/distances';
+export { quadraticChiDistance, triangleSimilarity } from '../analysis/quadratic-chi';
+
+/**
+ * The quadratic-chi members Compare and reports give beside χ² and EMD (Pele & Werman 2010): the bin
+ * similarity A_ij = max(0, 1 − |i − j| / 2) (a neighbouring bin counts half as similar, bins further apart not
+ * at all; our choice) with m = 0.5 ("QCS") and m = 0.9 ("QCN").
+ */
+export const QUADRATIC_CHI = { similarityBins: 2, mS: 0.5, mN: 0.9 } as const;

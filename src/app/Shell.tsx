@@ -18,6 +18,7 @@ const NAV: { to: string; label: string; roles?: Role[] }[] = [
   { to: '/people', label: 'People & labs', roles: ['facility_manager'] },
   { to: '/outbox', label: 'Outbox', roles: ['facility_manager'] },
   { to: '/account', label: 'Account' },
+  { to: '/api-reference', label: 'API reference' },
 ];
 
 /** Focuses the main heading of the page at `path` once it has rendered (routes load lazily), unless focus is already inside the page. */

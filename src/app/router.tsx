@@ -30,6 +30,7 @@ export const router = createBrowserRouter([
       { path: 'account', lazy: lazy(() => import('./routes/Account')) },
       { path: 'people', lazy: lazy(() => import('./routes/People')) },
       { path: 'outbox', lazy: lazy(() => import('./routes/Outbox')) },
+      { path: 'api-reference', lazy: lazy(() => import('./routes/ApiReference')) },
       { path: '*', lazy: lazy(() => import('./routes/NotFound')) },
     ],
   },

@@ -66,6 +66,23 @@ describe('analyze: results', () => {
       for (const k of REGION_RESULT_KEYS) near(reg[k], ref[k], `${reg.label}.${k}`);
     }
   });
+  it('--mic: "micE" and "ticE" in each region, equal to R minerva (tests/fixtures/mic); absent without it', async () => {
+    const mine = JSON.parse(readFileSync(join(root, 'tests/fixtures/mic/expected.json'), 'utf8')).cases.filter((c: { case: string; source: string }) => c.source === 'analysis' && c.case === 'u8');
+    const r = await run('--ch1', fx('u8_ch1.tif'), '--ch2', fx('u8_ch2.tif'), '--mask', fx('labels.tif'), '--mic', '--json');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    for (const reg of j.regions) {
+      const ref = mine.find((c: { label: number }) => c.label === reg.label);
+      expect(Math.abs(reg.micE - ref.micE), `${reg.label}.micE`).toBeLessThanOrEqual(1e-6);
+      expect(Math.abs(reg.ticE - ref.ticE), `${reg.label}.ticE`).toBeLessThanOrEqual(1e-6);
+    }
+    const table = await run('--ch1', fx('u8_ch1.tif'), '--ch2', fx('u8_ch2.tif'), '--mic');
+    expect(table.out.split('\n')[1].split(/\s+/)).toEqual(expect.arrayContaining(['MICe', 'TICe']));
+    const off = await run('--ch1', fx('u8_ch1.tif'), '--ch2', fx('u8_ch2.tif'), '--json');
+    expect(Object.keys(JSON.parse(off.out).regions[0])).not.toEqual(expect.arrayContaining(['micE']));
+    expect(Object.keys(JSON.parse(off.out).regions[0])).not.toContain('ticE');
+    expect((await run('--ch1', fx('u8_ch1.tif'), '--ch2', fx('u8_ch2.tif'))).out).not.toMatch(/MICe/);
+  });
   it('--rois: polygons by the pixel-centre rule, label = ROI name', async () => {
     const r = await run('--image', fx('u8.tif'), '--channels', '1,2', '--rois', fx('rois.json'), '--json');
     expect(r.code).toBe(0);

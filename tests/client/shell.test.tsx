@@ -22,10 +22,10 @@ const navNames = async () => {
 
 describe('Shell navigation by role', () => {
   const cases: [Role, string[]][] = [
-    ['facility_manager', ['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Account']],
-    ['microscopist', ['Home', 'Studies', 'Recipes', 'Runs', 'Account']],
-    ['biologist', ['Home', 'Studies', 'Recipes', 'Runs', 'Account']],
-    ['collaborator', ['Home', 'Studies', 'Account']],
+    ['facility_manager', ['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Account', 'API reference']],
+    ['microscopist', ['Home', 'Studies', 'Recipes', 'Runs', 'Account', 'API reference']],
+    ['biologist', ['Home', 'Studies', 'Recipes', 'Runs', 'Account', 'API reference']],
+    ['collaborator', ['Home', 'Studies', 'Account', 'API reference']],
   ];
   for (const [role, expected] of cases) {
     it(`${role} sees ${expected.length} places`, async () => {

@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { getTableColumns } from 'drizzle-orm';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { measurements } from '../../server/db/schema.js';
-import { measureRegion, MEASURE_KEYS } from '../../shared/analysis/index.js';
+import { measureObjects, measureRegion, objectMeasures, MEASURE_KEYS } from '../../shared/analysis/index.js';
 import { CELL_TABLE_KEYS, COEFFICIENT_CITATIONS, COEFFICIENT_KEYS, COEFFICIENTS, COMPARE_KEYS, FISHER_Z_KEYS, PREVIEW_KEYS, RECIPE_CHOICES, REPORT_DEFAULT_KEYS, byKey } from '../../shared/coefficients.js';
 import { COLUMN_LABELS, DEFAULT_VISIBLE_COLUMNS, EXPORT_COLUMNS, GridRow, NUMERIC_COLUMNS } from '../../shared/schemas/cell-table.js';
 import { COMPARE_COEFFICIENTS, CompareQuery } from '../../shared/schemas/compare.js';
@@ -28,7 +28,8 @@ describe('coefficient registry', () => {
     expect(COEFFICIENTS.map((c) => c.key)).toEqual([...MEASURE_KEYS]);
     expect(COEFFICIENT_KEYS).toEqual(MEASURE_KEYS);
     const [a, b] = syntheticPair(32, 32, 5);
-    const r = measureRegion(a, b, null, { width: 32, height: 32, randomization: { count: 5 } });
+    // the pixel engine's result and the object measures of the same region (objects.ts)
+    const r = { ...measureRegion(a, b, null, { width: 32, height: 32, randomization: { count: 5 } }), ...objectMeasures(measureObjects(a, b, 32, 32, null, { placements: 5 })) };
     // every numeric key of a real result (the count of scrambles is provenance, not a per-cell measure)
     const numeric = Object.entries(r)
       .filter(([k, v]) => (typeof v === 'number' || v === null) && k !== 'randomizationCount')
@@ -97,7 +98,7 @@ describe('coefficient registry', () => {
     expect(PREVIEW_COEFFICIENTS.map((c) => c.key)).toEqual([...PREVIEW_KEYS]);
     expect(PREVIEW_COEFFICIENTS.map((c) => c.label)).toEqual(PREVIEW_KEYS.map((k) => byKey(k).label));
     const regionResult = Object.fromEntries(COEFFICIENT_KEYS.map((k) => [k, k === 'pixels' ? 10 : -0.00001]));
-    const text = formatTable({ engineVersion: 'x', width: 4, height: 4, slices: 1, thresholds: { method: 'none', ch1: 0, ch2: 0 }, regions: [{ label: 1, ...regionResult, randomizationCount: 0 } as never] });
+    const text = formatTable({ engineVersion: 'x', width: 4, height: 4, slices: 1, depth: 1, z: { from: 1, to: 1, projection: null }, thresholds: { method: 'none', ch1: 0, ch2: 0 }, regions: [{ label: 1, ...regionResult, randomizationCount: 0 } as never] });
     const header = text.split('\n')[1].trim().split(/\s{2,}/);
     expect(header).toEqual(['region', ...COEFFICIENTS.filter((c) => c.cliLabel !== null).map((c) => c.cliLabel)]);
     expect(text).not.toMatch(/-0\.0000/);

@@ -4,6 +4,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';
 import { Comparison } from '../../shared/schemas/compare.js';
 import { GridResponse } from '../../shared/schemas/cell-table.js';
+import { quadraticChiDistance, triangleSimilarity } from '../../shared/stats/histogram.js';
 
 let t: TestApp;
 let s: Seeded;
@@ -177,9 +178,9 @@ describe('CSV exports (RFC 4180)', () => {
     const res = await bio.get(`/api/studies/${t.world.studyA}/compare/coverslips.csv?coefficient=mandersM1&resamples=200`);
     expect(res.status).toBe(200);
     const lines = res.text.split('\r\n').filter(Boolean);
-    expect(lines[0]).toBe('condition,coverslip,replicate,coverslipId,cells,mean_mandersM1,median_mandersM1,sd_mandersM1,averaging');
+    expect(lines[0]).toBe('condition,conditionId,coverslip,replicate,coverslipId,cells,mean_mandersM1,mean_z_mandersM1,median_mandersM1,sd_mandersM1,averaging,sourceKind,runId,recipeId,recipeName,recipeVersion,scale');
     expect(lines).toHaveLength(1 + 7 + 1); // 7 seeded coverslips + the world's empty CS1
-    expect(lines.find((l) => l.startsWith('untreated,untreated CS2,2,'))).toMatch(/,10,/);
+    expect(lines.find((l) => /^untreated,\d+,untreated CS2,2,/.test(l))).toMatch(/,10,/);
     expect(lines.some((l) => l.startsWith('"treated, ""high""",'))).toBe(true);
   });
 });
@@ -208,6 +209,12 @@ describe('comparison', () => {
     expect(c.histograms.map((h) => h.key)).toEqual(['coefficient', 'mean1', 'mean2']);
     expect(c.histograms[0].byCondition[0].counts.reduce((a, b) => a + b, 0)).toBe(30);
     expect(c.histograms[0].distances[0].emd!).toBeGreaterThan(0.2);
+    // quadratic-chi beside χ² and EMD, from the histograms shown (Pele & Werman 2010; A_ij = max(0, 1 − |i − j|/2))
+    const [h0, h1] = c.histograms[0].byCondition.map((b) => b.counts);
+    const A = triangleSimilarity(h0.length, 2);
+    expect(c.histograms[0].distances[0].quadraticChiS).toBe(quadraticChiDistance(h0, h1, A, 0.5));
+    expect(c.histograms[0].distances[0].quadraticChiN).toBe(quadraticChiDistance(h0, h1, A, 0.9));
+    expect(c.histograms[0].distances[0].quadraticChiS!).toBeGreaterThan(0);
     const again = Comparison.parse((await bio.get(url)).body);
     expect(again.effects).toEqual(c.effects);
     // coverslip mean through Fisher's z

@@ -5,8 +5,9 @@
  */
 import { eq } from 'drizzle-orm';
 import type { AppContext } from '../../server/context.js';
-import { cells, conditions, coverslips, measurements, recipes, runs } from '../../server/db/schema.js';
+import { cells, conditions, coverslips, measurements, recipes, runFields, runs } from '../../server/db/schema.js';
 import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
+import type { MeasurementProvenance } from '../../shared/schemas/runs.js';
 import type { World } from '../utils/app.js';
 import { addField, gridCells, syntheticPair } from '../runs/helpers.js';
 
@@ -63,6 +64,8 @@ export function insertRun(ctx: AppContext, studyId: number, rw: ReportWorld, val
     .values({ studyId, recipeId: rw.recipeId, scopeKind: 'study', scopeId: studyId, status: 'done', provisional: !!opts.provisional, seed: rw.settings.seed, engineVersion: opts.engine ?? 'syntopy-engine 1.0.0', fieldsTotal: rw.fieldIds.length, fieldsDone: rw.fieldIds.length, finishedAt: new Date().toISOString() })
     .returning()
     .get();
+  // one finished row per field, as a real run leaves them (the run's per-field routes look fields up here)
+  for (const fieldId of new Set(rw.fieldIds)) ctx.db.insert(runFields).values({ runId: run.id, fieldId, status: 'done', attempts: 1, finishedAt: new Date().toISOString() }).run();
   for (const [s, ids] of rw.cellIds.entries())
     for (const [c, cellId] of ids.entries()) {
       const r = value(s, c);
@@ -91,7 +94,23 @@ export function insertRun(ctx: AppContext, studyId: number, rw: ReportWorld, val
           saturatedFraction1: 0,
           saturatedFraction2: 0,
           provisional: !!opts.provisional,
-          provenance: { recipeId: rw.recipeId, engineVersion: opts.engine ?? 'syntopy-engine 1.0.0', z: 'range 1-3', seed: rw.settings.seed },
+          provenance: {
+            recipeId: rw.recipeId,
+            recipeName: 'Facility standard',
+            recipeVersion: 2,
+            recipeStatus: opts.provisional ? 'draft' : 'approved',
+            engineVersion: opts.engine ?? 'syntopy-engine 1.0.0',
+            inputSha256: ['1'.repeat(64), '2'.repeat(64)],
+            channels: [0, 1],
+            thresholds: { method: 'costes', ch1: 200 + s, ch2: 150 + c },
+            background: [97, 83],
+            seed: rw.settings.seed,
+            z: 'range 1-3',
+            randomizationBlock: null,
+            randomizationCount: 0,
+            note: null,
+            computedAt: '2026-12-01T10:00:00.000Z',
+          } satisfies MeasurementProvenance,
         })
         .run();
     }

@@ -52,6 +52,15 @@ describe('methods paragraph', () => {
     expect(snap.methods).toContain('"Facility standard" version 2');
   });
 
+  it('states the MICe/TICe parameters (and cites them) only when the recipe computes them', () => {
+    expect(snap.methods).not.toContain('MICe and TICe');
+    const settings = (r: (typeof snap.recipes)[number]) => ({ ...(r.settings as Record<string, unknown>), coefficients: ['pearson', 'mic'], mic: { alpha: 0.55, c: 12 } });
+    const withMic = { ...snap, recipes: snap.recipes.map((r) => ({ ...r, settings: settings(r) })) };
+    const text = methodsParagraph(withMic);
+    expect(text).toContain(describeSetting('mic', RecipeSettings.parse(settings(snap.recipes[0]))).replace(/\.$/, ''));
+    expect(text).toContain('n^0.55');
+  });
+
   it('states cells and coverslips per condition, the engine and the tests', () => {
     expect(snap.methods).toContain('control: 12 cells on 3 coverslips');
     expect(snap.methods).toContain('treated: 12 cells on 3 coverslips');
@@ -116,5 +125,23 @@ describe('methods paragraph', () => {
   it('names the cautions', () => {
     const c = snap.cautions.join(' ');
     for (const w of ['200 nm', 'Saturated', 'bleed-through', 'Research use only']) expect(c).toContain(w);
+  });
+
+  it('states the objects section with its papers when a recipe had it on (DOIs from memory, checked by format)', () => {
+    const objects = { enabled: true, scale: { kind: 'pixels', sigmaPx: 1.8 }, k: 6, minSeparationPx: null, pairDistance: { kind: 'um', um: 0.25, pixelSizeUm: null }, placements: 499, seed: 11 };
+    const recipesOn = snap.recipes.map((r) => ({ ...r, settings: { ...(r.settings as object), objects } }));
+    const text = methodsParagraph({ ...snap, recipes: recipesOn, coefficients: [...snap.coefficients, 'spotCount1', 'spotPaired1', 'spotChanceFraction1'] });
+    const s = RecipeSettings.parse(recipesOn[0].settings);
+    for (const part of ['σ = 1.8 pixels', 'more than 6 times', 'd = 0.25 µm in the specimen', '499 times', 'seed 11']) expect(text).toContain(part);
+    expect(text).toContain('objects.pairDistance.um = 0.25');
+    expect(text).toMatch(/Lindeberg 1998 \[\d+\]/);
+    expect(text).toMatch(/Besag & Diggle 1977 \[\d+\]/);
+    expect(text).toContain('10.1023/A:1008045108935');
+    expect(text).toContain('10.2307/2346974');
+    expect(text).toContain('10.1046/j.1365-2818.2003.01239.x');
+    expect(s.objects.enabled).toBe(true);
+    // off: one sentence saying so, no spot papers
+    expect(snap.methods).toContain('No spots are detected (object-based measures are off)');
+    expect(snap.methods).not.toContain('Lindeberg');
   });
 });

@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { computeField, blockPixels, project, zRange, FieldJobError } from '../../server/runs/compute.js';
 import { selectZ } from '../../server/images/intake.js';
 import type { FieldJob } from '../../server/runs/job.js';
-import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
+import { RecipeSettings, describeSetting, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
 import { measureRegion } from '../../shared/analysis/index.js';
 import { cellIndices } from '../../shared/schemas/cells.js';
 import { syntheticPair } from './helpers.js';
@@ -52,6 +52,25 @@ describe('computeField', () => {
       else if (kept) expect(some[c.key], c.key).toBe(all[c.key]);
       else expect(some[c.key], c.key).toBeNull();
     }
+  });
+
+  it('MICe/TICe: off in a new recipe (null), computed with the recipe\'s alpha and c when chosen', () => {
+    const g = rect(8, 8, 20, 16);
+    const idx = cellIndices(g, W, H);
+    const cell = [{ id: 1, role: 'cell' as const, geometry: g }];
+    expect(RecipeSettings.parse({}).coefficients).not.toContain('mic');
+    const [off] = computeField(job({ threshold: { method: 'none' } }, cell), { width: W, height: H, ch1: A, ch2: B });
+    expect(off.micE).toBeNull();
+    expect(off.ticE).toBeNull();
+    const [on] = computeField(job({ threshold: { method: 'none' }, coefficients: ['pearson', 'mic'], mic: { alpha: 0.7, c: 5 } }, cell), { width: W, height: H, ch1: A, ch2: B });
+    const ref = measureRegion(A, B, idx, { threshold: { method: 'none' }, mic: { alpha: 0.7, c: 5 } });
+    expect(on.micE).toBe(ref.micE);
+    expect(on.ticE).toBe(ref.ticE);
+    expect(on.micE).not.toBe(measureRegion(A, B, idx, { mic: {} }).micE);
+    expect(() => RecipeSettings.parse({ mic: { alpha: 0, c: 15 } })).toThrow(/alpha must be above 0/);
+    // the recipe sentence states the cost, chosen or not (measured by tests/bench/mic.bench.ts)
+    expect(describeSetting('mic', RecipeSettings.parse({}))).toMatch(/^MICe and TICe are not computed\. They cost up to about half a second .* per 20,000-pixel cell/);
+    expect(describeSetting('mic', RecipeSettings.parse({ coefficients: ['mic'], mic: { alpha: 0.7, c: 5 } }))).toMatch(/computed with grids of at most n\^0\.7 cells .* at most 5 × n\^0\.7 \/ rows clumps\. They cost/);
   });
 
   it('saturation "exclude" drops pixels saturated in either channel; fractions count them', () => {

@@ -113,6 +113,8 @@ export function fillPath(path: string, e: LabAEntities, tokens: { share?: string
           return String(e.studyId);
         case 'cellId':
           return String(e.cellId);
+        case 'fieldId':
+          return String(e.fieldId);
         case 'userId':
           return String(e.userId);
         case 'otherId':

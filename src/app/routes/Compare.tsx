@@ -1,4 +1,5 @@
 /** Route module: Compare — one coefficient across the study's conditions, coverslips as replicates. */
+import { useEffect } from 'react';
 import { useParams, useSearchParams } from 'react-router';
 import { PageHeader, Loading, ErrorNotice, EmptyState, ButtonLink, MeasurementCautions, inputClass, BoxMessage, useNumberBox } from '@/components';
 import { useStudy } from '@/features/studies';
@@ -25,6 +26,16 @@ export function Component() {
     else next.delete(k);
     setParams(next, { replace: true });
   };
+  // an unpinned page pins the recipe version it was computed from, so the URL (bookmarked, shared, reloaded,
+  // or the CSV links) keeps showing these measurements after another recipe runs on the study
+  const followed = cmp.data?.source;
+  const unpinned = !params.get('recipeId') && !params.get('runId');
+  useEffect(() => {
+    if (!unpinned || followed?.kind !== 'recipe' || followed.pinned !== false || followed.recipeId === null) return;
+    const next = new URLSearchParams(params);
+    next.set('recipeId', String(followed.recipeId));
+    setParams(next, { replace: true });
+  }, [unpinned, followed, params, setParams]);
   const studyName = study.data?.name ?? 'Study';
   // an id that is not a positive integer never loads (the queries stay disabled); an unknown or hidden study answers 404 too
   if (!Number.isInteger(studyId) || studyId <= 0) return <NotFound />;

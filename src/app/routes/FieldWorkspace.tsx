@@ -1,6 +1,7 @@
 /**
  * Route module: the field workspace (/studies/:studyId/fields/:fieldId). The image with its outlines, the
- * Cells list, the Pixel scatter with live coefficients (preview), per-cell results and the cautions.
+ * Cells list, the Pixel scatter with live coefficients (preview), per-cell results, the Spots panel (the
+ * latest run's spots drawn over the image, or live detection at the sliders' σ and k) and the cautions.
  * Keys: V P B O F tools · M background mode · Ctrl+Z / Ctrl+Shift+Z undo/redo · Delete removes the selected
  * outline · arrows nudge it (Shift: 10 px) · + − 0 1 zoom · Esc deselects.
  */
@@ -22,7 +23,10 @@ import { DisplayPanel, channelNames } from '@/features/workspace';
 import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
-import { AutoOutlineDialog, ImportLabelsDialog } from '@/features/workspace';
+import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
+import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
+import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
+import { cellIndices } from '@shared/schemas/cells';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 import { plural } from '@shared/format/plural';
@@ -52,7 +56,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [display, setDisplay] = useState<DisplaySettings>({ view: 'composite', z: undefined, range1: null, range2: null });
   const [autoRanges, setAutoRanges] = useState<[number, number][] | null>(null);
   const [command, setCommand] = useState<{ kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null>(null);
-  const [dialog, setDialog] = useState<null | 'labels' | 'auto' | 'keys'>(null);
+  const [dialog, setDialog] = useState<null | 'labels' | 'outlines' | 'auto' | 'keys'>(null);
   const [notice, setNotice] = useState<string | null>(null);
   const [manual, setManual] = useState<{ t1: number; t2: number } | null>(null);
   const loaded = useRef(false);
@@ -81,6 +85,40 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   }, [scatter.ready, regionKey, gesture, manual]);
   const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false), [scatter, regionKey, geometry]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
+
+  // spots: the latest run's (stored per cell), or live detection in the worker at the sliders' σ and k
+  const runId = results.data?.source?.runId ?? results.data?.rows.find((r) => r.runId !== null)?.runId ?? null;
+  const fieldSpots = useFieldSpots(runId, fieldId);
+  const [spotToggles, setSpotToggles] = useState<SpotToggles>({ ch1: true, ch2: true, pairs: true });
+  const [liveSpots, setLiveSpots] = useState<LiveSpotSettings>({ on: false, sigma: OBJECT_DEFAULTS.spotSigma, k: OBJECT_DEFAULTS.spotK });
+  useEffect(() => {
+    if (!scatter.ready || !liveSpots.on || gesture) return;
+    scatter.requestSpots(regionKey, geometry, liveSpots.sigma, liveSpots.k);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [scatter.ready, liveSpots, regionKey, gesture]);
+  const stored = fieldSpots.data?.settings;
+  const pairDistancePx = stored?.pairDistancePx ?? OBJECT_DEFAULTS.pairDistance;
+  const livePreviewSpots = liveSpots.on && scatter.spots && scatter.spots.regionKey === regionKey ? scatter.spots : null;
+  const shownSpots = useMemo(() => {
+    // per cell: spots and pairs within d (pairs never cross cells, as in the run)
+    if (liveSpots.on) {
+      if (!livePreviewSpots) return null;
+      const { pairs } = pairsWithin(livePreviewSpots.spots1, livePreviewSpots.spots2, pairDistancePx);
+      return { spots1: livePreviewSpots.spots1, spots2: livePreviewSpots.spots2, pairs, byCell: null };
+    }
+    const rows = fieldSpots.data?.spots;
+    if (!rows?.length) return null;
+    const byCell = new Map<number, { spots1: Xy[]; spots2: Xy[] }>();
+    for (const s of rows) {
+      let c = byCell.get(s.cellId);
+      if (!c) byCell.set(s.cellId, (c = { spots1: [], spots2: [] }));
+      (s.channel === 1 ? c.spots1 : c.spots2).push([s.x, s.y]);
+    }
+    const pairs: SpotPair[] = [];
+    for (const c of byCell.values()) pairs.push(...pairsWithin(c.spots1, c.spots2, pairDistancePx).pairs);
+    return { spots1: [...byCell.values()].flatMap((c) => c.spots1), spots2: [...byCell.values()].flatMap((c) => c.spots2), pairs, byCell };
+  }, [liveSpots.on, livePreviewSpots, fieldSpots.data, pairDistancePx]);
+  const spotRadius = 1.414 * (liveSpots.on ? liveSpots.sigma : (stored?.sigmaPx ?? OBJECT_DEFAULTS.spotSigma));
 
   // keyboard
   useEffect(() => {
@@ -129,6 +167,19 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const selectedCellId = state.selected ? (state.saved[state.selected]?.id ?? null) : null;
   const live = scatter.live;
   const liveStale = !!scatter.live && (scatter.live.regionKey !== regionKey || (!!scatter.view && (scatter.view.t1 !== scatter.live.t1 || scatter.view.t2 !== scatter.live.t2)));
+  const selectedRow = selectedCellId !== null ? results.data?.rows.find((r) => r.cellId === selectedCellId) : undefined;
+  const selectedSpots =
+    selectedOutline && selectedOutline.role === 'cell'
+      ? liveSpots.on
+        ? livePreviewSpots && { spots1: livePreviewSpots.spots1, spots2: livePreviewSpots.spots2 }
+        : selectedCellId !== null
+          ? (shownSpots?.byCell?.get(selectedCellId) ?? { spots1: [], spots2: [] })
+          : null
+      : null;
+  const spotCell =
+    selectedOutline && selectedSpots
+      ? { name: selectedOutline.name, row: selectedRow, ...selectedSpots, areaPx: selectedRow?.pixels ?? cellIndices(selectedOutline.geometry, field.width, field.height).length }
+      : null;
   const regionSaturated = scatter.view && scatter.view.regionKey === regionKey ? (scatter.view.saturated.ch1 ?? 0) > 0 || (scatter.view.saturated.ch2 ?? 0) > 0 : false;
 
   const status =
@@ -156,12 +207,21 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         ]}
         description={`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''}${field.pixelSizeUm ? ` · ${field.pixelSizeUm} µm/px` : ''} · ${names[0]} and ${names[1]}`}
         actions={
-          canEdit ? (
-            <>
-              <Button onClick={() => setDialog('labels')}>Import label image</Button>
-              <Button onClick={() => setDialog('auto')}>Find cells…</Button>
-            </>
-          ) : undefined
+          <>
+            <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells.geojson`} download>
+              Outlines (GeoJSON)
+            </a>
+            <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells/labels.tiff`} download>
+              Label image (TIFF)
+            </a>
+            {canEdit && (
+              <>
+                <Button onClick={() => setDialog('labels')}>Import label image</Button>
+                <Button onClick={() => setDialog('outlines')}>Import outlines…</Button>
+                <Button onClick={() => setDialog('auto')}>Find cells…</Button>
+              </>
+            )}
+          </>
         }
       />
       {notice && (
@@ -201,6 +261,11 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onAutoRanges={setAutoRanges}
               onGesture={setGesture}
               command={command}
+              overlay={
+                shownSpots && (
+                  <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
+                )
+              }
             />
           </div>
           <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
@@ -258,6 +323,21 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
             )}
           </section>
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3">
+            <SpotsPanel
+              names={names}
+              toggles={spotToggles}
+              onToggles={setSpotToggles}
+              live={liveSpots}
+              onLive={setLiveSpots}
+              preview={livePreviewSpots && { count1: livePreviewSpots.spots1.length, count2: livePreviewSpots.spots2.length, ms: livePreviewSpots.ms, regionName }}
+              previewError={scatter.spotsError}
+              stored={fieldSpots.isSuccess ? stored : undefined}
+              runId={runId}
+              cell={spotCell}
+              pairDistancePx={pairDistancePx}
+            />
+          </section>
           <div className="space-y-2" aria-label="Cautions">
             {(field.saturated || regionSaturated) && (
               <Caution title="Saturated pixels present">
@@ -273,6 +353,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
       </div>
       <ShortcutHelp open={dialog === 'keys'} onClose={() => setDialog(null)} />
       <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
+      <ImportOutlinesDialog fieldId={fieldId} open={dialog === 'outlines'} onClose={() => setDialog(null)} onDone={setNotice} />
       <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} pixelCount={field.width * field.height} />
     </div>
   );

@@ -1,13 +1,17 @@
 /** The workspace feature's public entry: what routes and other features use (eslint.config.js enforces it). */
 export { useCells } from './api/useCells';
 export { useFieldResults } from './api/useFieldResults';
+export { useFieldSpots } from './api/useFieldSpots';
 export { CellsPanel } from './components/CellsPanel';
 export { DisplayPanel, channelNames } from './components/DisplayPanel';
 export { LivePreview } from './components/LivePreview';
-export { AutoOutlineDialog, ImportLabelsDialog } from './components/OutlineActions';
+export { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from './components/OutlineActions';
 export { PixelScatter } from './components/PixelScatter';
 export { ResultsTable } from './components/ResultsTable';
 export { ShortcutHelp } from './components/ShortcutHelp';
+export { SpotLayer } from './components/SpotLayer';
+export { SpotsPanel, type LiveSpotSettings, type SpotToggles } from './components/SpotsPanel';
+export { pairsWithin, type SpotPair, type Xy } from './lib/spotView';
 export { TOOLS, ToolBar } from './components/ToolBar';
 export { Viewer, isTyping } from './components/Viewer';
 export type { DisplaySettings, Tool } from './components/Viewer';

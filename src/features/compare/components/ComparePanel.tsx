@@ -7,6 +7,7 @@ import { StatsTable } from './StatsTable';
 import { Histograms } from './Histograms';
 import { ProvisionalBadge } from '@/features/recipes';
 import { downloadPng, downloadSvg } from '../lib/exportImage';
+import { sourceText } from '../lib/sourceText';
 
 export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; fileBase: string; csvQuery: string }) {
   const svg = useRef<SVGSVGElement>(null);
@@ -23,6 +24,9 @@ export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; f
           measurements (a recipe version not yet approved); the numbers may change.
         </p>
       )}
+      <p className="max-w-4xl text-sm text-ink-soft" data-testid="compare-source">
+        {sourceText(data)}
+      </p>
       <p className="max-w-4xl rounded-md border border-ink/10 bg-white px-4 py-3 text-sm leading-relaxed" data-testid="compare-summary">
         {data.summary}
       </p>
@@ -84,3 +88,4 @@ export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; f
     </div>
   );
 }
+

@@ -86,6 +86,12 @@ export function Histograms({ data }: { data: Comparison }) {
                     <th className="text-left font-medium">conditions</th>
                     <th className="text-right font-medium">χ² distance</th>
                     <th className="text-right font-medium">EMD</th>
+                    <th className="text-right font-medium" title="quadratic-chi distance, m = 0.5, neighbouring bins half similar (Pele & Werman 2010)">
+                      QC m 0.5
+                    </th>
+                    <th className="text-right font-medium" title="quadratic-chi distance, m = 0.9, neighbouring bins half similar (Pele & Werman 2010)">
+                      QC m 0.9
+                    </th>
                   </tr>
                 </thead>
                 <tbody className="font-mono">
@@ -96,9 +102,18 @@ export function Histograms({ data }: { data: Comparison }) {
                       </td>
                       <td className="text-right">{formatFixed(d.chiSquared, 3)}</td>
                       <td className="text-right">{formatFixed(d.emd, 3)}</td>
+                      <td className="text-right">{formatFixed(d.quadraticChiS, 3)}</td>
+                      <td className="text-right">{formatFixed(d.quadraticChiN, 3)}</td>
                     </tr>
                   ))}
                 </tbody>
+                <tfoot>
+                  <tr>
+                    <td colSpan={5} className="pt-1 text-ink-soft">
+                      QC: quadratic-chi distance (Pele &amp; Werman 2010), bin similarity max(0, 1 − |i − j| / 2): a neighbouring bin counts half as similar, bins further apart not at all.
+                    </td>
+                  </tr>
+                </tfoot>
               </table>
             )}
           </figure>

@@ -8,9 +8,15 @@ import {
   BlockSizeSetting,
   COEFFICIENTS,
   COEFFICIENT_LABELS,
+  DEFAULT_OBJECTS_SETTING,
+  OBJECT_SETTING_KEYS,
+  OBJECT_SETTING_LABELS,
   SETTING_KEYS,
   SETTING_LABELS,
+  describeObjectSetting,
   describeSetting,
+  type ObjectSettingKey,
+  type ObjectsSetting,
   type RecipeSettings,
   type SettingKey,
 } from '@shared/schemas/recipes';
@@ -61,6 +67,95 @@ const PIXEL_SIZE = NumberTextFor('Pixel size', BlockSizeSetting.options[1].shape
 function PixelSizeBox({ value, onChange, disabled }: { value: number | null; onChange: (n: number | null) => void; disabled?: boolean }) {
   const box = useNumberBox({ schema: PIXEL_SIZE, value, onChange, emptyIsNull: true });
   return <NumField label="Pixel size (µm, empty: from each field)" box={box} disabled={disabled} inputMode="decimal" />;
+}
+
+/** The objects section: on/off, then one row per part with its controls and its own sentence. */
+function ObjectsControls({ value: o, onChange, disabled: d }: { value: ObjectsSetting; onChange: (o: ObjectsSetting) => void; disabled?: boolean }) {
+  const set = (patch: Partial<ObjectsSetting>) => onChange({ ...o, ...patch });
+  const parts: Record<ObjectSettingKey, React.ReactNode> = {
+    scale: (
+      <div className="flex flex-wrap items-center gap-4">
+        <Choice
+          name="spotScale"
+          disabled={d}
+          value={o.scale.kind}
+          options={[
+            ['pixels', 'σ in pixels'],
+            ['psf', 'From the point-spread width'],
+          ]}
+          onChange={(k) => set({ scale: k === 'pixels' ? { kind: 'pixels', sigmaPx: 1.5 } : { kind: 'psf', psfWidthUm: 0.25, pixelSizeUm: null } })}
+        />
+        {o.scale.kind === 'pixels' ? (
+          <Num label="σ (px)" disabled={d} min={0} minExclusive max={50} value={o.scale.sigmaPx} onChange={(n) => set({ scale: { kind: 'pixels', sigmaPx: n } })} />
+        ) : (
+          (() => {
+            const b = o.scale;
+            return (
+              <>
+                <Num label="PSF width (µm)" disabled={d} min={0} minExclusive max={100} value={b.psfWidthUm} onChange={(n) => set({ scale: { ...b, psfWidthUm: n } })} />
+                <PixelSizeBox disabled={d} value={b.pixelSizeUm} onChange={(n) => set({ scale: { ...b, pixelSizeUm: n } })} />
+              </>
+            );
+          })()
+        )}
+      </div>
+    ),
+    k: <Num label="k" disabled={d} min={0} minExclusive max={1000} value={o.k} onChange={(n) => set({ k: n })} />,
+    minSeparationPx: (
+      <div className="flex flex-wrap items-center gap-4">
+        <label className="flex items-center gap-2 text-sm">
+          <input type="checkbox" disabled={d} checked={o.minSeparationPx === null} onChange={(e) => set({ minSeparationPx: e.target.checked ? null : 3 })} />
+          2σ
+        </label>
+        {o.minSeparationPx !== null && <Num label="Distance (px)" disabled={d} min={0} max={1000} value={o.minSeparationPx} onChange={(n) => set({ minSeparationPx: n })} />}
+      </div>
+    ),
+    pairDistance: (
+      <div className="flex flex-wrap items-center gap-4">
+        <Choice
+          name="pairDistance"
+          disabled={d}
+          value={o.pairDistance.kind}
+          options={[
+            ['pixels', 'd in pixels'],
+            ['um', 'd in µm'],
+          ]}
+          onChange={(k) => set({ pairDistance: k === 'pixels' ? { kind: 'pixels', pixels: 2 } : { kind: 'um', um: 0.2, pixelSizeUm: null } })}
+        />
+        {o.pairDistance.kind === 'pixels' ? (
+          <Num label="d (px)" disabled={d} min={0} max={1000} value={o.pairDistance.pixels} onChange={(n) => set({ pairDistance: { kind: 'pixels', pixels: n } })} />
+        ) : (
+          (() => {
+            const p = o.pairDistance;
+            return (
+              <>
+                <Num label="d (µm)" disabled={d} min={0} max={1000} value={p.um} onChange={(n) => set({ pairDistance: { ...p, um: n } })} />
+                <PixelSizeBox disabled={d} value={p.pixelSizeUm} onChange={(n) => set({ pairDistance: { ...p, pixelSizeUm: n } })} />
+              </>
+            );
+          })()
+        )}
+      </div>
+    ),
+    placements: <Num label="Placements" disabled={d} step="1" min={1} max={100_000} value={o.placements} onChange={(n) => set({ placements: Math.max(1, Math.round(n)) })} />,
+    seed: <Num label="Seed" disabled={d} step="1" min={0} max={2 ** 32 - 1} value={o.seed} onChange={(n) => set({ seed: Math.max(0, Math.round(n)) })} />,
+  };
+  return (
+    <div className="space-y-3">
+      <label className="flex items-center gap-2 text-sm">
+        <input type="checkbox" disabled={d} checked={o.enabled} onChange={(e) => set({ enabled: e.target.checked })} />
+        Detect spots and measure pairs within d
+      </label>
+      {o.enabled &&
+        OBJECT_SETTING_KEYS.map((k) => (
+          <div key={k} className="space-y-1 border-l-2 border-ink/10 pl-3">
+            <div className="text-xs font-semibold uppercase tracking-wide text-ink-soft">{OBJECT_SETTING_LABELS[k]}</div>
+            {parts[k]}
+            <p className="text-sm text-ink-soft">{describeObjectSetting(k, o)}</p>
+          </div>
+        ))}
+    </div>
+  );
 }
 
 export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
@@ -244,7 +339,14 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
         ))}
       </div>
     ),
+    mic: (
+      <div className="flex flex-wrap gap-4">
+        <Num label="Grid exponent α" disabled={d} min={0} minExclusive max={1} value={s.mic.alpha} onChange={(n) => set({ mic: { ...s.mic, alpha: n } })} />
+        <Num label="Clump factor c" disabled={d} min={0} minExclusive max={100} value={s.mic.c} onChange={(n) => set({ mic: { ...s.mic, c: n } })} />
+      </div>
+    ),
     seed: <Num label="Seed" disabled={d} step="1" min={0} max={2 ** 32 - 1} value={s.seed} onChange={(n) => set({ seed: Math.max(0, Math.round(n)) })} />,
+    objects: <ObjectsControls disabled={d} value={s.objects ?? DEFAULT_OBJECTS_SETTING} onChange={(o) => set({ objects: o })} />,
   };
   return (
     <div className="divide-y divide-ink/10">
@@ -255,7 +357,7 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
           </h3>
           <div className="space-y-2">
             {controls[k]}
-            <p className="text-sm text-ink-soft">{describeSetting(k, s)}</p>
+            {(k !== 'objects' || !s.objects.enabled) && <p className="text-sm text-ink-soft">{describeSetting(k, s)}</p>}
           </div>
         </section>
       ))}

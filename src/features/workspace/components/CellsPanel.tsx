@@ -10,7 +10,7 @@ import type { Outline, OutlineAction } from '../lib/outlineState';
 /** Cells smaller than this are flagged: too few pixels for stable coefficients (common practice, decided here). */
 export const SMALL_CELL_PIXELS = 50;
 
-const SOURCE_WORD: Record<Cell['source'], string> = { drawn: 'drawn', label_image: 'label image', automatic: 'automatic', seed: 'demo' };
+const SOURCE_WORD: Record<Cell['source'], string> = { drawn: 'drawn', label_image: 'label image', automatic: 'automatic', seed: 'demo', geojson: 'GeoJSON' };
 
 export function CellsPanel({
   outlines,

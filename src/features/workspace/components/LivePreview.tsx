@@ -4,13 +4,13 @@
  * the pixel scatter, no randomization test. Runs with an approved recipe give the numbers that count.
  */
 import type { RegionResult } from '@shared/analysis/types';
-import { PREVIEW_KEYS, byKey } from '@shared/coefficients';
+import { PREVIEW_KEYS, byKey, isPixelEntry } from '@shared/coefficients';
 import { formatFixed } from '@shared/format/number';
 import { Badge } from '@/components';
 import { plural } from '@shared/format/plural';
 
 /** The measures the preview shows: the registry's `preview` entries (shared/coefficients.ts). */
-export const PREVIEW_COEFFICIENTS = PREVIEW_KEYS.map((k) => byKey(k));
+export const PREVIEW_COEFFICIENTS = PREVIEW_KEYS.map((k) => byKey(k)).filter(isPixelEntry);
 
 /** Three decimals; a value that rounds to zero is shown as 0.000, never "-0.000" (shared/format/number.ts). */
 export const fmtCoef = (v: number | null | undefined) => formatFixed(v, 3);

@@ -1,10 +1,11 @@
-/** "Import label image" and "Find cells" (automatic outlines) dialogs. */
+/** "Import label image", "Import outlines" (GeoJSON) and "Find cells" (automatic outlines) dialogs. */
 import { useId, useState } from 'react';
 import { Button, Dialog, ErrorNotice } from '@/components';
 import { AutoOutlineRequest } from '@shared/schemas/cells';
 import type { FieldSummary } from '@shared/schemas/fields';
 import { NumberText, NumberTextFor, readNumberText } from '@shared/schemas/common';
 import { useImportLabels } from '../api/useImportLabels';
+import { useImportOutlines } from '../api/useImportOutlines';
 import { useAutoOutline } from '../api/useAutoOutline';
 import { plural } from '@shared/format/plural';
 
@@ -47,6 +48,52 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
         <input type="file" accept=".tif,.tiff,image/tiff" aria-label="Label image file" onChange={(e) => setFile(e.target.files?.[0] ?? null)} />
         <label className="flex items-center gap-2">
           <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> Replace cells from an earlier label image
+        </label>
+        <ErrorNotice error={m.error} />
+      </div>
+    </Dialog>
+  );
+}
+
+export function ImportOutlinesDialog({ fieldId, open, onClose, onDone }: { fieldId: number; open: boolean; onClose: () => void; onDone: (msg: string) => void }) {
+  const m = useImportOutlines(fieldId);
+  const [file, setFile] = useState<File | null>(null);
+  const [replace, setReplace] = useState(false);
+  return (
+    <Dialog
+      open={open}
+      onClose={onClose}
+      title="Import outlines (GeoJSON)"
+      description="A GeoJSON FeatureCollection of Polygon or MultiPolygon features in this field's pixel coordinates (x right, y down, from the top-left corner). A feature's name and background flag come from its properties; holes are kept. A file with any fault is refused as a whole."
+      footer={
+        <>
+          <Button onClick={onClose}>Cancel</Button>
+          <Button
+            variant="primary"
+            disabled={!file}
+            pending={m.isPending}
+            onClick={() =>
+              file &&
+              m.mutate(
+                { file, replace },
+                {
+                  onSuccess: (r) => {
+                    onDone(`${plural(r.features, 'outline')} imported from ${file.name}`);
+                    onClose();
+                  },
+                },
+              )
+            }
+          >
+            Import
+          </Button>
+        </>
+      }
+    >
+      <div className="space-y-3 text-sm">
+        <input type="file" accept=".geojson,.json,application/geo+json,application/json" aria-label="GeoJSON file" onChange={(e) => setFile(e.target.files?.[0] ?? null)} />
+        <label className="flex items-center gap-2">
+          <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> Replace outlines from an earlier GeoJSON import
         </label>
         <ErrorNotice error={m.error} />
       </div>

@@ -47,13 +47,15 @@ export interface ViewerProps {
   onGesture?: (active: boolean) => void;
   /** commands from the toolbar / keyboard: incremented counters */
   command?: { kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null;
+  /** drawn over the outlines in image coordinates (pixels), e.g. the spot layer; takes no pointer events */
+  overlay?: React.ReactNode;
 }
 
 const SELECT_COLOR = '#0f766e';
 const CELL_COLOR = '#f5f5f4';
 const BG_COLOR = '#f59e0b';
 
-export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command }: ViewerProps) {
+export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay }: ViewerProps) {
   const box = useRef<HTMLDivElement>(null);
   const [size, setSize] = useState({ w: 800, h: 600 });
   const [view, setView] = useState<View | null>(null);
@@ -466,6 +468,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
               </path>
             ),
           )}
+          {overlay}
           {sel && tool === 'select' && canEdit && handlesVisible(sel, v.scale) &&
             handlesOf(sel.geometry).map(([x, y], i) => (
               <circle key={i} data-handle={i} cx={x} cy={y} r={handleR} fill="#fff" stroke={SELECT_COLOR} strokeWidth={1.5} vectorEffect="non-scaling-stroke" style={{ cursor: 'pointer' }} />

@@ -4,17 +4,22 @@
  * threshold drags with a new histogram + quadrant counts, and computes the live coefficient preview.
  */
 import { livePreview, prepareRegion, scatter, type Region, type ScatterInput } from './scatterCore';
+import { previewSpots } from './spotPreview';
+import type { Xy } from './spotView';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 
 export type ScatterRequest =
   | { type: 'pixels'; width: number; height: number; ch1: SampleArray; ch2: SampleArray; saturationLevel: number | null }
-  | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean };
+  | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean }
+  /** live spot detection at the sliders' σ and k (spotPreview.ts) */
+  | { type: 'spots'; seq: number; regionKey: string; geometry: CellGeometry | null; sigma: number; k: number };
 
 export type ScatterReply =
   | { type: 'scatter'; seq: number; regionKey: string; n: number; bins: number; counts: Uint32Array | null; max: number; outside: number; dataMax: [number, number]; rangeX: [number, number]; rangeY: [number, number]; t1: number; t2: number; otsu: { t1: number | null; t2: number | null }; quadrants: { both: number; only1: number; only2: number; neither: number }; saturated: { ch1: number | null; ch2: number | null }; ms: number }
   | { type: 'measure'; seq: number; regionKey: string; result: import('@shared/analysis/types').RegionResult; ms: number }
-  | { type: 'error'; seq: number; message: string };
+  | { type: 'spots'; seq: number; regionKey: string; sigma: number; k: number; spots1: Xy[]; spots2: Xy[]; pixels: number; ms: number }
+  | { type: 'error'; seq: number; message: string; spots?: boolean };
 
 let img: ScatterInput | null = null;
 let region: { key: string; r: Region } | null = null;
@@ -24,6 +29,17 @@ self.onmessage = (e: MessageEvent<ScatterRequest>) => {
   if (m.type === 'pixels') {
     img = { width: m.width, height: m.height, ch1: m.ch1, ch2: m.ch2, saturationLevel: m.saturationLevel };
     region = null;
+    return;
+  }
+  if (m.type === 'spots') {
+    try {
+      if (!img) throw new Error('pixels not loaded yet');
+      const t0 = performance.now();
+      const p = previewSpots(img, m.geometry, m.sigma, m.k);
+      (self as unknown as Worker).postMessage({ type: 'spots', seq: m.seq, regionKey: m.regionKey, sigma: m.sigma, k: m.k, ...p, ms: performance.now() - t0 } satisfies ScatterReply);
+    } catch (err) {
+      (self as unknown as Worker).postMessage({ type: 'error', seq: m.seq, message: (err as Error).message, spots: true } satisfies ScatterReply);
+    }
     return;
   }
   try {

@@ -17,6 +17,8 @@ export interface LiveResult {
   ms: number;
 }
 
+export type SpotPreviewView = Extract<ScatterReply, { type: 'spots' }>;
+
 export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: number | null) {
   const worker = useRef<Worker | null>(null);
   const busy = useRef(false);
@@ -28,6 +30,11 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   const [live, setLive] = useState<LiveResult | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [ready, setReady] = useState(false);
+  // live spot detection: its own "latest request wins" slot, so slider moves never queue up
+  const spotsBusy = useRef(false);
+  const spotsWaiting = useRef<Extract<ScatterRequest, { type: 'spots' }> | null>(null);
+  const [spots, setSpots] = useState<SpotPreviewView | null>(null);
+  const [spotsError, setSpotsError] = useState<string | null>(null);
 
   useEffect(() => {
     if (!pixels) return;
@@ -44,8 +51,23 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
       busy.current = true;
       w.postMessage(next);
     };
+    const pumpSpots = () => {
+      const next = spotsWaiting.current;
+      spotsBusy.current = !!next;
+      if (!next) return;
+      spotsWaiting.current = null;
+      w.postMessage(next);
+    };
     w.onmessage = (e: MessageEvent<ScatterReply>) => {
       const m = e.data;
+      if (m.type === 'spots' || (m.type === 'error' && m.spots)) {
+        if (m.type === 'spots') {
+          setSpots(m);
+          setSpotsError(null);
+        } else setSpotsError(m.message);
+        pumpSpots();
+        return;
+      }
       if (m.type === 'scatter') {
         if (m.counts) countsByRegion.current.set(m.regionKey, m.counts);
         const counts = m.counts ?? countsByRegion.current.get(m.regionKey);
@@ -76,6 +98,8 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
       worker.current = null;
       busy.current = false;
       waiting.current = null;
+      spotsBusy.current = false;
+      spotsWaiting.current = null;
       setReady(false);
     };
   }, [pixels, saturationLevel]);
@@ -97,5 +121,17 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     }
   };
 
-  return { ready, view, live, error, request };
+  /** Live spot detection in a region (null geometry = whole field) at σ, k. */
+  const requestSpots = (regionKey: string, geometry: CellGeometry | null, sigma: number, k: number) => {
+    const w = worker.current;
+    if (!w) return;
+    const msg: Extract<ScatterRequest, { type: 'spots' }> = { type: 'spots', seq: ++seq.current, regionKey, geometry, sigma, k };
+    if (spotsBusy.current) spotsWaiting.current = msg;
+    else {
+      spotsBusy.current = true;
+      w.postMessage(msg);
+    }
+  };
+
+  return { ready, view, live, error, request, spots, spotsError, requestSpots };
 }

@@ -1,0 +1,71 @@
+/**
+ * Channel alignment: channel 2 resampled at (x + dx, y + dy) by bilinear interpolation, so that a channel
+ * displaced by (dx, dy) (see phase-correlation.ts) lines up with channel 1.
+ *
+ * Pixel (i, j) holds its value at the integer position (i, j) (the convention of
+ * `scipy.ndimage.map_coordinates(order=1)`); the value at (x, y) = (i + fx, j + fy), 0 ≤ fx, fy < 1, is
+ * (1 − fx)(1 − fy)·v(i, j) + fx(1 − fy)·v(i + 1, j) + (1 − fx)fy·v(i, j + 1) + fx·fy·v(i + 1, j + 1)
+ * (bilinear interpolation, e.g. Press et al. 2007, Numerical Recipes, 3rd ed., §3.6).
+ * A pixel whose sample position falls outside [0, W − 1] × [0, H − 1] is not measured: its value is NaN,
+ * which every measure of the engine leaves out (pairs.ts). NaN neighbours give NaN.
+ * Stacks: every z slice is shifted in its plane by the same (dx, dy).
+ */
+import type { ChannelArray } from './types';
+
+/** Checks a shift component: a finite number (pixels). */
+function checkShift(v: number, name: string): void {
+  if (!Number.isFinite(v)) throw new RangeError(`${name} must be a finite number of pixels, received ${v}`);
+}
+
+/**
+ * Channel `ch` (width × height × slices, row-major, slice after slice) sampled at (x + dx, y + dy);
+ * Float64, NaN where the position is outside the image.
+ */
+export function alignChannel(ch: ChannelArray, width: number, height: number, dx: number, dy: number, slices = 1): Float64Array {
+  checkShift(dx, 'dx');
+  checkShift(dy, 'dy');
+  if (!(Number.isInteger(width) && width >= 1 && Number.isInteger(height) && height >= 1 && Number.isInteger(slices) && slices >= 1))
+    throw new RangeError(`image size must be positive whole numbers, received ${width}×${height}×${slices}`);
+  const plane = width * height;
+  if (ch.length !== plane * slices) throw new RangeError(`channel has ${ch.length} values, ${width}×${height}×${slices} needs ${plane * slices}`);
+  const out = new Float64Array(ch.length).fill(NaN);
+  // per column: the left neighbour and weight (or −1 outside); likewise per row
+  const col = (dx: number, n: number) => {
+    const i0 = new Int32Array(n).fill(-1), f = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      const x = i + dx;
+      if (!(x >= 0 && x <= n - 1)) continue;
+      let k = Math.floor(x);
+      let t = x - k;
+      if (k === n - 1) {
+        // the last position itself: the right neighbour is not needed (weight 0)
+        k = n - 1;
+        t = 0;
+      }
+      i0[i] = k;
+      f[i] = t;
+    }
+    return { i0, f };
+  };
+  const cx = col(dx, width), cy = col(dy, height);
+  for (let z = 0; z < slices; z++) {
+    const base = z * plane;
+    for (let j = 0; j < height; j++) {
+      const y0 = cy.i0[j];
+      if (y0 < 0) continue;
+      const fy = cy.f[j], wy0 = 1 - fy;
+      const r0 = base + y0 * width, r1 = fy === 0 ? r0 : r0 + width;
+      const o = base + j * width;
+      for (let i = 0; i < width; i++) {
+        const x0 = cx.i0[i];
+        if (x0 < 0) continue;
+        const fx = cx.f[i];
+        const x1 = fx === 0 ? x0 : x0 + 1;
+        // SciPy's order of operations (value × y weight × x weight, summed row by row), so the results
+        // are the same to the last bit and ties between pixels stay ties for the rank coefficients
+        out[o + i] = ch[r0 + x0] * wy0 * (1 - fx) + ch[r0 + x1] * wy0 * fx + ch[r1 + x0] * fy * (1 - fx) + ch[r1 + x1] * fy * fx;
+      }
+    }
+  }
+  return out;
+}

@@ -1,0 +1,26 @@
+/**
+ * Bleed-through coefficient from a single-label control: on a field labelled in channel 1 only, channel 2
+ * sees a21·t1 plus its background, so a21 is the slope of channel 2 against channel 1 (a12 likewise from a
+ * channel-2-only control, slope of channel 1 against channel 2). Correction: unmix.ts (Zimmermann,
+ * Rietdorf & Pepperkok 2003, FEBS Lett. 546:87, doi:10.1016/S0014-5793(03)00521-0).
+ *
+ * Estimate: the ordinary least-squares slope with an intercept, Σ(x − x̄)(y − ȳ) / Σ(x − x̄)², over the
+ * region's pixels (NaN pixels left out). The intercept absorbs a constant background in either channel,
+ * so no background has to be known (common practice). Noise in the labelled channel biases the slope
+ * towards 0 by the factor var(signal) / (var(signal) + var(noise)); on a control with a wide intensity
+ * range (cells and background) this is well under 1 %. Moments come from `centeredMoments` (pearson.ts).
+ *
+ * Degenerate: fewer than 2 pixels or a constant labelled channel → null.
+ */
+import { collectPairs } from './pairs';
+import { centeredMoments } from './pearson';
+import type { ChannelArray, RegionSpec } from './types';
+
+/** Slope of `seen` against `labelled` over `region` (null = whole image); null when undefined. */
+export function bleedThroughSlope(labelled: ChannelArray, seen: ChannelArray, region: RegionSpec = null): number | null {
+  const p = collectPairs(labelled, seen, region);
+  const m = centeredMoments(p.x, p.y, p.n, p.integer);
+  if (m.n < 2 || m.constX || !(m.sxx > 0)) return null;
+  const s = m.sxy / m.sxx;
+  return Object.is(s, -0) ? 0 : s;
+}

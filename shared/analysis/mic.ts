@@ -1,0 +1,329 @@
+/**
+ * MICe and TICe: the equicharacteristic-matrix estimators of the maximal information coefficient and of the
+ * total information coefficient.
+ *
+ * - Reshef YA, Reshef DN, Finucane HK, Sabeti PC, Mitzenmacher M (2016) Measuring dependence powerfully and
+ *   equitably. J. Mach. Learn. Res. 17(212):1–63. (MICe, TICe, the equicharacteristic matrix)
+ * - Reshef DN, Reshef YA, Finucane HK, Grossman SR, McVean G, Turnbaugh PJ, Lander ES, Mitzenmacher M,
+ *   Sabeti PC (2011) Detecting novel associations in large data sets. Science 334:1518–1524.
+ *   doi:10.1126/science.1205438 (MIC; the equipartition, clump and OptimizeXAxis algorithms of its SOM)
+ *
+ * Definition. With B(n) = max(n^α, 4), for every grid of k columns × l rows with k·l ≤ B(n) the
+ * equicharacteristic matrix holds the largest mutual information of the grid's cell frequencies among grids
+ * whose LARGER partition is an equipartition (the other is free), divided by log min(k, l'), where l' is the
+ * number of rows the equipartition actually has (ties never straddle a row, so l' ≤ l):
+ *   - k ≤ l: y is equipartitioned into l rows, the k columns on x are optimised;
+ *   - k ≥ l: x is equipartitioned into k parts, the l rows on y are optimised (this side gives the diagonal).
+ * MICe is the largest entry, TICe the sum of all entries (not divided by their number).
+ *
+ * The free axis is optimised exactly by the dynamic programme OptimizeXAxis (2011 SOM, Algorithm 2): the
+ * points in the free axis' order are cut into clumps (maximal runs in one row; tied values that fall in
+ * different rows form one clump of their own, so ties are never split), and when there are more than
+ * ĉ = ⌊c · ⌊B/l⌋⌋ clumps they are merged into ĉ superclumps by the same equipartition applied to the clump
+ * sizes. Over the (super)clumps, with f(x) = x ln x and T(s, t) = Σ_rows f(n_r) − f(N) of the column made of
+ * clumps s+1..t, W(t, j) = max(W(t, j−1), max_s W(s, j−1) + T(s, t)) is the best sum over at most j columns of
+ * the first t clumps, and I = (f(n) − Σ_rows f(R_r) + W(p, j)) / n is the mutual information (natural log).
+ * Counts are integers; each T is accumulated incrementally from a table of f, so the values are exact up to
+ * double rounding (≈1e−12).
+ *
+ * The values depend only on the order and ties of each channel. Degenerate: fewer than 2 pairs, or a channel
+ * with a single value (no equipartition into 2 rows exists), → both null.
+ */
+import { prepare, sortByX, type Pairs, type PreparedPairs, type RankArray } from './pairs';
+
+export interface MicOptions {
+  /** exponent of the grid budget B(n) = n^α, in (0, 1] (default 0.6) */
+  alpha?: number;
+  /** clump factor: at most ⌊c · ⌊B/l⌋⌋ (super)clumps on the free axis, c > 0 (default 15) */
+  c?: number;
+}
+
+export interface MicResult {
+  micE: number | null;
+  ticE: number | null;
+}
+
+export const MIC_DEFAULTS = { alpha: 0.6, c: 15 } as const;
+
+/** Checks α and c, quoting a bad value. */
+export function micOptions(o: MicOptions = {}): Required<MicOptions> {
+  const alpha = o.alpha ?? MIC_DEFAULTS.alpha;
+  const c = o.c ?? MIC_DEFAULTS.c;
+  if (!(Number.isFinite(alpha) && alpha > 0 && alpha <= 1)) throw new RangeError(`MICe alpha must be in (0, 1], received ${String(alpha)}`);
+  if (!(Number.isFinite(c) && c > 0)) throw new RangeError(`MICe c must be a positive number, received ${String(c)}`);
+  return { alpha, c };
+}
+
+/**
+ * Equipartition of tie groups (2011 SOM, Algorithm 3): groups of sizes `sizes` (in axis order, n items in
+ * all) are assigned to at most about `rows` consecutive rows, a group never split; a group starts a new row
+ * when adding it would move the row further from the target size n_left / rows_left than stopping.
+ * Writes each group's row to `out` and returns the number of rows.
+ */
+export function equipartition(sizes: ArrayLike<number>, groups: number, n: number, rows: number, out: Int32Array): number {
+  let rowsize = n / rows;
+  let h = 0;
+  let curr = 0;
+  let i = 0;
+  for (let g = 0; g < groups; g++) {
+    const s = sizes[g];
+    if (h !== 0 && Math.abs(h + s - rowsize) >= Math.abs(h - rowsize)) {
+      curr++;
+      h = 0;
+      rowsize = (n - i) / (rows - curr);
+    }
+    out[g] = curr;
+    i += s;
+    h += s;
+  }
+  return curr + 1;
+}
+
+/** Level structure of one axis: counts per distinct value (ascending) and, in that order, the other axis' levels. */
+interface Axis {
+  L: number;
+  counts: Int32Array;
+  /** items of level k are at start[k] .. start[k+1] of `other` */
+  start: Int32Array;
+  other: RankArray;
+}
+
+/** Scratch buffers reused across the rows of one call (sized once: levels L, pairs n, rows). */
+class Work {
+  /** f[k] = k ln k */
+  readonly f: Float64Array;
+  readonly cnt: Int32Array;
+  readonly touched: Int32Array;
+  /** per clump: its row, or −1 − level for a mixed tie group */
+  readonly label: Int32Array;
+  readonly size: Int32Array;
+  readonly sup: Int32Array;
+  readonly off: Int32Array;
+  /** clump entries: row, count, row, count, … */
+  readonly rc: Int32Array;
+  readonly c: Int32Array;
+  readonly best: Float64Array;
+  private w = new Float64Array(0);
+  constructor(n: number, L: number, maxRows: number) {
+    this.f = new Float64Array(n + 1);
+    for (let k = 2; k <= n; k++) this.f[k] = k * Math.log(k);
+    this.cnt = new Int32Array(maxRows + 1);
+    this.touched = new Int32Array(maxRows + 1);
+    this.label = new Int32Array(L);
+    this.size = new Int32Array(L);
+    this.sup = new Int32Array(L);
+    this.off = new Int32Array(L + 1);
+    this.rc = new Int32Array(2 * n);
+    this.c = new Int32Array(L + 1);
+    this.best = new Float64Array(maxRows + 2);
+  }
+  /** the DP table, at least `size` long (grown when needed) */
+  layers(size: number): Float64Array {
+    if (this.w.length < size) this.w = new Float64Array(Math.max(size, 2 * this.w.length));
+    return this.w;
+  }
+}
+
+/**
+ * The (super)clumps of the free axis for a given row of each level of the equipartitioned axis: returns
+ * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]).
+ */
+function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work): number {
+  const { L, start, other, counts: levelCounts } = free;
+  const { label, size, sup, cnt, touched, off, rc } = w;
+  // clumps in free-axis order: consecutive levels whose items all lie in one row merge (label = that row);
+  // a level whose tied items lie in different rows is a clump of its own (label −1 − level)
+  let p = 0;
+  let prev = -1;
+  for (let k = 0; k < L; k++) {
+    const a = start[k];
+    const m = levelCounts[k];
+    let lab = rowOf[other[a]];
+    for (let i = a + 1; i < a + m; i++)
+      if (rowOf[other[i]] !== lab) {
+        lab = -1 - k;
+        break;
+      }
+    if (lab >= 0 && lab === prev) size[p - 1] += m;
+    else {
+      label[p] = lab;
+      size[p] = m;
+      p++;
+    }
+    prev = lab;
+  }
+  // superclumps: the clumps equipartitioned by size into at most about `cap` groups
+  const grouped = p > cap;
+  const groups = grouped ? equipartition(size, p, n, cap, sup) : p;
+  // sparse (row, count) entries per group (the clumps of a group are consecutive)
+  let e = 0;
+  let j = 0;
+  for (let g = 0; g < groups; g++) {
+    off[g] = e;
+    let nt = 0;
+    while (j < p && (grouped ? sup[j] : j) === g) {
+      const lab = label[j];
+      if (lab >= 0) {
+        if (cnt[lab] === 0) touched[nt++] = lab;
+        cnt[lab] += size[j];
+      } else {
+        const k = -1 - lab;
+        for (let i = start[k]; i < start[k + 1]; i++) {
+          const r = rowOf[other[i]];
+          if (cnt[r] === 0) touched[nt++] = r;
+          cnt[r]++;
+        }
+      }
+      j++;
+    }
+    for (let u = 0; u < nt; u++) {
+      const r = touched[u];
+      rc[2 * e] = r;
+      rc[2 * e + 1] = cnt[r];
+      e++;
+      cnt[r] = 0;
+    }
+  }
+  off[groups] = e;
+  return groups;
+}
+
+/**
+ * OptimizeXAxis: for j = 2..maxCols, the largest mutual information (nats) of grids with the given rows and
+ * at most j columns made of consecutive (super)clumps; written to out[j − 2].
+ *
+ * For each t, the last column (clumps s+1..t) is grown one clump at a time as s goes down, so T(s, t) costs
+ * the clump's few row counts, and every layer j takes its candidate W(s, j − 1) + T(s, t) at once
+ * (W is stored t-major: the layers of one t are adjacent).
+ */
+function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, maxCols: number, w: Work, out: Float64Array) {
+  const { f, cnt, off, rc, c, best } = w;
+  let hq = f[n];
+  for (let r = 0; r < q; r++) hq -= f[rowTotals[r]];
+  if (p === 1) {
+    out.fill(0, 0, maxCols - 1);
+    return;
+  }
+  const J = maxCols;
+  // W[t * J + (j − 1)], j = 1..J−1: best sum of T over at most j columns of the first t clumps (t < p)
+  const W = w.layers((p + 1) * J);
+  // prefix sizes c[t] and W(t, 1) = T(0, t) (the first t clumps as one column), in one forward pass
+  c[0] = 0;
+  let S0 = 0;
+  for (let t = 1; t <= p; t++) {
+    let m = c[t - 1];
+    for (let e = 2 * off[t - 1], e1 = 2 * off[t]; e < e1; e += 2) {
+      const r = rc[e];
+      const k = rc[e + 1];
+      const a0 = cnt[r];
+      S0 += f[a0 + k] - f[a0];
+      cnt[r] = a0 + k;
+      m += k;
+    }
+    c[t] = m;
+    W[t * J] = S0 - f[m];
+  }
+  cnt.fill(0, 0, q);
+  // one clump: every layer equals one column
+  for (let j = 2; j < J; j++) W[J + j - 1] = W[J];
+  // for t = p every layer up to J is needed; for t < p, layers 2..J−1 (none when J = 2)
+  for (let t = J > 2 ? 2 : p; t <= p; t++) {
+    const top = t === p ? J : J - 1;
+    const wt = t * J;
+    // the sweep: s = t−1 … 1, column = clumps s+1..t grown one clump at a time
+    let S = 0;
+    const ct = c[t];
+    for (let j = 2; j <= top; j++) best[j] = -Infinity;
+    for (let s = t - 1; s >= 1; s--) {
+      let d = 0;
+      for (let e = 2 * off[s], e1 = 2 * off[s + 1]; e < e1; e += 2) {
+        const r = rc[e];
+        const a0 = cnt[r];
+        const b0 = a0 + rc[e + 1];
+        d += f[b0] - f[a0];
+        cnt[r] = b0;
+      }
+      S += d;
+      const T = S - f[ct - c[s]];
+      const ws = s * J - 1;
+      for (let j = 2; j <= top; j++) {
+        const v = W[ws + j - 1] + T;
+        if (v > best[j]) best[j] = v;
+      }
+    }
+    for (let e = 2 * off[1], e1 = 2 * off[t]; e < e1; e += 2) cnt[rc[e]] = 0;
+    let prev = W[wt];
+    for (let j = 2; j <= top; j++) {
+      const v = best[j] > prev ? best[j] : prev;
+      if (j < J) W[wt + j - 1] = v;
+      prev = v;
+      if (t === p) out[j - 2] = (hq + v) / n;
+    }
+  }
+}
+
+/**
+ * The rows of an equipartition of `eq` into l rows (per level of `eq`), their totals, and the number of rows.
+ */
+function rowsOf(eq: Axis, n: number, l: number) {
+  const rowOf = new Int32Array(eq.L);
+  const q = equipartition(eq.counts, eq.L, n, l, rowOf);
+  const totals = new Int32Array(q);
+  for (let k = 0; k < eq.L; k++) totals[rowOf[k]] += eq.counts[k];
+  return { rowOf, q, totals };
+}
+
+/**
+ * MICe and TICe of the pairs (α = 0.6, c = 15 unless given).
+ * @throws RangeError for α outside (0, 1] or c ≤ 0 (quoting the value)
+ */
+export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): MicResult {
+  const { alpha, c } = micOptions(options);
+  const p = prepare(pairs);
+  const n = p.n;
+  if (n < 2) return { micE: null, ticE: null };
+  const lx = p.levelsX;
+  const ly = p.levelsY;
+  if (lx.L < 2 || ly.L < 2) return { micE: null, ticE: null };
+  const sx = p.sortedByX;
+  const sy = sortByX(ly, lx);
+  const X: Axis = { L: lx.L, counts: lx.counts, start: sx.start, other: sx.yRank };
+  const Y: Axis = { L: ly.L, counts: ly.counts, start: sy.start, other: sy.yRank };
+  const B = Math.max(Math.pow(n, alpha), 4);
+  const nRows = Math.max(Math.floor(B / 2), 2) - 1;
+  const w = new Work(n, Math.max(lx.L, ly.L), nRows + 2);
+  // M[a][b]: y in a + 2 bins, x in b + 2 bins, b < floor(B / (a + 2)) − 1
+  const M: Float64Array[] = [];
+  for (let a = 0; a < nRows; a++) M.push(new Float64Array(Math.floor(B / (a + 2)) - 1));
+  const scores = new Float64Array(nRows + 1);
+  for (const side of [0, 1] as const) {
+    const eq = side === 0 ? Y : X;
+    const free = side === 0 ? X : Y;
+    for (let i = 0; i < nRows; i++) {
+      const l = i + 2;
+      const m = M[i].length;
+      // side 0 stops below the diagonal k = l: that entry comes from side 1 (x equipartitioned)
+      const maxCols = Math.min(side === 0 ? l - 1 : l, m + 1);
+      if (maxCols < 2) continue;
+      const cap = Math.max(Math.trunc(c * (m + 1)), 1);
+      const { rowOf, q, totals } = rowsOf(eq, n, l);
+      const pc = clumps(free, rowOf, n, cap, w);
+      optimizeAxis(pc, totals, q, n, maxCols, w, scores);
+      const lq = Math.log(q);
+      for (let j = 2; j <= maxCols; j++) {
+        const v = scores[j - 2] / Math.min(Math.log(j), lq);
+        // side 0: y has l rows, x has j columns (j ≤ l); side 1: x has l parts, y has j (j ≤ l), the diagonal's source
+        if (side === 0) M[i][j - 2] = v;
+        else M[j - 2][i] = v;
+      }
+    }
+  }
+  let best = -Infinity;
+  let sum = 0;
+  for (const row of M)
+    for (let b = 0; b < row.length; b++) {
+      if (row[b] > best) best = row[b];
+      sum += row[b];
+    }
+  return { micE: best, ticE: sum };
+}

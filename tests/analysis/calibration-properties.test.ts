@@ -1,0 +1,189 @@
+/**
+ * Calibration engine (fft, phase-correlation, cross-correlation, align, bleed, unmix): properties that make
+ * a result right — identities, symmetries, exact cases, degenerate cases. Values from outside the project
+ * are checked in calibration-fixtures.test.ts (scikit-image, SciPy, NumPy).
+ */
+import { describe, expect, it } from 'vitest';
+import {
+  alignChannel,
+  bleedThroughSlope,
+  crossCorrelationCurves,
+  inverseRealFft2d,
+  measureShift,
+  nextPowerOfTwo,
+  realFft2dPair,
+  unmixChannels,
+} from '../../shared/analysis/index';
+import { Xoshiro128 } from '../../shared/analysis/prng';
+
+const rng = (seed: number) => {
+  const g = new Xoshiro128(seed);
+  return () => g.nextFloat();
+};
+
+/** A smooth random texture (sum of random Gaussian spots), periodic in both directions, shifted by (dx, dy). */
+function texture(w: number, h: number, dx: number, dy: number, seed: number, spots = 60): Float64Array {
+  const r = rng(seed);
+  const out = new Float64Array(w * h);
+  for (let k = 0; k < spots; k++) {
+    const cx = r() * w + dx, cy = r() * h + dy, a = 100 + 900 * r(), s = 1.2 + 1.5 * r();
+    for (let y = 0; y < h; y++)
+      for (let x = 0; x < w; x++) {
+        // nearest periodic image of the centre
+        let ex = x - cx, ey = y - cy;
+        ex -= w * Math.round(ex / w);
+        ey -= h * Math.round(ey / h);
+        out[y * w + x] += a * Math.exp(-(ex * ex + ey * ey) / (2 * s * s));
+      }
+  }
+  return out;
+}
+
+describe('fft (common practice: the DFT definition)', () => {
+  it('matches the direct DFT and inverts exactly', () => {
+    const w = 16, h = 8, r = rng(3);
+    const a = Float64Array.from({ length: w * h }, r), b = Float64Array.from({ length: w * h }, r);
+    const { A, B } = realFft2dPair(a, b, w, h);
+    const hw = w / 2 + 1;
+    for (const [ky, kx] of [[0, 0], [1, 2], [5, 8], [7, 3]]) {
+      for (const [img, S] of [[a, A], [b, B]] as const) {
+        let re = 0, im = 0;
+        for (let y = 0; y < h; y++)
+          for (let x = 0; x < w; x++) {
+            const t = -2 * Math.PI * ((ky * y) / h + (kx * x) / w);
+            re += img[y * w + x] * Math.cos(t);
+            im += img[y * w + x] * Math.sin(t);
+          }
+        expect(S[2 * (ky * hw + kx)]).toBeCloseTo(re, 12);
+        expect(S[2 * (ky * hw + kx) + 1]).toBeCloseTo(im, 12);
+      }
+    }
+    const back = inverseRealFft2d(A, w, h);
+    for (let i = 0; i < w * h; i++) expect(back[i]).toBeCloseTo(a[i], 13);
+  });
+  it('refuses sizes that are not powers of two, quoting them', () => {
+    expect(() => realFft2dPair(new Float64Array(12), new Float64Array(12), 6, 2)).toThrow(/received 6/);
+    expect(nextPowerOfTwo(100)).toBe(128);
+    expect(nextPowerOfTwo(1)).toBe(1);
+    expect(() => nextPowerOfTwo(0)).toThrow(/received 0/);
+  });
+});
+
+describe('measureShift', () => {
+  it('finds 0 for identical channels with peak 1', () => {
+    const a = texture(64, 64, 0, 0, 1);
+    const s = measureShift(a, a, 64, 64);
+    expect(s).toEqual({ dx: 0, dy: 0, peak: expect.any(Number) });
+    expect(s.peak!).toBeCloseTo(1, 6);
+  });
+  it('recovers known sub-pixel shifts of a periodic texture, both signs, to 0.05 px', () => {
+    for (const [dx, dy] of [[1.37, -2.61], [-7.4, 5.05], [0.5, -0.5], [6.83, 7.91]]) {
+      const a = texture(128, 128, 0, 0, 7), b = texture(128, 128, dx, dy, 7);
+      const s = measureShift(a, b, 128, 128);
+      expect(Math.abs(s.dx! - dx)).toBeLessThan(0.05);
+      expect(Math.abs(s.dy! - dy)).toBeLessThan(0.05);
+    }
+  });
+  it('swapping the channels negates the shift (antisymmetry)', () => {
+    const a = texture(96, 80, 0, 0, 11), b = texture(96, 80, 2.3, -1.2, 11);
+    const s = measureShift(a, b, 96, 80), t = measureShift(b, a, 96, 80);
+    expect(t.dx).toBeCloseTo(-s.dx!, 10);
+    expect(t.dy).toBeCloseTo(-s.dy!, 10);
+  });
+  it('constant or all-NaN channels give null; infinity is refused', () => {
+    const a = texture(32, 32, 0, 0, 2);
+    expect(measureShift(a, new Float64Array(32 * 32).fill(5), 32, 32)).toEqual({ dx: null, dy: null, peak: null });
+    expect(measureShift(new Float64Array(32 * 32).fill(NaN), a, 32, 32).dx).toBeNull();
+    const bad = a.slice();
+    bad[7] = Infinity;
+    expect(() => measureShift(a, bad, 32, 32)).toThrow(/pixel 7: Infinity/);
+    expect(() => measureShift(a, a, 30, 32)).toThrow(/received 1024 and 1024/);
+  });
+});
+
+describe('alignChannel (bilinear, common practice)', () => {
+  const w = 5, h = 4;
+  const ch = Float64Array.from({ length: w * h }, (_, i) => (i % w) * 10 + Math.floor(i / w) * 100);
+  it('a zero shift is the identity; an integer shift moves values and drops the border', () => {
+    expect(Array.from(alignChannel(ch, w, h, 0, 0))).toEqual(Array.from(ch));
+    const s = alignChannel(ch, w, h, 1, -1);
+    for (let j = 0; j < h; j++)
+      for (let i = 0; i < w; i++) {
+        const v = s[j * w + i];
+        if (i + 1 > w - 1 || j - 1 < 0) expect(v).toBeNaN();
+        else expect(v).toBe(ch[(j - 1) * w + i + 1]);
+      }
+  });
+  it('a linear ramp is reproduced exactly at fractional positions; positions at W − 1 are kept', () => {
+    const s = alignChannel(ch, w, h, 0.25, 0.5);
+    expect(s[0]).toBeCloseTo(2.5 + 50, 12);
+    expect(s[w - 1]).toBeNaN(); // 4.25 > W − 1
+    const t = alignChannel(ch, w, h, 0, 3); // row 0 samples row 3 (= H − 1)
+    expect(t[0]).toBe(300);
+    expect(t[w]).toBeNaN();
+  });
+  it('shifts every z slice alike and refuses non-finite shifts', () => {
+    const st = new Float64Array(2 * w * h);
+    st.set(ch);
+    st.set(ch, w * h);
+    const s = alignChannel(st, w, h, 0.5, 0, 2);
+    expect(Array.from(s.subarray(w * h))).toEqual(Array.from(s.subarray(0, w * h)));
+    expect(() => alignChannel(ch, w, h, NaN, 0)).toThrow(/dx .* received NaN/);
+  });
+});
+
+describe('unmixChannels and bleedThroughSlope', () => {
+  it('unmixing undoes the mixing model exactly (identity case)', () => {
+    const r = rng(5);
+    const t1 = Float64Array.from({ length: 200 }, () => 1000 * r()), t2 = Float64Array.from({ length: 200 }, () => 1000 * r());
+    const a21 = 0.2, a12 = 0.07;
+    const o1 = t1.map((v, i) => v + a12 * t2[i]), o2 = t2.map((v, i) => a21 * t1[i] + v);
+    const u = unmixChannels(o1, o2, a21, a12);
+    for (let i = 0; i < 200; i++) {
+      expect(u.t1[i]).toBeCloseTo(t1[i], 9);
+      expect(u.t2[i]).toBeCloseTo(t2[i], 9);
+    }
+  });
+  it('sets negative results to 0, keeps NaN, refuses coefficients outside [0, 1)', () => {
+    const u = unmixChannels(new Float64Array([0, NaN, 100]), new Float64Array([50, 1, 0]), 0.5, 0.5);
+    expect(u.t1[0]).toBe(0);
+    expect(u.t2[2]).toBe(0);
+    expect(u.t1[1]).toBeNaN();
+    expect(() => unmixChannels(new Uint16Array(1), new Uint16Array(1), 1, 0)).toThrow(/a21 .* received 1/);
+    expect(() => unmixChannels(new Uint16Array(1), new Uint16Array(1), 0, -0.1)).toThrow(/a12 .* received -0.1/);
+  });
+  it('the slope is exact on noise-free controls whatever the constant background', () => {
+    const r = rng(9);
+    const t = Float64Array.from({ length: 500 }, () => 2000 * r());
+    for (const [b1, b2] of [[0, 0], [100, 37], [5000, 2]]) {
+      const o1 = t.map((v) => v + b1), o2 = t.map((v) => 0.137 * v + b2);
+      expect(bleedThroughSlope(o1, o2)).toBeCloseTo(0.137, 12);
+    }
+    expect(bleedThroughSlope(new Uint16Array(10).fill(3), new Uint16Array(10))).toBeNull();
+    expect(bleedThroughSlope(new Uint16Array([1]), new Uint16Array([1]))).toBeNull();
+  });
+});
+
+describe('crossCorrelationCurves (van Steensel 1996)', () => {
+  it('peaks at the integer shift along each axis', () => {
+    const a = texture(64, 64, 0, 0, 4), b = texture(64, 64, 3, -2, 4);
+    const c = crossCorrelationCurves(a, b, 64, 64, 5);
+    expect(c.shifts).toEqual([-5, -4, -3, -2, -1, 0, 1, 2, 3, 4, 5]);
+    const arg = (v: (number | null)[]) => c.shifts[v.indexOf(Math.max(...v.map((t) => t ?? -2)))];
+    // along x the curve passes through the peak row only when dy = 0; check each axis on a shift along it
+    const bx = texture(64, 64, 3, 0, 4), by = texture(64, 64, 0, -2, 4);
+    expect(arg(crossCorrelationCurves(a, bx, 64, 64, 5).x)).toBe(3);
+    expect(arg(crossCorrelationCurves(a, by, 64, 64, 5).y)).toBe(-2);
+    expect(c.x.every((v) => v !== null && v >= -1 && v <= 1)).toBe(true);
+  });
+  it('swapping the channels mirrors the curve; r at 0 is Pearson; constant → null', () => {
+    const a = texture(40, 30, 0, 0, 8), b = texture(40, 30, 1.5, 0.5, 8);
+    const c = crossCorrelationCurves(a, b, 40, 30, 3), d = crossCorrelationCurves(b, a, 40, 30, 3);
+    for (let k = 0; k < 7; k++) {
+      expect(d.x[k]).toBeCloseTo(c.x[6 - k]!, 12);
+      expect(d.y[k]).toBeCloseTo(c.y[6 - k]!, 12);
+    }
+    expect(crossCorrelationCurves(a, new Float64Array(1200), 40, 30, 1).x).toEqual([null, null, null]);
+    expect(() => crossCorrelationCurves(a, b, 40, 30, -1)).toThrow(/received -1/);
+  });
+});
