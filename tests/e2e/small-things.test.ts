@@ -154,6 +154,20 @@ it('at 640 px wide the sidebar folds into a menu and no screen scrolls sideways'
     if (over > 0) wide.push(`${name} (${over} px wider)`);
     await shot(page, `small-05-640-${name}`);
   }
+  // the facility manager's own screens
+  const mgr = await e2e.page();
+  await mgr.setViewportSize({ width: 640, height: 800 });
+  await signIn(mgr, e2e.srv, 'manager@demo.test');
+  for (const [name, path] of [['review', '/review'], ['people', '/people'], ['outbox', '/outbox']]) {
+    await mgr.goto(`${e2e.srv.url}${path}`);
+    await mgr.getByRole('main').locator('h1').first().waitFor({ timeout: 30_000 });
+    await mgr.waitForLoadState('networkidle');
+    const over = await mgr.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+    if (over > 0) wide.push(`manager ${name} (${over} px wider)`);
+    await shot(mgr, `small-05-640-manager-${name}`);
+  }
+  expect(mgr.errors).toEqual([]);
+  await mgr.context().close();
   expect(wide, 'screens that scroll sideways at 640 px').toEqual([]);
   await page.getByRole('button', { name: 'Menu' }).click();
   await nav.getByRole('link', { name: 'Studies' }).click();
