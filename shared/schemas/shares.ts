@@ -16,11 +16,16 @@ import { ReportDetail } from './reports.js';
 export const DEFAULT_SHARE_DAYS = 30;
 export const MAX_SHARE_DAYS = 365;
 
-const Email = z.string().trim().toLowerCase().email('enter e-mail addresses like name@example.org');
+/** One recipient address; a wrong one is named in the message, so a list of many says which to fix. */
+export const ShareEmail = z
+  .string()
+  .trim()
+  .toLowerCase()
+  .email({ error: (iss) => `${JSON.stringify(iss.input)} is not an e-mail address (like name@example.org)` });
 
 export const CreateShareRequest = z.object({
   emails: z
-    .array(Email)
+    .array(ShareEmail)
     .min(1, 'enter at least one e-mail address')
     .max(50, 'at most 50 recipients at a time')
     .transform((a) => [...new Set(a)]),

@@ -1,12 +1,13 @@
 /**
- * A modal dialog: labelled by its title, keeps keyboard focus inside, Escape or the Close button closes it,
- * and focus returns to what opened it.
+ * A modal dialog: labelled by its title, opens with focus on its first field, keeps keyboard focus inside,
+ * Escape or the Close button closes it, and focus returns to what opened it.
  */
 import { useEffect, useId, useRef, useState } from 'react';
 import { createPortal } from 'react-dom';
 import { Button } from './Button';
 import { ErrorNotice } from './Caution';
 
+const FIELDS = 'input:not([disabled]):not([type="hidden"]), select:not([disabled]), textarea:not([disabled])';
 const FOCUSABLE = 'a[href], button:not([disabled]), input:not([disabled]), select:not([disabled]), textarea:not([disabled]), [tabindex]:not([tabindex="-1"])';
 
 export type DialogProps = {
@@ -32,7 +33,15 @@ export function Dialog({ open, onClose, title, description, children, footer, al
     if (!open) return;
     const opener = document.activeElement as HTMLElement | null;
     const el = panel.current;
-    const first = el?.querySelector<HTMLElement>('[data-autofocus]') ?? el?.querySelector<HTMLElement>(FOCUSABLE);
+    // focus: a marked control, else the first field of the body, else its first control, else the footer's (never the
+    // Close button in the title bar when there is something to fill in)
+    const body = el?.querySelector<HTMLElement>('[data-dialog-body]');
+    const first =
+      el?.querySelector<HTMLElement>('[data-autofocus]') ??
+      body?.querySelector<HTMLElement>(FIELDS) ??
+      body?.querySelector<HTMLElement>(FOCUSABLE) ??
+      el?.querySelector<HTMLElement>('[data-dialog-footer] button:not([disabled])') ??
+      el?.querySelector<HTMLElement>(FOCUSABLE);
     (first ?? el)?.focus();
     const onKey = (e: KeyboardEvent) => {
       if (e.key === 'Escape') {
@@ -84,7 +93,7 @@ export function Dialog({ open, onClose, title, description, children, footer, al
             ✕
           </Button>
         </div>
-        <div className="px-5 py-4">
+        <div className="px-5 py-4" data-dialog-body>
           {description && (
             <div id={descId} className="mb-3 text-sm text-ink-soft">
               {description}
@@ -92,7 +101,11 @@ export function Dialog({ open, onClose, title, description, children, footer, al
           )}
           {children}
         </div>
-        {footer && <div className="flex justify-end gap-2 border-t border-ink/10 px-5 py-3">{footer}</div>}
+        {footer && (
+          <div className="flex justify-end gap-2 border-t border-ink/10 px-5 py-3" data-dialog-footer>
+            {footer}
+          </div>
+        )}
       </div>
     </div>,
     document.body,

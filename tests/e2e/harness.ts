@@ -189,3 +189,17 @@ export async function apiSession(srv: RunningServer, email: string, password = D
     return { status: res.status, body: text ? JSON.parse(text) : null };
   };
 }
+
+/**
+ * Waits until the demo study has a finished run (the server measures it in the background after seeding), so a
+ * report made next has numbers. `session` is an `apiSession` of a member of the study.
+ */
+export async function demoMeasured(session: Awaited<ReturnType<typeof apiSession>>, studyId: number, timeoutMs = 180_000) {
+  const t0 = Date.now();
+  for (;;) {
+    const runs = (await session(`/runs?studyId=${studyId}`)).body.runs as { status: string }[];
+    if (runs.some((r) => r.status === 'done' || r.status === 'partial') && !runs.some((r) => r.status === 'queued' || r.status === 'running')) return;
+    if (Date.now() - t0 > timeoutMs) throw new Error(`the demo study's run did not finish within ${timeoutMs} ms: ${JSON.stringify(runs.map((r) => r.status))}`);
+    await new Promise((r) => setTimeout(r, 300));
+  }
+}

@@ -17,7 +17,7 @@ import { initialOutlineState, outlineReducer } from '@/features/workspace';
 import { useOutlineSync } from '@/features/workspace';
 import { useScatter } from '@/features/workspace';
 import { Viewer, isTyping, type DisplaySettings, type Tool } from '@/features/workspace';
-import { ToolBar, TOOLS } from '@/features/workspace';
+import { ToolBar, TOOLS, ShortcutHelp } from '@/features/workspace';
 import { CellsPanel } from '@/features/workspace';
 import { DisplayPanel, channelNames } from '@/features/workspace';
 import { PixelScatter } from '@/features/workspace';
@@ -56,7 +56,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [display, setDisplay] = useState<DisplaySettings>({ view: 'composite', z: undefined, range1: null, range2: null });
   const [autoRanges, setAutoRanges] = useState<[number, number][] | null>(null);
   const [command, setCommand] = useState<{ kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null>(null);
-  const [dialog, setDialog] = useState<null | 'labels' | 'outlines' | 'auto'>(null);
+  const [dialog, setDialog] = useState<null | 'labels' | 'outlines' | 'auto' | 'keys'>(null);
   const [notice, setNotice] = useState<string | null>(null);
   const [manual, setManual] = useState<{ t1: number; t2: number } | null>(null);
   const loaded = useRef(false);
@@ -140,6 +140,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         return;
       }
       if (mod || e.altKey) return;
+      if (e.key === '?') return setDialog('keys');
       const t = TOOLS.find((x) => x.key.toLowerCase() === k);
       if (t && (canEdit || t.tool === 'select')) return setTool(t.tool);
       if (k === 'm' && canEdit) return setBackground((b) => !b);
@@ -152,7 +153,8 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
         e.preventDefault();
         return dispatch({ type: 'delete', key: state.selected });
       }
-      if (e.key.startsWith('Arrow') && state.selected && canEdit && (e.target as HTMLElement)?.dataset?.testid === 'field-viewer') {
+      // with a drawing tool the arrows move the viewer's keyboard cursor instead (Viewer)
+      if (e.key.startsWith('Arrow') && state.selected && canEdit && tool === 'select' && (e.target as HTMLElement)?.dataset?.testid === 'field-viewer') {
         e.preventDefault();
         const d = e.shiftKey ? 10 : 1;
         const dx = e.key === 'ArrowLeft' ? -d : e.key === 'ArrowRight' ? d : 0;
@@ -246,6 +248,8 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             background={background}
             onBackground={setBackground}
             status={status}
+            onHelp={() => setDialog('keys')}
+            statusTitle={sync.status.kind === 'error' ? `Not saved: ${sync.status.message}` : undefined}
           />
           <div className="h-[68vh] min-h-[420px]">
             <Viewer
@@ -269,7 +273,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </div>
           <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
             <section aria-label="Display" className="rounded-md border border-ink/10 bg-white/70 p-3">
-              <h3 className="mb-2 text-sm font-semibold">Display</h3>
+              <h2 className="mb-2 text-sm font-semibold">Display</h2>
               <DisplayPanel field={field} display={display} onChange={setDisplay} autoRanges={autoRanges} />
             </section>
             <div className="rounded-md border border-ink/10 bg-white/70 p-3">
@@ -350,6 +354,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </div>
         </aside>
       </div>
+      <ShortcutHelp open={dialog === 'keys'} onClose={() => setDialog(null)} />
       <ImportLabelsDialog fieldId={fieldId} open={dialog === 'labels'} onClose={() => setDialog(null)} size={[field.width, field.height]} onDone={setNotice} />
       <ImportOutlinesDialog fieldId={fieldId} open={dialog === 'outlines'} onClose={() => setDialog(null)} onDone={setNotice} />
       <AutoOutlineDialog fieldId={fieldId} open={dialog === 'auto'} onClose={() => setDialog(null)} names={names} onDone={setNotice} z={display.z} facts={field.facts} size={[field.width, field.height]} pixelSizeUm={field.pixelSizeUm} />

@@ -11,11 +11,11 @@ import { formatDateTime } from '@shared/format/datetime';
 function Frame({ children }: { children: React.ReactNode }) {
   return (
     <div className="min-h-screen px-4 py-6 sm:px-8">
-      <div className="no-print mx-auto mb-4 flex max-w-5xl items-center justify-between text-sm">
+      <header className="no-print mx-auto mb-4 flex max-w-5xl items-center justify-between text-sm">
         <span className="text-lg font-bold tracking-tight text-accent-dark">Syntopy</span>
         <span className="text-ink-faint">shared report · read-only · research use only</span>
-      </div>
-      {children}
+      </header>
+      <main>{children}</main>
     </div>
   );
 }
@@ -57,7 +57,7 @@ export function Component() {
         csvHref={(t) => sharedCsvUrl(token, t)}
         actions={<Button onClick={() => window.print()}>Print / PDF</Button>}
       />
-      <p className="no-print mx-auto max-w-5xl text-xs text-ink-faint">
+      <p className="no-print mx-auto max-w-5xl text-xs text-ink-soft">
         Shared with {d.recipient}; this personal link works until {formatDateTime(d.expiresAt)}.
       </p>
     </Frame>

@@ -8,6 +8,7 @@ export { LivePreview } from './components/LivePreview';
 export { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from './components/OutlineActions';
 export { PixelScatter } from './components/PixelScatter';
 export { ResultsTable } from './components/ResultsTable';
+export { ShortcutHelp } from './components/ShortcutHelp';
 export { SpotLayer } from './components/SpotLayer';
 export { SpotsPanel, type LiveSpotSettings, type SpotToggles } from './components/SpotsPanel';
 export { pairsWithin, type SpotPair, type Xy } from './lib/spotView';

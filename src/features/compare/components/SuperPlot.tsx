@@ -160,7 +160,7 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
         ))}
       </g>
       {drawn.length < data.points.length && (
-        <text x={width - m.right} y={height - 6} textAnchor="end" fontSize={10} fill="#8a96a0">
+        <text x={width - m.right} y={height - 6} textAnchor="end" fontSize={10} fill="#5f6b74">
           {`drawing ${drawn.length} of ${plural(data.points.length, 'cell')}; statistics use all`}
         </text>
       )}

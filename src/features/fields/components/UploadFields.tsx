@@ -1,6 +1,7 @@
 /**
  * Add fields to a coverslip: either multi-channel files (choose which two channels are channel 1 and 2) or
- * pairs of single-channel files; several fields in one upload, a progress bar, and one result per field.
+ * pairs of single-channel files; several fields in one upload, a progress bar, and one result per field. Files
+ * can be chosen or dropped onto the dialog; a pair is named after both of its files until a name is typed.
  */
 import { useId, useMemo, useState } from 'react';
 import { Button } from '@/components/Button';
@@ -12,6 +13,7 @@ import { NumberTextFor } from '@shared/schemas/common';
 import { BoxMessage, useNumberBox } from '@/components/NumberBox';
 import { useUploadFields } from '../api/useUploadFields';
 import { formatBytes, inspectTiff, type FileChannels } from '../lib/inspect';
+import { pairName, stem } from '../lib/pairName';
 import { plural } from '@shared/format/plural';
 
 type Mode = 'multi' | 'pairs';
@@ -46,10 +48,14 @@ interface PairRow {
   file1: File | null;
   file2: File | null;
   name: string;
+  /** the name was typed: choosing files no longer renames the pair */
+  typed?: boolean;
 }
 
+/** the pair's name from its files (both when they are chosen), unless one was typed */
+const autoName = (r: PairRow): PairRow => (r.typed ? r : { ...r, name: r.file1 && r.file2 ? pairName(r.file1.name, r.file2.name) : '' });
+
 let nextId = 1;
-const stem = (n: string) => n.replace(/(\.ome)?\.tiff?$/i, '');
 const TIFF_ACCEPT = '.tif,.tiff,image/tiff';
 
 function channelLabel(c: { index: number; name: string | null }) {
@@ -92,8 +98,17 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
     // several single-channel files at once: paired in name order (1st + 2nd, 3rd + 4th …); editable after
     const files = Array.from(list ?? []).sort((a, b) => a.name.localeCompare(b.name, undefined, { numeric: true }));
     const rows: PairRow[] = [];
-    for (let i = 0; i < files.length; i += 2) rows.push({ id: nextId++, file1: files[i], file2: files[i + 1] ?? null, name: stem(files[i].name) });
+    for (let i = 0; i < files.length; i += 2) rows.push(autoName({ id: nextId++, file1: files[i], file2: files[i + 1] ?? null, name: '' }));
     setPairs((cur) => [...cur.filter((r) => r.file1 || r.file2), ...rows]);
+  };
+
+  const [dropping, setDropping] = useState(false);
+  const onDrop = (e: React.DragEvent) => {
+    e.preventDefault();
+    setDropping(false);
+    if (busy || state.phase === 'done' || state.phase === 'failed') return;
+    if (mode === 'multi') addMultiFiles(e.dataTransfer.files);
+    else addPairFiles(e.dataTransfer.files);
   };
 
   const totalBytes = useMemo(() => {
@@ -123,6 +138,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
       if (rows.length === 0) return setFormError('choose a channel 1 file and a channel 2 file');
       for (const [i, r] of rows.entries()) {
         if (!r.file1 || !r.file2) return setFormError(`pair ${i + 1} needs both a channel 1 and a channel 2 file`);
+        if (!r.name.trim()) return setFormError(`pair ${i + 1} needs a field name`);
         plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 } });
       }
     }
@@ -170,7 +186,19 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
       {state.phase === 'done' || state.phase === 'failed' ? (
         <UploadResults state={state} />
       ) : (
-        <div className="flex flex-col gap-4" aria-busy={busy}>
+        <div
+          className={`-m-2 flex flex-col gap-4 rounded-md p-2 ${dropping ? 'bg-accent-soft/60 outline-2 outline-dashed outline-accent' : ''}`}
+          aria-busy={busy}
+          data-testid="upload-drop"
+          onDragOver={(e) => {
+            if (!Array.from(e.dataTransfer.types).includes('Files')) return;
+            e.preventDefault();
+            e.dataTransfer.dropEffect = 'copy';
+            setDropping(true);
+          }}
+          onDragLeave={(e) => e.currentTarget.contains(e.relatedTarget as Node | null) || setDropping(false)}
+          onDrop={onDrop}
+        >
           <fieldset className="flex flex-wrap gap-4 text-sm" disabled={busy}>
             <legend className="sr-only">What the files hold</legend>
             <label className="flex items-center gap-2">
@@ -183,6 +211,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
             </label>
           </fieldset>
 
+          <p className="text-xs text-ink-soft">{dropping ? 'Drop the files to add them.' : 'Drop TIFF files anywhere on this dialog, or choose them below.'}</p>
           {mode === 'multi' ? (
             <div className="flex flex-col gap-3">
               <label className="text-sm">
@@ -246,7 +275,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
                   <li key={r.id} className="grid grid-cols-1 gap-2 rounded-md border border-ink/10 p-3 text-sm sm:grid-cols-[1fr_1fr_1fr_auto] sm:items-end">
                     <label>
                       <span className="block text-xs text-ink-soft">Field name</span>
-                      <input className={inputClass()} value={r.name} disabled={busy} placeholder={`pair ${i + 1}`} onChange={(e) => setPairs((cur) => cur.map((x) => (x.id === r.id ? { ...x, name: e.target.value } : x)))} />
+                      <input className={inputClass()} value={r.name} disabled={busy} placeholder={r.file1 && r.file2 ? undefined : 'named after both files once chosen'} onChange={(e) => setPairs((cur) => cur.map((x) => (x.id === r.id ? { ...x, name: e.target.value, typed: e.target.value.trim() !== '' } : x)))} />
                     </label>
                     {(['file1', 'file2'] as const).map((k, j) => (
                       <label key={k}>
@@ -260,7 +289,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
                           className="w-full text-xs"
                           onChange={(e) => {
                             const f = e.target.files?.[0] ?? null;
-                            setPairs((cur) => cur.map((x) => (x.id === r.id ? { ...x, [k]: f, name: x.name || (f && k === 'file1' ? stem(f.name) : x.name) } : x)));
+                            setPairs((cur) => cur.map((x) => (x.id === r.id ? autoName({ ...x, [k]: f }) : x)));
                           }}
                         />
                       </label>

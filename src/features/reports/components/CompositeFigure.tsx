@@ -69,7 +69,7 @@ export function CompositeFigure({
       </div>
       <figcaption className="mt-1 text-xs text-ink-soft">
         <span className="font-medium text-ink">{conditionName}</span> · {composite.coverslipName} · {composite.fieldName} ({width} × {height} px, {plural(composite.outlines.length, 'cell')}; dashed = excluded; yellow = the cell in the pixel scatter).
-        Channel 1 <span className="text-ch1">green</span>, channel 2 <span className="text-ch2">magenta</span>
+        Channel 1 <span className="text-ch1-ink">green</span>, channel 2 <span className="text-ch2-ink">magenta</span>
         {composite.ranges && `, shown ${composite.ranges.lo1}–${composite.ranges.hi1} and ${composite.ranges.lo2}–${composite.ranges.hi2}`}.
       </figcaption>
     </figure>

@@ -4,7 +4,7 @@
  * cell's pixel scatter, exclusions, provenance, the methods paragraph and the cautions. Everything comes from the
  * frozen snapshot; nothing is recomputed.
  */
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { SuperPlot, SuperPlotLegend } from '@/features/compare';
 import { Badge, Caution } from '@/components';
 import { CSV_TABLES, type CsvTable, type ReportCoefficient, type ReportDetail } from '@shared/schemas/reports';
@@ -19,9 +19,9 @@ import { plural, noun } from '@shared/format/plural';
 
 const TABLE_LABELS: Record<CsvTable, string> = { cells: 'Cells', coverslips: 'Coverslip means', conditions: 'Condition summaries', statistics: 'Statistics', exclusions: 'Exclusions' };
 
-function Section({ title, children, long = false, id, provisional = false }: { title: string; children: React.ReactNode; long?: boolean; id?: string; provisional?: boolean }) {
+function Section({ title, children, id, provisional = false }: { title: string; children: React.ReactNode; id?: string; provisional?: boolean }) {
   return (
-    <section id={id} className={`report-section ${long ? 'report-long' : ''} mb-6 rounded-lg border border-ink/10 bg-white p-5`}>
+    <section id={id} className="report-section mb-6 rounded-lg border border-ink/10 bg-white p-5">
       <h2 className="mb-3 flex flex-wrap items-center gap-2">
         {title}
         {provisional && <ProvisionalBadge />}
@@ -29,6 +29,18 @@ function Section({ title, children, long = false, id, provisional = false }: { t
       {children}
     </section>
   );
+}
+
+/** The report's name on paper and in the browser: the study, then the report title. */
+export function reportHeading(study: string, title: string): string {
+  return `${study} · ${title}`;
+}
+
+/** The printed pages' running header (from page 2 on): `heading` as a CSS string (quotes, backslashes and line breaks escaped). */
+export function runningHeadCss(heading: string): string {
+  const text = heading.replace(/[\r\n]+/g, ' ').replace(/[\\"]/g, (c) => `\\${c}`).replace(/</g, '\\3c ');
+  const font = "font: 8pt 'IBM Plex Sans', system-ui, sans-serif; color: #4a5863;";
+  return `@media print { @page { @top-left { content: "${text}"; ${font} } } @page :first { @top-left { content: none; } } }`;
 }
 
 /** The frozen comparison of one coefficient, drawn by Compare's replicate-aware plot. */
@@ -49,8 +61,18 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
   const [picked, setPicked] = useState<number | null>(s.scatter?.cellId ?? s.scatters[0]?.cellId ?? null);
   const pickable = new Set(s.scatters.map((x) => x.cellId));
   const shown = s.scatters.find((x) => x.cellId === picked) ?? s.scatter;
+  const heading = reportHeading(s.study.name, report.title);
+  // the browser's tab, and the title of a PDF printed from it
+  useEffect(() => {
+    const before = document.title;
+    document.title = heading;
+    return () => {
+      document.title = before;
+    };
+  }, [heading]);
   return (
     <article className="report-page mx-auto max-w-5xl" aria-labelledby="report-title">
+      <style>{runningHeadCss(heading)}</style>
       <header className="mb-6 border-b border-ink/10 pb-4">
         <div className="flex flex-wrap items-start justify-between gap-4">
           <div className="min-w-0">
@@ -142,7 +164,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
       <Section title="Cells by coverslip" provisional={s.anyProvisional}>
         <div className="grid gap-6">
           {s.coefficients.map((k) => (
-            <div key={k}>
+            <div key={k} className="report-keep">
               <h3 className="mb-1 text-sm font-semibold">{labelOf(k)}</h3>
               <CoefficientPlot report={report} k={k} />
             </div>
@@ -203,7 +225,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
           </div>
         )}
         {shown && (
-          <div className="mt-6">
+          <div className="report-keep mt-6">
             <div className="mb-1 flex flex-wrap items-center gap-3">
               <h3 className="text-sm font-semibold">Pixel scatter of one cell</h3>
               {s.scatters.length > 1 && (
@@ -225,7 +247,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         )}
       </Section>
 
-      <Section title="Data used" long>
+      <Section title="Data used">
         <ul className="mb-3 list-disc pl-5 text-sm">
           {s.conditions.map((c) => (
             <li key={c.id}>
@@ -275,7 +297,7 @@ export function ReportView({ report, csvHref, actions }: { report: ReportDetail;
         </div>
       </Section>
 
-      <Section title="Methods" long id="methods">
+      <Section title="Methods" id="methods">
         <div className="space-y-3 text-sm leading-relaxed" data-testid="methods">
           {s.methods.split('\n\n').map((p, i) =>
             p.startsWith('References\n') ? (

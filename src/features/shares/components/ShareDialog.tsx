@@ -2,7 +2,7 @@
 import { useState } from 'react';
 import { ErrorNotice, FormDialog, TextArea, TextField } from '@/components';
 import { ApiError } from '@/lib/api';
-import { CreateShareRequest, DEFAULT_SHARE_DAYS } from '@shared/schemas/shares';
+import { CreateShareRequest, DEFAULT_SHARE_DAYS, ShareEmail } from '@shared/schemas/shares';
 import { NumberTextFor, readNumberText } from '@shared/schemas/common';
 import { useCreateShare } from '../api/useCreateShare';
 
@@ -23,10 +23,15 @@ export function ShareDialog({ reportId, open, onClose }: { reportId: number; ope
   const daysChecked = readNumberText(DAYS, days);
   const share = useCreateShare(reportId);
   const err = share.error instanceof ApiError ? share.error : null;
-  const emailError = err?.issues.find((i) => i.path.startsWith('emails'))?.message;
+  const [wrongAddresses, setWrongAddresses] = useState<string | null>(null);
+  const serverEmailIssues = err?.issues.filter((i) => i.path.startsWith('emails')).map((i) => i.message) ?? [];
+  const emailError = wrongAddresses ?? (serverEmailIssues.length ? serverEmailIssues.join('; ') : undefined);
   const submit = (e: React.FormEvent) => {
     e.preventDefault();
-    if (daysChecked.value === null) return;
+    // name every wrong address at once, with the schema the server checks them with
+    const wrong = splitAddresses(emails).filter((a) => !ShareEmail.safeParse(a).success);
+    setWrongAddresses(wrong.length ? `${wrong.map((a) => JSON.stringify(a)).join(', ')} ${wrong.length === 1 ? 'is not an e-mail address' : 'are not e-mail addresses'} (like name@example.org)` : null);
+    if (wrong.length || daysChecked.value === null) return;
     share.mutate({ emails: splitAddresses(emails), message, expiresInDays: daysChecked.value, inviteToStudy: invite }, { onSuccess: (r) => (r.notSent.length ? undefined : onClose()) });
   };
   return (
@@ -39,7 +44,7 @@ export function ShareDialog({ reportId, open, onClose }: { reportId: number; ope
       pending={share.isPending}
       onSubmit={submit}
     >
-      <TextArea label="E-mail addresses" hint="One or more, separated by commas or new lines." value={emails} onChange={(e) => setEmails(e.target.value)} rows={2} required error={emailError} data-autofocus />
+      <TextArea label="E-mail addresses" hint="One or more, separated by commas or new lines." value={emails} onChange={(e) => (setEmails(e.target.value), setWrongAddresses(null))} rows={2} required error={emailError} data-autofocus />
       <TextArea label="Message" hint="Included in the e-mail (optional)." value={message} onChange={(e) => setMessage(e.target.value)} rows={3} maxLength={5000} />
       <TextField label="Links work for (days)" inputMode="numeric" value={days} onChange={(e) => setDays(e.target.value)} error={daysChecked.error ?? err?.fieldError('expiresInDays')} />
       <label className="flex items-start gap-2 text-sm">

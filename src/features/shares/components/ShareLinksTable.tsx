@@ -31,7 +31,9 @@ export function ShareLinksTable({ reportId }: { reportId: number }) {
             <th className="py-1 pr-3">Works until</th>
             <th className="py-1 pr-3">Last opened</th>
             <th className="py-1 pr-3 text-right">Openings</th>
-            <th className="py-1" />
+            <th className="py-1">
+              <span className="sr-only">Actions</span>
+            </th>
           </tr>
         </thead>
         <tbody>

@@ -137,7 +137,9 @@ function TokenList() {
             <th className="py-1 pr-3">Created</th>
             <th className="py-1 pr-3">Works until</th>
             <th className="py-1 pr-3">Last used</th>
-            <th className="py-1" />
+            <th className="py-1">
+              <span className="sr-only">Actions</span>
+            </th>
           </tr>
         </thead>
         <tbody>

@@ -34,11 +34,17 @@ export function CellsPanel({
   const list = useRef<HTMLUListElement>(null);
   useEffect(() => {
     if (!selected) return;
-    list.current?.querySelector(`[data-key="${selected}"]`)?.scrollIntoView({ block: 'nearest' });
+    // scroll the list's own box only: scrollIntoView would scroll the page too and move the image under the pointer
+    const item = list.current?.querySelector(`[data-key="${selected}"]`);
+    const box = list.current?.parentElement;
+    if (!item || !box) return;
+    const r = item.getBoundingClientRect(), b = box.getBoundingClientRect();
+    if (r.top < b.top) box.scrollTop -= b.top - r.top;
+    else if (r.bottom > b.bottom) box.scrollTop += r.bottom - b.bottom;
   }, [selected]);
 
   if (!outlines.length)
-    return <p className="px-1 py-3 text-sm text-ink-soft">No cells yet. Pick an outline tool (P polygon, B box, O oval, F freehand) and draw on the image, import a label image, or let Syntopy find the cells.</p>;
+    return <p className="px-1 py-3 text-sm text-ink-soft">No cells yet. Pick an outline tool (B box, E ellipse, P polygon, T trace) and draw on the image, import a label image, or let Syntopy find the cells.</p>;
 
   const move = (d: number) => {
     const i = outlines.findIndex((o) => o.key === selected);
@@ -89,19 +95,19 @@ export function CellsPanel({
               {c?.excluded && <Badge tone="danger">excluded</Badge>}
             </span>
             {canEdit && (
-              <span className="flex shrink-0 gap-0.5 opacity-70 group-hover:opacity-100">
-                <IconButton label={`Rename ${o.name}`} onClick={() => setEditing(o.key)}>
-                  Aa
-                </IconButton>
-                <IconButton
+              <span className="flex shrink-0 gap-0.5">
+                <WordButton label={`Rename ${o.name}`} onClick={() => setEditing(o.key)}>
+                  Rename
+                </WordButton>
+                <WordButton
                   label={o.role === 'background' ? `Use ${o.name} as a cell` : `Mark ${o.name} as background`}
                   onClick={() => dispatch({ type: 'set-role', key: o.key, role: o.role === 'background' ? 'cell' : 'background' })}
                 >
-                  {o.role === 'background' ? '◉' : '◌'}
-                </IconButton>
-                <IconButton label={`Delete ${o.name}`} onClick={() => dispatch({ type: 'delete', key: o.key })}>
-                  ✕
-                </IconButton>
+                  {o.role === 'background' ? 'Cell' : 'Background'}
+                </WordButton>
+                <WordButton label={`Delete ${o.name}`} onClick={() => dispatch({ type: 'delete', key: o.key })}>
+                  Delete
+                </WordButton>
               </span>
             )}
           </li>
@@ -111,9 +117,10 @@ export function CellsPanel({
   );
 }
 
-function IconButton({ label, onClick, children }: { label: string; onClick: () => void; children: React.ReactNode }) {
+/** A small worded button; its accessible name (and tooltip) says which cell it acts on and begins with the visible word. */
+function WordButton({ label, onClick, children }: { label: string; onClick: () => void; children: React.ReactNode }) {
   return (
-    <button type="button" title={label} aria-label={label} onClick={onClick} className="grid h-6 w-6 place-items-center rounded text-xs text-ink-soft hover:bg-ink/10 hover:text-ink focus-visible:outline-2 focus-visible:outline-accent">
+    <button type="button" title={label} aria-label={label} onClick={onClick} className="rounded px-1 py-0.5 text-[11px] leading-4 text-ink-soft underline-offset-2 hover:bg-ink/10 hover:text-ink hover:underline focus-visible:outline-2 focus-visible:outline-accent">
       {children}
     </button>
   );

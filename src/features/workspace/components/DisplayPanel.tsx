@@ -31,7 +31,7 @@ export function DisplayPanel({ field, display, onChange, autoRanges }: { field: 
         <RangeControl
           key={k}
           label={names[i]}
-          tone={i === 0 ? 'text-ch1' : 'text-ch2'}
+          tone={i === 0 ? 'text-ch1-ink' : 'text-ch2-ink'}
           top={top}
           dataRange={i === 0 ? [field.facts.ch1.min, field.facts.ch1.max] : [field.facts.ch2.min, field.facts.ch2.max]}
           value={display[k] ?? autoRanges?.[i] ?? null}

@@ -108,7 +108,7 @@ export function PixelScatter({
       </div>
       <div className="mt-1 flex gap-2">
         <div className="flex w-4 items-center justify-center">
-          <span className="-rotate-90 whitespace-nowrap text-xs font-medium text-ch2">{names[1]} →</span>
+          <span className="-rotate-90 whitespace-nowrap text-xs font-medium text-ch2-ink">{names[1]} →</span>
         </div>
         <div>
           <div
@@ -151,7 +151,7 @@ export function PixelScatter({
           </div>
           <div className="mt-0.5 flex justify-between font-mono text-[11px] text-ink-faint" style={{ width: SIZE }}>
             <span>{fmtV(x0)}</span>
-            <span className="font-sans font-medium text-ch1">{names[0]} →</span>
+            <span className="font-sans font-medium text-ch1-ink">{names[0]} →</span>
             <span>{fmtV(x1)}</span>
           </div>
         </div>

@@ -25,7 +25,7 @@ export function ResultsTable({ results, cells, selectedCellId, onSelect, fieldSa
   return (
     <section aria-label="Per-cell results" data-testid="results-table">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
-        <h3 className="text-sm font-semibold">Per-cell results</h3>
+        <h2 className="text-sm font-semibold">Per-cell results</h2>
         <span className="flex items-center gap-1.5 text-xs text-ink-soft">
           {anyProvisional && <ProvisionalBadge />}
           {measured.length ? `${runWords(src?.runId ? [src.runId] : measured.map((r) => r.runId))}${src?.recipeName ? ` · ${src.recipeName} v${src.recipeVersion}` : ''}` : loadError ? 'results could not be loaded' : 'no run on this field yet — the live preview shows the selected cell'}

@@ -21,6 +21,8 @@ export function ToolBar({
   background,
   onBackground,
   status,
+  statusTitle,
+  onHelp,
 }: {
   tool: Tool;
   onTool: (t: Tool) => void;
@@ -32,6 +34,10 @@ export function ToolBar({
   background: boolean;
   onBackground: (b: boolean) => void;
   status: React.ReactNode;
+  /** the whole status in words, for the tooltip when a long message is cut */
+  statusTitle?: string;
+  /** opens the list of keys (also `?`) */
+  onHelp: () => void;
 }) {
   const btn = (active: boolean) => cx('rounded px-2.5 py-1 text-xs font-medium focus-visible:outline-2 focus-visible:outline-accent', active ? 'bg-accent text-white' : 'text-ink hover:bg-ink/8');
   return (
@@ -46,7 +52,7 @@ export function ToolBar({
       {canEdit && (
         <>
           <label className="inline-flex items-center gap-1.5 rounded-md border border-ink/15 bg-white px-2 py-1 text-xs" title="New outlines mark a background region (used for background subtraction) (M)">
-            <input type="checkbox" checked={background} onChange={(e) => onBackground(e.target.checked)} className="accent-[#b45309]" />
+            <input type="checkbox" checked={background} onChange={(e) => onBackground(e.target.checked)} className="accent-warn" />
             New outlines mark background <kbd className="font-mono text-[10px] opacity-60">M</kbd>
           </label>
           <div className="inline-flex rounded-md border border-ink/15 bg-white p-0.5">
@@ -59,7 +65,12 @@ export function ToolBar({
           </div>
         </>
       )}
-      <div className="ml-auto text-xs text-ink-soft" aria-live="polite">
+      <button type="button" className={cx(btn(false), 'border border-ink/15 bg-white')} onClick={onHelp} title="Every key of the workspace (?)" aria-keyshortcuts="Shift+?">
+        Keys <kbd className="ml-0.5 font-mono text-[10px] opacity-60">?</kbd>
+      </button>
+      {/* a fixed box: the save messages change while drawing, and a message of another length must not re-wrap the
+          toolbar and move the image under the pointer */}
+      <div className="ml-auto h-5 w-48 shrink-0 truncate text-right text-xs leading-5 text-ink-soft" aria-live="polite" data-testid="save-status" title={statusTitle}>
         {status}
       </div>
     </div>

@@ -1,7 +1,8 @@
 /**
  * The field viewer: the preview image (composite or one channel, at the zoom's resolution level) with the
  * outlines on top. Zoom by wheel / pinch / buttons / keys, pan by dragging empty space (or Space + drag,
- * middle button), fit and 1:1. The outline tools draw in image pixel coordinates.
+ * middle button), fit and 1:1. The outline tools draw in image pixel coordinates, with the pointer or with the
+ * keyboard cursor (arrows move it, Shift+arrows faster, Enter places a point or corner, Esc cancels).
  */
 import { useCallback, useEffect, useLayoutEffect, useMemo, useRef, useState, type PointerEvent as RPointerEvent } from 'react';
 import type { FieldDetail } from '@shared/schemas/fields';
@@ -12,6 +13,7 @@ import { handlesOf, nearestEdge, type Outline, type OutlineAction, type Point } 
 import { LabelLayer } from './LabelLayer';
 import { plural } from '@shared/format/plural';
 import { runsContain } from '@shared/analysis/rle';
+import { cursorStep, followCursor, isArrow, moveCursor, startCursor } from '../lib/keyCursor';
 
 export type Tool = 'select' | 'box' | 'ellipse' | 'polygon' | 'trace';
 
@@ -61,6 +63,12 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
   const [draft, setDraft] = useState<Point[]>([]);
   const [hover, setHover] = useState<Point | null>(null);
   const [space, setSpace] = useState(false);
+  /** the keyboard cursor (image coordinates), shown once an arrow key moves it; the pointer hides it */
+  const [kc, setKc] = useState<Point | null>(null);
+  /** keyboard drawing: the first corner of a box/ellipse, or the points of a trace so far */
+  const [anchor, setAnchor] = useState<Point | null>(null);
+  const [kTrace, setKTrace] = useState<Point[] | null>(null);
+  const [said, setSaid] = useState('');
   const pointers = useRef(new Map<number, { x: number; y: number }>());
   const pinch = useRef<{ d: number; mx: number; my: number; v: View } | null>(null);
   const W = field.width, H = field.height;
@@ -167,28 +175,94 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [previewUrl]);
 
-  // Space held = pan
+  // Space held = pan; the keyboard cursor; Enter / Esc / Backspace while drawing. One listener for the viewer's
+  // life reading the latest render through a ref: a listener re-added on every render misses the key whose
+  // handler elsewhere (Esc clearing the selection) re-renders during the same event.
+  const onKeyDown = useRef<(e: KeyboardEvent) => void>(() => {});
+  const onKeyUp = useRef<(e: KeyboardEvent) => void>(() => {});
   useEffect(() => {
-    const down = (e: KeyboardEvent) => {
-      if (e.code === 'Space' && !isTyping(e.target)) {
-        setSpace(true);
-        e.preventDefault();
-      }
-      if (draft.length && !isTyping(e.target)) {
-        if (e.key === 'Enter') finishPolygon();
-        else if (e.key === 'Escape') setDraft([]);
-        else if (e.key === 'Backspace') setDraft((d) => d.slice(0, -1));
-      }
-    };
-    const up = (e: KeyboardEvent) => e.code === 'Space' && setSpace(false);
+    const down = (e: KeyboardEvent) => onKeyDown.current(e);
+    const up = (e: KeyboardEvent) => onKeyUp.current(e);
     window.addEventListener('keydown', down);
     window.addEventListener('keyup', up);
     return () => {
       window.removeEventListener('keydown', down);
       window.removeEventListener('keyup', up);
     };
-  });
-  useEffect(() => setDraft([]), [tool]);
+  }, []);
+  {
+    onKeyDown.current = (e: KeyboardEvent) => {
+      if (e.code === 'Space' && !isTyping(e.target)) {
+        setSpace(true);
+        e.preventDefault();
+      }
+      if (isTyping(e.target) || document.querySelector('[role="dialog"],[role="alertdialog"]')) return;
+      const focused = document.activeElement === box.current;
+      if (focused && canEdit && tool !== 'select' && !e.ctrlKey && !e.metaKey && !e.altKey && (isArrow(e.key) || (e.key === 'Enter' && kc))) {
+        e.preventDefault();
+        if (e.key === 'Enter') keyboardPlace(kc!, e.shiftKey);
+        else keyboardMove(e.key, e.shiftKey);
+        return;
+      }
+      if (e.key === 'Escape' && (anchor || kTrace)) {
+        setAnchor(null);
+        setKTrace(null);
+        setSaid('Outline cancelled');
+      }
+      if (draft.length) {
+        if (e.key === 'Enter') finishPolygon();
+        else if (e.key === 'Escape') (setDraft([]), setSaid('Outline cancelled'));
+        else if (e.key === 'Backspace') setDraft((d) => d.slice(0, -1));
+      }
+    };
+    onKeyUp.current = (e: KeyboardEvent) => e.code === 'Space' && setSpace(false);
+  }
+  useEffect(() => {
+    setDraft([]);
+    setAnchor(null);
+    setKTrace(null);
+    if (tool === 'select') setKc(null);
+  }, [tool]);
+
+  const keyboardMove = (key: string, fast: boolean) => {
+    const p = kc ? moveCursor(kc, key, cursorStep(v.scale, fast), W, H) : startCursor(v, size.w, size.h, W, H);
+    setKc(p);
+    setView((cur) => followCursor(cur ?? v, p, size.w, size.h));
+    if (kTrace) setKTrace((t) => (t ? [...t, p] : t));
+  };
+  /** Enter at the keyboard cursor: a polygon point (Shift+Enter, or Enter on the first point, closes), a box or ellipse corner, a trace's start or end */
+  const keyboardPlace = (p: Point, close: boolean) => {
+    if (tool === 'polygon') {
+      const [fx, fy] = draft[0] ?? [NaN, NaN];
+      if (draft.length >= 3 && (close || Math.hypot((fx - p[0]) * v.scale, (fy - p[1]) * v.scale) < 8)) {
+        finishPolygon();
+        setSaid('Polygon closed');
+      } else {
+        setDraft((d) => [...d, p]);
+        setSaid(`Point ${draft.length + 1} at x ${p[0]}, y ${p[1]}`);
+      }
+    } else if (tool === 'box' || tool === 'ellipse') {
+      if (!anchor) {
+        setAnchor(p);
+        setSaid(`First corner at x ${p[0]}, y ${p[1]}; move to the opposite corner and press Enter`);
+      } else {
+        const g = tool === 'box' ? boxFromDrag(anchor, p) : ellipseFromDrag(anchor, p);
+        if (g) dispatch({ type: 'add', geometry: roundGeometry(g), role: newRole });
+        setAnchor(null);
+        setSaid(g ? `${tool === 'box' ? 'Box' : 'Ellipse'} added` : 'Too small: nothing added');
+      }
+    } else if (tool === 'trace') {
+      if (!kTrace) {
+        setKTrace([p]);
+        setSaid('Tracing: move around the cell and press Enter to close');
+      } else {
+        const g = traceFromStroke(kTrace, Math.max(0.5, 2 / v.scale));
+        if (g) dispatch({ type: 'add', geometry: g, role: newRole });
+        setKTrace(null);
+        setSaid(g ? 'Trace closed' : 'Too short: nothing added');
+      }
+    }
+  };
 
   const finishPolygon = () => {
     const g = polygonFromClicks(draft);
@@ -203,6 +277,9 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
 
   const onPointerDown = (e: RPointerEvent<HTMLDivElement>) => {
     const { sx, sy } = local(e);
+    setKc(null);
+    setAnchor(null);
+    setKTrace(null);
     pointers.current.set(e.pointerId, { x: sx, y: sy });
     box.current?.setPointerCapture(e.pointerId);
     box.current?.focus({ preventScroll: true });
@@ -334,15 +411,31 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
   const bar = field.pixelSizeUm ? scaleBar(field.pixelSizeUm, v.scale) : null;
   const cursor = drag?.kind === 'pan' ? 'grabbing' : space ? 'grab' : tool === 'select' ? 'default' : 'crosshair';
   const draftPreview =
-    drag?.kind === 'shape' ? (drag.tool === 'box' ? boxFromDrag(drag.a, drag.b) : ellipseFromDrag(drag.a, drag.b)) : drag?.kind === 'stroke' && drag.points.length > 1 ? { kind: 'freehand' as const, points: drag.points } : null;
+    drag?.kind === 'shape'
+      ? drag.tool === 'box'
+        ? boxFromDrag(drag.a, drag.b)
+        : ellipseFromDrag(drag.a, drag.b)
+      : drag?.kind === 'stroke' && drag.points.length > 1
+        ? { kind: 'freehand' as const, points: drag.points }
+        : anchor && kc
+          ? tool === 'box'
+            ? boxFromDrag(anchor, kc)
+            : ellipseFromDrag(anchor, kc)
+          : kTrace && kTrace.length > 1
+            ? { kind: 'freehand' as const, points: kTrace }
+            : null;
+  const next = kc ?? hover;
+  const readout = kc ?? hover;
+  const kcR = 9 / v.scale;
 
   return (
     <div
       ref={box}
       tabIndex={0}
       role="application"
-      aria-label={`Field image ${field.name}, ${W} × ${H} pixels. Tools: V select, B box, E ellipse, P polygon, T trace.`}
+      aria-label={`Field image ${field.name}, ${W} × ${H} pixels. Tools: V select, B box, E ellipse, P polygon, T trace. With a tool, arrows move the keyboard cursor and Enter places a point; question mark lists every key.`}
       data-testid="field-viewer"
+      data-cursor={kc ? kc.join(',') : undefined}
       className="relative h-full w-full overflow-hidden rounded-md bg-[#14181c] outline-none select-none touch-none focus-visible:ring-2 focus-visible:ring-accent"
       style={{ cursor }}
       onPointerDown={onPointerDown}
@@ -383,14 +476,26 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
           {draftPreview && <path d={pathOf(draftPreview)} fill="rgba(15,118,110,0.15)" stroke={SELECT_COLOR} strokeWidth={1.5} vectorEffect="non-scaling-stroke" />}
           {draft.length > 0 && (
             <>
-              <polyline points={[...draft, ...(hover ? [hover] : [])].map((p) => p.join(',')).join(' ')} fill="none" stroke={SELECT_COLOR} strokeWidth={1.5} strokeDasharray="4 3" vectorEffect="non-scaling-stroke" />
+              <polyline points={[...draft, ...(next ? [next] : [])].map((p) => p.join(',')).join(' ')} fill="none" stroke={SELECT_COLOR} strokeWidth={1.5} strokeDasharray="4 3" vectorEffect="non-scaling-stroke" />
               {draft.map(([x, y], i) => (
                 <circle key={i} cx={x} cy={y} r={i === 0 ? handleR * 1.2 : handleR * 0.7} fill={i === 0 ? SELECT_COLOR : '#fff'} stroke={SELECT_COLOR} strokeWidth={1} vectorEffect="non-scaling-stroke" />
               ))}
             </>
           )}
+          {kc && (
+            <g data-testid="keyboard-cursor" pointerEvents="none">
+              <line x1={kc[0] - kcR} x2={kc[0] + kcR} y1={kc[1]} y2={kc[1]} stroke="#000" strokeWidth={3.5} vectorEffect="non-scaling-stroke" />
+              <line x1={kc[0]} x2={kc[0]} y1={kc[1] - kcR} y2={kc[1] + kcR} stroke="#000" strokeWidth={3.5} vectorEffect="non-scaling-stroke" />
+              <line x1={kc[0] - kcR} x2={kc[0] + kcR} y1={kc[1]} y2={kc[1]} stroke="#fde047" strokeWidth={1.5} vectorEffect="non-scaling-stroke" />
+              <line x1={kc[0]} x2={kc[0]} y1={kc[1] - kcR} y2={kc[1] + kcR} stroke="#fde047" strokeWidth={1.5} vectorEffect="non-scaling-stroke" />
+              {anchor && <circle cx={anchor[0]} cy={anchor[1]} r={handleR * 0.8} fill="#fde047" stroke="#000" strokeWidth={1} vectorEffect="non-scaling-stroke" />}
+            </g>
+          )}
         </svg>
       </div>
+      <span className="sr-only" aria-live="polite">
+        {said}
+      </span>
 
       {!img && !imgError && <div className="absolute inset-0 grid place-items-center text-sm text-white/70">Loading image…</div>}
       {imgError && <div role="alert" className="absolute left-3 top-3 rounded bg-danger-soft px-3 py-2 text-sm text-danger">{imgError}</div>}
@@ -404,12 +509,14 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
         )}
         {sel && tool === 'select' && canEdit && !handlesVisible(sel, v.scale) && <span>zoom in to edit the points of {sel.name}</span>}
         <span className="font-mono">
-          {Math.round(v.scale * 1000) / 10}%{hover && hover[0] >= 0 && hover[1] >= 0 && hover[0] < W && hover[1] < H ? ` · x ${Math.floor(hover[0])}, y ${Math.floor(hover[1])}` : ''}
+          {Math.round(v.scale * 1000) / 10}%{readout && readout[0] >= 0 && readout[1] >= 0 && readout[0] <= W && readout[1] <= H ? ` · x ${Math.floor(readout[0])}, y ${Math.floor(readout[1])}` : ''}
         </span>
       </div>
-      {draft.length > 0 && (
-        <div className="pointer-events-none absolute left-1/2 top-2 -translate-x-1/2 rounded bg-black/60 px-3 py-1 text-xs text-white">
-          {plural(draft.length, 'point')} · click the first point, double-click or press Enter to close · Esc cancels
+      {(draft.length > 0 || kc) && (
+        <div className="pointer-events-none absolute left-1/2 top-2 -translate-x-1/2 rounded bg-black/70 px-3 py-1 text-xs text-white">
+          {kc
+            ? `${tool === 'polygon' ? `${plural(draft.length, 'point')} · Enter places a point · Shift+Enter closes` : tool === 'trace' ? (kTrace ? 'tracing · Enter closes' : 'Enter starts a trace') : anchor ? 'Enter places the opposite corner' : 'Enter places the first corner'} · arrows move (Shift: faster) · Esc cancels · ? all keys`
+            : `${plural(draft.length, 'point')} · click the first point, double-click or press Enter to close · Esc cancels`}
         </div>
       )}
       <div className="absolute bottom-2 right-2 flex gap-1" onPointerDown={(e) => e.stopPropagation()}>
@@ -418,7 +525,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
             ['out', '−', 'Zoom out (−)'],
             ['in', '+', 'Zoom in (+)'],
             ['fit', 'Fit', 'Fit to window (0)'],
-            ['one', '1:1', 'One image pixel per screen pixel (1)'],
+            ['one', '1:1', '1:1, one image pixel per screen pixel (1)'],
           ] as const
         ).map(([k, label, title]) => (
           <button key={k} type="button" title={title} aria-label={title} onClick={() => applyCommand(k)} className={cx('rounded bg-black/55 px-2 py-1 text-xs font-medium text-white hover:bg-black/75')}>
