@@ -17,6 +17,7 @@ import { conflict, parse } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
 import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
+import { buildGridIndex, decodeCursor, encodeCursor, filteredRows, positionAfter, type GridIndex } from '../compare/grid-index.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
 
@@ -25,11 +26,11 @@ export default function cellTableRoutes(ctx: AppContext) {
   const sqlite = ctx.db.$client;
 
   /**
-   * The grid's filtered, sorted cell ids, cached per (study, source, filters, sort) and data version (writes
-   * through the API bump ctx.dataVersion; runs add measurements, whose newest id is part of the key), so paging
-   * through 100,000 cells sorts once instead of on every page.
+   * The grid's order and filter index per (study, source), rebuilt when the data version changes (writes through
+   * the API bump ctx.dataVersion; runs add measurements, whose newest id is part of the version); exclusions
+   * patch it in place. Pages, counts and cursors are answered from it (server/compare/grid-index.ts).
    */
-  const idCache = new Map<string, { ids: Int32Array; total: number }>();
+  const indexes = new Map<string, { version: string; ix: GridIndex; studyId: number }>();
   /** prepared statements by SQL text (the grid's SQL varies only with the filters in use) */
   const statements = new Map<string, ReturnType<typeof sqlite.prepare>>();
   const prepared = (sql: string) => {
@@ -42,23 +43,44 @@ export default function cellTableRoutes(ctx: AppContext) {
     return st;
   };
   const maxMeasurement = sqlite.prepare('SELECT coalesce(max(id), 0) AS id FROM measurements');
-  function orderedIds(studyId: number, src: ReturnType<typeof resolveSource>, q: GridQueryT) {
-    const { page: _p, pageSize: _s, ...rest } = q;
-    const version = `${ctx.dataVersion}:${(maxMeasurement.get() as { id: number }).id}`;
-    const key = JSON.stringify([studyId, src.runIds, rest, version]);
-    const hit = idCache.get(key);
-    if (hit) {
-      idCache.delete(key);
-      idCache.set(key, hit); // most recently used last
-      return hit;
+  const currentVersion = () => `${ctx.dataVersion}:${(maxMeasurement.get() as { id: number }).id}`;
+  function gridIndex(studyId: number, src: ReturnType<typeof resolveSource>, fieldIds: number[] | undefined) {
+    const scope = fieldIds?.length ? [...new Set(fieldIds)].sort((a, b) => a - b) : undefined;
+    const key = JSON.stringify([studyId, src.runIds, scope ?? 'study']);
+    const version = currentVersion();
+    const hit = indexes.get(key);
+    indexes.delete(key);
+    if (hit && hit.version === version) {
+      indexes.set(key, hit); // most recently used last
+      return hit.ix;
     }
-    const g = gridFrom(studyId, src, q);
-    const rows = sqlite.prepare(`SELECT c.id AS id ${g.from} ${orderBy(q.sort, q.dir)}`).raw().all(g.params) as [number][];
-    const ids = Int32Array.from(rows, (x) => x[0]);
-    const value = { ids, total: ids.length };
-    idCache.set(key, value);
-    while (idCache.size > 64) idCache.delete(idCache.keys().next().value!);
-    return value;
+    const ix = buildGridIndex(sqlite, studyId, src, scope);
+    indexes.set(key, { version, ix, studyId });
+    // at most about 3,000,000 rows held (~700 MB at the full column set), and 16 indexes
+    let rows = 0;
+    for (const e of indexes.values()) rows += e.ix.n;
+    for (const [k, e] of indexes) {
+      if ((rows <= 3_000_000 && indexes.size <= 16) || k === key) break;
+      rows -= e.ix.n;
+      indexes.delete(k);
+    }
+    return ix;
+  }
+  /** An exclusion changes one flag: patch the study's indexes and move them to the version after this write. */
+  function patchExcluded(studyId: number, cellId: number, excluded: boolean, res: import('express').Response) {
+    const before = currentVersion();
+    ctx.dataVersion++;
+    res.locals.dataVersionBumped = true;
+    const after = currentVersion();
+    for (const entry of indexes.values()) {
+      if (entry.studyId !== studyId || entry.version !== before) continue;
+      const row = entry.ix.rowOf(cellId);
+      if (row >= 0) entry.ix.excluded[row] = excluded ? 1 : 0;
+      entry.ix.filtered.clear();
+      entry.ix.sorts.delete('excluded:asc');
+      entry.ix.sorts.delete('excluded:desc');
+      entry.version = after;
+    }
   }
 
   r.get('/studies/:studyId/measurement-sources', requireUser, (req, res) => {
@@ -80,14 +102,12 @@ export default function cellTableRoutes(ctx: AppContext) {
     res.json(body);
   });
 
-  /** One page of full grid rows, cached like the ids (same key plus the page) so re-reading a page is cheap. */
+  /** One page of full grid rows (fresh from SQL by id), cached per version, query and page already serialized. */
   const pageCache = new Map<string, string>();
-  function pageRows(studyId: number, src: ReturnType<typeof resolveSource>, q: GridQueryT, allIds: Int32Array) {
-    const version = `${ctx.dataVersion}:${(maxMeasurement.get() as { id: number }).id}`;
-    const key = JSON.stringify([studyId, src.runIds, q, version]);
+  function pageRows(studyId: number, src: ReturnType<typeof resolveSource>, q: GridQueryT, ids: number[]) {
+    const key = JSON.stringify([studyId, src.runIds, ids, currentVersion()]);
     const hit = pageCache.get(key);
     if (hit) return hit;
-    const ids = Array.from(allIds.subarray(q.page * q.pageSize, (q.page + 1) * q.pageSize));
     let rows: Record<string, unknown>[] = [];
     if (ids.length) {
       const p2: Record<string, unknown> = {};
@@ -110,12 +130,18 @@ export default function cellTableRoutes(ctx: AppContext) {
     const canExclude = studyPermissions(ctx.db, req.user!, study).has('exclude');
     const q = parse(GridQuery, req.query);
     const src = resolveSource(ctx.db, studyId, q);
-    const { ids: allIds, total } = orderedIds(studyId, src, q);
-    const rowsJson = pageRows(studyId, src, q, allIds);
+    const ix = gridIndex(studyId, src, q.fieldId);
+    const rows = filteredRows(ix, q, q.sort, q.dir);
+    // a cursor continues after the row it names (keyset paging); otherwise the page number counts from the top
+    const start = q.cursor !== undefined ? positionAfter(ix, rows, decodeCursor(q.cursor, q.sort, q.dir)) : q.page * q.pageSize;
+    const pageRowsIdx = rows.subarray(Math.min(start, rows.length), Math.min(start + q.pageSize, rows.length));
+    const rowsJson = pageRows(studyId, src, q, Array.from(pageRowsIdx, (r) => ix.cellId[r]));
+    const end = start + pageRowsIdx.length;
     const body: Omit<GridResponse, 'rows'> = {
-      total,
-      page: q.page,
+      total: rows.length,
+      page: Math.floor(start / q.pageSize),
       pageSize: q.pageSize,
+      nextCursor: end < rows.length && pageRowsIdx.length ? encodeCursor(ix, q.sort, q.dir, rows[end - 1]) : null,
       source: { runId: src.runId, recipeId: src.recipeId, recipeName: src.recipeName, recipeVersion: src.recipeVersion },
       canExclude,
     };
@@ -173,6 +199,7 @@ export default function cellTableRoutes(ctx: AppContext) {
         .run(body.reason, req.user!.id, cellId);
       audit.run(req.user!.id, 'cell.exclude', 'cell', cellId, cell.studyId, JSON.stringify({ reason: body.reason }));
     })();
+    patchExcluded(cell.studyId, cellId, true, res);
     res.json(state(cellId));
   });
 
@@ -186,6 +213,7 @@ export default function cellTableRoutes(ctx: AppContext) {
       sqlite.prepare('UPDATE cells SET excluded = 0, exclusion_reason = NULL, excluded_by = NULL, excluded_at = NULL WHERE id = ?').run(cellId);
       audit.run(req.user!.id, 'cell.restore', 'cell', cellId, cell.studyId, JSON.stringify({ previousReason: cell.reason, ...(body.reason ? { reason: body.reason } : {}) }));
     })();
+    patchExcluded(cell.studyId, cellId, false, res);
     res.json(state(cellId));
   });
 
