@@ -15,8 +15,8 @@ import { requireUser } from '../auth/session.js';
 import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
 import { conflict, parse } from '../http/errors.js';
 import { idParam } from '../http/params.js';
-import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type GridQuery as GridQueryT, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
-import { GRID_SELECT, gridFrom, orderBy, resolveSource, toGridRow } from '../compare/source.js';
+import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
+import { GRID_SELECT, gridFrom, resolveSource, toGridRow } from '../compare/source.js';
 import { buildGridIndex, decodeCursor, encodeCursor, filteredRows, positionAfter, type GridIndex } from '../compare/grid-index.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
@@ -102,22 +102,25 @@ export default function cellTableRoutes(ctx: AppContext) {
     res.json(body);
   });
 
+  /** Full grid rows of the given cell ids, in that order, fresh from SQL (one IN query). */
+  function rowsById(studyId: number, src: ReturnType<typeof resolveSource>, ids: number[]) {
+    if (!ids.length) return [];
+    const p2: Record<string, unknown> = {};
+    ids.forEach((id, i) => (p2[`id${i}`] = id));
+    const d = gridFrom(studyId, src, { conditionId: undefined, coverslipId: undefined, fieldId: undefined, range: [], q: undefined, excluded: 'any', saturated: 'any', provisional: 'any', measured: 'any' });
+    const byId = new Map(
+      (prepared(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`).all({ ...d.params, ...p2 }) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]),
+    );
+    return ids.map((id) => byId.get(id)).filter((r): r is Record<string, unknown> => r !== undefined);
+  }
+
   /** One page of full grid rows (fresh from SQL by id), cached per version, query and page already serialized. */
   const pageCache = new Map<string, string>();
-  function pageRows(studyId: number, src: ReturnType<typeof resolveSource>, q: GridQueryT, ids: number[]) {
+  function pageRows(studyId: number, src: ReturnType<typeof resolveSource>, ids: number[]) {
     const key = JSON.stringify([studyId, src.runIds, ids, currentVersion()]);
     const hit = pageCache.get(key);
     if (hit) return hit;
-    let rows: Record<string, unknown>[] = [];
-    if (ids.length) {
-      const p2: Record<string, unknown> = {};
-      ids.forEach((id, i) => (p2[`id${i}`] = id));
-      const d = gridFrom(studyId, src, { ...q, conditionId: undefined, coverslipId: undefined, fieldId: undefined, range: [], q: undefined, excluded: 'any', saturated: 'any', provisional: 'any', measured: 'any' });
-      const byId = new Map(
-        (prepared(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`).all({ ...d.params, ...p2 }) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]),
-      );
-      rows = ids.map((id) => byId.get(id)!).filter(Boolean);
-    }
+    const rows = rowsById(studyId, src, ids);
     const out = JSON.stringify(rows.map(toGridRow));
     pageCache.set(key, out);
     while (pageCache.size > 512) pageCache.delete(pageCache.keys().next().value!);
@@ -135,7 +138,7 @@ export default function cellTableRoutes(ctx: AppContext) {
     // a cursor continues after the row it names (keyset paging); otherwise the page number counts from the top
     const start = q.cursor !== undefined ? positionAfter(ix, rows, decodeCursor(q.cursor, q.sort, q.dir)) : q.page * q.pageSize;
     const pageRowsIdx = rows.subarray(Math.min(start, rows.length), Math.min(start + q.pageSize, rows.length));
-    const rowsJson = pageRows(studyId, src, q, Array.from(pageRowsIdx, (r) => ix.cellId[r]));
+    const rowsJson = pageRows(studyId, src, Array.from(pageRowsIdx, (r) => ix.cellId[r]));
     const end = start + pageRowsIdx.length;
     const body: Omit<GridResponse, 'rows'> = {
       total: rows.length,
@@ -149,22 +152,36 @@ export default function cellTableRoutes(ctx: AppContext) {
     res.type('application/json').send(`{"rows":${rowsJson},${JSON.stringify(body).slice(1)}`);
   });
 
-  r.get('/studies/:studyId/cells.csv', requireUser, (req, res) => {
+  /**
+   * Every filtered row as CSV, streamed: the order and membership come from the grid index when the request
+   * starts; rows are read in chunks of 500 and written as the client takes them (waiting for 'drain'), so a
+   * million rows start at once and never sit in server memory. A row removed after the start is left out.
+   */
+  r.get('/studies/:studyId/cells.csv', requireUser, async (req, res) => {
     const studyId = idParam(req, 'studyId');
     const study = requireStudy(ctx.db, req.user, studyId, 'read');
     const q = parse(CsvQuery, req.query);
     const src = resolveSource(ctx.db, studyId, q);
-    const g = gridFrom(studyId, src, q);
-    const stmt = sqlite.prepare(`${GRID_SELECT} ${g.from} ${orderBy(q.sort, q.dir)}`);
+    const ix = gridIndex(studyId, src, q.fieldId);
+    const order = filteredRows(ix, q, q.sort, q.dir);
+    const ids = Array.from(order, (r) => ix.cellId[r]);
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
     res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-cells.csv"`);
-    const out: string[] = [csvLine(q.columns)];
-    for (const row of stmt.iterate(g.params) as Iterable<Record<string, unknown>>) {
-      const r2 = toGridRow(row) as unknown as Record<string, unknown>;
-      out.push(csvLine(q.columns.map((c) => r2[c])));
-      if (out.length >= 2000) res.write(out.splice(0).join(''));
+    let closed = false;
+    res.on('close', () => (closed = true));
+    res.write(csvLine(q.columns));
+    const CHUNK = 500;
+    for (let i = 0; i < ids.length && !closed; i += CHUNK) {
+      const out: string[] = [];
+      for (const row of rowsById(studyId, src, ids.slice(i, i + CHUNK))) {
+        const r2 = toGridRow(row) as unknown as Record<string, unknown>;
+        out.push(csvLine(q.columns.map((c) => r2[c])));
+      }
+      // wait while the socket's buffer is full; otherwise let other requests in between chunks
+      if (!res.write(out.join(''))) await new Promise<void>((resolve) => (res.once('drain', resolve), res.once('close', resolve)));
+      else await new Promise<void>((resolve) => setImmediate(resolve));
     }
-    res.end(out.join(''));
+    res.end();
   });
 
   // ---- exclusions ---------------------------------------------------------------------------------------
