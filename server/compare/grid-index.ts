@@ -11,8 +11,8 @@
  *
  * Costs: building reads every cell and source measurement once (at 1,000,000 cells about 8 bytes per
  * numeric column per cell, ~230 MB, and several seconds); a new sort is a stable LSD radix sort of 64-bit
- * keys (4 passes of 16 bits) plus its inverse permutation (8 bytes per cell); a new filter is one pass over
- * the sorted rows. Pages by offset are O(1); pages after a cursor are a binary search.
+ * keys (4 passes of 16 bits, 4 bytes per cell kept); a new filter is one pass over
+ * the sorted rows (none without filters). Pages by offset are O(1); pages after a cursor are a binary search.
  */
 import type Database from 'better-sqlite3';
 import { badRequest } from '../http/errors.js';
@@ -41,7 +41,7 @@ export interface GridIndex {
   fieldRank: { condition: Int32Array; coverslip: Int32Array; field: Int32Array };
   nameRank: Int32Array;
   rowOf: (cellId: number) => number;
-  sorts: Map<string, { perm: Int32Array; rank: Int32Array }>;
+  sorts: Map<string, Int32Array>;
   filtered: Map<string, Int32Array>;
   lowerNames?: string[];
 }
@@ -240,21 +240,22 @@ function keyFn(ix: GridIndex, sort: SortKey, dir: 'asc' | 'desc'): (r: number) =
   }
 }
 
-export function sorted(ix: GridIndex, sort: SortKey, dir: 'asc' | 'desc') {
+/** The rows in the order of (sort, dir), cached per index (at most 32 orders, 4 bytes per row each). */
+export function sorted(ix: GridIndex, sort: SortKey, dir: 'asc' | 'desc'): Int32Array {
   const k = `${sort}:${dir}`;
-  let s = ix.sorts.get(k);
-  if (!s) {
-    const key = keyFn(ix, sort, dir);
-    const hi = new Uint32Array(ix.n), lo = new Uint32Array(ix.n);
-    for (let r = 0; r < ix.n; r++) [hi[r], lo[r]] = key(r);
-    const perm = radixSort(hi, lo);
-    const rank = new Int32Array(ix.n);
-    for (let i = 0; i < ix.n; i++) rank[perm[i]] = i;
-    s = { perm, rank };
-    ix.sorts.set(k, s);
-    while (ix.sorts.size > 16) ix.sorts.delete(ix.sorts.keys().next().value!);
+  let perm = ix.sorts.get(k);
+  if (perm) {
+    ix.sorts.delete(k);
+    ix.sorts.set(k, perm);
+    return perm;
   }
-  return s;
+  const key = keyFn(ix, sort, dir);
+  const hi = new Uint32Array(ix.n), lo = new Uint32Array(ix.n);
+  for (let r = 0; r < ix.n; r++) [hi[r], lo[r]] = key(r);
+  perm = radixSort(hi, lo);
+  ix.sorts.set(k, perm);
+  while (ix.sorts.size > 32) ix.sorts.delete(ix.sorts.keys().next().value!);
+  return perm;
 }
 
 // ---- filters ------------------------------------------------------------------------------------------------
@@ -297,11 +298,14 @@ function predicate(ix: GridIndex, f: GridFilters): (r: number) => boolean {
     const lower = ix.lowerNames;
     tests.push((r) => lower[r].includes(needle));
   }
+  if (tests.length === 0) return ALL;
   return (r) => {
     for (const t of tests) if (!t(r)) return false;
     return true;
   };
 }
+/** the predicate of no filter: the filtered order is then the sort order itself (no copy) */
+const ALL = () => true;
 
 /** The filtered rows in sort order (cached per sort, direction and filters). */
 export function filteredRows(ix: GridIndex, f: GridFilters, sort: SortKey, dir: 'asc' | 'desc'): Int32Array {
@@ -313,17 +317,20 @@ export function filteredRows(ix: GridIndex, f: GridFilters, sort: SortKey, dir: 
     ix.filtered.set(k, rows);
     return rows;
   }
-  const { perm } = sorted(ix, sort, dir);
+  const perm = sorted(ix, sort, dir);
   const test = predicate(ix, f);
-  const out = new Int32Array(ix.n);
-  let m = 0;
-  for (let i = 0; i < ix.n; i++) {
-    const r = perm[i];
-    if (test(r)) out[m++] = r;
+  if (test === ALL) rows = perm;
+  else {
+    const out = new Int32Array(ix.n);
+    let m = 0;
+    for (let i = 0; i < ix.n; i++) {
+      const r = perm[i];
+      if (test(r)) out[m++] = r;
+    }
+    rows = out.slice(0, m);
   }
-  rows = out.slice(0, m);
   ix.filtered.set(k, rows);
-  while (ix.filtered.size > 32) ix.filtered.delete(ix.filtered.keys().next().value!);
+  while (ix.filtered.size > 64) ix.filtered.delete(ix.filtered.keys().next().value!);
   return rows;
 }
 
@@ -367,34 +374,22 @@ export function decodeCursor(text: string, sort: SortKey, dir: 'asc' | 'desc'): 
   return c;
 }
 
-/** Index into `rows` (filtered, sorted) of the first row after the cursor. */
+/** Index into `rows` (filtered, sorted) of the first row after the cursor: a binary search by (key, cell id). */
 export function positionAfter(ix: GridIndex, rows: Int32Array, cursor: Cursor): number {
-  const { perm, rank } = sorted(ix, cursor.s, cursor.d);
-  let boundary: number; // rows of rank ≤ boundary come at or before the cursor
+  const key = keyFn(ix, cursor.s, cursor.d);
+  let ch: number, cl: number;
   const row = ix.rowOf(cursor.c);
-  if (row >= 0) boundary = rank[row];
-  else if (isNumericSort(cursor.s)) {
-    // the row is gone: find its place by (value, cell id) in the current order
-    const key = keyFn(ix, cursor.s, cursor.d);
-    const [ch, cl] = valueKey(cursor.v === null || cursor.v === undefined ? NaN : cursor.v, cursor.d);
-    const before = (r: number) => {
-      const [h, l] = key(r);
-      return h < ch || (h === ch && (l < cl || (l === cl && ix.cellId[r] < cursor.c)));
-    };
-    let lo = 0, hi = ix.n;
-    while (lo < hi) {
-      const mid = (lo + hi) >>> 1;
-      if (before(perm[mid])) lo = mid + 1;
-      else hi = mid;
-    }
-    boundary = lo - 1;
-  } else {
-    throw badRequest(`cursor: cell ${cursor.c} it continues after is no longer in this table; start again from the first page`);
-  }
+  if (isNumericSort(cursor.s)) [ch, cl] = valueKey(cursor.v === null || cursor.v === undefined ? NaN : cursor.v, cursor.d);
+  else if (row >= 0) [ch, cl] = key(row);
+  else throw badRequest(`cursor: cell ${cursor.c} it continues after is no longer in this table; start again from the first page`);
+  const atOrBefore = (r: number) => {
+    const [h, l] = key(r);
+    return h < ch || (h === ch && (l < cl || (l === cl && ix.cellId[r] <= cursor.c)));
+  };
   let lo = 0, hi = rows.length;
   while (lo < hi) {
     const mid = (lo + hi) >>> 1;
-    if (rank[rows[mid]] <= boundary) lo = mid + 1;
+    if (atOrBefore(rows[mid])) lo = mid + 1;
     else hi = mid;
   }
   return lo;
