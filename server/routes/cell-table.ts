@@ -102,15 +102,19 @@ export default function cellTableRoutes(ctx: AppContext) {
     res.json(body);
   });
 
+  /** The grid's SELECT for a list of cell ids (rows come back in any order), with its parameters. */
+  function byIdQuery(studyId: number, src: ReturnType<typeof resolveSource>, ids: number[]) {
+    const params: Record<string, unknown> = {};
+    ids.forEach((id, i) => (params[`id${i}`] = id));
+    const d = gridFrom(studyId, src, { conditionId: undefined, coverslipId: undefined, fieldId: undefined, range: [], q: undefined, excluded: 'any', saturated: 'any', provisional: 'any', measured: 'any' });
+    return { stmt: prepared(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`), params: { ...d.params, ...params } };
+  }
+
   /** Full grid rows of the given cell ids, in that order, fresh from SQL (one IN query). */
   function rowsById(studyId: number, src: ReturnType<typeof resolveSource>, ids: number[]) {
     if (!ids.length) return [];
-    const p2: Record<string, unknown> = {};
-    ids.forEach((id, i) => (p2[`id${i}`] = id));
-    const d = gridFrom(studyId, src, { conditionId: undefined, coverslipId: undefined, fieldId: undefined, range: [], q: undefined, excluded: 'any', saturated: 'any', provisional: 'any', measured: 'any' });
-    const byId = new Map(
-      (prepared(`${GRID_SELECT} ${d.from} AND c.id IN (${ids.map((_, i) => `@id${i}`).join(', ')})`).all({ ...d.params, ...p2 }) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]),
-    );
+    const { stmt, params } = byIdQuery(studyId, src, ids);
+    const byId = new Map((stmt.raw(false).all(params) as Record<string, unknown>[]).map((r) => [r.cellId as number, r]));
     return ids.map((id) => byId.get(id)).filter((r): r is Record<string, unknown> => r !== undefined);
   }
 
@@ -170,15 +174,38 @@ export default function cellTableRoutes(ctx: AppContext) {
     let closed = false;
     res.on('close', () => (closed = true));
     res.write(csvLine(q.columns));
+    // the header goes out before the first chunk is read
+    await new Promise<void>((resolve) => setImmediate(resolve));
     const CHUNK = 500;
+    const BOOLEAN = new Set(['saturated', 'provisional', 'excluded']);
+    let picks: { at: number; bool: boolean }[] | undefined;
+    const waitDrain = () =>
+      new Promise<void>((resolve) => {
+        const done = () => (res.off('drain', done), res.off('close', done), resolve());
+        res.on('drain', done);
+        res.on('close', done);
+      });
     for (let i = 0; i < ids.length && !closed; i += CHUNK) {
+      const chunk = ids.slice(i, i + CHUNK);
+      // rows as arrays (no object per row): the export's columns picked by their position in the SELECT
+      const { stmt, params } = byIdQuery(studyId, src, chunk);
+      const raw = stmt.raw(true);
+      picks ??= (() => {
+        const names = raw.columns().map((c) => c.name);
+        return q.columns.map((c) => {
+          if (!names.includes(c)) throw new Error(`export column ${c} is not in the grid's SELECT`);
+          return { at: names.indexOf(c), bool: BOOLEAN.has(c) };
+        });
+      })();
+      const byId = new Map((raw.all(params) as unknown[][]).map((r) => [r[0] as number, r]));
       const out: string[] = [];
-      for (const row of rowsById(studyId, src, ids.slice(i, i + CHUNK))) {
-        const r2 = toGridRow(row) as unknown as Record<string, unknown>;
-        out.push(csvLine(q.columns.map((c) => r2[c])));
+      for (const id of chunk) {
+        const row = byId.get(id);
+        if (!row) continue;
+        out.push(csvLine(picks.map((p) => (p.bool ? !!row[p.at] : row[p.at]))));
       }
       // wait while the socket's buffer is full; otherwise let other requests in between chunks
-      if (!res.write(out.join(''))) await new Promise<void>((resolve) => (res.once('drain', resolve), res.once('close', resolve)));
+      if (!res.write(out.join(''))) await waitDrain();
       else await new Promise<void>((resolve) => setImmediate(resolve));
     }
     res.end();
