@@ -32,7 +32,6 @@ export interface GridIndex {
   saturated: Uint8Array;
   /** NaN where NULL (no measurement, or the measure undefined) */
   cols: Record<NumericColumn | 'provisional', Float64Array>;
-  names: string[];
   /** per field index */
   fieldId: Int32Array;
   coverslipId: Int32Array;
@@ -43,7 +42,8 @@ export interface GridIndex {
   rowOf: (cellId: number) => number;
   sorts: Map<string, Int32Array>;
   filtered: Map<string, Int32Array>;
-  lowerNames?: string[];
+  /** distinct cell names in rank order (nameRank indexes it) */
+  distinctNames: string[];
 }
 
 /**
@@ -166,7 +166,7 @@ export function buildGridIndex(db: Database.Database, studyId: number, src: Reso
   for (let r = 0; r < n; r++) saturated[r] = s1[r] > 0 || s2[r] > 0 ? 1 : 0;
 
   return {
-    n, cellId, field, excluded, measured, saturated, cols, names, fieldId, coverslipId, conditionId,
+    n, cellId, field, excluded, measured, saturated, cols, distinctNames: distinct, fieldId, coverslipId, conditionId,
     fieldRank: { condition, coverslip, field: fieldOrder }, nameRank, rowOf, sorts: new Map(), filtered: new Map(),
   };
 }
@@ -240,7 +240,7 @@ function keyFn(ix: GridIndex, sort: SortKey, dir: 'asc' | 'desc'): (r: number) =
   }
 }
 
-/** The rows in the order of (sort, dir), cached per index (at most 32 orders, 4 bytes per row each). */
+/** The rows in the order of (sort, dir), cached per index (at most 48 orders, 4 bytes per row each). */
 export function sorted(ix: GridIndex, sort: SortKey, dir: 'asc' | 'desc'): Int32Array {
   const k = `${sort}:${dir}`;
   let perm = ix.sorts.get(k);
@@ -249,12 +249,32 @@ export function sorted(ix: GridIndex, sort: SortKey, dir: 'asc' | 'desc'): Int32
     ix.sorts.set(k, perm);
     return perm;
   }
-  const key = keyFn(ix, sort, dir);
-  const hi = new Uint32Array(ix.n), lo = new Uint32Array(ix.n);
-  for (let r = 0; r < ix.n; r++) [hi[r], lo[r]] = key(r);
+  const n = ix.n;
+  const hi = new Uint32Array(n), lo = new Uint32Array(n);
+  if (isNumericSort(sort)) {
+    // the same keys as valueKey, computed in bulk on the column's bits (no tuple per row)
+    const bits = new Uint32Array(Float64Array.from(ix.cols[sort], (v) => (v === 0 ? 0 : v)).buffer);
+    const desc = dir === 'desc';
+    for (let r = 0; r < n; r++) {
+      const l = bits[2 * r], h = bits[2 * r + 1];
+      if ((h & 0x7ff00000) === 0x7ff00000 && ((h & 0xfffff) | l) !== 0) {
+        hi[r] = 0xffffffff; // NaN: NULL, after every value
+        lo[r] = 0xffffffff;
+        continue;
+      }
+      const neg = (h & 0x80000000) !== 0;
+      const kh = neg ? ~h >>> 0 : (h | 0x80000000) >>> 0;
+      const kl = neg ? ~l >>> 0 : l;
+      hi[r] = desc ? ~kh >>> 0 : kh;
+      lo[r] = desc ? ~kl >>> 0 : kl;
+    }
+  } else {
+    const key = keyFn(ix, sort, dir);
+    for (let r = 0; r < n; r++) hi[r] = key(r)[0];
+  }
   perm = radixSort(hi, lo);
   ix.sorts.set(k, perm);
-  while (ix.sorts.size > 32) ix.sorts.delete(ix.sorts.keys().next().value!);
+  while (ix.sorts.size > 48) ix.sorts.delete(ix.sorts.keys().next().value!);
   return perm;
 }
 
@@ -293,10 +313,10 @@ function predicate(ix: GridIndex, f: GridFilters): (r: number) => boolean {
     }
   }
   if (f.q) {
+    // decided once per distinct name (a study has far fewer distinct names than cells)
     const needle = asciiLower(f.q);
-    ix.lowerNames ??= ix.names.map(asciiLower);
-    const lower = ix.lowerNames;
-    tests.push((r) => lower[r].includes(needle));
+    const match = Uint8Array.from(ix.distinctNames, (name) => (asciiLower(name).includes(needle) ? 1 : 0));
+    tests.push((r) => match[ix.nameRank[r]] === 1);
   }
   if (tests.length === 0) return ALL;
   return (r) => {
@@ -330,7 +350,7 @@ export function filteredRows(ix: GridIndex, f: GridFilters, sort: SortKey, dir: 
     rows = out.slice(0, m);
   }
   ix.filtered.set(k, rows);
-  while (ix.filtered.size > 64) ix.filtered.delete(ix.filtered.keys().next().value!);
+  while (ix.filtered.size > 96) ix.filtered.delete(ix.filtered.keys().next().value!);
   return rows;
 }
 
