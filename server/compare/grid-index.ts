@@ -171,6 +171,37 @@ export function buildGridIndex(db: Database.Database, studyId: number, src: Reso
   };
 }
 
+/**
+ * Adds measurements written since the index was read (ids above `afterId`, of the source's runs), as a run
+ * does field by field: their cells' columns are overwritten (a higher id is the later measurement) and the
+ * orders are dropped. Returns false, changing nothing, when one of them is of a cell the index does not hold
+ * (then it must be read again).
+ */
+export function appendMeasurements(db: Database.Database, ix: GridIndex, src: ResolvedSource, afterId: number, fieldIds?: number[]): boolean {
+  if (!src.runIds.length) return true;
+  const scoped = fieldIds?.length ? fieldIds : [];
+  const inScope = scoped.length ? `AND m.field_id IN (${scoped.map(() => '?').join(', ')})` : '';
+  const sel = [...NUMERIC_COLUMNS.map((k) => COLUMN_SQL[k]), 'm.provisional'].join(', ');
+  const rows = db
+    .prepare(`SELECT m.cell_id, ${sel} FROM measurements m WHERE m.id > ? AND m.run_id IN (${src.runIds.map(() => '?').join(', ')}) ${inScope} ORDER BY m.id`)
+    .raw()
+    .all(afterId, ...src.runIds, ...scoped) as (number | null)[][];
+  const at = rows.map((row) => ix.rowOf(row[0] as number));
+  if (at.some((r) => r < 0)) return false;
+  const arrays = [...NUMERIC_COLUMNS, 'provisional' as const].map((k) => ix.cols[k]);
+  rows.forEach((row, i) => {
+    const r = at[i];
+    ix.measured[r] = 1;
+    for (let j = 0; j < arrays.length; j++) arrays[j][r] = row[j + 1] === null ? NaN : (row[j + 1] as number);
+    ix.saturated[r] = ix.cols.saturatedFraction1[r] > 0 || ix.cols.saturatedFraction2[r] > 0 ? 1 : 0;
+  });
+  if (rows.length) {
+    ix.sorts.clear();
+    ix.filtered.clear();
+  }
+  return true;
+}
+
 // ---- sorting ------------------------------------------------------------------------------------------------
 
 const f64 = new Float64Array(1);

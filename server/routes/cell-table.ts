@@ -17,7 +17,7 @@ import { conflict, parse } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
 import { GRID_SELECT, gridFrom, resolveSource, toGridRow } from '../compare/source.js';
-import { buildGridIndex, decodeCursor, encodeCursor, filteredRows, positionAfter, type GridIndex } from '../compare/grid-index.js';
+import { appendMeasurements, buildGridIndex, decodeCursor, encodeCursor, filteredRows, positionAfter, type GridIndex } from '../compare/grid-index.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
 
@@ -26,11 +26,11 @@ export default function cellTableRoutes(ctx: AppContext) {
   const sqlite = ctx.db.$client;
 
   /**
-   * The grid's order and filter index per (study, source), rebuilt when the data version changes (writes through
-   * the API bump ctx.dataVersion; runs add measurements, whose newest id is part of the version); exclusions
-   * patch it in place. Pages, counts and cursors are answered from it (server/compare/grid-index.ts).
+   * The grid's order and filter index per (study, source), read again when the data version changes (writes
+   * through the API bump ctx.dataVersion); measurements added by runs are appended, and exclusions patch it in
+   * place. Pages, counts and cursors are answered from it (server/compare/grid-index.ts).
    */
-  const indexes = new Map<string, { version: string; ix: GridIndex; studyId: number }>();
+  const indexes = new Map<string, { dataVersion: number; maxMeasurement: number; ix: GridIndex; studyId: number }>();
   /** prepared statements by SQL text (the grid's SQL varies only with the filters in use) */
   const statements = new Map<string, ReturnType<typeof sqlite.prepare>>();
   const prepared = (sql: string) => {
@@ -42,20 +42,25 @@ export default function cellTableRoutes(ctx: AppContext) {
     }
     return st;
   };
-  const maxMeasurement = sqlite.prepare('SELECT coalesce(max(id), 0) AS id FROM measurements');
-  const currentVersion = () => `${ctx.dataVersion}:${(maxMeasurement.get() as { id: number }).id}`;
+  const maxMeasurementStmt = sqlite.prepare('SELECT coalesce(max(id), 0) AS id FROM measurements');
+  const maxMeasurement = () => (maxMeasurementStmt.get() as { id: number }).id;
+  const currentVersion = () => `${ctx.dataVersion}:${maxMeasurement()}`;
   function gridIndex(studyId: number, src: ReturnType<typeof resolveSource>, fieldIds: number[] | undefined) {
     const scope = fieldIds?.length ? [...new Set(fieldIds)].sort((a, b) => a - b) : undefined;
     const key = JSON.stringify([studyId, src.runIds, scope ?? 'study']);
-    const version = currentVersion();
+    const newest = maxMeasurement();
     const hit = indexes.get(key);
     indexes.delete(key);
-    if (hit && hit.version === version) {
-      indexes.set(key, hit); // most recently used last
-      return hit.ix;
+    if (hit && hit.dataVersion === ctx.dataVersion) {
+      // only measurements were added since (a run in progress): add them instead of reading everything again
+      if (hit.maxMeasurement === newest || appendMeasurements(sqlite, hit.ix, src, hit.maxMeasurement, scope)) {
+        hit.maxMeasurement = newest;
+        indexes.set(key, hit); // most recently used last
+        return hit.ix;
+      }
     }
     const ix = buildGridIndex(sqlite, studyId, src, scope);
-    indexes.set(key, { version, ix, studyId });
+    indexes.set(key, { dataVersion: ctx.dataVersion, maxMeasurement: newest, ix, studyId });
     // at most about 3,000,000 rows held (~700 MB at the full column set), and 16 indexes
     let rows = 0;
     for (const e of indexes.values()) rows += e.ix.n;
@@ -68,18 +73,17 @@ export default function cellTableRoutes(ctx: AppContext) {
   }
   /** An exclusion changes one flag: patch the study's indexes and move them to the version after this write. */
   function patchExcluded(studyId: number, cellId: number, excluded: boolean, res: import('express').Response) {
-    const before = currentVersion();
+    const before = ctx.dataVersion;
     ctx.dataVersion++;
     res.locals.dataVersionBumped = true;
-    const after = currentVersion();
     for (const entry of indexes.values()) {
-      if (entry.studyId !== studyId || entry.version !== before) continue;
+      if (entry.studyId !== studyId || entry.dataVersion !== before) continue;
       const row = entry.ix.rowOf(cellId);
       if (row >= 0) entry.ix.excluded[row] = excluded ? 1 : 0;
       entry.ix.filtered.clear();
       entry.ix.sorts.delete('excluded:asc');
       entry.ix.sorts.delete('excluded:desc');
-      entry.version = after;
+      entry.dataVersion = ctx.dataVersion;
     }
   }
 

@@ -157,6 +157,28 @@ describe('Cell table paging: the index and the cursor give exactly the SQL rows'
     expect(await expectSame(params)).toContain(victim);
   });
 
+  it('measurements a run adds after the index was read are in the next page (appended, or read again)', async () => {
+    const db = t.ctx.db.$client;
+    const params = { recipeId: String(seeded.recipeId), sort: 'pearson', dir: 'desc' };
+    await expectSame(params);
+    const run2 = (db.prepare('SELECT max(id) FROM runs').raw().get() as [number])[0];
+    // a run writes re-measurements of cells the index holds (no API write, so the data version stays)
+    db.prepare(
+      `INSERT OR REPLACE INTO measurements (run_id, cell_id, field_id, pixels, pearson, spearman, manders_m1, manders_m2, mean1, mean2, saturated_fraction1, provenance)
+       SELECT ?, m.cell_id, m.field_id, m.pixels, 0.999, m.spearman, m.manders_m1, m.manders_m2, m.mean1, m.mean2, 0.5, '{}' FROM measurements m
+       JOIN cells c ON c.id = m.cell_id AND c.deleted_at IS NULL AND c.role = 'cell' WHERE m.run_id = ? AND m.cell_id % 6 = 1`,
+    ).run(run2, seeded.runId);
+    const after = await expectSame(params);
+    const top = db.prepare('SELECT cell_id FROM measurements WHERE run_id = ? AND pearson = 0.999 ORDER BY cell_id LIMIT 1').pluck().get(run2) as number;
+    expect(top).toBeGreaterThan(0);
+    expect(after[0]).toBe(top);
+    await expectSame({ ...params, saturated: 'yes' });
+    // a measurement of a cell the index does not hold (a background region): the index is read again
+    const bg = db.prepare("SELECT id, field_id FROM cells WHERE role = 'background' LIMIT 1").get() as { id: number; field_id: number };
+    db.prepare("INSERT INTO measurements (run_id, cell_id, field_id, pixels, pearson, provenance) VALUES (?, ?, ?, 10, 0.1, '{}')").run(run2, bg.id, bg.field_id);
+    await expectSame(params);
+  });
+
   it('refuses a cursor of another sort or a garbled one, quoting it', async () => {
     const first = GridResponse.parse((await bio.get(`/api/studies/${t.world.studyA}/cell-table`).query({ sort: 'pearson', pageSize: 5 })).body);
     const other = await bio.get(`/api/studies/${t.world.studyA}/cell-table`).query({ sort: 'spearman', cursor: first.nextCursor });
