@@ -39,18 +39,21 @@ export interface GridIndex {
   /** field's rank in each text-keyed order (ties impossible: the tuple ends in an id) */
   fieldRank: { condition: Int32Array; coverslip: Int32Array; field: Int32Array };
   nameRank: Int32Array;
+  /** distinct cell names in rank order (nameRank indexes it) */
+  distinctNames: string[];
   rowOf: (cellId: number) => number;
   sorts: Map<string, Int32Array>;
   filtered: Map<string, Int32Array>;
-  /** distinct cell names in rank order (nameRank indexes it) */
-  distinctNames: string[];
 }
+
+/** What is read from the database (everything but the lookups and caches built over it). */
+export type GridData = Omit<GridIndex, 'rowOf' | 'sorts' | 'filtered'>;
 
 /**
  * Reads the index of one study and source from the database (synchronous; cost above). With `fieldIds` it covers
  * only those fields (a request filtered to a few fields, e.g. one field's results, reads only their cells).
  */
-export function buildGridIndex(db: Database.Database, studyId: number, src: ResolvedSource, fieldIds?: number[]): GridIndex {
+export function readGridData(db: Database.Database, studyId: number, src: ResolvedSource, fieldIds?: number[]): GridData {
   const scope = fieldIds?.length ? `AND f.id IN (${fieldIds.map(() => '?').join(', ')})` : '';
   const scoped = fieldIds?.length ? fieldIds : [];
   const fieldsRows = db
@@ -121,18 +124,7 @@ export function buildGridIndex(db: Database.Database, studyId: number, src: Reso
   const cellId = Int32Array.from(cellIds);
   const field = Int32Array.from(fieldOf);
   const excluded = Uint8Array.from(excl);
-  const minId = n ? cellId[0] : 0;
-  const span = n ? cellId[n - 1] - minId + 1 : 0;
-  let rowOf: (id: number) => number;
-  if (span <= 4 * n + 1024) {
-    const dense = new Int32Array(span).fill(-1);
-    for (let r = 0; r < n; r++) dense[cellId[r] - minId] = r;
-    rowOf = (id) => (id >= minId && id - minId < span ? dense[id - minId] : -1);
-  } else {
-    const m = new Map<number, number>();
-    for (let r = 0; r < n; r++) m.set(cellId[r], r);
-    rowOf = (id) => m.get(id) ?? -1;
-  }
+  const rowOf = lookup(cellId);
 
   // names: rank among distinct names in SQLite's BINARY order (UTF-8 bytes)
   const distinct = [...new Set(names)];
@@ -165,10 +157,38 @@ export function buildGridIndex(db: Database.Database, studyId: number, src: Reso
   const s1 = cols.saturatedFraction1, s2 = cols.saturatedFraction2;
   for (let r = 0; r < n; r++) saturated[r] = s1[r] > 0 || s2[r] > 0 ? 1 : 0;
 
-  return {
-    n, cellId, field, excluded, measured, saturated, cols, distinctNames: distinct, fieldId, coverslipId, conditionId,
-    fieldRank: { condition, coverslip, field: fieldOrder }, nameRank, rowOf, sorts: new Map(), filtered: new Map(),
-  };
+  return { n, cellId, field, excluded, measured, saturated, cols, distinctNames: distinct, fieldId, coverslipId, conditionId, fieldRank: { condition, coverslip, field: fieldOrder }, nameRank };
+}
+
+/** cell id → row (rows are in id order): a dense table when the ids are close together, else a map */
+function lookup(cellId: Int32Array): (id: number) => number {
+  const n = cellId.length;
+  const minId = n ? cellId[0] : 0;
+  const span = n ? cellId[n - 1] - minId + 1 : 0;
+  if (span <= 4 * n + 1024) {
+    const dense = new Int32Array(span).fill(-1);
+    for (let r = 0; r < n; r++) dense[cellId[r] - minId] = r;
+    return (id) => (id >= minId && id - minId < span ? dense[id - minId] : -1);
+  }
+  const m = new Map<number, number>();
+  for (let r = 0; r < n; r++) m.set(cellId[r], r);
+  return (id) => m.get(id) ?? -1;
+}
+
+/** The index over data read by readGridData (here or in a thread: grid-index-worker.ts). */
+export function gridIndexOf(data: GridData): GridIndex {
+  return { ...data, rowOf: lookup(data.cellId), sorts: new Map(), filtered: new Map() };
+}
+
+/** The typed arrays of the data, to hand them between threads without copying. */
+export function gridDataBuffers(data: GridData): ArrayBuffer[] {
+  const arrays = [data.cellId, data.field, data.excluded, data.measured, data.saturated, data.fieldId, data.coverslipId, data.conditionId, data.nameRank, ...Object.values(data.fieldRank), ...Object.values(data.cols)];
+  return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
+}
+
+/** Reads the index of one study and source on this thread. */
+export function buildGridIndex(db: Database.Database, studyId: number, src: ResolvedSource, fieldIds?: number[]): GridIndex {
+  return gridIndexOf(readGridData(db, studyId, src, fieldIds));
 }
 
 /**

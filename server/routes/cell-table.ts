@@ -9,7 +9,10 @@
  *   DELETE /api/cells/:cellId/exclusion   { reason? }        undo the exclusion
  *   GET    /api/cells/:cellId/exclusion-history              audited exclusion events of the cell
  */
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { Router } from 'express';
+import { Piscina } from 'piscina';
 import type { AppContext } from '../context.js';
 import { requireUser } from '../auth/session.js';
 import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
@@ -17,7 +20,10 @@ import { conflict, parse } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
 import { GRID_SELECT, gridFrom, resolveSource, toGridRow } from '../compare/source.js';
-import { appendMeasurements, buildGridIndex, decodeCursor, encodeCursor, filteredRows, positionAfter, type GridIndex } from '../compare/grid-index.js';
+import { appendMeasurements, buildGridIndex, decodeCursor, encodeCursor, filteredRows, gridIndexOf, positionAfter, type GridData, type GridIndex } from '../compare/grid-index.js';
+import type { GridIndexTask } from '../compare/grid-index-worker.js';
+
+const GRID_WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), '../compare/grid-index-worker.ts');
 import { csvLine, fileSafe } from '../compare/csv.js';
 
 
@@ -45,22 +51,47 @@ export default function cellTableRoutes(ctx: AppContext) {
   const maxMeasurementStmt = sqlite.prepare('SELECT coalesce(max(id), 0) AS id FROM measurements');
   const maxMeasurement = () => (maxMeasurementStmt.get() as { id: number }).id;
   const currentVersion = () => `${ctx.dataVersion}:${maxMeasurement()}`;
-  function gridIndex(studyId: number, src: ReturnType<typeof resolveSource>, fieldIds: number[] | undefined) {
+  /**
+   * A study-wide index is read in a thread (grid-index-worker.ts; seconds at a million cells), requests for the
+   * same version waiting on the same read; an index of listed fields is small and read here.
+   */
+  let pool: Piscina | undefined;
+  const reading = new Map<string, Promise<GridIndex>>();
+  ctx.closers.unshift(() => pool?.destroy());
+  async function gridIndex(studyId: number, src: ReturnType<typeof resolveSource>, fieldIds: number[] | undefined): Promise<GridIndex> {
     const scope = fieldIds?.length ? [...new Set(fieldIds)].sort((a, b) => a - b) : undefined;
     const key = JSON.stringify([studyId, src.runIds, scope ?? 'study']);
     const newest = maxMeasurement();
+    const dataVersion = ctx.dataVersion;
     const hit = indexes.get(key);
-    indexes.delete(key);
-    if (hit && hit.dataVersion === ctx.dataVersion) {
+    if (hit && hit.dataVersion === dataVersion) {
       // only measurements were added since (a run in progress): add them instead of reading everything again
       if (hit.maxMeasurement === newest || appendMeasurements(sqlite, hit.ix, src, hit.maxMeasurement, scope)) {
         hit.maxMeasurement = newest;
+        indexes.delete(key);
         indexes.set(key, hit); // most recently used last
         return hit.ix;
       }
     }
-    const ix = buildGridIndex(sqlite, studyId, src, scope);
-    indexes.set(key, { dataVersion: ctx.dataVersion, maxMeasurement: newest, ix, studyId });
+    let ix: GridIndex;
+    if (scope) ix = buildGridIndex(sqlite, studyId, src, scope);
+    else {
+      const readKey = `${key}:${dataVersion}:${newest}`;
+      let p = reading.get(readKey);
+      if (!p) {
+        pool ??= new Piscina({ filename: GRID_WORKER_FILE, execArgv: ['--import', 'tsx'], minThreads: 0, maxThreads: 1, idleTimeout: 30_000 });
+        const task: GridIndexTask = { file: sqlite.name, studyId, src };
+        p = (pool.run(task) as Promise<GridData>).then(gridIndexOf);
+        reading.set(readKey, p);
+        void p.finally(() => reading.delete(readKey)).catch(() => {});
+      }
+      ix = await p;
+      // a newer index stored while this one was read wins
+      const now = indexes.get(key);
+      if (now && (now.dataVersion > dataVersion || (now.dataVersion === dataVersion && now.maxMeasurement >= newest))) return now.ix;
+    }
+    indexes.delete(key);
+    indexes.set(key, { dataVersion, maxMeasurement: newest, ix, studyId });
     // at most about 3,000,000 rows held (~700 MB at the full column set), and 16 indexes
     let rows = 0;
     for (const e of indexes.values()) rows += e.ix.n;
@@ -135,13 +166,13 @@ export default function cellTableRoutes(ctx: AppContext) {
     return out;
   }
 
-  r.get('/studies/:studyId/cell-table', requireUser, (req, res) => {
+  r.get('/studies/:studyId/cell-table', requireUser, async (req, res) => {
     const studyId = idParam(req, 'studyId');
     const study = requireStudy(ctx.db, req.user, studyId, 'read');
     const canExclude = studyPermissions(ctx.db, req.user!, study).has('exclude');
     const q = parse(GridQuery, req.query);
     const src = resolveSource(ctx.db, studyId, q);
-    const ix = gridIndex(studyId, src, q.fieldId);
+    const ix = await gridIndex(studyId, src, q.fieldId);
     const rows = filteredRows(ix, q, q.sort, q.dir);
     // a cursor continues after the row it names (keyset paging); otherwise the page number counts from the top
     const start = q.cursor !== undefined ? positionAfter(ix, rows, decodeCursor(q.cursor, q.sort, q.dir)) : q.page * q.pageSize;
@@ -172,7 +203,7 @@ export default function cellTableRoutes(ctx: AppContext) {
     const study = requireStudy(ctx.db, req.user, studyId, 'read');
     const q = parse(CsvQuery, req.query);
     const src = resolveSource(ctx.db, studyId, q);
-    const ix = gridIndex(studyId, src, q.fieldId);
+    const ix = await gridIndex(studyId, src, q.fieldId);
     const order = filteredRows(ix, q, q.sort, q.dir);
     const ids = Array.from(order, (r) => ix.cellId[r]);
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
