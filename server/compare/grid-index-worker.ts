@@ -5,10 +5,22 @@
  * server's writes; it sees what was committed when it starts.
  * Only static imports in this graph: under `--import tsx` the thread loads it through the CommonJS hook.
  */
+import os from 'node:os';
 import Database from 'better-sqlite3';
 import { Piscina } from 'piscina';
 import { gridDataBuffers, readGridData } from './grid-index.js';
 import type { ResolvedSource } from './source.js';
+
+// On Linux, setpriority(PRIO_PROCESS, 0) applies to the calling thread only: this thread's reading yields the CPU to
+// the thread that answers HTTP requests (as the run pool's threads do). Elsewhere it may lower the whole process
+// or be refused; both are fine.
+if (process.platform === 'linux') {
+  try {
+    os.setPriority(Math.min(19, os.getPriority() + 5));
+  } catch {
+    /* not permitted: keep the default priority */
+  }
+}
 
 export interface GridIndexTask {
   file: string;
