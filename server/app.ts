@@ -38,9 +38,15 @@ export function createApp(ctx: AppContext) {
   app.use('/api', sameOriginWrites(ctx));
   app.use('/api', express.json({ limit: '2mb' }));
   app.use('/api', authenticate(ctx));
-  // every finished write invalidates read caches (e.g. the review grid's ordered ids)
+  // every finished write invalidates read caches (e.g. the review grid's index), except signing in and out and
+  // personal tokens (they change no study data), and writes that moved the version themselves while patching
+  // a cache in place (res.locals.dataVersionBumped)
   app.use('/api', (req, res, next) => {
-    if (req.method !== 'GET' && req.method !== 'HEAD') res.on('finish', () => void ctx.dataVersion++);
+    if (req.method !== 'GET' && req.method !== 'HEAD' && !/^\/(auth|tokens)(\/|$)/.test(req.path)) {
+      res.on('finish', () => {
+        if (!res.locals.dataVersionBumped) ctx.dataVersion++;
+      });
+    }
     next();
   });
 

@@ -8,7 +8,7 @@
  * - collaborators see only studies they were added to (study_members), read-only;
  * - a user who may not see a study gets 404; one who may see but not change it gets 403.
  */
-import { and, eq } from 'drizzle-orm';
+import { and, eq, sql } from 'drizzle-orm';
 import type { Db } from '../db/client.js';
 import { labMembers, studies, studyMembers, type Role } from '../db/schema.js';
 import { forbidden, notFound, unauthorized } from '../http/errors.js';
@@ -28,19 +28,27 @@ export const hasRole = (u: SessionUser | undefined, r: Role) => !!u && u.roles.i
 
 export type Study = typeof studies.$inferSelect;
 
+/** The permission queries, prepared once per database (every request of a study asks them). */
+function makeQueries(db: Db) {
+  return {
+    study: db.select().from(studies).where(eq(studies.id, sql.placeholder('id'))).prepare(),
+    labMember: db.select().from(labMembers).where(and(eq(labMembers.labId, sql.placeholder('lab')), eq(labMembers.userId, sql.placeholder('user')))).prepare(),
+    studyMember: db.select().from(studyMembers).where(and(eq(studyMembers.studyId, sql.placeholder('study')), eq(studyMembers.userId, sql.placeholder('user')))).prepare(),
+  };
+}
+const preparedQueries = new WeakMap<Db, ReturnType<typeof makeQueries>>();
+function queries(db: Db) {
+  let q = preparedQueries.get(db);
+  if (!q) preparedQueries.set(db, (q = makeQueries(db)));
+  return q;
+}
+
 /** What the user may do in this study (empty set: may not even see it). */
 export function studyPermissions(db: Db, user: SessionUser, study: Study): Set<StudyAction> {
   const p = new Set<StudyAction>();
-  const inLab = !!db
-    .select()
-    .from(labMembers)
-    .where(and(eq(labMembers.labId, study.labId), eq(labMembers.userId, user.id)))
-    .get();
-  const member = db
-    .select()
-    .from(studyMembers)
-    .where(and(eq(studyMembers.studyId, study.id), eq(studyMembers.userId, user.id)))
-    .get();
+  const q = queries(db);
+  const inLab = !!q.labMember.get({ lab: study.labId, user: user.id });
+  const member = q.studyMember.get({ study: study.id, user: user.id });
   const isOwner = study.ownerId === user.id;
   if (inLab || member || isOwner || hasRole(user, 'facility_manager')) p.add('read');
   const canWrite = isOwner || (inLab && (hasRole(user, 'microscopist') || hasRole(user, 'biologist'))) || member?.access === 'write';
@@ -78,7 +86,7 @@ export const notFoundAsked = (a: Asked) => notFound(`no ${a.what} with id ${a.id
  */
 export function requireStudy(db: Db, user: SessionUser | undefined, studyId: number, action: StudyAction, asked: Asked = { what: 'study', id: studyId }): Study {
   if (!user) throw unauthorized();
-  const study = Number.isInteger(studyId) ? db.select().from(studies).where(eq(studies.id, studyId)).get() : undefined;
+  const study = Number.isInteger(studyId) ? queries(db).study.get({ id: studyId }) : undefined;
   if (!study) throw notFoundAsked(asked);
   const perms = studyPermissions(db, user, study);
   if (!perms.has('read')) throw notFoundAsked(asked);

@@ -46,8 +46,18 @@ export interface ResolvedSource extends SourceInfo {
   runIds: number[];
 }
 
+/** Statements of this file, prepared once per connection (the grid asks for its source on every page). */
+const statements = new WeakMap<object, Map<string, import('better-sqlite3').Statement>>();
+function prepared(db: import('better-sqlite3').Database, sql: string) {
+  let byText = statements.get(db);
+  if (!byText) statements.set(db, (byText = new Map()));
+  let st = byText.get(sql);
+  if (!st) byText.set(sql, (st = db.prepare(sql)));
+  return st;
+}
+
 export function resolveSource(database: Db, studyId: number, q: { runId?: number; recipeId?: number }): ResolvedSource {
-  const db = database.$client;
+  const db = { prepare: (sql: string) => prepared(database.$client, sql) };
   if (q.runId !== undefined) {
     const run = db.prepare('SELECT r.id, r.study_id AS studyId, r.recipe_id AS recipeId, rc.name, rc.version FROM runs r JOIN recipes rc ON rc.id = r.recipe_id WHERE r.id = ?').get(q.runId) as
       | { id: number; studyId: number; recipeId: number; name: string; version: number }

@@ -154,6 +154,8 @@ export const GridQuery = GridFilters.extend({
   pageSize: z.coerce.number().int().min(1).max(500).default(50),
   sort: z.enum(SORT_KEYS).default('condition'),
   dir: z.enum(['asc', 'desc']).default('asc'),
+  /** keyset paging: the `nextCursor` of the previous page (same sort and direction); `page` is then not used */
+  cursor: z.string().min(1).max(400).optional(),
 });
 export type GridQuery = z.infer<typeof GridQuery>;
 
@@ -212,8 +214,11 @@ export type SourceInfo = z.infer<typeof SourceInfo>;
 export const GridResponse = z.object({
   rows: z.array(GridRow),
   total: z.number().int(),
+  /** the page number the first row falls on (with a cursor: its position divided by the page size) */
   page: z.number().int(),
   pageSize: z.number().int(),
+  /** pass as `cursor` for the page after this one (keyset paging); null on the last page */
+  nextCursor: z.string().nullable(),
   source: SourceInfo,
   /** whether the signed-in user may exclude / restore cells here */
   canExclude: z.boolean(),

@@ -155,7 +155,7 @@ describe('Cell table', () => {
     mockApi(
       asUser(demoUser(['biologist'])),
       on('GET', '/studies/3', () => ({ body: study })),
-      on('GET', /^\/studies\/3\/cell-table\?/, () => ({ body: { rows, total: 2, page: 0, pageSize: 50, source: { runId: 1, recipeId: 2, recipeName: 'R', recipeVersion: 1 }, canExclude: true } })),
+      on('GET', /^\/studies\/3\/cell-table\?/, () => ({ body: { rows, total: 2, page: 0, pageSize: 50, nextCursor: null, source: { runId: 1, recipeId: 2, recipeName: 'R', recipeVersion: 1 }, canExclude: true } })),
       on('GET', '/studies/3/measurement-sources', () => ({ body: { recipes: [], defaultRecipeId: null } })),
     );
     renderRoutes([{ path: '/studies/:studyId/cell-table', Component: CellTable }], '/studies/3/cell-table');

@@ -1,0 +1,108 @@
+/**
+ * Run overhead: the wall time of a run (queue hand-off to the pool thread, thread start, job building, database
+ * writes, bookkeeping) against the decode + engine time of the same fields measured in this process, one field
+ * after another (loadJobPixels + computeField, the two steps a pool thread runs). Printed as a ratio; the target
+ * is ≤ 1.3×. Two cases: the demo study (12 small fields), and one 2048² field with 60 cells. Each run is timed
+ * cold (first run: the pool thread starts) and warm (the same run again at once). WORKERS=1, so the run does
+ * the same work on one thread as the baseline does here; the baseline is timed on its second pass (warm JIT, as
+ * the pool thread is by the cold run).
+ *
+ *   BENCH=runs npm run bench
+ */
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { performance } from 'node:perf_hooks';
+
+process.env.NODE_ENV ??= 'production';
+
+async function main() {
+  const { loadEnv } = await import('../../server/env.js');
+  const { createContext, closeContext } = await import('../../server/context.js');
+  const { seedDemo, DEMO_STUDY, DEMO_RECIPE } = await import('../../server/db/seed/index.js');
+  const { createRun, resolveScope, buildJob } = await import('../../server/runs/records.js');
+  const { loadJobPixels, computeField } = await import('../../server/runs/compute.js');
+  const { runs, studies, recipes, users, cells, fields } = await import('../../server/db/schema.js');
+  const { eq, and } = await import('drizzle-orm');
+
+  const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'syntopy-bench-runs-'));
+  const env = loadEnv({ ...process.env, DATA_DIR: dataDir, SEED_DEMO: 'never', WORKERS: '1' } as NodeJS.ProcessEnv);
+  const ctx = await createContext(env);
+  try {
+    await seedDemo(ctx, {});
+    const study = ctx.db.select().from(studies).where(eq(studies.name, DEMO_STUDY)).get()!;
+    const recipe = ctx.db.select().from(recipes).where(and(eq(recipes.name, DEMO_RECIPE), eq(recipes.status, 'approved'))).get()!;
+    const user = ctx.db.select().from(users).where(eq(users.email, 'microscopist@demo.test')).get()!;
+
+    async function timedRun(kind: 'study' | 'field', id: number) {
+      const scope = resolveScope(ctx.db, kind, id);
+      const t0 = performance.now();
+      const run = await createRun(ctx, { recipe, scope: { kind, id, ...scope }, userId: user.id });
+      for (;;) {
+        const r = ctx.db.select().from(runs).where(eq(runs.id, run.id)).get()!;
+        if (r.status !== 'queued' && r.status !== 'running') {
+          if (r.status !== 'done') throw new Error(`run ${run.id} ended ${r.status}: ${r.error}`);
+          break;
+        }
+        await new Promise((res) => setTimeout(res, 2));
+      }
+      return { ms: performance.now() - t0, runId: run.id, fieldIds: scope.fieldIds };
+    }
+    async function baseline(runId: number, fieldIds: number[]) {
+      let decode = 0, engine = 0, cellsMeasured = 0;
+      for (const fieldId of fieldIds) {
+        const job = buildJob(ctx.db, runId, fieldId);
+        const t0 = performance.now();
+        const px = await loadJobPixels(ctx.store, job);
+        const t1 = performance.now();
+        cellsMeasured += computeField(job, px).length;
+        engine += performance.now() - t1;
+        decode += t1 - t0;
+      }
+      return { decode, engine, cellsMeasured };
+    }
+    const report = async (name: string, kind: 'study' | 'field', id: number) => {
+      const cold = await timedRun(kind, id);
+      const warm = await timedRun(kind, id);
+      await baseline(warm.runId, warm.fieldIds); // warms this thread's JIT as the two runs warmed the pool thread's
+      const b = await baseline(warm.runId, warm.fieldIds);
+      const work = b.decode + b.engine;
+      console.log(
+        `${name}: ${warm.fieldIds.length} field(s), ${b.cellsMeasured} cells; decode ${b.decode.toFixed(0)} ms + engine ${b.engine.toFixed(0)} ms = ${work.toFixed(0)} ms; ` +
+          `run wall cold ${cold.ms.toFixed(0)} ms (${(cold.ms / work).toFixed(2)}×), warm ${warm.ms.toFixed(0)} ms (${(warm.ms / work).toFixed(2)}×)  [target ≤ 1.30×]`,
+      );
+    };
+
+    await report('demo study', 'study', study.id);
+
+    // one 2048² field with 60 cells: the demo's first field image is replaced by a 2048² one of the seed's kind
+    const { tiffPages, twoChannels } = await import('../security/tiff.js');
+    const { keyForSha } = await import('../../server/images/store.js');
+    const crypto = await import('node:crypto');
+    const W = 2048;
+    const tif = tiffPages(W, W, twoChannels(W, W));
+    const sha = crypto.createHash('sha256').update(tif).digest('hex');
+    const tmp = path.join(dataDir, 'big.tif');
+    fs.writeFileSync(tmp, tif);
+    await ctx.store.putFile(keyForSha(sha), tmp);
+    const db = ctx.db.$client;
+    const field = ctx.db.select().from(fields).limit(1).get()!;
+    db.prepare("INSERT OR IGNORE INTO files (sha256, size, store_key, original_name) VALUES (?, ?, ?, 'big.tif')").run(sha, tif.length, keyForSha(sha));
+    db.prepare("UPDATE fields SET file1_sha = ?, file2_sha = ?, channel1 = 1, channel2 = 2, width = ?, height = ?, bit_depth = 16, sample_format = 'uint' WHERE id = ?").run(sha, sha, W, W, field.id);
+    ctx.db.update(cells).set({ deletedAt: new Date().toISOString() }).where(eq(cells.fieldId, field.id)).run();
+    const ins = db.prepare("INSERT INTO cells (field_id, name, geometry, pixel_count, source) VALUES (?, ?, ?, ?, 'seed')");
+    for (let i = 0; i < 60; i++) {
+      const x = 40 + (i % 10) * 200, y = 40 + Math.floor(i / 10) * 320;
+      ins.run(field.id, `Cell ${i + 1}`, JSON.stringify({ kind: 'ellipse', cx: x + 70, cy: y + 90, rx: 70, ry: 90 }), Math.round(Math.PI * 70 * 90));
+    }
+    await report('2048² field, 60 cells', 'field', field.id);
+  } finally {
+    await closeContext(ctx);
+    fs.rmSync(dataDir, { recursive: true, force: true });
+  }
+}
+
+main().catch((e) => {
+  console.error(e);
+  process.exit(1);
+});
