@@ -115,8 +115,13 @@ function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number
     const u = ux[g];
     let gS = 0;
     let gV = 0; // this group's share (every term is ≥ 0: plain sum, then compensated across groups)
-    for (let q = a; q < b; q++) {
+    // y levels ascend within the group (pairs.ts): a run of equal y is one query and one insert
+    for (let q = a; q < b; ) {
       const r = yRank[q];
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
+      const m = e - q;
+      q = e;
       const w = uy[r];
       let c = 0, sx = 0, sy = 0, sxy = 0;
       for (let k = r; k > 0; k -= k & -k) {
@@ -126,27 +131,31 @@ function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number
         sy += t[o + 2];
         sxy += t[o + 3];
       }
-      gS += 2 * c + eqCount[r] - C;
+      gS += m * (2 * c + eqCount[r] - C);
       // Σ_{j seen} (u − u_j)|w − w_j| = Σ_below (u−u_j)(w−w_j) − Σ_rest (u−u_j)(w−w_j)
-      gV += (2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY);
+      gV += m * ((2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY));
     }
     const tt = acc + gV;
     if (Math.abs(acc) >= Math.abs(gV)) accC += acc - tt + gV; else accC += gV - tt + acc;
     acc = tt;
-    for (let q = a; q < b; q++) {
+    for (let q = a; q < b; ) {
       const r = yRank[q];
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
+      const m = e - q;
+      q = e;
       const w = uy[r];
-      const uw = u * w;
+      const mu = m * u, mw = m * w, muw = m * (u * w);
       for (let k = r + 1; k <= size; k += k & -k) {
         const o = k << 2;
-        t[o] += 1;
-        t[o + 1] += u;
-        t[o + 2] += w;
-        t[o + 3] += uw;
+        t[o] += m;
+        t[o + 1] += mu;
+        t[o + 2] += mw;
+        t[o + 3] += muw;
       }
-      eqCount[r]++;
-      SY += w;
-      SXY += uw;
+      eqCount[r] += m;
+      SY += mw;
+      SXY += muw;
     }
     C += b - a;
     SX += u * (b - a);
