@@ -99,15 +99,17 @@ function rowSums(li: LevelIndex, n: number, integer: boolean): RowSums {
 /**
  * Σ_ij |x_i − x_j||y_i − y_j| by one Fenwick sweep (Huo & Székely 2016). Items are visited in x order a
  * whole x group at a time (queries before inserts): pairs within a group have x_i − x_j = 0 and add
- * nothing, and the same sweep yields Kendall's C − D from the count slot (cached for kendall.ts).
+ * nothing, and the same sweep yields Kendall's C − D from the count slot (cached for kendall.ts) and
+ * S2 = Σ_i a_i· b_i· (a_i· is common to an x group: one product per group).
  */
-function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number {
+function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array, ra: Float64Array, rb: Float64Array): [number, number] {
   const size = p.levelsY.L;
   const { start, yRank } = p.sortedByX;
   const t = new Fenwick4(size).tree;
   const eqCount = new Int32Array(size);
   let C = 0, SX = 0, SY = 0, SXY = 0;
   let acc = 0, accC = 0;
+  let s2 = 0, s2c = 0;
   let S = 0;
   const Lx = start.length - 1;
   for (let g = 0; g < Lx; g++) {
@@ -115,8 +117,14 @@ function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number
     const u = ux[g];
     let gS = 0;
     let gV = 0; // this group's share (every term is ≥ 0: plain sum, then compensated across groups)
-    for (let q = a; q < b; q++) {
+    let gB = 0; // Σ b_i· over the group (its a_i· is common)
+    // y levels ascend within the group (pairs.ts): a run of equal y is one query and one insert
+    for (let q = a; q < b; ) {
       const r = yRank[q];
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
+      const m = e - q;
+      q = e;
       const w = uy[r];
       let c = 0, sx = 0, sy = 0, sxy = 0;
       for (let k = r; k > 0; k -= k & -k) {
@@ -126,34 +134,43 @@ function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array): number
         sy += t[o + 2];
         sxy += t[o + 3];
       }
-      gS += 2 * c + eqCount[r] - C;
+      gS += m * (2 * c + eqCount[r] - C);
+      gB += m * rb[r];
       // Σ_{j seen} (u − u_j)|w − w_j| = Σ_below (u−u_j)(w−w_j) − Σ_rest (u−u_j)(w−w_j)
-      gV += (2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY);
+      gV += m * ((2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY));
     }
     const tt = acc + gV;
     if (Math.abs(acc) >= Math.abs(gV)) accC += acc - tt + gV; else accC += gV - tt + acc;
     acc = tt;
-    for (let q = a; q < b; q++) {
+    const v = ra[g] * gB;
+    const t2 = s2 + v;
+    if (Math.abs(s2) >= Math.abs(v)) s2c += s2 - t2 + v; else s2c += v - t2 + s2;
+    s2 = t2;
+    for (let q = a; q < b; ) {
       const r = yRank[q];
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
+      const m = e - q;
+      q = e;
       const w = uy[r];
-      const uw = u * w;
+      const mu = m * u, mw = m * w, muw = m * (u * w);
       for (let k = r + 1; k <= size; k += k & -k) {
         const o = k << 2;
-        t[o] += 1;
-        t[o + 1] += u;
-        t[o + 2] += w;
-        t[o + 3] += uw;
+        t[o] += m;
+        t[o + 1] += mu;
+        t[o + 2] += mw;
+        t[o + 3] += muw;
       }
-      eqCount[r]++;
-      SY += w;
-      SXY += uw;
+      eqCount[r] += m;
+      SY += mw;
+      SXY += muw;
     }
     C += b - a;
     SX += u * (b - a);
     S += gS;
   }
   p.kendallS = S;
-  return 2 * (acc + accC);
+  return [2 * (acc + accC), s2 + s2c];
 }
 
 /** upper tail P(T_df > t), computed as the lower tail at −t (no cancellation in 1 − F) */
@@ -171,16 +188,7 @@ export function distanceCorrelation(pairs: Pairs | PreparedPairs): DcorResult {
   if (lx.L < 2 || ly.L < 2) return none;
   const A = rowSums(lx, n, p.integer);
   const B = rowSums(ly, n, p.integer);
-  const S1 = crossTerm(p, A.u, B.u);
-  const rx = lx.rank, ry = ly.rank, ra = A.row, rb = B.row;
-  let s2 = 0, s2c = 0;
-  for (let i = 0; i < n; i++) {
-    const v = ra[rx[i]] * rb[ry[i]];
-    const t = s2 + v;
-    if (Math.abs(s2) >= Math.abs(v)) s2c += s2 - t + v; else s2c += v - t + s2;
-    s2 = t;
-  }
-  const S2 = s2 + s2c;
+  const [S1, S2] = crossTerm(p, A.u, B.u, A.row, B.row);
   // V-statistics scaled by n²
   const vxy = S1 - (2 / n) * S2 + (A.total * B.total) / (n * n);
   const vxx = A.sq - (2 / n) * A.rowSq + (A.total * A.total) / (n * n);

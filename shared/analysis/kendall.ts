@@ -4,7 +4,7 @@
  *   τ-b = (C − D) / √((n0 − n1)(n0 − n2)), n0 = n(n−1)/2, n1 = Σ t(t−1)/2 over x ties, n2 likewise for y.
  *
  * Exact, O(n log L) for n pairs and L distinct y values: items are visited in x order by a counting sort
- * over x levels (pairs.ts); a Fenwick tree (Fenwick 1994, doi:10.1002/spe.4380240306) over y levels counts
+ * over x then y levels (pairs.ts, equal pairs taken together as one run); a Fenwick tree (Fenwick 1994, doi:10.1002/spe.4380240306) over y levels counts
  * the earlier items below y; a whole group of equal x is queried before it is inserted, so x ties are
  * neither concordant nor discordant. Same idea as Knight (1966), J. Am. Stat. Assoc. 61:436,
  * doi:10.1080/01621459.1966.10480879, with the merge sort replaced by counting. Every count is an integer
@@ -39,16 +39,24 @@ export function kendallS(pairs: Pairs | PreparedPairs): number {
   for (let g = 0; g < Lx; g++) {
     const a = start[g], b = start[g + 1];
     let groupS = 0;
-    for (let q = a; q < b; q++) {
+    // y levels ascend within the group (pairs.ts): a run of equal y is one query and one insert
+    for (let q = a; q < b; ) {
       const r = yRank[q];
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
       let less = 0;
       for (let k = r; k > 0; k -= k & -k) less += tree[k];
-      groupS += 2 * less + eqCount[r] - inserted;
+      groupS += (e - q) * (2 * less + eqCount[r] - inserted);
+      q = e;
     }
-    for (let q = a; q < b; q++) {
+    for (let q = a; q < b; ) {
       const r = yRank[q];
-      for (let k = r + 1; k <= size; k += k & -k) tree[k]++;
-      eqCount[r]++;
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
+      const m = e - q;
+      for (let k = r + 1; k <= size; k += k & -k) tree[k] += m;
+      eqCount[r] += m;
+      q = e;
     }
     inserted += b - a;
     S += groupS;

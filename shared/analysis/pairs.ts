@@ -39,8 +39,8 @@ export interface LevelOrder {
 }
 
 /**
- * The y levels of the items in x order (stable counting sort on x levels): items of x level k occupy
- * positions start[k] .. start[k+1] of `yRank`. Sequential memory access for the sweeps of kendall/dcor.
+ * The y levels of the items in (x, y) order: items of x level k occupy positions start[k] .. start[k+1] of
+ * `yRank`, ascending within the group. Sequential memory access for the sweeps of kendall/dcor.
  */
 export interface XSorted {
   start: Int32Array;
@@ -192,16 +192,28 @@ export function levelOrder(li: LevelIndex): LevelOrder {
   return { order, start };
 }
 
-/** y levels in x order, O(n + L). */
+/**
+ * y levels in x order, O(n + Lx + Ly): a two-pass (least significant key first) counting sort, so within
+ * each x level the y levels ascend. Equal (x, y) pairs are then adjacent (the sweeps of kendall/dcor visit
+ * each distinct pair once with its multiplicity) and the queries of one x group climb the Fenwick tree in
+ * ascending order (the nodes they share stay in cache).
+ */
 export function sortByX(lx: LevelIndex, ly: LevelIndex): XSorted {
   const { L, rank: rx, counts } = lx;
-  const ry = ly.rank;
+  const { L: Ly, rank: ry, counts: cy } = ly;
   const n = rx.length;
+  // pass 1: the x levels in y order
+  const yStart = new Int32Array(Ly + 1);
+  for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
+  const yPos = yStart.slice(0, Ly);
+  const xByY: RankArray = rx instanceof Uint16Array ? new Uint16Array(n) : new Uint32Array(n);
+  for (let i = 0; i < n; i++) xByY[yPos[ry[i]]++] = rx[i];
+  // pass 2: stable by x, writing the y level of each position
   const start = new Int32Array(L + 1);
   for (let k = 0; k < L; k++) start[k + 1] = start[k] + counts[k];
   const pos = start.slice(0, L);
   const yRank: RankArray = ry instanceof Uint16Array ? new Uint16Array(n) : new Uint32Array(n);
-  for (let i = 0; i < n; i++) yRank[pos[rx[i]]++] = ry[i];
+  for (let k = 0; k < Ly; k++) for (let q = yStart[k], e = yStart[k + 1]; q < e; q++) yRank[pos[xByY[q]]++] = k;
   return { start, yRank };
 }
 

@@ -9,7 +9,9 @@ import {
   kendallTauB,
   measureRegion,
   pairsFromArrays,
+  kendallS,
   pearson,
+  prepare,
   spearman,
   Xoshiro128,
   type RegionResult,
@@ -77,6 +79,40 @@ describe('fast == naive O(n²) on random small inputs', () => {
     close(d.dcor, nd.dcor, 1e-10, 'dCor');
     close(d.bcdcorSq, nd.bcdcorSq, 1e-10, 'bcdCor');
     close(kendallTauB(p), naiveKendallTauB(x, y), 1e-12, 'τ-b');
+  });
+});
+
+describe('(x, y) order and the run sweeps', () => {
+  it('sortedByX keeps every pair, groups by x level and ascends in y within a group; both sweeps give the same C − D', () => {
+    // common practice: check a sort by its output invariants (a permutation, ordered by the key)
+    const rng = new Xoshiro128(4242);
+    for (const name of ['ties', 'indep8', 'floatTies', 'float'] as const) {
+      for (let c = 0; c < 40; c++) {
+        const n = 2 + rng.nextInt(400);
+        const [x, y] = gens[name](rng, n);
+        const p = prepare(pairsFromArrays(x, y));
+        const { start, yRank } = p.sortedByX;
+        const lx = p.levelsX, ly = p.levelsY;
+        const want = new Map<string, number>();
+        for (let i = 0; i < n; i++) {
+          const k = `${lx.rank[i]},${ly.rank[i]}`;
+          want.set(k, (want.get(k) ?? 0) + 1);
+        }
+        const got = new Map<string, number>();
+        for (let g = 0; g < lx.L; g++) {
+          for (let q = start[g]; q < start[g + 1]; q++) {
+            if (q > start[g]) expect(yRank[q], `${name} #${c} group ${g}`).toBeGreaterThanOrEqual(yRank[q - 1]);
+            const k = `${g},${yRank[q]}`;
+            got.set(k, (got.get(k) ?? 0) + 1);
+          }
+        }
+        expect(got).toEqual(want);
+        const viaKendall = kendallS(p);
+        const q = prepare(pairsFromArrays(x, y));
+        distanceCorrelation(q); // the dCor sweep fills C − D on its own
+        expect(q.kendallS, `${name} #${c}`).toBe(viaKendall);
+      }
+    }
   });
 });
 
