@@ -82,6 +82,7 @@ export function handlesOf(g: CellGeometry): Point[] {
         [g.cx, g.cy - g.ry],
       ];
     case 'label':
+    case 'label3d':
       return [];
   }
 }
@@ -105,7 +106,7 @@ export function moveHandle(g: CellGeometry, index: number, to: Point): CellGeome
       if (!opp || index < 0 || index > 3) return g;
       const x0 = Math.min(opp[0], to[0]), x1 = Math.max(opp[0], to[0]);
       const y0 = Math.min(opp[1], to[1]), y1 = Math.max(opp[1], to[1]);
-      return { kind: 'rect', x: x0, y: y0, width: Math.max(MIN_SIZE, x1 - x0), height: Math.max(MIN_SIZE, y1 - y0) };
+      return { kind: 'rect', x: x0, y: y0, width: Math.max(MIN_SIZE, x1 - x0), height: Math.max(MIN_SIZE, y1 - y0), ...(g.z ? { z: g.z } : {}) };
     }
     case 'ellipse': {
       if (index === 0 || index === 2) return { ...g, rx: Math.max(MIN_SIZE, Math.abs(to[0] - g.cx)) };
@@ -113,6 +114,7 @@ export function moveHandle(g: CellGeometry, index: number, to: Point): CellGeome
       return g;
     }
     case 'label':
+    case 'label3d':
       return g;
   }
 }
@@ -127,6 +129,7 @@ export function translateGeometry(g: CellGeometry, dx: number, dy: number): Cell
     case 'ellipse':
       return { ...g, cx: g.cx + dx, cy: g.cy + dy };
     case 'label':
+    case 'label3d':
       return g; // label masks are pixel-exact imports; they do not move
   }
 }
@@ -256,14 +259,14 @@ export function planSave(s: Pick<OutlineState, 'outlines' | 'saved'>): SaveOp[] 
     inDoc.add(o.key);
     const c = s.saved[o.key];
     if (!c) {
-      if (o.geometry.kind === 'label') continue; // label cells only come from the server
+      if (o.geometry.kind === 'label' || o.geometry.kind === 'label3d') continue; // label cells only come from the server
       ops.push({ op: 'create', key: o.key, body: { name: o.name, role: o.role, geometry: o.geometry } });
       continue;
     }
     const body: Extract<SaveOp, { op: 'update' }>['body'] = {};
     if (o.name !== c.name) body.name = o.name;
     if (o.role !== c.role) body.role = o.role;
-    if (!sameGeometry(o.geometry, c.geometry) && o.geometry.kind !== 'label') body.geometry = o.geometry;
+    if (!sameGeometry(o.geometry, c.geometry) && o.geometry.kind !== 'label' && o.geometry.kind !== 'label3d') body.geometry = o.geometry;
     if (Object.keys(body).length) ops.push({ op: 'update', key: o.key, id: c.id, body });
   }
   for (const [key, c] of Object.entries(s.saved)) if (!inDoc.has(key)) ops.push({ op: 'delete', key, id: c.id });
