@@ -44,6 +44,8 @@ export type OutlineAction =
   | { type: 'translate'; key: string; dx: number; dy: number; live?: boolean }
   | { type: 'insert-vertex'; key: string; index: number; at: Point }
   | { type: 'remove-vertex'; key: string; index: number }
+  /** the slices (1-based, inclusive) a drawn outline covers in a stack; null = every slice */
+  | { type: 'set-z'; key: string; z: [number, number] | null }
   | { type: 'delete'; key: string }
   | { type: 'undo' }
   | { type: 'redo' }
@@ -218,6 +220,15 @@ export function outlineReducer(s: OutlineState, a: OutlineAction): OutlineState 
         const g = o.geometry;
         if ((g.kind !== 'polygon' && g.kind !== 'freehand') || g.points.length <= 3 || a.index < 0 || a.index >= g.points.length) return o;
         return { ...o, geometry: { ...g, points: g.points.filter((_, i) => i !== a.index) } };
+      });
+    case 'set-z':
+      return update(s, a.key, (o) => {
+        const g = o.geometry;
+        if (g.kind === 'label' || g.kind === 'label3d') return o;
+        const same = a.z === null ? !g.z : !!g.z && g.z[0] === a.z[0] && g.z[1] === a.z[1];
+        if (same) return o;
+        const { z: _old, ...rest } = g;
+        return { ...o, geometry: a.z === null ? rest : { ...rest, z: a.z } };
       });
     case 'delete': {
       const next = update(s, a.key, () => null);
