@@ -18,6 +18,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { UploadResponse } from '../../shared/schemas/fields.js';
 import { CellList, CellResponse, ImportLabelsResponse, cellVoxels, type Cell } from '../../shared/schemas/cells.js';
 import { measurements } from '../../server/db/schema.js';
+import { GridResponse } from '../../shared/schemas/cell-table.js';
 import { decodeChannel } from '../../server/images/decode.js';
 import { concatSlices } from '../../server/images/projection.js';
 import { measureRegion, REGION_RESULT_KEYS } from '../../shared/analysis/index.js';
@@ -175,6 +176,15 @@ describe('a run over 3-D cells', () => {
       n++;
     }
     expect(n).toBe(u16.labels3d.length - 1 + rois.length);
+    // the Cell table shows each cell's slices and its measured voxels
+    const grid = GridResponse.parse((await mic.get(`/api/studies/${t.world.studyA}/cell-table`).query({ runId: run.body.id, pageSize: 500 })).body);
+    const fieldRows = grid.rows.filter((r) => r.fieldId === fieldId);
+    expect(fieldRows).toHaveLength(cellList.length);
+    for (const r of fieldRows) {
+      const c = cellList.find((x) => x.id === r.cellId)!;
+      expect(r.slices, c.name).toBe(`${c.zRange[0]}–${c.zRange[1]}`);
+      expect(r.pixels, c.name).toBe(c.voxelCount);
+    }
   }, 120_000);
 
   it('a run measuring one slice takes the cells’ planes on that slice; a projection is refused with the reason', async () => {
