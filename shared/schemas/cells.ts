@@ -96,7 +96,7 @@ export const Label3dGeometry = z
 export const CellGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry, LabelGeometry, Label3dGeometry]).superRefine((g, ctx) => {
   if (g.kind !== 'label3d') return;
   const n = g.z[1] - g.z[0] + 1;
-  if (g.slices.length !== n) ctx.addIssue({ code: 'custom', message: `the z range [${g.z[0]}, ${g.z[1]}] covers ${n} slices, but ${g.slices.length} slice codes were given` });
+  if (g.slices.length !== n) ctx.addIssue({ code: 'custom', message: `the z range [${g.z[0]}, ${g.z[1]}] covers ${n} slices, but ${g.slices.length === 1 ? 'one slice code was' : `${g.slices.length} slice codes were`} given` });
 });
 export type CellGeometry = z.infer<typeof CellGeometrySchema>;
 /** Geometries a user can draw (label masks only come from an import). */
