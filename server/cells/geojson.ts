@@ -56,7 +56,8 @@ function featureOf(c: Cell, width: number, height: number): OutlineFeature {
       }
       return { ...base, geometry: { type: 'Polygon', coordinates: [close(ring)] }, properties: { ...props, shape: { cx: g.cx, cy: g.cy, rx: g.rx, ry: g.ry } } };
     }
-    case 'label': {
+    case 'label':
+    case 'label3d': {
       const polys = traceOutline(cellIndices(g, width, height), width, height).map((p) => p.rings.map(close));
       const geometry = polys.length === 1 ? { type: 'Polygon' as const, coordinates: polys[0] } : { type: 'MultiPolygon' as const, coordinates: polys };
       return { ...base, geometry, properties: { ...props, label: g.label } };

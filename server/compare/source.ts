@@ -149,7 +149,9 @@ export function orderBy(sort: SortKey, dir: 'asc' | 'desc') {
   return `ORDER BY ${[...terms, 'c.id ASC'].join(', ')}`;
 }
 
-export const GRID_SELECT = `SELECT c.id AS cellId, c.name AS cell, f.id AS fieldId, f.name AS field, cs.id AS coverslipId, cs.name AS coverslip,
+export const GRID_SELECT = `SELECT c.id AS cellId, c.name AS cell,
+  CASE WHEN f.size_z > 1 THEN coalesce(json_extract(c.geometry, '$.z[0]'), 1) || '–' || coalesce(json_extract(c.geometry, '$.z[1]'), f.size_z) END AS slices,
+  f.id AS fieldId, f.name AS field, cs.id AS coverslipId, cs.name AS coverslip,
   cs.replicate AS replicate, cd.id AS conditionId, cd.name AS condition, m.id AS measurementId, m.run_id AS runId,
   ${NUMERIC_COLUMNS.map((k) => `${COLUMN_SQL[k]} AS ${k}`).join(', ')},
   m.threshold_method AS thresholdMethod, ${SATURATED_SQL} AS saturated, coalesce(m.provisional, 0) AS provisional,

@@ -160,12 +160,14 @@ export const fields = sqliteTable('fields', {
   createdAt: createdAt(),
 }, (t) => [index('fields_coverslip').on(t.coverslipId)]);
 
+/** shared/schemas/cells.ts CellGeometrySchema; `z` is a 1-based inclusive slice range (absent = every slice) */
 export type CellGeometry =
-  | { kind: 'polygon'; points: [number, number][] }
-  | { kind: 'rect'; x: number; y: number; width: number; height: number }
-  | { kind: 'ellipse'; cx: number; cy: number; rx: number; ry: number }
-  | { kind: 'freehand'; points: [number, number][] }
-  | { kind: 'label'; label: number; rle: number[] };
+  | { kind: 'polygon'; points: [number, number][]; z?: [number, number] }
+  | { kind: 'rect'; x: number; y: number; width: number; height: number; z?: [number, number] }
+  | { kind: 'ellipse'; cx: number; cy: number; rx: number; ry: number; z?: [number, number] }
+  | { kind: 'freehand'; points: [number, number][]; z?: [number, number] }
+  | { kind: 'label'; label: number; rle: number[] }
+  | { kind: 'label3d'; label: number; z: [number, number]; slices: number[][] };
 
 export const cells = sqliteTable('cells', {
   id: id(),

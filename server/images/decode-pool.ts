@@ -66,9 +66,9 @@ export class DecodePool {
   }
 
   /** Decodes one channel (all z slices) of an imported file. */
-  decodeChannel(input: Uint8Array, channel: number, name: string): Promise<{ info: TiffInfo; slices: PixelArray[]; width: number; height: number }> {
+  decodeChannel(input: Uint8Array, channel: number, name: string, pages?: DecodeOptions['pages']): Promise<{ info: TiffInfo; slices: PixelArray[]; width: number; height: number }> {
     // a private copy of the bytes is handed over (transferred) to the thread
-    return this.run({ kind: 'channel', input: input.slice(), channel, opts: this.opts }, `decoding "${name}"`);
+    return this.run({ kind: 'channel', input: input.slice(), channel, opts: pages ? { ...this.opts, pages } : this.opts }, `decoding "${name}"`);
   }
 
   close() {

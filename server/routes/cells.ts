@@ -4,7 +4,8 @@
  *   POST   /api/fields/:id/cells            create a drawn outline or a background region (edit_images)
  *   PATCH  /api/cells/:id                   rename, change role, move vertices → new geometry (edit_images)
  *   DELETE /api/cells/:id                   delete; soft delete when measurements refer to the cell
- *   POST   /api/fields/:id/cells/import     label TIFF (multipart field "file"): one cell per positive label
+ *   POST   /api/fields/:id/cells/import     label TIFF (multipart field "file"): one cell per positive label; a
+ *                                           stack with the field's slice count gives 3-D cells ('label3d')
  *   POST   /api/fields/:id/cells/auto       automatic outlines (shared/analysis/segment.ts)
  *   GET    /api/fields/:id/cells.geojson    outlines as GeoJSON in pixel coordinates (server/cells/geojson.ts)
  *   POST   /api/fields/:id/cells/geojson    import GeoJSON outlines (multipart field "file"), all or nothing
@@ -27,6 +28,8 @@ import {
   CreateCellRequest,
   UpdateCellRequest,
   cellIndices,
+  checkZRange,
+  extentOf,
   originOfRow,
   type Cell,
   type CellGeometry,
@@ -37,6 +40,7 @@ import { gaussianFilter } from '../../shared/analysis/gaussian.js';
 import type { ChannelArray } from '../../shared/analysis/types.js';
 import { labelRegions } from '../../shared/analysis/labels.js';
 import { encodeRuns } from '../../shared/analysis/rle.js';
+import { concatSlices } from '../images/projection.js';
 import { autoLevel, segmentCells } from '../../shared/analysis/segment.js';
 import { outlinesToGeoJson, readOutlines } from '../cells/geojson.js';
 import { labelTiffOf } from '../cells/label-tiff.js';
@@ -55,7 +59,8 @@ export const originOf = (r: Pick<CellRow, 'origin' | 'source'>): CellOrigin => o
 /** The origin of a cell whose outline was changed by hand: drawn stays drawn, imported or found becomes edited. */
 const editedOrigin = (o: CellOrigin): CellOrigin => (o.how === 'imported' || o.how === 'found' ? { ...o, edited: true } : o);
 
-export function toCell(r: CellRow): Cell {
+/** A stored cell as the API gives it; `sizeZ` is its field's slice count (for the z range and voxel count). */
+export function toCell(r: CellRow, sizeZ: number): Cell {
   return {
     id: r.id,
     fieldId: r.fieldId,
@@ -65,6 +70,7 @@ export function toCell(r: CellRow): Cell {
     source: r.source,
     origin: originOf(r),
     pixelCount: r.pixelCount,
+    ...extentOf(r.geometry as Cell['geometry'], r.pixelCount, sizeZ),
     excluded: r.excluded,
     exclusionReason: r.exclusionReason,
     createdAt: r.createdAt,
@@ -95,10 +101,11 @@ function loadCellFor(ctx: AppContext, user: SessionUser | undefined, cellId: num
   return { cell, field, studyId };
 }
 
-/** Pixel count under the one rasterization rule; an outline covering no pixel centre is refused. */
+/** Pixel count under the one rasterization rule; an outline covering no pixel centre, or a z range beyond the field's slices, is refused. */
 function pixelCountOf(g: CellGeometry, field: FieldRow): number {
   let n: number;
   try {
+    checkZRange(g, field.sizeZ);
     n = cellIndices(g, field.width, field.height).length;
   } catch (e) {
     throw badRequest(`geometry: ${(e as Error).message}`);
@@ -124,6 +131,23 @@ function removeCell(tx: DbOrTx, cell: CellRow): boolean {
   return false;
 }
 
+/**
+ * The 3-D label cell of one label value from its ascending voxel indices (z·plane + pixel) in a stack: the
+ * slices it spans (1-based) and one run-length code per slice of that span.
+ */
+export function label3dOf(label: number, voxels: Uint32Array, plane: number): Extract<CellGeometry, { kind: 'label3d' }> {
+  const z0 = Math.floor(voxels[0] / plane), z1 = Math.floor(voxels[voxels.length - 1] / plane);
+  const slices: number[][] = [];
+  let k = 0;
+  for (let z = z0; z <= z1; z++) {
+    const start = k;
+    while (k < voxels.length && voxels[k] < (z + 1) * plane) k++;
+    const inPlane = voxels.subarray(start, k).map((v) => v - z * plane);
+    slices.push(encodeRuns(inPlane, plane));
+  }
+  return { kind: 'label3d', label, z: [z0 + 1, z1 + 1], slices };
+}
+
 const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 512 * 1024 * 1024, files: 1 } });
 /** GeoJSON outlines: text, far smaller than images (5000 outlines of a few hundred vertices fit easily). */
 const geojsonUpload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 64 * 1024 * 1024, files: 1 } });
@@ -133,9 +157,9 @@ export default function cellsRoutes(ctx: AppContext) {
 
   r.get('/fields/:id/cells', (req, res) => {
     const fieldId = idParam(req, 'id');
-    loadFieldFor(ctx, req.user, fieldId, 'read');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const rows = ctx.db.select().from(cells).where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt))).orderBy(asc(cells.id)).all();
-    res.json({ cells: rows.map(toCell) });
+    res.json({ cells: rows.map((c) => toCell(c, field.sizeZ)) });
   });
 
   r.post('/fields/:id/cells', (req, res) => {
@@ -152,7 +176,7 @@ export default function cellsRoutes(ctx: AppContext) {
       tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'cell.create', entity: 'cell', entityId: c.id, studyId, details: { fieldId, role: c.role, kind: body.geometry.kind, pixelCount } }).run();
       return c;
     });
-    res.status(201).json({ cell: toCell(row) });
+    res.status(201).json({ cell: toCell(row, field.sizeZ) });
   });
 
   r.patch('/cells/:id', (req, res) => {
@@ -184,7 +208,7 @@ export default function cellsRoutes(ctx: AppContext) {
       }
       return out;
     });
-    res.json({ cell: toCell(row) });
+    res.json({ cell: toCell(row, field.sizeZ) });
   });
 
   r.delete('/cells/:id', (req, res) => {
@@ -210,14 +234,20 @@ export default function cellsRoutes(ctx: AppContext) {
     const { ImageInputError } = await import('../images/decode.js');
     const { decodePoolOf } = await import('../images/decode-pool.js');
     // decoded in the decoding thread (heap and time limits), like uploads
-    const { info, slices } = await decodePoolOf(ctx).decodeChannel(req.file.buffer, 1, req.file.originalname);
+    // the pages of a plain multi-page file are z slices of the one label channel
+    const { info, slices } = await decodePoolOf(ctx).decodeChannel(req.file.buffer, 1, req.file.originalname, 'slices');
     if (info.width !== field.width || info.height !== field.height)
       throw new ImageInputError(`the label image is ${info.width} × ${info.height} pixels but the field is ${field.width} × ${field.height}; they must match`, 422);
-    if (slices.length !== 1) throw new ImageInputError(`the label image has ${slices.length} slices; give one 2-D label image`, 422);
     if (info.channelCount > 1) throw new ImageInputError(`the label image has ${info.channelCount} channels; give a single-channel label image`, 422);
+    if (info.sampleFormat === 'float' || slices.some((s) => s instanceof Float32Array || s instanceof Float64Array))
+      throw new ImageInputError('the label image holds floating-point pixels; labels must be whole numbers (8, 16 or 32-bit unsigned)', 422);
+    if (slices.length !== 1 && slices.length !== field.sizeZ)
+      throw new ImageInputError(`the label image has ${slices.length} slices but the field has ${field.sizeZ}; give one 2-D label image or a label stack with one plane per slice of the field`, 422);
+    const stack = slices.length > 1;
+    const plane = field.width * field.height;
     let regions;
     try {
-      regions = labelRegions(slices[0]);
+      regions = labelRegions(stack ? concatSlices(slices as ChannelArray[], 0, slices.length - 1) : slices[0]);
     } catch (e) {
       throw new ImageInputError(`not a label image: ${(e as Error).message}`, 422);
     }
@@ -231,11 +261,12 @@ export default function cellsRoutes(ctx: AppContext) {
       }
       const out: CellRow[] = [];
       for (const reg of regions) {
-        const rle = encodeRuns(reg.indices, field.width * field.height);
+        const geometry = stack ? label3dOf(reg.label, reg.indices, plane) : { kind: 'label' as const, label: reg.label, rle: encodeRuns(reg.indices, plane) };
+        const pixelCount = stack ? cellIndices(geometry, field.width, field.height).length : reg.indices.length;
         out.push(
           tx
             .insert(cells)
-            .values({ fieldId, name: `Label ${reg.label}`, role: 'cell', geometry: { kind: 'label', label: reg.label, rle }, source: 'label_image', origin: { how: 'imported', file: req.file!.originalname, label: reg.label, edited: false }, pixelCount: reg.indices.length, createdBy: req.user!.id })
+            .values({ fieldId, name: `Label ${reg.label}`, role: 'cell', geometry, source: 'label_image', origin: { how: 'imported', file: req.file!.originalname, label: reg.label, edited: false }, pixelCount, createdBy: req.user!.id })
             .returning()
             .get(),
         );
@@ -245,23 +276,23 @@ export default function cellsRoutes(ctx: AppContext) {
         .run();
       return out;
     });
-    res.status(201).json({ cells: created.map(toCell), labels: regions.length });
+    res.status(201).json({ cells: created.map((c) => toCell(c, field.sizeZ)), labels: regions.length });
   });
 
-  const liveCells = (fieldId: number) => ctx.db.select().from(cells).where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt))).orderBy(asc(cells.id)).all().map(toCell);
+  const liveCells = (fieldId: number, sizeZ: number) => ctx.db.select().from(cells).where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt))).orderBy(asc(cells.id)).all().map((c) => toCell(c, sizeZ));
 
   r.get('/fields/:id/cells.geojson', (req, res) => {
     const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     res.setHeader('content-type', 'application/geo+json; charset=utf-8');
     res.setHeader('content-disposition', `attachment; filename="${fileSafe(field.name)}-outlines.geojson"`);
-    res.send(JSON.stringify(outlinesToGeoJson(field, liveCells(fieldId))));
+    res.send(JSON.stringify(outlinesToGeoJson(field, liveCells(fieldId, field.sizeZ))));
   });
 
   r.get('/fields/:id/cells/labels.tiff', (req, res) => {
     const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
-    const tiff = labelTiffOf(liveCells(fieldId), field.width, field.height);
+    const tiff = labelTiffOf(liveCells(fieldId, field.sizeZ), field.width, field.height);
     res.setHeader('content-type', 'image/tiff');
     res.setHeader('content-disposition', `attachment; filename="${fileSafe(field.name)}-labels.tif"`);
     res.end(tiff);
@@ -289,7 +320,7 @@ export default function cellsRoutes(ctx: AppContext) {
         .run();
       return rows;
     });
-    res.status(201).json({ cells: created.map(toCell), features: outlines.length });
+    res.status(201).json({ cells: created.map((c) => toCell(c, field.sizeZ)), features: outlines.length });
   });
 
   r.post('/fields/:id/cells/auto', async (req, res) => {
@@ -378,7 +409,7 @@ export default function cellsRoutes(ctx: AppContext) {
         .run();
       return out;
     });
-    res.status(201).json({ cells: created.map(toCell), outlines, kept: true, ...counts });
+    res.status(201).json({ cells: created.map((c) => toCell(c, field.sizeZ)), outlines, kept: true, ...counts });
   });
 
   return r;

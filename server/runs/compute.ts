@@ -10,6 +10,10 @@
  *   means, saturated fractions and field thresholds are then over voxels. The randomization test then
  *   scrambles 3-D blocks (`blockSlices`: the block depth in slices, given or from the PSF's axial width and
  *   the z step); without a block depth the field fails with a message rather than guessing one.
+ * - cells in 3D (2026-12-02): an outline with a z range counts only on the measured slices of that range, and a
+ *   3-D label cell exactly its voxels (shared/schemas/cells.ts `cellVoxels`); with one slice measured, only its
+ *   plane of the cell (possibly none: a row of nulls). A projection merges slices, so a field with such cells
+ *   fails with a message under z 'mip' or 'range' rather than ignoring the z extent.
  * - saturation: a value equal to the largest representable value of the bit depth (integer data) is
  *   saturated; float data has no saturation level (fractions null). 'exclude' drops pixels saturated in
  *   either channel before thresholds and coefficients.
@@ -37,8 +41,8 @@
  *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
  *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, extrudeIndices, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
-import { cellIndices } from '../../shared/schemas/cells.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
 import { pairDistancePx, spotSigmaPx, type RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../services.js';
@@ -197,10 +201,14 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
   const depth = px.depth ?? 1;
   if (px.ch1.length !== plane * depth || px.ch2.length !== plane * depth)
     throw new FieldJobError(`field "${job.fieldName}": ${px.ch1.length} and ${px.ch2.length} pixels do not make ${depth} slice${depth === 1 ? '' : 's'} of ${width}×${height}`);
-  /** a stored outline's pixels on every measured slice */
-  const voxelsOf = (geometry: Parameters<typeof cellIndices>[0]) => {
-    const inPlane = cellIndices(geometry, width, height);
-    return depth === 1 ? inPlane : extrudeIndices(inPlane, plane, 0, depth - 1);
+  // the measured planes are the field's slices first .. first + depth − 1 (one slice: that slice; a projection: no slice)
+  const projected = s.z.mode === 'mip' || s.z.mode === 'range';
+  const first = s.z.mode === 'slice' ? s.z.slice : 0;
+  /** a stored cell's voxels in the measured planes: an outline on every measured slice of its z range, a 3-D label cell exactly its voxels */
+  const voxelsOf = (geometry: CellGeometry) => {
+    if (projected && (geometry.kind === 'label3d' || ('z' in geometry && geometry.z)))
+      throw new FieldJobError(`field "${job.fieldName}" has cells that cover only some slices (a z range or a 3-D label), but the recipe measures a projection of the slices; measure every slice in 3D or one slice`);
+    return cellVoxels(geometry, width, height, first, depth);
   };
   const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
   // calibration: channel 2 aligned first (NaN where its sample position is outside: not measured)

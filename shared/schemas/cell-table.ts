@@ -16,7 +16,7 @@ export const NUMERIC_COLUMNS = [...CELL_TABLE_KEYS, ...MEASUREMENT_INPUT_KEYS] a
 export type NumericColumn = (typeof NUMERIC_COLUMNS)[number];
 
 /** Cell table columns shown until the user picks others: the registry's `cellTable: 'default'` plus the flags. */
-export const DEFAULT_VISIBLE_COLUMNS: readonly string[] = ['condition', 'coverslip', 'field', 'cell', ...COEFFICIENTS.filter((c) => c.cellTable === 'default').map((c) => c.key), 'saturated', 'provisional', 'excluded'];
+export const DEFAULT_VISIBLE_COLUMNS: readonly string[] = ['condition', 'coverslip', 'field', 'cell', 'slices', ...COEFFICIENTS.filter((c) => c.cellTable === 'default').map((c) => c.key), 'saturated', 'provisional', 'excluded'];
 
 /** Human labels (our words; trade terms kept as the field uses them); measures take the registry's label. */
 export const COLUMN_LABELS: Record<string, string> = {
@@ -24,6 +24,7 @@ export const COLUMN_LABELS: Record<string, string> = {
   coverslip: 'Coverslip',
   field: 'Field',
   cell: 'Cell',
+  slices: 'Slices',
   ...Object.fromEntries(CELL_TABLE_KEYS.map((k) => [k, byKey(k).label])),
   threshold1: 'Threshold ch1',
   threshold2: 'Threshold ch2',
@@ -183,6 +184,9 @@ const n = z.number().nullable();
 export const GridRow = z.object({
   cellId: z.number().int(),
   cell: z.string(),
+  /** on a z-stack the slices the cell covers, "from–to" (1-based, inclusive); null on a single-plane field. Its
+   * measured `pixels` are then voxels. */
+  slices: z.string().nullable().default(null),
   fieldId: z.number().int(),
   field: z.string(),
   coverslipId: z.number().int(),

@@ -7,6 +7,7 @@
 import { z } from 'zod';
 import { rasterize, rasterizeInto, maskToIndices, type Shape } from '../analysis/rasterize';
 import { checkRuns, decodeRuns } from '../analysis/rle';
+import { extrudeIndices } from '../analysis/volume';
 
 /** Largest vertex count accepted for one outline (freehand strokes are thinned on the client). */
 export const MAX_VERTICES = 20000;
@@ -16,14 +17,27 @@ export const MAX_CELL_NAME = 120;
 const coord = z.number().finite().gte(-1e6).lte(1e6);
 const Point = z.tuple([coord, coord]);
 
-export const PolygonGeometry = z.object({ kind: z.literal('polygon'), points: z.array(Point).min(3, 'an outline needs at least 3 points').max(MAX_VERTICES) });
-export const FreehandGeometry = z.object({ kind: z.literal('freehand'), points: z.array(Point).min(3, 'an outline needs at least 3 points').max(MAX_VERTICES) });
+/**
+ * The slices a cell covers in a stack: [from, to], 1-based and inclusive (as `analyze --rois` takes `"z"`).
+ * Absent on a drawn outline = every slice. Checked against the field's slice count where the field is known
+ * (`checkZRange`).
+ */
+export const ZRange = z
+  .tuple([z.number().int().min(1, 'slices are counted from 1'), z.number().int().min(1, 'slices are counted from 1')])
+  .superRefine(([a, b], ctx) => {
+    if (a > b) ctx.addIssue({ code: 'custom', message: `a z range runs from a slice to the same or a later one, got [${a}, ${b}]` });
+  });
+export type ZRange = z.infer<typeof ZRange>;
+
+export const PolygonGeometry = z.object({ kind: z.literal('polygon'), points: z.array(Point).min(3, 'an outline needs at least 3 points').max(MAX_VERTICES), z: ZRange.optional() });
+export const FreehandGeometry = z.object({ kind: z.literal('freehand'), points: z.array(Point).min(3, 'an outline needs at least 3 points').max(MAX_VERTICES), z: ZRange.optional() });
 export const RectGeometry = z.object({
   kind: z.literal('rect'),
   x: coord,
   y: coord,
   width: z.number().finite().positive('width must be > 0'),
   height: z.number().finite().positive('height must be > 0'),
+  z: ZRange.optional(),
 });
 export const EllipseGeometry = z.object({
   kind: z.literal('ellipse'),
@@ -31,6 +45,7 @@ export const EllipseGeometry = z.object({
   cy: coord,
   rx: z.number().finite().positive('rx must be > 0'),
   ry: z.number().finite().positive('ry must be > 0'),
+  z: ZRange.optional(),
 });
 /**
  * A cell imported from a label image: `rle` is the run-length code of its mask over the field in row-major
@@ -54,7 +69,35 @@ export const LabelGeometry = z.object({
     }),
 });
 
-export const CellGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry, LabelGeometry]);
+const Runs = z
+  .array(z.number().int().nonnegative())
+  .max(4_000_000)
+  .superRefine((rle, ctx) => {
+    try {
+      checkRuns(rle);
+    } catch (e) {
+      ctx.addIssue({ code: 'custom', message: (e as Error).message });
+    }
+  });
+
+/**
+ * A cell imported from a 3-D label stack: one label value across slices. `z` is the slices it spans (1-based,
+ * inclusive) and `slices[k]` the run-length code (as in `LabelGeometry`, over one plane) of its pixels on slice
+ * z[0] + k, empty where the label skips a slice. Runs measure exactly these voxels (`cellVoxels`).
+ */
+export const Label3dGeometry = z
+  .object({
+    kind: z.literal('label3d'),
+    label: z.number().int().positive(),
+    z: ZRange,
+    slices: z.array(Runs).min(1).max(10_000),
+  });
+
+export const CellGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry, LabelGeometry, Label3dGeometry]).superRefine((g, ctx) => {
+  if (g.kind !== 'label3d') return;
+  const n = g.z[1] - g.z[0] + 1;
+  if (g.slices.length !== n) ctx.addIssue({ code: 'custom', message: `the z range [${g.z[0]}, ${g.z[1]}] covers ${n} slices, but ${g.slices.length === 1 ? 'one slice code was' : `${g.slices.length} slice codes were`} given` });
+});
 export type CellGeometry = z.infer<typeof CellGeometrySchema>;
 /** Geometries a user can draw (label masks only come from an import). */
 export const DrawnGeometrySchema = z.discriminatedUnion('kind', [PolygonGeometry, FreehandGeometry, RectGeometry, EllipseGeometry]);
@@ -124,7 +167,12 @@ export const Cell = z.object({
   source: CellSource,
   /** how the cell was made (rows stored before this was recorded: from `source`, settings unknown) */
   origin: CellOrigin,
+  /** pixels of the cell in one plane (for a 3-D label cell: of its footprint, the union of its slices) */
   pixelCount: z.number().int(),
+  /** the slices the cell covers, 1-based and inclusive ([1, 1] on a single-plane field) */
+  zRange: z.tuple([z.number().int(), z.number().int()]),
+  /** voxels the cell covers when its field is measured in 3D (= pixelCount on a single-plane field) */
+  voxelCount: z.number().int(),
   excluded: z.boolean(),
   exclusionReason: z.string().nullable(),
   createdAt: z.string(),
@@ -207,7 +255,7 @@ export const OutlineGeometry = z.discriminatedUnion('type', [
   z.object({ type: z.literal('Polygon'), coordinates: z.array(Ring) }),
   z.object({ type: z.literal('MultiPolygon'), coordinates: z.array(z.array(Ring)) }),
 ]);
-export const OUTLINE_KINDS = ['polygon', 'freehand', 'rect', 'ellipse', 'label'] as const;
+export const OUTLINE_KINDS = ['polygon', 'freehand', 'rect', 'ellipse', 'label', 'label3d'] as const;
 export const OutlineProperties = z.object({
   name: z.string(),
   /** a background region (for background subtraction), not a cell */
@@ -256,9 +304,13 @@ export function shapeOfGeometry(g: CellGeometry): Shape | null {
     case 'ellipse':
       return { kind: 'ellipse', cx: g.cx, cy: g.cy, rx: g.rx, ry: g.ry };
     case 'label':
+    case 'label3d':
       return null;
   }
 }
+
+/** The run-length codes of a label cell's planes (one for a 2-D label, one per slice for a 3-D one). */
+const planeCodes = (g: CellGeometry): number[][] => (g.kind === 'label' ? [g.rle] : g.kind === 'label3d' ? g.slices : []);
 
 /**
  * Mask (1 = in at least one cell) of the union of cells in a width × height field: the same pixels as the union
@@ -269,14 +321,69 @@ export function cellsMask(geometries: readonly CellGeometry[], width: number, he
   for (const g of geometries) {
     const shape = shapeOfGeometry(g);
     if (shape) rasterizeInto(mask, shape, width, height);
-    else for (const i of decodeRuns((g as { rle: number[] }).rle, width * height)) mask[i] = 1;
+    else for (const rle of planeCodes(g)) for (const i of decodeRuns(rle, width * height)) mask[i] = 1;
   }
   return mask;
 }
 
-/** Linear pixel indices (y·width + x, ascending) of a cell in a width × height field. */
+/**
+ * Linear pixel indices (y·width + x, ascending) of a cell in a width × height field: its pixels in one plane
+ * (a 3-D label cell: its footprint, the union of its slices).
+ */
 export function cellIndices(g: CellGeometry, width: number, height: number): Uint32Array {
   const shape = shapeOfGeometry(g);
   if (shape) return maskToIndices(rasterize(shape, width, height));
-  return decodeRuns((g as { rle: number[] }).rle, width * height);
+  if (g.kind === 'label') return decodeRuns(g.rle, width * height);
+  return maskToIndices(cellsMask([g], width, height));
+}
+
+/** The slices (1-based, inclusive) a cell covers in a field of `sizeZ` slices: its z range, or every slice. */
+export function zRangeOf(g: CellGeometry, sizeZ: number): [number, number] {
+  return 'z' in g && g.z ? [g.z[0], g.z[1]] : [1, Math.max(1, sizeZ)];
+}
+
+/** Throws a RangeError quoting the range when a cell's z range does not fit a field of `sizeZ` slices. */
+export function checkZRange(g: CellGeometry, sizeZ: number): void {
+  if (!('z' in g) || !g.z) return;
+  const [a, b] = g.z;
+  if (b > sizeZ) throw new RangeError(`the z range [${a}, ${b}] goes beyond the field's ${sizeZ} slice${sizeZ === 1 ? '' : 's'}`);
+}
+
+/**
+ * Voxel indices (ascending, z·width·height + y·width + x with z counted from the first measured slice) of a
+ * cell in measured planes `first` .. `first + depth − 1` (0-based slices of the field): a drawn outline on every
+ * measured slice of its z range, a 3-D label cell exactly its voxels there, a 2-D label cell on every slice.
+ */
+export function cellVoxels(g: CellGeometry, width: number, height: number, first = 0, depth = 1): Uint32Array {
+  const plane = width * height;
+  if (g.kind === 'label3d') {
+    const parts: Uint32Array[] = [];
+    let n = 0;
+    for (let z = Math.max(first, g.z[0] - 1); z <= Math.min(first + depth - 1, g.z[1] - 1); z++) {
+      const p = decodeRuns(g.slices[z - (g.z[0] - 1)], plane);
+      const off = (z - first) * plane;
+      for (let k = 0; k < p.length; k++) p[k] += off;
+      parts.push(p);
+      n += p.length;
+    }
+    const out = new Uint32Array(n);
+    n = 0;
+    for (const p of parts) out.set(p, n), (n += p.length);
+    return out;
+  }
+  const inPlane = cellIndices(g, width, height);
+  const [a, b] = zRangeOf(g, first + depth);
+  const from = Math.max(first, a - 1), to = Math.min(first + depth - 1, b - 1);
+  if (from === first && to === first + depth - 1 && depth === 1) return inPlane;
+  return extrudeIndices(inPlane, plane, from - first, to - first);
+}
+
+/**
+ * The slices (1-based, inclusive) and voxels a stored cell covers in a field of `sizeZ` slices measured in 3D:
+ * a drawn or 2-D label cell its `pixelCount` on every slice of its range, a 3-D label cell its own voxels.
+ */
+export function extentOf(g: CellGeometry, pixelCount: number, sizeZ: number): { zRange: [number, number]; voxelCount: number } {
+  const zRange = zRangeOf(g, sizeZ);
+  if (g.kind === 'label3d') return { zRange, voxelCount: g.slices.reduce((n, rle) => n + checkRuns(rle), 0) };
+  return { zRange, voxelCount: pixelCount * Math.max(0, Math.min(zRange[1], Math.max(1, sizeZ)) - zRange[0] + 1) };
 }

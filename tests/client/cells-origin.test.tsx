@@ -19,6 +19,8 @@ const cell = (id: number, origin: CellOrigin, pixelCount: number): Cell => ({
   source: origin.how === 'found' ? 'automatic' : origin.how === 'imported' ? 'label_image' : 'drawn',
   origin,
   pixelCount,
+  zRange: [1, 1],
+  voxelCount: pixelCount,
   excluded: false,
   exclusionReason: null,
   createdAt: '2026-12-02T10:00:00.000Z',

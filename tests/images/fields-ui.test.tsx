@@ -94,14 +94,14 @@ describe('UploadFields', () => {
     const xhr = FakeXHR.last!;
     expect(xhr.method).toBe('POST');
     expect(xhr.url).toBe('/api/coverslips/5/fields');
-    expect(JSON.parse(String(xhr.body!.get('plan')))).toEqual([{ name: 'cs1_488', ch1: { file: 0, channel: 1 }, ch2: { file: 1, channel: 1 } }]);
+    expect(JSON.parse(String(xhr.body!.get('plan')))).toEqual([{ name: 'cs1', ch1: { file: 0, channel: 1 }, ch2: { file: 1, channel: 1 } }]);
     expect((xhr.body!.getAll('files') as File[]).map((f) => f.name)).toEqual(['cs1_488.tif', 'cs1_568.tif']);
     xhr.upload.onprogress!({ lengthComputable: true, loaded: 15, total: 30 });
     await waitFor(() => expect(screen.getByRole('progressbar', { name: 'Upload progress' }).getAttribute('aria-valuenow')).toBe('50'));
     xhr.status = 207;
     xhr.responseText = JSON.stringify({
       results: [
-        { index: 0, name: 'cs1_488', ok: true, field: field({ name: 'cs1_488' }) },
+        { index: 0, name: 'cs1', ok: true, field: field({ name: 'cs1' }) },
         { index: 1, name: 'other', ok: false, status: 422, error: 'channel 2 is 32×32 but channel 1 is 64×48; both channels of a field must have the same size' },
       ],
     });

@@ -23,6 +23,8 @@ const cell = (id: number, over: Partial<Cell> = {}): Cell => ({
   source: 'drawn',
   origin: { how: 'drawn' },
   pixelCount: 50,
+  zRange: [1, 1],
+  voxelCount: 50,
   excluded: false,
   exclusionReason: null,
   createdAt: '2026-12-01T00:00:00Z',

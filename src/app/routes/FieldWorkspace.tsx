@@ -295,7 +295,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               <span className="text-xs text-ink-soft">{plural(state.outlines.filter((o) => o.role === 'cell').length, 'cell')} · {plural(state.outlines.filter((o) => o.role === 'background').length, 'background region')}</span>
             </div>
             <div className="max-h-64 overflow-auto">
-              {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} pixelSizeUm={field.pixelSizeUm} />}
+              {cells.isPending ? <Loading label="Loading cells…" /> : cells.isError ? <ErrorNotice error={cells.error} /> : <CellsPanel outlines={state.outlines} saved={state.saved} selected={state.selected} dispatch={dispatch} canEdit={canEdit} unsaved={sync.pending} pixelSizeUm={field.pixelSizeUm} sizeZ={field.sizeZ} />}
             </div>
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">

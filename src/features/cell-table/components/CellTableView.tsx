@@ -42,7 +42,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
   const [visibility, setVisibility] = useState<VisibilityState>(() => {
     const saved = params.get('cols');
     const vis = saved ? new Set(saved.split(',')) : DEFAULT_VISIBLE;
-    return Object.fromEntries(['condition', 'coverslip', 'field', 'cell', ...NUMERIC_COLUMNS, 'thresholdMethod', 'saturated', 'provisional', 'excluded'].map((k) => [k, vis.has(k)]));
+    return Object.fromEntries(['condition', 'coverslip', 'field', 'cell', 'slices', ...NUMERIC_COLUMNS, 'thresholdMethod', 'saturated', 'provisional', 'excluded'].map((k) => [k, vis.has(k)]));
   });
   const canExclude = grid.data?.canExclude ?? false;
 
@@ -78,6 +78,7 @@ export function CellTableView({ study }: { study: StudyDetail }) {
           {row.original.cell}
         </Link>
       )),
+      text('slices'),
       ...NUMERIC_COLUMNS.map<ColumnDef<GridRow>>((k) => ({
         id: k,
         accessorKey: k,

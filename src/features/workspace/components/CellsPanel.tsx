@@ -1,6 +1,7 @@
 /**
  * The Cells list beside the image: every outline of the field with its pixel count and flags; select with a
- * click or the arrow keys, rename with F2 / Enter / double-click, mark as background, delete.
+ * click or the arrow keys, rename with F2 / Enter / double-click, mark as background, delete. On a stack each
+ * cell also shows the slices it covers and its voxels, and the selected drawn outline's slices can be set.
  */
 import { useEffect, useRef, useState } from 'react';
 import { Badge, cx } from '@/components';
@@ -20,6 +21,7 @@ export function CellsPanel({
   canEdit,
   unsaved,
   pixelSizeUm = null,
+  sizeZ = 1,
 }: {
   outlines: Outline[];
   saved: Record<string, Cell>;
@@ -29,6 +31,8 @@ export function CellsPanel({
   unsaved: Set<string>;
   /** µm per pixel of the field: sizes are also given in µm² when known */
   pixelSizeUm?: number | null;
+  /** slices of the field: on a stack each cell shows its z range and voxels */
+  sizeZ?: number;
 }) {
   const [editing, setEditing] = useState<string | null>(null);
   const list = useRef<HTMLUListElement>(null);
@@ -85,8 +89,13 @@ export function CellsPanel({
                 <span className="block truncate font-medium">{o.name}</span>
                 <span className="block text-xs text-ink-soft" title={originDetail(saved[o.key]?.origin ?? { how: 'drawn' })} data-testid="cell-origin">
                   {px !== null ? `${px.toLocaleString()} px${pixelSizeUm ? ` (${formatAmount(px * pixelSizeUm * pixelSizeUm)} µm²)` : ''}` : 'saving…'} · {originLabel(saved[o.key]?.origin ?? { how: 'drawn' })}
-                  {o.geometry.kind !== 'label' ? ` · ${o.geometry.kind === 'rect' ? 'box' : o.geometry.kind === 'freehand' ? 'trace' : o.geometry.kind}` : ''}
+                  {o.geometry.kind !== 'label' && o.geometry.kind !== 'label3d' ? ` · ${o.geometry.kind === 'rect' ? 'box' : o.geometry.kind === 'freehand' ? 'trace' : o.geometry.kind}` : ''}
                 </span>
+                {sizeZ > 1 && c && !unsaved.has(o.key) && (
+                  <span className="block text-xs text-ink-soft" data-testid="cell-depth">
+                    slices {c.zRange[0]}–{c.zRange[1]} · {c.voxelCount.toLocaleString()} voxels
+                  </span>
+                )}
               </button>
             )}
             <span className="flex shrink-0 items-center gap-1">
@@ -94,6 +103,9 @@ export function CellsPanel({
               {px !== null && px < SMALL_CELL_PIXELS && o.role === 'cell' && <Badge tone="warn">small</Badge>}
               {c?.excluded && <Badge tone="danger">excluded</Badge>}
             </span>
+            {canEdit && isSel && sizeZ > 1 && o.geometry.kind !== 'label' && o.geometry.kind !== 'label3d' && (
+              <SliceRange sizeZ={sizeZ} z={o.geometry.z ?? null} name={o.name} onChange={(z) => dispatch({ type: 'set-z', key: o.key, z })} />
+            )}
             {canEdit && (
               <span className="flex shrink-0 gap-0.5">
                 <WordButton label={`Rename ${o.name}`} onClick={() => setEditing(o.key)}>
@@ -114,6 +126,34 @@ export function CellsPanel({
         );
       })}
     </ul>
+  );
+}
+
+/**
+ * "slices A–B" of the selected outline: two whole numbers from 1 to the field's slice count, applied when both
+ * make a range (A ≤ B); "All" returns to every slice (the default).
+ */
+function SliceRange({ sizeZ, z, name, onChange }: { sizeZ: number; z: [number, number] | null; name: string; onChange: (z: [number, number] | null) => void }) {
+  const [a, setA] = useState(String(z?.[0] ?? 1));
+  const [b, setB] = useState(String(z?.[1] ?? sizeZ));
+  useEffect(() => {
+    setA(String(z?.[0] ?? 1));
+    setB(String(z?.[1] ?? sizeZ));
+  }, [z, sizeZ]);
+  const apply = (sa: string, sb: string) => {
+    const from = Number(sa), to = Number(sb);
+    if (!Number.isInteger(from) || !Number.isInteger(to) || from < 1 || to > sizeZ || from > to) return;
+    onChange(from === 1 && to === sizeZ ? null : [from, to]);
+  };
+  const box = 'w-10 rounded border border-ink/20 px-1 py-0.5 text-xs';
+  return (
+    <span className="flex shrink-0 items-center gap-1 text-xs text-ink-soft" role="group" aria-label={`Slices of ${name}`}>
+      slices
+      <input type="number" className={box} min={1} max={sizeZ} value={a} aria-label={`First slice of ${name}`} onChange={(e) => (setA(e.target.value), apply(e.target.value, b))} onKeyDown={(e) => e.stopPropagation()} />
+      –
+      <input type="number" className={box} min={1} max={sizeZ} value={b} aria-label={`Last slice of ${name}`} onChange={(e) => (setB(e.target.value), apply(a, e.target.value))} onKeyDown={(e) => e.stopPropagation()} />
+      {z && <WordButton label={`All slices for ${name}`} onClick={() => onChange(null)}>All</WordButton>}
+    </span>
   );
 }
 

@@ -451,7 +451,7 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
         <LabelLayer field={field} outlines={outlines} selected={selected} />
         <svg className="absolute inset-0 overflow-visible" width={W} height={H} viewBox={`0 0 ${W} ${H}`}>
           {outlines.map((o) =>
-            o.geometry.kind === 'label' ? null : (
+            o.geometry.kind === 'label' || o.geometry.kind === 'label3d' ? null : (
               <path
                 key={o.key}
                 data-outline={o.key}

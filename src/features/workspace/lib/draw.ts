@@ -58,6 +58,7 @@ export function pathOf(g: CellGeometry): string {
     case 'ellipse':
       return `M${g.cx - g.rx} ${g.cy}A${g.rx} ${g.ry} 0 1 0 ${g.cx + g.rx} ${g.cy}A${g.rx} ${g.ry} 0 1 0 ${g.cx - g.rx} ${g.cy}Z`;
     case 'label':
+    case 'label3d':
       return '';
   }
 }
@@ -77,6 +78,14 @@ export function boundsOf(g: CellGeometry, fieldWidth: number): { x0: number; y0:
       return { x0: g.cx - g.rx, y0: g.cy - g.ry, x1: g.cx + g.rx, y1: g.cy + g.ry };
     case 'label':
       return runsBounds(g.rle, fieldWidth);
+    case 'label3d': {
+      const b = { x0: Infinity, y0: Infinity, x1: -Infinity, y1: -Infinity };
+      for (const rle of g.slices) {
+        const s = runsBounds(rle, fieldWidth);
+        (b.x0 = Math.min(b.x0, s.x0)), (b.y0 = Math.min(b.y0, s.y0)), (b.x1 = Math.max(b.x1, s.x1)), (b.y1 = Math.max(b.y1, s.y1));
+      }
+      return b;
+    }
   }
 }
 

@@ -44,6 +44,8 @@ export type OutlineAction =
   | { type: 'translate'; key: string; dx: number; dy: number; live?: boolean }
   | { type: 'insert-vertex'; key: string; index: number; at: Point }
   | { type: 'remove-vertex'; key: string; index: number }
+  /** the slices (1-based, inclusive) a drawn outline covers in a stack; null = every slice */
+  | { type: 'set-z'; key: string; z: [number, number] | null }
   | { type: 'delete'; key: string }
   | { type: 'undo' }
   | { type: 'redo' }
@@ -82,6 +84,7 @@ export function handlesOf(g: CellGeometry): Point[] {
         [g.cx, g.cy - g.ry],
       ];
     case 'label':
+    case 'label3d':
       return [];
   }
 }
@@ -105,7 +108,7 @@ export function moveHandle(g: CellGeometry, index: number, to: Point): CellGeome
       if (!opp || index < 0 || index > 3) return g;
       const x0 = Math.min(opp[0], to[0]), x1 = Math.max(opp[0], to[0]);
       const y0 = Math.min(opp[1], to[1]), y1 = Math.max(opp[1], to[1]);
-      return { kind: 'rect', x: x0, y: y0, width: Math.max(MIN_SIZE, x1 - x0), height: Math.max(MIN_SIZE, y1 - y0) };
+      return { kind: 'rect', x: x0, y: y0, width: Math.max(MIN_SIZE, x1 - x0), height: Math.max(MIN_SIZE, y1 - y0), ...(g.z ? { z: g.z } : {}) };
     }
     case 'ellipse': {
       if (index === 0 || index === 2) return { ...g, rx: Math.max(MIN_SIZE, Math.abs(to[0] - g.cx)) };
@@ -113,6 +116,7 @@ export function moveHandle(g: CellGeometry, index: number, to: Point): CellGeome
       return g;
     }
     case 'label':
+    case 'label3d':
       return g;
   }
 }
@@ -127,6 +131,7 @@ export function translateGeometry(g: CellGeometry, dx: number, dy: number): Cell
     case 'ellipse':
       return { ...g, cx: g.cx + dx, cy: g.cy + dy };
     case 'label':
+    case 'label3d':
       return g; // label masks are pixel-exact imports; they do not move
   }
 }
@@ -216,6 +221,15 @@ export function outlineReducer(s: OutlineState, a: OutlineAction): OutlineState 
         if ((g.kind !== 'polygon' && g.kind !== 'freehand') || g.points.length <= 3 || a.index < 0 || a.index >= g.points.length) return o;
         return { ...o, geometry: { ...g, points: g.points.filter((_, i) => i !== a.index) } };
       });
+    case 'set-z':
+      return update(s, a.key, (o) => {
+        const g = o.geometry;
+        if (g.kind === 'label' || g.kind === 'label3d') return o;
+        const same = a.z === null ? !g.z : !!g.z && g.z[0] === a.z[0] && g.z[1] === a.z[1];
+        if (same) return o;
+        const { z: _old, ...rest } = g;
+        return { ...o, geometry: a.z === null ? rest : { ...rest, z: a.z } };
+      });
     case 'delete': {
       const next = update(s, a.key, () => null);
       return next === s ? s : { ...next, selected: s.selected === a.key ? null : next.selected };
@@ -256,14 +270,14 @@ export function planSave(s: Pick<OutlineState, 'outlines' | 'saved'>): SaveOp[] 
     inDoc.add(o.key);
     const c = s.saved[o.key];
     if (!c) {
-      if (o.geometry.kind === 'label') continue; // label cells only come from the server
+      if (o.geometry.kind === 'label' || o.geometry.kind === 'label3d') continue; // label cells only come from the server
       ops.push({ op: 'create', key: o.key, body: { name: o.name, role: o.role, geometry: o.geometry } });
       continue;
     }
     const body: Extract<SaveOp, { op: 'update' }>['body'] = {};
     if (o.name !== c.name) body.name = o.name;
     if (o.role !== c.role) body.role = o.role;
-    if (!sameGeometry(o.geometry, c.geometry) && o.geometry.kind !== 'label') body.geometry = o.geometry;
+    if (!sameGeometry(o.geometry, c.geometry) && o.geometry.kind !== 'label' && o.geometry.kind !== 'label3d') body.geometry = o.geometry;
     if (Object.keys(body).length) ops.push({ op: 'update', key: o.key, id: c.id, body });
   }
   for (const [key, c] of Object.entries(s.saved)) if (!inDoc.has(key)) ops.push({ op: 'delete', key, id: c.id });
