@@ -36,8 +36,8 @@ const pct = (f: number) => `${Number((f * 100).toPrecision(3))} %`;
 export function shiftSentence(v: Pick<CalibrationValues, 'dx' | 'dy'>, c: ChannelNames): string {
   if (v.dx === null || v.dy === null) return 'Channel shift not measured: runs using this calibration do not move either channel.';
   if (v.dx === 0 && v.dy === 0) return `${c.channel2} lines up with ${c.channel1}: no shift is applied.`;
-  const parts = [v.dx !== 0 ? `${px(v.dx)} ${v.dx > 0 ? 'right' : 'left'}` : null, v.dy !== 0 ? `${px(v.dy)} ${v.dy > 0 ? 'down' : 'up'}` : null].filter(Boolean);
-  return `${c.channel2} sits ${parts.join(' and ')} of ${c.channel1}; runs move it back before measuring, and drop pixels that would come from outside the image.`;
+  const parts = [v.dx !== 0 ? `${px(v.dx)} to the ${v.dx > 0 ? 'right' : 'left'}` : null, v.dy !== 0 ? `${px(v.dy)} ${v.dy > 0 ? 'down' : 'up'}` : null].filter(Boolean);
+  return `Against ${c.channel1}, ${c.channel2} is shifted ${parts.join(' and ')}; runs move it back before measuring, and drop pixels that would come from outside the image.`;
 }
 
 export function bleedSentence(v: Pick<CalibrationValues, 'a21' | 'a12'>, c: ChannelNames): string {
