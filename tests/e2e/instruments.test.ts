@@ -3,10 +3,11 @@
  * calibration (a channel shift and both bleed-through fractions), submits it and approves it; the instrument
  * list then names the approved version. The person at the microscope (the demo microscopist, who may edit the
  * demo study's fields; facility managers may not) assigns the instrument to a field in the field workspace,
- * and the field's record carries it. Screenshots: test-results/instruments-*.png.
+ * and the field's record carries it; an upload names it for its new field. Screenshots: test-results/instruments-*.png.
  */
 import { expect, it } from 'vitest';
 import { apiSession, serverAndBrowser, shot, signIn } from './harness.js';
+import { tiffPages, twoChannels } from '../security/tiff.js';
 
 const e2e = serverAndBrowser();
 let instrumentId = 0;
@@ -78,6 +79,39 @@ it('the microscopist assigns the instrument to a field in its workspace', async 
   // back to none
   await picker.selectOption({ label: 'None recorded' });
   await expect.poll(async () => (await mic(`/fields/${field.id}`)).body.instrumentId, { timeout: 10_000 }).toBeNull();
+  expect(page.errors).toEqual([]);
+  await page.context().close();
+});
+
+it('an upload records the instrument chosen in the dialog on its new field', async () => {
+  const mic = await apiSession(e2e.srv, 'microscopist@demo.test');
+  const study = ((await mic('/studies')).body.studies as { id: number; isDemo: boolean }[]).find((s) => s.isDemo)!;
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
+  await page.goto(`${e2e.srv.url}/studies/${study.id}`);
+  await page.getByRole('button', { name: 'Add fields…' }).first().click();
+  const dialog = page.getByRole('dialog', { name: 'Add fields to this coverslip' });
+  await dialog.getByLabel('Each channel is its own file (pairs)').check();
+  const picker = dialog.getByLabel('Recorded on');
+  await expect.poll(() => picker.isEnabled(), { timeout: 10_000 }).toBe(true);
+  await picker.selectOption({ label: 'Confocal room 2 · 63× / 1.4 oil' });
+  const [a, b] = twoChannels(96, 80);
+  const files = [
+    { name: 'beads7_ch1.tif', bytes: [...tiffPages(96, 80, [a])] },
+    { name: 'beads7_ch2.tif', bytes: [...tiffPages(96, 80, [b])] },
+  ];
+  await dialog.getByTestId('upload-drop').evaluate((el, files) => {
+    const dt = new DataTransfer();
+    for (const f of files) dt.items.add(new File([new Uint8Array(f.bytes)], f.name, { type: 'image/tiff' }));
+    el.dispatchEvent(new DragEvent('dragover', { dataTransfer: dt, bubbles: true, cancelable: true }));
+    el.dispatchEvent(new DragEvent('drop', { dataTransfer: dt, bubbles: true, cancelable: true }));
+  }, files);
+  await dialog.getByText('Channel 2 file: beads7_ch2.tif').waitFor();
+  await shot(page, 'instruments-05-upload');
+  await dialog.getByRole('button', { name: /^Upload/ }).click();
+  await dialog.getByRole('list', { name: 'Upload results' }).getByText('beads7', { exact: true }).waitFor({ timeout: 60_000 });
+  const made = ((await mic(`/studies/${study.id}/fields`)).body.fields as { name: string; instrumentId: number | null }[]).find((f) => f.name === 'beads7')!;
+  expect(made.instrumentId).toBe(instrumentId);
   expect(page.errors).toEqual([]);
   await page.context().close();
 });
