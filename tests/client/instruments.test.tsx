@@ -59,6 +59,12 @@ describe('an instrument page', () => {
     expect(calls.find((c) => c.method === 'PATCH')!.body).toEqual({ dx: -1.5, dy: 2, a21: null, a12: null, note: '' });
   });
 
+  it('an unknown instrument is a page that is not there', async () => {
+    mockApi(asUser(demoUser(['facility_manager'])), on('GET', '/instruments/99', () => ({ status: 404, body: { error: 'no instrument with id 99' } })));
+    renderRoutes([{ path: '/instruments/:instrumentId', Component: Instrument }], '/instruments/99');
+    expect(await screen.findByRole('heading', { name: 'Nothing here' })).toBeTruthy();
+  });
+
   it('the Instruments pages are not for other roles', async () => {
     mockApi(asUser(demoUser(['microscopist'])));
     renderRoutes([{ path: '/instruments', Component: Instruments }], '/instruments');

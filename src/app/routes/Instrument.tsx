@@ -6,6 +6,7 @@ import { useParams, useSearchParams } from 'react-router';
 import { Button, Card, ErrorNotice, Loading, PageHeader } from '@/components';
 import { useMe } from '@/features/auth';
 import { CalibrationPanel, CalibrationVersions, useCreateCalibration, useInstrument } from '@/features/instruments';
+import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 
 const trail = [{ to: '/instruments', label: 'Instruments' }];
@@ -19,7 +20,7 @@ export function Component() {
   if (!me.data) return <Loading />;
   if (!me.data.roles.includes('facility_manager')) return <NotFound />;
   if (q.isPending) return <Loading />;
-  if (q.isError) return <ErrorNotice error={q.error} />;
+  if (q.isError) return q.error instanceof ApiError && q.error.status === 404 ? <NotFound /> : <ErrorNotice error={q.error} />;
   const i = q.data;
   const asked = Number(params.get('calibration'));
   const selected = i.calibrations.find((c) => c.id === asked)?.id ?? i.calibrations[0]?.id ?? null;
