@@ -1,6 +1,7 @@
 /**
  * Route module: one instrument (/instruments/:instrumentId): its calibration versions, newest first, and the
- * chosen one (?calibration=<id>, else the newest) with its values, life cycle and history.
+ * chosen one (?calibration=<id>, else the newest) with its values, life cycle and history. A new version starts
+ * from the latest one's values; while a draft (or returned version) is open, the page offers it instead.
  */
 import { useParams, useSearchParams } from 'react-router';
 import { Button, Card, ErrorNotice, Loading, PageHeader } from '@/components';
@@ -38,9 +39,13 @@ export function Component() {
           </>
         }
         actions={
-          <Button variant={openDraft ? 'secondary' : 'primary'} pending={create.isPending} onClick={() => create.mutate({}, { onSuccess: (c) => select(c.id) })}>
-            New calibration version
-          </Button>
+          openDraft ? (
+            openDraft.id !== selected && <Button onClick={() => select(openDraft.id)}>Open draft v{openDraft.version}</Button>
+          ) : (
+            <Button variant="primary" pending={create.isPending} onClick={() => create.mutate({}, { onSuccess: (c) => select(c.id) })}>
+              New calibration version
+            </Button>
+          )
         }
       />
       <ErrorNotice error={create.error} />
