@@ -18,6 +18,7 @@ const NAV: { to: string; label: string; roles?: Role[] }[] = [
   { to: '/people', label: 'People & labs', roles: ['facility_manager'] },
   { to: '/outbox', label: 'Outbox', roles: ['facility_manager'] },
   { to: '/usage', label: 'Facility usage', roles: ['facility_manager'] },
+  { to: '/instruments', label: 'Instruments', roles: ['facility_manager'] },
   { to: '/account', label: 'Account' },
   { to: '/api-reference', label: 'API reference' },
 ];

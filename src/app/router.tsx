@@ -31,6 +31,8 @@ export const router = createBrowserRouter([
       { path: 'people', lazy: lazy(() => import('./routes/People')) },
       { path: 'outbox', lazy: lazy(() => import('./routes/Outbox')) },
       { path: 'usage', lazy: lazy(() => import('./routes/Usage')) },
+      { path: 'instruments', lazy: lazy(() => import('./routes/Instruments')) },
+      { path: 'instruments/:instrumentId', lazy: lazy(() => import('./routes/Instrument')) },
       { path: 'api-reference', lazy: lazy(() => import('./routes/ApiReference')) },
       { path: '*', lazy: lazy(() => import('./routes/NotFound')) },
     ],

@@ -22,7 +22,7 @@ const navNames = async () => {
 
 describe('Shell navigation by role', () => {
   const cases: [Role, string[]][] = [
-    ['facility_manager', ['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Facility usage', 'Account', 'API reference']],
+    ['facility_manager', ['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Facility usage', 'Instruments', 'Account', 'API reference']],
     ['microscopist', ['Home', 'Studies', 'Recipes', 'Runs', 'Account', 'API reference']],
     ['biologist', ['Home', 'Studies', 'Recipes', 'Runs', 'Account', 'API reference']],
     ['collaborator', ['Home', 'Studies', 'Account', 'API reference']],

@@ -3,9 +3,10 @@
  * on the seeded demo, and no screen may have a serious or critical violation. Screens: signed out (sign-in, a
  * dead invitation link, a shared report and a dead share link), then each demo role's screens of the main
  * navigation and the study pages it can reach (study, field workspace, Cell table, Compare, Reports, a frozen
- * report, recipe editor), and the dialogs met on the way (workspace keys and find cells, upload, share, new
- * report). The structure rules region, landmark-one-main, heading-order, empty-table-header,
- * page-has-heading-one and landmark-unique are held as well. Screenshots: test-results/a11y-<role>-<screen>.png.
+ * report, recipe editor, an instrument with its calibrations), and the dialogs met on the way (workspace keys
+ * and find cells, upload, share, new report, record an instrument). The structure rules region,
+ * landmark-one-main, heading-order, empty-table-header, page-has-heading-one and landmark-unique are held as
+ * well. Screenshots: test-results/a11y-<role>-<screen>.png.
  * Rule levels are axe-core's own impact ratings (axe-core 4.14 documentation).
  */
 import { createRequire } from 'node:module';
@@ -68,7 +69,7 @@ const report = () =>
     .map(([screen, vs]) => `${screen}:\n${vs.map((v) => `  [${v.impact}] ${v.id}: ${v.help}\n${v.nodes.map((n) => `      ${n}`).join('\n')}`).join('\n')}`)
     .join('\n');
 
-let demo = { studyId: 0, fieldId: 0, reportId: 0, recipeId: 0, shareLink: '' };
+let demo = { studyId: 0, fieldId: 0, reportId: 0, recipeId: 0, shareLink: '', instrumentId: 0 };
 
 it('prepares a frozen report and a share link on the demo study', async () => {
   const bio = await apiSession(e2e.srv, 'biologist@demo.test');
@@ -85,7 +86,13 @@ it('prepares a frozen report and a share link on the demo study', async () => {
   const msg = msgs.find((m) => m.to.includes('reader@example.org'))!;
   const text = (await mgr(`/outbox/${msg.id}`)).body.text as string;
   const recipes = (await mgr('/recipes')).body.recipes as { id: number }[];
-  demo = { studyId: study.id, fieldId: fields[0].id, reportId, recipeId: recipes[0].id, shareLink: new URL(/(https?:\/\/\S+\/shared\/[A-Za-z0-9_.-]+)/.exec(text)![1]).pathname };
+  // an instrument with an approved calibration (v1) and a draft after it (v2), shown on the Instruments screens
+  const inst = await mgr('/instruments', { method: 'POST', body: JSON.stringify({ name: 'Accessibility stand', objective: '40× / 1.3 oil', channel1: 'GFP', channel2: 'mCherry' }) });
+  expect(inst.status, JSON.stringify(inst.body)).toBe(201);
+  const v1 = await mgr(`/instruments/${inst.body.id}/calibrations`, { method: 'POST', body: JSON.stringify({ dx: 0.4, dy: -1.1, a21: 0.05, a12: 0.01 }) });
+  for (const step of ['submit', 'approve']) expect((await mgr(`/calibrations/${v1.body.id}/${step}`, { method: 'POST', body: '{}' })).status).toBe(200);
+  expect((await mgr(`/instruments/${inst.body.id}/calibrations`, { method: 'POST', body: '{}' })).status).toBe(201);
+  demo = { studyId: study.id, fieldId: fields[0].id, reportId, recipeId: recipes[0].id, shareLink: new URL(/(https?:\/\/\S+\/shared\/[A-Za-z0-9_.-]+)/.exec(text)![1]).pathname, instrumentId: inst.body.id };
 });
 
 it('signed out: sign-in, a dead invitation, a shared report, a dead share link', async () => {
@@ -108,6 +115,8 @@ const roleScreens: Record<string, () => [string, string, ((p: TrackedPage) => Pr
     ['runs', '/runs'],
     ['people', '/people'],
     ['outbox', '/outbox'],
+    ['instruments', '/instruments'],
+    ['instrument', `/instruments/${demo.instrumentId}`, (p) => p.getByRole('heading', { name: 'Calibration v2' }).waitFor()],
     ['account', '/account'],
     ['not-found', '/no-such-page'],
   ],
@@ -140,6 +149,7 @@ const roleScreens: Record<string, () => [string, string, ((p: TrackedPage) => Pr
 
 /** dialogs, each opened on its screen: [label, path, open it] */
 const roleDialogs: Record<string, () => [string, string, (p: TrackedPage) => Promise<unknown>][]> = {
+  manager: () => [['instruments-record', '/instruments', (p) => p.getByRole('button', { name: 'Record an instrument' }).click()]],
   microscopist: () => [
     ['workspace-keys', `/studies/${demo.studyId}/fields/${demo.fieldId}`, async (p) => (await p.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 }), await p.keyboard.press('?'))],
     ['workspace-find-cells', `/studies/${demo.studyId}/fields/${demo.fieldId}`, (p) => p.getByRole('button', { name: 'Find cells…' }).click()],

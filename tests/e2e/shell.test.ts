@@ -18,7 +18,7 @@ describe('demo accounts in the browser', () => {
   it('facility manager: review queue, people, outbox', async () => {
     const page = await e2e.page();
     await signIn(page, e2e.srv, 'manager@demo.test');
-    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Facility usage', 'Account', 'API reference']);
+    expect(await navOf(page)).toEqual(['Home', 'Studies', 'Recipes', 'Review queue', 'Runs', 'People & labs', 'Outbox', 'Facility usage', 'Instruments', 'Account', 'API reference']);
     await page.getByRole('heading', { name: 'Facility', exact: true }).waitFor();
     await page.getByText('Recipes waiting for review').waitFor();
     await shot(page, 'shell-manager-home');

@@ -8,7 +8,7 @@
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { useParams } from 'react-router';
 import { Button, Caution, ErrorNotice, Loading, PageHeader } from '@/components';
-import { useField } from '@/features/fields';
+import { FieldInstrument, useField } from '@/features/fields';
 import { useStudy } from '@/features/studies';
 import { useCells } from '@/features/workspace';
 import { useFieldPixels } from '@/features/fields';
@@ -341,6 +341,14 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               pairDistancePx={pairDistancePx}
             />
           </section>
+          {canEdit && (
+            <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-instrument-heading">
+              <h2 id="field-instrument-heading" className="mb-1 text-base font-semibold">
+                Instrument
+              </h2>
+              <FieldInstrument fieldId={fieldId} instrumentId={field.instrumentId} />
+            </section>
+          )}
           <div className="space-y-2" aria-label="Cautions">
             {(field.saturated || regionSaturated) && (
               <Caution title="Saturated pixels present">

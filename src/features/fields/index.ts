@@ -4,3 +4,5 @@ export { useFieldPixels } from './api/useFieldPixels';
 export { FieldList } from './components/FieldList';
 export { UploadFields } from './components/UploadFields';
 export { fieldPreviewUrl } from './api/fieldPreviewUrl';
+export { FieldInstrument } from './components/FieldInstrument';
+export { useSetFieldInstrument } from './api/useSetFieldInstrument';

@@ -4,6 +4,7 @@
  * can be chosen or dropped onto the dialog; a pair is named after both of its files until a name is typed.
  */
 import { useId, useMemo, useState } from 'react';
+import { InstrumentPicker } from '@/features/instruments';
 import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
@@ -81,6 +82,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
   const [multi, setMulti] = useState<MultiRow[]>([]);
   const [pairs, setPairs] = useState<PairRow[]>([{ id: nextId++, file1: null, file2: null, name: '' }]);
   const [formError, setFormError] = useState<string | null>(null);
+  const [instrumentId, setInstrumentId] = useState<number | null>(null);
   const { state, upload, cancel, reset } = useUploadFields(coverslipId);
   const busy = state.phase === 'uploading' || state.phase === 'processing';
   const modeName = useId();
@@ -131,7 +133,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
       if (multi.length === 0) return setFormError('choose at least one file');
       for (const r of multi) {
         if (r.ch1 === r.ch2) return setFormError(`"${r.file.name}": channel 1 and channel 2 must be different channels`);
-        plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file), channel: r.ch1 }, ch2: { file: idx(r.file), channel: r.ch2 } });
+        plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file), channel: r.ch1 }, ch2: { file: idx(r.file), channel: r.ch2 }, instrumentId });
       }
     } else {
       const rows = pairs.filter((r) => r.file1 || r.file2);
@@ -139,7 +141,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
       for (const [i, r] of rows.entries()) {
         if (!r.file1 || !r.file2) return setFormError(`pair ${i + 1} needs both a channel 1 and a channel 2 file`);
         if (!r.name.trim()) return setFormError(`pair ${i + 1} needs a field name`);
-        plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 } });
+        plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 }, instrumentId });
       }
     }
     await upload(files, plan);
@@ -210,6 +212,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
               Each channel is its own file (pairs)
             </label>
           </fieldset>
+          <InstrumentPicker label="Recorded on" value={instrumentId} onChange={setInstrumentId} disabled={busy} />
 
           <p className="text-xs text-ink-soft">{dropping ? 'Drop the files to add them.' : 'Drop TIFF files anywhere on this dialog, or choose them below.'}</p>
           {mode === 'multi' ? (
