@@ -111,6 +111,12 @@ export const OPERATIONS: Record<string, Operation> = {
     body: N(sampleSheet, 'SampleSheetCheckRequest'),
     response: N(sampleSheet, 'SampleSheetCheckResponse'),
   },
+  'POST /api/studies/:id/sample-sheet/apply': {
+    summary: "Apply a sample sheet that checks clean: create the conditions and coverslips it names, answer the uploads still to send",
+    query: null,
+    body: N(sampleSheet, 'SampleSheetCheckRequest'),
+    response: N(sampleSheet, 'SampleSheetApplyResponse'),
+  },
   'POST /api/coverslips/:id/fields': {
     summary: 'Upload TIFF files as fields of a coverslip',
     query: null,

@@ -61,6 +61,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
 
   // sample-sheet.ts
   'POST /api/studies/:id/sample-sheet/check': { study: 'edit_images' },
+  'POST /api/studies/:id/sample-sheet/apply': { study: 'edit_images' },
 
   // fields.ts
   'POST /api/coverslips/:id/fields': { study: 'edit_images' },

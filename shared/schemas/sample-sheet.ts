@@ -9,6 +9,7 @@
  * instrument's name; empty: none).
  */
 import { z } from 'zod';
+import { UploadFieldPlan } from './fields.js';
 
 export const SAMPLE_SHEET_COLUMNS = ['file', 'file2', 'condition', 'coverslip', 'ch1', 'ch2', 'name', 'pixel_size_um', 'instrument'] as const;
 export const SAMPLE_SHEET_REQUIRED = ['file', 'condition', 'coverslip'] as const;
@@ -54,5 +55,28 @@ export const SampleSheetCheckResponse = z.object({
   creates: z.object({ conditions: z.array(z.string()), coverslips: z.array(z.string()) }),
   /** file names of the sheet whose content (by the SHA-256 sent) is already stored: they need not be sent again */
   alreadyStored: z.array(z.string()),
+  /** lines whose field is already on its coverslip (same files by SHA-256, same channels): not uploaded again */
+  uploaded: z.array(z.number().int()),
 });
 export type SampleSheetCheckResponse = z.infer<typeof SampleSheetCheckResponse>;
+
+/** One upload the client sends to POST /api/coverslips/:id/fields: the files in form order and the plan. */
+export const SampleSheetUpload = z.object({
+  coverslipId: z.number().int(),
+  /** the sheet's file names, in the order they go into the form part "files" */
+  files: z.array(z.string()),
+  /** the upload plan (shared/schemas/fields.ts UploadPlan), `file` indexing `files` */
+  plan: z.array(UploadFieldPlan),
+  /** the sheet line of each plan entry */
+  lines: z.array(z.number().int()),
+});
+export type SampleSheetUpload = z.infer<typeof SampleSheetUpload>;
+
+/** POST /api/studies/:id/sample-sheet/apply: what was created, and the uploads still to send. */
+export const SampleSheetApplyResponse = z.object({
+  created: z.object({ conditions: z.array(z.string()), coverslips: z.array(z.string()) }),
+  uploads: z.array(SampleSheetUpload),
+  /** lines already uploaded (left out of `uploads`) */
+  uploaded: z.array(z.number().int()),
+});
+export type SampleSheetApplyResponse = z.infer<typeof SampleSheetApplyResponse>;

@@ -7,9 +7,11 @@ import crypto from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { writeTiffU16 } from '../images/tiffwrite.js';
-import { SampleSheetCheckResponse } from '../../shared/schemas/sample-sheet.js';
+import { SampleSheetApplyResponse, SampleSheetCheckResponse } from '../../shared/schemas/sample-sheet.js';
 import { conditions, coverslips, fields, instruments } from '../../server/db/schema.js';
 import { parseCsvRecords } from '../../shared/format/csv.js';
+import { UploadResponse } from '../../shared/schemas/fields.js';
+import { eq } from 'drizzle-orm';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -104,5 +106,45 @@ describe('sample sheet check', () => {
     expect(b.body.error).toMatch(/unknown column\(s\) "colour"/);
     const out = await (await t.login('outsider')).post(`/api/studies/${t.world.studyA}/sample-sheet/check`).send({ csv: 'file,condition,coverslip\na,b,c\n' });
     expect(out.status).toBe(404);
+  });
+
+  it('apply: a bad sheet creates nothing (422 naming the line); a clean one creates what it names, uploads by plan, and resumes', async () => {
+    const owner = await t.login('biologist');
+    const before = counts();
+    const bad = await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/apply`).send({ csv: 'file,condition,coverslip,ch1\na.tif,newcond,CSx,zero\n' });
+    expect(bad.status).toBe(422);
+    expect(bad.body.error).toMatch(/line 2: ch1 must be a channel number from 1, got "zero"/);
+    expect(counts()).toEqual(before);
+
+    const W = 8;
+    const page = (k: number) => Uint16Array.from({ length: W * W }, (_, i) => (i * k) % 4096);
+    const gfp = writeTiffU16([page(3)], W, W), rfp = writeTiffU16([page(7)], W, W), two = writeTiffU16([page(5), page(11)], W, W);
+    const bytes: Record<string, Buffer> = { 'g.tif': gfp, 'r.tif': rfp, 'two.tif': two };
+    const files = Object.entries(bytes).map(([name, b]) => ({ name, sha256: crypto.createHash('sha256').update(b).digest('hex') }));
+    const csv = 'file,file2,condition,coverslip,name,pixel_size_um\ng.tif,r.tif,sheet cond,S1,pair,0.25\ntwo.tif,,sheet cond,S1,both,\n';
+    const applied = SampleSheetApplyResponse.parse((await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/apply`).send({ csv, files })).body);
+    expect(applied.created).toEqual({ conditions: ['sheet cond'], coverslips: ['sheet cond / S1'] });
+    expect(applied.uploads).toHaveLength(1);
+    const u = applied.uploads[0];
+    expect(u.files).toEqual(['g.tif', 'r.tif', 'two.tif']);
+    expect(u.lines).toEqual([2, 3]);
+    // only the first field is sent: the connection "drops" before the second
+    const first = await owner.post(`/api/coverslips/${u.coverslipId}/fields`).attach('files', gfp, 'g.tif').attach('files', rfp, 'r.tif').field('plan', JSON.stringify([u.plan[0]]));
+    expect(first.status, JSON.stringify(first.body)).toBe(201);
+    const stored = UploadResponse.parse(first.body).results[0];
+    expect(stored.ok && stored.field.pixelSizeUm).toBe(0.25);
+    // resume: the same sheet again creates nothing and leaves out line 2
+    const again = SampleSheetApplyResponse.parse((await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/apply`).send({ csv, files })).body);
+    expect(again.created).toEqual({ conditions: [], coverslips: [] });
+    expect(again.uploaded).toEqual([2]);
+    expect(again.uploads.map((x) => x.lines)).toEqual([[3]]);
+    const rest = again.uploads[0];
+    expect(rest.files).toEqual(['two.tif']);
+    const second = await owner.post(`/api/coverslips/${rest.coverslipId}/fields`).attach('files', two, 'two.tif').field('plan', JSON.stringify(rest.plan));
+    expect(second.status, JSON.stringify(second.body)).toBe(201);
+    const onSlip = t.ctx.db.select().from(fields).where(eq(fields.coverslipId, u.coverslipId)).all();
+    expect(onSlip.map((f) => f.name).sort()).toEqual(['both', 'pair']);
+    const done = SampleSheetCheckResponse.parse((await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/check`).send({ csv, files })).body);
+    expect(done.uploaded).toEqual([2, 3]);
   });
 });
