@@ -25,6 +25,7 @@ import tokensRoutes from './routes/tokens.js';
 import apiReferenceRoutes from './routes/api-reference.js';
 import notificationsRoutes from './routes/notifications.js';
 import usageRoutes from './routes/usage.js';
+import sampleSheetRoutes from './routes/sample-sheet.js';
 
 const DEFAULT_CLIENT_DIR = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../dist/client');
 
@@ -59,7 +60,7 @@ export function createApp(ctx: AppContext) {
     res.json({ ok: true });
   });
   const api = express.Router();
-  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, instrumentsRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes, notificationsRoutes, usageRoutes]) {
+  for (const r of [authRoutes, peopleRoutes, studiesRoutes, fieldsRoutes, cellsRoutes, recipesRoutes, instrumentsRoutes, runsRoutes, cellTableRoutes, compareRoutes, reportsRoutes, sharesRoutes, outboxRoutes, tokensRoutes, apiReferenceRoutes, notificationsRoutes, usageRoutes, sampleSheetRoutes]) {
     api.use(r(ctx));
   }
   app.use('/api', api);

@@ -19,6 +19,7 @@ import * as people from '../../shared/schemas/people.js';
 import * as recipes from '../../shared/schemas/recipes.js';
 import * as reports from '../../shared/schemas/reports.js';
 import * as runs from '../../shared/schemas/runs.js';
+import * as sampleSheet from '../../shared/schemas/sample-sheet.js';
 import * as shares from '../../shared/schemas/shares.js';
 import * as studies from '../../shared/schemas/studies.js';
 import * as tokens from '../../shared/schemas/tokens.js';
@@ -104,6 +105,18 @@ export const OPERATIONS: Record<string, Operation> = {
   'DELETE /api/coverslips/:id': { summary: 'Delete a coverslip', query: null, body: null, response: N(studies, 'StudyDetail') },
   'POST /api/studies/:studyId/reorder': { summary: 'Reorder conditions and coverslips', query: null, body: N(studies, 'ReorderRequest'), response: N(studies, 'StudyDetail') },
 
+  'POST /api/studies/:id/sample-sheet/check': {
+    summary: 'Check a sample sheet (CSV) against a study before sending its files; stores nothing',
+    query: null,
+    body: N(sampleSheet, 'SampleSheetCheckRequest'),
+    response: N(sampleSheet, 'SampleSheetCheckResponse'),
+  },
+  'POST /api/studies/:id/sample-sheet/apply': {
+    summary: "Apply a sample sheet that checks clean: create the conditions and coverslips it names, answer the uploads still to send",
+    query: null,
+    body: N(sampleSheet, 'SampleSheetCheckRequest'),
+    response: N(sampleSheet, 'SampleSheetApplyResponse'),
+  },
   'POST /api/coverslips/:id/fields': {
     summary: 'Upload TIFF files as fields of a coverslip',
     query: null,

@@ -59,6 +59,10 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'DELETE /api/coverslips/:id': { study: 'edit_structure' },
   'POST /api/studies/:studyId/reorder': { study: 'edit_structure' },
 
+  // sample-sheet.ts
+  'POST /api/studies/:id/sample-sheet/check': { study: 'edit_images' },
+  'POST /api/studies/:id/sample-sheet/apply': { study: 'edit_images' },
+
   // fields.ts
   'POST /api/coverslips/:id/fields': { study: 'edit_images' },
   'GET /api/coverslips/:id/fields': { study: 'read' },

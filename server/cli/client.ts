@@ -12,6 +12,7 @@
  * or failed, a run that failed or partly failed) with one line. Requests and answers are checked with the
  * shared schemas. A contract: command and option names and exit codes stay as they are.
  */
+import { parseCsv } from '../../shared/format/csv.js';
 import fs from 'node:fs';
 import path from 'node:path';
 import { parseArgs } from 'node:util';
@@ -111,27 +112,6 @@ class Api {
     if (!parsed.success) throw new Failure(`${method} ${p}: unexpected answer (${parsed.error.issues[0].path.join('.')}: ${parsed.error.issues[0].message})`);
     return { res, data: parsed.data };
   }
-}
-
-/** RFC 4180 rows of a CSV text (quoted fields, doubled quotes, CRLF or LF). */
-export function parseCsv(text: string): string[][] {
-  const rows: string[][] = [];
-  let row: string[] = [], f = '', q = false;
-  for (let i = 0; i < text.length; i++) {
-    const ch = text[i];
-    if (q) {
-      if (ch === '"' && text[i + 1] === '"') (f += '"'), i++;
-      else if (ch === '"') q = false;
-      else f += ch;
-    } else if (ch === '"') q = true;
-    else if (ch === ',') row.push(f), (f = '');
-    else if (ch === '\n' || ch === '\r') {
-      if (ch === '\r' && text[i + 1] === '\n') i++;
-      row.push(f), rows.push(row), (row = []), (f = '');
-    } else f += ch;
-  }
-  if (f !== '' || row.length) row.push(f), rows.push(row);
-  return rows.filter((r) => r.some((c) => c.trim() !== ''));
 }
 
 interface SheetRow {

@@ -253,6 +253,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 userId: req.user!.id,
                 name,
                 instrumentId: p.instrumentId ?? null,
+                pixelSizeUm: p.pixelSizeUm ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
                   { path: f2.path, originalName: f2.originalname, channel: p.ch2.channel, sha256: f2.sha256 },

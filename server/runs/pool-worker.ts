@@ -1,6 +1,7 @@
 /**
- * Piscina worker thread of the in-process run pool: computes one field job (reads its files from the file
- * store, decodes, measures) and returns the result. Stateless: no database here.
+ * Piscina worker thread of the in-process run pool: computes a batch of field jobs one after another (reads
+ * each field's files from the file store, decodes, measures) and returns their results in the same order.
+ * Stateless: no database here. A batch is one hand-off each way, however many fields it holds.
  * Only static imports in this graph: under `--import tsx` the thread loads it through the CommonJS hook,
  * where a dynamic import() would miss tsx's .js → .ts resolution.
  */
@@ -23,7 +24,9 @@ if (process.platform === 'linux') {
   }
 }
 
-export default async function computeFieldTask(job: FieldJob): Promise<FieldJobResult> {
+export default async function computeFieldBatch(jobs: FieldJob[]): Promise<FieldJobResult[]> {
   store ??= createFileStore(workerData as FileStoreSettings);
-  return runFieldJob(store, job);
+  const out: FieldJobResult[] = [];
+  for (const job of jobs) out.push(await runFieldJob(store, job));
+  return out;
 }

@@ -1,19 +1,34 @@
 /**
  * The default run queue: an in-process pool of worker threads (piscina). The database is the queue: the
- * scheduler hands at most `WORKERS` queued fields to the threads at a time, marks each running, and writes
- * each result in one transaction. After a restart `resume()` re-queues what was left running.
+ * scheduler hands queued fields to the threads in batches (one hand-off per batch, the batch's fields marked
+ * running in one transaction) and writes each batch's results in one transaction. Two batches per thread are
+ * in flight, so a thread computes the next batch while this thread writes the last one. After a restart
+ * `resume()` re-queues what was left running.
  */
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Piscina } from 'piscina';
 import type { Db } from '../db/client.js';
 import type { FileStoreSettings, RunQueue, RunQueueSettings } from '../services.js';
-import type { FieldJobResult } from './job.js';
-import { buildJob, fieldName, markFieldStarted, queuedFieldsOf, recordFieldResult, refreshRun, unfinishedWork } from './records.js';
+import type { FieldJob, FieldJobResult } from './job.js';
+import { buildJob, fieldName, markFieldsStarted, queuedFieldsOf, recordFieldResults, refreshRun, unfinishedWork } from './records.js';
 
 const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'pool-worker.ts');
 
 /** The store settings handed to each worker thread (structured-cloned, so only these fields). */
+/** At most this many fields per hand-off (progress advances per batch, so batches stay small). */
+export const MAX_BATCH = 8;
+/** Batches in flight per thread: one computing, one waiting in the thread's queue. */
+const BATCHES_PER_THREAD = 2;
+
+/**
+ * How many of `pending` queued fields the next batch takes: enough that every thread gets about four batches
+ * of what is pending (so the threads share the work evenly to the end), 1 to MAX_BATCH.
+ */
+export function batchSize(pending: number, workers: number): number {
+  return Math.max(1, Math.min(MAX_BATCH, Math.ceil(pending / (workers * 4))));
+}
+
 export function storeSettingsOf(s: FileStoreSettings): FileStoreSettings {
   return { DATA_DIR: s.DATA_DIR, STORE_URL: s.STORE_URL, S3_ENDPOINT: s.S3_ENDPOINT };
 }
@@ -23,6 +38,7 @@ export class PoolRunQueue implements RunQueue {
   private pool: Piscina;
   private pending: { runId: number; fieldId: number }[] = [];
   private inFlight = new Set<string>();
+  private batchesInFlight = 0;
   private closed = false;
   private idleWaiters: (() => void)[] = [];
 
@@ -68,41 +84,47 @@ export class PoolRunQueue implements RunQueue {
   }
 
   private pump() {
-    while (!this.closed && this.inFlight.size < this.workers && this.pending.length) {
-      const w = this.pending.shift()!;
-      const k = `${w.runId}:${w.fieldId}`;
-      let job;
-      try {
-        job = buildJob(this.db, w.runId, w.fieldId);
-      } catch (e) {
-        this.record({ runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
-        continue;
+    while (!this.closed && this.batchesInFlight < this.workers * BATCHES_PER_THREAD && this.pending.length) {
+      const take = this.pending.splice(0, batchSize(this.pending.length, this.workers));
+      const jobs: FieldJob[] = [];
+      const refused: FieldJobResult[] = [];
+      for (const w of take) {
+        try {
+          jobs.push(buildJob(this.db, w.runId, w.fieldId));
+        } catch (e) {
+          refused.push({ runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
+        }
       }
-      markFieldStarted(this.db, w.runId, w.fieldId, fieldName(this.db, w.fieldId));
-      this.inFlight.add(k);
+      if (refused.length) this.record(refused);
+      if (!jobs.length) continue;
+      markFieldsStarted(this.db, jobs.map((j) => ({ runId: j.runId, fieldId: j.fieldId, fieldName: fieldName(this.db, j.fieldId) })));
+      const keys = jobs.map((j) => `${j.runId}:${j.fieldId}`);
+      for (const k of keys) this.inFlight.add(k);
+      this.batchesInFlight++;
       this.pool
-        .run(job)
+        .run(jobs)
         .then(
-          (res: FieldJobResult) => this.record(res),
+          (res: FieldJobResult[]) => this.record(res),
           (e: unknown) => {
-            if (!this.closed) this.record({ runId: w.runId, fieldId: w.fieldId, ok: false, error: `worker failed: ${(e as Error)?.message ?? String(e)}`, ms: 0 });
+            if (!this.closed) this.record(jobs.map((j) => ({ runId: j.runId, fieldId: j.fieldId, ok: false as const, error: `worker failed: ${(e as Error)?.message ?? String(e)}`, ms: 0 })));
           },
         )
         .finally(() => {
-          this.inFlight.delete(k);
+          this.batchesInFlight--;
+          for (const k of keys) this.inFlight.delete(k);
           this.pump();
           if (!this.pending.length && !this.inFlight.size) for (const r of this.idleWaiters.splice(0)) r();
         });
     }
   }
 
-  private record(res: FieldJobResult) {
+  private record(res: FieldJobResult[]) {
     if (this.closed) return;
     try {
-      recordFieldResult(this.db, res, this.onRunFinished);
+      recordFieldResults(this.db, res, this.onRunFinished);
     } catch (e) {
-      // the database refused (e.g. closing); the field stays running and resume() picks it up
-      console.warn(`[runs] could not record field ${res.fieldId} of run ${res.runId}: ${(e as Error).message}`);
+      // the database refused (e.g. closing); the fields stay running and resume() picks them up
+      console.warn(`[runs] could not record ${res.length} field result(s) of run ${res[0]?.runId}: ${(e as Error).message}`);
     }
   }
 

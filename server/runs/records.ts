@@ -130,15 +130,29 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
 
 /** Marks a field as handed to a worker (and the run as running). */
 export function markFieldStarted(db: Db, runId: number, fieldId: number, fieldName: string) {
+  markFieldsStarted(db, [{ runId, fieldId, fieldName }]);
+}
+
+/**
+ * Marks a batch of fields as handed to a worker (and their runs as running, the last field of each run as its
+ * current field) in one transaction.
+ */
+export function markFieldsStarted(db: Db, batch: { runId: number; fieldId: number; fieldName: string }[]) {
+  if (!batch.length) return;
   db.transaction((tx) => {
-    tx.update(runFields)
-      .set({ status: 'running', attempts: sql`${runFields.attempts} + 1` })
-      .where(and(eq(runFields.runId, runId), eq(runFields.fieldId, fieldId), inArray(runFields.status, ['queued', 'running'])))
-      .run();
-    tx.update(runs)
-      .set({ status: 'running', currentField: fieldName, startedAt: sql`coalesce(${runs.startedAt}, strftime('%Y-%m-%dT%H:%M:%fZ','now'))` })
-      .where(and(eq(runs.id, runId), inArray(runs.status, ['queued', 'running'])))
-      .run();
+    const current = new Map<number, string>();
+    for (const { runId, fieldId, fieldName } of batch) {
+      tx.update(runFields)
+        .set({ status: 'running', attempts: sql`${runFields.attempts} + 1` })
+        .where(and(eq(runFields.runId, runId), eq(runFields.fieldId, fieldId), inArray(runFields.status, ['queued', 'running'])))
+        .run();
+      current.set(runId, fieldName);
+    }
+    for (const [runId, fieldName] of current)
+      tx.update(runs)
+        .set({ status: 'running', currentField: fieldName, startedAt: sql`coalesce(${runs.startedAt}, strftime('%Y-%m-%dT%H:%M:%fZ','now'))` })
+        .where(and(eq(runs.id, runId), inArray(runs.status, ['queued', 'running'])))
+        .run();
   });
 }
 
@@ -147,32 +161,52 @@ export function markFieldStarted(db: Db, runId: number, fieldId: number, fieldNa
  * (a duplicate delivery), so nothing is written twice.
  */
 export function recordFieldResult(db: Db, result: FieldJobResult, onRunFinished?: (runId: number) => void): boolean {
+  return recordFieldResults(db, [result], onRunFinished)[0];
+}
+
+/**
+ * Writes a batch of field results in one transaction (measurements, spots, run_fields done or failed, each
+ * touched run's counters once). Per result: false when its field was already finished (a duplicate delivery),
+ * so nothing is written twice. `onRunFinished` is called once for each run this batch finished.
+ */
+export function recordFieldResults(db: Db, results: FieldJobResult[], onRunFinished?: (runId: number) => void): boolean[] {
+  const touched = new Set<number>();
   const wrote = db.transaction((tx) => {
-    const rf = tx.select().from(runFields).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).get();
-    if (!rf || rf.status === 'done' || rf.status === 'failed') return false;
-    const run = tx.select().from(runs).where(eq(runs.id, result.runId)).get();
-    if (!run) return false;
+    const provisionalOf = new Map<number, boolean>();
     const at = new Date().toISOString();
-    if (result.ok) {
-      // cells deleted meanwhile are skipped (their ids would still be valid rows; keep them: the cell existed at compute time)
-      const chunk = 200;
-      for (let i = 0; i < result.measurements.length; i += chunk) {
-        const part = result.measurements.slice(i, i + chunk).map((m) => ({ ...m, runId: result.runId, fieldId: result.fieldId, provisional: run.provisional }));
-        if (part.length) tx.insert(measurements).values(part).onConflictDoNothing().run();
+    const out = results.map((result) => {
+      const rf = tx.select().from(runFields).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).get();
+      if (!rf || rf.status === 'done' || rf.status === 'failed') return false;
+      if (!provisionalOf.has(result.runId)) {
+        const run = tx.select({ provisional: runs.provisional }).from(runs).where(eq(runs.id, result.runId)).get();
+        if (!run) return false;
+        provisionalOf.set(result.runId, run.provisional);
       }
-      for (let i = 0; i < result.spots.length; i += chunk) {
-        const part = result.spots.slice(i, i + chunk).map((s) => ({ ...s, runId: result.runId, fieldId: result.fieldId }));
-        tx.insert(spots).values(part).run();
+      const provisional = provisionalOf.get(result.runId)!;
+      if (result.ok) {
+        // cells deleted meanwhile keep their rows (their ids are still valid: the cell existed at compute time)
+        const chunk = 200;
+        for (let i = 0; i < result.measurements.length; i += chunk) {
+          const part = result.measurements.slice(i, i + chunk).map((m) => ({ ...m, runId: result.runId, fieldId: result.fieldId, provisional }));
+          if (part.length) tx.insert(measurements).values(part).onConflictDoNothing().run();
+        }
+        for (let i = 0; i < result.spots.length; i += chunk) {
+          const part = result.spots.slice(i, i + chunk).map((s) => ({ ...s, runId: result.runId, fieldId: result.fieldId }));
+          tx.insert(spots).values(part).run();
+        }
+        tx.update(runFields).set({ status: 'done', error: null, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
+      } else {
+        tx.update(runFields).set({ status: 'failed', error: result.error, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
       }
-      tx.update(runFields).set({ status: 'done', error: null, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
-    } else {
-      tx.update(runFields).set({ status: 'failed', error: result.error, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
-    }
-    refreshRun(tx, result.runId);
-    return true;
+      touched.add(result.runId);
+      return true;
+    });
+    for (const runId of touched) refreshRun(tx, runId);
+    return out;
   });
-  // this result finished the run (a duplicate delivery wrote nothing, so it cannot finish it twice)
-  if (wrote && onRunFinished && db.select({ s: runs.status }).from(runs).where(eq(runs.id, result.runId)).get()?.s.match(/^(done|failed|partial)$/)) onRunFinished(result.runId);
+  // the runs this batch finished (a duplicate delivery wrote nothing, so it cannot finish a run twice)
+  if (onRunFinished)
+    for (const runId of touched) if (db.select({ s: runs.status }).from(runs).where(eq(runs.id, runId)).get()?.s.match(/^(done|failed|partial)$/)) onRunFinished(runId);
   return wrote;
 }
 

@@ -80,6 +80,8 @@ export const UploadFieldPlan = z.object({
   ch2: UploadChannelRef,
   /** the instrument that recorded the field (its approved calibration is what recipes apply) */
   instrumentId: z.number().int().positive().nullable().optional(),
+  /** µm per pixel, replacing what the file says (a sample sheet's pixel_size_um); absent: from the file */
+  pixelSizeUm: z.number().positive().max(1000).nullable().optional(),
 });
 export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
 export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;

@@ -94,7 +94,7 @@ describe('UploadFields', () => {
     const xhr = FakeXHR.last!;
     expect(xhr.method).toBe('POST');
     expect(xhr.url).toBe('/api/coverslips/5/fields');
-    expect(JSON.parse(String(xhr.body!.get('plan')))).toEqual([{ name: 'cs1', ch1: { file: 0, channel: 1 }, ch2: { file: 1, channel: 1 } }]);
+    expect(JSON.parse(String(xhr.body!.get('plan')))).toEqual([{ name: 'cs1', ch1: { file: 0, channel: 1 }, ch2: { file: 1, channel: 1 }, instrumentId: null }]);
     expect((xhr.body!.getAll('files') as File[]).map((f) => f.name)).toEqual(['cs1_488.tif', 'cs1_568.tif']);
     xhr.upload.onprogress!({ lengthComputable: true, loaded: 15, total: 30 });
     await waitFor(() => expect(screen.getByRole('progressbar', { name: 'Upload progress' }).getAttribute('aria-valuenow')).toBe('50'));

@@ -130,6 +130,7 @@ export function fillPath(path: string, e: LabAEntities, tokens: { share?: string
           return before === 'shared' ? (tokens.share ?? e.shareToken) : (tokens.invite ?? 'not-a-real-invitation-token');
         case 'id': {
           const byResource: Record<string, number> = {
+            studies: e.studyId,
             conditions: e.conditionId,
             coverslips: e.coverslipId,
             fields: e.fieldId,

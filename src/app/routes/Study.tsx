@@ -14,6 +14,7 @@ import { StudyLinks } from '@/features/studies';
 import { moved, refocusMove } from '@/features/studies';
 import { Badge } from '@/components/Badge';
 import { Button } from '@/components/Button';
+import { SampleSheetIntake } from '@/features/fields';
 import { Caution, ErrorNotice } from '@/components/Caution';
 import { EmptyState } from '@/components/EmptyState';
 import { PageHeader } from '@/components/PageHeader';
@@ -86,11 +87,14 @@ export function Component() {
       />
       <div className="mb-5 flex flex-wrap items-center justify-between gap-3">
         <StudyLinks studyId={s.id} />
-        {canEdit && (
-          <Button variant="primary" onClick={() => setAddingCondition(true)}>
-            Add condition
-          </Button>
-        )}
+        <div className="flex flex-wrap items-center gap-2">
+          {s.permissions.includes('edit_images') && <SampleSheetIntake studyId={s.id} />}
+          {canEdit && (
+            <Button variant="primary" onClick={() => setAddingCondition(true)}>
+              Add condition
+            </Button>
+          )}
+        </div>
       </div>
 
       <div role="status" aria-live="polite" className="sr-only">

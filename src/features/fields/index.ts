@@ -6,3 +6,4 @@ export { UploadFields } from './components/UploadFields';
 export { fieldPreviewUrl } from './api/fieldPreviewUrl';
 export { FieldInstrument } from './components/FieldInstrument';
 export { useSetFieldInstrument } from './api/useSetFieldInstrument';
+export { SampleSheetIntake } from './components/SampleSheetIntake';
