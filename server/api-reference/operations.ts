@@ -169,6 +169,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'POST /api/calibrations/:id/retire': { summary: 'Retire an approved calibration', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
 
   'POST /api/runs': { summary: 'Start a run of a recipe version over a study, condition, coverslip or field', query: null, body: N(runs, 'CreateRunRequest'), response: N(runs, 'RunDetail'), status: 201 },
+  'POST /api/runs/check': { summary: 'Check which fields of a run scope the recipe can measure, and why the others cannot', query: null, body: N(runs, 'CreateRunRequest'), response: N(runs, 'RunCheckResponse') },
   'GET /api/runs': { summary: 'Runs in the studies you may see', query: N(runs, 'RunListQuery'), body: null, response: N(runs, 'RunListResponse') },
   'GET /api/runs/:id': { summary: 'A run with its per-field progress', query: null, body: null, response: N(runs, 'RunDetail') },
   'GET /api/runs/:id/measurements': {

@@ -106,6 +106,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
 
   // runs.ts
   'POST /api/runs': { study: 'run' }, // the study of the scope in the body
+  'POST /api/runs/check': { study: 'run' }, // as POST /api/runs: the pre-run check of the same body
   'GET /api/runs': 'signed-in', // filtered to readable studies; ?studyId= checks 'read'
   'GET /api/runs/:id': { study: 'read' },
   'GET /api/runs/:id/fields/:fieldId/spots': { study: 'read' }, // as the run's measurements
