@@ -116,6 +116,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'GET /api/studies/:studyId/fields': { summary: 'Every field of a study', query: null, body: null, response: N(fields, 'StudyFieldsResponse') },
   'GET /api/fields/:id': { summary: 'A field with its files and channel facts', query: null, body: null, response: N(fields, 'FieldDetail') },
   'DELETE /api/fields/:id': { summary: 'Delete a field', query: null, body: null, response: N(fields, 'DeleteFieldResponse') },
+  'PUT /api/fields/:id/pixel-size': { summary: 'Set or clear the µm per pixel of a field whose files carry none', query: null, body: N(fields, 'SetFieldPixelSizeRequest'), response: N(fields, 'FieldSummary') },
   'PUT /api/fields/:id/instrument': { summary: 'Set or clear the instrument a field was acquired on', query: null, body: N(fields, 'SetFieldInstrumentRequest'), response: N(fields, 'FieldSummary') },
   'GET /api/fields/:id/preview.png': { summary: 'A two-channel colour preview', query: N(fields, 'PreviewQuery'), body: null, response: { media: 'image/png', description: 'the preview picture' } },
   'GET /api/fields/:id/pixels': {

@@ -44,6 +44,8 @@ export interface IngestRequest {
   sources: IngestSource[];
   /** the instrument that recorded the field (checked to exist by the caller), or none */
   instrumentId?: number | null;
+  /** µm per pixel when the files carry none (a pixel size in the files is kept) */
+  pixelSizeUm?: number | null;
 }
 
 export interface IngestOptions {
@@ -143,7 +145,7 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
           sizeZ: stack.sizeZ,
           bitDepth: stack.bitDepth,
           sampleFormat: stack.sampleFormat,
-          pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? null,
+          pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? req.pixelSizeUm ?? null,
           zStepUm: stack.sizeZ > 1 ? (stack.info1.zStepUm ?? stack.info2.zStepUm ?? null) : null,
           facts,
           instrumentId: req.instrumentId ?? null,
