@@ -53,3 +53,26 @@ it('lists a blocked field with a link to fix it and starts on the ready fields',
   expect(run.fields.map((f) => f.fieldId).sort((a, b) => a - b)).toEqual([...ready].sort((a, b) => a - b));
   expect(page.errors).toEqual([]);
 });
+
+it('sets a field’s pixel size from the workspace header, refusing a bad value with it quoted', async () => {
+  const mic = await apiSession(e2e.srv, 'microscopist@demo.test');
+  const studies = (await mic('/studies')).body.studies as { id: number; isDemo?: boolean }[];
+  const study = studies.find((s) => s.isDemo) ?? studies[0];
+  const field = ((await mic(`/studies/${study.id}/fields`)).body.fields as { id: number }[])[1];
+  expect((await mic(`/fields/${field.id}/pixel-size`, { method: 'PUT', body: JSON.stringify({ pixelSizeUm: null }) })).status).toBe(200);
+  const page = await e2e.page();
+  await signIn(page, e2e.srv, 'microscopist@demo.test');
+  await page.goto(`${e2e.srv.url}/studies/${study.id}/fields/${field.id}`);
+  const header = page.getByTestId('pixel-size');
+  await header.getByText('no pixel size').waitFor({ timeout: 20_000 });
+  await header.getByRole('button', { name: 'Set pixel size' }).click();
+  const box = page.getByRole('group', { name: 'Pixel size' });
+  await box.getByLabel('µm per pixel').fill('-3');
+  await box.getByRole('button', { name: 'Save' }).click();
+  await box.getByRole('alert').getByText('the pixel size must be above 0 µm per pixel, got -3').waitFor();
+  await box.getByLabel('µm per pixel').fill('0.108');
+  await box.getByLabel('µm per pixel').press('Enter');
+  await page.getByTestId('pixel-size').getByText('0.108 µm/px').waitFor({ timeout: 20_000 });
+  expect((await mic(`/fields/${field.id}`)).body.pixelSizeUm).toBe(0.108);
+  expect(page.errors).toEqual([]);
+});

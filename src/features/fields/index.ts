@@ -4,3 +4,4 @@ export { useFieldPixels } from './api/useFieldPixels';
 export { FieldList } from './components/FieldList';
 export { UploadFields } from './components/UploadFields';
 export { fieldPreviewUrl } from './api/fieldPreviewUrl';
+export { PixelSizeEditor } from './components/PixelSizeEditor';
