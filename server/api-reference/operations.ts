@@ -129,6 +129,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'GET /api/studies/:studyId/fields': { summary: 'Every field of a study', query: null, body: null, response: N(fields, 'StudyFieldsResponse') },
   'GET /api/fields/:id': { summary: 'A field with its files and channel facts', query: null, body: null, response: N(fields, 'FieldDetail') },
   'DELETE /api/fields/:id': { summary: 'Delete a field', query: null, body: null, response: N(fields, 'DeleteFieldResponse') },
+  'PUT /api/fields/:id/pixel-size': { summary: 'Set or clear the µm per pixel of a field whose files carry none', query: null, body: N(fields, 'SetFieldPixelSizeRequest'), response: N(fields, 'FieldSummary') },
   'PUT /api/fields/:id/instrument': { summary: 'Set or clear the instrument a field was acquired on', query: null, body: N(fields, 'SetFieldInstrumentRequest'), response: N(fields, 'FieldSummary') },
   'GET /api/fields/:id/preview.png': { summary: 'A two-channel colour preview', query: N(fields, 'PreviewQuery'), body: null, response: { media: 'image/png', description: 'the preview picture' } },
   'GET /api/fields/:id/pixels': {
@@ -182,6 +183,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'POST /api/calibrations/:id/retire': { summary: 'Retire an approved calibration', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
 
   'POST /api/runs': { summary: 'Start a run of a recipe version over a study, condition, coverslip or field', query: null, body: N(runs, 'CreateRunRequest'), response: N(runs, 'RunDetail'), status: 201 },
+  'POST /api/runs/check': { summary: 'Check which fields of a run scope the recipe can measure, and why the others cannot', query: null, body: N(runs, 'CreateRunRequest'), response: N(runs, 'RunCheckResponse') },
   'GET /api/runs': { summary: 'Runs in the studies you may see', query: N(runs, 'RunListQuery'), body: null, response: N(runs, 'RunListResponse') },
   'GET /api/runs/:id': { summary: 'A run with its per-field progress', query: null, body: null, response: N(runs, 'RunDetail') },
   'GET /api/runs/:id/measurements': {

@@ -70,6 +70,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/fields/:id': { study: 'read' },
   'DELETE /api/fields/:id': { study: 'edit_images' },
   'PUT /api/fields/:id/instrument': { study: 'edit_images' },
+  'PUT /api/fields/:id/pixel-size': { study: 'edit_images' },
   'GET /api/fields/:id/preview.png': { study: 'read' },
   'GET /api/fields/:id/pixels': { study: 'read' },
 
@@ -110,6 +111,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
 
   // runs.ts
   'POST /api/runs': { study: 'run' }, // the study of the scope in the body
+  'POST /api/runs/check': { study: 'run' }, // as POST /api/runs: the pre-run check of the same body
   'GET /api/runs': 'signed-in', // filtered to readable studies; ?studyId= checks 'read'
   'GET /api/runs/:id': { study: 'read' },
   'GET /api/runs/:id/fields/:fieldId/spots': { study: 'read' }, // as the run's measurements

@@ -28,7 +28,7 @@ export const users = sqliteTable('users', {
 /** A kind of e-mail notification a user turned off (shared/schemas/notifications.ts); no row: it is on. */
 export const notificationOptOuts = sqliteTable('notification_opt_outs', {
   userId: integer('user_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
-  kind: text('kind', { enum: ['recipe_submitted', 'recipe_reviewed', 'run_finished'] }).notNull(),
+  kind: text('kind', { enum: ['recipe_submitted', 'recipe_reviewed', 'calibration_approved', 'run_finished'] }).notNull(),
 }, (t) => [primaryKey({ columns: [t.userId, t.kind] })]);
 
 export const invitations = sqliteTable('invitations', {

@@ -44,7 +44,7 @@ export interface IngestRequest {
   sources: IngestSource[];
   /** the instrument that recorded the field (checked to exist by the caller), or none */
   instrumentId?: number | null;
-  /** µm per pixel given by the uploader (a sample sheet), replacing the file's; absent or null: the file's */
+  /** µm per pixel when the files carry none (a pixel size in the files is kept; also a sample sheet's pixel_size_um) */
   pixelSizeUm?: number | null;
 }
 
@@ -145,7 +145,7 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
           sizeZ: stack.sizeZ,
           bitDepth: stack.bitDepth,
           sampleFormat: stack.sampleFormat,
-          pixelSizeUm: req.pixelSizeUm ?? stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? null,
+          pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? req.pixelSizeUm ?? null,
           zStepUm: stack.sizeZ > 1 ? (stack.info1.zStepUm ?? stack.info2.zStepUm ?? null) : null,
           facts,
           instrumentId: req.instrumentId ?? null,

@@ -174,7 +174,7 @@ export function applySampleSheet(
         ch1: { file: at(r.file), channel: r.ch1 },
         ch2: { file: r.file2 ? at(r.file2) : at(r.file), channel: r.ch2 },
         instrumentId: r.instrumentId,
-        pixelSizeUm: r.pixelSizeUm,
+        ...(r.pixelSizeUm !== null ? { pixelSizeUm: r.pixelSizeUm } : {}),
       }));
       uploads.push({ coverslipId, files: names, plan, lines: part.map((r) => r.line) });
     }

@@ -2,6 +2,7 @@
  * E-mail notifications through the one mail path (ctx.mail: SMTP, or the outbox sink without a relay):
  *   recipe_submitted  a recipe is submitted for review → every enabled facility manager but the submitter
  *   recipe_reviewed   a recipe is approved or returned (with the reviewer's note) → its proposer, unless they reviewed it
+ *   calibration_approved  an instrument calibration is approved → its proposer, unless they approved it
  *   run_finished      a run is done, failed or partly failed (naming the fields that failed) → who started it
  * Each user can turn each kind off (notification_opt_outs; shared/schemas/notifications.ts); disabled users get
  * nothing. A notice that cannot be sent never undoes the change it reports: the failure is logged as a warning
@@ -9,7 +10,7 @@
  */
 import { and, eq, inArray } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { fields, notificationOptOuts, recipes, runFields, runs, users } from '../db/schema.js';
+import { calibrations, fields, instruments, notificationOptOuts, recipes, runFields, runs, users } from '../db/schema.js';
 import { escapeHtml, publicOrigin } from '../auth/invitations.js';
 import type { NotificationKind } from '../../shared/schemas/notifications.js';
 import { plural } from '../../shared/format/plural.js';
@@ -58,6 +59,17 @@ export async function notifyRecipe(d: Deps, transition: string, recipe: RecipeRo
     if (transition === 'approve') lines.push('Runs with it are no longer provisional.');
     await send(d, 'recipe_reviewed', recipients(d, 'recipe_reviewed', [recipe.proposerId]), `Recipe ${verdict}: ${title}`, lines, link);
   }
+}
+
+/** After a calibration was approved: its proposer hears it, with what runs applying it will now use. */
+export async function notifyCalibrationApproved(d: Deps, cal: typeof calibrations.$inferSelect, actor: { id: number; name: string }) {
+  if (cal.proposerId === null || cal.proposerId === actor.id) return;
+  const inst = d.db.select({ name: instruments.name }).from(instruments).where(eq(instruments.id, cal.instrumentId)).get();
+  const title = `calibration v${cal.version} of ${inst?.name ?? `instrument ${cal.instrumentId}`}`;
+  const lines = [`${actor.name} approved your ${title}.`];
+  if (cal.reviewNote) lines.push(`Their note: ${cal.reviewNote}`);
+  lines.push('Runs with recipes that apply the approved calibration now use it for fields of this instrument.');
+  await send(d, 'calibration_approved', recipients(d, 'calibration_approved', [cal.proposerId]), `Calibration approved: ${title}`, lines, { href: `${publicOrigin(d)}/instruments/${cal.instrumentId}`, text: 'Open the instrument' });
 }
 
 /** Most failed fields named in one message (the run page lists them all). */

@@ -24,7 +24,7 @@ import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from 
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
-import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
+import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, SetFieldPixelSizeRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
@@ -346,6 +346,20 @@ export default function fieldsRoutes(ctx: AppContext) {
     const next = ctx.db.transaction((tx) => {
       const row = tx.update(fields).set({ instrumentId }).where(eq(fields.id, fieldId)).returning().get();
       tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'field.instrument', entity: 'field', entityId: fieldId, studyId, details: { from: field.instrumentId, to: instrumentId } }).run();
+      return row;
+    });
+    res.json(toFieldSummary(next));
+  });
+
+  /** µm per pixel for a field whose files carry none (or a correction); µm settings and scale bars use it; audited. */
+  r.put('/fields/:id/pixel-size', (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
+    const { pixelSizeUm } = parse(SetFieldPixelSizeRequest, req.body);
+    const next = ctx.db.transaction((tx) => {
+      const row = tx.update(fields).set({ pixelSizeUm }).where(eq(fields.id, fieldId)).returning().get();
+      tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'field.pixel_size', entity: 'field', entityId: fieldId, studyId, details: { from: field.pixelSizeUm, to: pixelSizeUm } }).run();
       return row;
     });
     res.json(toFieldSummary(next));

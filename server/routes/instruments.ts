@@ -26,6 +26,7 @@ import {
 import type { RecipeStatus } from '../../shared/schemas/recipes.js';
 import { RECIPE_TRANSITIONS, userNames } from './recipes.js';
 import { approvedCalibration } from '../runs/records.js';
+import { notifyCalibrationApproved } from '../mail/notify.js';
 
 type CalibrationRow = typeof calibrations.$inferSelect;
 type InstrumentRow = typeof instruments.$inferSelect;
@@ -187,7 +188,7 @@ export default function instrumentsRoutes(ctx: AppContext) {
   });
 
   for (const t of Object.keys(RECIPE_TRANSITIONS) as Transition[]) {
-    r.post(`/calibrations/:id/${t}`, (req, res) => {
+    r.post(`/calibrations/:id/${t}`, async (req, res) => {
       const rule = RECIPE_TRANSITIONS[t];
       requireCan(req.user, rule.reviewer ? 'review_calibration' : 'propose_calibration');
       const u = req.user!;
@@ -217,6 +218,7 @@ export default function instrumentsRoutes(ctx: AppContext) {
         audit(tx, u.id, t, next, { from: cur.status, to: rule.to, note: note ?? null });
         return next;
       });
+      if (t === 'approve') await notifyCalibrationApproved(ctx, row, u);
       res.json(calibrationDetail(ctx, u, row));
     });
   }

@@ -4,6 +4,9 @@
  * A run whose recipe version is not approved is provisional (and so is every measurement it writes).
  * `GET /api/runs/:id/fields/:fieldId/spots` lists the spots the run found in one field (objects section on),
  * readable by whoever may read the run's measurements.
+ * `POST /api/runs/check` (the body of `POST /api/runs`) lists the scope's fields the recipe can measure and
+ * the blocked ones with their problem and a link to fix it; `POST /api/runs { onlyReady: true }` starts on
+ * the ready ones only.
  */
 import { once } from 'node:events';
 import { Router, type Request } from 'express';
@@ -14,13 +17,14 @@ import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js
 import { conflict, notFound, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { createRun } from '../runs/records.js';
-import { CreateRunRequest, FieldSpotsResponse, MEASUREMENT_CSV_COLUMNS, RunListQuery, RunMeasurementsQuery, type RunDetail, type RunMeasurementsPage, type RunSummary } from '../../shared/schemas/runs.js';
+import { CreateRunRequest, FieldSpotsResponse, type RunCheckResponse, MEASUREMENT_CSV_COLUMNS, RunListQuery, RunMeasurementsQuery, type RunDetail, type RunMeasurementsPage, type RunSummary } from '../../shared/schemas/runs.js';
 import { csvValues, measurementPage } from '../runs/export.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
 /** Rows per page of the streamed measurements CSV. */
 const CSV_PAGE = 2000;
-import { resolveScope, runSettings } from '../runs/records.js';
+import { checkRunInputs, resolveScope, runSettings } from '../runs/records.js';
+import { plural } from '../../shared/format/plural.js';
 
 type RunRow = typeof runs.$inferSelect;
 
@@ -109,7 +113,8 @@ export function runDetail(ctx: AppContext, r: RunRow): RunDetail {
 export default function runsRoutes(ctx: AppContext) {
   const r = Router();
 
-  r.post('/runs', async (req, res) => {
+  /** The recipe and resolved scope of a `POST /api/runs` or `/api/runs/check` body, after the caller's right to run it. */
+  const runRequest = (req: Request) => {
     if (!req.user) throw unauthorized();
     const body = parse(CreateRunRequest, req.body);
     const recipe = ctx.db.select().from(recipes).where(eq(recipes.id, body.recipeId)).get();
@@ -118,7 +123,25 @@ export default function runsRoutes(ctx: AppContext) {
     requireStudy(ctx.db, req.user, scope.studyId, 'run', { what: body.scope.kind, id: body.scope.id });
     if (recipe.status === 'retired') throw conflict(`recipe ${recipe.name} v${recipe.version} is retired; choose a current version`);
     if (!scope.fieldIds.length) throw conflict(`nothing to measure: ${body.scope.kind} "${scope.name}" has no fields`);
-    const run = await createRun(ctx, { recipe, scope: { kind: body.scope.kind, id: body.scope.id, ...scope }, userId: req.user.id });
+    return { body, recipe, scope, userId: req.user.id };
+  };
+
+  r.post('/runs/check', (req, res) => {
+    const { recipe, scope } = runRequest(req);
+    const body: RunCheckResponse = checkRunInputs(ctx.db, recipe, scope.studyId, scope.fieldIds);
+    res.json(body);
+  });
+
+  r.post('/runs', async (req, res) => {
+    const { body, recipe, scope, userId } = runRequest(req);
+    let fieldIds = scope.fieldIds;
+    if (body.onlyReady) {
+      const check = checkRunInputs(ctx.db, recipe, scope.studyId, fieldIds);
+      if (!check.ready.length)
+        throw conflict(`no field of ${body.scope.kind} "${scope.name}" can be measured with recipe ${recipe.name} v${recipe.version}: ${check.blocked[0].fieldName}: ${check.blocked[0].problem}${check.blocked.length > 1 ? ` (and ${plural(check.blocked.length - 1, 'more field')})` : ''}`);
+      fieldIds = check.ready;
+    }
+    const run = await createRun(ctx, { recipe, scope: { kind: body.scope.kind, id: body.scope.id, ...scope, fieldIds }, userId });
     const fresh = ctx.db.select().from(runs).where(eq(runs.id, run.id)).get()!;
     res.status(201).json(runDetail(ctx, fresh));
   });

@@ -62,15 +62,24 @@ export interface FieldPixels {
   ch2: ChannelArray;
 }
 
+/** Where a field's problem is fixed: the field (its regions, pixel size, instrument), the recipe, or the field's instrument (its calibration). */
+export type FixPlace = 'field' | 'recipe' | 'instrument';
+
 export class FieldJobError extends Error {
   override name = 'FieldJobError';
+  constructor(
+    message: string,
+    readonly fix: FixPlace = 'field',
+  ) {
+    super(message);
+  }
 }
 
 export { project };
 
 export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] {
   const [a, b] = z.mode === 'slice' ? [z.slice, z.slice] : z.mode === 'range' ? [z.from, z.to] : [0, sizeZ - 1]; // mip, volume: every slice
-  if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${plural(sizeZ, 'slice')}`);
+  if (b >= sizeZ) throw new FieldJobError(`the recipe asks for slice ${b + 1}, but the field has ${plural(sizeZ, 'slice')}`, 'recipe');
   return [a, b];
 }
 
@@ -176,13 +185,43 @@ export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null
 export function blockSlices(s: RecipeSettings, fieldZStepUm: number | null, fieldName = 'the field'): number {
   const b = s.randomization.blockSize;
   if (b.kind === 'pixels') {
-    if (b.slices === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the randomization blocks have no depth; give the block depth in slices, or measure one slice or a projection`);
+    if (b.slices === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the randomization blocks have no depth; give the block depth in slices, or measure one slice or a projection`, 'recipe');
     return b.slices;
   }
-  if (b.psfDepthUm === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the recipe gives no axial point-spread width for the randomization blocks`);
+  if (b.psfDepthUm === undefined) throw new FieldJobError(`${fieldName} is measured in 3D, but the recipe gives no axial point-spread width for the randomization blocks`, 'recipe');
   const step = b.zStepUm ?? fieldZStepUm;
   if (!step) throw new FieldJobError(`the randomization block depth comes from the axial point-spread width, but neither the recipe nor ${fieldName} gives the z step between slices`);
   return Math.max(1, Math.round(b.psfDepthUm / step));
+}
+
+/** What the input check reads of a field's job (a FieldJob has all of it; the pre-run check builds it without files). */
+export type FieldInputs = Pick<FieldJob, 'fieldName' | 'sizeZ' | 'settings' | 'pixelSizeUm' | 'zStepUm' | 'calibration' | 'calibrationProblem' | 'instrumentId'> & {
+  cells: { role: 'cell' | 'background' }[];
+};
+
+/** Planes a field is measured over: every slice for z 'volume', else one (a slice or a projection). */
+export function measuredDepth(z: RecipeSettings['z'], sizeZ: number): number {
+  const [from, to] = zRange(z, sizeZ);
+  return z.mode === 'volume' ? to - from + 1 : 1;
+}
+
+/**
+ * The one home of the rules that decide, before any pixel is read, whether a field can be measured with a
+ * recipe: the pre-run check (`POST /api/runs/check`) and `computeFieldResult` both call it. Throws the
+ * FieldJobError of the first rule the field breaks (with where it is fixed); `depth` is the planes measured.
+ */
+export function checkFieldInputs(job: FieldInputs, depth = measuredDepth(job.settings.z, job.sizeZ)): void {
+  const s = job.settings;
+  zRange(s.z, job.sizeZ);
+  if (s.calibration === 'approved' && !job.calibration)
+    throw new FieldJobError(job.calibrationProblem ?? `field "${job.fieldName}" has no calibration to apply`, job.instrumentId == null ? 'field' : 'instrument');
+  if (s.background.method === 'region' && !job.cells.some((c) => c.role === 'background'))
+    throw new FieldJobError(`the recipe subtracts the mean of a marked background region, but field "${job.fieldName}" has none marked`);
+  const block = blockPixels(s, job.pixelSizeUm);
+  if (block != null && depth > 1) blockSlices(s, job.zStepUm ?? null, `field "${job.fieldName}"`);
+  const objects = objectOptions(s, job.pixelSizeUm);
+  if (objects && depth > 1)
+    throw new FieldJobError(`spots are found in one plane, but field "${job.fieldName}" is measured in 3D (${depth} slices); measure one slice or a projection, or turn Spots off`, 'recipe');
 }
 
 /** Every registry measure but the pixel count, null: the row of a cell too small to measure. */
@@ -210,9 +249,9 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
       throw new FieldJobError(`field "${job.fieldName}" has cells that cover only some slices (a z range or a 3-D label), but the recipe measures a projection of the slices; measure every slice in 3D or one slice`);
     return cellVoxels(geometry, width, height, first, depth);
   };
+  checkFieldInputs(job, depth);
   const sat = job.sampleFormat === 'float' ? null : 2 ** job.bitDepth - 1;
   // calibration: channel 2 aligned first (NaN where its sample position is outside: not measured)
-  if (s.calibration === 'approved' && !job.calibration) throw new FieldJobError(job.calibrationProblem ?? `field "${job.fieldName}" has no calibration to apply`);
   const cal = s.calibration === 'approved' ? job.calibration : null;
   const shifted = cal !== null && cal.dx !== null && cal.dy !== null && (cal.dx !== 0 || cal.dy !== 0);
   const raw1 = px.ch1;
@@ -237,7 +276,7 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
     const seen = new Uint8Array(plane * depth);
     const idx: number[] = [];
     for (const r of regions) for (const i of voxelsOf(r.geometry)) if (!seen[i]) (seen[i] = 1), idx.push(i);
-    if (idx.length === 0) throw new FieldJobError(`the recipe subtracts the mean of a marked background region, but field "${job.fieldName}" has none marked`);
+    if (idx.length === 0) throw new FieldJobError(`the background region${regions.length === 1 ? '' : 's'} of field "${job.fieldName}" cover no pixel of the image`);
     const valued = measurable(raw1, raw2, Uint32Array.from(idx));
     if (valued.length === 0)
       throw new FieldJobError(`the background region${regions.length === 1 ? '' : 's'} of field "${job.fieldName}" (${idx.length} pixels) hold only NaN pixels, so there is no background level to subtract`);
@@ -257,8 +296,6 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
   const z = describeZ(s.z, depth);
   const objects = objectOptions(s, job.pixelSizeUm);
   const spots: SpotValues[] = [];
-  if (objects && depth > 1)
-    throw new FieldJobError(`spots are found in one plane, but field "${job.fieldName}" is measured in 3D (${depth} slices); measure one slice or a projection, or turn Spots off`);
   // the spot filter reaches beyond each cell, so every pixel it may read needs a value
   if (objects)
     for (const [c, a] of [[1, raw1], [2, raw2]] as const) {

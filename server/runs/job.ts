@@ -30,6 +30,8 @@ export interface FieldJob {
   calibration: NonNullable<MeasurementProvenance['calibration']> | null;
   /** when the recipe asks for a calibration and none can be applied: why (the field fails with it) */
   calibrationProblem: string | null;
+  /** the field's instrument (null: none chosen); absent in jobs made before it was carried */
+  instrumentId?: number | null;
 }
 
 /**

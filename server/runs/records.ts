@@ -8,7 +8,8 @@ import type { Db, DbOrTx } from '../db/client.js';
 import type { RunQueue } from '../services.js';
 import { auditEvents, calibrations, cells, conditions, coverslips, fields, files, instruments, measurements, recipes, runFields, runs, spots, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
-import type { RunScopeKind } from '../../shared/schemas/runs.js';
+import type { RunCheckResponse, RunScopeKind } from '../../shared/schemas/runs.js';
+import { checkFieldInputs, FieldJobError } from './compute.js';
 import { notFound } from '../http/errors.js';
 import { ENGINE_VERSION } from '../../shared/analysis/index.js';
 import type { FieldJob, FieldJobResult } from './job.js';
@@ -76,13 +77,48 @@ export function approvedCalibration(db: DbOrTx, instrumentId: number): typeof ca
  * The calibration a field's job applies when its recipe asks for one ('approved'), or the sentence saying why
  * none can be (the field then fails with it, and is not measured uncorrected).
  */
-function fieldCalibration(db: Db, settings: RecipeSettings, f: typeof fields.$inferSelect): Pick<FieldJob, 'calibration' | 'calibrationProblem'> {
-  if (settings.calibration === 'none') return { calibration: null, calibrationProblem: null };
-  if (f.instrumentId === null) return { calibration: null, calibrationProblem: `field ${f.name} has no instrument, so the recipe's calibration cannot be applied` };
+function fieldCalibration(db: Db, settings: RecipeSettings, f: typeof fields.$inferSelect): Pick<FieldJob, 'calibration' | 'calibrationProblem' | 'instrumentId'> {
+  const instrumentId = f.instrumentId;
+  if (settings.calibration === 'none') return { calibration: null, calibrationProblem: null, instrumentId };
+  if (f.instrumentId === null) return { calibration: null, calibrationProblem: `field ${f.name} has no instrument, so the recipe's calibration cannot be applied`, instrumentId };
   const inst = db.select().from(instruments).where(eq(instruments.id, f.instrumentId)).get()!;
   const c = approvedCalibration(db, inst.id);
-  if (!c) return { calibration: null, calibrationProblem: `instrument ${inst.name} of field ${f.name} has no approved calibration` };
-  return { calibration: { id: c.id, instrumentId: inst.id, instrument: inst.name, version: c.version, dx: c.dx, dy: c.dy, a21: c.a21, a12: c.a12 }, calibrationProblem: null };
+  if (!c) return { calibration: null, calibrationProblem: `instrument ${inst.name} of field ${f.name} has no approved calibration`, instrumentId };
+  return { calibration: { id: c.id, instrumentId: inst.id, instrument: inst.name, version: c.version, dx: c.dx, dy: c.dy, a21: c.a21, a12: c.a12 }, calibrationProblem: null, instrumentId };
+}
+
+/**
+ * The pre-run check: each field of a scope through `checkFieldInputs` (the rules the run itself applies) with
+ * a recipe's settings, before anything is queued. Blocked fields carry the problem and the page that fixes it.
+ */
+export function checkRunInputs(db: Db, recipe: typeof recipes.$inferSelect, studyId: number, fieldIds: number[]): RunCheckResponse {
+  const settings = RecipeSettings.parse(recipe.settings);
+  const ready: number[] = [];
+  const blocked: RunCheckResponse['blocked'] = [];
+  if (!fieldIds.length) return { ready, blocked };
+  const rows = db.select().from(fields).where(inArray(fields.id, fieldIds)).all();
+  const byId = new Map(rows.map((f) => [f.id, f]));
+  const roles = db.select({ fieldId: cells.fieldId, role: cells.role }).from(cells).where(and(inArray(cells.fieldId, fieldIds), isNull(cells.deletedAt), eq(cells.role, 'background'))).all();
+  for (const id of fieldIds) {
+    const f = byId.get(id)!;
+    try {
+      checkFieldInputs({
+        fieldName: f.name,
+        sizeZ: f.sizeZ,
+        settings,
+        pixelSizeUm: f.pixelSizeUm,
+        zStepUm: f.zStepUm ?? null,
+        cells: roles.filter((r) => r.fieldId === id),
+        ...fieldCalibration(db, settings, f),
+      });
+      ready.push(id);
+    } catch (e) {
+      if (!(e instanceof FieldJobError)) throw e;
+      const fixUrl = e.fix === 'recipe' ? `/recipes/${recipe.id}` : e.fix === 'instrument' && f.instrumentId != null ? `/instruments/${f.instrumentId}` : `/studies/${studyId}/fields/${id}`;
+      blocked.push({ fieldId: id, fieldName: fieldName(db, id), problem: e.message, fixUrl });
+    }
+  }
+  return { ready, blocked };
 }
 
 /** Everything a stateless worker needs for one field of a run. */

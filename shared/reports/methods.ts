@@ -15,7 +15,7 @@
  */
 import { COEFFICIENT_CITATIONS, byKey, type Citation } from '../coefficients.js';
 import type { ReportSnapshot } from '../schemas/reports.js';
-import { RecipeSettings, SETTING_KEYS, describeSetting } from '../schemas/recipes.js';
+import { RecipeSettings, SETTING_KEYS, describeSetting, projectionCaution } from '../schemas/recipes.js';
 import type { FoundWith } from '../schemas/cells.js';
 import { formatAmount, foundStepsWords } from '../format/origin.js';
 import { plural } from '../format/plural.js';
@@ -103,6 +103,8 @@ function recipeSentences(settings: Obj, ref: (k: keyof typeof CITATIONS) => stri
     }
     if (key === 'objects' && s.objects.enabled)
       for (const k of ['lindeberg', 'besagDiggle'] as const) sentence = sentence.replace(CITATIONS[k].key, `${CITATIONS[k].key} ${ref(k)}`);
+    const projection = key === 'z' ? projectionCaution(s.z) : null;
+    if (projection) sentence += ` Caution: ${projection}`;
     out.push(sentence);
   }
   return out;

@@ -39,6 +39,19 @@ export const FieldSummary = z.object({
 });
 export type FieldSummary = z.infer<typeof FieldSummary>;
 
+/**
+ * µm per pixel given by hand, for fields whose files carry no pixel size: a finite number above 0 and at most
+ * 100 (a pixel wider than 100 µm is no microscope image); errors quote the value received.
+ */
+export const PixelSizeUm = z
+  .number({ error: (iss) => `the pixel size must be a number of µm per pixel, got ${JSON.stringify(iss.input) ?? String(iss.input)}` })
+  .gt(0, { error: (iss) => `the pixel size must be above 0 µm per pixel, got ${String(iss.input)}` })
+  .max(100, { error: (iss) => `the pixel size must be at most 100 µm per pixel, got ${String(iss.input)}` });
+
+/** PUT /api/fields/:id/pixel-size: the field's µm per pixel (null: not known). */
+export const SetFieldPixelSizeRequest = z.object({ pixelSizeUm: PixelSizeUm.nullable() });
+export type SetFieldPixelSizeRequest = z.infer<typeof SetFieldPixelSizeRequest>;
+
 /** PUT /api/fields/:id/instrument: the instrument the field was recorded on, or null for none. */
 export const SetFieldInstrumentRequest = z.object({ instrumentId: z.number().int().positive().nullable() });
 
@@ -80,8 +93,8 @@ export const UploadFieldPlan = z.object({
   ch2: UploadChannelRef,
   /** the instrument that recorded the field (its approved calibration is what recipes apply) */
   instrumentId: z.number().int().positive().nullable().optional(),
-  /** µm per pixel, replacing what the file says (a sample sheet's pixel_size_um); absent: from the file */
-  pixelSizeUm: z.number().positive().max(1000).nullable().optional(),
+  /** µm per pixel for a field whose files carry none (the files' own pixel size, when they have one, is kept; a sample sheet's pixel_size_um comes here) */
+  pixelSizeUm: PixelSizeUm.optional(),
 });
 export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
 export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;

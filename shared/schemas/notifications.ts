@@ -4,7 +4,7 @@
  */
 import { z } from 'zod';
 
-export const NOTIFICATION_KINDS = ['recipe_submitted', 'recipe_reviewed', 'run_finished'] as const;
+export const NOTIFICATION_KINDS = ['recipe_submitted', 'recipe_reviewed', 'calibration_approved', 'run_finished'] as const;
 export const NotificationKind = z.enum(NOTIFICATION_KINDS);
 export type NotificationKind = z.infer<typeof NotificationKind>;
 
@@ -12,6 +12,7 @@ export type NotificationKind = z.infer<typeof NotificationKind>;
 export const NOTIFICATION_TEXT: Record<NotificationKind, { label: string; who: string }> = {
   recipe_submitted: { label: 'A recipe is submitted for review', who: 'facility managers' },
   recipe_reviewed: { label: 'Your recipe is approved or returned (with the note)', who: 'the recipe’s proposer' },
+  calibration_approved: { label: 'Your instrument calibration is approved', who: 'the calibration’s proposer' },
   run_finished: { label: 'Your run finished or failed (with the fields that failed)', who: 'whoever started the run' },
 };
 

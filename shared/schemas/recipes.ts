@@ -246,6 +246,19 @@ export const describeObjectSettings = (o: ObjectsSetting) => OBJECT_SETTING_KEYS
 
 const fmt = (n: number) => (Number.isInteger(n) ? String(n) : String(Number(n.toPrecision(6))));
 
+/**
+ * The caution shown wherever a recipe measures a maximum-intensity projection (z 'mip' or 'range'): the recipe
+ * editor and page, and the methods paragraph of reports. One home for the wording (common practice: a
+ * projection keeps each pixel's brightest slice, so structures at different depths land on one plane).
+ */
+export const PROJECTION_CAUTION =
+  'A maximum-intensity projection merges structures that lie apart in z into one plane, so signals that never meet in the specimen can overlap in the projection and create false co-localization; measure one slice or every slice in 3D when that matters.';
+
+/** PROJECTION_CAUTION when the z handling is a maximum-intensity projection, else null. */
+export function projectionCaution(z: RecipeSettings['z']): string | null {
+  return z.mode === 'mip' || z.mode === 'range' ? PROJECTION_CAUTION : null;
+}
+
 /** One plain sentence explaining the current value of one setting (the editor shows it; reports reuse it). */
 export function describeSetting(key: SettingKey, s: RecipeSettings): string {
   switch (key) {

@@ -12,8 +12,27 @@ export type RunScopeKind = z.infer<typeof RunScopeKind>;
 export const CreateRunRequest = z.object({
   recipeId: z.number().int().positive(),
   scope: z.object({ kind: RunScopeKind, id: z.number().int().positive() }),
+  /** true: start on the fields that pass the pre-run check only (the blocked ones are left out of the run) */
+  onlyReady: z.boolean().optional(),
 });
 export type CreateRunRequest = z.infer<typeof CreateRunRequest>;
+
+/** `POST /api/runs/check` (same body as `POST /api/runs`): which fields of the scope the recipe can measure. */
+export const RunCheckResponse = z.object({
+  ready: z.array(z.number().int()),
+  blocked: z.array(
+    z.object({
+      fieldId: z.number().int(),
+      /** "condition / coverslip / field" */
+      fieldName: z.string(),
+      /** why the recipe cannot measure it, as the run would fail it */
+      problem: z.string(),
+      /** the portal page where it is fixed (the field workspace, the recipe or the instrument) */
+      fixUrl: z.string(),
+    }),
+  ),
+});
+export type RunCheckResponse = z.infer<typeof RunCheckResponse>;
 
 export const RunStatus = z.enum(['queued', 'running', 'done', 'failed', 'partial']);
 export type RunStatus = z.infer<typeof RunStatus>;

@@ -1,7 +1,7 @@
 /**
  * E-mail notifications through the one mail path (captured by the outbox sink in tests): recipe submitted →
  * facility managers; approved or returned with the note → the proposer; run finished or partly failed, naming
- * the failing fields → who started it. Each user may turn each kind off; disabled users get nothing.
+ * the failing fields → who started it; a calibration approved → its proposer. Each user may turn each kind off; disabled users get nothing.
  * (common practice; no outside reference value)
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -60,6 +60,7 @@ describe('recipes', () => {
     expect(s.kinds.map((k) => [k.kind, k.on])).toEqual([
       ['recipe_submitted', false],
       ['recipe_reviewed', true],
+      ['calibration_approved', true],
       ['run_finished', true],
     ]);
     expect(NotificationSettings.parse((await mic.get('/api/notifications')).body).kinds.every((k) => k.on)).toBe(true);
@@ -85,6 +86,31 @@ describe('recipes', () => {
     await mic.post(`/api/recipes/${r.id}/submit`);
     expect(mailTo(email('manager')).length).toBe(before);
     t.ctx.db.update(users).set({ disabled: false }).where(eq(users.id, t.world.users.manager.id)).run();
+  });
+});
+
+describe('calibrations', () => {
+  it('an approved calibration reaches its proposer (with the note and a link to the instrument), unless turned off', async () => {
+    mgr = await t.login('manager');
+    const inst = (await mgr.post('/api/instruments').send({ name: 'Spinning disk 3', objective: '60×', channel1: 'GFP', channel2: 'RFP' })).body.id as number;
+    const propose = async () => {
+      const c = (await mic.post(`/api/instruments/${inst}/calibrations`).send({ dx: 0.5, dy: -0.25 })).body;
+      expect((await mic.post(`/api/calibrations/${c.id}/submit`).send({})).status).toBe(200);
+      return c as { id: number; version: number };
+    };
+    const c = await propose();
+    expect((await mgr.post(`/api/calibrations/${c.id}/approve`).send({ note: 'Beads look fine.' })).status).toBe(200);
+    const m = mailTo(email('microscopist')).find((x) => x.subject === `Calibration approved: calibration v${c.version} of Spinning disk 3`)!;
+    expect(m.text).toMatch(/approved your calibration v\d+ of Spinning disk 3\./);
+    expect(m.text).toMatch(/Their note: Beads look fine\./);
+    expect(m.text).toContain(`/instruments/${inst}`);
+    // turned off: the next approval sends nothing to the proposer
+    expect((await mic.put('/api/notifications').send({ off: ['calibration_approved'] })).status).toBe(200);
+    const c2 = await propose();
+    const before = mailTo(email('microscopist')).length;
+    expect((await mgr.post(`/api/calibrations/${c2.id}/approve`).send({})).status).toBe(200);
+    expect(mailTo(email('microscopist')).length).toBe(before);
+    await mic.put('/api/notifications').send({ off: [] });
   });
 });
 

@@ -8,7 +8,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { methodsParagraph, settingLeaves } from '../../shared/reports/methods.js';
-import { RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
+import { PROJECTION_CAUTION, RecipeSettings, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
 import type { ReportSnapshot } from '../../shared/schemas/reports.js';
 import type { CellOrigin, FoundWith } from '../../shared/schemas/cells.js';
 import { buildReportWorld, excludeCell, insertRun } from './fixtures.js';
@@ -107,6 +107,12 @@ describe('recipe settings in words', () => {
     expect(text).not.toMatch(/slice 0|z handling/i);
     expect(stacked({ z: { mode: 'range', from: 1, to: 3 } })).toContain('slices 2 to 4');
     expect(stacked({ z: { mode: 'mip' } })).toContain('maximum-intensity projection of all slices');
+  });
+
+  it('a projection carries the caution that it creates false co-localization; a slice or 3D does not', () => {
+    for (const z of [{ mode: 'mip' }, { mode: 'range', from: 0, to: 2 }] as const) expect(stacked({ z })).toContain(`Caution: ${PROJECTION_CAUTION}`);
+    for (const z of [{ mode: 'slice', slice: 0 }, { mode: 'volume' }] as const) expect(stacked({ z })).not.toContain(PROJECTION_CAUTION);
+    expect(PROJECTION_CAUTION).toMatch(/false co-localization/);
   });
 
   it('every setting changes the text when it changes (none is left out), and no setting key appears', () => {

@@ -33,7 +33,7 @@ afterAll(() => t?.close());
 
 /** Routes that read the body before the permission check need a well-formed body to reach it. */
 function bodyFor(key: string): Record<string, unknown> | undefined {
-  if (key === 'POST /api/runs') return { recipeId: e.recipeId, scope: { kind: 'study', id: e.studyId } };
+  if (key === 'POST /api/runs' || key === 'POST /api/runs/check') return { recipeId: e.recipeId, scope: { kind: 'study', id: e.studyId } };
   return undefined;
 }
 

@@ -8,7 +8,7 @@
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { useParams } from 'react-router';
 import { Button, Caution, ErrorNotice, Loading, PageHeader } from '@/components';
-import { FieldInstrument, useField } from '@/features/fields';
+import { FieldInstrument, PixelSizeEditor, useField } from '@/features/fields';
 import { useStudy } from '@/features/studies';
 import { useCells } from '@/features/workspace';
 import { useFieldPixels } from '@/features/fields';
@@ -208,7 +208,13 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           { to: '/studies', label: 'Studies' },
           { to: `/studies/${studyId}`, label: study.data?.name ?? 'Study' },
         ]}
-        description={`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''}${field.pixelSizeUm ? ` · ${field.pixelSizeUm} µm/px` : ''}${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
+        description={
+          <>
+            {`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''} · `}
+            <PixelSizeEditor fieldId={fieldId} pixelSizeUm={field.pixelSizeUm} canEdit={canEdit} />
+            {`${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
+          </>
+        }
         actions={
           <>
             <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells.geojson`} download>

@@ -9,7 +9,8 @@ import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
-import { UploadChannelRef, type UploadFieldPlan } from '@shared/schemas/fields';
+import { PixelSizeUm, UploadChannelRef, type UploadFieldPlan } from '@shared/schemas/fields';
+import { cx } from '@/lib/cx';
 import { NumberTextFor } from '@shared/schemas/common';
 import { BoxMessage, useNumberBox } from '@/components/NumberBox';
 import { useUploadFields } from '../api/useUploadFields';
@@ -83,6 +84,8 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
   const [pairs, setPairs] = useState<PairRow[]>([{ id: nextId++, file1: null, file2: null, name: '' }]);
   const [formError, setFormError] = useState<string | null>(null);
   const [instrumentId, setInstrumentId] = useState<number | null>(null);
+  /** µm per pixel for files that carry none (empty: none given) */
+  const [pixelSize, setPixelSize] = useState('');
   const { state, upload, cancel, reset } = useUploadFields(coverslipId);
   const busy = state.phase === 'uploading' || state.phase === 'processing';
   const modeName = useId();
@@ -129,6 +132,12 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
       return i;
     };
     const plan: UploadFieldPlan[] = [];
+    let pixelSizeUm: number | undefined;
+    if (pixelSize.trim() !== '') {
+      const px = PixelSizeUm.safeParse(Number(pixelSize));
+      if (!px.success) return setFormError(`µm per pixel "${pixelSize}": ${px.error.issues[0]?.message ?? 'not a pixel size'}`);
+      pixelSizeUm = px.data;
+    }
     if (mode === 'multi') {
       if (multi.length === 0) return setFormError('choose at least one file');
       for (const r of multi) {
@@ -144,7 +153,7 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
         plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 }, instrumentId });
       }
     }
-    await upload(files, plan);
+    await upload(files, pixelSizeUm === undefined ? plan : plan.map((p) => ({ ...p, pixelSizeUm })));
   };
 
   const startOver = () => {
@@ -213,6 +222,11 @@ function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: 
             </label>
           </fieldset>
           <InstrumentPicker label="Recorded on" value={instrumentId} onChange={setInstrumentId} disabled={busy} />
+
+          <label className="flex flex-wrap items-center gap-2 text-sm">
+            <span>µm per pixel, for files that carry none</span>
+            <input className={cx(inputClass(false), 'w-28')} inputMode="decimal" value={pixelSize} onChange={(e) => setPixelSize(e.target.value)} disabled={busy} placeholder="optional" />
+          </label>
 
           <p className="text-xs text-ink-soft">{dropping ? 'Drop the files to add them.' : 'Drop TIFF files anywhere on this dialog, or choose them below.'}</p>
           {mode === 'multi' ? (

@@ -2,7 +2,7 @@
  * The recipe settings form: one block per setting with its controls and, under them, the sentence that says
  * what the current value does (describeSetting, the same words the methods paragraph uses).
  */
-import { BoxMessage, cx, inputClass, useNumberBox, type NumberBox } from '@/components';
+import { BoxMessage, Caution, cx, inputClass, useNumberBox, type NumberBox } from '@/components';
 import { NumberText, NumberTextFor } from '@shared/schemas/common';
 import {
   BlockSizeSetting,
@@ -15,6 +15,7 @@ import {
   SETTING_LABELS,
   describeObjectSetting,
   describeSetting,
+  projectionCaution,
   type ObjectSettingKey,
   type ObjectsSetting,
   type RecipeSettings,
@@ -356,6 +357,11 @@ export function SettingsEditor({ value: s, onChange, readOnly }: Props) {
               </div>
             );
           })()}
+        {projectionCaution(s.z) && (
+          <Caution title="Projections can create false co-localization" className="mt-2">
+            {projectionCaution(s.z)}
+          </Caution>
+        )}
       </div>
     ),
     minCellPixels: <Num label="Fewest pixels" disabled={d} step="1" min={0} max={100_000_000} value={s.minCellPixels} onChange={(n) => set({ minCellPixels: Math.max(0, Math.round(n)) })} />,
