@@ -11,20 +11,8 @@
  * `npx tsx tests/bench/calibration.bench.ts [size]`.
  */
 import { alignChannel, crossCorrelationCurves, measureShift, unmixChannels, Xoshiro128 } from '../../shared/analysis/index';
+import { fmt, time } from './timing';
 
-function time(fn: () => unknown, repeats: number) {
-  let wall = Infinity, cpu = Infinity;
-  for (let r = 0; r < repeats; r++) {
-    const c0 = process.cpuUsage();
-    const t0 = performance.now();
-    fn();
-    wall = Math.min(wall, performance.now() - t0);
-    const c = process.cpuUsage(c0);
-    cpu = Math.min(cpu, (c.user + c.system) / 1000);
-  }
-  return { wall, cpu };
-}
-const fmt = (t: { wall: number; cpu: number }) => `${t.wall.toFixed(1)} ms wall, ${t.cpu.toFixed(1)} ms CPU`;
 
 const S = Number(process.argv[2] ?? 2048), N = Math.round((2000 * S * S) / (2048 * 2048));
 const DX = 2.37, DY = -1.62;

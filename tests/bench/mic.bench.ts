@@ -14,20 +14,8 @@ import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { measurePairs, mic, pairsFromArrays, prepare, Xoshiro128 } from '../../shared/analysis/index';
+import { fmt, time } from './timing';
 
-function time(fn: () => unknown, repeats: number) {
-  let wall = Infinity, cpu = Infinity;
-  for (let r = 0; r < repeats; r++) {
-    const c0 = process.cpuUsage();
-    const t0 = performance.now();
-    fn();
-    wall = Math.min(wall, performance.now() - t0);
-    const c = process.cpuUsage(c0);
-    cpu = Math.min(cpu, (c.user + c.system) / 1000);
-  }
-  return { wall, cpu };
-}
-const fmt = (t: { wall: number; cpu: number }) => `${t.wall.toFixed(1)} ms wall, ${t.cpu.toFixed(1)} ms CPU`;
 
 const n = Number(process.argv[2] ?? 20000);
 if (!(Number.isInteger(n) && n >= 10)) throw new RangeError(`pixels must be an integer ≥ 10, received ${process.argv[2]}`);

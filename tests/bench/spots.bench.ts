@@ -9,20 +9,8 @@
  * Run: `npm run bench` (BENCH=spots) or `npx tsx tests/bench/spots.bench.ts`.
  */
 import { detectSpots, gaussianKernels, laplacianOfGaussian, pairSpots, spotPlacementTest, Xoshiro128 } from '../../shared/analysis/index';
+import { fmt, time } from './timing';
 
-function time(fn: () => unknown, repeats: number) {
-  let wall = Infinity, cpu = Infinity;
-  for (let r = 0; r < repeats; r++) {
-    const c0 = process.cpuUsage();
-    const t0 = performance.now();
-    fn();
-    wall = Math.min(wall, performance.now() - t0);
-    const c = process.cpuUsage(c0);
-    cpu = Math.min(cpu, (c.user + c.system) / 1000);
-  }
-  return { wall, cpu };
-}
-const fmt = (t: { wall: number; cpu: number }) => `${t.wall.toFixed(1)} ms wall, ${t.cpu.toFixed(1)} ms CPU`;
 
 const S = 2048, N = 2000;
 function field(seed: number): [Uint16Array, [number, number][]] {

@@ -1,0 +1,15 @@
+/** Timing for the benchmarks: the best of `repeats` runs, wall and CPU (user + system) milliseconds. */
+export function time(fn: () => unknown, repeats: number): { wall: number; cpu: number } {
+  let wall = Infinity, cpu = Infinity;
+  for (let r = 0; r < repeats; r++) {
+    const c0 = process.cpuUsage();
+    const t0 = performance.now();
+    fn();
+    wall = Math.min(wall, performance.now() - t0);
+    const c = process.cpuUsage(c0);
+    cpu = Math.min(cpu, (c.user + c.system) / 1000);
+  }
+  return { wall, cpu };
+}
+
+export const fmt = (t: { wall: number; cpu: number }) => `${t.wall.toFixed(1)} ms wall, ${t.cpu.toFixed(1)} ms CPU`;
