@@ -10,8 +10,8 @@ import { spawn } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
-import { main } from '../../server/cli/analyze';
+import { describe, expect, it } from 'vitest';
+import { captureAnalyze } from './capture';
 import { REGION_RESULT_KEYS } from '../../shared/analysis/index';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
@@ -19,27 +19,7 @@ const fx = (f: string) => join(root, 'tests/fixtures/calibration', f);
 const expected = JSON.parse(readFileSync(fx('expected.json'), 'utf8'));
 type Correction = { kind: string; shift: [number, number] | null; bleed: [number, number] | null; regions: Record<string, number | null>[] };
 
-let out = '';
-let err = '';
-beforeEach(() => {
-  vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => ((out += String(s)), true));
-  vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => ((err += String(s)), true));
-});
-afterEach(() => vi.restoreAllMocks());
-
-async function run(...args: string[]) {
-  out = '';
-  err = '';
-  const code = await main(args);
-  return { code, out, err };
-}
-async function json(...args: string[]) {
-  const r = await run(...args, '--json');
-  expect(r.err).toBe('');
-  expect(r.code).toBe(0);
-  expect(r.out).not.toMatch(/NaN|Infinity/);
-  return JSON.parse(r.out);
-}
+const { run, json } = captureAnalyze();
 
 function near(a: number | null, b: number | null, what: string) {
   if (a === null || b === null) return expect(a, what).toBe(b);

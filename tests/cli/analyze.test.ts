@@ -9,8 +9,9 @@ import { mkdtempSync, readFileSync, writeFileSync, mkdirSync, rmSync } from 'nod
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { afterAll, afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
-import { HELP, main } from '../../server/cli/analyze';
+import { afterAll, describe, expect, it } from 'vitest';
+import { HELP } from '../../server/cli/analyze';
+import { captureAnalyze } from './capture';
 import { measureObjects, OBJECT_RESULT_KEYS, REGION_RESULT_KEYS, type ObjectResult } from '../../shared/analysis/index';
 import { writeTiffU16 } from '../images/tiffwrite';
 
@@ -20,22 +21,7 @@ const expected = JSON.parse(readFileSync(fx('expected.json'), 'utf8'));
 const u8 = expected.cases.find((c: { name: string }) => c.name === 'u8');
 const tmp = mkdtempSync(join(tmpdir(), 'syntopy-cli-'));
 
-let out = '';
-let err = '';
-beforeEach(() => {
-  out = '';
-  err = '';
-  vi.spyOn(process.stdout, 'write').mockImplementation((s: string | Uint8Array) => ((out += String(s)), true));
-  vi.spyOn(process.stderr, 'write').mockImplementation((s: string | Uint8Array) => ((err += String(s)), true));
-});
-afterEach(() => vi.restoreAllMocks());
-
-async function run(...args: string[]) {
-  out = '';
-  err = '';
-  const code = await main(args);
-  return { code, out, err };
-}
+const { run } = captureAnalyze();
 
 function near(a: number | null, b: number | null, what: string) {
   if (a === null || b === null) return expect(a, what).toBe(b);
@@ -95,8 +81,9 @@ describe('analyze: results', () => {
   });
   it('RGB samples (interleaved and planar) as channels give the same numbers as the two-page file', async () => {
     const get = async (f: string) => {
-      expect((await run('--image', fx(f), '--channels', '1,2', '--json')).code).toBe(0);
-      return JSON.parse(out).regions[0];
+      const r = await run('--image', fx(f), '--channels', '1,2', '--json');
+      expect(r.code).toBe(0);
+      return JSON.parse(r.out).regions[0];
     };
     const a = await get('u8.tif');
     expect(await get('u8_rgb_contig.tif')).toEqual(a);
