@@ -33,3 +33,29 @@ export async function api<T>(path: string, opts: { method?: string; body?: unkno
   }
   return opts.schema ? opts.schema.parse(data) : (data as T);
 }
+
+/**
+ * Download a file answer of the API: saved under the server's content-disposition name (else `fallbackName`);
+ * a refusal throws ApiError with the server's message instead of saving the error as a file.
+ */
+export async function downloadFile(path: string, fallbackName: string): Promise<void> {
+  const res = await fetch(`/api${path}`, { credentials: 'same-origin' });
+  if (!res.ok) {
+    let d: { error?: string } = {};
+    try {
+      d = (await res.json()) as { error?: string };
+    } catch {
+      d = {};
+    }
+    throw new ApiError(res.status, d.error ?? `download failed (${res.status})`);
+  }
+  const name = /filename="([^"]+)"/.exec(res.headers.get('content-disposition') ?? '')?.[1] ?? fallbackName;
+  const url = URL.createObjectURL(await res.blob());
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = name;
+  document.body.appendChild(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 0);
+}

@@ -27,7 +27,7 @@ import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/f
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
-import { ApiError } from '@/lib/api';
+import { ApiError, downloadFile } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 import { plural } from '@shared/format/plural';
 
@@ -220,9 +220,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells.geojson`} download>
               Outlines (GeoJSON)
             </a>
-            <a className="rounded-md border border-ink/20 bg-white px-2.5 py-1 text-sm font-medium hover:bg-ink/5" href={`/api/fields/${fieldId}/cells/labels.tiff`} download>
-              Label image (TIFF)
-            </a>
+            <Button onClick={() => downloadFile(`/fields/${fieldId}/cells/labels.tiff`, `${field.name}-labels.tiff`).catch((e: Error) => setNotice(e.message))}>Label image (TIFF)</Button>
             {canEdit && (
               <>
                 <Button onClick={() => setDialog('labels')}>Import label image</Button>
