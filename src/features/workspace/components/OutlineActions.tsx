@@ -11,16 +11,41 @@ import { useImportOutlines } from '../api/useImportOutlines';
 import { useAutoOutline } from '../api/useAutoOutline';
 import { plural } from '@shared/format/plural';
 
-export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { fieldId: number; open: boolean; onClose: () => void; size: [number, number]; onDone: (msg: string) => void }) {
-  const m = useImportLabels(fieldId);
+/** A dialog that imports one file into a field's outlines: file box, a "replace earlier imports" box, Import. */
+function FileImportDialog<R>({
+  open,
+  onClose,
+  title,
+  description,
+  accept,
+  fileLabel,
+  replaceLabel,
+  replaceDefault,
+  mutation: m,
+  done,
+  onDone,
+}: {
+  open: boolean;
+  onClose: () => void;
+  title: string;
+  description: string;
+  accept: string;
+  fileLabel: string;
+  replaceLabel: string;
+  replaceDefault: boolean;
+  mutation: { mutate: (v: { file: File; replace: boolean }, o: { onSuccess: (r: R) => void }) => void; isPending: boolean; error: unknown };
+  /** the notice after a successful import */
+  done: (r: R, file: File) => string;
+  onDone: (msg: string) => void;
+}) {
   const [file, setFile] = useState<File | null>(null);
-  const [replace, setReplace] = useState(true);
+  const [replace, setReplace] = useState(replaceDefault);
   return (
     <Dialog
       open={open}
       onClose={onClose}
-      title="Import a label image"
-      description={`A single-channel TIFF of exactly ${size[0]} × ${size[1]} pixels: 0 is background, every positive value is one cell. Each cell keeps exactly its labelled pixels.`}
+      title={title}
+      description={description}
       footer={
         <>
           <Button onClick={onClose}>Cancel</Button>
@@ -34,7 +59,7 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
                 { file, replace },
                 {
                   onSuccess: (r) => {
-                    onDone(`${plural(r.labels, 'cell')} imported from ${file.name}`);
+                    onDone(done(r, file));
                     onClose();
                   },
                 },
@@ -47,9 +72,9 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
       }
     >
       <div className="space-y-3 text-sm">
-        <input type="file" accept=".tif,.tiff,image/tiff" aria-label="Label image file" onChange={(e) => setFile(e.target.files?.[0] ?? null)} />
+        <input type="file" accept={accept} aria-label={fileLabel} onChange={(e) => setFile(e.target.files?.[0] ?? null)} />
         <label className="flex items-center gap-2">
-          <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> Replace cells from an earlier label image
+          <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> {replaceLabel}
         </label>
         <ErrorNotice error={m.error} />
       </div>
@@ -57,49 +82,41 @@ export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { f
   );
 }
 
+export function ImportLabelsDialog({ fieldId, open, onClose, size, onDone }: { fieldId: number; open: boolean; onClose: () => void; size: [number, number]; onDone: (msg: string) => void }) {
+  const m = useImportLabels(fieldId);
+  return (
+    <FileImportDialog
+      open={open}
+      onClose={onClose}
+      title="Import a label image"
+      description={`A single-channel TIFF of exactly ${size[0]} × ${size[1]} pixels: 0 is background, every positive value is one cell. Each cell keeps exactly its labelled pixels.`}
+      accept=".tif,.tiff,image/tiff"
+      fileLabel="Label image file"
+      replaceLabel="Replace cells from an earlier label image"
+      replaceDefault
+      mutation={m}
+      done={(r, file) => `${plural(r.labels, 'cell')} imported from ${file.name}`}
+      onDone={onDone}
+    />
+  );
+}
+
 export function ImportOutlinesDialog({ fieldId, open, onClose, onDone }: { fieldId: number; open: boolean; onClose: () => void; onDone: (msg: string) => void }) {
   const m = useImportOutlines(fieldId);
-  const [file, setFile] = useState<File | null>(null);
-  const [replace, setReplace] = useState(false);
   return (
-    <Dialog
+    <FileImportDialog
       open={open}
       onClose={onClose}
       title="Import outlines (GeoJSON)"
       description="A GeoJSON FeatureCollection of Polygon or MultiPolygon features in this field's pixel coordinates (x right, y down, from the top-left corner). A feature's name and background flag come from its properties; holes are kept. A file with any fault is refused as a whole."
-      footer={
-        <>
-          <Button onClick={onClose}>Cancel</Button>
-          <Button
-            variant="primary"
-            disabled={!file}
-            pending={m.isPending}
-            onClick={() =>
-              file &&
-              m.mutate(
-                { file, replace },
-                {
-                  onSuccess: (r) => {
-                    onDone(`${plural(r.features, 'outline')} imported from ${file.name}`);
-                    onClose();
-                  },
-                },
-              )
-            }
-          >
-            Import
-          </Button>
-        </>
-      }
-    >
-      <div className="space-y-3 text-sm">
-        <input type="file" accept=".geojson,.json,application/geo+json,application/json" aria-label="GeoJSON file" onChange={(e) => setFile(e.target.files?.[0] ?? null)} />
-        <label className="flex items-center gap-2">
-          <input type="checkbox" checked={replace} onChange={(e) => setReplace(e.target.checked)} /> Replace outlines from an earlier GeoJSON import
-        </label>
-        <ErrorNotice error={m.error} />
-      </div>
-    </Dialog>
+      accept=".geojson,.json,application/geo+json,application/json"
+      fileLabel="GeoJSON file"
+      replaceLabel="Replace outlines from an earlier GeoJSON import"
+      replaceDefault={false}
+      mutation={m}
+      done={(r, file) => `${plural(r.features, 'outline')} imported from ${file.name}`}
+      onDone={onDone}
+    />
   );
 }
 
