@@ -15,7 +15,7 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-it('startDemoRun measures every demo cell once, and treated cells co-localize more than untreated', async () => {
+it('startDemoRun measures every demo cell once, and treated cells co-localize (pixels and spots) more than untreated', async () => {
   const run = await startDemoRun(t.ctx);
   expect(run).not.toBeNull();
   const deadline = Date.now() + 120_000;
@@ -31,7 +31,7 @@ it('startDemoRun measures every demo cell once, and treated cells co-localize mo
   }
   const study = t.ctx.db.select().from(studies).where(eq(studies.name, DEMO_STUDY)).get()!;
   const rows = t.ctx.db
-    .select({ condition: conditions.name, pearson: measurements.pearson, m1: measurements.mandersM1 })
+    .select({ condition: conditions.name, pearson: measurements.pearson, m1: measurements.mandersM1, spots1: measurements.spotCount1, paired1: measurements.spotPaired1 })
     .from(measurements)
     .innerJoin(cells, eq(cells.id, measurements.cellId))
     .innerJoin(fields, eq(fields.id, cells.fieldId))
@@ -46,11 +46,15 @@ it('startDemoRun measures every demo cell once, and treated cells co-localize mo
     .where(and(eq(cells.role, 'cell'), isNull(cells.deletedAt)))
     .all().length;
   expect(rows.length).toBe(cellCount);
-  const mean = (c: string, k: 'pearson' | 'm1') => {
+  const mean = (c: string, k: 'pearson' | 'm1' | 'paired1') => {
     const v = rows.filter((r) => r.condition === c).map((r) => r[k]!).filter((x) => x !== null);
     return v.reduce((a, b) => a + b, 0) / v.length;
   };
   // the generator's shared share is 60 % treated vs 20 % untreated (server/db/seed/index.ts)
   expect(mean('treated', 'pearson')).toBeGreaterThan(mean('untreated', 'pearson') + 0.1);
   expect(mean('treated', 'm1')).toBeGreaterThan(mean('untreated', 'm1'));
+  // the demo recipe has Spots on: cells have channel-1 spots, and treated cells pair more of them
+  // (at this test's small field size a cell holds only a few spots, so the margin is small)
+  expect(rows.reduce((a, r) => a + (r.spots1 ?? 0), 0)).toBeGreaterThan(rows.length);
+  expect(mean('treated', 'paired1')).toBeGreaterThan(mean('untreated', 'paired1'));
 });

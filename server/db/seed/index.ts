@@ -213,10 +213,11 @@ export async function seedDemo(ctx: AppContext, opts: SeedOptions = {}) {
   return { studyId: ids.study, fieldsAdded: made };
 }
 
-/** One approved demo recipe (RecipeSettings defaults: Costes thresholds, every coefficient). */
+/** One approved demo recipe (RecipeSettings defaults: Costes thresholds, every coefficient; Spots on). */
 function seedRecipe(tx: Parameters<Parameters<AppContext['db']['transaction']>[0]>[0], proposerId: number, reviewerId: number) {
   if (tx.select({ id: recipes.id }).from(recipes).where(eq(recipes.name, DEMO_RECIPE)).get()) return;
-  const settings = JSON.parse(JSON.stringify(DEFAULT_RECIPE_SETTINGS)) as Record<string, unknown>;
+  // the demo study is about shared puncta, so its recipe also finds spots and pairs them (defaults otherwise)
+  const settings = JSON.parse(JSON.stringify({ ...DEFAULT_RECIPE_SETTINGS, objects: { ...DEFAULT_RECIPE_SETTINGS.objects, enabled: true } })) as Record<string, unknown>;
   const now = new Date().toISOString();
   const r = tx
     .insert(recipes)
@@ -225,7 +226,7 @@ function seedRecipe(tx: Parameters<Parameters<AppContext['db']['transaction']>[0
       version: 1,
       status: 'approved',
       settings,
-      description: 'Invented demo recipe: no background subtraction, saturated pixels kept (and flagged), Costes automatic thresholds, all coefficients.',
+      description: 'Invented demo recipe: no background subtraction, saturated pixels kept (and flagged), Costes automatic thresholds, all coefficients, spots paired within the default distance.',
       proposerId,
       reviewerId,
       reviewNote: 'Approved for the demo study.',
