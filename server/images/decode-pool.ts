@@ -14,6 +14,7 @@ import { ImageInputError } from './errors.js';
 import type { DecodeOptions, PixelArray, TiffInfo } from './decode.js';
 import type { DecodeReply, DecodeTask } from './decode-worker.js';
 import type { DecodedStack, SourceRef } from './sources.js';
+import type { BleedMeasurement, ShiftMeasurement, StoredFieldBytes } from './calibration-measure.js';
 
 const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'decode-worker.ts');
 /** Decoding threads at once; more uploads wait their turn (each may hold up to MAX_DECODED_BYTES). */
@@ -43,7 +44,12 @@ export class DecodePool {
   private async run<T>(task: DecodeTask, what: string): Promise<T> {
     let reply: DecodeReply<T>;
     try {
-      const transferList = task.kind === 'channel' && typeof task.input !== 'string' ? [task.input.buffer as ArrayBuffer] : undefined;
+      const transferList =
+        task.kind === 'channel' && typeof task.input !== 'string'
+          ? [task.input.buffer as ArrayBuffer]
+          : task.kind === 'shift' || task.kind === 'bleed'
+            ? [...new Set((task.kind === 'shift' ? [task.field] : task.fields).flatMap((f) => [f.bytes1.buffer, f.bytes2?.buffer]).filter((b) => b !== undefined))] as ArrayBuffer[]
+            : undefined;
       reply = await this.pool.run(task, { signal: AbortSignal.timeout(this.env.DECODE_TIMEOUT_MS), transferList });
     } catch (e) {
       const err = e as { name?: string; code?: string; message?: string };
@@ -69,6 +75,19 @@ export class DecodePool {
   decodeChannel(input: Uint8Array, channel: number, name: string, pages?: DecodeOptions['pages']): Promise<{ info: TiffInfo; slices: PixelArray[]; width: number; height: number }> {
     // a private copy of the bytes is handed over (transferred) to the thread
     return this.run({ kind: 'channel', input: input.slice(), channel, opts: pages ? { ...this.opts, pages } : this.opts }, `decoding "${name}"`);
+  }
+
+  /**
+   * A stored field's shift with its cross-correlation curves (calibration-measure.ts). The bytes are handed
+   * over (transferred): pass private copies.
+   */
+  measureShift(field: StoredFieldBytes, maxShift: number): Promise<ShiftMeasurement> {
+    return this.run({ kind: 'shift', field, maxShift, opts: this.opts }, `measuring the shift of "${field.name}"`);
+  }
+
+  /** The bleed-through slope over single-label controls (bytes transferred, as above). */
+  measureBleed(fields: StoredFieldBytes[], label: 1 | 2, align: { dx: number; dy: number } | null): Promise<BleedMeasurement> {
+    return this.run({ kind: 'bleed', fields, label, align, opts: this.opts }, `measuring the bleed-through of ${fields.map((f) => `"${f.name}"`).join(', ')}`);
   }
 
   close() {

@@ -10,6 +10,7 @@
  *   GET    /api/fields/:id/pixels?z=         raw pixels of one slice (or the projection) for the browser's pixel
  *          scatter (read), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
  *          field's own sample type); header x-syntopy-z names the slice in words.
+ *   GET    /api/fields/:id/shift?maxShift=    the field's channel shift and van Steensel curves (read; nothing stored)
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -29,6 +30,9 @@ import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pi
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
 import { keyForSha } from '../images/store.js';
+import { decodePoolOf } from '../images/decode-pool.js';
+import { storedFieldBytes } from '../images/calibration-bytes.js';
+import { FieldShiftQuery, type FieldShift } from '../../shared/schemas/instruments.js';
 
 
 
@@ -397,6 +401,16 @@ export default function fieldsRoutes(ctx: AppContext) {
     res.setHeader('x-syntopy-z', px.zLabel);
     res.setHeader('access-control-expose-headers', 'x-syntopy-z');
     res.end(body);
+  });
+
+  /** The field's own channel shift and cross-correlation curves, measured in a decoding thread; stores nothing. */
+  r.get('/fields/:id/shift', async (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
+    const { maxShift } = parse(FieldShiftQuery, req.query);
+    const m = await decodePoolOf(ctx).measureShift(await storedFieldBytes(ctx, field), maxShift);
+    res.json({ fieldId, fieldName: field.name, width: m.width, height: m.height, dx: m.dx, dy: m.dy, peak: m.peak, z: m.z, curves: m.curves } satisfies FieldShift);
   });
 
   return r;
