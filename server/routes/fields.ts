@@ -334,6 +334,7 @@ export default function fieldsRoutes(ctx: AppContext) {
       conditionId,
       files: [fileOf(field.file1Sha, field.channel1), fileOf(field.file2Sha, field.channel2)],
       uploadedBy: field.uploadedBy ?? null,
+      instrumentName: field.instrumentId === null ? null : (ctx.db.select({ name: instruments.name }).from(instruments).where(eq(instruments.id, field.instrumentId)).get()?.name ?? null),
       canEdit: perms.has('edit_images'),
     };
     res.json(detail);

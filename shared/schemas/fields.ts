@@ -68,6 +68,8 @@ export const FieldDetail = FieldSummary.extend({
   conditionId: z.number().int(),
   files: z.tuple([FieldFile, FieldFile]),
   uploadedBy: z.number().int().nullable(),
+  /** the name of the instrument the field was recorded on (shown as text to those who may not change it), or null */
+  instrumentName: z.string().nullable(),
   /** what the viewer may do */
   canEdit: z.boolean(),
 });

@@ -1,7 +1,9 @@
 /**
  * Route module: the field workspace (/studies/:studyId/fields/:fieldId). The image with its outlines, the
  * Cells list, the Pixel scatter with live coefficients (preview), per-cell results, the Spots panel (the
- * latest run's spots drawn over the image, or live detection at the sliders' σ and k) and the cautions.
+ * latest run's spots drawn over the image, or live detection at the sliders' σ and k), the channel alignment
+ * (curves and the composite with alignment on/off, drawn by the pixel worker), the field's instrument (a
+ * choice for editors, text in the header for everyone else) and the cautions.
  * Keys: V P B O F tools · M background mode · Ctrl+Z / Ctrl+Shift+Z undo/redo · Delete removes the selected
  * outline · arrows nudge it (Shift: 10 px) · + − 0 1 zoom · Esc deselects.
  */
@@ -24,6 +26,7 @@ import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
+import { AlignmentPanel } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -213,6 +216,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             {`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''} · `}
             <PixelSizeEditor fieldId={fieldId} pixelSizeUm={field.pixelSizeUm} canEdit={canEdit} />
             {`${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
+            {!canEdit && <span data-testid="field-instrument-text">{` · ${field.instrumentName ? `recorded on ${field.instrumentName}` : 'instrument not given'}`}</span>}
           </>
         }
         actions={
@@ -344,6 +348,12 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               cell={spotCell}
               pairDistancePx={pairDistancePx}
             />
+          </section>
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-alignment-heading">
+            <h2 id="field-alignment-heading" className="mb-1 text-base font-semibold">
+              Channel alignment
+            </h2>
+            {pixels.isError ? <ErrorNotice error={pixels.error} /> : <AlignmentPanel field={field} drawer={scatter} />}
           </section>
           {canEdit && (
             <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-instrument-heading">

@@ -19,6 +19,8 @@ export interface LiveResult {
 }
 
 export type SpotPreviewView = Extract<ScatterReply, { type: 'spots' }>;
+/** A composite drawn by the worker (composite.ts): channel 2 as recorded (shift null) or aligned. */
+export type CompositeView = Extract<ScatterReply, { type: 'composite' }>;
 
 export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: number | null) {
   const worker = useRef<Worker | null>(null);
@@ -36,6 +38,8 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   const spotsWaiting = useRef<Extract<ScatterRequest, { type: 'spots' }> | null>(null);
   const [spots, setSpots] = useState<SpotPreviewView | null>(null);
   const [spotsError, setSpotsError] = useState<string | null>(null);
+  const [composite, setComposite] = useState<CompositeView | null>(null);
+  const [compositeError, setCompositeError] = useState<string | null>(null);
 
   useEffect(() => {
     if (!pixels) return;
@@ -61,6 +65,15 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     };
     w.onmessage = (e: MessageEvent<ScatterReply>) => {
       const m = e.data;
+      if (m.type === 'composite' || (m.type === 'error' && m.composite)) {
+        // drawings answer in order; only the latest asked for is kept
+        if (m.seq !== compositeSeq.current) return;
+        if (m.type === 'composite') {
+          setComposite(m);
+          setCompositeError(null);
+        } else setCompositeError(m.message);
+        return;
+      }
       if (m.type === 'spots' || (m.type === 'error' && m.spots)) {
         if (m.type === 'spots') {
           setSpots(m);
@@ -106,6 +119,15 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   }, [pixels, saturationLevel]);
 
   const pendingMeasure = useRef(new Set<number>());
+  const compositeSeq = useRef(0);
+
+  /** Draw the composite with channel 2 as recorded (null) or aligned by the shift; the latest request wins. */
+  const requestComposite = (shift: { dx: number; dy: number } | null) => {
+    const w = worker.current;
+    if (!w) return;
+    compositeSeq.current = ++seq.current;
+    w.postMessage({ type: 'composite', seq: compositeSeq.current, shift } satisfies ScatterRequest);
+  };
 
   /**
    * Ask for the scatter of a region (null geometry = whole field); `measure` adds the live coefficients.
@@ -138,5 +160,5 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     }
   };
 
-  return { ready, view, live, error, request, spots, spotsError, requestSpots };
+  return { ready, view, live, error, request, spots, spotsError, requestSpots, composite, compositeError, requestComposite };
 }
