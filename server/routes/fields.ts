@@ -20,7 +20,7 @@ import { Router, type Request } from 'express';
 import multer, { type StorageEngine } from 'multer';
 import { and, asc, eq, inArray, or } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { auditEvents, cells, conditions, coverslips, fields, files, instruments, measurements, runFields } from '../db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, instruments, measurements, runFields, studies } from '../db/schema.js';
 import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
@@ -242,6 +242,8 @@ export default function fieldsRoutes(ctx: AppContext) {
           if (p.instrumentId != null && !ctx.db.select({ id: instruments.id }).from(instruments).where(eq(instruments.id, p.instrumentId)).get())
             throw badRequest(`field ${i + 1} of the plan names instrument ${p.instrumentId}, which does not exist`);
         }
+        // a plan entry that does not name an instrument (absent, not null) is recorded on the study's default
+        const studyDefault = ctx.db.select({ id: studies.defaultInstrumentId }).from(studies).innerJoin(conditions, eq(conditions.studyId, studies.id)).innerJoin(coverslips, eq(coverslips.conditionId, conditions.id)).where(eq(coverslips.id, coverslipId)).get()?.id ?? null;
         const uses = new Map<number, number>();
         for (const p of plan) for (const i of new Set([p.ch1.file, p.ch2.file])) uses.set(i, (uses.get(i) ?? 0) + 1);
         const results: UploadResult[] = [];
@@ -256,7 +258,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 coverslipId,
                 userId: req.user!.id,
                 name,
-                instrumentId: p.instrumentId ?? null,
+                instrumentId: p.instrumentId === undefined ? studyDefault : p.instrumentId,
                 pixelSizeUm: p.pixelSizeUm ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
