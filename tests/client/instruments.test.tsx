@@ -44,6 +44,7 @@ describe('an instrument page', () => {
       on('GET', '/instruments/3', () => ({ body: instrument })),
       on('GET', '/calibrations/11', () => ({ body: draft })),
       on('PATCH', '/calibrations/11', (c) => ({ body: { ...draft, ...(c.body as object) } })),
+      on('GET', '/studies', () => ({ body: { studies: [] } })),
     );
     renderRoutes([{ path: '/instruments/:instrumentId', Component: Instrument }], '/instruments/3');
     const a21 = (await screen.findByLabelText('Bleed-through a21')) as HTMLInputElement;

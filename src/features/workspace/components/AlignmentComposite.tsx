@@ -35,9 +35,9 @@ export function AlignmentComposite({ drawer, shift, title = 'Composite' }: { dra
   useEffect(() => {
     const c = canvas.current;
     if (!c || !shown) return;
-    const img = new ImageData(new Uint8ClampedArray(shown.rgba), shown.width, shown.height);
     const ctx = c.getContext('2d');
     if (!ctx) return;
+    const img = new ImageData(new Uint8ClampedArray(shown.rgba), shown.width, shown.height);
     if (!centre) {
       c.width = shown.width;
       c.height = shown.height;
