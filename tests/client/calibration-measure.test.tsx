@@ -84,7 +84,7 @@ function withPixels() {
   const ch2 = Uint16Array.from({ length: 24 * 16 }, (_, i) => (i * 53) % 1000);
   const body = encodePixels({ width: 24, height: 16, depth: 1, bitDepth: 16, sampleType: 'uint16', ch1, ch2 });
   vi.stubGlobal('fetch', (input: RequestInfo | URL, init?: RequestInit) =>
-    String(input).includes('/api/fields/5/pixels') ? Promise.resolve(new Response(body, { status: 200, headers: { 'content-type': 'application/x-syntopy-pixels', 'x-syntopy-z': 'single plane' } })) : json(input, init),
+    String(input).includes('/api/fields/5/pixels') ? Promise.resolve(new Response(body.slice().buffer as ArrayBuffer, { status: 200, headers: { 'content-type': 'application/x-syntopy-pixels', 'x-syntopy-z': 'single plane' } })) : json(input, init),
   );
   vi.stubGlobal('Worker', FakeWorker);
   // jsdom draws nothing: the picture is checked on the worker's bytes (tests/workspace/composite.test.ts)
