@@ -71,7 +71,7 @@ export function MeasureCalibration({ c, channels, blocked }: { c: CalibrationDet
                 <option value="">Choose a field…</option>
                 {list.map((f) => (
                   <option key={f.id} value={f.id}>
-                    {f.name} ({f.width} × {f.height})
+                    {f.name} ({f.width} × {f.height}{list.filter((g) => g.name === f.name).length > 1 ? `, id ${f.id}` : ''})
                   </option>
                 ))}
               </select>
@@ -99,6 +99,7 @@ export function MeasureCalibration({ c, channels, blocked }: { c: CalibrationDet
                 <label key={f.id} className="flex items-center gap-2">
                   <input type="checkbox" checked={controls.includes(f.id)} onChange={(e) => setControls((cur) => (e.target.checked ? [...cur, f.id] : cur.filter((x) => x !== f.id)))} />
                   {f.name}
+                  {list.filter((g) => g.name === f.name).length > 1 && <span className="text-ink-soft">(id {f.id})</span>}
                 </label>
               ))}
             </div>

@@ -76,7 +76,7 @@ export function AlignmentComposite({ drawer, shift, title = 'Composite' }: { dra
       {drawer.compositeError ? (
         <ErrorNotice error={drawer.compositeError} />
       ) : (
-        <div className="relative">
+        <div className="relative max-w-md">
           <canvas ref={canvas} role="img" aria-label={`Composite of both channels, ${what}`} className="h-auto w-full bg-black" style={{ imageRendering: centre ? 'pixelated' : 'auto' }} />
           {!shown && (
             <div className="absolute inset-0 grid place-items-center">
