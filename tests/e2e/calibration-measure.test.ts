@@ -5,8 +5,8 @@
  * the field, measures, and sees the shift filled in (within 0.05 px of the truth), the cross-correlation
  * curves with the measured shift marked on each axis and the composite before and after alignment. Once the
  * version is approved, the collaborator (read-only in the demo study) sees the field's instrument as text in
- * the workspace header and the workspace's alignment panel offers the approved shift and measures the
- * field's own. Screenshots: test-results/calibration-*.png.
+ * the workspace header and the workspace's alignment panel measures the field's own shift and aligns the
+ * main image by it when asked. Screenshots: test-results/calibration-*.png.
  */
 import fs from 'node:fs';
 import path from 'node:path';
@@ -47,6 +47,8 @@ it('a facility manager measures a new calibration on a bead field and sees the c
   await page.getByLabel('Bead field').selectOption({ label: 'beads-shift1 (256 × 256)' });
   await page.getByRole('button', { name: 'Measure shift' }).click();
   await page.getByTestId('source-shift').waitFor({ timeout: 60_000 });
+  // the boxes take the measured values (the version is stored first, then the form follows it)
+  await expect.poll(() => page.getByLabel('Channel shift, y (px)').inputValue(), { timeout: 10_000 }).not.toBe('');
   const dx = Number(await page.getByLabel('Channel shift, x (px)').inputValue());
   const dy = Number(await page.getByLabel('Channel shift, y (px)').inputValue());
   expect(Math.abs(dx - truth.dx)).toBeLessThan(0.05);
@@ -91,7 +93,12 @@ it('a read-only member sees the instrument as text and the field’s alignment i
   await panel.getByTestId('cross-correlation').waitFor({ timeout: 60_000 });
   expect(await panel.getByTestId('field-shift').innerText()).toMatch(/^Measured on this field: \(-7\.\d\d, 5\.\d\d\) px/);
   await expect.poll(() => panel.getByTestId('alignment-composite-state').innerText(), { timeout: 30_000 }).toMatch(/^Showing channel 2 aligned by \(-7\.\d\d, 5\.\d\d\) px\./);
+  // the main image too: drawn in the browser with channel 2 aligned, instead of the server's preview
+  await panel.getByLabel('Align channel 2 in the main image too').check();
+  await page.getByTestId('field-viewer').locator('img[data-aligned="true"]').waitFor({ timeout: 30_000 });
   await shot(page, 'calibration-03-workspace');
+  await panel.getByLabel('Align channel 2 in the main image too').uncheck();
+  await expect.poll(() => page.getByTestId('field-viewer').locator('img[data-aligned="true"]').count(), { timeout: 10_000 }).toBe(0);
   expect(page.errors).toEqual([]);
   await page.context().close();
 });

@@ -26,7 +26,7 @@ import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
-import { AlignmentPanel } from '@/features/workspace';
+import { AlignmentPanel, useCompositeUrl } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -91,6 +91,18 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   }, [scatter.ready, regionKey, gesture, manual]);
   const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false, cellGeometries), [scatter, regionKey, geometry, cellGeometries]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
+
+  // the main image with channel 2 aligned (the alignment panel's switch): drawn by the pixel worker at the shown intensities
+  const [viewerShift, setViewerShift] = useState<{ dx: number; dy: number } | null>(null);
+  const r1 = display.range1 ?? autoRanges?.[0] ?? null;
+  const r2 = display.range2 ?? autoRanges?.[1] ?? null;
+  const alignMain = !!viewerShift && display.view === 'composite' && !!r1 && !!r2;
+  useEffect(() => {
+    if (alignMain && scatter.ready) scatter.requestComposite(viewerShift, 'viewer', [r1!, r2!]);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [alignMain, scatter.ready, viewerShift?.dx, viewerShift?.dy, r1?.[0], r1?.[1], r2?.[0], r2?.[1]]);
+  const viewerComposite = scatter.composites.viewer;
+  const alignedImage = useCompositeUrl(alignMain && viewerComposite && viewerComposite.shift?.dx === viewerShift?.dx && viewerComposite.shift?.dy === viewerShift?.dy ? viewerComposite : null);
 
   // spots: the latest run's (stored per cell), or live detection in the worker at the sliders' σ and k
   const runId = results.data?.source?.runId ?? results.data?.rows.find((r) => r.runId !== null)?.runId ?? null;
@@ -272,6 +284,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onAutoRanges={setAutoRanges}
               onGesture={setGesture}
               command={command}
+              imageOverride={alignMain ? alignedImage : null}
               overlay={
                 shownSpots && (
                   <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
@@ -353,7 +366,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             <h2 id="field-alignment-heading" className="mb-1 text-base font-semibold">
               Channel alignment
             </h2>
-            {pixels.isError ? <ErrorNotice error={pixels.error} /> : <AlignmentPanel field={field} drawer={scatter} />}
+            {pixels.isError ? <ErrorNotice error={pixels.error} /> : <AlignmentPanel field={field} drawer={scatter} onMainImage={setViewerShift} mainImageComposite={display.view === 'composite'} />}
           </section>
           {canEdit && (
             <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-instrument-heading">

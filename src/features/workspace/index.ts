@@ -20,3 +20,4 @@ export { useOutlineSync } from './lib/useOutlineSync';
 export { useScatter } from './lib/useScatter';
 export { AlignmentComposite, FieldComposite } from './components/AlignmentComposite';
 export { AlignmentPanel } from './components/AlignmentPanel';
+export { useCompositeUrl } from './lib/useCompositeUrl';

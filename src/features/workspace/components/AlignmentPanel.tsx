@@ -4,7 +4,7 @@
  * field, and the composite with alignment on or off (drawn in the pixel worker with the runs' resampling).
  * Looking never changes a stored number; runs apply the approved calibration when their recipe asks for it.
  */
-import { useState } from 'react';
+import { useEffect, useState } from 'react';
 import { Button, ErrorNotice, Loading } from '@/components';
 import { useMe } from '@/features/auth';
 import { CrossCorrelationChart, useFieldShift, useInstruments } from '@/features/instruments';
@@ -14,7 +14,8 @@ import { AlignmentComposite, type CompositeDrawer } from './AlignmentComposite';
 
 type Source = 'approved' | 'measured';
 
-export function AlignmentPanel({ field, drawer }: { field: FieldDetail; drawer: CompositeDrawer }) {
+/** `onMainImage` receives the shift the main image should be aligned by (null: as recorded). */
+export function AlignmentPanel({ field, drawer, onMainImage, mainImageComposite }: { field: FieldDetail; drawer: CompositeDrawer; onMainImage?: (shift: { dx: number; dy: number } | null) => void; mainImageComposite?: boolean }) {
   const [measure, setMeasure] = useState(false);
   const measured = useFieldShift(field.id, measure);
   // collaborators may not read instruments: the approved shift is then simply not offered
@@ -25,6 +26,11 @@ export function AlignmentPanel({ field, drawer }: { field: FieldDetail; drawer: 
   const [chosen, setChosen] = useState<Source | null>(null);
   const source: Source | null = chosen ?? (approved ? 'approved' : measured.data ? 'measured' : null);
   const shift = source === 'approved' && approved ? approved : source === 'measured' && measured.data ? { dx: measured.data.dx, dy: measured.data.dy } : null;
+  const [main, setMain] = useState(false);
+  useEffect(() => {
+    onMainImage?.(main && shift ? { dx: shift.dx, dy: shift.dy } : null);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [main, shift?.dx, shift?.dy]);
   return (
     <div className="space-y-3" data-testid="alignment-panel">
       <div className="space-y-1 text-sm" role="radiogroup" aria-label="Shift to align by">
@@ -56,6 +62,15 @@ export function AlignmentPanel({ field, drawer }: { field: FieldDetail; drawer: 
       {measured.isFetching && <Loading label="Measuring the shift…" />}
       {measured.data && <CrossCorrelationChart curves={measured.data.curves} dx={measured.data.dx} dy={measured.data.dy} />}
       <AlignmentComposite drawer={drawer} shift={shift} />
+      {onMainImage && (
+        <label className="flex items-start gap-2 text-sm">
+          <input type="checkbox" checked={main && !!shift} disabled={!shift} onChange={(e) => setMain(e.target.checked)} />
+          <span>
+            Align channel 2 in the main image too
+            {main && shift && !mainImageComposite ? <span className="block text-xs text-ink-soft">Shown when the view is Both channels.</span> : null}
+          </span>
+        </label>
+      )}
     </div>
   );
 }

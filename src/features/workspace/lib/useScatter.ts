@@ -38,14 +38,16 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   const spotsWaiting = useRef<Extract<ScatterRequest, { type: 'spots' }> | null>(null);
   const [spots, setSpots] = useState<SpotPreviewView | null>(null);
   const [spotsError, setSpotsError] = useState<string | null>(null);
-  const [composite, setComposite] = useState<CompositeView | null>(null);
-  const [compositeError, setCompositeError] = useState<string | null>(null);
+  // composites per slot (the alignment panel, the main image): each slot's latest request wins
+  const [composites, setComposites] = useState<Record<string, CompositeView>>({});
+  const [compositeErrors, setCompositeErrors] = useState<Record<string, string>>({});
 
   useEffect(() => {
     if (!pixels) return;
     const w = new Worker(new URL('./scatter.worker.ts', import.meta.url), { type: 'module' });
     worker.current = w;
     countsByRegion.current.clear();
+    setComposites({});
     const ch1 = pixels.ch1.slice();
     const ch2 = pixels.ch2.slice();
     w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, ch1, ch2, saturationLevel } satisfies ScatterRequest, [ch1.buffer, ch2.buffer]);
@@ -66,12 +68,13 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     w.onmessage = (e: MessageEvent<ScatterReply>) => {
       const m = e.data;
       if (m.type === 'composite' || (m.type === 'error' && m.composite)) {
-        // drawings answer in order; only the latest asked for is kept
-        if (m.seq !== compositeSeq.current) return;
+        // drawings answer in order; only the latest asked for in each slot is kept
+        const slot = m.type === 'composite' ? m.slot : m.composite!;
+        if (m.seq !== compositeSeq.current[slot]) return;
         if (m.type === 'composite') {
-          setComposite(m);
-          setCompositeError(null);
-        } else setCompositeError(m.message);
+          setComposites((c) => ({ ...c, [slot]: m }));
+          setCompositeErrors(({ [slot]: _gone, ...rest }) => rest);
+        } else setCompositeErrors((c) => ({ ...c, [slot]: m.message }));
         return;
       }
       if (m.type === 'spots' || (m.type === 'error' && m.spots)) {
@@ -119,14 +122,17 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   }, [pixels, saturationLevel]);
 
   const pendingMeasure = useRef(new Set<number>());
-  const compositeSeq = useRef(0);
+  const compositeSeq = useRef<Record<string, number>>({});
 
-  /** Draw the composite with channel 2 as recorded (null) or aligned by the shift; the latest request wins. */
-  const requestComposite = (shift: { dx: number; dy: number } | null) => {
+  /**
+   * Draw the composite with channel 2 as recorded (null) or aligned by the shift, into a slot (each slot's
+   * latest request wins); `ranges` are the shown intensities per channel (default: the 0.1–99.9 percentiles).
+   */
+  const requestComposite = (shift: { dx: number; dy: number } | null, slot = 'panel', ranges?: [[number, number], [number, number]]) => {
     const w = worker.current;
     if (!w) return;
-    compositeSeq.current = ++seq.current;
-    w.postMessage({ type: 'composite', seq: compositeSeq.current, shift } satisfies ScatterRequest);
+    compositeSeq.current[slot] = ++seq.current;
+    w.postMessage({ type: 'composite', seq: seq.current, slot, shift, ranges } satisfies ScatterRequest);
   };
 
   /**
@@ -160,5 +166,5 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     }
   };
 
-  return { ready, view, live, error, request, spots, spotsError, requestSpots, composite, compositeError, requestComposite };
+  return { ready, view, live, error, request, spots, spotsError, requestSpots, composites, compositeErrors, requestComposite, composite: composites.panel ?? null, compositeError: compositeErrors.panel ?? null };
 }
