@@ -63,8 +63,8 @@ class FakeWorker {
     FakeWorker.sent.push(m);
     if (m.type === 'pixels') this.img = m;
     if (m.type === 'composite') {
-      const c = renderComposite(this.img!, m.shift);
-      queueMicrotask(() => this.onmessage?.({ data: { type: 'composite', seq: m.seq, shift: m.shift, ...c, ms: 0 } }));
+      const c = renderComposite(this.img!, m.shift, m.ranges);
+      queueMicrotask(() => this.onmessage?.({ data: { type: 'composite', seq: m.seq, slot: m.slot, shift: m.shift, ...c, ms: 0 } }));
     }
   }
   terminate() {}
