@@ -41,7 +41,8 @@ export class DecodePool {
     return { pixelBudget: this.env.PIXEL_BUDGET, maxDecodedBytes: this.env.MAX_DECODED_BYTES };
   }
 
-  private async run<T>(task: DecodeTask, what: string): Promise<T> {
+  /** `per` names what the limits are per in a refusal ("decoding one upload", "one measurement"). */
+  private async run<T>(task: DecodeTask, what: string, per = 'decoding one upload'): Promise<T> {
     let reply: DecodeReply<T>;
     try {
       const transferList =
@@ -54,10 +55,10 @@ export class DecodePool {
     } catch (e) {
       const err = e as { name?: string; code?: string; message?: string };
       if (err?.name === 'AbortError') {
-        throw new ImageInputError(`${what} took longer than the ${this.env.DECODE_TIMEOUT_MS} ms allowed for decoding one upload and was stopped`);
+        throw new ImageInputError(`${what} took longer than the ${this.env.DECODE_TIMEOUT_MS} ms allowed for ${per} and was stopped`);
       }
       if (err?.code === 'ERR_WORKER_OUT_OF_MEMORY' || /exited with code/.test(String(err?.message))) {
-        throw new ImageInputError(`${what} needed more than the ${this.env.DECODE_HEAP_MB} MB of memory allowed for decoding one upload and was stopped`);
+        throw new ImageInputError(`${what} needed more than the ${this.env.DECODE_HEAP_MB} MB of memory allowed for ${per} and was stopped`);
       }
       throw e;
     }
@@ -82,12 +83,12 @@ export class DecodePool {
    * over (transferred): pass private copies.
    */
   measureShift(field: StoredFieldBytes, maxShift: number): Promise<ShiftMeasurement> {
-    return this.run({ kind: 'shift', field, maxShift, opts: this.opts }, `measuring the shift of "${field.name}"`);
+    return this.run({ kind: 'shift', field, maxShift, opts: this.opts }, `measuring the shift of "${field.name}"`, 'one measurement');
   }
 
   /** The bleed-through slope over single-label controls (bytes transferred, as above). */
   measureBleed(fields: StoredFieldBytes[], label: 1 | 2, align: { dx: number; dy: number } | null): Promise<BleedMeasurement> {
-    return this.run({ kind: 'bleed', fields, label, align, opts: this.opts }, `measuring the bleed-through of ${fields.map((f) => `"${f.name}"`).join(', ')}`);
+    return this.run({ kind: 'bleed', fields, label, align, opts: this.opts }, `measuring the bleed-through of ${fields.map((f) => `"${f.name}"`).join(', ')}`, 'one measurement');
   }
 
   close() {

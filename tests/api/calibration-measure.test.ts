@@ -240,3 +240,24 @@ describe('off the web thread', () => {
     expect(answered.length, 'requests answered while measuring').toBeGreaterThanOrEqual(3);
   }, 60_000);
 });
+
+describe('limits of one measurement', () => {
+  it('a measurement that overruns the decoding threads’ time limit is one 422 line, and nothing changes', async () => {
+    const slow = await makeTestApp({ DECODE_TIMEOUT_MS: '1' });
+    try {
+      const m = await slow.login('manager');
+      const inst = (await m.post('/api/instruments').send({ name: 'Slow stand', channel1: 'a', channel2: 'b' })).body.id;
+      const d = CalibrationDetail.parse((await m.post(`/api/instruments/${inst}/calibrations`).send({})).body);
+      // stored directly (an upload would meet the same 1 ms limit)
+      const { addField, syntheticPair } = await import('../runs/helpers.js');
+      const [a, b] = syntheticPair(64, 64, 2);
+      const { fieldId } = await addField(slow.ctx, slow.world.coverslipA, { name: 'slow beads', width: 64, height: 64, ch1: a, ch2: b, cells: [] });
+      const res = await m.post(`/api/calibrations/${d.id}/measure-shift`).send({ fieldId });
+      expect(res.status).toBe(422);
+      expect(res.body.error).toBe('measuring the shift of "slow beads" took longer than the 1 ms allowed for one measurement and was stopped');
+      expect(CalibrationDetail.parse((await m.get(`/api/calibrations/${d.id}`)).body)).toMatchObject({ dx: null, dy: null, sources: { shift: null } });
+    } finally {
+      await slow.close();
+    }
+  });
+});
