@@ -132,6 +132,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'PUT /api/fields/:id/pixel-size': { summary: 'Set or clear the µm per pixel of a field whose files carry none', query: null, body: N(fields, 'SetFieldPixelSizeRequest'), response: N(fields, 'FieldSummary') },
   'PUT /api/fields/:id/instrument': { summary: 'Set or clear the instrument a field was acquired on', query: null, body: N(fields, 'SetFieldInstrumentRequest'), response: N(fields, 'FieldSummary') },
   'GET /api/fields/:id/preview.png': { summary: 'A two-channel colour preview', query: N(fields, 'PreviewQuery'), body: null, response: { media: 'image/png', description: 'the preview picture' } },
+  'GET /api/fields/:id/shift': { summary: "A field's channel shift with the cross-correlation curves around it (measured, not stored)", query: N(instruments, 'FieldShiftQuery'), body: null, response: N(instruments, 'FieldShift') },
   'GET /api/fields/:id/pixels': {
     summary: "A field's raw pixels of both channels",
     query: N(fields, 'PixelsQuery'),
@@ -177,6 +178,8 @@ export const OPERATIONS: Record<string, Operation> = {
   'POST /api/instruments/:id/calibrations': { summary: "Start a new calibration version (draft) of an instrument's shift and bleed-through", query: null, body: N(instruments, 'CreateCalibrationRequest'), response: N(instruments, 'CalibrationDetail'), status: 201 },
   'GET /api/calibrations/:id': { summary: 'A calibration version with its history', query: null, body: null, response: N(instruments, 'CalibrationDetail') },
   'PATCH /api/calibrations/:id': { summary: 'Change a draft calibration', query: null, body: N(instruments, 'UpdateCalibrationRequest'), response: N(instruments, 'CalibrationDetail') },
+  'POST /api/calibrations/:id/measure-shift': { summary: "Measure a draft's channel shift on a stored bead field", query: null, body: N(instruments, 'MeasureShiftRequest'), response: N(instruments, 'CalibrationDetail') },
+  'POST /api/calibrations/:id/measure-bleed': { summary: "Measure a draft's bleed-through coefficient on stored single-label control fields", query: null, body: N(instruments, 'MeasureBleedRequest'), response: N(instruments, 'CalibrationDetail') },
   'POST /api/calibrations/:id/submit': { summary: 'Submit a calibration for review', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
   'POST /api/calibrations/:id/approve': { summary: 'Approve a submitted calibration', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },
   'POST /api/calibrations/:id/return': { summary: 'Return a submitted calibration with a note', query: null, body: N(instruments, 'CalibrationTransitionRequest'), response: N(instruments, 'CalibrationDetail') },

@@ -73,6 +73,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'PUT /api/fields/:id/pixel-size': { study: 'edit_images' },
   'GET /api/fields/:id/preview.png': { study: 'read' },
   'GET /api/fields/:id/pixels': { study: 'read' },
+  'GET /api/fields/:id/shift': { study: 'read' },
 
   // cells.ts
   'GET /api/fields/:id/cells': { study: 'read' },
@@ -93,6 +94,8 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'GET /api/calibrations/:id': { global: 'read_instruments' },
   'PATCH /api/calibrations/:id': { global: 'propose_calibration' }, // plus: proposer or facility manager
   'POST /api/calibrations/:id/submit': { global: 'propose_calibration' }, // plus: proposer or facility manager
+  'POST /api/calibrations/:id/measure-shift': { global: 'propose_calibration' }, // plus: proposer or facility manager, and read access to the field
+  'POST /api/calibrations/:id/measure-bleed': { global: 'propose_calibration' }, // plus: proposer or facility manager, and read access to the fields
   'POST /api/calibrations/:id/approve': { global: 'review_calibration' },
   'POST /api/calibrations/:id/return': { global: 'review_calibration' },
   'POST /api/calibrations/:id/retire': { global: 'review_calibration' },

@@ -5,6 +5,7 @@
 import { sqliteTable, text, integer, real, primaryKey, index, uniqueIndex } from 'drizzle-orm/sqlite-core';
 import { sql } from 'drizzle-orm';
 import type { CellOrigin } from '../../shared/schemas/cells.js';
+import type { CalibrationSources } from '../../shared/schemas/instruments.js';
 
 const now = sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`;
 const id = () => integer('id').primaryKey({ autoIncrement: true });
@@ -90,6 +91,8 @@ export const studies = sqliteTable('studies', {
   name: text('name').notNull(),
   description: text('description').notNull().default(''),
   isDemo: integer('is_demo', { mode: 'boolean' }).notNull().default(false),
+  /** the instrument new uploads of the study are recorded on unless the upload names another (null: none) */
+  defaultInstrumentId: integer('default_instrument_id').references(() => instruments.id),
   createdAt: createdAt(),
 });
 
@@ -233,6 +236,8 @@ export const calibrations = sqliteTable('calibrations', {
   a21: real('a21'),
   a12: real('a12'),
   note: text('note').notNull().default(''),
+  /** the stored fields each value was measured from in the app (shared/schemas/instruments.ts CalibrationSources); null: none */
+  sources: text('sources', { mode: 'json' }).$type<CalibrationSources>(),
   proposerId: integer('proposer_id').references(() => users.id),
   reviewerId: integer('reviewer_id').references(() => users.id),
   reviewNote: text('review_note'),

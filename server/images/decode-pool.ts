@@ -14,6 +14,7 @@ import { ImageInputError } from './errors.js';
 import type { DecodeOptions, PixelArray, TiffInfo } from './decode.js';
 import type { DecodeReply, DecodeTask } from './decode-worker.js';
 import type { DecodedStack, SourceRef } from './sources.js';
+import type { BleedMeasurement, ShiftMeasurement, StoredFieldBytes } from './calibration-measure.js';
 
 const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'decode-worker.ts');
 /** Decoding threads at once; more uploads wait their turn (each may hold up to MAX_DECODED_BYTES). */
@@ -40,18 +41,24 @@ export class DecodePool {
     return { pixelBudget: this.env.PIXEL_BUDGET, maxDecodedBytes: this.env.MAX_DECODED_BYTES };
   }
 
-  private async run<T>(task: DecodeTask, what: string): Promise<T> {
+  /** `per` names what the limits are per in a refusal ("decoding one upload", "one measurement"). */
+  private async run<T>(task: DecodeTask, what: string, per = 'decoding one upload'): Promise<T> {
     let reply: DecodeReply<T>;
     try {
-      const transferList = task.kind === 'channel' && typeof task.input !== 'string' ? [task.input.buffer as ArrayBuffer] : undefined;
+      const transferList =
+        task.kind === 'channel' && typeof task.input !== 'string'
+          ? [task.input.buffer as ArrayBuffer]
+          : task.kind === 'shift' || task.kind === 'bleed'
+            ? [...new Set((task.kind === 'shift' ? [task.field] : task.fields).flatMap((f) => [f.bytes1.buffer, f.bytes2?.buffer]).filter((b) => b !== undefined))] as ArrayBuffer[]
+            : undefined;
       reply = await this.pool.run(task, { signal: AbortSignal.timeout(this.env.DECODE_TIMEOUT_MS), transferList });
     } catch (e) {
       const err = e as { name?: string; code?: string; message?: string };
       if (err?.name === 'AbortError') {
-        throw new ImageInputError(`${what} took longer than the ${this.env.DECODE_TIMEOUT_MS} ms allowed for decoding one upload and was stopped`);
+        throw new ImageInputError(`${what} took longer than the ${this.env.DECODE_TIMEOUT_MS} ms allowed for ${per} and was stopped`);
       }
       if (err?.code === 'ERR_WORKER_OUT_OF_MEMORY' || /exited with code/.test(String(err?.message))) {
-        throw new ImageInputError(`${what} needed more than the ${this.env.DECODE_HEAP_MB} MB of memory allowed for decoding one upload and was stopped`);
+        throw new ImageInputError(`${what} needed more than the ${this.env.DECODE_HEAP_MB} MB of memory allowed for ${per} and was stopped`);
       }
       throw e;
     }
@@ -69,6 +76,19 @@ export class DecodePool {
   decodeChannel(input: Uint8Array, channel: number, name: string, pages?: DecodeOptions['pages']): Promise<{ info: TiffInfo; slices: PixelArray[]; width: number; height: number }> {
     // a private copy of the bytes is handed over (transferred) to the thread
     return this.run({ kind: 'channel', input: input.slice(), channel, opts: pages ? { ...this.opts, pages } : this.opts }, `decoding "${name}"`);
+  }
+
+  /**
+   * A stored field's shift with its cross-correlation curves (calibration-measure.ts). The bytes are handed
+   * over (transferred): pass private copies.
+   */
+  measureShift(field: StoredFieldBytes, maxShift: number): Promise<ShiftMeasurement> {
+    return this.run({ kind: 'shift', field, maxShift, opts: this.opts }, `measuring the shift of "${field.name}"`, 'one measurement');
+  }
+
+  /** The bleed-through slope over single-label controls (bytes transferred, as above). */
+  measureBleed(fields: StoredFieldBytes[], label: 1 | 2, align: { dx: number; dy: number } | null): Promise<BleedMeasurement> {
+    return this.run({ kind: 'bleed', fields, label, align, opts: this.opts }, `measuring the bleed-through of ${fields.map((f) => `"${f.name}"`).join(', ')}`, 'one measurement');
   }
 
   close() {

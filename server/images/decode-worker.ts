@@ -7,10 +7,14 @@
 import { Piscina } from 'piscina';
 import { decodeChannel, ImageInputError, type DecodeOptions, type PixelArray } from './decode.js';
 import { readSources, type SourceRef } from './sources.js';
+import { measureControlsBleed, measureFieldShift, type StoredFieldBytes } from './calibration-measure.js';
 
 export type DecodeTask =
   | { kind: 'field'; sources: SourceRef[]; opts: DecodeOptions }
-  | { kind: 'channel'; input: Uint8Array | string; channel: number; opts: DecodeOptions };
+  | { kind: 'channel'; input: Uint8Array | string; channel: number; opts: DecodeOptions }
+  /** measuring a calibration from stored fields (calibration-measure.ts): answers plain numbers */
+  | { kind: 'shift'; field: StoredFieldBytes; maxShift: number; opts: DecodeOptions }
+  | { kind: 'bleed'; fields: StoredFieldBytes[]; label: 1 | 2; align: { dx: number; dy: number } | null; opts: DecodeOptions };
 
 /** A refusal travels as data: an Error's class and status do not survive the thread boundary. */
 export type DecodeReply<T> = { ok: true; value: T } | { ok: false; message: string; status: number };
@@ -33,6 +37,8 @@ export default async function decodeTask(task: DecodeTask): Promise<unknown> {
       const stack = await readSources(task.sources, task.opts);
       return transfer(stack, [...stack.ch1, ...stack.ch2]);
     }
+    if (task.kind === 'shift') return { ok: true, value: await measureFieldShift(task.field, task.maxShift, task.opts) };
+    if (task.kind === 'bleed') return { ok: true, value: await measureControlsBleed(task.fields, task.label, task.align, task.opts) };
     const d = await decodeChannel(task.input, task.channel, task.opts);
     return transfer(d, d.slices);
   } catch (e) {

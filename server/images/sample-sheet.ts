@@ -173,7 +173,8 @@ export function applySampleSheet(
         ...(r.name ? { name: r.name } : {}),
         ch1: { file: at(r.file), channel: r.ch1 },
         ch2: { file: r.file2 ? at(r.file2) : at(r.file), channel: r.ch2 },
-        instrumentId: r.instrumentId,
+        // an empty instrument cell leaves it to the study's default instrument
+        ...(r.instrumentId !== null ? { instrumentId: r.instrumentId } : {}),
         ...(r.pixelSizeUm !== null ? { pixelSizeUm: r.pixelSizeUm } : {}),
       }));
       uploads.push({ coverslipId, files: names, plan, lines: part.map((r) => r.line) });

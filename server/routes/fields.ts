@@ -10,6 +10,7 @@
  *   GET    /api/fields/:id/pixels?z=         raw pixels of one slice (or the projection) for the browser's pixel
  *          scatter (read), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
  *          field's own sample type); header x-syntopy-z names the slice in words.
+ *   GET    /api/fields/:id/shift?maxShift=    the field's channel shift and van Steensel curves (read; nothing stored)
  */
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -19,7 +20,7 @@ import { Router, type Request } from 'express';
 import multer, { type StorageEngine } from 'multer';
 import { and, asc, eq, inArray, or } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { auditEvents, cells, conditions, coverslips, fields, files, instruments, measurements, runFields } from '../db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, files, instruments, measurements, runFields, studies } from '../db/schema.js';
 import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from '../auth/policy.js';
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
@@ -29,6 +30,9 @@ import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pi
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
 import { keyForSha } from '../images/store.js';
+import { decodePoolOf } from '../images/decode-pool.js';
+import { storedFieldBytes } from '../images/calibration-bytes.js';
+import { FieldShiftQuery, type FieldShift } from '../../shared/schemas/instruments.js';
 
 
 
@@ -238,6 +242,8 @@ export default function fieldsRoutes(ctx: AppContext) {
           if (p.instrumentId != null && !ctx.db.select({ id: instruments.id }).from(instruments).where(eq(instruments.id, p.instrumentId)).get())
             throw badRequest(`field ${i + 1} of the plan names instrument ${p.instrumentId}, which does not exist`);
         }
+        // a plan entry that does not name an instrument (absent, not null) is recorded on the study's default
+        const studyDefault = ctx.db.select({ id: studies.defaultInstrumentId }).from(studies).innerJoin(conditions, eq(conditions.studyId, studies.id)).innerJoin(coverslips, eq(coverslips.conditionId, conditions.id)).where(eq(coverslips.id, coverslipId)).get()?.id ?? null;
         const uses = new Map<number, number>();
         for (const p of plan) for (const i of new Set([p.ch1.file, p.ch2.file])) uses.set(i, (uses.get(i) ?? 0) + 1);
         const results: UploadResult[] = [];
@@ -252,7 +258,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 coverslipId,
                 userId: req.user!.id,
                 name,
-                instrumentId: p.instrumentId ?? null,
+                instrumentId: p.instrumentId === undefined ? studyDefault : p.instrumentId,
                 pixelSizeUm: p.pixelSizeUm ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
@@ -330,6 +336,7 @@ export default function fieldsRoutes(ctx: AppContext) {
       conditionId,
       files: [fileOf(field.file1Sha, field.channel1), fileOf(field.file2Sha, field.channel2)],
       uploadedBy: field.uploadedBy ?? null,
+      instrumentName: field.instrumentId === null ? null : (ctx.db.select({ name: instruments.name }).from(instruments).where(eq(instruments.id, field.instrumentId)).get()?.name ?? null),
       canEdit: perms.has('edit_images'),
     };
     res.json(detail);
@@ -397,6 +404,16 @@ export default function fieldsRoutes(ctx: AppContext) {
     res.setHeader('x-syntopy-z', px.zLabel);
     res.setHeader('access-control-expose-headers', 'x-syntopy-z');
     res.end(body);
+  });
+
+  /** The field's own channel shift and cross-correlation curves, measured in a decoding thread; stores nothing. */
+  r.get('/fields/:id/shift', async (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
+    const { maxShift } = parse(FieldShiftQuery, req.query);
+    const m = await decodePoolOf(ctx).measureShift(await storedFieldBytes(ctx, field), maxShift);
+    res.json({ fieldId, fieldName: field.name, width: m.width, height: m.height, dx: m.dx, dy: m.dy, peak: m.peak, z: m.z, curves: m.curves } satisfies FieldShift);
   });
 
   return r;

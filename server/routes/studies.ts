@@ -6,7 +6,7 @@
 import { Router, type Request } from 'express';
 import { and, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { AppContext } from '../context.js';
-import { auditEvents, cells, conditions, coverslips, fields, labMembers, labs, measurements, runFields, studies, users } from '../db/schema.js';
+import { auditEvents, cells, conditions, coverslips, fields, instruments, labMembers, labs, measurements, runFields, studies, users } from '../db/schema.js';
 import {
   CreateConditionRequest,
   CreateCoverslipRequest,
@@ -70,6 +70,8 @@ export default function studiesRoutes(ctx: AppContext) {
       ? db.select({ id: coverslips.id, conditionId: coverslips.conditionId }).from(coverslips).where(inArray(coverslips.conditionId, conds.map((c) => c.id))).all()
       : [];
     const { f } = fieldCounts(slips.map((s) => s.id));
+    const instrumentIds = [...new Set(rows.map((s) => s.defaultInstrumentId).filter((i): i is number => i !== null))];
+    const instrumentNames = new Map(instrumentIds.length ? db.select({ id: instruments.id, name: instruments.name }).from(instruments).where(inArray(instruments.id, instrumentIds)).all().map((i) => [i.id, i.name]) : []);
     const studyOfCond = new Map(conds.map((c) => [c.id, c.studyId]));
     return rows.map((s) => {
       const mySlips = slips.filter((cs) => studyOfCond.get(cs.conditionId) === s.id);
@@ -87,6 +89,7 @@ export default function studiesRoutes(ctx: AppContext) {
         conditionCount: conds.filter((c) => c.studyId === s.id).length,
         coverslipCount: mySlips.length,
         fieldCount: mySlips.reduce((a, cs) => a + (f.get(cs.id) ?? 0), 0),
+        defaultInstrument: s.defaultInstrumentId === null ? null : { id: s.defaultInstrumentId, name: instrumentNames.get(s.defaultInstrumentId) ?? '' },
         permissions: ACTION_ORDER.filter((a) => perms.has(a)),
       });
     });
@@ -197,9 +200,18 @@ export default function studiesRoutes(ctx: AppContext) {
     const id = idParam(req, 'studyId');
     const study = requireStudy(ctx.db, req.user, id, 'edit_structure');
     const body = parse(UpdateStudyRequest, req.body);
+    const instrumentId = body.defaultInstrumentId;
+    if (instrumentId != null && !db.select({ id: instruments.id }).from(instruments).where(eq(instruments.id, instrumentId)).get()) throw notFoundAsked({ what: 'instrument', id: instrumentId });
     db.transaction((tx) => {
-      tx.update(studies).set({ ...(body.name !== undefined && { name: body.name }), ...(body.description !== undefined && { description: body.description }) }).where(eq(studies.id, id)).run();
-      audit(tx, req, 'study_updated', 'study', id, id, { before: { name: study.name, description: study.description }, after: body });
+      tx.update(studies)
+        .set({
+          ...(body.name !== undefined && { name: body.name }),
+          ...(body.description !== undefined && { description: body.description }),
+          ...(instrumentId !== undefined && { defaultInstrumentId: instrumentId }),
+        })
+        .where(eq(studies.id, id))
+        .run();
+      audit(tx, req, 'study_updated', 'study', id, id, { before: { name: study.name, description: study.description, defaultInstrumentId: study.defaultInstrumentId }, after: body });
     });
     res.json(detail(req.user!, id));
   });

@@ -24,3 +24,27 @@ export function bleedThroughSlope(labelled: ChannelArray, seen: ChannelArray, re
   const s = m.sxy / m.sxx;
   return Object.is(s, -0) ? 0 : s;
 }
+
+/**
+ * The slope over several single-label controls of the same label: the pooled within-control least-squares
+ * slope Σ_c Sxy_c / Σ_c Sxx_c, each control centred on its own means (the fixed-effects slope of one
+ * regression with an intercept per control, e.g. Draper & Smith 1998, Applied Regression Analysis, 3rd
+ * ed., ch. 14). Each control may have its own constant background; with one control it is exactly
+ * `bleedThroughSlope`. `n` counts the pixels that entered (NaN pixels left out).
+ *
+ * Degenerate: no control with at least 2 pixels and a varying labelled channel → slope null.
+ */
+export function pooledBleedThroughSlope(controls: { labelled: ChannelArray; seen: ChannelArray }[]): { slope: number | null; n: number } {
+  let sxy = 0, sxx = 0, n = 0;
+  for (const c of controls) {
+    const p = collectPairs(c.labelled, c.seen, null);
+    const m = centeredMoments(p.x, p.y, p.n, p.integer);
+    if (m.n < 2 || m.constX) continue;
+    sxy += m.sxy;
+    sxx += m.sxx;
+    n += m.n;
+  }
+  if (!(sxx > 0)) return { slope: null, n };
+  const s = sxy / sxx;
+  return { slope: Object.is(s, -0) ? 0 : s, n };
+}

@@ -10,6 +10,11 @@
  * channel 2 displaced by dx peaks at δ ≈ dx. Over the region's pixels (the whole plane when null) whose
  * shifted position lies inside the image; NaN pixels left out. r is Pearson's r of `centeredMoments`
  * (pearson.ts); null where it is undefined (fewer than 2 pixels, a constant channel).
+ *
+ * `through` (whole pixels, default (0, 0)) holds the other axis at a fixed shift: the x curve is then
+ * r(δ, through.dy) and the y curve r(through.dx, δ). Van Steensel's curves are the default; a diagonal
+ * chromatic shift flattens both of them, so a diagnostic drawn through the measured shift's nearest whole
+ * pixel shows each axis's peak (decided 2026-12-03).
  */
 import { centeredMoments, pearsonFromMoments } from './pearson';
 import type { ChannelArray } from './types';
@@ -31,7 +36,10 @@ export function crossCorrelationCurves(
   height: number,
   maxShift: number,
   region: Uint32Array | null = null,
+  through: { dx: number; dy: number } = { dx: 0, dy: 0 },
 ): CrossCorrelationCurves {
+  if (!(Number.isInteger(through.dx) && Number.isInteger(through.dy) && Math.abs(through.dx) <= 1000 && Math.abs(through.dy) <= 1000))
+    throw new RangeError(`the curves' fixed shift must be whole pixels within ±1000, received (${through.dx}, ${through.dy})`);
   if (!(Number.isInteger(maxShift) && maxShift >= 0 && maxShift <= 1000)) throw new RangeError(`maximum shift must be a whole number of pixels from 0 to 1000, received ${maxShift}`);
   const plane = width * height;
   if (ch1.length !== plane || ch2.length !== plane) throw new RangeError(`channels must have ${width}×${height} = ${plane} pixels, received ${ch1.length} and ${ch2.length}`);
@@ -57,8 +65,8 @@ export function crossCorrelationCurves(
   const shifts: number[] = [], cx: (number | null)[] = [], cy: (number | null)[] = [];
   for (let d = -maxShift; d <= maxShift; d++) {
     shifts.push(d);
-    cx.push(r(d, 0));
-    cy.push(r(0, d));
+    cx.push(r(d, through.dy));
+    cy.push(r(through.dx, d));
   }
   return { shifts, x: cx, y: cy };
 }

@@ -159,5 +159,5 @@ export { nextPowerOfTwo, realFft2dPair, inverseRealFft2d } from './fft';
 export { measureShift, tukeyWindow, SHIFT_TAPER, type ShiftResult, type ShiftOptions } from './phase-correlation';
 export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-correlation';
 export { alignChannel } from './align';
-export { bleedThroughSlope } from './bleed';
+export { bleedThroughSlope, pooledBleedThroughSlope } from './bleed';
 export { unmixChannels, checkBleedCoefficient } from './unmix';

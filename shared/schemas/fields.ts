@@ -68,6 +68,8 @@ export const FieldDetail = FieldSummary.extend({
   conditionId: z.number().int(),
   files: z.tuple([FieldFile, FieldFile]),
   uploadedBy: z.number().int().nullable(),
+  /** the name of the instrument the field was recorded on (shown as text to those who may not change it), or null */
+  instrumentName: z.string().nullable(),
   /** what the viewer may do */
   canEdit: z.boolean(),
 });
@@ -91,7 +93,7 @@ export const UploadFieldPlan = z.object({
   name: z.string().trim().max(200).optional(),
   ch1: UploadChannelRef,
   ch2: UploadChannelRef,
-  /** the instrument that recorded the field (its approved calibration is what recipes apply) */
+  /** the instrument that recorded the field (its approved calibration is what recipes apply); absent: the study's default instrument; null: none */
   instrumentId: z.number().int().positive().nullable().optional(),
   /** µm per pixel for a field whose files carry none (the files' own pixel size, when they have one, is kept; a sample sheet's pixel_size_um comes here) */
   pixelSizeUm: PixelSizeUm.optional(),

@@ -37,6 +37,8 @@ export const StudySummary = z.object({
   conditionCount: z.number().int(),
   coverslipCount: z.number().int(),
   fieldCount: z.number().int(),
+  /** the instrument new uploads are recorded on unless the upload names another, or null */
+  defaultInstrument: z.object({ id: Id, name: z.string() }).nullable(),
   /** what the signed-in user may do here (the client hides buttons; the server still checks) */
   permissions: z.array(StudyAction),
 });
@@ -82,8 +84,18 @@ export const CreateStudyRequest = z.object({
 export type CreateStudyRequest = z.infer<typeof CreateStudyRequest>;
 
 export const UpdateStudyRequest = z
-  .object({ name: Name('study name').optional(), description: Description.optional() })
-  .refine((v) => v.name !== undefined || v.description !== undefined, { message: 'nothing to change: send name or description' });
+  .object({
+    name: Name('study name').optional(),
+    description: Description.optional(),
+    /** the instrument uploads default to (null: none) */
+    defaultInstrumentId: z
+      .number({ error: (iss) => `defaultInstrumentId must be an instrument id or null, got ${JSON.stringify(iss.input) ?? String(iss.input)}` })
+      .int({ error: (iss) => `defaultInstrumentId must be an instrument id or null, got ${String(iss.input)}` })
+      .positive({ error: (iss) => `defaultInstrumentId must be an instrument id or null, got ${String(iss.input)}` })
+      .nullable()
+      .optional(),
+  })
+  .refine((v) => v.name !== undefined || v.description !== undefined || v.defaultInstrumentId !== undefined, { message: 'nothing to change: send name, description or defaultInstrumentId' });
 export type UpdateStudyRequest = z.infer<typeof UpdateStudyRequest>;
 
 /** Deleting a study needs its exact name typed again (confirmation). */

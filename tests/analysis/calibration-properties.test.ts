@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import {
   alignChannel,
   bleedThroughSlope,
+  pooledBleedThroughSlope,
   crossCorrelationCurves,
   inverseRealFft2d,
   measureShift,
@@ -15,6 +16,7 @@ import {
   unmixChannels,
 } from '../../shared/analysis/index';
 import { Xoshiro128 } from '../../shared/analysis/prng';
+import { naivePearson } from './naive';
 
 const rng = (seed: number) => {
   const g = new Xoshiro128(seed);
@@ -170,6 +172,29 @@ describe('unmixChannels and bleedThroughSlope', () => {
     expect(bleedThroughSlope(new Uint16Array(10).fill(3), new Uint16Array(10))).toBeNull();
     expect(bleedThroughSlope(new Uint16Array([1]), new Uint16Array([1]))).toBeNull();
   });
+  it('pooled over controls: one control is the plain slope; each control keeps its own background; by definition Σ Sxy / Σ Sxx', () => {
+    const r = rng(11);
+    const t1 = Float64Array.from({ length: 400 }, () => 2000 * r()), t2 = Float64Array.from({ length: 300 }, () => 500 * r());
+    const noisy = (t: Float64Array, a: number, b: number) => t.map((v) => a * v + b + 20 * (r() - 0.5));
+    const c1 = { labelled: t1.map((v) => v + 100), seen: noisy(t1, 0.2, 30) };
+    const c2 = { labelled: t2.map((v) => v + 150), seen: noisy(t2, 0.2, 600) };
+    expect(pooledBleedThroughSlope([c1])).toEqual({ slope: bleedThroughSlope(c1.labelled, c1.seen), n: 400 });
+    // by definition, each control centred on its own means
+    const moments = (x: Float64Array, y: Float64Array) => {
+      const mx = x.reduce((a, b) => a + b, 0) / x.length, my = y.reduce((a, b) => a + b, 0) / y.length;
+      let sxy = 0, sxx = 0;
+      for (let i = 0; i < x.length; i++) (sxy += (x[i] - mx) * (y[i] - my)), (sxx += (x[i] - mx) ** 2);
+      return { sxy, sxx };
+    };
+    const m1 = moments(c1.labelled, c1.seen), m2 = moments(c2.labelled, c2.seen);
+    const pooled = pooledBleedThroughSlope([c1, c2]);
+    expect(pooled.n).toBe(700);
+    expect(pooled.slope!).toBeCloseTo((m1.sxy + m2.sxy) / (m1.sxx + m2.sxx), 12);
+    // one regression over the concatenation would be pulled by the different backgrounds
+    expect(Math.abs(pooled.slope! - 0.2)).toBeLessThan(0.005);
+    expect(Math.abs(bleedThroughSlope(Float64Array.from([...c1.labelled, ...c2.labelled]), Float64Array.from([...c1.seen, ...c2.seen]))! - 0.2)).toBeGreaterThan(0.05);
+    expect(pooledBleedThroughSlope([{ labelled: new Uint16Array(5).fill(2), seen: new Uint16Array(5) }])).toEqual({ slope: null, n: 0 });
+  });
 });
 
 describe('crossCorrelationCurves (van Steensel 1996)', () => {
@@ -193,5 +218,18 @@ describe('crossCorrelationCurves (van Steensel 1996)', () => {
     }
     expect(crossCorrelationCurves(a, new Float64Array(1200), 40, 30, 1).x).toEqual([null, null, null]);
     expect(() => crossCorrelationCurves(a, b, 40, 30, -1)).toThrow(/received -1/);
+  });
+  it('through a fixed shift of the other axis: a diagonal shift peaks on both curves; r there is Pearson of the shifted pairs', () => {
+    const a = texture(64, 64, 0, 0, 4), b = texture(64, 64, 3, -2, 4);
+    const c = crossCorrelationCurves(a, b, 64, 64, 5, null, { dx: 3, dy: -2 });
+    const arg = (v: (number | null)[]) => c.shifts[v.indexOf(Math.max(...v.map((t) => t ?? -2)))];
+    expect([arg(c.x), arg(c.y)]).toEqual([3, -2]);
+    // r(δ = 1, dy = −2) straight from the definition
+    const xs: number[] = [], ys: number[] = [];
+    for (let y = 0; y < 64; y++)
+      for (let x = 0; x < 64; x++) if (x + 1 < 64 && y - 2 >= 0) xs.push(a[y * 64 + x]), ys.push(b[(y - 2) * 64 + x + 1]);
+    expect(c.x[6]).toBeCloseTo(naivePearson(xs, ys)!, 12);
+    expect(crossCorrelationCurves(a, b, 64, 64, 5)).toEqual(crossCorrelationCurves(a, b, 64, 64, 5, null, { dx: 0, dy: 0 }));
+    expect(() => crossCorrelationCurves(a, b, 64, 64, 5, null, { dx: 0.5, dy: 0 })).toThrow(/received \(0.5, 0\)/);
   });
 });

@@ -26,6 +26,7 @@ export function makeStudy(permissions: StudyAction[] = ['read', 'edit_structure'
     conditionCount: 2,
     coverslipCount: 3,
     fieldCount: 2,
+    defaultInstrument: null,
     permissions,
     conditions: [
       { id: 10, studyId: 3, name: 'Control', position: 0, coverslips: [cs(100, 10, 1, 2, 0), cs(101, 10, 2)] },

@@ -32,9 +32,9 @@ describe('calibration sentences', () => {
 const draft: CalibrationDetail = {
   id: 11, instrumentId: 3, version: 1, status: 'draft', dx: 1, dy: 2, a21: 0.1, a12: null, note: '',
   proposer: { id: 7, name: 'Ada Demo' }, reviewer: null, reviewNote: null, submittedAt: null, reviewedAt: null,
-  createdAt: '2026-12-02T10:00:00.000Z', history: [], allowed: ['edit', 'submit', 'approve', 'return', 'retire'],
+  createdAt: '2026-12-02T10:00:00.000Z', sources: { shift: null, a21: null, a12: null }, history: [], allowed: ['edit', 'submit', 'approve', 'return', 'retire'],
 };
-const { history: _h, allowed: _a, ...summary } = draft;
+const { history: _h, allowed: _a, sources: _s, ...summary } = draft;
 const instrument: InstrumentDetail = { id: 3, name: 'Stand A', objective: '63×', channel1: 'GFP', channel2: 'mCherry', createdAt: '2026-12-01T10:00:00.000Z', approved: null, calibrations: [summary] };
 
 describe('an instrument page', () => {
@@ -44,6 +44,7 @@ describe('an instrument page', () => {
       on('GET', '/instruments/3', () => ({ body: instrument })),
       on('GET', '/calibrations/11', () => ({ body: draft })),
       on('PATCH', '/calibrations/11', (c) => ({ body: { ...draft, ...(c.body as object) } })),
+      on('GET', '/studies', () => ({ body: { studies: [] } })),
     );
     renderRoutes([{ path: '/instruments/:instrumentId', Component: Instrument }], '/instruments/3');
     const a21 = (await screen.findByLabelText('Bleed-through a21')) as HTMLInputElement;

@@ -3,7 +3,8 @@
  * on the seeded demo, and no screen may have a serious or critical violation. Screens: signed out (sign-in, a
  * dead invitation link, a shared report and a dead share link), then each demo role's screens of the main
  * navigation and the study pages it can reach (study, field workspace, Cell table, Compare, Reports, a frozen
- * report, recipe editor, an instrument with its calibrations), and the dialogs met on the way (workspace keys
+ * report, recipe editor, an instrument with its calibrations and a measured shift's curves and composite,
+ * the workspace's channel alignment after measuring, the collaborator's read-only workspace), and the dialogs met on the way (workspace keys
  * and find cells, upload, share, new report, record an instrument). The structure rules region,
  * landmark-one-main, heading-order, empty-table-header, page-has-heading-one and landmark-unique are held as
  * well. Screenshots: test-results/a11y-<role>-<screen>.png.
@@ -91,7 +92,11 @@ it('prepares a frozen report and a share link on the demo study', async () => {
   expect(inst.status, JSON.stringify(inst.body)).toBe(201);
   const v1 = await mgr(`/instruments/${inst.body.id}/calibrations`, { method: 'POST', body: JSON.stringify({ dx: 0.4, dy: -1.1, a21: 0.05, a12: 0.01 }) });
   for (const step of ['submit', 'approve']) expect((await mgr(`/calibrations/${v1.body.id}/${step}`, { method: 'POST', body: '{}' })).status).toBe(200);
-  expect((await mgr(`/instruments/${inst.body.id}/calibrations`, { method: 'POST', body: '{}' })).status).toBe(201);
+  const v2 = await mgr(`/instruments/${inst.body.id}/calibrations`, { method: 'POST', body: '{}' });
+  expect(v2.status).toBe(201);
+  // v2's shift measured on a demo field, so its screen shows the curves and the composite
+  const measured = await mgr(`/calibrations/${v2.body.id}/measure-shift`, { method: 'POST', body: JSON.stringify({ fieldId: fields[0].id }) });
+  expect(measured.status, JSON.stringify(measured.body)).toBe(200);
   demo = { studyId: study.id, fieldId: fields[0].id, reportId, recipeId: recipes[0].id, shareLink: new URL(/(https?:\/\/\S+\/shared\/[A-Za-z0-9_.-]+)/.exec(text)![1]).pathname, instrumentId: inst.body.id };
 });
 
@@ -116,7 +121,7 @@ const roleScreens: Record<string, () => [string, string, ((p: TrackedPage) => Pr
     ['people', '/people'],
     ['outbox', '/outbox'],
     ['instruments', '/instruments'],
-    ['instrument', `/instruments/${demo.instrumentId}`, (p) => p.getByRole('heading', { name: 'Calibration v2' }).waitFor()],
+    ['instrument', `/instruments/${demo.instrumentId}`, async (p) => (await p.getByRole('heading', { name: 'Calibration v2' }).waitFor(), await p.getByTestId('cross-correlation').waitFor(), await p.getByText(/^Showing channel 2 aligned by/).waitFor({ timeout: 30_000 }))],
     ['account', '/account'],
     ['not-found', '/no-such-page'],
   ],
@@ -125,6 +130,11 @@ const roleScreens: Record<string, () => [string, string, ((p: TrackedPage) => Pr
     ['studies', '/studies'],
     ['study', `/studies/${demo.studyId}`],
     ['workspace', `/studies/${demo.studyId}/fields/${demo.fieldId}`, (p) => p.getByTestId('pixel-scatter').waitFor({ timeout: 30_000 })],
+    [
+      'workspace-alignment',
+      `/studies/${demo.studyId}/fields/${demo.fieldId}`,
+      async (p) => (await p.getByRole('button', { name: "Measure this field's shift" }).click(), await p.getByTestId('cross-correlation').waitFor({ timeout: 30_000 })),
+    ],
     ['recipes', '/recipes'],
     ['runs', '/runs'],
     ['account', '/account'],
@@ -143,6 +153,7 @@ const roleScreens: Record<string, () => [string, string, ((p: TrackedPage) => Pr
   collaborator: () => [
     ['home', '/'],
     ['studies', '/studies'],
+    ['workspace', `/studies/${demo.studyId}/fields/${demo.fieldId}`, (p) => p.getByTestId('field-instrument-text').waitFor({ timeout: 30_000 })],
     ['account', '/account'],
   ],
 };

@@ -1,7 +1,9 @@
 /**
  * Route module: the field workspace (/studies/:studyId/fields/:fieldId). The image with its outlines, the
  * Cells list, the Pixel scatter with live coefficients (preview), per-cell results, the Spots panel (the
- * latest run's spots drawn over the image, or live detection at the sliders' σ and k) and the cautions.
+ * latest run's spots drawn over the image, or live detection at the sliders' σ and k), the channel alignment
+ * (curves and the composite with alignment on/off, drawn by the pixel worker), the field's instrument (a
+ * choice for editors, text in the header for everyone else) and the cautions.
  * Keys: V P B O F tools · M background mode · Ctrl+Z / Ctrl+Shift+Z undo/redo · Delete removes the selected
  * outline · arrows nudge it (Shift: 10 px) · + − 0 1 zoom · Esc deselects.
  */
@@ -24,6 +26,7 @@ import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
+import { AlignmentPanel, useCompositeUrl } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -88,6 +91,18 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   }, [scatter.ready, regionKey, gesture, manual]);
   const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false, cellGeometries), [scatter, regionKey, geometry, cellGeometries]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
+
+  // the main image with channel 2 aligned (the alignment panel's switch): drawn by the pixel worker at the shown intensities
+  const [viewerShift, setViewerShift] = useState<{ dx: number; dy: number } | null>(null);
+  const r1 = display.range1 ?? autoRanges?.[0] ?? null;
+  const r2 = display.range2 ?? autoRanges?.[1] ?? null;
+  const alignMain = !!viewerShift && display.view === 'composite' && !!r1 && !!r2;
+  useEffect(() => {
+    if (alignMain && scatter.ready) scatter.requestComposite(viewerShift, 'viewer', [r1!, r2!]);
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [alignMain, scatter.ready, viewerShift?.dx, viewerShift?.dy, r1?.[0], r1?.[1], r2?.[0], r2?.[1]]);
+  const viewerComposite = scatter.composites.viewer;
+  const alignedImage = useCompositeUrl(alignMain && viewerComposite && viewerComposite.shift?.dx === viewerShift?.dx && viewerComposite.shift?.dy === viewerShift?.dy ? viewerComposite : null);
 
   // spots: the latest run's (stored per cell), or live detection in the worker at the sliders' σ and k
   const runId = results.data?.source?.runId ?? results.data?.rows.find((r) => r.runId !== null)?.runId ?? null;
@@ -213,6 +228,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             {`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''} · `}
             <PixelSizeEditor fieldId={fieldId} pixelSizeUm={field.pixelSizeUm} canEdit={canEdit} />
             {`${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
+            {!canEdit && <span data-testid="field-instrument-text">{` · ${field.instrumentName ? `recorded on ${field.instrumentName}` : 'instrument not given'}`}</span>}
           </>
         }
         actions={
@@ -268,6 +284,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onAutoRanges={setAutoRanges}
               onGesture={setGesture}
               command={command}
+              imageOverride={alignMain ? alignedImage : null}
               overlay={
                 shownSpots && (
                   <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
@@ -344,6 +361,12 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               cell={spotCell}
               pairDistancePx={pairDistancePx}
             />
+          </section>
+          <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-alignment-heading">
+            <h2 id="field-alignment-heading" className="mb-1 text-base font-semibold">
+              Channel alignment
+            </h2>
+            {pixels.isError ? <ErrorNotice error={pixels.error} /> : <AlignmentPanel field={field} drawer={scatter} onMainImage={setViewerShift} mainImageComposite={display.view === 'composite'} />}
           </section>
           {canEdit && (
             <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-instrument-heading">

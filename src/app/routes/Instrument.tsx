@@ -6,11 +6,13 @@
 import { useParams, useSearchParams } from 'react-router';
 import { Button, Card, ErrorNotice, Loading, PageHeader } from '@/components';
 import { useMe } from '@/features/auth';
-import { CalibrationPanel, CalibrationVersions, useCreateCalibration, useInstrument } from '@/features/instruments';
+import { CalibrationPanel, CalibrationVersions, useCreateCalibration, useInstrument, type CompositeSlot } from '@/features/instruments';
+import { FieldComposite } from '@/features/workspace';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 
 const trail = [{ to: '/instruments', label: 'Instruments' }];
+const composite: CompositeSlot = (fieldId, shift) => <FieldComposite key={fieldId} fieldId={fieldId} shift={shift} title="Bead field before and after alignment" />;
 
 export function Component() {
   const me = useMe();
@@ -53,7 +55,7 @@ export function Component() {
         <Card title="Versions">
           <CalibrationVersions versions={i.calibrations} selected={selected} onSelect={select} />
         </Card>
-        {selected !== null && <CalibrationPanel key={selected} calibrationId={selected} channels={i} />}
+        {selected !== null && <CalibrationPanel key={selected} calibrationId={selected} channels={i} composite={composite} />}
       </div>
     </div>
   );

@@ -12,3 +12,7 @@ export { RecordInstrumentDialog } from './components/RecordInstrumentDialog';
 export { CalibrationPanel } from './components/CalibrationPanel';
 export { CalibrationVersions } from './components/CalibrationVersions';
 export { InstrumentPicker } from './components/InstrumentPicker';
+export { useFieldShift } from './api/useFieldShift';
+export { useMeasureBleed, useMeasureShift } from './api/useMeasureCalibration';
+export { CrossCorrelationChart } from './components/CrossCorrelationChart';
+export type { CompositeSlot } from './components/CalibrationSourcesView';

@@ -18,3 +18,6 @@ export type { DisplaySettings, Tool } from './components/Viewer';
 export { initialOutlineState, outlineReducer } from './lib/outlineState';
 export { useOutlineSync } from './lib/useOutlineSync';
 export { useScatter } from './lib/useScatter';
+export { AlignmentComposite, FieldComposite } from './components/AlignmentComposite';
+export { AlignmentPanel } from './components/AlignmentPanel';
+export { useCompositeUrl } from './lib/useCompositeUrl';

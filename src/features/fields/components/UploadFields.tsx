@@ -64,7 +64,8 @@ function channelLabel(c: { index: number; name: string | null }) {
   return c.name ? `${c.index} · ${c.name}` : `channel ${c.index}`;
 }
 
-export function UploadFields({ coverslipId }: { coverslipId: number }) {
+/** `defaultInstrumentId`: the study's default instrument, chosen beforehand (the person uploading may change it). */
+export function UploadFields({ coverslipId, defaultInstrumentId = null }: { coverslipId: number; defaultInstrumentId?: number | null }) {
   const [open, setOpen] = useState(false);
   return (
     <>
@@ -73,17 +74,17 @@ export function UploadFields({ coverslipId }: { coverslipId: number }) {
           Add fields…
         </Button>
       </div>
-      {open && <UploadDialog coverslipId={coverslipId} onClose={() => setOpen(false)} />}
+      {open && <UploadDialog coverslipId={coverslipId} defaultInstrumentId={defaultInstrumentId} onClose={() => setOpen(false)} />}
     </>
   );
 }
 
-function UploadDialog({ coverslipId, onClose }: { coverslipId: number; onClose: () => void }) {
+function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslipId: number; defaultInstrumentId: number | null; onClose: () => void }) {
   const [mode, setMode] = useState<Mode>('multi');
   const [multi, setMulti] = useState<MultiRow[]>([]);
   const [pairs, setPairs] = useState<PairRow[]>([{ id: nextId++, file1: null, file2: null, name: '' }]);
   const [formError, setFormError] = useState<string | null>(null);
-  const [instrumentId, setInstrumentId] = useState<number | null>(null);
+  const [instrumentId, setInstrumentId] = useState<number | null>(defaultInstrumentId);
   /** µm per pixel for files that carry none (empty: none given) */
   const [pixelSize, setPixelSize] = useState('');
   const { state, upload, cancel, reset } = useUploadFields(coverslipId);

@@ -10,4 +10,10 @@ export const instrumentKeys = {
   detail: (instrumentId: number) => ['instruments', instrumentId, 'detail'] as const,
   /** GET /api/calibrations/:id */
   calibration: (calibrationId: number) => ['instruments', 'calibration', calibrationId] as const,
+  /** GET /api/studies, for choosing the fields a calibration is measured from */
+  pickStudies: ['instruments', 'pick', 'studies'] as const,
+  /** GET /api/studies/:id/fields, likewise */
+  pickFields: (studyId: number) => ['instruments', 'pick', 'fields', studyId] as const,
+  /** GET /api/fields/:id/shift?maxShift= (measured on demand, kept while the page lives) */
+  fieldShift: (fieldId: number, maxShift: number) => ['instruments', 'field-shift', fieldId, maxShift] as const,
 };

@@ -13,10 +13,12 @@ import { useUpdateCalibration } from '../api/useUpdateCalibration';
 import type { ChannelNames } from '../lib/sentences';
 import { CalibrationReviewActions } from './CalibrationReviewActions';
 import { CalibrationValuesForm } from './CalibrationValuesForm';
+import { CalibrationSourcesView, type CompositeSlot } from './CalibrationSourcesView';
+import { MeasureCalibration } from './MeasureCalibration';
 
 const valuesOf = (c: CalibrationDetail): CalibrationValues => ({ dx: c.dx, dy: c.dy, a21: c.a21, a12: c.a12 });
 
-function Panel({ c, channels }: { c: CalibrationDetail; channels: ChannelNames }) {
+function Panel({ c, channels, composite }: { c: CalibrationDetail; channels: ChannelNames; composite?: CompositeSlot }) {
   const editable = c.allowed.includes('edit');
   const [values, setValues] = useState<CalibrationValues>(valuesOf(c));
   const [note, setNote] = useState(c.note);
@@ -68,6 +70,14 @@ function Panel({ c, channels }: { c: CalibrationDetail; channels: ChannelNames }
         </div>
         <ErrorNotice className="mt-3" error={update.error ?? transition.error} />
       </Card>
+      {editable && (
+        <Card title="Measure from stored fields">
+          <MeasureCalibration c={c} channels={channels} blocked={dirty ? 'Save or undo your changes above first: measuring replaces the values shown.' : null} />
+        </Card>
+      )}
+      <Card title="Where the values come from">
+        <CalibrationSourcesView c={c} channels={channels} composite={composite} />
+      </Card>
       {(c.allowed.includes('approve') || c.allowed.includes('retire')) && (
         <Card title="Review">
           <CalibrationReviewActions calibration={c} />
@@ -87,9 +97,10 @@ function Panel({ c, channels }: { c: CalibrationDetail; channels: ChannelNames }
   );
 }
 
-export function CalibrationPanel({ calibrationId, channels }: { calibrationId: number; channels: ChannelNames }) {
+/** `composite` draws a field's composite before and after alignment (the route gives the workspace's). */
+export function CalibrationPanel({ calibrationId, channels, composite }: { calibrationId: number; channels: ChannelNames; composite?: CompositeSlot }) {
   const q = useCalibration(calibrationId);
   if (q.isPending) return <Loading />;
   if (q.isError) return <ErrorNotice error={q.error} />;
-  return <Panel c={q.data} channels={channels} />;
+  return <Panel c={q.data} channels={channels} composite={composite} />;
 }

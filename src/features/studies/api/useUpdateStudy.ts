@@ -3,7 +3,7 @@ import { api } from '@/lib/api';
 import { StudyDetail, type UpdateStudyRequest } from '@shared/schemas/studies';
 import { storeStudy } from './useStudy';
 
-/** PATCH /api/studies/:studyId (name, description). */
+/** PATCH /api/studies/:studyId (name, description, default instrument). */
 export function useUpdateStudy(studyId: number) {
   const qc = useQueryClient();
   return useMutation({

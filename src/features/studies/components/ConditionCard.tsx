@@ -127,7 +127,7 @@ export function ConditionCard({
                   )}
                 </div>
                 {cs.notes && <p className="mt-1 whitespace-pre-line text-sm text-ink-soft">{cs.notes}</p>}
-                <FieldsSlot coverslipId={cs.id} studyId={study.id} canUpload={canUpload} />
+                <FieldsSlot coverslipId={cs.id} studyId={study.id} canUpload={canUpload} defaultInstrumentId={study.defaultInstrument?.id ?? null} />
               </li>
             ))}
           </ol>

@@ -1,5 +1,6 @@
 /**
- * The field viewer: the preview image (composite or one channel, at the zoom's resolution level) with the
+ * The field viewer: the preview image (composite or one channel, at the zoom's resolution level; or a composite
+ * drawn in the browser with channel 2 aligned, `imageOverride`) with the
  * outlines on top. Zoom by wheel / pinch / buttons / keys, pan by dragging empty space (or Space + drag,
  * middle button), fit and 1:1. The outline tools draw in image pixel coordinates, with the pointer or with the
  * keyboard cursor (arrows move it, Shift+arrows faster, Enter places a point or corner, Esc cancels).
@@ -49,13 +50,15 @@ export interface ViewerProps {
   command?: { kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null;
   /** drawn over the outlines in image coordinates (pixels), e.g. the spot layer; takes no pointer events */
   overlay?: React.ReactNode;
+  /** a picture drawn in the browser shown instead of the server's preview (the composite with channel 2 aligned) */
+  imageOverride?: string | null;
 }
 
 const SELECT_COLOR = '#0f766e';
 const CELL_COLOR = '#f5f5f4';
 const BG_COLOR = '#f59e0b';
 
-export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay }: ViewerProps) {
+export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay, imageOverride }: ViewerProps) {
   const box = useRef<HTMLDivElement>(null);
   const [size, setSize] = useState({ w: 800, h: 600 });
   const [view, setView] = useState<View | null>(null);
@@ -447,7 +450,9 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
       onContextMenu={(e) => e.preventDefault()}
     >
       <div className="absolute left-0 top-0 origin-top-left" style={{ width: W, height: H, transform: `translate(${v.tx}px, ${v.ty}px) scale(${v.scale})` }}>
-        {img && <img src={img.src} alt="" draggable={false} className="absolute inset-0 h-full w-full max-w-none" style={{ imageRendering: v.scale >= 2 ? 'pixelated' : 'auto' }} />}
+        {(imageOverride ?? img?.src) && (
+          <img src={imageOverride ?? img!.src} alt="" draggable={false} data-aligned={imageOverride ? 'true' : undefined} className="absolute inset-0 h-full w-full max-w-none" style={{ imageRendering: v.scale >= 2 ? 'pixelated' : 'auto' }} />
+        )}
         <LabelLayer field={field} outlines={outlines} selected={selected} />
         <svg className="absolute inset-0 overflow-visible" width={W} height={H} viewBox={`0 0 ${W} ${H}`}>
           {outlines.map((o) =>

@@ -9,27 +9,45 @@ import type { Xy } from './spotView';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 import type { SaturatedMarks, ThresholdBasis } from './scatterBasis';
+import { displayRange, renderComposite } from './composite';
 
 export type ScatterRequest =
   | { type: 'pixels'; width: number; height: number; ch1: SampleArray; ch2: SampleArray; saturationLevel: number | null }
   | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean; cells: CellGeometry[] }
   /** live spot detection at the sliders' σ and k (spotPreview.ts) */
-  | { type: 'spots'; seq: number; regionKey: string; geometry: CellGeometry | null; sigma: number; k: number };
+  | { type: 'spots'; seq: number; regionKey: string; geometry: CellGeometry | null; sigma: number; k: number }
+  /** the composite with channel 2 as recorded (shift null) or aligned by the shift (composite.ts) */
+  | { type: 'composite'; seq: number; slot: string; shift: { dx: number; dy: number } | null; ranges?: [[number, number], [number, number]] };
 
 export type ScatterReply =
   | { type: 'scatter'; seq: number; regionKey: string; n: number; bins: number; counts: Uint32Array | null; max: number; outside: number; dataMax: [number, number]; rangeX: [number, number]; rangeY: [number, number]; t1: number; t2: number; otsu: { t1: number | null; t2: number | null }; quadrants: { both: number; only1: number; only2: number; neither: number }; saturated: { ch1: number | null; ch2: number | null }; basis: ThresholdBasis; saturatedMarks: Omit<SaturatedMarks, 'marks'> & { marks: Uint8Array | null }; ms: number }
   | { type: 'measure'; seq: number; regionKey: string; result: import('@shared/analysis/types').RegionResult; ms: number }
   | { type: 'spots'; seq: number; regionKey: string; sigma: number; k: number; spots1: Xy[]; spots2: Xy[]; pixels: number; ms: number }
-  | { type: 'error'; seq: number; message: string; spots?: boolean };
+  | { type: 'composite'; seq: number; slot: string; shift: { dx: number; dy: number } | null; width: number; height: number; rgba: Uint8ClampedArray; ms: number }
+  | { type: 'error'; seq: number; message: string; spots?: boolean; composite?: string };
 
 let img: ScatterInput | null = null;
 let region: { key: string; r: Region } | null = null;
+let ranges: [[number, number], [number, number]] | null = null;
 
 self.onmessage = (e: MessageEvent<ScatterRequest>) => {
   const m = e.data;
   if (m.type === 'pixels') {
     img = { width: m.width, height: m.height, ch1: m.ch1, ch2: m.ch2, saturationLevel: m.saturationLevel };
     region = null;
+    ranges = null;
+    return;
+  }
+  if (m.type === 'composite') {
+    try {
+      if (!img) throw new Error('pixels not loaded yet');
+      const t0 = performance.now();
+      ranges ??= [displayRange(img.ch1), displayRange(img.ch2)];
+      const c = renderComposite(img, m.shift, m.ranges ?? ranges);
+      (self as unknown as Worker).postMessage({ type: 'composite', seq: m.seq, slot: m.slot, shift: m.shift, ...c, ms: performance.now() - t0 } satisfies ScatterReply, [c.rgba.buffer]);
+    } catch (err) {
+      (self as unknown as Worker).postMessage({ type: 'error', seq: m.seq, message: (err as Error).message, composite: m.slot } satisfies ScatterReply);
+    }
     return;
   }
   if (m.type === 'spots') {

@@ -19,6 +19,8 @@ export interface LiveResult {
 }
 
 export type SpotPreviewView = Extract<ScatterReply, { type: 'spots' }>;
+/** A composite drawn by the worker (composite.ts): channel 2 as recorded (shift null) or aligned. */
+export type CompositeView = Extract<ScatterReply, { type: 'composite' }>;
 
 export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: number | null) {
   const worker = useRef<Worker | null>(null);
@@ -36,12 +38,16 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   const spotsWaiting = useRef<Extract<ScatterRequest, { type: 'spots' }> | null>(null);
   const [spots, setSpots] = useState<SpotPreviewView | null>(null);
   const [spotsError, setSpotsError] = useState<string | null>(null);
+  // composites per slot (the alignment panel, the main image): each slot's latest request wins
+  const [composites, setComposites] = useState<Record<string, CompositeView>>({});
+  const [compositeErrors, setCompositeErrors] = useState<Record<string, string>>({});
 
   useEffect(() => {
     if (!pixels) return;
     const w = new Worker(new URL('./scatter.worker.ts', import.meta.url), { type: 'module' });
     worker.current = w;
     countsByRegion.current.clear();
+    setComposites({});
     const ch1 = pixels.ch1.slice();
     const ch2 = pixels.ch2.slice();
     w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, ch1, ch2, saturationLevel } satisfies ScatterRequest, [ch1.buffer, ch2.buffer]);
@@ -61,6 +67,16 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     };
     w.onmessage = (e: MessageEvent<ScatterReply>) => {
       const m = e.data;
+      if (m.type === 'composite' || (m.type === 'error' && m.composite)) {
+        // drawings answer in order; only the latest asked for in each slot is kept
+        const slot = m.type === 'composite' ? m.slot : m.composite!;
+        if (m.seq !== compositeSeq.current[slot]) return;
+        if (m.type === 'composite') {
+          setComposites((c) => ({ ...c, [slot]: m }));
+          setCompositeErrors(({ [slot]: _gone, ...rest }) => rest);
+        } else setCompositeErrors((c) => ({ ...c, [slot]: m.message }));
+        return;
+      }
       if (m.type === 'spots' || (m.type === 'error' && m.spots)) {
         if (m.type === 'spots') {
           setSpots(m);
@@ -106,6 +122,18 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   }, [pixels, saturationLevel]);
 
   const pendingMeasure = useRef(new Set<number>());
+  const compositeSeq = useRef<Record<string, number>>({});
+
+  /**
+   * Draw the composite with channel 2 as recorded (null) or aligned by the shift, into a slot (each slot's
+   * latest request wins); `ranges` are the shown intensities per channel (default: the 0.1–99.9 percentiles).
+   */
+  const requestComposite = (shift: { dx: number; dy: number } | null, slot = 'panel', ranges?: [[number, number], [number, number]]) => {
+    const w = worker.current;
+    if (!w) return;
+    compositeSeq.current[slot] = ++seq.current;
+    w.postMessage({ type: 'composite', seq: seq.current, slot, shift, ranges } satisfies ScatterRequest);
+  };
 
   /**
    * Ask for the scatter of a region (null geometry = whole field); `measure` adds the live coefficients.
@@ -138,5 +166,5 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     }
   };
 
-  return { ready, view, live, error, request, spots, spotsError, requestSpots };
+  return { ready, view, live, error, request, spots, spotsError, requestSpots, composites, compositeErrors, requestComposite, composite: composites.panel ?? null, compositeError: compositeErrors.panel ?? null };
 }

@@ -1,0 +1,1 @@
+ALTER TABLE `studies` ADD `default_instrument_id` integer REFERENCES instruments(id);
