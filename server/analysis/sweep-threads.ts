@@ -84,8 +84,8 @@ export class SweepThreads {
     const plan = planSweep(p, lv);
     if (plan.slabs < 2) return false;
     const runs = shareSlabs(plan.slabItems, this.helpers + 1);
-    const { start, yRank, cut, ux, uy } = plan.input;
-    const input: SweepInput = { start: shared(start), yRank: shared(yRank), cut, ux, uy };
+    const { start, yRank, mult, cut, ux, uy } = plan.input;
+    const input: SweepInput = { start: shared(start), yRank: shared(yRank), mult: shared(mult), cut, ux, uy };
     // let the pool see threads that became ready while this thread was busy, so the hand-off is immediate
     await new Promise((r) => setImmediate(r));
     const pending = runs.slice(1).map((slabs) => this.pool.run({ input, slabs } satisfies SlabTask) as Promise<SlabPartial[]>);

@@ -273,6 +273,75 @@ export function sortByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairA
 }
 
 /**
+ * The distinct (x, y) pairs in (x, y) order with their multiplicities: the pairs of x level g are positions
+ * start[g] .. start[g+1] of `yRank` (ascending) and `mult`. What the pair sweep (sweep.ts) reads: one entry
+ * per distinct pair instead of one per item.
+ */
+export interface DistinctPairs {
+  start: Int32Array;
+  yRank: RankArray;
+  mult: Int32Array;
+}
+
+/**
+ * Distinct pairs in (x, y) order, O(n + Lx + Ly): the x levels grouped by y (one counting pass), each y
+ * group's distinct x levels counted in place, then only the distinct pairs placed in x order (y ascending
+ * within each x level because the y groups are visited in ascending order).
+ */
+export function distinctByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairArray): DistinctPairs {
+  const { L } = lx;
+  const { L: Ly, counts: cy } = ly;
+  let n = 0;
+  for (let k = 0; k < L; k++) n += lx.counts[k];
+  const xl = lx.valueLevel, yl = ly.valueLevel;
+  const yStart = new Int32Array(Ly + 1);
+  for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
+  const xByY: RankArray = L > 65536 ? new Uint32Array(n) : new Uint16Array(n);
+  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array) {
+    const yPos = new Int32Array(yl.length);
+    for (let v = 0; v < yl.length; v++) yPos[v] = yStart[yl[v]];
+    for (let i = 0; i < n; i++) xByY[yPos[y[i]]++] = xl[x[i]];
+  } else {
+    const rx = lx.rank, ry = ly.rank;
+    const yPos = yStart.slice(0, Ly);
+    for (let i = 0; i < n; i++) xByY[yPos[ry[i]]++] = rx[i];
+  }
+  // each y group's distinct x levels, compacted to the front of the array with their counts
+  const seen = new Int32Array(L);
+  const cnt = new Int32Array(n);
+  const perX = new Int32Array(L + 1); // distinct pairs per x level
+  const dStart = new Int32Array(Ly + 1);
+  let w = 0;
+  for (let k = 0; k < Ly; k++) {
+    const g0 = w;
+    for (let q = yStart[k], e = yStart[k + 1]; q < e; q++) {
+      const v = xByY[q];
+      if (seen[v] === 0) xByY[w++] = v;
+      seen[v]++;
+    }
+    for (let j = g0; j < w; j++) {
+      const v = xByY[j];
+      cnt[j] = seen[v];
+      seen[v] = 0;
+      perX[v + 1]++;
+    }
+    dStart[k + 1] = w;
+  }
+  const start = new Int32Array(L + 1);
+  for (let g = 0; g < L; g++) start[g + 1] = start[g] + perX[g + 1];
+  const pos = start.slice(0, L);
+  const yRank: RankArray = Ly > 65536 ? new Uint32Array(w) : new Uint16Array(w);
+  const mult = new Int32Array(w);
+  for (let k = 0; k < Ly; k++)
+    for (let j = dStart[k], e = dStart[k + 1]; j < e; j++) {
+      const q = pos[xByY[j]]++;
+      yRank[q] = k;
+      mult[q] = cnt[j];
+    }
+  return { start, yRank, mult };
+}
+
+/**
  * Pairs with lazily computed, cached level structures so that the coefficients of one region share
  * one pass of counting (measureRegion computes each piece at most once).
  */
@@ -285,6 +354,7 @@ export class PreparedPairs implements Pairs {
   private _ly?: LevelIndex;
   private _ox?: LevelOrder;
   private _sx?: XSorted;
+  private _dx?: DistinctPairs;
   /** C − D of Kendall's τ, filled by whichever sweep computes it first (kendall.ts or the pair sweep) */
   kendallS?: number;
   /** the pair sweep (sweep.ts), once done: dCor's cross terms, C − D, ρ's rank products */
@@ -310,6 +380,9 @@ export class PreparedPairs implements Pairs {
   }
   get orderX(): LevelOrder {
     return (this._ox ??= levelOrder(this.levelsX));
+  }
+  get distinctByX(): DistinctPairs {
+    return (this._dx ??= distinctByX(this.levelsX, this.levelsY, this.x, this.y));
   }
   get sortedByX(): XSorted {
     return (this._sx ??= sortByX(this.levelsX, this.levelsY, this.x, this.y));

@@ -33,10 +33,11 @@ export const SLAB_MIN_PAIRS = 1 << 16;
 
 /** What one slab's sweep reads: typed arrays only (copyable to, or shareable with, another thread). */
 export interface SweepInput {
-  /** items of x level g are positions start[g] .. start[g+1] (pairs.ts XSorted) */
+  /** the distinct pairs of x level g are positions start[g] .. start[g+1] (pairs.ts DistinctPairs) */
   start: Int32Array;
-  /** y level of each item in (x, y) order */
+  /** y level of each distinct pair in (x, y) order, and how many items it stands for */
   yRank: RankArray;
+  mult: Int32Array;
   /** slab s holds the y levels cut[s] .. cut[s+1] − 1 */
   cut: Int32Array;
   /** centred value of each x level, of each y level */
@@ -126,7 +127,7 @@ function addTo(acc: Float64Array, i: number, v: number): void {
  * The sequential pass: slab cuts, the cross-slab shares, S2 and the rank product sum. O(n + Lx·log S).
  */
 export function planSweep(p: PreparedPairs, lv: SweepLevels, options: SlabOptions = {}): SweepPlan {
-  const { start, yRank } = p.sortedByX;
+  const { start, yRank, mult } = p.distinctByX;
   const { ux, uy, ra, rb, dx, dy } = lv;
   const cut = slabCuts(p.levelsY.counts, p.n, options);
   const S = cut.length - 1;
@@ -147,13 +148,10 @@ export function planSweep(p: PreparedPairs, lv: SweepLevels, options: SlabOption
     let nt = 0;
     let s = 0;
     let next = cut[1];
-    // y levels ascend within the group (pairs.ts): a run of equal y is taken once with its multiplicity
-    for (let q = a; q < b; ) {
+    // y levels ascend within the group (pairs.ts), each distinct pair once with its multiplicity
+    for (let q = a; q < b; q++) {
       const r = yRank[q];
-      let e = q + 1;
-      while (e < b && yRank[e] === r) e++;
-      const m = e - q;
-      q = e;
+      const m = mult[q];
       gB += m * rb[r];
       gD += m * dy[r];
       if (S > 1) {
@@ -216,7 +214,7 @@ export function planSweep(p: PreparedPairs, lv: SweepLevels, options: SlabOption
   }
   if (S === 1) slabItems[0] = p.n;
   return {
-    input: { start, yRank, cut, ux, uy },
+    input: { start, yRank, mult, cut, ux, uy },
     slabs: S,
     slabItems,
     crossKendall: kendall,
@@ -241,7 +239,7 @@ function lowerBound(yRank: RankArray, a: number, b: number, v: number): number {
  * (pairs within a group have x_i − x_j = 0 and add nothing; x ties are neither concordant nor discordant).
  */
 export function slabPartial(input: SweepInput, s: number): SlabPartial {
-  const { start, yRank, cut, ux, uy } = input;
+  const { start, yRank, mult, cut, ux, uy } = input;
   const lo = cut[s], hi = cut[s + 1];
   const whole = cut.length === 2;
   const size = hi - lo;
@@ -261,12 +259,11 @@ export function slabPartial(input: SweepInput, s: number): SlabPartial {
     const u = ux[g];
     let gS = 0;
     let gV = 0; // this group's share (every term is ≥ 0: plain sum, then compensated across groups)
-    for (let q = a; q < b; ) {
+    let gC = 0; // items of the group in this slab
+    for (let q = a; q < b; q++) {
       const r = yRank[q];
-      let e = q + 1;
-      while (e < b && yRank[e] === r) e++;
-      const m = e - q;
-      q = e;
+      const m = mult[q];
+      gC += m;
       const w = uy[r];
       const rl = r - lo;
       let c = 0, sx = 0, sy = 0, sxy = 0;
@@ -284,12 +281,9 @@ export function slabPartial(input: SweepInput, s: number): SlabPartial {
     const tt = acc + gV;
     if (Math.abs(acc) >= Math.abs(gV)) accC += acc - tt + gV; else accC += gV - tt + acc;
     acc = tt;
-    for (let q = a; q < b; ) {
+    for (let q = a; q < b; q++) {
       const r = yRank[q];
-      let e = q + 1;
-      while (e < b && yRank[e] === r) e++;
-      const m = e - q;
-      q = e;
+      const m = mult[q];
       const w = uy[r];
       const rl = r - lo;
       const mu = m * u, mw = m * w, muw = m * (u * w);
@@ -304,8 +298,8 @@ export function slabPartial(input: SweepInput, s: number): SlabPartial {
       SY += mw;
       SXY += muw;
     }
-    C += b - a;
-    SX += u * (b - a);
+    C += gC;
+    SX += u * gC;
     S += gS;
   }
   return { kendall: S, s1: acc + accC };
