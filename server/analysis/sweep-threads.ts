@@ -65,11 +65,19 @@ export function shareSlabs(items: ArrayLike<number>, parts: number): number[][] 
 }
 
 export class SweepThreads {
-  private pool: Piscina;
-  /** `helpers` threads besides this one; they start now so they are ready when the first sweep comes */
-  constructor(readonly helpers: number) {
+  private pool: Piscina | null = null;
+  /**
+   * `helpers` threads besides this one. `start` 'now' (default) starts them at once, so that they are
+   * ready when the first sweep comes (a one-off command); 'on demand' starts them at the first big region
+   * and lets them end after 30 s idle (a long-lived run thread, where most regions are small).
+   */
+  constructor(readonly helpers: number, private start: 'now' | 'on demand' = 'now') {
     if (!(Number.isInteger(helpers) && helpers >= 1)) throw new RangeError(`sweep threads need at least one helper thread, received ${helpers}`);
-    this.pool = new Piscina({ filename: WORKER_FILE, execArgv: ['--import', 'tsx'], minThreads: helpers, maxThreads: helpers, idleTimeout: 30_000 });
+    if (start === 'now') this.threads();
+  }
+
+  private threads(): Piscina {
+    return (this.pool ??= new Piscina({ filename: WORKER_FILE, execArgv: ['--import', 'tsx'], minThreads: this.start === 'now' ? this.helpers : 0, maxThreads: this.helpers, idleTimeout: 30_000 }));
   }
 
   /**
@@ -86,9 +94,10 @@ export class SweepThreads {
     const runs = shareSlabs(plan.slabItems, this.helpers + 1);
     const { start, yRank, mult, cut, ux, uy } = plan.input;
     const input: SweepInput = { start: shared(start), yRank: shared(yRank), mult: shared(mult), cut, ux, uy };
+    const pool = this.threads();
     // let the pool see threads that became ready while this thread was busy, so the hand-off is immediate
     await new Promise((r) => setImmediate(r));
-    const pending = runs.slice(1).map((slabs) => this.pool.run({ input, slabs } satisfies SlabTask) as Promise<SlabPartial[]>);
+    const pending = runs.slice(1).map((slabs) => pool.run({ input, slabs } satisfies SlabTask) as Promise<SlabPartial[]>);
     const partials: SlabPartial[] = new Array(plan.slabs);
     for (const s of runs[0]) partials[s] = slabPartial(plan.input, s);
     const theirs = await Promise.all(pending);
@@ -97,8 +106,9 @@ export class SweepThreads {
     return true;
   }
 
-  close(): Promise<void> {
-    return this.pool.destroy();
+  async close(): Promise<void> {
+    await this.pool?.destroy();
+    this.pool = null;
   }
 }
 

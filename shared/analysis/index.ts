@@ -131,7 +131,7 @@ export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: Threshold
  */
 export function measureRegion(ch1: ChannelArray, ch2: ChannelArray, region: RegionInput, options: MeasureOptions = {}): RegionResult {
   const spec = toRegionSpec(region);
-  const pairs = prepare(collectPairs(ch1, ch2, spec));
+  const pairs = options.pairs ?? prepare(collectPairs(ch1, ch2, spec));
   const t = options.threshold ?? { method: 'none' as const };
   const thresholds = isInfo(t) ? t : computeThresholds(pairs, t);
   const result = measurePairs(pairs, thresholds, options);

@@ -316,8 +316,10 @@ export function distinctByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: P
     const g0 = w;
     for (let q = yStart[k], e = yStart[k + 1]; q < e; q++) {
       const v = xByY[q];
-      if (seen[v] === 0) xByY[w++] = v;
-      seen[v]++;
+      const c = seen[v];
+      xByY[w] = v;
+      w += c === 0 ? 1 : 0;
+      seen[v] = c + 1;
     }
     for (let j = g0; j < w; j++) {
       const v = xByY[j];
