@@ -48,7 +48,6 @@ import {
   extrudeIndices,
   labelRegions,
   maskToIndices,
-  measurePairs,
   prepare,
   rasterize,
   type ChannelArray,
@@ -66,12 +65,16 @@ import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../.
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
 import { readLabelStack } from '../images/mask';
 import { concatSlices, project } from '../images/projection';
+import { measurePairsThreaded, SweepThreads, THREAD_MIN_PAIRS } from '../analysis/sweep-threads';
+
+/** `--threads` default: this thread and one helper (the values are the same with any number) */
+export const DEFAULT_THREADS = 2;
 
 /** Bad input: exit code 2 and the message on one line. */
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--threads N] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -103,6 +106,8 @@ export const HELP = [
   '  --bleed A21,A12             remove bleed-through (after --shift): A21 of channel 1 seen in channel 2, A12 the reverse,',
   '                              each a fraction in [0, 1)',
   '  --measure-bleed 1|2         on a control labelled only in channel 1 (or 2): add "bleed": a21 (or a12)',
+  `  --threads N                 threads for the pair sweep of regions of ${THREAD_MIN_PAIRS.toLocaleString('en-US')} pixels or more, 1 to 64`,
+  `                              (default ${DEFAULT_THREADS}: this one and ${DEFAULT_THREADS - 1} helper); the values do not depend on it`,
   '  --json                      print JSON instead of a table',
   '  -h, --help                  print this help',
   '',
@@ -159,6 +164,8 @@ export interface CliOptions {
   bleed: { a21: number; a12: number } | null;
   /** --measure-bleed: the labelled channel of the control */
   measureBleed: 1 | 2 | null;
+  /** --threads: threads for the pair sweep of big regions (default DEFAULT_THREADS) */
+  threads?: number;
   json: boolean;
 }
 
@@ -257,6 +264,7 @@ const OPTIONS = {
   shift: { type: 'string' },
   bleed: { type: 'string' },
   'measure-bleed': { type: 'string' },
+  threads: { type: 'string' },
 } as const;
 
 /**
@@ -334,6 +342,11 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
   if (mb !== undefined) {
     if (mb !== '1' && mb !== '2') throw new UsageError(`--measure-bleed must be 1 or 2 (the labelled channel of the control), received ${JSON.stringify(mb)}`);
     out.measureBleed = mb === '1' ? 1 : 2;
+  }
+  const th = s('threads');
+  if (th !== undefined) {
+    if (!/^\d+$/.test(th.trim()) || Number(th) < 1 || Number(th) > 64) throw new UsageError(`--threads must be a whole number from 1 to 64, received ${JSON.stringify(th)}`);
+    out.threads = Number(th);
   }
   if (values.objects === true && out.shift)
     throw new UsageError('--objects cannot be combined with --shift: spot detection measures every pixel, and aligned pixels at the border are not measured');
@@ -439,72 +452,83 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   // the measured volume: slices z0..z1 one after the other, or their projection
   let ch1: ChannelArray = z.projection ? project(s1, z0, z1) : concatSlices(s1, z0, z1);
   let ch2: ChannelArray = z.projection ? project(s2, z0, z1) : concatSlices(s2, z0, z1);
-  const measured: Pick<AnalyzeOutput, 'shift' | 'bleed'> = {};
-  if (o.measureShift) {
-    const r = depth === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, depth), sumSlices(ch2, plane, depth), width, height);
-    measured.shift = { dx: r.dx, dy: r.dy };
-  }
-  if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
-  if (o.objects && depth > 1)
-    throw new UsageError(`--objects needs single-plane images, received ${depth} z slices to measure in 3D; measure one slice (--z N) or a projection (--z mip)`);
-  let regions: Region[] = [{ label: 0, indices: null }];
-  if (o.mask) {
-    const path = o.mask;
-    await mustExist(path, '--mask');
-    const lab = await about('--mask', path, () => readLabelStack(path, { width, height }));
-    const lz = lab.slices.length;
-    if (lz === 1) regions = labelRegions(lab.slices[0]).map((r) => ({ label: r.label, indices: extrudeIndices(r.indices, plane, 0, depth - 1) }));
-    else if (lz !== nz) throw new UsageError(`--mask ${path} has ${lz} slices but the image has ${nz}; give a label stack with ${nz} slices or one plane`);
-    else if (z.projection) throw new UsageError(`--mask ${path} is a label stack of ${lz} slices, but --z ${z.projection} measures one projected plane; give a one-plane label image or measure in 3D`);
-    else regions = labelRegions(concatSlices(lab.slices, z0, z1)).map((r) => ({ label: r.label, indices: r.indices }));
-  } else if (o.rois) {
-    const path = o.rois;
-    await mustExist(path, '--rois');
-    let parsed: unknown;
-    try {
-      parsed = JSON.parse(await readFile(path, 'utf8'));
-    } catch (e) {
-      throw new UsageError(`--rois ${path}: not valid JSON (${(e as Error).message.split('\n')[0]})`);
+  // helper threads for the pair sweep of big regions, started now so that they are ready when it comes
+  const nThreads = o.threads ?? DEFAULT_THREADS;
+  const threads = nThreads > 1 && ch1.length >= THREAD_MIN_PAIRS ? new SweepThreads(nThreads - 1) : null;
+  try {
+    const measured: Pick<AnalyzeOutput, 'shift' | 'bleed'> = {};
+    if (o.measureShift) {
+      const r = depth === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, depth), sumSlices(ch2, plane, depth), width, height);
+      measured.shift = { dx: r.dx, dy: r.dy };
     }
-    const rois = checkRois(parsed);
-    if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] }; ${rois}`);
-    regions = rois.map((roi, k) => {
-      const inPlane = maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height));
-      if (!roi.z) return { label: roi.name, indices: extrudeIndices(inPlane, plane, 0, depth - 1) };
-      if (roi.z[1] > nz) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z": ${JSON.stringify(roi.z)}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
-      if (z.projection) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z", but --z ${z.projection} measures one projected plane; leave "z" out or measure in 3D`);
-      // the ROI's slices within the measured ones (none: an empty region, its measures null)
-      return { label: roi.name, indices: extrudeIndices(inPlane, plane, Math.max(roi.z[0] - 1, z0) - z0, Math.min(roi.z[1] - 1, z1) - z0) };
-    });
+    if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
+    if (o.objects && depth > 1)
+      throw new UsageError(`--objects needs single-plane images, received ${depth} z slices to measure in 3D; measure one slice (--z N) or a projection (--z mip)`);
+    let regions: Region[] = [{ label: 0, indices: null }];
+    if (o.mask) {
+      const path = o.mask;
+      await mustExist(path, '--mask');
+      const lab = await about('--mask', path, () => readLabelStack(path, { width, height }));
+      const lz = lab.slices.length;
+      if (lz === 1) regions = labelRegions(lab.slices[0]).map((r) => ({ label: r.label, indices: extrudeIndices(r.indices, plane, 0, depth - 1) }));
+      else if (lz !== nz) throw new UsageError(`--mask ${path} has ${lz} slices but the image has ${nz}; give a label stack with ${nz} slices or one plane`);
+      else if (z.projection) throw new UsageError(`--mask ${path} is a label stack of ${lz} slices, but --z ${z.projection} measures one projected plane; give a one-plane label image or measure in 3D`);
+      else regions = labelRegions(concatSlices(lab.slices, z0, z1)).map((r) => ({ label: r.label, indices: r.indices }));
+    } else if (o.rois) {
+      const path = o.rois;
+      await mustExist(path, '--rois');
+      let parsed: unknown;
+      try {
+        parsed = JSON.parse(await readFile(path, 'utf8'));
+      } catch (e) {
+        throw new UsageError(`--rois ${path}: not valid JSON (${(e as Error).message.split('\n')[0]})`);
+      }
+      const rois = checkRois(parsed);
+      if (typeof rois === 'string') throw new UsageError(`--rois ${path}: expected an array of { "name": string, "points": [[x, y], ...], "z"?: [from, to] }; ${rois}`);
+      regions = rois.map((roi, k) => {
+        const inPlane = maskToIndices(rasterize({ kind: 'polygon', points: roi.points }, width, height));
+        if (!roi.z) return { label: roi.name, indices: extrudeIndices(inPlane, plane, 0, depth - 1) };
+        if (roi.z[1] > nz) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z": ${JSON.stringify(roi.z)}, but the image has ${nz} z slice${nz === 1 ? '' : 's'}`);
+        if (z.projection) throw new UsageError(`--rois ${path}: item ${k} ("${roi.name}") has "z", but --z ${z.projection} measures one projected plane; leave "z" out or measure in 3D`);
+        // the ROI's slices within the measured ones (none: an empty region, its measures null)
+        return { label: roi.name, indices: extrudeIndices(inPlane, plane, Math.max(roi.z[0] - 1, z0) - z0, Math.min(roi.z[1] - 1, z1) - z0) };
+      });
+    }
+    const whole = regions.length === 1 && regions[0].indices === null;
+    // thresholds once over the union of all regions' voxels
+    let union: Uint32Array | null = null;
+    if (!whole) {
+      const m = new Uint8Array(ch1.length);
+      for (const r of regions) for (const i of r.indices!) m[i] = 1;
+      union = maskToIndices(m);
+    }
+    if (o.measureBleed !== null) {
+      const region = union === null ? null : { kind: 'indices' as const, indices: union };
+      measured.bleed = o.measureBleed === 1 ? { a21: bleedThroughSlope(ch1, ch2, region) } : { a12: bleedThroughSlope(ch2, ch1, region) };
+    }
+    // channel 2 is the command's own copy once aligned, so the unmixed channel 2 may overwrite it
+    if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12, { reuse: o.shift !== null }));
+    // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
+    const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
+    const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
+    const thresholds = computeThresholds(unionPairs ?? prepare({ n: 0, x: new Uint16Array(0), y: new Uint16Array(0), integer: true }), o.threshold);
+    const results = [];
+    for (const r of regions) {
+      const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
+      const { thresholds: _t, micE, ticE, ...computed } = await measurePairsThreaded(threads, pairs, thresholds, o.mic ? { mic: MIC_DEFAULTS } : {});
+      const rest = o.mic ? { ...computed, micE, ticE } : computed;
+      if (!o.objects) {
+        results.push({ label: r.label, ...rest });
+        continue;
+      }
+      // one measured plane here, so the region's indices are plane indices
+      const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
+      results.push({ label: r.label, ...rest, objects });
+    }
+    return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
+  } finally {
+    await threads?.close();
   }
-  const whole = regions.length === 1 && regions[0].indices === null;
-  // thresholds once over the union of all regions' voxels
-  let union: Uint32Array | null = null;
-  if (!whole) {
-    const m = new Uint8Array(ch1.length);
-    for (const r of regions) for (const i of r.indices!) m[i] = 1;
-    union = maskToIndices(m);
-  }
-  if (o.measureBleed !== null) {
-    const region = union === null ? null : { kind: 'indices' as const, indices: union };
-    measured.bleed = o.measureBleed === 1 ? { a21: bleedThroughSlope(ch1, ch2, region) } : { a12: bleedThroughSlope(ch2, ch1, region) };
-  }
-  // channel 2 is the command's own copy once aligned, so the unmixed channel 2 may overwrite it
-  if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12, { reuse: o.shift !== null }));
-  // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
-  const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
-  const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;
-  const thresholds = computeThresholds(unionPairs ?? prepare({ n: 0, x: new Uint16Array(0), y: new Uint16Array(0), integer: true }), o.threshold);
-  const results = regions.map((r) => {
-    const pairs = r.indices === null && unionPairs ? unionPairs : collectPairs(ch1, ch2, r.indices === null ? null : { kind: 'indices', indices: r.indices });
-    const { thresholds: _t, micE, ticE, ...computed } = measurePairs(pairs, thresholds, o.mic ? { mic: MIC_DEFAULTS } : {});
-    const rest = o.mic ? { ...computed, micE, ticE } : computed;
-    if (!o.objects) return { label: r.label, ...rest };
-    // one measured plane here, so the region's indices are plane indices
-    const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
-    return { label: r.label, ...rest, objects };
-  });
-  return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
 }
 
 /** Terminal numbers: 4 decimals (p-values in scientific notation), "n/a" when undefined, never "-0.0000". */

@@ -41,7 +41,8 @@
  *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
  *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { THREAD_MIN_PAIRS, type SweepThreads } from '../analysis/sweep-threads.js';
 import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
 import { pairDistancePx, spotSigmaPx, type RecipeSettings } from '../../shared/schemas/recipes.js';
@@ -232,8 +233,36 @@ export function computeField(job: FieldJob, px: FieldPixels, computedAt = new Da
   return computeFieldResult(job, px, computedAt).measurements;
 }
 
+type FieldResult = { measurements: MeasurementValues[]; spots: SpotValues[] };
+
 /** Measures every 'cell' region of a field and, when the recipe's objects section is on, lists its spots. */
-export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): { measurements: MeasurementValues[]; spots: SpotValues[] } {
+export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = new Date().toISOString()): FieldResult {
+  const steps = fieldSteps(job, px, computedAt, false);
+  let r = steps.next();
+  while (!r.done) r = steps.next();
+  return r.value;
+}
+
+/**
+ * computeFieldResult with the pair sweep of every cell of at least THREAD_MIN_PAIRS pixels split over
+ * `threads` (server/analysis/sweep-threads.ts); the values are the same.
+ */
+export async function computeFieldResultThreaded(job: FieldJob, px: FieldPixels, threads: SweepThreads, computedAt = new Date().toISOString()): Promise<FieldResult> {
+  const steps = fieldSteps(job, px, computedAt, true);
+  let r = steps.next();
+  while (!r.done) {
+    await threads.sweep(r.value);
+    r = steps.next();
+  }
+  return r.value;
+}
+
+/**
+ * The field's measurement, as steps: with `yieldBig`, each cell of at least THREAD_MIN_PAIRS pixels whose
+ * exact set is asked for has its pairs collected and handed out (yielded) before it is measured, so the
+ * caller can do their pair sweep elsewhere first.
+ */
+function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBig: boolean): Generator<PreparedPairs, FieldResult, void> {
   const s = job.settings;
   const { width, height } = px;
   const plane = width * height;
@@ -377,7 +406,13 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
       rows.push({ ...base, ...nullCoefficients, threshold1: null, threshold2: null, mean1: null, mean2: null, provenance });
       continue;
     }
+    let pairs: PreparedPairs | undefined;
+    if (yieldBig && slow && n >= THREAD_MIN_PAIRS) {
+      pairs = prepare(collectPairs(ch1, ch2, { kind: 'indices', indices: idx }));
+      yield pairs;
+    }
     const r = measureRegion(ch1, ch2, idx, {
+      pairs,
       width,
       height,
       threshold: fieldThresholds ?? threshold,
@@ -411,11 +446,11 @@ export function computeFieldResult(job: FieldJob, px: FieldPixels, computedAt = 
 }
 
 /** Load + compute, never throwing: a failure becomes `{ ok: false, error }` with a one-line message. */
-export async function runFieldJob(store: FileStore, job: FieldJob): Promise<FieldJobResult> {
+export async function runFieldJob(store: FileStore, job: FieldJob, threads: SweepThreads | null = null): Promise<FieldJobResult> {
   const t0 = performance.now();
   try {
     const px = await loadJobPixels(store, job);
-    const { measurements, spots } = computeFieldResult(job, px);
+    const { measurements, spots } = threads ? await computeFieldResultThreaded(job, px, threads) : computeFieldResult(job, px);
     return { runId: job.runId, fieldId: job.fieldId, ok: true, measurements, spots, ms: performance.now() - t0 };
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);

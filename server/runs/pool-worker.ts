@@ -10,9 +10,12 @@ import { workerData } from 'node:worker_threads';
 import type { FileStore, FileStoreSettings } from '../services.js';
 import { createFileStore } from '../images/store.js';
 import { runFieldJob } from './compute.js';
+import { SweepThreads } from '../analysis/sweep-threads.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 
 let store: FileStore | null = null;
+/** one helper thread for the pair sweep of a cell of a million pixels or more, started on the first such cell */
+const threads = new SweepThreads(1, 'on demand');
 
 // On Linux, setpriority(PRIO_PROCESS, 0) applies to the calling thread only: computing threads yield to the
 // thread that answers HTTP requests. Elsewhere it may lower the whole process or be refused; both are fine.
@@ -27,6 +30,6 @@ if (process.platform === 'linux') {
 export default async function computeFieldBatch(jobs: FieldJob[]): Promise<FieldJobResult[]> {
   store ??= createFileStore(workerData as FileStoreSettings);
   const out: FieldJobResult[] = [];
-  for (const job of jobs) out.push(await runFieldJob(store, job));
+  for (const job of jobs) out.push(await runFieldJob(store, job, threads));
   return out;
 }

@@ -12,6 +12,7 @@ import { Queue, Worker } from 'bullmq';
 import { FIELDS_QUEUE, RESULTS_QUEUE, connectionOf, jobIdOf } from './bullmq.js';
 import { createFileStore } from '../images/store.js';
 import { runFieldJob } from './compute.js';
+import { SweepThreads } from '../analysis/sweep-threads.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 
 function fail(msg: string): never {
@@ -27,13 +28,15 @@ async function main() {
   const concurrency = Number(process.env.WORKER_CONCURRENCY ?? 1);
   if (!Number.isInteger(concurrency) || concurrency < 1 || concurrency > 64) fail(`WORKER_CONCURRENCY must be an integer 1–64, got ${JSON.stringify(process.env.WORKER_CONCURRENCY)}`);
   const store = createFileStore({ DATA_DIR: process.env.DATA_DIR ?? 'data', STORE_URL: storeUrl, S3_ENDPOINT: process.env.S3_ENDPOINT });
+  // one helper thread for the pair sweep of a cell of a million pixels or more, started on the first such cell
+  const threads = new SweepThreads(1, 'on demand');
   const connection = connectionOf(url);
   const results = new Queue<FieldJobResult>(RESULTS_QUEUE, { connection });
   const name = `${os.hostname()}:${process.pid}`;
   const worker = new Worker<FieldJob, { worker: string; ok: boolean; measurements: number; ms: number }>(
     FIELDS_QUEUE,
     async (job) => {
-      const res = await runFieldJob(store, job.data);
+      const res = await runFieldJob(store, job.data, threads);
       await results.add('result', res, { jobId: jobIdOf(res.runId, res.fieldId), removeOnComplete: true, removeOnFail: 1000 });
       return { worker: name, ok: res.ok, measurements: res.ok ? res.measurements.length : 0, ms: Math.round(res.ms) };
     },
@@ -46,6 +49,7 @@ async function main() {
   const stop = async () => {
     await worker.close();
     await results.close();
+    await threads.close();
     process.exit(0);
   };
   process.on('SIGINT', stop);

@@ -8,7 +8,8 @@
  *   135:15, doi:10.1016/j.csda.2019.01.016. With a_ij = |x_i − x_j|, b_ij = |y_i − y_j|, row sums a_i·,
  *   grand sum a··:  n²·dCov² = S1 − (2/n)·S2 + a··b··/n², S1 = Σ_ij a_ij b_ij, S2 = Σ_i a_i· b_i·.
  *   Row sums come from level counts (O(L)); Σ_ij a_ij² = 2n·Σ(x − x̄)²; the cross term S1 from one sweep in
- *   x order with a Fenwick tree over y levels carrying count, Σx, Σy, Σxy of the items seen so far.
+ *   x order with a Fenwick tree over y levels carrying count, Σx, Σy, Σxy of the items seen so far
+ *   (sweep.ts: cut into y slabs, each slab's tree cache-resident; the slabs may run on several threads).
  * - Bias-corrected dCor² R*_n (U-centred) and its t-test of independence: Székely & Rizzo (2013),
  *   "The distance correlation t-test of independence in high dimension", J. Multivariate Anal. 117:193,
  *   doi:10.1016/j.jmva.2013.02.012; inner product (Székely & Rizzo 2014, Ann. Statist. 42:2382,
@@ -25,7 +26,9 @@
  * and p = 0 (R* = 1) or 1 (R* = −1).
  */
 import tCdf from '@stdlib/stats-base-dists-t-cdf';
-import { Fenwick4, NeumaierSum, roundedMean } from './numeric';
+import { NeumaierSum, roundedMean } from './numeric';
+import { centredRanks } from './spearman';
+import { pairSweep, type PairSweep, type SweepLevels } from './sweep';
 import { prepare, type LevelIndex, type Pairs, type PreparedPairs } from './pairs';
 
 export interface DcorResult {
@@ -97,80 +100,28 @@ function rowSums(li: LevelIndex, n: number, integer: boolean): RowSums {
 }
 
 /**
- * Σ_ij |x_i − x_j||y_i − y_j| by one Fenwick sweep (Huo & Székely 2016). Items are visited in x order a
- * whole x group at a time (queries before inserts): pairs within a group have x_i − x_j = 0 and add
- * nothing, and the same sweep yields Kendall's C − D from the count slot (cached for kendall.ts) and
- * S2 = Σ_i a_i· b_i· (a_i· is common to an x group: one product per group).
+ * The per-level inputs of the pair sweep (sweep.ts): centred values and row sums for dCor, centred ranks for
+ * ρ. Null when dCor is undefined (n < 2 or a constant channel).
  */
-function crossTerm(p: PreparedPairs, ux: Float64Array, uy: Float64Array, ra: Float64Array, rb: Float64Array): [number, number] {
-  const size = p.levelsY.L;
-  const { start, yRank } = p.sortedByX;
-  const t = new Fenwick4(size).tree;
-  const eqCount = new Int32Array(size);
-  let C = 0, SX = 0, SY = 0, SXY = 0;
-  let acc = 0, accC = 0;
-  let s2 = 0, s2c = 0;
-  let S = 0;
-  const Lx = start.length - 1;
-  for (let g = 0; g < Lx; g++) {
-    const a = start[g], b = start[g + 1];
-    const u = ux[g];
-    let gS = 0;
-    let gV = 0; // this group's share (every term is ≥ 0: plain sum, then compensated across groups)
-    let gB = 0; // Σ b_i· over the group (its a_i· is common)
-    // y levels ascend within the group (pairs.ts): a run of equal y is one query and one insert
-    for (let q = a; q < b; ) {
-      const r = yRank[q];
-      let e = q + 1;
-      while (e < b && yRank[e] === r) e++;
-      const m = e - q;
-      q = e;
-      const w = uy[r];
-      let c = 0, sx = 0, sy = 0, sxy = 0;
-      for (let k = r; k > 0; k -= k & -k) {
-        const o = k << 2;
-        c += t[o];
-        sx += t[o + 1];
-        sy += t[o + 2];
-        sxy += t[o + 3];
-      }
-      gS += m * (2 * c + eqCount[r] - C);
-      gB += m * rb[r];
-      // Σ_{j seen} (u − u_j)|w − w_j| = Σ_below (u−u_j)(w−w_j) − Σ_rest (u−u_j)(w−w_j)
-      gV += m * ((2 * c - C) * u * w - u * (2 * sy - SY) - w * (2 * sx - SX) + (2 * sxy - SXY));
-    }
-    const tt = acc + gV;
-    if (Math.abs(acc) >= Math.abs(gV)) accC += acc - tt + gV; else accC += gV - tt + acc;
-    acc = tt;
-    const v = ra[g] * gB;
-    const t2 = s2 + v;
-    if (Math.abs(s2) >= Math.abs(v)) s2c += s2 - t2 + v; else s2c += v - t2 + s2;
-    s2 = t2;
-    for (let q = a; q < b; ) {
-      const r = yRank[q];
-      let e = q + 1;
-      while (e < b && yRank[e] === r) e++;
-      const m = e - q;
-      q = e;
-      const w = uy[r];
-      const mu = m * u, mw = m * w, muw = m * (u * w);
-      for (let k = r + 1; k <= size; k += k & -k) {
-        const o = k << 2;
-        t[o] += m;
-        t[o + 1] += mu;
-        t[o + 2] += mw;
-        t[o + 3] += muw;
-      }
-      eqCount[r] += m;
-      SY += mw;
-      SXY += muw;
-    }
-    C += b - a;
-    SX += u * (b - a);
-    S += gS;
-  }
-  p.kendallS = S;
-  return [2 * (acc + accC), s2 + s2c];
+export function sweepLevels(pairs: Pairs | PreparedPairs): SweepLevels | null {
+  const p = prepare(pairs);
+  const n = p.n;
+  if (n < 2) return null;
+  const lx = p.levelsX, ly = p.levelsY;
+  if (lx.L < 2 || ly.L < 2) return null;
+  const A = rowSums(lx, n, p.integer);
+  const B = rowSums(ly, n, p.integer);
+  return { ux: A.u, uy: B.u, ra: A.row, rb: B.row, dx: centredRanks(lx, n), dy: centredRanks(ly, n) };
+}
+
+/**
+ * S1 = Σ_ij |x_i − x_j||y_i − y_j| and S2 = Σ_i a_i· b_i· by the sweep of sweep.ts (Huo & Székely 2016),
+ * which also yields Kendall's C − D and ρ's rank products (cached on the prepared pairs for kendall.ts and
+ * spearman.ts). A sweep already done (e.g. split over threads by the caller) is reused.
+ */
+function crossTerms(p: PreparedPairs): PairSweep {
+  if (!p.sweep) p.useSweep(pairSweep(p, sweepLevels(p)!));
+  return p.sweep!;
 }
 
 /** upper tail P(T_df > t), computed as the lower tail at −t (no cancellation in 1 − F) */
@@ -188,7 +139,7 @@ export function distanceCorrelation(pairs: Pairs | PreparedPairs): DcorResult {
   if (lx.L < 2 || ly.L < 2) return none;
   const A = rowSums(lx, n, p.integer);
   const B = rowSums(ly, n, p.integer);
-  const [S1, S2] = crossTerm(p, A.u, B.u, A.row, B.row);
+  const { s1: S1, s2: S2 } = crossTerms(p);
   // V-statistics scaled by n²
   const vxy = S1 - (2 / n) * S2 + (A.total * B.total) / (n * n);
   const vxx = A.sq - (2 / n) * A.rowSq + (A.total * A.total) / (n * n);

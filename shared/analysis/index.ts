@@ -11,6 +11,7 @@ import { distanceCorrelation } from './dcor';
 import { manders } from './manders';
 import { overlapCoefficients } from './overlap';
 import { icq } from './icq';
+import { pixelPass } from './pixel-pass';
 import { otsuThreshold } from './otsu';
 import { costesThresholds } from './costes';
 import { randomizationTest } from './randomization';
@@ -37,6 +38,9 @@ export { quadraticChiDistance, triangleSimilarity } from './quadratic-chi';
 export { rasterize, fillPolygon, fillEllipse, maskToIndices, type Shape, type Point } from './rasterize';
 export { labelRegions, type LabelRegion } from './labels';
 export { extrudeIndices } from './volume';
+export { pixelPass, type PixelPassResult } from './pixel-pass';
+export { planSweep, slabPartial, mergeSweep, pairSweep, slabCuts, SLAB_LEVELS, SLAB_MIN_PAIRS, type SweepPlan, type SweepInput, type SlabPartial, type PairSweep, type SweepLevels, type SlabOptions } from './sweep';
+export { sweepLevels } from './dcor';
 export { NeumaierSum, neumaierSum, FenwickCount, Fenwick4 } from './numeric';
 export { Xoshiro128 } from './prng';
 
@@ -44,7 +48,7 @@ export { Xoshiro128 } from './prng';
  * Version of the numbers this engine produces; stored with every measurement. Bump it whenever a
  * coefficient, threshold or default changes its value for some input.
  */
-export const ENGINE_VERSION = 'syntopy-analysis/1.0.2';
+export const ENGINE_VERSION = 'syntopy-analysis/1.0.3';
 
 /** A region as accepted by measureRegion: a mask (Uint8Array, full size), pixel indices, a spec, or null. */
 export type RegionInput = Uint8Array | Uint32Array | Int32Array | number[] | RegionSpec;
@@ -85,10 +89,12 @@ export function computeThresholds(p: Pairs, t: ThresholdOptions = { method: 'non
 export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: ThresholdInfo, options: Pick<MeasureOptions, 'skipSlow' | 'mic'> = {}): RegionResult {
   const p = prepare(pairs);
   const n = p.n;
-  const m = centeredMoments(p.x, p.y, n, p.integer);
   const d = options.skipSlow ? null : distanceCorrelation(p);
-  const md = manders(p, thresholds.ch1, thresholds.ch2);
-  const ov = overlapCoefficients(p);
+  // integer data: one pass for r, overlap, Manders and ICQ (pixel-pass.ts); float data: one pass each
+  const fused = pixelPass(p, thresholds.ch1, thresholds.ch2);
+  const m = fused?.moments ?? centeredMoments(p.x, p.y, n, p.integer);
+  const md = fused?.manders ?? manders(p, thresholds.ch1, thresholds.ch2);
+  const ov = fused?.overlap ?? overlapCoefficients(p);
   const mi = options.mic ? mic(p, options.mic) : null;
   return {
     pixels: n,
@@ -105,7 +111,7 @@ export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: Threshold
     overlap: ov.overlap,
     k1: ov.k1,
     k2: ov.k2,
-    icq: icq(p),
+    icq: fused ? fused.icq : icq(p),
     micE: mi?.micE ?? null,
     ticE: mi?.ticE ?? null,
     thresholds,
@@ -125,7 +131,7 @@ export function measurePairs(pairs: Pairs | PreparedPairs, thresholds: Threshold
  */
 export function measureRegion(ch1: ChannelArray, ch2: ChannelArray, region: RegionInput, options: MeasureOptions = {}): RegionResult {
   const spec = toRegionSpec(region);
-  const pairs = prepare(collectPairs(ch1, ch2, spec));
+  const pairs = options.pairs ?? prepare(collectPairs(ch1, ch2, spec));
   const t = options.threshold ?? { method: 'none' as const };
   const thresholds = isInfo(t) ? t : computeThresholds(pairs, t);
   const result = measurePairs(pairs, thresholds, options);

@@ -39,6 +39,10 @@ export function manders(p: Pairs, t1: number | null, t2: number | null): Manders
     }
     num1.add(n1); den1.add(d1); num2.add(n2); den2.add(d2);
   }
-  const d1 = den1.value(), d2 = den2.value();
-  return { m1: d1 !== 0 ? num1.value() / d1 : null, m2: d2 !== 0 ? num2.value() / d2 : null };
+  return mandersFromSums(num1.value(), den1.value(), num2.value(), den2.value());
+}
+
+/** M1, M2 from their sums (also used by the fused pass of pixel-pass.ts). */
+export function mandersFromSums(num1: number, d1: number, num2: number, d2: number): MandersResult {
+  return { m1: d1 !== 0 ? num1 / d1 : null, m2: d2 !== 0 ? num2 / d2 : null };
 }

@@ -44,7 +44,11 @@ export function overlapCoefficients(p: Pairs): OverlapResult {
       add(0, a * a); add(2, b * b); add(4, a * b);
     }
   }
-  const sxx = acc[0] + acc[1], syy = acc[2] + acc[3], sxy = acc[4] + acc[5];
+  return overlapFromSums(acc[0] + acc[1], acc[2] + acc[3], acc[4] + acc[5]);
+}
+
+/** The coefficients from Σx², Σy², Σxy (also used by the fused pass of pixel-pass.ts). */
+export function overlapFromSums(sxx: number, syy: number, sxy: number): OverlapResult {
   return {
     overlap: sxx > 0 && syy > 0 ? sxy / Math.sqrt(sxx * syy) : null,
     k1: sxx > 0 ? sxy / sxx : null,

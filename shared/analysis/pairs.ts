@@ -8,6 +8,7 @@
  * (decided here: a NaN pixel carries no intensity). ±Infinity is rejected with a RangeError.
  */
 import type { ChannelArray, RegionSpec } from './types';
+import type { PairSweep } from './sweep';
 
 export type PairArray = Uint16Array | Float64Array;
 export type RankArray = Uint16Array | Uint32Array;
@@ -30,6 +31,8 @@ export interface LevelIndex {
   values: Float64Array;
   /** how many items take each value */
   counts: Int32Array;
+  /** integer data counted by value: the level of each value 0..max (absent when the levels came by sorting) */
+  valueLevel?: Uint16Array;
 }
 
 /** Items ordered by level with a counting sort: items of level k are order[start[k] .. start[k+1]). */
@@ -132,32 +135,57 @@ export function collectPairs(ch1: ChannelArray, ch2: ChannelArray, region: Regio
   return pairsFromArrays(xs, ys);
 }
 
-/** Levels of one variable: counting for Uint16 storage, sorting otherwise. */
-export function levelIndex(v: PairArray, n = v.length): LevelIndex {
+/** The value range up to which integer data gets its levels by counting rather than sorting. */
+function countingMax(v: Uint16Array, n: number): number {
   let max = 65535;
   // counting pays off unless the value range is much wider than the number of items
-  if (v instanceof Uint16Array && n < 4096) {
+  if (n < 4096) {
     max = 0;
     for (let i = 0; i < n; i++) if (v[i] > max) max = v[i];
   }
-  if (v instanceof Uint16Array && max < 16 * n + 256) {
+  return max < 16 * n + 256 ? max : -1;
+}
+
+/**
+ * Levels from a value histogram `cnt` (index = value, 0..max) of integer data: the values present, their
+ * counts, and the map value → level (`valueLevel`); each item's level (`rank`) is computed on first use.
+ */
+function levelsFromCounts(v: Uint16Array, n: number, cnt: Int32Array, max: number): LevelIndex {
+  while (max > 0 && cnt[max] === 0) max--;
+  const map = new Uint16Array(max + 1);
+  let L = 0;
+  for (let k = 0; k <= max; k++) if (cnt[k] > 0) map[k] = L++;
+  const values = new Float64Array(L);
+  const counts = new Int32Array(L);
+  for (let k = 0; k <= max; k++) {
+    if (cnt[k] > 0) {
+      values[map[k]] = k;
+      counts[map[k]] = cnt[k];
+    }
+  }
+  let rank: Uint16Array | undefined;
+  return {
+    L,
+    values,
+    counts,
+    valueLevel: map,
+    get rank() {
+      if (!rank) {
+        rank = new Uint16Array(n);
+        for (let i = 0; i < n; i++) rank[i] = map[v[i]];
+      }
+      return rank;
+    },
+  };
+}
+
+/** Levels of one variable: counting for Uint16 storage, sorting otherwise. */
+export function levelIndex(v: PairArray, n = v.length): LevelIndex {
+  const max = v instanceof Uint16Array ? countingMax(v, n) : -1;
+  if (v instanceof Uint16Array && max >= 0) {
     const cnt = new Int32Array(max + 1);
     for (let i = 0; i < n; i++) cnt[v[i]]++;
-    while (max > 0 && cnt[max] === 0) max--;
-    const map = new Uint16Array(max + 1);
-    let L = 0;
-    for (let k = 0; k <= max; k++) if (cnt[k] > 0) map[k] = L++;
-    const values = new Float64Array(L);
-    const counts = new Int32Array(L);
-    for (let k = 0; k <= max; k++) {
-      if (cnt[k] > 0) {
-        values[map[k]] = k;
-        counts[map[k]] = cnt[k];
-      }
-    }
-    const rank = new Uint16Array(n);
-    for (let i = 0; i < n; i++) rank[i] = map[v[i]];
-    return { L, rank, values, counts };
+    return levelsFromCounts(v, n, cnt, max);
   }
   const sorted = Float64Array.from(v.subarray(0, n)).sort();
   let L = 0;
@@ -180,6 +208,22 @@ export function levelIndex(v: PairArray, n = v.length): LevelIndex {
   return { L, rank, values, counts };
 }
 
+/** Levels of both variables; integer data counts both in one pass over the pairs. */
+export function levelIndexPair(x: PairArray, y: PairArray, n: number): [LevelIndex, LevelIndex] {
+  if (x instanceof Uint16Array && y instanceof Uint16Array) {
+    const mx = countingMax(x, n), my = countingMax(y, n);
+    if (mx >= 0 && my >= 0) {
+      const cx = new Int32Array(mx + 1), cy = new Int32Array(my + 1);
+      for (let i = 0; i < n; i++) {
+        cx[x[i]]++;
+        cy[y[i]]++;
+      }
+      return [levelsFromCounts(x, n, cx, mx), levelsFromCounts(y, n, cy, my)];
+    }
+  }
+  return [levelIndex(x, n), levelIndex(y, n)];
+}
+
 /** Counting sort of items by level: O(n + L). Stable. */
 export function levelOrder(li: LevelIndex): LevelOrder {
   const { L, rank, counts } = li;
@@ -198,23 +242,105 @@ export function levelOrder(li: LevelIndex): LevelOrder {
  * each distinct pair once with its multiplicity) and the queries of one x group climb the Fenwick tree in
  * ascending order (the nodes they share stay in cache).
  */
-export function sortByX(lx: LevelIndex, ly: LevelIndex): XSorted {
-  const { L, rank: rx, counts } = lx;
-  const { L: Ly, rank: ry, counts: cy } = ly;
-  const n = rx.length;
+export function sortByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairArray): XSorted {
+  const { L, counts } = lx;
+  const { L: Ly, counts: cy } = ly;
+  let n = 0;
+  for (let k = 0; k < L; k++) n += counts[k];
+  const xl = lx.valueLevel, yl = ly.valueLevel;
   // pass 1: the x levels in y order
   const yStart = new Int32Array(Ly + 1);
   for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
-  const yPos = yStart.slice(0, Ly);
-  const xByY: RankArray = rx instanceof Uint16Array ? new Uint16Array(n) : new Uint32Array(n);
-  for (let i = 0; i < n; i++) xByY[yPos[ry[i]]++] = rx[i];
+  const wideX = L > 65536;
+  const xByY: RankArray = wideX ? new Uint32Array(n) : new Uint16Array(n);
+  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array) {
+    // integer data counted by value: positions per y value, x levels by lookup (no per-item level arrays)
+    const yPos = new Int32Array(yl.length);
+    for (let v = 0; v < yl.length; v++) yPos[v] = yStart[yl[v]];
+    for (let i = 0; i < n; i++) xByY[yPos[y[i]]++] = xl[x[i]];
+  } else {
+    const rx = lx.rank, ry = ly.rank;
+    const yPos = yStart.slice(0, Ly);
+    for (let i = 0; i < n; i++) xByY[yPos[ry[i]]++] = rx[i];
+  }
   // pass 2: stable by x, writing the y level of each position
   const start = new Int32Array(L + 1);
   for (let k = 0; k < L; k++) start[k + 1] = start[k] + counts[k];
   const pos = start.slice(0, L);
-  const yRank: RankArray = ry instanceof Uint16Array ? new Uint16Array(n) : new Uint32Array(n);
+  const yRank: RankArray = Ly > 65536 ? new Uint32Array(n) : new Uint16Array(n);
   for (let k = 0; k < Ly; k++) for (let q = yStart[k], e = yStart[k + 1]; q < e; q++) yRank[pos[xByY[q]]++] = k;
   return { start, yRank };
+}
+
+/**
+ * The distinct (x, y) pairs in (x, y) order with their multiplicities: the pairs of x level g are positions
+ * start[g] .. start[g+1] of `yRank` (ascending) and `mult`. What the pair sweep (sweep.ts) reads: one entry
+ * per distinct pair instead of one per item.
+ */
+export interface DistinctPairs {
+  start: Int32Array;
+  yRank: RankArray;
+  mult: Int32Array;
+}
+
+/**
+ * Distinct pairs in (x, y) order, O(n + Lx + Ly): the x levels grouped by y (one counting pass), each y
+ * group's distinct x levels counted in place, then only the distinct pairs placed in x order (y ascending
+ * within each x level because the y groups are visited in ascending order).
+ */
+export function distinctByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairArray): DistinctPairs {
+  const { L } = lx;
+  const { L: Ly, counts: cy } = ly;
+  let n = 0;
+  for (let k = 0; k < L; k++) n += lx.counts[k];
+  const xl = lx.valueLevel, yl = ly.valueLevel;
+  const yStart = new Int32Array(Ly + 1);
+  for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
+  const xByY: RankArray = L > 65536 ? new Uint32Array(n) : new Uint16Array(n);
+  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array) {
+    const yPos = new Int32Array(yl.length);
+    for (let v = 0; v < yl.length; v++) yPos[v] = yStart[yl[v]];
+    for (let i = 0; i < n; i++) xByY[yPos[y[i]]++] = xl[x[i]];
+  } else {
+    const rx = lx.rank, ry = ly.rank;
+    const yPos = yStart.slice(0, Ly);
+    for (let i = 0; i < n; i++) xByY[yPos[ry[i]]++] = rx[i];
+  }
+  // each y group's distinct x levels, compacted to the front of the array with their counts
+  const seen = new Int32Array(L);
+  const cnt = new Int32Array(n);
+  const perX = new Int32Array(L + 1); // distinct pairs per x level
+  const dStart = new Int32Array(Ly + 1);
+  let w = 0;
+  for (let k = 0; k < Ly; k++) {
+    const g0 = w;
+    for (let q = yStart[k], e = yStart[k + 1]; q < e; q++) {
+      const v = xByY[q];
+      const c = seen[v];
+      xByY[w] = v;
+      w += c === 0 ? 1 : 0;
+      seen[v] = c + 1;
+    }
+    for (let j = g0; j < w; j++) {
+      const v = xByY[j];
+      cnt[j] = seen[v];
+      seen[v] = 0;
+      perX[v + 1]++;
+    }
+    dStart[k + 1] = w;
+  }
+  const start = new Int32Array(L + 1);
+  for (let g = 0; g < L; g++) start[g + 1] = start[g] + perX[g + 1];
+  const pos = start.slice(0, L);
+  const yRank: RankArray = Ly > 65536 ? new Uint32Array(w) : new Uint16Array(w);
+  const mult = new Int32Array(w);
+  for (let k = 0; k < Ly; k++)
+    for (let j = dStart[k], e = dStart[k + 1]; j < e; j++) {
+      const q = pos[xByY[j]]++;
+      yRank[q] = k;
+      mult[q] = cnt[j];
+    }
+  return { start, yRank, mult };
 }
 
 /**
@@ -230,25 +356,38 @@ export class PreparedPairs implements Pairs {
   private _ly?: LevelIndex;
   private _ox?: LevelOrder;
   private _sx?: XSorted;
-  /** C − D of Kendall's τ, filled by whichever sweep computes it first (kendall.ts or dcor.ts) */
+  private _dx?: DistinctPairs;
+  /** C − D of Kendall's τ, filled by whichever sweep computes it first (kendall.ts or the pair sweep) */
   kendallS?: number;
+  /** the pair sweep (sweep.ts), once done: dCor's cross terms, C − D, ρ's rank products */
+  sweep?: PairSweep;
   constructor(p: Pairs) {
     this.n = p.n;
     this.x = p.x;
     this.y = p.y;
     this.integer = p.integer;
   }
+  /** keep a finished pair sweep (computed here or by the caller, e.g. over threads) */
+  useSweep(s: PairSweep): void {
+    this.sweep = s;
+    this.kendallS = s.kendallS;
+  }
   get levelsX(): LevelIndex {
-    return (this._lx ??= levelIndex(this.x, this.n));
+    if (!this._lx) [this._lx, this._ly] = levelIndexPair(this.x, this.y, this.n);
+    return this._lx;
   }
   get levelsY(): LevelIndex {
-    return (this._ly ??= levelIndex(this.y, this.n));
+    if (!this._ly) [this._lx, this._ly] = levelIndexPair(this.x, this.y, this.n);
+    return this._ly!;
   }
   get orderX(): LevelOrder {
     return (this._ox ??= levelOrder(this.levelsX));
   }
+  get distinctByX(): DistinctPairs {
+    return (this._dx ??= distinctByX(this.levelsX, this.levelsY, this.x, this.y));
+  }
   get sortedByX(): XSorted {
-    return (this._sx ??= sortByX(this.levelsX, this.levelsY));
+    return (this._sx ??= sortByX(this.levelsX, this.levelsY, this.x, this.y));
   }
 }
 

@@ -25,7 +25,8 @@ export interface CenteredMoments {
   constY: boolean;
 }
 
-const BLOCK = 1 << 20;
+/** integer data: items per exactly summed block (|dx·dy| ≤ 2^32, so a block's sums stay below 2^53) */
+export const BLOCK = 1 << 20;
 
 /** Exact-as-possible centred second moments of the first n pairs. */
 export function centeredMoments(x: PairArray, y: PairArray, n: number, integer: boolean): CenteredMoments {
@@ -93,6 +94,14 @@ export function centeredMoments(x: PairArray, y: PairArray, n: number, integer: 
     acc[0] = s0; acc[1] = c0; acc[2] = s1; acc[3] = c1; acc[4] = s2; acc[5] = c2;
     acc[6] = s3; acc[7] = c3; acc[8] = s4; acc[9] = c4;
   }
+  return momentsFromSums(n, mx, my, acc, constX, constY);
+}
+
+/**
+ * Centred moments from the compensated sums `acc` = [s, c] pairs of Σdx, Σdy, Σdx², Σdy², Σdxdy about the
+ * shift (mx, my) (also used by the fused pass of pixel-pass.ts).
+ */
+export function momentsFromSums(n: number, mx: number, my: number, acc: Float64Array, constX: boolean, constY: boolean): CenteredMoments {
   const dx = acc[0] + acc[1], dy = acc[2] + acc[3];
   const sxx = constX ? 0 : Math.max(0, acc[4] + acc[5] - (dx * dx) / n);
   const syy = constY ? 0 : Math.max(0, acc[6] + acc[7] - (dy * dy) / n);

@@ -11,7 +11,7 @@ import type { LevelIndex } from './pairs';
 import { prepare, type Pairs, type PreparedPairs } from './pairs';
 
 /** doubled, centred average rank of each level: 2·(avgRank − (n+1)/2) */
-function centredRanks(li: LevelIndex, n: number): Float64Array {
+export function centredRanks(li: LevelIndex, n: number): Float64Array {
   const d = new Float64Array(li.L);
   let start = 0;
   for (let k = 0; k < li.L; k++) {
@@ -41,14 +41,20 @@ export function spearman(pairs: Pairs | PreparedPairs): number | null {
     if (syy >= v) cyy += syy - t + v; else cyy += v - t + syy;
     syy = t;
   }
-  const rx = lx.rank, ry = ly.rank;
-  let s = 0, c = 0;
-  for (let i = 0; i < n; i++) {
-    const v = dx[rx[i]] * dy[ry[i]];
-    const t = s + v;
-    if (Math.abs(s) >= Math.abs(v)) c += s - t + v; else c += v - t + s;
-    s = t;
+  // Σ dx·dy: from the pair sweep when it ran (sweep.ts, per x group), else one pass over the items
+  let sum: number;
+  if (p.sweep) sum = p.sweep.spearman;
+  else {
+    const rx = lx.rank, ry = ly.rank;
+    let s = 0, c = 0;
+    for (let i = 0; i < n; i++) {
+      const v = dx[rx[i]] * dy[ry[i]];
+      const t = s + v;
+      if (Math.abs(s) >= Math.abs(v)) c += s - t + v; else c += v - t + s;
+      s = t;
+    }
+    sum = s + c;
   }
-  const r = (s + c) / Math.sqrt((sxx + cxx) * (syy + cyy));
+  const r = sum / Math.sqrt((sxx + cxx) * (syy + cyy));
   return r > 1 ? 1 : r < -1 ? -1 : r;
 }

@@ -4,6 +4,8 @@
  */
 
 /** One channel of an image, row-major, width × height samples. */
+import type { PreparedPairs } from './pairs';
+
 export type ChannelArray =
   | Uint8Array
   | Uint8ClampedArray
@@ -87,6 +89,11 @@ export interface MeasureOptions {
   skipSlow?: boolean;
   /** compute MICe and TICe with these parameters (omitted = not computed, both null) */
   mic?: { alpha?: number; c?: number };
+  /**
+   * measureRegion: the region's pairs already collected (`prepare(collectPairs(ch1, ch2, region))`), e.g.
+   * with the pair sweep done over threads by the caller; used instead of collecting them again
+   */
+  pairs?: PreparedPairs;
 }
 
 export interface RandomizationResult {

@@ -7,6 +7,10 @@
  *  (c) SciPy (Debian python3-scipy, /usr/bin/python3) pearsonr + spearmanr + kendalltau, when present
  *      (CPU time of the Python process, time.process_time, so compared with our CPU time);
  *  (d) a single memory-bound pass over the pair (Σxy), the limit any exact method must read;
+ *  (e) R energy's dCor (Debian r-cran-energy, data as doubles): dcor2d (its O(n log n) form) at every size
+ *      where it finishes within two minutes, dcor (O(n²) matrices) at the naive sizes;
+ *  the whole set also with the pair sweep split over two threads (server/analysis/sweep-threads.ts) for
+ *  regions of at least THREAD_MIN_PAIRS pairs, bit-identical values;
  *  and the whole `analyze` command (start-up, TIFF decoding, all coefficients) on the 2048² pair as a
  *  two-page TIFF, against SciPy's three coefficients alone.
  * Times are the best of several repeats, wall clock and CPU time of this process (CPU time is robust when
@@ -36,6 +40,9 @@ import {
   ENGINE_VERSION,
 } from '../../shared/analysis/index';
 import { naiveDcor, naiveKendallTauB, naiveSpearman } from '../analysis/naive';
+import { measurePairsThreaded, SweepThreads, THREAD_MIN_PAIRS } from '../../server/analysis/sweep-threads';
+import { time, timeAsync } from './timing';
+import { energyAbsent, energyDcor } from './references';
 
 const root = fileURLToPath(new URL('../../', import.meta.url));
 const args = process.argv.slice(2).map(Number).filter((n) => n > 0);
@@ -68,19 +75,6 @@ interface Timing {
   wall: number;
   cpu: number;
 }
-function time(fn: () => unknown, repeats: number): Timing {
-  let wall = Infinity, cpu = Infinity;
-  for (let r = 0; r < repeats; r++) {
-    const c0 = process.cpuUsage();
-    const t0 = performance.now();
-    fn();
-    const t1 = performance.now();
-    const c1 = process.cpuUsage(c0);
-    wall = Math.min(wall, t1 - t0);
-    cpu = Math.min(cpu, (c1.user + c1.system) / 1000);
-  }
-  return { wall, cpu };
-}
 const ms = (t: number) => (t >= 100 ? t.toFixed(0) : t >= 10 ? t.toFixed(1) : t.toFixed(2)).padStart(8);
 const ratio = (base: number, ours: number) => `${(base / ours).toFixed(1)}×`.padStart(9);
 
@@ -110,8 +104,9 @@ print(json.dumps(out))
   return JSON.parse(r.stdout);
 }
 
-function main() {
-  console.log(`analysis engine ${ENGINE_VERSION} · node ${process.version} · load average ${loadavg()[0].toFixed(1)} · one core (single thread)`);
+async function main() {
+  console.log(`analysis engine ${ENGINE_VERSION} · node ${process.version} · load average ${loadavg()[0].toFixed(1)} · one core (single thread) unless said`);
+  const threads = new SweepThreads(1);
   const dir = mkdtempSync(join(tmpdir(), 'syntopy-bench-'));
   const summary: string[] = [];
   try {
@@ -157,7 +152,23 @@ function main() {
       console.log(`  ${'single memory-bound pass (Σxy)'.padEnd(38)}${ms(pass.wall)} /${ms(pass.cpu)}  → whole set = ${(whole.cpu / pass.cpu).toFixed(1)}× one pass (CPU)`);
       if (!Number.isFinite(sink)) throw new Error('single-pass sum overflowed');
       console.log(`  ${'WHOLE SET + Costes thresholds'.padEnd(38)}${ms(wholeCostes.wall)} /${ms(wholeCostes.cpu)}`);
-      summary.push(`${size}²: whole set ${whole.wall.toFixed(0)} ms wall / ${whole.cpu.toFixed(0)} ms CPU (${(whole.cpu / pass.cpu).toFixed(1)}× one memory-bound pass, ${pass.cpu.toFixed(1)} ms); with Costes ${wholeCostes.wall.toFixed(0)} / ${wholeCostes.cpu.toFixed(0)}`);
+      let two = '';
+      if (n >= THREAD_MIN_PAIRS) {
+        const none = { method: 'none' as const, ch1: 0, ch2: 0 };
+        const w2 = await timeAsync(() => measurePairsThreaded(threads, collectPairs(a, b, null), none), reps);
+        console.log(`  ${'WHOLE SET, sweep over 2 threads'.padEnd(38)}${ms(w2.wall)} /${ms(w2.cpu)}  → ${(whole.wall / w2.wall).toFixed(2)}× faster (wall) than one thread; ${(w2.cpu / pass.cpu).toFixed(1)}× one pass (CPU, both threads)`);
+        two = `; 2 threads ${w2.wall.toFixed(0)} ms wall / ${w2.cpu.toFixed(0)} ms CPU (${(whole.wall / w2.wall).toFixed(2)}× wall)`;
+      }
+      summary.push(`${size}²: whole set ${whole.wall.toFixed(0)} ms wall / ${whole.cpu.toFixed(0)} ms CPU (${(whole.cpu / pass.cpu).toFixed(1)}× one memory-bound pass, ${pass.cpu.toFixed(1)} ms)${two}; with Costes ${wholeCostes.wall.toFixed(0)} / ${wholeCostes.cpu.toFixed(0)}`);
+
+      // (e) R energy's O(n log n) dCor on the same pairs (doubles)
+      const ourDcor = time(() => distanceCorrelation(prepare(collectPairs(a, b, null))), reps).cpu;
+      const e = energyDcor(a, b, dir, 'dcor2d', size >= 2048 ? 1 : 2);
+      if (e) {
+        const dv = Math.abs(e.value - distanceCorrelation(prepare(collectPairs(a, b, null))).dcor!);
+        console.log(`  R energy dcor2d (O(n log n)) ${e.cpu.toFixed(0)} ms CPU; our dCor + bias-corrected + t-test from the channels ${ourDcor.toFixed(0)} ms (${(e.cpu / ourDcor).toFixed(1)}×), our whole set ${(e.cpu / whole.cpu).toFixed(1)}×; |Δ dCor| = ${dv.toExponential(1)}`);
+        summary.push(`${size}²: R energy dcor2d ${e.cpu.toFixed(0)} ms CPU vs our dCor ${ourDcor.toFixed(0)} ms (${(e.cpu / ourDcor).toFixed(1)}×), our whole set ${(e.cpu / whole.cpu).toFixed(1)}×`);
+      } else console.log(`  R energy dcor2d: ${energyAbsent() ?? 'did not finish within two minutes'}`);
 
       // (b) npm packages on the same data
       const xa = Float64Array.from(a), ya = Float64Array.from(b);
@@ -229,19 +240,23 @@ tifffile.imwrite(sys.argv[3], np.stack([a,b]), photometric='minisblack')`, join(
       const fk = time(() => kendallTauB(prepare(collectPairs(a, b, null))), 5).cpu;
       const nd = size <= 32 ? time(() => naiveDcor(xs, ys), 1).cpu : NaN;
       const fd = time(() => distanceCorrelation(prepare(collectPairs(a, b, null))), 5).cpu;
+      // R energy's dcor with its O(n²) distance matrices (8·n² bytes each): up to 64² pairs here
+      const ed = size <= 64 ? energyDcor(a, b, dir, 'dcor', 2) : null;
       const ns = size <= 64 ? time(() => naiveSpearman(xs, ys), 1).cpu : NaN;
       const fs = time(() => spearman(prepare(collectPairs(a, b, null))), 5).cpu;
       console.log(
         `  n = ${String(n).padStart(6)}: τ-b naive ${ms(nk)} fast ${ms(fk)} (${ratio(nk, fk)})` +
           (Number.isNaN(nd) ? '' : ` · dCor naive ${ms(nd)} fast ${ms(fd)} (${ratio(nd, fd)})`) +
-          (Number.isNaN(ns) ? '' : ` · ρ naive ${ms(ns)} fast ${ms(fs)} (${ratio(ns, fs)})`),
+          (Number.isNaN(ns) ? '' : ` · ρ naive ${ms(ns)} fast ${ms(fs)} (${ratio(ns, fs)})`) +
+          (ed ? ` · R energy dcor ${ms(ed.cpu)} (${ratio(ed.cpu, fd)} our dCor)` : ''),
       );
     }
     console.log('\nsummary');
     for (const s of summary) console.log(`  ${s}`);
   } finally {
     rmSync(dir, { recursive: true, force: true });
+    await threads.close();
   }
 }
 
-main();
+await main();
