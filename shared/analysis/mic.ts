@@ -79,11 +79,48 @@ export function equipartition(sizes: ArrayLike<number>, groups: number, n: numbe
   return curr + 1;
 }
 
+/**
+ * The same partition as `equipartition` for the groups of sizes P[g + 1] − P[g] (P: prefix sums, P[0] = 0,
+ * P[groups] = n), written as row boundaries: row r holds groups bounds[r] .. bounds[r + 1]. Returns the number
+ * of rows. While h + s ≤ rowsize the test of `equipartition` cannot open a row (|h + s − rowsize| <
+ * |h − rowsize| in floating point too, the two differing by s ≥ 1), so each row's end is found by bisection
+ * on P and only the groups from there on are tested, exactly as `equipartition` does: O(rows · log groups).
+ */
+function equipartitionPrefix(P: Int32Array, groups: number, n: number, rows: number, bounds: Int32Array): number {
+  let rowsize = n / rows;
+  let curr = 0;
+  let g = 0;
+  bounds[0] = 0;
+  while (g < groups) {
+    const base = P[g];
+    // the first group after the row's first that takes the row past rowsize
+    let lo = g + 1;
+    let hi = groups;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (P[mid + 1] - base > rowsize) hi = mid;
+      else lo = mid + 1;
+    }
+    g = lo;
+    for (; g < groups; g++) {
+      const h = P[g] - base;
+      if (Math.abs(h + (P[g + 1] - P[g]) - rowsize) >= Math.abs(h - rowsize)) break;
+    }
+    if (g < groups) {
+      curr++;
+      bounds[curr] = g;
+      rowsize = (n - P[g]) / (rows - curr);
+    }
+  }
+  bounds[curr + 1] = groups;
+  return curr + 1;
+}
+
 /** Level structure of one axis: counts per distinct value (ascending) and, in that order, the other axis' levels. */
 interface Axis {
   L: number;
   counts: Int32Array;
-  /** items of level k are at start[k] .. start[k+1] of `other` */
+  /** items of level k are at start[k] .. start[k+1] of `other` (so start holds the prefix sums of counts) */
   start: Int32Array;
   other: RankArray;
 }
@@ -94,28 +131,36 @@ class Work {
   readonly f: Float64Array;
   readonly cnt: Int32Array;
   readonly touched: Int32Array;
+  /** the row of each level of the equipartitioned axis */
+  readonly rowOf: Int32Array;
+  /** row (or superclump) boundaries */
+  readonly bounds: Int32Array;
   /** per clump: its row, or −1 − level for a mixed tie group */
   readonly label: Int32Array;
-  readonly size: Int32Array;
-  readonly sup: Int32Array;
+  /** per clump: its first item (prefix sums of the clump sizes; one more entry, n) */
+  readonly cs: Int32Array;
   readonly off: Int32Array;
   /** clump entries: row, count, row, count, … */
   readonly rc: Int32Array;
   readonly c: Int32Array;
   readonly best: Float64Array;
+  /** the layers j still open in a sweep */
+  readonly act: Int32Array;
   private w = new Float64Array(0);
   constructor(n: number, L: number, maxRows: number) {
     this.f = new Float64Array(n + 1);
     for (let k = 2; k <= n; k++) this.f[k] = k * Math.log(k);
     this.cnt = new Int32Array(maxRows + 1);
     this.touched = new Int32Array(maxRows + 1);
+    this.rowOf = new Int32Array(L);
+    this.bounds = new Int32Array(L + 1);
     this.label = new Int32Array(L);
-    this.size = new Int32Array(L);
-    this.sup = new Int32Array(L);
+    this.cs = new Int32Array(L + 1);
     this.off = new Int32Array(L + 1);
     this.rc = new Int32Array(2 * n);
     this.c = new Int32Array(L + 1);
     this.best = new Float64Array(maxRows + 2);
+    this.act = new Int32Array(maxRows + 2);
   }
   /** the DP table, at least `size` long (grown when needed) */
   layers(size: number): Float64Array {
@@ -125,47 +170,56 @@ class Work {
 }
 
 /**
- * The (super)clumps of the free axis for a given row of each level of the equipartitioned axis: returns
- * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]).
+ * The (super)clumps of the free axis for the rows w.rowOf of the levels of the equipartitioned axis: returns
+ * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]) and w.c
+ * (c[g]: the items before clump g).
  */
-function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work): number {
-  const { L, start, other, counts: levelCounts } = free;
-  const { label, size, sup, cnt, touched, off, rc } = w;
+function clumps(free: Axis, n: number, cap: number, w: Work): number {
+  const { L, start, other } = free;
+  const { rowOf, label, cs, bounds, cnt, touched, off, rc, c } = w;
   // clumps in free-axis order: consecutive levels whose items all lie in one row merge (label = that row);
   // a level whose tied items lie in different rows is a clump of its own (label −1 − level)
   let p = 0;
   let prev = -1;
   for (let k = 0; k < L; k++) {
     const a = start[k];
-    const m = levelCounts[k];
+    const b = start[k + 1];
     let lab = rowOf[other[a]];
-    for (let i = a + 1; i < a + m; i++)
+    for (let i = a + 1; i < b; i++)
       if (rowOf[other[i]] !== lab) {
         lab = -1 - k;
         break;
       }
-    if (lab >= 0 && lab === prev) size[p - 1] += m;
-    else {
+    if (lab < 0 || lab !== prev) {
       label[p] = lab;
-      size[p] = m;
+      cs[p] = a;
       p++;
     }
     prev = lab;
   }
+  cs[p] = n;
   // superclumps: the clumps equipartitioned by size into at most about `cap` groups
   const grouped = p > cap;
-  const groups = grouped ? equipartition(size, p, n, cap, sup) : p;
+  const groups = grouped ? equipartitionPrefix(cs, p, n, cap, bounds) : p;
   // sparse (row, count) entries per group (the clumps of a group are consecutive)
   let e = 0;
-  let j = 0;
   for (let g = 0; g < groups; g++) {
     off[g] = e;
+    const j0 = grouped ? bounds[g] : g;
+    const j1 = grouped ? bounds[g + 1] : g + 1;
+    c[g] = cs[j0];
+    if (j1 === j0 + 1 && label[j0] >= 0) {
+      rc[2 * e] = label[j0];
+      rc[2 * e + 1] = cs[j1] - cs[j0];
+      e++;
+      continue;
+    }
     let nt = 0;
-    while (j < p && (grouped ? sup[j] : j) === g) {
+    for (let j = j0; j < j1; j++) {
       const lab = label[j];
       if (lab >= 0) {
         if (cnt[lab] === 0) touched[nt++] = lab;
-        cnt[lab] += size[j];
+        cnt[lab] += cs[j + 1] - cs[j];
       } else {
         const k = -1 - lab;
         for (let i = start[k]; i < start[k + 1]; i++) {
@@ -174,7 +228,6 @@ function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work):
           cnt[r]++;
         }
       }
-      j++;
     }
     for (let u = 0; u < nt; u++) {
       const r = touched[u];
@@ -185,6 +238,7 @@ function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work):
     }
   }
   off[groups] = e;
+  c[groups] = n;
   return groups;
 }
 
@@ -197,7 +251,7 @@ function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work):
  * (W is stored t-major: the layers of one t are adjacent).
  */
 function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, maxCols: number, w: Work, out: Float64Array) {
-  const { f, cnt, off, rc, c, best } = w;
+  const { f, cnt, off, rc, c, best, act } = w;
   let hq = f[n];
   for (let r = 0; r < q; r++) hq -= f[rowTotals[r]];
   if (p === 1) {
@@ -205,23 +259,22 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     return;
   }
   const J = maxCols;
+  // slack for rounding in the bound below: far above the accumulated rounding of sums of f (≤ f(n)·1e−12),
+  // so a candidate is skipped only when it could not have won, and the values stay bit for bit
+  const margin = 1e-9 * f[n];
   // W[t * J + (j − 1)], j = 1..J−1: best sum of T over at most j columns of the first t clumps (t < p)
   const W = w.layers((p + 1) * J);
-  // prefix sizes c[t] and W(t, 1) = T(0, t) (the first t clumps as one column), in one forward pass
-  c[0] = 0;
+  // W(t, 1) = T(0, t) (the first t clumps as one column), in one forward pass (c[t]: items of clumps 1..t)
   let S0 = 0;
   for (let t = 1; t <= p; t++) {
-    let m = c[t - 1];
     for (let e = 2 * off[t - 1], e1 = 2 * off[t]; e < e1; e += 2) {
       const r = rc[e];
       const k = rc[e + 1];
       const a0 = cnt[r];
       S0 += f[a0 + k] - f[a0];
       cnt[r] = a0 + k;
-      m += k;
     }
-    c[t] = m;
-    W[t * J] = S0 - f[m];
+    W[t * J] = S0 - f[c[t]];
   }
   cnt.fill(0, 0, q);
   // one clump: every layer equals one column
@@ -233,8 +286,13 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     // the sweep: s = t−1 … 1, column = clumps s+1..t grown one clump at a time
     let S = 0;
     const ct = c[t];
-    for (let j = 2; j <= top; j++) best[j] = -Infinity;
-    for (let s = t - 1; s >= 1; s--) {
+    let na = 0;
+    for (let j = 2; j <= top; j++) {
+      best[j] = -Infinity;
+      act[na++] = j;
+    }
+    let s = t - 1;
+    for (; s >= 1; s--) {
       let d = 0;
       for (let e = 2 * off[s], e1 = 2 * off[s + 1]; e < e1; e += 2) {
         const r = rc[e];
@@ -246,12 +304,21 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
       S += d;
       const T = S - f[ct - c[s]];
       const ws = s * J - 1;
-      for (let j = 2; j <= top; j++) {
+      let k = 0;
+      for (let u = 0; u < na; u++) {
+        const j = act[u];
         const v = W[ws + j - 1] + T;
-        if (v > best[j]) best[j] = v;
+        let b = best[j];
+        if (v > b) best[j] = b = v;
+        // every s' < s gives at most W(s, j) + T(s, t) (W ≤ 0 stands in for the unstored layer J)
+        if ((j < J ? W[ws + j] : 0) + T + margin >= b) act[k++] = j;
       }
+      na = k;
+      if (na === 0) break;
     }
-    for (let e = 2 * off[1], e1 = 2 * off[t]; e < e1; e += 2) cnt[rc[e]] = 0;
+    const lo = 2 * off[s > 1 ? s : 1], hi = 2 * off[t];
+    if (hi - lo > 2 * q) cnt.fill(0, 0, q);
+    else for (let e = lo; e < hi; e += 2) cnt[rc[e]] = 0;
     let prev = W[wt];
     for (let j = 2; j <= top; j++) {
       const v = best[j] > prev ? best[j] : prev;
@@ -263,14 +330,17 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
 }
 
 /**
- * The rows of an equipartition of `eq` into l rows (per level of `eq`), their totals, and the number of rows.
+ * The rows of an equipartition of `eq` into l rows: w.rowOf (per level of `eq`), their totals, and the number
+ * of rows.
  */
-function rowsOf(eq: Axis, n: number, l: number) {
-  const rowOf = new Int32Array(eq.L);
-  const q = equipartition(eq.counts, eq.L, n, l, rowOf);
-  const totals = new Int32Array(q);
-  for (let k = 0; k < eq.L; k++) totals[rowOf[k]] += eq.counts[k];
-  return { rowOf, q, totals };
+function rowsOf(eq: Axis, n: number, l: number, w: Work, totals: Int32Array): number {
+  const { rowOf, bounds } = w;
+  const q = equipartitionPrefix(eq.start, eq.L, n, l, bounds);
+  for (let r = 0; r < q; r++) {
+    rowOf.fill(r, bounds[r], bounds[r + 1]);
+    totals[r] = eq.start[bounds[r + 1]] - eq.start[bounds[r]];
+  }
+  return q;
 }
 
 /**
@@ -296,6 +366,7 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
   const M: Float64Array[] = [];
   for (let a = 0; a < nRows; a++) M.push(new Float64Array(Math.floor(B / (a + 2)) - 1));
   const scores = new Float64Array(nRows + 1);
+  const totals = new Int32Array(nRows + 2);
   for (const side of [0, 1] as const) {
     const eq = side === 0 ? Y : X;
     const free = side === 0 ? X : Y;
@@ -306,8 +377,8 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
       const maxCols = Math.min(side === 0 ? l - 1 : l, m + 1);
       if (maxCols < 2) continue;
       const cap = Math.max(Math.trunc(c * (m + 1)), 1);
-      const { rowOf, q, totals } = rowsOf(eq, n, l);
-      const pc = clumps(free, rowOf, n, cap, w);
+      const q = rowsOf(eq, n, l, w, totals);
+      const pc = clumps(free, n, cap, w);
       optimizeAxis(pc, totals, q, n, maxCols, w, scores);
       const lq = Math.log(q);
       for (let j = 2; j <= maxCols; j++) {
