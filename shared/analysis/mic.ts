@@ -179,22 +179,23 @@ function clumps(free: Axis, n: number, cap: number, w: Work): number {
   const { rowOf, label, cs, bounds, cnt, touched, off, rc, c } = w;
   // clumps in free-axis order: consecutive levels whose items all lie in one row merge (label = that row);
   // a level whose tied items lie in different rows is a clump of its own (label −1 − level)
+  // (branch-free: the slot p is written every time and kept, p + 1, only when a clump starts)
   let p = 0;
   let prev = -1;
+  let b = start[0];
   for (let k = 0; k < L; k++) {
-    const a = start[k];
-    const b = start[k + 1];
+    const a = b;
+    b = start[k + 1];
     let lab = rowOf[other[a]];
-    for (let i = a + 1; i < b; i++)
-      if (rowOf[other[i]] !== lab) {
-        lab = -1 - k;
-        break;
-      }
-    if (lab < 0 || lab !== prev) {
-      label[p] = lab;
-      cs[p] = a;
-      p++;
-    }
+    if (b - a > 1)
+      for (let i = a + 1; i < b; i++)
+        if (rowOf[other[i]] !== lab) {
+          lab = -1 - k;
+          break;
+        }
+    label[p] = lab;
+    cs[p] = a;
+    p += ((lab !== prev) as unknown as number) | ((lab < 0) as unknown as number);
     prev = lab;
   }
   cs[p] = n;
@@ -217,15 +218,20 @@ function clumps(free: Axis, n: number, cap: number, w: Work): number {
     let nt = 0;
     for (let j = j0; j < j1; j++) {
       const lab = label[j];
+      // (branch-free: the row is written to touched[nt] every time and kept when it is new)
       if (lab >= 0) {
-        if (cnt[lab] === 0) touched[nt++] = lab;
-        cnt[lab] += cs[j + 1] - cs[j];
+        const m = cnt[lab];
+        touched[nt] = lab;
+        nt += (m === 0) as unknown as number;
+        cnt[lab] = m + cs[j + 1] - cs[j];
       } else {
         const k = -1 - lab;
         for (let i = start[k]; i < start[k + 1]; i++) {
           const r = rowOf[other[i]];
-          if (cnt[r] === 0) touched[nt++] = r;
-          cnt[r]++;
+          const m = cnt[r];
+          touched[nt] = r;
+          nt += (m === 0) as unknown as number;
+          cnt[r] = m + 1;
         }
       }
     }
@@ -251,7 +257,7 @@ function clumps(free: Axis, n: number, cap: number, w: Work): number {
  * (W is stored t-major: the layers of one t are adjacent).
  */
 function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, maxCols: number, w: Work, out: Float64Array) {
-  const { f, cnt, off, rc, c, best, act } = w;
+  const { f, cnt, off, rc, c, best } = w;
   let hq = f[n];
   for (let r = 0; r < q; r++) hq -= f[rowTotals[r]];
   if (p === 1) {
@@ -286,39 +292,40 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     // the sweep: s = t−1 … 1, column = clumps s+1..t grown one clump at a time
     let S = 0;
     const ct = c[t];
-    let na = 0;
-    for (let j = 2; j <= top; j++) {
-      best[j] = -Infinity;
-      act[na++] = j;
-    }
+    for (let j = 2; j <= top; j++) best[j] = -Infinity;
+    // layers 2..open are still open (the higher layers' last columns are shorter, so they close first)
+    let open = top;
     let s = t - 1;
     for (; s >= 1; s--) {
-      let d = 0;
-      for (let e = 2 * off[s], e1 = 2 * off[s + 1]; e < e1; e += 2) {
-        const r = rc[e];
-        const a0 = cnt[r];
-        const b0 = a0 + rc[e + 1];
+      let e = 2 * off[s];
+      const e1 = 2 * off[s + 1];
+      let r = rc[e];
+      let a0 = cnt[r];
+      let b0 = a0 + rc[e + 1];
+      let d = f[b0] - f[a0];
+      cnt[r] = b0;
+      for (e += 2; e < e1; e += 2) {
+        r = rc[e];
+        a0 = cnt[r];
+        b0 = a0 + rc[e + 1];
         d += f[b0] - f[a0];
         cnt[r] = b0;
       }
       S += d;
       const T = S - f[ct - c[s]];
       const ws = s * J - 1;
-      let k = 0;
-      for (let u = 0; u < na; u++) {
-        const j = act[u];
+      for (let j = 2; j <= open; j++) {
         const v = W[ws + j - 1] + T;
-        let b = best[j];
-        if (v > b) best[j] = b = v;
-        // every s' < s gives at most W(s, j) + T(s, t) (W ≤ 0 stands in for the unstored layer J)
-        if ((j < J ? W[ws + j] : 0) + T + margin >= b) act[k++] = j;
+        if (v > best[j]) best[j] = v;
       }
-      na = k;
-      if (na === 0) break;
+      // every s' < s gives layer j at most W(s, j) + T(s, t) (W ≤ 0 stands in for the unstored layer J)
+      while (open >= 2 && (open < J ? W[ws + open] : 0) + T + margin < best[open]) open--;
+      if (open < 2) break;
     }
-    const lo = 2 * off[s > 1 ? s : 1], hi = 2 * off[t];
-    if (hi - lo > 2 * q) cnt.fill(0, 0, q);
-    else for (let e = lo; e < hi; e += 2) cnt[rc[e]] = 0;
+    // clear the counts of clumps s..t−1 (or all q rows when that is less)
+    const e0 = 2 * off[s > 1 ? s : 1], e1 = 2 * off[t];
+    if (e1 - e0 > 2 * q) cnt.fill(0, 0, q);
+    else for (let e = e0; e < e1; e += 2) cnt[rc[e]] = 0;
     let prev = W[wt];
     for (let j = 2; j <= top; j++) {
       const v = best[j] > prev ? best[j] : prev;
