@@ -133,7 +133,9 @@ class Work {
   readonly touched: Int32Array;
   /** the row of each level of the equipartitioned axis */
   readonly rowOf: Int32Array;
-  /** row (or superclump) boundaries */
+  /** the first level of each row of the equipartitioned axis (one more entry: L) */
+  readonly rowStart: Int32Array;
+  /** superclump boundaries */
   readonly bounds: Int32Array;
   /** per clump: its row, or −1 − level for a mixed tie group */
   readonly label: Int32Array;
@@ -153,6 +155,7 @@ class Work {
     this.cnt = new Int32Array(maxRows + 1);
     this.touched = new Int32Array(maxRows + 1);
     this.rowOf = new Int32Array(L);
+    this.rowStart = new Int32Array(L + 1);
     this.bounds = new Int32Array(L + 1);
     this.label = new Int32Array(L);
     this.cs = new Int32Array(L + 1);
@@ -170,39 +173,68 @@ class Work {
 }
 
 /**
+ * Adds the row counts of the items a .. b−1 of `other` (ascending levels, so ascending rows) to cnt, noting
+ * each row met for the first time in touched; returns the new number of touched rows. Runs of one row are
+ * skipped by bisection on the row's first level (rowStart), so a level with many tied items costs about one
+ * step per row it meets.
+ */
+function addRuns(other: RankArray, a: number, b: number, rowOf: Int32Array, rowStart: Int32Array, cnt: Int32Array, touched: Int32Array, nt: number): number {
+  let i = a;
+  while (i < b) {
+    const r = rowOf[other[i]];
+    const next = rowStart[r + 1];
+    let j = i + 1;
+    if (j < b && other[j] < next) {
+      // the run of row r ends at the first item at or above the next row's first level
+      let lo = j + 1;
+      let hi = b;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        if (other[mid] < next) lo = mid + 1;
+        else hi = mid;
+      }
+      j = lo;
+    }
+    const m = cnt[r];
+    touched[nt] = r;
+    nt += +(m === 0);
+    cnt[r] = m + j - i;
+    i = j;
+  }
+  return nt;
+}
+
+/**
  * The (super)clumps of the free axis for the rows w.rowOf of the levels of the equipartitioned axis: returns
  * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]) and w.c
  * (c[g]: the items before clump g).
  */
 function clumps(free: Axis, n: number, cap: number, w: Work): number {
   const { L, start, other } = free;
-  const { rowOf, label, cs, bounds, cnt, touched, off, rc, c } = w;
+  const { rowOf, rowStart, label, cs, bounds, cnt, touched, off, rc, c } = w;
   // clumps in free-axis order: consecutive levels whose items all lie in one row merge (label = that row);
-  // a level whose tied items lie in different rows is a clump of its own (label −1 − level)
-  // (branch-free: the slot p is written every time and kept, p + 1, only when a clump starts)
+  // a level whose tied items lie in different rows is a clump of its own (label −1 − level). The items of a
+  // level are in ascending order of the other axis, so its first and last item tell whether it lies in one
+  // row. (Branch-free: the slot p is written every time and kept, p + 1, only when a clump starts.)
   let p = 0;
   let prev = -1;
   let b = start[0];
   for (let k = 0; k < L; k++) {
     const a = b;
     b = start[k + 1];
-    let lab = rowOf[other[a]];
-    if (b - a > 1)
-      for (let i = a + 1; i < b; i++)
-        if (rowOf[other[i]] !== lab) {
-          lab = -1 - k;
-          break;
-        }
+    const r0 = rowOf[other[a]];
+    const lab = r0 === rowOf[other[b - 1]] ? r0 : -1 - k;
     label[p] = lab;
     cs[p] = a;
-    p += ((lab !== prev) as unknown as number) | ((lab < 0) as unknown as number);
+    p += +(lab !== prev) | +(lab < 0);
     prev = lab;
   }
   cs[p] = n;
   // superclumps: the clumps equipartitioned by size into at most about `cap` groups
   const grouped = p > cap;
   const groups = grouped ? equipartitionPrefix(cs, p, n, cap, bounds) : p;
-  // sparse (row, count) entries per group (the clumps of a group are consecutive)
+  // sparse (row, count) entries per group (the clumps of a group are consecutive), rows in order of first
+  // appearance
   let e = 0;
   for (let g = 0; g < groups; g++) {
     off[g] = e;
@@ -218,22 +250,13 @@ function clumps(free: Axis, n: number, cap: number, w: Work): number {
     let nt = 0;
     for (let j = j0; j < j1; j++) {
       const lab = label[j];
-      // (branch-free: the row is written to touched[nt] every time and kept when it is new)
       if (lab >= 0) {
+        // (branch-free: the row is written to touched[nt] every time and kept when it is new)
         const m = cnt[lab];
         touched[nt] = lab;
-        nt += (m === 0) as unknown as number;
+        nt += +(m === 0);
         cnt[lab] = m + cs[j + 1] - cs[j];
-      } else {
-        const k = -1 - lab;
-        for (let i = start[k]; i < start[k + 1]; i++) {
-          const r = rowOf[other[i]];
-          const m = cnt[r];
-          touched[nt] = r;
-          nt += (m === 0) as unknown as number;
-          cnt[r] = m + 1;
-        }
-      }
+      } else nt = addRuns(other, cs[j], cs[j + 1], rowOf, rowStart, cnt, touched, nt);
     }
     for (let u = 0; u < nt; u++) {
       const r = touched[u];
@@ -337,15 +360,15 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
 }
 
 /**
- * The rows of an equipartition of `eq` into l rows: w.rowOf (per level of `eq`), their totals, and the number
- * of rows.
+ * The rows of an equipartition of `eq` into l rows: w.rowOf (per level of `eq`), w.rowStart, their totals,
+ * and the number of rows.
  */
 function rowsOf(eq: Axis, n: number, l: number, w: Work, totals: Int32Array): number {
-  const { rowOf, bounds } = w;
-  const q = equipartitionPrefix(eq.start, eq.L, n, l, bounds);
+  const { rowOf, rowStart } = w;
+  const q = equipartitionPrefix(eq.start, eq.L, n, l, rowStart);
   for (let r = 0; r < q; r++) {
-    rowOf.fill(r, bounds[r], bounds[r + 1]);
-    totals[r] = eq.start[bounds[r + 1]] - eq.start[bounds[r]];
+    rowOf.fill(r, rowStart[r], rowStart[r + 1]);
+    totals[r] = eq.start[rowStart[r + 1]] - eq.start[rowStart[r]];
   }
   return q;
 }
