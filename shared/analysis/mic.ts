@@ -271,6 +271,113 @@ function clumps(free: Axis, n: number, cap: number, w: Work): number {
   return groups;
 }
 
+/** The row of level k of the free axis when all its items lie in one row, else −1 − k. */
+function levelLabel(other: RankArray, start: Int32Array, rowOf: Int32Array, k: number): number {
+  const r0 = rowOf[other[start[k]]];
+  return r0 === rowOf[other[start[k + 1] - 1]] ? r0 : -1 - k;
+}
+
+/** The level after the last of the clump that starts at level k. */
+function clumpEnd(other: RankArray, start: Int32Array, rowOf: Int32Array, L: number, k: number): number {
+  const lab = levelLabel(other, start, rowOf, k);
+  let e = k + 1;
+  if (lab >= 0) while (e < L && levelLabel(other, start, rowOf, e) === lab) e++;
+  return e;
+}
+
+/**
+ * The superclumps when there are more than `cap` clumps, as `clumps` computes them, without listing the
+ * clumps: the boundaries of the equipartition of the clump sizes (`equipartitionPrefix`) are found by
+ * looking only at the clumps near each boundary (the clump holding the item where the running size passes
+ * rowsize, and the one after it), and the row counts of every superclump are then summed in one pass over
+ * the levels, which also counts the clumps. Returns the number of superclumps, or −1 when there are at most
+ * `cap` clumps (no grouping; `clumps` then does the work).
+ */
+function superclumps(free: Axis, n: number, cap: number, w: Work): number {
+  const { L, start, other } = free;
+  const { rowOf, rowStart, bounds: gk, cnt, touched, off, rc, c } = w;
+  let rowsize = n / cap;
+  let curr = 0;
+  gk[0] = 0;
+  let k0 = 0;
+  for (;;) {
+    const base = start[k0];
+    const first = clumpEnd(other, start, rowOf, L, k0);
+    // the first clump after the group's first one whose end passes base + rowsize holds item m
+    const m = base + Math.floor(rowsize);
+    if (m >= n || first >= L) break;
+    let kj = first;
+    if (m >= start[first]) {
+      let lo = first;
+      let hi = L - 1;
+      while (lo < hi) {
+        const mid = (lo + hi + 1) >> 1;
+        if (start[mid] <= m) lo = mid;
+        else hi = mid - 1;
+      }
+      kj = lo;
+      const lab = levelLabel(other, start, rowOf, kj);
+      if (lab >= 0) while (kj > first && levelLabel(other, start, rowOf, kj - 1) === lab) kj--;
+    }
+    // from there, the test of `equipartition`, clump by clump
+    let stop = false;
+    while (kj < L) {
+      const ke = clumpEnd(other, start, rowOf, L, kj);
+      const h = start[kj] - base;
+      if (Math.abs(h + (start[ke] - start[kj]) - rowsize) >= Math.abs(h - rowsize)) {
+        stop = true;
+        break;
+      }
+      kj = ke;
+    }
+    if (!stop) break;
+    curr++;
+    gk[curr] = kj;
+    rowsize = (n - start[kj]) / (cap - curr);
+    k0 = kj;
+  }
+  const groups = curr + 1;
+  gk[groups] = L;
+  // row counts per superclump (rows in order of first appearance) and the number of clumps
+  let p = 0;
+  let prev = -1;
+  let e = 0;
+  for (let g = 0; g < groups; g++) {
+    off[g] = e;
+    c[g] = start[gk[g]];
+    let nt = 0;
+    let b = start[gk[g]];
+    for (let k = gk[g], k1 = gk[g + 1]; k < k1; k++) {
+      const a = b;
+      b = start[k + 1];
+      const r0 = rowOf[other[a]];
+      if (r0 === rowOf[other[b - 1]]) {
+        // (branch-free: the row is written to touched[nt] every time and kept when it is new)
+        const m = cnt[r0];
+        touched[nt] = r0;
+        nt += +(m === 0);
+        cnt[r0] = m + b - a;
+        p += +(r0 !== prev);
+        prev = r0;
+      } else {
+        nt = addRuns(other, a, b, rowOf, rowStart, cnt, touched, nt);
+        p++;
+        prev = -1;
+      }
+    }
+    for (let u = 0; u < nt; u++) {
+      const r = touched[u];
+      rc[2 * e] = r;
+      rc[2 * e + 1] = cnt[r];
+      e++;
+      cnt[r] = 0;
+    }
+  }
+  off[groups] = e;
+  c[groups] = n;
+  return p > cap ? groups : -1;
+}
+
 /**
  * OptimizeXAxis: for j = 2..maxCols, the largest mutual information (nats) of grids with the given rows and
  * at most j columns made of consecutive (super)clumps; written to out[j − 2].
@@ -408,7 +515,8 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
       if (maxCols < 2) continue;
       const cap = Math.max(Math.trunc(c * (m + 1)), 1);
       const q = rowsOf(eq, n, l, w, totals);
-      const pc = clumps(free, n, cap, w);
+      let pc = free.L > cap ? superclumps(free, n, cap, w) : -1;
+      if (pc < 0) pc = clumps(free, n, cap, w);
       optimizeAxis(pc, totals, q, n, maxCols, w, scores);
       const lq = Math.log(q);
       for (let j = 2; j <= maxCols; j++) {
