@@ -161,3 +161,4 @@ export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-cor
 export { alignChannel } from './align';
 export { bleedThroughSlope } from './bleed';
 export { unmixChannels, checkBleedCoefficient } from './unmix';
+export { alignAndUnmix } from './align-unmix';
