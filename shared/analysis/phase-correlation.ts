@@ -210,19 +210,41 @@ export function measureShift(ch1: ChannelArray, ch2: ChannelArray, width: number
   const a = tapered(ch1, width, height, 'channel 1');
   const b = tapered(ch2, width, height, 'channel 2');
   if (a === null || b === null) return { dx: null, dy: null, peak: null };
-  // the spectra of both channels at once: Z = FFT(a + i·b), column by column (fft.ts)
-  const zt = new Float64Array(2 * W * H);
-  complexFft2dColumns(W, H, (y, out) => taperedRow(a, b, width, height, W, y, out), zt);
-  // P = B·conj(A) / |B·conj(A)| on the half plane, with A(k) = (Z(k) + conj Z(−k)) / 2 and
-  // B(k) = (Z(k) − conj Z(−k)) / (2i) (the Hermitian symmetry of real images; fft.ts)
+  // the spectra of both channels at once: Z = FFT(a + i·b), column by column (fft.ts), in a buffer with room
+  // for two half planes (W/2 + 1 columns each): the cross-power spectrum replaces Z in the first, the
+  // inverse's column transforms go to the second
   const hw = W / 2 + 1;
-  const P = new Float64Array(2 * hw * H);
-  for (let kx = 0; kx < hw; kx++) {
-    const mx = (W - kx) % W;
+  const buf = new Float64Array(4 * hw * H);
+  complexFft2dColumns(W, H, (y, out) => taperedRow(a, b, width, height, W, y, out), buf);
+  // P = B·conj(A) / |B·conj(A)| on the half plane, with A(k) = (Z(k) + conj Z(−k)) / 2 and
+  // B(k) = (Z(k) − conj Z(−k)) / (2i) (the Hermitian symmetry of real images; fft.ts). P(kx) overwrites Z(kx);
+  // Z(−k) lies in column W − kx > W/2, never overwritten, except for the columns kx = 0 and W/2, which are
+  // their own mirror: there ky and H − ky are done together.
+  const P = buf.subarray(0, 2 * hw * H);
+  const cross = (p: number, q: number) => {
+    const zr = buf[p], zi = buf[p + 1], mr = buf[q], mi = buf[q + 1];
+    const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
+    const br = (zi + mi) / 2, bi = (mr - zr) / 2;
+    const re = br * ar - bi * ai, im = br * ai + bi * ar;
+    const mag = Math.sqrt(re * re + im * im);
+    return mag > 0 ? [re / mag, im / mag] : [0, 0];
+  };
+  for (const kx of [0, W / 2])
+    for (let ky = 0; ky <= H / 2; ky++) {
+      const my = (H - ky) % H;
+      const p = 2 * (kx * H + ky), q = 2 * (kx * H + my);
+      const u = cross(p, q), v = cross(q, p);
+      P[p] = u[0];
+      P[p + 1] = u[1];
+      P[q] = v[0];
+      P[q + 1] = v[1];
+    }
+  for (let kx = 1; kx < W / 2; kx++) {
+    const mx = W - kx;
     for (let ky = 0; ky < H; ky++) {
       const my = (H - ky) % H;
       const p = 2 * (kx * H + ky), q = 2 * (mx * H + my);
-      const zr = zt[p], zi = zt[p + 1], mr = zt[q], mi = zt[q + 1];
+      const zr = buf[p], zi = buf[p + 1], mr = buf[q], mi = buf[q + 1];
       const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
       const br = (zi + mi) / 2, bi = (mr - zr) / 2;
       const re = br * ar - bi * ai, im = br * ai + bi * ar;
@@ -231,9 +253,9 @@ export function measureShift(ch1: ChannelArray, ch2: ChannelArray, width: number
       P[p + 1] = mag > 0 ? im / mag : 0;
     }
   }
-  // its inverse c(y, x), scanned for the largest value row by row (the image is not kept; zt is the work space)
+  // its inverse c(y, x), scanned for the largest value row by row (the image is not kept)
   let best = -Infinity, k = 0;
-  inverseRealFft2dRows(P, W, H, zt, (y, z, two) => {
+  inverseRealFft2dRows(P, W, H, buf.subarray(2 * hw * H), (y, z, two) => {
     const o = y * W;
     for (let x = 0; x < W; x++)
       if (z[2 * x] > best) {
