@@ -426,7 +426,35 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     // layers 2..open are still open (the higher layers' last columns are shorter, so they close first)
     let open = top;
     let s = t - 1;
-    for (; s >= 1; s--) {
+    if (top === 2 && J > 2) {
+      // one layer (J = 3, t < p): the same sweep with its best value held in a local
+      let b2 = -Infinity;
+      for (; s >= 1; s--) {
+        let e = 2 * off[s];
+        const e1 = 2 * off[s + 1];
+        let r = rc[e];
+        let a0 = cnt[r];
+        let b0 = a0 + rc[e + 1];
+        let d = f[b0] - f[a0];
+        cnt[r] = b0;
+        for (e += 2; e < e1; e += 2) {
+          r = rc[e];
+          a0 = cnt[r];
+          b0 = a0 + rc[e + 1];
+          d += f[b0] - f[a0];
+          cnt[r] = b0;
+        }
+        S += d;
+        const T = S - f[ct - c[s]];
+        const ws = s * J;
+        const v = W[ws] + T;
+        if (v > b2) b2 = v;
+        if (W[ws + 1] + T + margin < b2) break;
+      }
+      best[2] = b2;
+      open = 1;
+    }
+    for (; open >= 2 && s >= 1; s--) {
       let e = 2 * off[s];
       const e1 = 2 * off[s + 1];
       let r = rc[e];
