@@ -426,35 +426,9 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     // layers 2..open are still open (the higher layers' last columns are shorter, so they close first)
     let open = top;
     let s = t - 1;
-    if (top === 2 && J > 2) {
-      // one layer (J = 3, t < p): the same sweep with its best value held in a local
-      let b2 = -Infinity;
-      for (; s >= 1; s--) {
-        let e = 2 * off[s];
-        const e1 = 2 * off[s + 1];
-        let r = rc[e];
-        let a0 = cnt[r];
-        let b0 = a0 + rc[e + 1];
-        let d = f[b0] - f[a0];
-        cnt[r] = b0;
-        for (e += 2; e < e1; e += 2) {
-          r = rc[e];
-          a0 = cnt[r];
-          b0 = a0 + rc[e + 1];
-          d += f[b0] - f[a0];
-          cnt[r] = b0;
-        }
-        S += d;
-        const T = S - f[ct - c[s]];
-        const ws = s * J;
-        const v = W[ws] + T;
-        if (v > b2) b2 = v;
-        if (W[ws + 1] + T + margin < b2) break;
-      }
-      best[2] = b2;
-      open = 1;
-    }
-    for (; open >= 2 && s >= 1; s--) {
+    // the lowest s swept
+    let low = t;
+    while (open >= 3 && s >= 1) {
       let e = 2 * off[s];
       const e1 = 2 * off[s + 1];
       let r = rc[e];
@@ -478,10 +452,41 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
       }
       // every s' < s gives layer j at most W(s, j) + T(s, t) (W ≤ 0 stands in for the unstored layer J)
       while (open >= 2 && (open < J ? W[ws + open] : 0) + T + margin < best[open]) open--;
-      if (open < 2) break;
+      low = s;
+      s--;
     }
-    // clear the counts of clumps s..t−1 (or all q rows when that is less)
-    const e0 = 2 * off[s > 1 ? s : 1], e1 = 2 * off[t];
+    if (open === 2) {
+      // layer 2 alone from here on: the same sweep with its best value held in a local
+      let b2 = best[2];
+      const stored = J > 2;
+      while (s >= 1) {
+        let e = 2 * off[s];
+        const e1 = 2 * off[s + 1];
+        let r = rc[e];
+        let a0 = cnt[r];
+        let b0 = a0 + rc[e + 1];
+        let d = f[b0] - f[a0];
+        cnt[r] = b0;
+        for (e += 2; e < e1; e += 2) {
+          r = rc[e];
+          a0 = cnt[r];
+          b0 = a0 + rc[e + 1];
+          d += f[b0] - f[a0];
+          cnt[r] = b0;
+        }
+        S += d;
+        const T = S - f[ct - c[s]];
+        const ws = s * J;
+        const v = W[ws] + T;
+        if (v > b2) b2 = v;
+        low = s;
+        s--;
+        if ((stored ? W[ws + 1] : 0) + T + margin < b2) break;
+      }
+      best[2] = b2;
+    }
+    // clear the counts of clumps low..t−1 (or all q rows when that is less)
+    const e0 = 2 * off[low], e1 = 2 * off[t];
     if (e1 - e0 > 2 * q) cnt.fill(0, 0, q);
     else for (let e = e0; e < e1; e += 2) cnt[rc[e]] = 0;
     let prev = W[wt];
