@@ -59,7 +59,7 @@ import {
   MIC_DEFAULTS,
   type ObjectResult,
 } from '../../shared/analysis/index';
-import { alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '../../shared/analysis/index';
+import { alignAndUnmix, alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '../../shared/analysis/index';
 import { COEFFICIENTS, isPixelEntry } from '../../shared/coefficients';
 import { formatCount, formatFixed, formatMagnitude, type NumberKind } from '../../shared/format/number';
 import { decodeChannel, decodeChannels, ImageInputError, type PixelArray } from '../images/decode';
@@ -461,7 +461,9 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       const r = depth === 1 ? measureShift(ch1, ch2, width, height) : measureShift(sumSlices(ch1, plane, depth), sumSlices(ch2, plane, depth), width, height);
       measured.shift = { dx: r.dx, dy: r.dy };
     }
-    if (o.shift) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
+    // alignment and unmixing in one pass when nothing needs the aligned channel 2 on its own (--measure-bleed does)
+    const fused = o.shift !== null && o.bleed !== null && o.measureBleed === null;
+    if (o.shift && !fused) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
     if (o.objects && depth > 1)
       throw new UsageError(`--objects needs single-plane images, received ${depth} z slices to measure in 3D; measure one slice (--z N) or a projection (--z mip)`);
     let regions: Region[] = [{ label: 0, indices: null }];
@@ -507,7 +509,8 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       measured.bleed = o.measureBleed === 1 ? { a21: bleedThroughSlope(ch1, ch2, region) } : { a12: bleedThroughSlope(ch2, ch1, region) };
     }
     // channel 2 is the command's own copy once aligned, so the unmixed channel 2 may overwrite it
-    if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12, { reuse: o.shift !== null }));
+    if (fused) ({ t1: ch1, t2: ch2 } = alignAndUnmix(ch1, ch2, width, height, o.shift!.dx, o.shift!.dy, o.bleed!.a21, o.bleed!.a12, depth));
+    else if (o.bleed) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, o.bleed.a21, o.bleed.a12, { reuse: o.shift !== null }));
     // (none/manual need no pixels; with no regions the union is the one region, so its pairs are reused)
     const needsPixels = o.threshold.method === 'otsu' || o.threshold.method === 'costes';
     const unionPairs = needsPixels ? prepare(collectPairs(ch1, ch2, union === null ? null : { kind: 'indices', indices: union })) : null;

@@ -13,8 +13,30 @@
 import type { ChannelArray } from './types';
 
 /** Checks a shift component: a finite number (pixels). */
-function checkShift(v: number, name: string): void {
+export function checkShift(v: number, name: string): void {
   if (!Number.isFinite(v)) throw new RangeError(`${name} must be a finite number of pixels, received ${v}`);
+}
+
+/**
+ * Per column (or row) i of n, sampled at i + d: the left neighbour i0 (−1 when i + d is outside [0, n − 1])
+ * and the weight f of the right one.
+ */
+export function bilinearTaps(d: number, n: number): { i0: Int32Array; f: Float64Array } {
+  const i0 = new Int32Array(n).fill(-1), f = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const x = i + d;
+    if (!(x >= 0 && x <= n - 1)) continue;
+    let k = Math.floor(x);
+    let t = x - k;
+    if (k === n - 1) {
+      // the last position itself: the right neighbour is not needed (weight 0)
+      k = n - 1;
+      t = 0;
+    }
+    i0[i] = k;
+    f[i] = t;
+  }
+  return { i0, f };
 }
 
 /**
@@ -29,25 +51,7 @@ export function alignChannel(ch: ChannelArray, width: number, height: number, dx
   const plane = width * height;
   if (ch.length !== plane * slices) throw new RangeError(`channel has ${ch.length} values, ${width}×${height}×${slices} needs ${plane * slices}`);
   const out = new Float64Array(ch.length);
-  // per column: the left neighbour and weight (or −1 outside); likewise per row
-  const col = (dx: number, n: number) => {
-    const i0 = new Int32Array(n).fill(-1), f = new Float64Array(n);
-    for (let i = 0; i < n; i++) {
-      const x = i + dx;
-      if (!(x >= 0 && x <= n - 1)) continue;
-      let k = Math.floor(x);
-      let t = x - k;
-      if (k === n - 1) {
-        // the last position itself: the right neighbour is not needed (weight 0)
-        k = n - 1;
-        t = 0;
-      }
-      i0[i] = k;
-      f[i] = t;
-    }
-    return { i0, f };
-  };
-  const cx = col(dx, width), cy = col(dy, height);
+  const cx = bilinearTaps(dx, width), cy = bilinearTaps(dy, height);
   for (let z = 0; z < slices; z++) {
     const base = z * plane;
     for (let j = 0; j < height; j++) {

@@ -11,7 +11,8 @@
  * Layout: complex values interleaved (re, im) in a Float64Array. A half-plane spectrum of an h × w image is
  * stored column by column: w/2 + 1 columns kx = 0 … w/2, each of h values ky = 0 … h−1 (numpy's order:
  * ky ≥ h/2 stands for ky − h), at index 2·(kx·h + ky). The column transforms then run on contiguous memory
- * (the image is transposed once in cache-sized blocks instead of gathering every column).
+ * (rows are transformed a block at a time and written straight into their columns, instead of gathering
+ * every column).
  */
 import FFT from 'fft.js';
 
@@ -35,25 +36,6 @@ function plan(n: number): InstanceType<typeof FFT> {
   return p;
 }
 
-/** Transpose of an interleaved complex rows × cols array into cols × rows, in 32 × 32 blocks. */
-function transpose(src: Float64Array, rows: number, cols: number, dst: Float64Array): void {
-  const B = 32;
-  for (let r0 = 0; r0 < rows; r0 += B) {
-    const r1 = Math.min(rows, r0 + B);
-    for (let c0 = 0; c0 < cols; c0 += B) {
-      const c1 = Math.min(cols, c0 + B);
-      for (let r = r0; r < r1; r++) {
-        let si = 2 * (r * cols + c0);
-        for (let c = c0; c < c1; c++, si += 2) {
-          const di = 2 * (c * rows + r);
-          dst[di] = src[si];
-          dst[di + 1] = src[si + 1];
-        }
-      }
-    }
-  }
-}
-
 /** Complex FFT of each of `count` contiguous rows of n values, in place (inverse when `inverse`). */
 function rowTransforms(z: Float64Array, count: number, n: number, inverse: boolean): void {
   const f = plan(n);
@@ -66,6 +48,44 @@ function rowTransforms(z: Float64Array, count: number, n: number, inverse: boole
   }
 }
 
+/** Rows per block when rows are transformed and written column by column (16 complex values = 4 cache lines). */
+const ROWS = 16;
+
+/**
+ * Writes row y of a w-wide complex image (interleaved re, im) into `out`; returns false when the row is all
+ * zero (out is then not read).
+ */
+export type ComplexRowSource = (y: number, out: Float64Array) => boolean;
+
+/**
+ * The full complex 2-D spectrum of an h × w complex image given row by row, stored column by column
+ * (column kx at 2·kx·h, ky = 0 … h−1 contiguous) in `zt` (2·w·h values). The rows are transformed ROWS at a
+ * time and written straight into their columns (a blocked transposition, no row-major copy of the image),
+ * then each column is transformed in place. Rows reported all zero (padding) skip their transform.
+ */
+export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
+  const fr = plan(w);
+  const tin = new Float64Array(2 * w);
+  const blk = new Float64Array(2 * w * ROWS);
+  for (let y0 = 0; y0 < h; y0 += ROWS) {
+    const nr = Math.min(ROWS, h - y0);
+    for (let r = 0; r < nr; r++) {
+      const dst = blk.subarray(2 * w * r, 2 * w * (r + 1));
+      if (row(y0 + r, tin)) fr.transform(dst, tin);
+      else dst.fill(0);
+    }
+    for (let x = 0; x < w; x++) {
+      let si = 2 * x;
+      let di = 2 * (x * h + y0);
+      for (let r = 0; r < nr; r++, si += 2 * w, di += 2) {
+        zt[di] = blk[si];
+        zt[di + 1] = blk[si + 1];
+      }
+    }
+  }
+  rowTransforms(zt, w, h, false);
+}
+
 /**
  * The half-plane spectra (layout above) of two real w × h images (row-major, w and h powers of two),
  * unnormalised: A(ky, kx) = Σ a(y, x) e^{−2πi (ky y / h + kx x / w)}.
@@ -73,22 +93,21 @@ function rowTransforms(z: Float64Array, count: number, n: number, inverse: boole
 export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: number): { A: Float64Array; B: Float64Array } {
   checkSize(w, h);
   if (a.length !== w * h || b.length !== w * h) throw new RangeError(`images must have ${w}×${h} = ${w * h} values, received ${a.length} and ${b.length}`);
-  const z = new Float64Array(2 * w * h);
-  const fr = plan(w);
-  const tin = new Float64Array(2 * w);
-  for (let y = 0; y < h; y++) {
-    for (let x = 0; x < w; x++) {
-      tin[2 * x] = a[y * w + x];
-      tin[2 * x + 1] = b[y * w + x];
-    }
-    fr.transform(z.subarray(2 * w * y, 2 * w * (y + 1)), tin);
-  }
   const zt = new Float64Array(2 * w * h);
-  transpose(z, h, w, zt);
-  rowTransforms(zt, w, h, false);
+  complexFft2dColumns(
+    w,
+    h,
+    (y, tin) => {
+      for (let x = 0; x < w; x++) {
+        tin[2 * x] = a[y * w + x];
+        tin[2 * x + 1] = b[y * w + x];
+      }
+      return true;
+    },
+    zt,
+  );
   const hw = w / 2 + 1;
-  // A takes the row pass's buffer (no longer needed after the transpose): one 16-byte-per-pixel array less
-  const A = z.subarray(0, 2 * hw * h), Bs = new Float64Array(2 * hw * h);
+  const A = new Float64Array(2 * hw * h), Bs = new Float64Array(2 * hw * h);
   for (let kx = 0; kx < hw; kx++) {
     const mx = (w - kx) % w;
     for (let ky = 0; ky < h; ky++) {
@@ -105,40 +124,69 @@ export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: nu
 }
 
 /**
+ * Receives the real rows y and y + 1 of an inverse transform (interleaved: row y in the even, row y + 1 in the
+ * odd places of `z`, x = 0 … w−1); `two` is false for a last single row.
+ */
+export type RealRowPairSink = (y: number, z: Float64Array, two: boolean) => void;
+
+/**
+ * The inverse of a Hermitian half-plane spectrum (see `inverseRealFft2d`) handed out two rows at a time, without
+ * storing the image. `work` (at least 2·(w/2 + 1)·h values) receives the column transforms (S is left as it
+ * is); the rows are then gathered from it ROWS at a time (a blocked transposition) and inverted in pairs.
+ */
+export function inverseRealFft2dRows(S: Float64Array, w: number, h: number, work: Float64Array, sink: RealRowPairSink): void {
+  checkSize(w, h);
+  const hw = w / 2 + 1;
+  if (S.length !== 2 * hw * h) throw new RangeError(`a half-plane spectrum of ${w}×${h} has ${2 * hw * h} values, received ${S.length}`);
+  if (work.length < 2 * hw * h) throw new RangeError(`the work buffer needs ${2 * hw * h} values, received ${work.length}`);
+  const fc = plan(h);
+  for (let kx = 0; kx < hw; kx++) fc.inverseTransform(work.subarray(2 * h * kx, 2 * h * (kx + 1)), S.subarray(2 * h * kx, 2 * h * (kx + 1)));
+  const fr = plan(w);
+  const blk = new Float64Array(2 * hw * ROWS);
+  const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);
+  for (let y0 = 0; y0 < h; y0 += ROWS) {
+    const nr = Math.min(ROWS, h - y0);
+    // rows y0 … y0 + nr − 1 of the column transforms, row-major
+    for (let kx = 0; kx < hw; kx++) {
+      let si = 2 * (kx * h + y0);
+      let di = 2 * kx;
+      for (let r = 0; r < nr; r++, si += 2, di += 2 * hw) {
+        blk[di] = work[si];
+        blk[di + 1] = work[si + 1];
+      }
+    }
+    for (let r = 0; r < nr; r += 2) {
+      const r1 = 2 * hw * r, r2 = 2 * hw * (r + 1);
+      const two = r + 1 < nr;
+      for (let kx = 0; kx < w; kx++) {
+        // H(kx) for kx ≤ w/2 as stored, conj H(w − kx) above
+        const src = kx < hw ? kx : w - kx, sg = kx < hw ? 1 : -1;
+        const edge = kx === 0 || kx === w / 2;
+        const h1r = blk[r1 + 2 * src], h1i = edge ? 0 : sg * blk[r1 + 2 * src + 1];
+        const h2r = two ? blk[r2 + 2 * src] : 0, h2i = two && !edge ? sg * blk[r2 + 2 * src + 1] : 0;
+        // Z = H1 + i·H2
+        zin[2 * kx] = h1r - h2i;
+        zin[2 * kx + 1] = h1i + h2r;
+      }
+      fr.inverseTransform(zout, zin);
+      sink(y0 + r, zout, two);
+    }
+  }
+}
+
+/**
  * The real w × h image of a Hermitian spectrum given on the half plane (layout above, as from
  * `realFft2dPair`), normalised: c(y, x) = (1 / wh) Σ_k S(k) e^{+2πi (ky y / h + kx x / w)}. The imaginary
  * parts of the kx = 0 and kx = w/2 columns, which a Hermitian spectrum has only from rounding, are ignored.
  */
 export function inverseRealFft2d(S: Float64Array, w: number, h: number): Float64Array {
-  checkSize(w, h);
-  const hw = w / 2 + 1;
-  if (S.length !== 2 * hw * h) throw new RangeError(`a half-plane spectrum of ${w}×${h} has ${2 * hw * h} values, received ${S.length}`);
-  const gc = S.slice();
-  rowTransforms(gc, hw, h, true);
-  const g = new Float64Array(2 * hw * h);
-  transpose(gc, hw, h, g);
-  const fr = plan(w);
   const out = new Float64Array(w * h);
-  const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);
-  for (let y = 0; y < h; y += 2) {
-    const r1 = 2 * hw * y, r2 = 2 * hw * (y + 1);
-    const two = y + 1 < h;
-    for (let kx = 0; kx < w; kx++) {
-      // H(kx) for kx ≤ w/2 as stored, conj H(w − kx) above
-      const src = kx < hw ? kx : w - kx, sg = kx < hw ? 1 : -1;
-      const edge = kx === 0 || kx === w / 2;
-      const h1r = g[r1 + 2 * src], h1i = edge ? 0 : sg * g[r1 + 2 * src + 1];
-      const h2r = two ? g[r2 + 2 * src] : 0, h2i = two && !edge ? sg * g[r2 + 2 * src + 1] : 0;
-      // Z = H1 + i·H2
-      zin[2 * kx] = h1r - h2i;
-      zin[2 * kx + 1] = h1i + h2r;
-    }
-    fr.inverseTransform(zout, zin);
+  inverseRealFft2dRows(S, w, h, new Float64Array(S.length), (y, z, two) => {
     for (let x = 0; x < w; x++) {
-      out[y * w + x] = zout[2 * x];
-      if (two) out[(y + 1) * w + x] = zout[2 * x + 1];
+      out[y * w + x] = z[2 * x];
+      if (two) out[(y + 1) * w + x] = z[2 * x + 1];
     }
-  }
+  });
   // fft.js divides each 1-D inverse by its size, so the two passes together divide by w·h
   return out;
 }

@@ -167,3 +167,4 @@ export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-cor
 export { alignChannel } from './align';
 export { bleedThroughSlope, pooledBleedThroughSlope } from './bleed';
 export { unmixChannels, checkBleedCoefficient } from './unmix';
+export { alignAndUnmix } from './align-unmix';

@@ -79,11 +79,48 @@ export function equipartition(sizes: ArrayLike<number>, groups: number, n: numbe
   return curr + 1;
 }
 
+/**
+ * The same partition as `equipartition` for the groups of sizes P[g + 1] − P[g] (P: prefix sums, P[0] = 0,
+ * P[groups] = n), written as row boundaries: row r holds groups bounds[r] .. bounds[r + 1]. Returns the number
+ * of rows. While h + s ≤ rowsize the test of `equipartition` cannot open a row (|h + s − rowsize| <
+ * |h − rowsize| in floating point too, the two differing by s ≥ 1), so each row's end is found by bisection
+ * on P and only the groups from there on are tested, exactly as `equipartition` does: O(rows · log groups).
+ */
+function equipartitionPrefix(P: Int32Array, groups: number, n: number, rows: number, bounds: Int32Array): number {
+  let rowsize = n / rows;
+  let curr = 0;
+  let g = 0;
+  bounds[0] = 0;
+  while (g < groups) {
+    const base = P[g];
+    // the first group after the row's first that takes the row past rowsize
+    let lo = g + 1;
+    let hi = groups;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (P[mid + 1] - base > rowsize) hi = mid;
+      else lo = mid + 1;
+    }
+    g = lo;
+    for (; g < groups; g++) {
+      const h = P[g] - base;
+      if (Math.abs(h + (P[g + 1] - P[g]) - rowsize) >= Math.abs(h - rowsize)) break;
+    }
+    if (g < groups) {
+      curr++;
+      bounds[curr] = g;
+      rowsize = (n - P[g]) / (rows - curr);
+    }
+  }
+  bounds[curr + 1] = groups;
+  return curr + 1;
+}
+
 /** Level structure of one axis: counts per distinct value (ascending) and, in that order, the other axis' levels. */
 interface Axis {
   L: number;
   counts: Int32Array;
-  /** items of level k are at start[k] .. start[k+1] of `other` */
+  /** items of level k are at start[k] .. start[k+1] of `other` (so start holds the prefix sums of counts) */
   start: Int32Array;
   other: RankArray;
 }
@@ -94,28 +131,39 @@ class Work {
   readonly f: Float64Array;
   readonly cnt: Int32Array;
   readonly touched: Int32Array;
+  /** the row of each level of the equipartitioned axis */
+  readonly rowOf: Int32Array;
+  /** the first level of each row of the equipartitioned axis (one more entry: L) */
+  readonly rowStart: Int32Array;
+  /** superclump boundaries */
+  readonly bounds: Int32Array;
   /** per clump: its row, or −1 − level for a mixed tie group */
   readonly label: Int32Array;
-  readonly size: Int32Array;
-  readonly sup: Int32Array;
+  /** per clump: its first item (prefix sums of the clump sizes; one more entry, n) */
+  readonly cs: Int32Array;
   readonly off: Int32Array;
   /** clump entries: row, count, row, count, … */
   readonly rc: Int32Array;
   readonly c: Int32Array;
   readonly best: Float64Array;
+  /** the layers j still open in a sweep */
+  readonly act: Int32Array;
   private w = new Float64Array(0);
   constructor(n: number, L: number, maxRows: number) {
     this.f = new Float64Array(n + 1);
     for (let k = 2; k <= n; k++) this.f[k] = k * Math.log(k);
     this.cnt = new Int32Array(maxRows + 1);
     this.touched = new Int32Array(maxRows + 1);
+    this.rowOf = new Int32Array(L);
+    this.rowStart = new Int32Array(L + 1);
+    this.bounds = new Int32Array(L + 1);
     this.label = new Int32Array(L);
-    this.size = new Int32Array(L);
-    this.sup = new Int32Array(L);
+    this.cs = new Int32Array(L + 1);
     this.off = new Int32Array(L + 1);
     this.rc = new Int32Array(2 * n);
     this.c = new Int32Array(L + 1);
     this.best = new Float64Array(maxRows + 2);
+    this.act = new Int32Array(maxRows + 2);
   }
   /** the DP table, at least `size` long (grown when needed) */
   layers(size: number): Float64Array {
@@ -125,56 +173,90 @@ class Work {
 }
 
 /**
- * The (super)clumps of the free axis for a given row of each level of the equipartitioned axis: returns
- * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]).
+ * Adds the row counts of the items a .. b−1 of `other` (ascending levels, so ascending rows) to cnt, noting
+ * each row met for the first time in touched; returns the new number of touched rows. Runs of one row are
+ * skipped by bisection on the row's first level (rowStart), so a level with many tied items costs about one
+ * step per row it meets.
  */
-function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work): number {
-  const { L, start, other, counts: levelCounts } = free;
-  const { label, size, sup, cnt, touched, off, rc } = w;
+function addRuns(other: RankArray, a: number, b: number, rowOf: Int32Array, rowStart: Int32Array, cnt: Int32Array, touched: Int32Array, nt: number): number {
+  let i = a;
+  while (i < b) {
+    const r = rowOf[other[i]];
+    const next = rowStart[r + 1];
+    let j = i + 1;
+    if (j < b && other[j] < next) {
+      // the run of row r ends at the first item at or above the next row's first level
+      let lo = j + 1;
+      let hi = b;
+      while (lo < hi) {
+        const mid = (lo + hi) >> 1;
+        if (other[mid] < next) lo = mid + 1;
+        else hi = mid;
+      }
+      j = lo;
+    }
+    const m = cnt[r];
+    touched[nt] = r;
+    nt += +(m === 0);
+    cnt[r] = m + j - i;
+    i = j;
+  }
+  return nt;
+}
+
+/**
+ * The (super)clumps of the free axis for the rows w.rowOf of the levels of the equipartitioned axis: returns
+ * their number p and fills w.off/rc (clump g's sparse (row, count) entries at off[g] .. off[g+1]) and w.c
+ * (c[g]: the items before clump g).
+ */
+function clumps(free: Axis, n: number, cap: number, w: Work): number {
+  const { L, start, other } = free;
+  const { rowOf, rowStart, label, cs, bounds, cnt, touched, off, rc, c } = w;
   // clumps in free-axis order: consecutive levels whose items all lie in one row merge (label = that row);
-  // a level whose tied items lie in different rows is a clump of its own (label −1 − level)
+  // a level whose tied items lie in different rows is a clump of its own (label −1 − level). The items of a
+  // level are in ascending order of the other axis, so its first and last item tell whether it lies in one
+  // row. (Branch-free: the slot p is written every time and kept, p + 1, only when a clump starts.)
   let p = 0;
   let prev = -1;
+  let b = start[0];
   for (let k = 0; k < L; k++) {
-    const a = start[k];
-    const m = levelCounts[k];
-    let lab = rowOf[other[a]];
-    for (let i = a + 1; i < a + m; i++)
-      if (rowOf[other[i]] !== lab) {
-        lab = -1 - k;
-        break;
-      }
-    if (lab >= 0 && lab === prev) size[p - 1] += m;
-    else {
-      label[p] = lab;
-      size[p] = m;
-      p++;
-    }
+    const a = b;
+    b = start[k + 1];
+    const r0 = rowOf[other[a]];
+    const lab = r0 === rowOf[other[b - 1]] ? r0 : -1 - k;
+    label[p] = lab;
+    cs[p] = a;
+    p += +(lab !== prev) | +(lab < 0);
     prev = lab;
   }
+  cs[p] = n;
   // superclumps: the clumps equipartitioned by size into at most about `cap` groups
   const grouped = p > cap;
-  const groups = grouped ? equipartition(size, p, n, cap, sup) : p;
-  // sparse (row, count) entries per group (the clumps of a group are consecutive)
+  const groups = grouped ? equipartitionPrefix(cs, p, n, cap, bounds) : p;
+  // sparse (row, count) entries per group (the clumps of a group are consecutive), rows in order of first
+  // appearance
   let e = 0;
-  let j = 0;
   for (let g = 0; g < groups; g++) {
     off[g] = e;
+    const j0 = grouped ? bounds[g] : g;
+    const j1 = grouped ? bounds[g + 1] : g + 1;
+    c[g] = cs[j0];
+    if (j1 === j0 + 1 && label[j0] >= 0) {
+      rc[2 * e] = label[j0];
+      rc[2 * e + 1] = cs[j1] - cs[j0];
+      e++;
+      continue;
+    }
     let nt = 0;
-    while (j < p && (grouped ? sup[j] : j) === g) {
+    for (let j = j0; j < j1; j++) {
       const lab = label[j];
       if (lab >= 0) {
-        if (cnt[lab] === 0) touched[nt++] = lab;
-        cnt[lab] += size[j];
-      } else {
-        const k = -1 - lab;
-        for (let i = start[k]; i < start[k + 1]; i++) {
-          const r = rowOf[other[i]];
-          if (cnt[r] === 0) touched[nt++] = r;
-          cnt[r]++;
-        }
-      }
-      j++;
+        // (branch-free: the row is written to touched[nt] every time and kept when it is new)
+        const m = cnt[lab];
+        touched[nt] = lab;
+        nt += +(m === 0);
+        cnt[lab] = m + cs[j + 1] - cs[j];
+      } else nt = addRuns(other, cs[j], cs[j + 1], rowOf, rowStart, cnt, touched, nt);
     }
     for (let u = 0; u < nt; u++) {
       const r = touched[u];
@@ -185,7 +267,115 @@ function clumps(free: Axis, rowOf: Int32Array, n: number, cap: number, w: Work):
     }
   }
   off[groups] = e;
+  c[groups] = n;
   return groups;
+}
+
+/** The row of level k of the free axis when all its items lie in one row, else −1 − k. */
+function levelLabel(other: RankArray, start: Int32Array, rowOf: Int32Array, k: number): number {
+  const r0 = rowOf[other[start[k]]];
+  return r0 === rowOf[other[start[k + 1] - 1]] ? r0 : -1 - k;
+}
+
+/** The level after the last of the clump that starts at level k. */
+function clumpEnd(other: RankArray, start: Int32Array, rowOf: Int32Array, L: number, k: number): number {
+  const lab = levelLabel(other, start, rowOf, k);
+  let e = k + 1;
+  if (lab >= 0) while (e < L && levelLabel(other, start, rowOf, e) === lab) e++;
+  return e;
+}
+
+/**
+ * The superclumps when there are more than `cap` clumps, as `clumps` computes them, without listing the
+ * clumps: the boundaries of the equipartition of the clump sizes (`equipartitionPrefix`) are found by
+ * looking only at the clumps near each boundary (the clump holding the item where the running size passes
+ * rowsize, and the one after it), and the row counts of every superclump are then summed in one pass over
+ * the levels, which also counts the clumps. Returns the number of superclumps, or −1 when there are at most
+ * `cap` clumps (no grouping; `clumps` then does the work).
+ */
+function superclumps(free: Axis, n: number, cap: number, w: Work): number {
+  const { L, start, other } = free;
+  const { rowOf, rowStart, bounds: gk, cnt, touched, off, rc, c } = w;
+  let rowsize = n / cap;
+  let curr = 0;
+  gk[0] = 0;
+  let k0 = 0;
+  for (;;) {
+    const base = start[k0];
+    const first = clumpEnd(other, start, rowOf, L, k0);
+    // the first clump after the group's first one whose end passes base + rowsize holds item m
+    const m = base + Math.floor(rowsize);
+    if (m >= n || first >= L) break;
+    let kj = first;
+    if (m >= start[first]) {
+      let lo = first;
+      let hi = L - 1;
+      while (lo < hi) {
+        const mid = (lo + hi + 1) >> 1;
+        if (start[mid] <= m) lo = mid;
+        else hi = mid - 1;
+      }
+      kj = lo;
+      const lab = levelLabel(other, start, rowOf, kj);
+      if (lab >= 0) while (kj > first && levelLabel(other, start, rowOf, kj - 1) === lab) kj--;
+    }
+    // from there, the test of `equipartition`, clump by clump
+    let stop = false;
+    while (kj < L) {
+      const ke = clumpEnd(other, start, rowOf, L, kj);
+      const h = start[kj] - base;
+      if (Math.abs(h + (start[ke] - start[kj]) - rowsize) >= Math.abs(h - rowsize)) {
+        stop = true;
+        break;
+      }
+      kj = ke;
+    }
+    if (!stop) break;
+    curr++;
+    gk[curr] = kj;
+    rowsize = (n - start[kj]) / (cap - curr);
+    k0 = kj;
+  }
+  const groups = curr + 1;
+  gk[groups] = L;
+  // row counts per superclump (rows in order of first appearance) and the number of clumps
+  let p = 0;
+  let prev = -1;
+  let e = 0;
+  for (let g = 0; g < groups; g++) {
+    off[g] = e;
+    c[g] = start[gk[g]];
+    let nt = 0;
+    let b = start[gk[g]];
+    for (let k = gk[g], k1 = gk[g + 1]; k < k1; k++) {
+      const a = b;
+      b = start[k + 1];
+      const r0 = rowOf[other[a]];
+      if (r0 === rowOf[other[b - 1]]) {
+        // (branch-free: the row is written to touched[nt] every time and kept when it is new)
+        const m = cnt[r0];
+        touched[nt] = r0;
+        nt += +(m === 0);
+        cnt[r0] = m + b - a;
+        p += +(r0 !== prev);
+        prev = r0;
+      } else {
+        nt = addRuns(other, a, b, rowOf, rowStart, cnt, touched, nt);
+        p++;
+        prev = -1;
+      }
+    }
+    for (let u = 0; u < nt; u++) {
+      const r = touched[u];
+      rc[2 * e] = r;
+      rc[2 * e + 1] = cnt[r];
+      e++;
+      cnt[r] = 0;
+    }
+  }
+  off[groups] = e;
+  c[groups] = n;
+  return p > cap ? groups : -1;
 }
 
 /**
@@ -205,23 +395,22 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     return;
   }
   const J = maxCols;
+  // slack for rounding in the bound below: far above the accumulated rounding of sums of f (≤ f(n)·1e−12),
+  // so a candidate is skipped only when it could not have won, and the values stay bit for bit
+  const margin = 1e-9 * f[n];
   // W[t * J + (j − 1)], j = 1..J−1: best sum of T over at most j columns of the first t clumps (t < p)
   const W = w.layers((p + 1) * J);
-  // prefix sizes c[t] and W(t, 1) = T(0, t) (the first t clumps as one column), in one forward pass
-  c[0] = 0;
+  // W(t, 1) = T(0, t) (the first t clumps as one column), in one forward pass (c[t]: items of clumps 1..t)
   let S0 = 0;
   for (let t = 1; t <= p; t++) {
-    let m = c[t - 1];
     for (let e = 2 * off[t - 1], e1 = 2 * off[t]; e < e1; e += 2) {
       const r = rc[e];
       const k = rc[e + 1];
       const a0 = cnt[r];
       S0 += f[a0 + k] - f[a0];
       cnt[r] = a0 + k;
-      m += k;
     }
-    c[t] = m;
-    W[t * J] = S0 - f[m];
+    W[t * J] = S0 - f[c[t]];
   }
   cnt.fill(0, 0, q);
   // one clump: every layer equals one column
@@ -234,24 +423,72 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
     let S = 0;
     const ct = c[t];
     for (let j = 2; j <= top; j++) best[j] = -Infinity;
-    for (let s = t - 1; s >= 1; s--) {
-      let d = 0;
-      for (let e = 2 * off[s], e1 = 2 * off[s + 1]; e < e1; e += 2) {
-        const r = rc[e];
-        const a0 = cnt[r];
-        const b0 = a0 + rc[e + 1];
+    // layers 2..open are still open (the higher layers' last columns are shorter, so they close first)
+    let open = top;
+    let s = t - 1;
+    // the lowest s swept
+    let low = t;
+    while (open >= 3 && s >= 1) {
+      let e = 2 * off[s];
+      const e1 = 2 * off[s + 1];
+      let r = rc[e];
+      let a0 = cnt[r];
+      let b0 = a0 + rc[e + 1];
+      let d = f[b0] - f[a0];
+      cnt[r] = b0;
+      for (e += 2; e < e1; e += 2) {
+        r = rc[e];
+        a0 = cnt[r];
+        b0 = a0 + rc[e + 1];
         d += f[b0] - f[a0];
         cnt[r] = b0;
       }
       S += d;
       const T = S - f[ct - c[s]];
       const ws = s * J - 1;
-      for (let j = 2; j <= top; j++) {
+      for (let j = 2; j <= open; j++) {
         const v = W[ws + j - 1] + T;
         if (v > best[j]) best[j] = v;
       }
+      // every s' < s gives layer j at most W(s, j) + T(s, t) (W ≤ 0 stands in for the unstored layer J)
+      while (open >= 2 && (open < J ? W[ws + open] : 0) + T + margin < best[open]) open--;
+      low = s;
+      s--;
     }
-    for (let e = 2 * off[1], e1 = 2 * off[t]; e < e1; e += 2) cnt[rc[e]] = 0;
+    if (open === 2) {
+      // layer 2 alone from here on: the same sweep with its best value held in a local
+      let b2 = best[2];
+      const stored = J > 2;
+      while (s >= 1) {
+        let e = 2 * off[s];
+        const e1 = 2 * off[s + 1];
+        let r = rc[e];
+        let a0 = cnt[r];
+        let b0 = a0 + rc[e + 1];
+        let d = f[b0] - f[a0];
+        cnt[r] = b0;
+        for (e += 2; e < e1; e += 2) {
+          r = rc[e];
+          a0 = cnt[r];
+          b0 = a0 + rc[e + 1];
+          d += f[b0] - f[a0];
+          cnt[r] = b0;
+        }
+        S += d;
+        const T = S - f[ct - c[s]];
+        const ws = s * J;
+        const v = W[ws] + T;
+        if (v > b2) b2 = v;
+        low = s;
+        s--;
+        if ((stored ? W[ws + 1] : 0) + T + margin < b2) break;
+      }
+      best[2] = b2;
+    }
+    // clear the counts of clumps low..t−1 (or all q rows when that is less)
+    const e0 = 2 * off[low], e1 = 2 * off[t];
+    if (e1 - e0 > 2 * q) cnt.fill(0, 0, q);
+    else for (let e = e0; e < e1; e += 2) cnt[rc[e]] = 0;
     let prev = W[wt];
     for (let j = 2; j <= top; j++) {
       const v = best[j] > prev ? best[j] : prev;
@@ -263,14 +500,17 @@ function optimizeAxis(p: number, rowTotals: Int32Array, q: number, n: number, ma
 }
 
 /**
- * The rows of an equipartition of `eq` into l rows (per level of `eq`), their totals, and the number of rows.
+ * The rows of an equipartition of `eq` into l rows: w.rowOf (per level of `eq`), w.rowStart, their totals,
+ * and the number of rows.
  */
-function rowsOf(eq: Axis, n: number, l: number) {
-  const rowOf = new Int32Array(eq.L);
-  const q = equipartition(eq.counts, eq.L, n, l, rowOf);
-  const totals = new Int32Array(q);
-  for (let k = 0; k < eq.L; k++) totals[rowOf[k]] += eq.counts[k];
-  return { rowOf, q, totals };
+function rowsOf(eq: Axis, n: number, l: number, w: Work, totals: Int32Array): number {
+  const { rowOf, rowStart } = w;
+  const q = equipartitionPrefix(eq.start, eq.L, n, l, rowStart);
+  for (let r = 0; r < q; r++) {
+    rowOf.fill(r, rowStart[r], rowStart[r + 1]);
+    totals[r] = eq.start[rowStart[r + 1]] - eq.start[rowStart[r]];
+  }
+  return q;
 }
 
 /**
@@ -296,6 +536,7 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
   const M: Float64Array[] = [];
   for (let a = 0; a < nRows; a++) M.push(new Float64Array(Math.floor(B / (a + 2)) - 1));
   const scores = new Float64Array(nRows + 1);
+  const totals = new Int32Array(nRows + 2);
   for (const side of [0, 1] as const) {
     const eq = side === 0 ? Y : X;
     const free = side === 0 ? X : Y;
@@ -306,8 +547,9 @@ export function mic(pairs: Pairs | PreparedPairs, options: MicOptions = {}): Mic
       const maxCols = Math.min(side === 0 ? l - 1 : l, m + 1);
       if (maxCols < 2) continue;
       const cap = Math.max(Math.trunc(c * (m + 1)), 1);
-      const { rowOf, q, totals } = rowsOf(eq, n, l);
-      const pc = clumps(free, rowOf, n, cap, w);
+      const q = rowsOf(eq, n, l, w, totals);
+      let pc = free.L > cap ? superclumps(free, n, cap, w) : -1;
+      if (pc < 0) pc = clumps(free, n, cap, w);
       optimizeAxis(pc, totals, q, n, maxCols, w, scores);
       const lq = Math.log(q);
       for (let j = 2; j <= maxCols; j++) {

@@ -26,7 +26,7 @@
  * ±Infinity is rejected with a RangeError.
  */
 import type { ChannelArray } from './types';
-import { inverseRealFft2d, nextPowerOfTwo, realFft2dPair } from './fft';
+import { complexFft2dColumns, inverseRealFft2dRows, nextPowerOfTwo } from './fft';
 
 export interface ShiftResult {
   /** channel 2's displacement along x (right) in pixels; null when undefined */
@@ -61,8 +61,16 @@ export function tukeyWindow(n: number, alpha: number): Float64Array {
 /** Taper fraction of the window (see the module comment). */
 export const SHIFT_TAPER = 0.25;
 
-/** Channel minus its finite mean, tapered, zero-padded into a W × H grid; null when it has no variation. */
-function centred(ch: ChannelArray, width: number, height: number, W: number, H: number, what: string): Float64Array | null {
+/** A channel's finite mean and the taper of each column and row; null when it has no variation. */
+interface Tapered {
+  ch: ChannelArray;
+  m: number;
+  wx: Float64Array;
+  wy: Float64Array;
+}
+
+/** Mean (over finite pixels) and taper of a channel; null when it has no variation. */
+function tapered(ch: ChannelArray, width: number, height: number, what: string): Tapered | null {
   let s = 0, n = 0;
   let first = NaN, varies = false;
   const N = width * height;
@@ -86,15 +94,24 @@ function centred(ch: ChannelArray, width: number, height: number, W: number, H: 
       n++;
     }
   if (!varies) return null;
-  const m = s / n;
-  const wx = tukeyWindow(width, SHIFT_TAPER), wy = tukeyWindow(height, SHIFT_TAPER);
-  const out = new Float64Array(W * H);
-  for (let y = 0; y < height; y++)
-    for (let x = 0; x < width; x++) {
-      const v = ch[y * width + x];
-      out[y * W + x] = Number.isNaN(v) ? 0 : (v - m) * wy[y] * wx[x];
-    }
-  return out;
+  return { ch, m: s / n, wx: tukeyWindow(width, SHIFT_TAPER), wy: tukeyWindow(height, SHIFT_TAPER) };
+}
+
+/**
+ * Row y of the two channels minus their means, tapered, zero-padded to W columns, as one complex row
+ * (channel 1 real, channel 2 imaginary); false for the padding rows below the image.
+ */
+function taperedRow(a: Tapered, b: Tapered, width: number, height: number, W: number, y: number, out: Float64Array): boolean {
+  if (y >= height) return false;
+  const ca = a.ch, cb = b.ch, ma = a.m, mb = b.m, wxa = a.wx, wxb = b.wx, wya = a.wy[y], wyb = b.wy[y];
+  const o = y * width;
+  for (let x = 0; x < width; x++) {
+    const va = ca[o + x], vb = cb[o + x];
+    out[2 * x] = Number.isNaN(va) ? 0 : (va - ma) * wya * wxa[x];
+    out[2 * x + 1] = Number.isNaN(vb) ? 0 : (vb - mb) * wyb * wxb[x];
+  }
+  out.fill(0, 2 * width, 2 * W);
+  return true;
 }
 
 /**
@@ -103,32 +120,59 @@ function centred(ch: ChannelArray, width: number, height: number, W: number, H: 
  */
 function refine(P: Float64Array, W: number, H: number, cu: number, cv: number, step: number, m: number): { u: number; v: number; c: number } {
   const hw = W / 2 + 1, n = 2 * m + 1;
-  // row kernel: e^{2πi fy u_i / H} (fy in numpy's fftfreq order)
-  const kr = new Float64Array(n * H), ki = new Float64Array(n * H);
+  // row kernel: e^{2πi fy u_i / H} (fy in numpy's fftfreq order), interleaved (cos, sin)
+  const K = new Float64Array(2 * n * H);
   for (let i = 0; i < n; i++) {
     const u = cu + (i - m) * step;
     for (let ky = 0; ky < H; ky++) {
       const a = (2 * Math.PI * (ky < H / 2 ? ky : ky - H) * u) / H;
-      kr[i * H + ky] = Math.cos(a);
-      ki[i * H + ky] = Math.sin(a);
+      K[2 * (i * H + ky)] = Math.cos(a);
+      K[2 * (i * H + ky) + 1] = Math.sin(a);
     }
   }
   // T(kx, i) = Σ_ky P(kx, ky) · kernel(i, ky): P is stored column by column (fft.ts), so each sum runs over
-  // contiguous memory
+  // contiguous memory; four kernels at a time share each load of P (every sum keeps its own order)
   const tr = new Float64Array(hw * n), ti = new Float64Array(hw * n);
   for (let kx = 0; kx < hw; kx++) {
     const col = 2 * H * kx;
-    for (let i = 0; i < n; i++) {
-      const o = i * H;
-      let sr = 0, si = 0;
+    for (let i = 0; i < n; i += 4) {
+      // kernels i … i + 3 (the last one repeated past n, its sums dropped)
+      const o0 = 2 * i * H, o1 = 2 * Math.min(i + 1, n - 1) * H, o2 = 2 * Math.min(i + 2, n - 1) * H, o3 = 2 * Math.min(i + 3, n - 1) * H;
+      let r0 = 0, s0 = 0, r1 = 0, s1 = 0, r2 = 0, s2 = 0, r3 = 0, s3 = 0;
       for (let ky = 0; ky < H; ky++) {
         const pr = P[col + 2 * ky], pi = P[col + 2 * ky + 1];
-        const cr = kr[o + ky], ci = ki[o + ky];
-        sr += pr * cr - pi * ci;
-        si += pr * ci + pi * cr;
+        const q = 2 * ky;
+        let cr = K[o0 + q], ci = K[o0 + q + 1];
+        r0 += pr * cr - pi * ci;
+        s0 += pr * ci + pi * cr;
+        cr = K[o1 + q];
+        ci = K[o1 + q + 1];
+        r1 += pr * cr - pi * ci;
+        s1 += pr * ci + pi * cr;
+        cr = K[o2 + q];
+        ci = K[o2 + q + 1];
+        r2 += pr * cr - pi * ci;
+        s2 += pr * ci + pi * cr;
+        cr = K[o3 + q];
+        ci = K[o3 + q + 1];
+        r3 += pr * cr - pi * ci;
+        s3 += pr * ci + pi * cr;
       }
-      tr[kx * n + i] = sr;
-      ti[kx * n + i] = si;
+      const t = kx * n + i;
+      tr[t] = r0;
+      ti[t] = s0;
+      if (i + 1 < n) {
+        tr[t + 1] = r1;
+        ti[t + 1] = s1;
+      }
+      if (i + 2 < n) {
+        tr[t + 2] = r2;
+        ti[t + 2] = s2;
+      }
+      if (i + 3 < n) {
+        tr[t + 3] = r3;
+        ti[t + 3] = s3;
+      }
     }
   }
   // c(i, j) = Re Σ_kx weight(kx) · T(kx, i) · e^{2πi kx v_j / W}
@@ -163,25 +207,71 @@ export function measureShift(ch1: ChannelArray, ch2: ChannelArray, width: number
   const upsample = options.upsample ?? 100;
   if (!(Number.isInteger(upsample) && upsample >= 1 && upsample <= 1000)) throw new RangeError(`upsample must be a whole number from 1 to 1000, received ${upsample}`);
   const W = Math.max(2, nextPowerOfTwo(width)), H = Math.max(2, nextPowerOfTwo(height));
-  const a = centred(ch1, width, height, W, H, 'channel 1');
-  const b = centred(ch2, width, height, W, H, 'channel 2');
+  const a = tapered(ch1, width, height, 'channel 1');
+  const b = tapered(ch2, width, height, 'channel 2');
   if (a === null || b === null) return { dx: null, dy: null, peak: null };
-  const { A, B } = realFft2dPair(a, b, W, H);
-  // P = B·conj(A) / |B·conj(A)|, in place in B
-  const P = B;
-  for (let i = 0; i < P.length; i += 2) {
-    const br = B[i], bi = B[i + 1], ar = A[i], ai = -A[i + 1];
+  // the spectra of both channels at once: Z = FFT(a + i·b), column by column (fft.ts), in a buffer with room
+  // for two half planes (W/2 + 1 columns each): the cross-power spectrum replaces Z in the first, the
+  // inverse's column transforms go to the second
+  const hw = W / 2 + 1;
+  const buf = new Float64Array(4 * hw * H);
+  complexFft2dColumns(W, H, (y, out) => taperedRow(a, b, width, height, W, y, out), buf);
+  // P = B·conj(A) / |B·conj(A)| on the half plane, with A(k) = (Z(k) + conj Z(−k)) / 2 and
+  // B(k) = (Z(k) − conj Z(−k)) / (2i) (the Hermitian symmetry of real images; fft.ts). P(kx) overwrites Z(kx);
+  // Z(−k) lies in column W − kx > W/2, never overwritten, except for the columns kx = 0 and W/2, which are
+  // their own mirror: there ky and H − ky are done together.
+  const P = buf.subarray(0, 2 * hw * H);
+  const cross = (p: number, q: number) => {
+    const zr = buf[p], zi = buf[p + 1], mr = buf[q], mi = buf[q + 1];
+    const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
+    const br = (zi + mi) / 2, bi = (mr - zr) / 2;
     const re = br * ar - bi * ai, im = br * ai + bi * ar;
     const mag = Math.sqrt(re * re + im * im);
-    P[i] = mag > 0 ? re / mag : 0;
-    P[i + 1] = mag > 0 ? im / mag : 0;
+    return mag > 0 ? [re / mag, im / mag] : [0, 0];
+  };
+  for (const kx of [0, W / 2])
+    for (let ky = 0; ky <= H / 2; ky++) {
+      const my = (H - ky) % H;
+      const p = 2 * (kx * H + ky), q = 2 * (kx * H + my);
+      const u = cross(p, q), v = cross(q, p);
+      P[p] = u[0];
+      P[p + 1] = u[1];
+      P[q] = v[0];
+      P[q + 1] = v[1];
+    }
+  for (let kx = 1; kx < W / 2; kx++) {
+    const mx = W - kx;
+    for (let ky = 0; ky < H; ky++) {
+      const my = (H - ky) % H;
+      const p = 2 * (kx * H + ky), q = 2 * (mx * H + my);
+      const zr = buf[p], zi = buf[p + 1], mr = buf[q], mi = buf[q + 1];
+      const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
+      const br = (zi + mi) / 2, bi = (mr - zr) / 2;
+      const re = br * ar - bi * ai, im = br * ai + bi * ar;
+      const mag = Math.sqrt(re * re + im * im);
+      P[p] = mag > 0 ? re / mag : 0;
+      P[p + 1] = mag > 0 ? im / mag : 0;
+    }
   }
-  const c = inverseRealFft2d(P, W, H);
-  let k = 0;
-  for (let i = 1; i < c.length; i++) if (c[i] > c[k]) k = i;
+  // its inverse c(y, x), scanned for the largest value row by row (the image is not kept)
+  let best = -Infinity, k = 0;
+  inverseRealFft2dRows(P, W, H, buf.subarray(2 * hw * H), (y, z, two) => {
+    const o = y * W;
+    for (let x = 0; x < W; x++)
+      if (z[2 * x] > best) {
+        best = z[2 * x];
+        k = o + x;
+      }
+    if (two)
+      for (let x = 0; x < W; x++)
+        if (z[2 * x + 1] > best) {
+          best = z[2 * x + 1];
+          k = o + W + x;
+        }
+  });
   const iy = Math.floor(k / W), ix = k % W;
   let u = iy > H / 2 ? iy - H : iy, v = ix > W / 2 ? ix - W : ix;
-  let peak = c[k];
+  let peak = best;
   if (upsample > 1) {
     // nested grids of 7 × 7 points; steps 1/4, 1/20, 1/100 for the default (each ≥ 5× finer, ending at 1/upsample)
     const steps: number[] = [];

@@ -5,6 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import {
+  alignAndUnmix,
   alignChannel,
   bleedThroughSlope,
   pooledBleedThroughSlope,
@@ -194,6 +195,36 @@ describe('unmixChannels and bleedThroughSlope', () => {
     expect(Math.abs(pooled.slope! - 0.2)).toBeLessThan(0.005);
     expect(Math.abs(bleedThroughSlope(Float64Array.from([...c1.labelled, ...c2.labelled]), Float64Array.from([...c1.seen, ...c2.seen]))! - 0.2)).toBeGreaterThan(0.05);
     expect(pooledBleedThroughSlope([{ labelled: new Uint16Array(5).fill(2), seen: new Uint16Array(5) }])).toEqual({ slope: null, n: 0 });
+  });
+});
+
+describe('alignAndUnmix (alignment and unmixing in one pass)', () => {
+  it('equals alignChannel then unmixChannels bit for bit: sub-pixel, integer and out-of-image shifts, NaN, stacks', () => {
+    const r = rng(21);
+    for (let t = 0; t < 40; t++) {
+      const w = 1 + Math.floor(r() * 30), h = 1 + Math.floor(r() * 30), z = 1 + Math.floor(r() * 3);
+      const dx = t % 5 === 0 ? Math.round((r() - 0.5) * 10) : (r() - 0.5) * (t % 7 === 0 ? 80 : 12), dy = (r() - 0.5) * 12;
+      const float = t % 2 === 0;
+      const o1 = float ? new Float32Array(w * h * z) : new Uint16Array(w * h * z), o2 = float ? new Float64Array(w * h * z) : new Uint16Array(w * h * z);
+      for (let i = 0; i < o1.length; i++) {
+        o1[i] = 1000 * r();
+        o2[i] = 1000 * r();
+        if (float && r() < 0.05) o2[i] = NaN;
+        if (float && r() < 0.05) o1[i] = NaN;
+      }
+      const a21 = 0.5 * r(), a12 = t % 4 === 0 ? 0 : 0.5 * r();
+      const two = unmixChannels(o1, alignChannel(o2, w, h, dx, dy, z), a21, a12);
+      const one = alignAndUnmix(o1, o2, w, h, dx, dy, a21, a12, z);
+      const differ = [];
+      for (let i = 0; i < o1.length; i++) if (!Object.is(one.t1[i], two.t1[i]) || !Object.is(one.t2[i], two.t2[i])) differ.push(i);
+      expect(differ, `case ${t}: pixels that differ`).toEqual([]);
+    }
+  });
+  it('refuses bad shifts, coefficients and sizes, quoting them', () => {
+    const c = new Uint16Array(4);
+    expect(() => alignAndUnmix(c, c, 2, 2, Infinity, 0, 0, 0)).toThrow(/dx .* received Infinity/);
+    expect(() => alignAndUnmix(c, c, 2, 2, 0, 0, 1, 0)).toThrow(/a21 .* received 1/);
+    expect(() => alignAndUnmix(c, new Uint16Array(3), 2, 2, 0, 0, 0, 0)).toThrow(/received 3|has 3 values/);
   });
 });
 
