@@ -5,8 +5,9 @@
  *    30:79–116, doi:10.1023/A:1008045108935), computed on the region's bounding box with the real image
  *    around it, after subtracting the region's lowest value (so a flat region gives exactly 0).
  * 2. Noise: σ̂ = 1.4826 · MAD of the response over the region's pixels (median absolute deviation from the
- *    median; the factor makes it consistent for Gaussian noise — Hampel 1974, "The influence curve and its
- *    role in robust estimation", J. Am. Stat. Assoc. 69:383–393, doi:10.1080/01621459.1974.10482962).
+ *    median, exact, robust-scale.ts; the factor makes it consistent for Gaussian noise — Hampel 1974, "The
+ *    influence curve and its role in robust estimation", J. Am. Stat. Assoc. 69:383–393,
+ *    doi:10.1080/01621459.1974.10482962).
  * 3. Candidates: region pixels whose response is strictly greater than all 8 neighbours (3×3; neighbours
  *    outside the image do not exist, neighbours outside the region do count) and strictly greater than
  *    k · σ̂. With σ̂ = 0 (more than half the region has one response, e.g. a flat or all-saturated region)
@@ -31,6 +32,7 @@
  */
 import { laplacianOfGaussian, type PixelBox } from './gaussian';
 import { PointGrid } from './pairing';
+import { medianAndMad } from './robust-scale';
 import type { ChannelArray } from './types';
 
 export const SPOT_DEFAULTS = { sigma: 1.5, k: 5 } as const;
@@ -113,64 +115,6 @@ export function regionIndexList(region: Uint8Array | ArrayLike<number> | null, n
 }
 
 /**
- * Median of Float32 values given as their bit patterns (an Int32Array view of the Float32Array), exact: the
- * mean of the two middle values for an even count. The bits are mapped to keys that sort as the numbers do
- * (sign bit set: all bits flipped; otherwise the sign bit set); one counting pass over the top 16 key bits
- * finds the bucket of each middle rank, a second over the low 16 bits of that bucket's keys the exact key —
- * the order statistic itself, not an estimate (counting sort by digits; Knuth, The Art of Computer
- * Programming vol. 3, 1998, §5.2.5). Two linear passes, the values untouched.
- */
-export function medianOfFloat32Bits(bits: Int32Array): number {
-  const n = bits.length;
-  if (n === 0) throw new RangeError('median of no values');
-  const kHi = n >> 1, kLo = n % 2 ? kHi : kHi - 1;
-  // key = u XOR (all ones for a negative value, else the sign bit), without a branch
-  const hist = new Int32Array(65536);
-  for (let i = 0; i < n; i++) {
-    const u = bits[i];
-    const b = (u ^ ((u >> 31) | -0x80000000)) >>> 16;
-    hist[b] = (hist[b] + 1) | 0;
-  }
-  // bucket and rank within it of kLo and kHi
-  let bLo = -1, bHi = -1, rLo = 0, rHi = 0;
-  for (let b = 0, below = 0; b < 65536; b++) {
-    const c = hist[b];
-    if (bLo < 0 && kLo < below + c) {
-      bLo = b;
-      rLo = kLo - below;
-    }
-    if (kHi < below + c) {
-      bHi = b;
-      rHi = kHi - below;
-      break;
-    }
-    below += c;
-  }
-  const lowLo = new Int32Array(65536), lowHi = bLo === bHi ? lowLo : new Int32Array(65536);
-  for (let i = 0; i < n; i++) {
-    const u = bits[i];
-    const key = u ^ ((u >> 31) | -0x80000000);
-    const b = key >>> 16;
-    if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
-    else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
-  }
-  const value = (bucket: number, low: Int32Array, r: number) => {
-    let l = 0;
-    for (let below = 0; ; l++) {
-      below += low[l];
-      if (r < below) break;
-    }
-    const key = (bucket << 16) | l;
-    KEY_BITS[0] = key < 0 ? key ^ -0x80000000 : ~key;
-    return KEY_FLOAT[0];
-  };
-  const hi = value(bHi, lowHi, rHi);
-  return kLo === kHi ? hi : (value(bLo, lowLo, rLo) + hi) / 2;
-}
-const KEY_FLOAT = new Float32Array(1);
-const KEY_BITS = new Int32Array(KEY_FLOAT.buffer);
-
-/**
  * @param region mask (non-zero inside, full size), linear pixel indices, or null for the whole image
  * @returns null when the region is empty or its bounding box is smaller than the centroid window
  */
@@ -233,10 +177,7 @@ export function detectSpots(
     vals = new Float32Array(n);
     for (let t = 0; t < n; t++) vals[t] = resp[at(idx[t])];
   }
-  const med = medianOfFloat32Bits(new Int32Array(vals.buffer, vals.byteOffset, n));
-  const dev = idx === null ? new Float32Array(n) : vals;
-  for (let t = 0; t < n; t++) dev[t] = Math.abs(vals[t] - med);
-  const noise = MAD_SCALE * medianOfFloat32Bits(new Int32Array(dev.buffer, dev.byteOffset, n));
+  const noise = MAD_SCALE * medianAndMad(vals).mad;
   const threshold = k * noise;
   const result: SpotDetection = { spots: [], noise, threshold, window: w, regionPixels: n };
   if (!(noise > 0)) return result;
