@@ -5,8 +5,9 @@
  *    30:79–116, doi:10.1023/A:1008045108935), computed on the region's bounding box with the real image
  *    around it, after subtracting the region's lowest value (so a flat region gives exactly 0).
  * 2. Noise: σ̂ = 1.4826 · MAD of the response over the region's pixels (median absolute deviation from the
- *    median; the factor makes it consistent for Gaussian noise — Hampel 1974, "The influence curve and its
- *    role in robust estimation", J. Am. Stat. Assoc. 69:383–393, doi:10.1080/01621459.1974.10482962).
+ *    median, exact, robust-scale.ts; the factor makes it consistent for Gaussian noise — Hampel 1974, "The
+ *    influence curve and its role in robust estimation", J. Am. Stat. Assoc. 69:383–393,
+ *    doi:10.1080/01621459.1974.10482962).
  * 3. Candidates: region pixels whose response is strictly greater than all 8 neighbours (3×3; neighbours
  *    outside the image do not exist, neighbours outside the region do count) and strictly greater than
  *    k · σ̂. With σ̂ = 0 (more than half the region has one response, e.g. a flat or all-saturated region)
@@ -31,6 +32,7 @@
  */
 import { laplacianOfGaussian, type PixelBox } from './gaussian';
 import { PointGrid } from './pairing';
+import { medianAndMad } from './robust-scale';
 import type { ChannelArray } from './types';
 
 export const SPOT_DEFAULTS = { sigma: 1.5, k: 5 } as const;
@@ -113,64 +115,6 @@ export function regionIndexList(region: Uint8Array | ArrayLike<number> | null, n
 }
 
 /**
- * Median of Float32 values given as their bit patterns (an Int32Array view of the Float32Array), exact: the
- * mean of the two middle values for an even count. The bits are mapped to keys that sort as the numbers do
- * (sign bit set: all bits flipped; otherwise the sign bit set); one counting pass over the top 16 key bits
- * finds the bucket of each middle rank, a second over the low 16 bits of that bucket's keys the exact key —
- * the order statistic itself, not an estimate (counting sort by digits; Knuth, The Art of Computer
- * Programming vol. 3, 1998, §5.2.5). Two linear passes, the values untouched.
- */
-export function medianOfFloat32Bits(bits: Int32Array): number {
-  const n = bits.length;
-  if (n === 0) throw new RangeError('median of no values');
-  const kHi = n >> 1, kLo = n % 2 ? kHi : kHi - 1;
-  // key = u XOR (all ones for a negative value, else the sign bit), without a branch
-  const hist = new Int32Array(65536);
-  for (let i = 0; i < n; i++) {
-    const u = bits[i];
-    const b = (u ^ ((u >> 31) | -0x80000000)) >>> 16;
-    hist[b] = (hist[b] + 1) | 0;
-  }
-  // bucket and rank within it of kLo and kHi
-  let bLo = -1, bHi = -1, rLo = 0, rHi = 0;
-  for (let b = 0, below = 0; b < 65536; b++) {
-    const c = hist[b];
-    if (bLo < 0 && kLo < below + c) {
-      bLo = b;
-      rLo = kLo - below;
-    }
-    if (kHi < below + c) {
-      bHi = b;
-      rHi = kHi - below;
-      break;
-    }
-    below += c;
-  }
-  const lowLo = new Int32Array(65536), lowHi = bLo === bHi ? lowLo : new Int32Array(65536);
-  for (let i = 0; i < n; i++) {
-    const u = bits[i];
-    const key = u ^ ((u >> 31) | -0x80000000);
-    const b = key >>> 16;
-    if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
-    else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
-  }
-  const value = (bucket: number, low: Int32Array, r: number) => {
-    let l = 0;
-    for (let below = 0; ; l++) {
-      below += low[l];
-      if (r < below) break;
-    }
-    const key = (bucket << 16) | l;
-    KEY_BITS[0] = key < 0 ? key ^ -0x80000000 : ~key;
-    return KEY_FLOAT[0];
-  };
-  const hi = value(bHi, lowHi, rHi);
-  return kLo === kHi ? hi : (value(bLo, lowLo, rLo) + hi) / 2;
-}
-const KEY_FLOAT = new Float32Array(1);
-const KEY_BITS = new Int32Array(KEY_FLOAT.buffer);
-
-/**
  * @param region mask (non-zero inside, full size), linear pixel indices, or null for the whole image
  * @returns null when the region is empty or its bounding box is smaller than the centroid window
  */
@@ -233,10 +177,7 @@ export function detectSpots(
     vals = new Float32Array(n);
     for (let t = 0; t < n; t++) vals[t] = resp[at(idx[t])];
   }
-  const med = medianOfFloat32Bits(new Int32Array(vals.buffer, vals.byteOffset, n));
-  const dev = idx === null ? new Float32Array(n) : vals;
-  for (let t = 0; t < n; t++) dev[t] = Math.abs(vals[t] - med);
-  const noise = MAD_SCALE * medianOfFloat32Bits(new Int32Array(dev.buffer, dev.byteOffset, n));
+  const noise = MAD_SCALE * medianAndMad(vals).mad;
   const threshold = k * noise;
   const result: SpotDetection = { spots: [], noise, threshold, window: w, regionPixels: n };
   if (!(noise > 0)) return result;
@@ -269,8 +210,9 @@ export function detectSpots(
       if (resp[p] > threshold && isMax(p, bxi, byi)) cand.push(i);
     }
   const refined: Refined[] = [];
+  const scratch = centroidScratch(w);
   for (const i of cand) {
-    const s = refineSpot(data, width, height, i % width, Math.floor(i / width), sigma, w, null);
+    const s = refineSpot(data, width, height, i % width, Math.floor(i / width), sigma, w, null, scratch);
     if (s) {
       s.response = resp[at(i)];
       refined.push(s);
@@ -305,6 +247,7 @@ export function detectSpots(
  */
 function deblend(data: ChannelArray, width: number, height: number, spots: Refined[], sigma: number, w: number): Spot[] {
   const reach = w * Math.SQRT2 + 4 * sigma;
+  const scratch = centroidScratch(w);
   const grid = new PointGrid(spots.map((s) => s.x), spots.map((s) => s.y), reach);
   const near: number[][] = spots.map((s, a) => {
     const out: number[] = [];
@@ -322,7 +265,7 @@ function deblend(data: ChannelArray, width: number, height: number, spots: Refin
       cur = prev.map((s, a) => {
         if (s === null || near[a].length === 0) return s;
         const others = near[a].map((b) => prev[b]).filter((o): o is Refined => o !== null);
-        const r = refineSpot(data, width, height, s.px, s.py, sigma, w, others);
+        const r = refineSpot(data, width, height, s.px, s.py, sigma, w, others, scratch);
         if (r === null) {
           moved = Infinity;
           return null;
@@ -337,19 +280,46 @@ function deblend(data: ChannelArray, width: number, height: number, spots: Refin
   return cur.filter((s): s is Refined => s !== null).map((s) => ({ x: s.x, y: s.y, peak: s.peak, integrated: s.integrated, response: s.response }));
 }
 
+/** working arrays of the centroid, sized for one window (2w + 1)², shared by the calls of one detection */
+interface CentroidScratch {
+  vals: Float64Array;
+  ring: Float64Array;
+  ex: Float64Array;
+}
+function centroidScratch(w: number): CentroidScratch {
+  const side = 2 * w + 1;
+  return { vals: new Float64Array(side * side), ring: new Float64Array(4 * side), ex: new Float64Array(side) };
+}
+
+/** ascending sort of a[0..m): insertion sort for the short rings of the usual windows, else the native sort */
+function sortPrefix(a: Float64Array, m: number): void {
+  if (m > 64) {
+    a.subarray(0, m).sort();
+    return;
+  }
+  for (let i = 1; i < m; i++) {
+    const v = a[i];
+    let j = i - 1;
+    while (j >= 0 && a[j] > v) {
+      a[j + 1] = a[j];
+      j--;
+    }
+    a[j + 1] = v;
+  }
+}
+
 /**
  * Gaussian-mask centroid around peak pixel (px, py), with the models of `others` subtracted; null when
  * there is no signal above background or the centre leaves the peak pixel's 3×3 neighbourhood.
  */
-function refineSpot(data: ChannelArray, width: number, height: number, px: number, py: number, sigma: number, w: number, others: Refined[] | null): Refined | null {
+function refineSpot(data: ChannelArray, width: number, height: number, px: number, py: number, sigma: number, w: number, others: Refined[] | null, scratch: CentroidScratch): Refined | null {
   const x0 = Math.max(0, px - w), x1 = Math.min(width - 1, px + w);
   const y0 = Math.max(0, py - w), y1 = Math.min(height - 1, py + w);
   const inv = 1 / (2 * sigma * sigma);
-  const ww = x1 - x0 + 1;
-  const vals = new Float64Array(ww * (y1 - y0 + 1));
-  for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++) vals[(y - y0) * ww + (x - x0)] = data[y * width + x];
+  const ww = x1 - x0 + 1, wh = y1 - y0 + 1, nv = ww * wh;
+  const { vals, ring, ex } = scratch;
+  for (let y = y0, t = 0; y <= y1; y++) for (let x = x0, q = y * width + x0; x <= x1; x++, q++, t++) vals[t] = data[q];
   // neighbours' models, subtracted in turn; each Gaussian separable (one exp per window column and row)
-  const ex = new Float64Array(ww);
   if (others)
     for (const o of others) {
       for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-((x + 0.5 - o.x) ** 2) * inv);
@@ -359,28 +329,31 @@ function refineSpot(data: ChannelArray, width: number, height: number, px: numbe
       }
     }
   // local background: median of the window's outer ring (of the raw pixels when no neighbours are modelled)
-  const all = new Float64Array(vals.length);
   let m = 0;
-  for (let y = y0; y <= y1; y++)
-    for (let x = x0; x <= x1; x++) if (y === y0 || y === y1 || x === x0 || x === x1) all[m++] = vals[(y - y0) * ww + (x - x0)];
-  // typed-array sort: numeric order, as a comparator sort of the same finite values
-  const ring = all.subarray(0, m).sort();
+  for (let x = 0; x < ww; x++) ring[m++] = vals[x];
+  if (wh > 1) for (let x = 0, t = (wh - 1) * ww; x < ww; x++, t++) ring[m++] = vals[t];
+  for (let y = 1; y < wh - 1; y++) {
+    ring[m++] = vals[y * ww];
+    if (ww > 1) ring[m++] = vals[y * ww + ww - 1];
+  }
+  // numeric order, as a comparator sort of the same finite values
+  sortPrefix(ring, m);
   const b = m % 2 ? ring[(m - 1) / 2] : (ring[m / 2 - 1] + ring[m / 2]) / 2;
   let cx = px + 0.5, cy = py + 0.5;
   let integrated = 0;
-  for (let t = 0; t < vals.length; t++) integrated += vals[t] - b;
+  for (let t = 0; t < nv; t++) integrated += vals[t] - b;
   let amplitude = 0;
   // the Gaussian weight is separable, exp(−(dx² + dy²)/2σ²) = exp(−dx²/2σ²)·exp(−dy²/2σ²): one exponential
   // per window column and row instead of one per pixel
   for (let it = 0; it < 50; it++) {
     let s = 0, sx = 0, sy = 0, gg = 0;
     for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-(x + 0.5 - cx) * (x + 0.5 - cx) * inv);
-    for (let y = y0; y <= y1; y++) {
+    for (let y = y0, t = 0; y <= y1; y++) {
       const yc = y + 0.5, ey = Math.exp(-(yc - cy) * (yc - cy) * inv);
-      for (let x = x0; x <= x1; x++) {
+      for (let x = x0, e = 0; x <= x1; x++, e++, t++) {
         const xc = x + 0.5;
-        const g = ex[x - x0] * ey;
-        const wgt = (vals[(y - y0) * ww + (x - x0)] - b) * g;
+        const g = ex[e] * ey;
+        const wgt = (vals[t] - b) * g;
         s += wgt;
         sx += wgt * xc;
         sy += wgt * yc;

@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeObjects, detectSpots, gaussianFilter, gaussianKernels, laplacianOfGaussian, Xoshiro128 } from '../../shared/analysis/index';
-import { medianOfFloat32Bits } from '../../shared/analysis/spots';
+import { medianAndMad, medianOfFloat32Bits } from '../../shared/analysis/robust-scale';
 
 function sortedMedian(a: Float32Array): number {
   const s = Float64Array.from(a).sort();
@@ -43,6 +43,50 @@ describe('exact median over the Float32 bits', () => {
 
   it('refuses no values', () => {
     expect(() => medianOfFloat32Bits(new Int32Array(0))).toThrow(/no values/);
+  });
+});
+
+describe('exact median and MAD', () => {
+  const rng = new Xoshiro128(12);
+  const normal = () => Math.sqrt(-2 * Math.log(1 - rng.nextFloat())) * Math.cos(2 * Math.PI * rng.nextFloat());
+  /** the definition: median of the Float32 roundings of |v − median| */
+  const sortedMad = (a: Float32Array) => {
+    const m = sortedMedian(a);
+    return sortedMedian(Float32Array.from(a, (v) => Math.abs(v - m)));
+  };
+
+  it('equals the sorted median and MAD on noise-like values (the one-pass bracket when centred near 0)', () => {
+    for (const n of [1, 2, 3, 10, 1001, 20000, 65537]) {
+      for (const [scale, shift] of [[1, 0], [3e4, 0], [0.01, 5], [200, -1e3], [1, 0.3]]) {
+        const a = Float32Array.from({ length: n }, () => shift + scale * normal());
+        const r = medianAndMad(a);
+        expect(r.median).toBe(sortedMedian(a));
+        expect(r.mad).toBe(sortedMad(a));
+        // the buckets are relative to the values: spread well above the distance from 0 resolves them
+        if (n >= 1001 && Math.abs(shift) <= scale) expect(r.madPath).toBe('bracket');
+      }
+    }
+  });
+
+  it('many equal values, a flat region and two spikes take the counting path, with the same definition', () => {
+    const cases = [
+      new Float32Array(5000).fill(7),
+      Float32Array.from({ length: 5000 }, (_, i) => (i % 3 === 0 ? 1 : 0)),
+      Float32Array.from({ length: 4000 }, (_, i) => (i % 2 ? 1e6 : -1e6)),
+      Float32Array.from({ length: 3001 }, () => 1000 + 1e-3 * normal()),
+      Float32Array.from([-Infinity, 2, 3, Infinity, 4, 5]),
+    ];
+    for (const a of cases) {
+      const r = medianAndMad(a);
+      expect(r.median).toBe(sortedMedian(a));
+      expect(r.mad).toBe(sortedMad(a));
+    }
+    expect(medianAndMad(cases[0]).madPath).toBe('digits');
+    expect(medianAndMad(cases[0]).mad).toBe(0);
+  });
+
+  it('refuses no values', () => {
+    expect(() => medianAndMad(new Float32Array(0))).toThrow(/no values/);
   });
 });
 

@@ -7,6 +7,10 @@
  * the same work on one thread as the baseline does here; the baseline is timed on its second pass (warm JIT, as
  * the pool thread is by the cold run).
  *
+ * Spots on vs off: the same fields run (warm) with the demo recipe and with a copy of it whose objects section is
+ * on (defaults: σ 1.5 px, k 5, d 2 px, 999 placements); the ratio of the two run wall times is printed, and the
+ * CPU time of this process for the same fields' decode + engine with the section on vs off.
+ *
  *   BENCH=runs npm run bench
  */
 import fs from 'node:fs';
@@ -24,6 +28,7 @@ async function main() {
   const { loadJobPixels, computeField } = await import('../../server/runs/compute.js');
   const { runs, studies, recipes, users, cells, fields } = await import('../../server/db/schema.js');
   const { eq, and } = await import('drizzle-orm');
+  const { DEFAULT_OBJECTS_SETTING } = await import('../../shared/schemas/recipes.js');
 
   const dataDir = fs.mkdtempSync(path.join(os.tmpdir(), 'syntopy-bench-runs-'));
   const env = loadEnv({ ...process.env, DATA_DIR: dataDir, SEED_DEMO: 'never', WORKERS: '1' } as NodeJS.ProcessEnv);
@@ -34,10 +39,16 @@ async function main() {
     const recipe = ctx.db.select().from(recipes).where(and(eq(recipes.name, DEMO_RECIPE), eq(recipes.status, 'approved'))).get()!;
     const user = ctx.db.select().from(users).where(eq(users.email, 'microscopist@demo.test')).get()!;
 
-    async function timedRun(kind: 'study' | 'field', id: number) {
+    // the demo recipe with its objects section on (inserted approved, as a reviewed version would be)
+    const spotsRecipe = ctx.db
+      .insert(recipes)
+      .values({ name: `${recipe.name} + spots`, version: 1, status: 'approved', settings: { ...recipe.settings, objects: { ...DEFAULT_OBJECTS_SETTING, enabled: true } }, description: 'bench' })
+      .returning()
+      .get();
+    async function timedRun(kind: 'study' | 'field', id: number, withRecipe = recipe) {
       const scope = resolveScope(ctx.db, kind, id);
       const t0 = performance.now();
-      const run = await createRun(ctx, { recipe, scope: { kind, id, ...scope }, userId: user.id });
+      const run = await createRun(ctx, { recipe: withRecipe, scope: { kind, id, ...scope }, userId: user.id });
       for (;;) {
         const r = ctx.db.select().from(runs).where(eq(runs.id, run.id)).get()!;
         if (r.status !== 'queued' && r.status !== 'running') {
@@ -49,18 +60,36 @@ async function main() {
       return { ms: performance.now() - t0, runId: run.id, fieldIds: scope.fieldIds };
     }
     async function baseline(runId: number, fieldIds: number[]) {
-      let decode = 0, engine = 0, cellsMeasured = 0;
+      let decode = 0, engine = 0, cellsMeasured = 0, engineCpu = 0;
       for (const fieldId of fieldIds) {
         const job = buildJob(ctx.db, runId, fieldId);
         const t0 = performance.now();
         const px = await loadJobPixels(ctx.store, job);
         const t1 = performance.now();
+        const c0 = process.cpuUsage();
         cellsMeasured += computeField(job, px).length;
+        const c = process.cpuUsage(c0);
+        engineCpu += (c.user + c.system) / 1000;
         engine += performance.now() - t1;
         decode += t1 - t0;
       }
-      return { decode, engine, cellsMeasured };
+      return { decode, engine, cellsMeasured, engineCpu };
     }
+    /** the same fields with Spots off and on: warm runs (best of two) and this process's engine CPU time */
+    const spotsCost = async (name: string, kind: 'study' | 'field', id: number) => {
+      await timedRun(kind, id, spotsRecipe); // cold: warms the pool thread for the spots code
+      const off = Math.min((await timedRun(kind, id)).ms, (await timedRun(kind, id)).ms);
+      const onRuns = [await timedRun(kind, id, spotsRecipe), await timedRun(kind, id, spotsRecipe)];
+      const on = Math.min(onRuns[0].ms, onRuns[1].ms);
+      const offRun = await timedRun(kind, id);
+      await baseline(onRuns[0].runId, onRuns[0].fieldIds);
+      const bOn = await baseline(onRuns[0].runId, onRuns[0].fieldIds);
+      const bOff = await baseline(offRun.runId, offRun.fieldIds);
+      console.log(
+        `${name}, Spots on vs off: run wall ${on.toFixed(0)} vs ${off.toFixed(0)} ms (${(on / off).toFixed(2)}×); ` +
+          `engine CPU ${bOn.engineCpu.toFixed(0)} vs ${bOff.engineCpu.toFixed(0)} ms (${(bOn.engineCpu / bOff.engineCpu).toFixed(2)}×)`,
+      );
+    };
     const report = async (name: string, kind: 'study' | 'field', id: number) => {
       const cold = await timedRun(kind, id);
       const warm = await timedRun(kind, id);
@@ -74,6 +103,7 @@ async function main() {
     };
 
     await report('demo study', 'study', study.id);
+    await spotsCost('demo study', 'study', study.id);
 
     // one 2048² field with 60 cells: the demo's first field image is replaced by a 2048² one of the seed's kind
     const { tiffPages, twoChannels } = await import('../security/tiff.js');
@@ -96,6 +126,7 @@ async function main() {
       ins.run(field.id, `Cell ${i + 1}`, JSON.stringify({ kind: 'ellipse', cx: x + 70, cy: y + 90, rx: 70, ry: 90 }), Math.round(Math.PI * 70 * 90));
     }
     await report('2048² field, 60 cells', 'field', field.id);
+    await spotsCost('2048² field, 60 cells', 'field', field.id);
   } finally {
     await closeContext(ctx);
     fs.rmSync(dataDir, { recursive: true, force: true });
