@@ -32,6 +32,8 @@ export interface GridIndex {
   saturated: Uint8Array;
   /** NaN where NULL (no measurement, or the measure undefined) */
   cols: Record<NumericColumn | 'provisional', Float64Array>;
+  /** id of the channel calibration the measurement applied (provenance), NaN when none (Compare warns on a mix) */
+  calibration: Float64Array;
   /** per field index */
   fieldId: Int32Array;
   coverslipId: Int32Array;
@@ -45,6 +47,9 @@ export interface GridIndex {
   sorts: Map<string, Int32Array>;
   filtered: Map<string, Int32Array>;
 }
+
+/** The measurement columns read, in the order of `cols` then `calibration`. */
+const MEASUREMENT_SELECT = [...NUMERIC_COLUMNS.map((k) => COLUMN_SQL[k]), 'm.provisional', "json_extract(m.provenance, '$.calibration.id')"].join(', ');
 
 /** What is read from the database (everything but the lookups and caches built over it). */
 export type GridData = Omit<GridIndex, 'rowOf' | 'sorts' | 'filtered'>;
@@ -121,9 +126,12 @@ export function readGridData(db: Database.Database, studyId: number, src: Resolv
     names.push(name);
   }
   const n = cellIds.length;
-  const cellId = Int32Array.from(cellIds);
-  const field = Int32Array.from(fieldOf);
-  const excluded = Uint8Array.from(excl);
+  const cellId = shared(Int32Array, n);
+  cellId.set(cellIds);
+  const field = shared(Int32Array, n);
+  field.set(fieldOf);
+  const excluded = shared(Uint8Array, n);
+  excluded.set(excl);
   const rowOf = lookup(cellId);
 
   // names: rank among distinct names in SQLite's BINARY order (UTF-8 bytes)
@@ -136,13 +144,14 @@ export function readGridData(db: Database.Database, studyId: number, src: Resolv
 
   // measurements of the source: for each cell the highest measurement id among the source's runs
   const colNames = [...NUMERIC_COLUMNS, 'provisional'] as const;
-  const cols = Object.fromEntries(colNames.map((k) => [k, new Float64Array(n).fill(NaN)])) as GridIndex['cols'];
-  const measured = new Uint8Array(n);
+  const cols = Object.fromEntries(colNames.map((k) => [k, shared(Float64Array, n).fill(NaN)])) as GridIndex['cols'];
+  const measured = shared(Uint8Array, n);
+  const calibration = shared(Float64Array, n).fill(NaN);
   if (src.runIds.length) {
-    const sel = [...NUMERIC_COLUMNS.map((k) => COLUMN_SQL[k]), 'm.provisional'].join(', ');
+    const sel = MEASUREMENT_SELECT;
     const inScope = scoped.length ? `AND m.field_id IN (${scoped.map(() => '?').join(', ')})` : '';
     const stmt = db.prepare(`SELECT m.cell_id, ${sel} FROM measurements m WHERE m.run_id IN (${src.runIds.map(() => '?').join(', ')}) ${inScope} ORDER BY m.id`).raw();
-    const arrays = colNames.map((k) => cols[k]);
+    const arrays = [...colNames.map((k) => cols[k]), calibration];
     for (const row of stmt.iterate(...src.runIds, ...scoped) as Iterable<(number | null)[]>) {
       const r = rowOf(row[0] as number);
       if (r < 0) continue;
@@ -153,11 +162,19 @@ export function readGridData(db: Database.Database, studyId: number, src: Resolv
       }
     }
   }
-  const saturated = new Uint8Array(n);
+  const saturated = shared(Uint8Array, n);
   const s1 = cols.saturatedFraction1, s2 = cols.saturatedFraction2;
   for (let r = 0; r < n; r++) saturated[r] = s1[r] > 0 || s2[r] > 0 ? 1 : 0;
 
-  return { n, cellId, field, excluded, measured, saturated, cols, distinctNames: distinct, fieldId, coverslipId, conditionId, fieldRank: { condition, coverslip, field: fieldOrder }, nameRank };
+  return { n, cellId, field, excluded, measured, saturated, cols, calibration, distinctNames: distinct, fieldId, coverslipId, conditionId, fieldRank: { condition, coverslip, field: fieldOrder }, nameRank };
+}
+
+/**
+ * A typed array of n elements on a SharedArrayBuffer: the per-cell columns are shared, not copied, with the
+ * threads that read them (Compare's, compare-worker.ts); only this thread writes them.
+ */
+function shared<T extends Int32Array | Uint8Array | Float64Array>(C: { new (b: SharedArrayBuffer): T; BYTES_PER_ELEMENT: number }, n: number): T {
+  return new C(new SharedArrayBuffer(n * C.BYTES_PER_ELEMENT));
 }
 
 /** cell id → row (rows are in id order): a dense table when the ids are close together, else a map */
@@ -180,10 +197,10 @@ export function gridIndexOf(data: GridData): GridIndex {
   return { ...data, rowOf: lookup(data.cellId), sorts: new Map(), filtered: new Map() };
 }
 
-/** The typed arrays of the data, to hand them between threads without copying. */
+/** The typed arrays of the data not on shared memory, to hand them between threads without copying. */
 export function gridDataBuffers(data: GridData): ArrayBuffer[] {
-  const arrays = [data.cellId, data.field, data.excluded, data.measured, data.saturated, data.fieldId, data.coverslipId, data.conditionId, data.nameRank, ...Object.values(data.fieldRank), ...Object.values(data.cols)];
-  return [...new Set(arrays.map((a) => a.buffer as ArrayBuffer))];
+  const arrays = [data.cellId, data.field, data.excluded, data.measured, data.saturated, data.fieldId, data.coverslipId, data.conditionId, data.nameRank, ...Object.values(data.fieldRank), ...Object.values(data.cols), data.calibration];
+  return [...new Set(arrays.map((a) => a.buffer).filter((b): b is ArrayBuffer => b instanceof ArrayBuffer))];
 }
 
 /** Reads the index of one study and source on this thread. */
@@ -201,14 +218,14 @@ export function appendMeasurements(db: Database.Database, ix: GridIndex, src: Re
   if (!src.runIds.length) return true;
   const scoped = fieldIds?.length ? fieldIds : [];
   const inScope = scoped.length ? `AND m.field_id IN (${scoped.map(() => '?').join(', ')})` : '';
-  const sel = [...NUMERIC_COLUMNS.map((k) => COLUMN_SQL[k]), 'm.provisional'].join(', ');
+  const sel = MEASUREMENT_SELECT;
   const rows = db
     .prepare(`SELECT m.cell_id, ${sel} FROM measurements m WHERE m.id > ? AND m.run_id IN (${src.runIds.map(() => '?').join(', ')}) ${inScope} ORDER BY m.id`)
     .raw()
     .all(afterId, ...src.runIds, ...scoped) as (number | null)[][];
   const at = rows.map((row) => ix.rowOf(row[0] as number));
   if (at.some((r) => r < 0)) return false;
-  const arrays = [...NUMERIC_COLUMNS, 'provisional' as const].map((k) => ix.cols[k]);
+  const arrays = [...[...NUMERIC_COLUMNS, 'provisional' as const].map((k) => ix.cols[k]), ix.calibration];
   rows.forEach((row, i) => {
     const r = at[i];
     ix.measured[r] = 1;
