@@ -47,6 +47,36 @@ const EnvSchema = z.object({
 
 export type Env = z.infer<typeof EnvSchema> & { SESSION_SECRET: string; DATA_DIR: string };
 
+/**
+ * `npm run worker` (server/runs/worker-main.ts): a stateless run worker never opens the database, so it reads
+ * only these. WORKER_LOCK_MS is how long a worker holds a field job without renewing its lock: BullMQ renews it
+ * every half of that while the process is responsive, and when a worker dies its job goes to another worker
+ * after at most about this long (the stalled-job check runs as often). Computing a field blocks the process, so
+ * the lock must outlast the slowest field (default 5 minutes), else a slow field is computed twice (the second
+ * result is ignored: nothing is counted twice, but the time is spent).
+ */
+const WorkerEnvSchema = z.object({
+  QUEUE_URL: z.string({ error: 'QUEUE_URL must be set to redis://host:port' }).regex(/^rediss?:\/\//, 'QUEUE_URL must start with redis://'),
+  STORE_URL: EnvSchema.shape.STORE_URL,
+  S3_ENDPOINT: EnvSchema.shape.S3_ENDPOINT,
+  DATA_DIR: EnvSchema.shape.DATA_DIR,
+  /** field jobs one worker process computes at once (run one process per core rather than raising it) */
+  WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(64).default(1),
+  WORKER_LOCK_MS: z.coerce.number().int().min(1000).max(3_600_000).default(5 * 60_000),
+});
+export type WorkerEnv = z.infer<typeof WorkerEnvSchema>;
+
+/** Parse a run worker's environment; throws ConfigError with one line naming the variable and its value. */
+export function loadWorkerEnv(source: NodeJS.ProcessEnv = process.env): WorkerEnv {
+  const parsed = WorkerEnvSchema.safeParse(source);
+  if (!parsed.success) {
+    const i = parsed.error.issues[0];
+    const name = String(i.path[0] ?? '?');
+    throw new ConfigError(`configuration error: ${name}=${JSON.stringify(source[name] ?? null)}: ${i.message}`);
+  }
+  return parsed.data;
+}
+
 export class ConfigError extends Error {}
 
 /** Parse env; throws ConfigError with one clear line naming the variable. */

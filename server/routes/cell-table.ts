@@ -9,10 +9,7 @@
  *   DELETE /api/cells/:cellId/exclusion   { reason? }        undo the exclusion
  *   GET    /api/cells/:cellId/exclusion-history              audited exclusion events of the cell
  */
-import path from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { Router } from 'express';
-import { Piscina } from 'piscina';
 import type { AppContext } from '../context.js';
 import { requireUser } from '../auth/session.js';
 import { notFoundAsked, requireStudy, studyPermissions } from '../auth/policy.js';
@@ -20,10 +17,8 @@ import { conflict, parse } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { CsvQuery, ExcludeRequest, GridQuery, RestoreRequest, type ExclusionState, type GridResponse, type MeasurementSources } from '../../shared/schemas/cell-table.js';
 import { GRID_SELECT, gridFrom, resolveSource, toGridRow } from '../compare/source.js';
-import { appendMeasurements, buildGridIndex, decodeCursor, encodeCursor, filteredRows, gridIndexOf, positionAfter, type GridData, type GridIndex } from '../compare/grid-index.js';
-import type { GridIndexTask } from '../compare/grid-index-worker.js';
-
-const GRID_WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), '../compare/grid-index-worker.ts');
+import { decodeCursor, encodeCursor, filteredRows, positionAfter } from '../compare/grid-index.js';
+import { gridCacheOf } from '../compare/grid-cache.js';
 import { csvLine, fileSafe } from '../compare/csv.js';
 
 
@@ -31,12 +26,7 @@ export default function cellTableRoutes(ctx: AppContext) {
   const r = Router();
   const sqlite = ctx.db.$client;
 
-  /**
-   * The grid's order and filter index per (study, source), read again when the data version changes (writes
-   * through the API bump ctx.dataVersion); measurements added by runs are appended, and exclusions patch it in
-   * place. Pages, counts and cursors are answered from it (server/compare/grid-index.ts).
-   */
-  const indexes = new Map<string, { dataVersion: number; maxMeasurement: number; ix: GridIndex; studyId: number }>();
+  const grids = gridCacheOf(ctx);
   /** prepared statements by SQL text (the grid's SQL varies only with the filters in use) */
   const statements = new Map<string, ReturnType<typeof sqlite.prepare>>();
   const prepared = (sql: string) => {
@@ -48,75 +38,9 @@ export default function cellTableRoutes(ctx: AppContext) {
     }
     return st;
   };
-  const maxMeasurementStmt = sqlite.prepare('SELECT coalesce(max(id), 0) AS id FROM measurements');
-  const maxMeasurement = () => (maxMeasurementStmt.get() as { id: number }).id;
-  const currentVersion = () => `${ctx.dataVersion}:${maxMeasurement()}`;
-  /**
-   * A study-wide index is read in a thread (grid-index-worker.ts; seconds at a million cells), requests for the
-   * same version waiting on the same read; an index of listed fields is small and read here.
-   */
-  let pool: Piscina | undefined;
-  const reading = new Map<string, Promise<GridIndex>>();
-  ctx.closers.unshift(() => pool?.destroy());
-  async function gridIndex(studyId: number, src: ReturnType<typeof resolveSource>, fieldIds: number[] | undefined): Promise<GridIndex> {
-    const scope = fieldIds?.length ? [...new Set(fieldIds)].sort((a, b) => a - b) : undefined;
-    const key = JSON.stringify([studyId, src.runIds, scope ?? 'study']);
-    const newest = maxMeasurement();
-    const dataVersion = ctx.dataVersion;
-    const hit = indexes.get(key);
-    if (hit && hit.dataVersion === dataVersion) {
-      // only measurements were added since (a run in progress): add them instead of reading everything again
-      if (hit.maxMeasurement === newest || appendMeasurements(sqlite, hit.ix, src, hit.maxMeasurement, scope)) {
-        hit.maxMeasurement = newest;
-        indexes.delete(key);
-        indexes.set(key, hit); // most recently used last
-        return hit.ix;
-      }
-    }
-    let ix: GridIndex;
-    if (scope) ix = buildGridIndex(sqlite, studyId, src, scope);
-    else {
-      const readKey = `${key}:${dataVersion}:${newest}`;
-      let p = reading.get(readKey);
-      if (!p) {
-        pool ??= new Piscina({ filename: GRID_WORKER_FILE, execArgv: ['--import', 'tsx'], minThreads: 0, maxThreads: 1, idleTimeout: 30_000 });
-        const task: GridIndexTask = { file: sqlite.name, studyId, src };
-        p = (pool.run(task) as Promise<GridData>).then(gridIndexOf);
-        reading.set(readKey, p);
-        void p.finally(() => reading.delete(readKey)).catch(() => {});
-      }
-      ix = await p;
-      // a newer index stored while this one was read wins
-      const now = indexes.get(key);
-      if (now && (now.dataVersion > dataVersion || (now.dataVersion === dataVersion && now.maxMeasurement >= newest))) return now.ix;
-    }
-    indexes.delete(key);
-    indexes.set(key, { dataVersion, maxMeasurement: newest, ix, studyId });
-    // at most about 3,000,000 rows held (~700 MB at the full column set), and 16 indexes
-    let rows = 0;
-    for (const e of indexes.values()) rows += e.ix.n;
-    for (const [k, e] of indexes) {
-      if ((rows <= 3_000_000 && indexes.size <= 16) || k === key) break;
-      rows -= e.ix.n;
-      indexes.delete(k);
-    }
-    return ix;
-  }
-  /** An exclusion changes one flag: patch the study's indexes and move them to the version after this write. */
-  function patchExcluded(studyId: number, cellId: number, excluded: boolean, res: import('express').Response) {
-    const before = ctx.dataVersion;
-    ctx.dataVersion++;
-    res.locals.dataVersionBumped = true;
-    for (const entry of indexes.values()) {
-      if (entry.studyId !== studyId || entry.dataVersion !== before) continue;
-      const row = entry.ix.rowOf(cellId);
-      if (row >= 0) entry.ix.excluded[row] = excluded ? 1 : 0;
-      entry.ix.filtered.clear();
-      entry.ix.sorts.delete('excluded:asc');
-      entry.ix.sorts.delete('excluded:desc');
-      entry.dataVersion = ctx.dataVersion;
-    }
-  }
+  const gridIndex = async (studyId: number, src: ReturnType<typeof resolveSource>, fieldIds: number[] | undefined) => (await grids.index(studyId, src, fieldIds)).ix;
+  const currentVersion = () => grids.currentVersion();
+  const patchExcluded = grids.patchExcluded;
 
   r.get('/studies/:studyId/measurement-sources', requireUser, (req, res) => {
     const studyId = idParam(req, 'studyId');
@@ -205,7 +129,7 @@ export default function cellTableRoutes(ctx: AppContext) {
     const src = resolveSource(ctx.db, studyId, q);
     const ix = await gridIndex(studyId, src, q.fieldId);
     const order = filteredRows(ix, q, q.sort, q.dir);
-    const ids = Array.from(order, (r) => ix.cellId[r]);
+    const ids = Int32Array.from(order, (r) => ix.cellId[r]);
     res.setHeader('content-type', 'text/csv; charset=utf-8; header=present');
     res.setHeader('content-disposition', `attachment; filename="${fileSafe(study.name)}-cells.csv"`);
     let closed = false;
@@ -223,7 +147,7 @@ export default function cellTableRoutes(ctx: AppContext) {
         res.on('close', done);
       });
     for (let i = 0; i < ids.length && !closed; i += CHUNK) {
-      const chunk = ids.slice(i, i + CHUNK);
+      const chunk = Array.from(ids.subarray(i, i + CHUNK));
       // rows as arrays (no object per row): the export's columns picked by their position in the SELECT
       const { stmt, params } = byIdQuery(studyId, src, chunk);
       const raw = stmt.raw(true);

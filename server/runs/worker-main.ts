@@ -3,9 +3,10 @@
  * recipe settings) from Redis, reads the images from the file store, computes, and hands the measurements
  * back on the results queue. It never opens the database.
  *
- * Environment: QUEUE_URL (required, redis://…), STORE_URL (s3://bucket[/prefix] or file:///path; default the
- * local store under DATA_DIR), S3_ENDPOINT, DATA_DIR (default "data"), WORKER_CONCURRENCY (default 1; run
- * one process per core rather than raising it: computing blocks the process).
+ * Environment (checked by `loadWorkerEnv`, server/env.ts): QUEUE_URL (required, redis://…), STORE_URL
+ * (s3://bucket[/prefix] or file:///path; default the local store under DATA_DIR), S3_ENDPOINT, DATA_DIR (default
+ * "data"), WORKER_CONCURRENCY (default 1; run one process per core rather than raising it: computing blocks the
+ * process), WORKER_LOCK_MS (default 300000: how long a job stays with a worker that stopped answering).
  */
 import os from 'node:os';
 import { Queue, Worker } from 'bullmq';
@@ -14,6 +15,7 @@ import { createFileStore } from '../images/store.js';
 import { runFieldJob } from './compute.js';
 import { SweepThreads } from '../analysis/sweep-threads.js';
 import type { FieldJob, FieldJobResult } from './job.js';
+import { ConfigError, loadWorkerEnv, type WorkerEnv } from '../env.js';
 
 function fail(msg: string): never {
   console.error(`Syntopy worker could not start: ${msg}`);
@@ -21,13 +23,15 @@ function fail(msg: string): never {
 }
 
 async function main() {
-  const url = process.env.QUEUE_URL;
-  if (!url || !/^rediss?:\/\//.test(url)) fail(`QUEUE_URL must be set to redis://host:port, got ${JSON.stringify(url ?? null)}`);
-  const storeUrl = process.env.STORE_URL;
-  if (storeUrl && !/^(s3|file):\/\//.test(storeUrl)) fail(`STORE_URL must start with s3:// or file://, got ${JSON.stringify(storeUrl)}`);
-  const concurrency = Number(process.env.WORKER_CONCURRENCY ?? 1);
-  if (!Number.isInteger(concurrency) || concurrency < 1 || concurrency > 64) fail(`WORKER_CONCURRENCY must be an integer 1–64, got ${JSON.stringify(process.env.WORKER_CONCURRENCY)}`);
-  const store = createFileStore({ DATA_DIR: process.env.DATA_DIR ?? 'data', STORE_URL: storeUrl, S3_ENDPOINT: process.env.S3_ENDPOINT });
+  let env: WorkerEnv;
+  try {
+    env = loadWorkerEnv();
+  } catch (e) {
+    fail(e instanceof ConfigError ? e.message : String(e));
+  }
+  const url = env.QUEUE_URL;
+  const concurrency = env.WORKER_CONCURRENCY;
+  const store = createFileStore({ DATA_DIR: env.DATA_DIR, STORE_URL: env.STORE_URL, S3_ENDPOINT: env.S3_ENDPOINT });
   // one helper thread for the pair sweep of a cell of a million pixels or more, started on the first such cell
   const threads = new SweepThreads(1, 'on demand');
   const connection = connectionOf(url);
@@ -40,9 +44,11 @@ async function main() {
       await results.add('result', res, { jobId: jobIdOf(res.runId, res.fieldId), removeOnComplete: true, removeOnFail: 1000 });
       return { worker: name, ok: res.ok, measurements: res.ok ? res.measurements.length : 0, ms: Math.round(res.ms) };
     },
-    { connection, concurrency, lockDuration: 5 * 60_000 },
+    // a dead worker's job is noticed at the next stalled-job check and given to another worker
+    { connection, concurrency, lockDuration: env.WORKER_LOCK_MS, stalledInterval: Math.min(30_000, env.WORKER_LOCK_MS) },
   );
   worker.on('error', (e) => console.warn(`[worker] ${e.message}`));
+  worker.on('active', (job) => console.log(`[worker ${name}] field ${job.data.fieldId} of run ${job.data.runId}: started`));
   worker.on('completed', (job, rv) => console.log(`[worker ${name}] field ${job.data.fieldId} of run ${job.data.runId}: ${rv.ok ? `${rv.measurements} cells` : 'failed'} in ${rv.ms} ms`));
   await worker.waitUntilReady();
   console.log(`Syntopy worker ${name} is taking field jobs from ${url.replace(/\/\/[^@]*@/, '//***@')} (store: ${store.kind})`);

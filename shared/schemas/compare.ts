@@ -151,7 +151,16 @@ export const Comparison = z.object({
   /** the scale coverslip means are averaged, tested and bootstrapped on: Fisher's z for correlation
    * coefficients, the coefficient's own values otherwise (absent in reports made before it was recorded) */
   scale: CompareScale.optional(),
-  bootstrap: z.object({ resamples: z.number().int(), seed: z.number().int(), confidence: z.number() }),
+  bootstrap: z.object({
+    resamples: z.number().int(),
+    seed: z.number().int(),
+    confidence: z.number(),
+    /** coverslips with more cells than this had their cell-level resample drawn from its normal limit
+     * (shared/stats/bootstrap.ts); null: every coverslip resampled cell by cell (absent in older reports) */
+    normalAbove: z.number().int().nullable().optional(),
+    /** how many coverslips that was (absent in older reports) */
+    normalCoverslips: z.number().int().optional(),
+  }),
   points: z.array(ComparePoint),
   coverslips: z.array(CoverslipStats),
   conditions: z.array(ConditionStats),
@@ -165,3 +174,7 @@ export const Comparison = z.object({
   generatedAt: z.string(),
 });
 export type Comparison = z.infer<typeof Comparison>;
+
+/** A comparison without its points (checked apart from them: a million points are built, not parsed). */
+export const ComparisonHead = Comparison.omit({ points: true });
+export type ComparisonHead = z.infer<typeof ComparisonHead>;

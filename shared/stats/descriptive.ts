@@ -51,8 +51,58 @@ export function quantileSorted(sorted: ArrayLike<number>, p: number): number {
   return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
 }
 
+/**
+ * Median (type 7, as quantileSorted(sorted, 0.5)) by selection instead of a full sort: the two middle order
+ * statistics found with Hoare's FIND (Hoare 1961, Commun. ACM 4:321, doi:10.1145/366622.366647), expected
+ * linear time. The same value as sorting; input with NaN takes the sorting path (NaN sorts last).
+ */
 export function median(x: ArrayLike<number>): number {
-  return quantileSorted(Float64Array.from(x).sort(), 0.5);
+  const a = Float64Array.from(x);
+  const n = a.length;
+  if (n === 0) return NaN;
+  for (let i = 0; i < n; i++) if (Number.isNaN(a[i])) return quantileSorted(a.sort(), 0.5);
+  const h = (n - 1) * 0.5;
+  const lo = Math.floor(h);
+  select(a, lo);
+  if (h === lo) return a[lo];
+  // the next order statistic is the smallest value right of lo after the partition
+  let next = a[lo + 1];
+  for (let i = lo + 2; i < n; i++) if (a[i] < next) next = a[i];
+  return a[lo] + (h - lo) * (next - a[lo]);
+}
+
+/** Partially orders `a` so that a[k] is its k-th smallest, a[< k] ≤ a[k] ≤ a[> k] (no NaN). */
+function select(a: Float64Array, k: number) {
+  let left = 0;
+  let right = a.length - 1;
+  while (right > left) {
+    // median of three as the pivot
+    const mid = (left + right) >>> 1;
+    if (a[mid] < a[left]) swap(a, mid, left);
+    if (a[right] < a[left]) swap(a, right, left);
+    if (a[right] < a[mid]) swap(a, right, mid);
+    const pivot = a[mid];
+    let i = left;
+    let j = right;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        swap(a, i, j);
+        i++;
+        j--;
+      }
+    }
+    if (k <= j) right = j;
+    else if (k >= i) left = i;
+    else return;
+  }
+}
+
+function swap(a: Float64Array, i: number, j: number) {
+  const t = a[i];
+  a[i] = a[j];
+  a[j] = t;
 }
 
 const nn = (v: number) => (Number.isFinite(v) ? v : null);

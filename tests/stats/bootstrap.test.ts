@@ -1,6 +1,6 @@
 /** Hierarchical bootstrap: seeded reproducibility, identity cases and coverage on simulated two-level data. */
 import { describe, expect, it } from 'vitest';
-import { hierarchicalBootstrap, chiSquaredDistance, earthMoversDistance, histogram, equalEdges } from '../../shared/stats';
+import { hierarchicalBootstrap, chiSquaredDistance, earthMoversDistance, histogram, equalEdges, median } from '../../shared/stats';
 import { Xoshiro128 } from '../../shared/analysis/prng';
 
 /** Box–Muller normal deviates from the seeded generator (Box & Muller 1958, Ann. Math. Stat. 29:610). */
@@ -77,6 +77,81 @@ describe('hierarchicalBootstrap', () => {
   it('rejects bad options, quoting the value', () => {
     expect(() => hierarchicalBootstrap([a], { resamples: 3 })).toThrow(/3/);
     expect(() => hierarchicalBootstrap([a], { confidence: 1.5 })).toThrow(/1.5/);
+  });
+});
+
+describe('hierarchicalBootstrap: the normal limit of large coverslips (normalAbove)', () => {
+  /** skewed cell values: exponential (mean 0.2) from the seeded generator */
+  const skewed = (rng: Xoshiro128, n: number, shift: number) => Array.from({ length: n }, () => shift - 0.2 * Math.log(1 - rng.nextFloat()));
+  const rng = new Xoshiro128(11);
+  const one = [[skewed(rng, 4000, 0.3)]];
+  const x = one[0][0];
+  const xbar = x.reduce((s, v) => s + v, 0) / x.length;
+  const sdPop = Math.sqrt(x.reduce((s, v) => s + (v - xbar) ** 2, 0) / x.length);
+
+  it('changes nothing when no coverslip is above the limit (the same draws, the same numbers)', () => {
+    const a = simulate(new Xoshiro128(5), 0.4, 4, 30, 0.05, 0.1);
+    const b = simulate(new Xoshiro128(6), 0.5, 4, 30, 0.05, 0.1);
+    const exact = hierarchicalBootstrap([a, b], { seed: 9, resamples: 300 });
+    const limited = hierarchicalBootstrap([a, b], { seed: 9, resamples: 300, normalAbove: 30 });
+    expect(limited.normalCoverslips).toBe(0);
+    expect(limited.conditions).toEqual(exact.conditions);
+    expect(limited.differences).toEqual(exact.differences);
+    expect(exact.normalAbove).toBeNull();
+  });
+
+  it('one coverslip: cell by cell and through the normal limit both give the mean ± 1.96 σ̂/√n of the bootstrap mean', () => {
+    // with a single coverslip the condition's resample is that coverslip's cell-level resample, whose
+    // distribution is the bootstrap distribution of a mean: centred on x̄ with sd σ̂/√n (Efron & Tibshirani 1993, ch. 5)
+    const se = sdPop / Math.sqrt(x.length);
+    const exact = hierarchicalBootstrap(one, { seed: 3, resamples: 4000 });
+    const limit = hierarchicalBootstrap(one, { seed: 4, resamples: 4000, normalAbove: 1000 });
+    expect(limit.normalCoverslips).toBe(1);
+    expect(limit.normalAbove).toBe(1000);
+    for (const r of [exact, limit]) {
+      // Monte Carlo error of a 2.5 % quantile of 4,000 resamples is about 0.06 se; the skewness moves each end by
+      // about γ/(6√n)·(1.96² − 1) se ≈ 0.03 se here
+      expect(Math.abs(r.conditions[0].lower! - (xbar - 1.96 * se))).toBeLessThan(0.15 * se);
+      expect(Math.abs(r.conditions[0].upper! - (xbar + 1.96 * se))).toBeLessThan(0.15 * se);
+    }
+  });
+
+  it('on two-level data the intervals through the limit agree with cell-by-cell ones within Monte Carlo error', () => {
+    const r2 = new Xoshiro128(21);
+    const cond = (shift: number) => Array.from({ length: 5 }, (_, i) => skewed(r2, 1500 + 100 * i, shift + 0.03 * r2.nextFloat()));
+    const data = [cond(0.3), cond(0.33)];
+    const exact = hierarchicalBootstrap(data, { seed: 1, resamples: 3000 });
+    const limit = hierarchicalBootstrap(data, { seed: 2, resamples: 3000, normalAbove: 1000 });
+    expect(limit.normalCoverslips).toBe(10);
+    const width = exact.differences[0].upper! - exact.differences[0].lower!;
+    expect(limit.differences[0].estimate).toBe(exact.differences[0].estimate);
+    expect(Math.abs(limit.differences[0].lower! - exact.differences[0].lower!)).toBeLessThan(0.08 * width);
+    expect(Math.abs(limit.differences[0].upper! - exact.differences[0].upper!)).toBeLessThan(0.08 * width);
+    // and a different seed of the exact bootstrap moves the ends by as much
+    const again = hierarchicalBootstrap(data, { seed: 3, resamples: 3000 });
+    expect(Math.abs(again.differences[0].lower! - exact.differences[0].lower!)).toBeLessThan(0.08 * width);
+  });
+
+  it('rejects a limit below 1, quoting it', () => {
+    expect(() => hierarchicalBootstrap(one, { normalAbove: 0 })).toThrow(/0/);
+  });
+});
+
+describe('median by selection', () => {
+  it('equals the type-7 median of the sorted values, odd and even lengths, with ties', () => {
+    const r = new Xoshiro128(8);
+    for (let t = 0; t < 200; t++) {
+      const n = 1 + (t % 37);
+      const x = Array.from({ length: n }, () => Math.round(r.nextFloat() * (t % 3 === 0 ? 5 : 1000)) / 10);
+      const s = [...x].sort((a, b) => a - b);
+      const h = (n - 1) / 2;
+      const want = s[Math.floor(h)] + (h - Math.floor(h)) * (s[Math.min(n - 1, Math.floor(h) + 1)] - s[Math.floor(h)]);
+      expect(median(x)).toBe(want);
+    }
+    expect(median([])).toBeNaN();
+    // input with NaN keeps the sorting path (NaN sorts last): the same answers as before selection
+    expect(median([3, NaN, 1, 2])).toBe(2.5);
+    expect(median([3, NaN, 1])).toBeNaN();
   });
 });
 

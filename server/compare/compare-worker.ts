@@ -1,0 +1,41 @@
+/**
+ * Threads that compute a comparison (server/compare/comparison.ts) and write its points' JSON, so that neither
+ * the bootstrap nor serializing a million points runs on the thread that answers requests. A comparison is two
+ * tasks run side by side on two threads: 'head' (every statistic) and 'points' (the points as columns and as
+ * JSON). The grid index's columns arrive on shared memory (not copied); results move back without copying.
+ * Only static imports in this graph: under `--import tsx` the thread loads it through the CommonJS hook.
+ */
+import os from 'node:os';
+import { Piscina } from 'piscina';
+import { comparisonFrom, inputFromGrid, pointsJson, pointsOf, type CompareTask, type PointColumns } from './comparison.js';
+import type { ComparisonHead } from '../../shared/schemas/compare.js';
+
+// On Linux this lowers this thread only (as the grid index reader does): requests keep the CPU first.
+if (process.platform === 'linux') {
+  try {
+    os.setPriority(Math.min(19, os.getPriority() + 5));
+  } catch {
+    /* not permitted: keep the default priority */
+  }
+}
+
+export type CompareJob = CompareTask & { part: 'head' | 'points' };
+export interface PointsResult {
+  json: Uint8Array;
+  points: PointColumns;
+}
+
+export default function compareTask(job: CompareJob): ComparisonHead | unknown {
+  const input = inputFromGrid(job);
+  if (job.part === 'head') return comparisonFrom(input);
+  const points = pointsOf(input);
+  const result: PointsResult = { json: pointsJson(points), points };
+  return Piscina.move({
+    get [Piscina.transferableSymbol]() {
+      return [result.json.buffer, ...Object.values(points).map((a) => a.buffer)];
+    },
+    get [Piscina.valueSymbol]() {
+      return result;
+    },
+  } as never);
+}
