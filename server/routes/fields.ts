@@ -6,6 +6,8 @@
  *   GET    /api/studies/:studyId/fields      fields of a study (read)
  *   GET    /api/fields/:id                   FieldDetail (read)
  *   DELETE /api/fields/:id                   delete; soft delete while measurements refer to it (edit_images)
+ *   PUT    /api/fields/:id/pixel-size    µm per pixel by hand (edit_images, audited)
+ *   PUT    /api/fields/:id/z-step        µm between slices of a stack by hand (edit_images, audited)
  *   GET    /api/fields/:id/preview.png       composite / single-channel preview (read)
  *   GET    /api/fields/:id/pixels?z=         raw pixels of one slice (or the projection) for the browser's pixel
  *          scatter (read), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
@@ -24,7 +26,7 @@ import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from 
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
-import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, SetFieldPixelSizeRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
+import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, SetFieldPixelSizeRequest, SetFieldZStepRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
 import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
 import { renderPreview } from '../images/preview.js';
@@ -254,6 +256,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 name,
                 instrumentId: p.instrumentId ?? null,
                 pixelSizeUm: p.pixelSizeUm ?? null,
+                zStepUm: p.zStepUm ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
                   { path: f2.path, originalName: f2.originalname, channel: p.ch2.channel, sha256: f2.sha256 },
@@ -360,6 +363,21 @@ export default function fieldsRoutes(ctx: AppContext) {
     const next = ctx.db.transaction((tx) => {
       const row = tx.update(fields).set({ pixelSizeUm }).where(eq(fields.id, fieldId)).returning().get();
       tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'field.pixel_size', entity: 'field', entityId: fieldId, studyId, details: { from: field.pixelSizeUm, to: pixelSizeUm } }).run();
+      return row;
+    });
+    res.json(toFieldSummary(next));
+  });
+
+  /** µm between the slices of a stack whose files state none (or a correction); 3D block depths and the methods paragraph use it; audited. */
+  r.put('/fields/:id/z-step', (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
+    const { zStepUm } = parse(SetFieldZStepRequest, req.body);
+    if (zStepUm !== null && field.sizeZ <= 1) throw new HttpError(409, `field "${field.name}" is a single plane, so it has no z step to set (got ${zStepUm} µm)`);
+    const next = ctx.db.transaction((tx) => {
+      const row = tx.update(fields).set({ zStepUm }).where(eq(fields.id, fieldId)).returning().get();
+      tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'field.z_step', entity: 'field', entityId: fieldId, studyId, details: { from: field.zStepUm, to: zStepUm } }).run();
       return row;
     });
     res.json(toFieldSummary(next));

@@ -52,6 +52,19 @@ export const PixelSizeUm = z
 export const SetFieldPixelSizeRequest = z.object({ pixelSizeUm: PixelSizeUm.nullable() });
 export type SetFieldPixelSizeRequest = z.infer<typeof SetFieldPixelSizeRequest>;
 
+/**
+ * µm between z slices given by hand, for stacks whose files state none: a finite number above 0 and at most 1000
+ * (the recipes' bound for a z step); errors quote the value received.
+ */
+export const ZStepUm = z
+  .number({ error: (iss) => `the z step must be a number of µm between slices, got ${JSON.stringify(iss.input) ?? String(iss.input)}` })
+  .gt(0, { error: (iss) => `the z step must be above 0 µm between slices, got ${String(iss.input)}` })
+  .max(1000, { error: (iss) => `the z step must be at most 1000 µm between slices, got ${String(iss.input)}` });
+
+/** PUT /api/fields/:id/z-step: the stack's µm between slices (null: not known). */
+export const SetFieldZStepRequest = z.object({ zStepUm: ZStepUm.nullable() });
+export type SetFieldZStepRequest = z.infer<typeof SetFieldZStepRequest>;
+
 /** PUT /api/fields/:id/instrument: the instrument the field was recorded on, or null for none. */
 export const SetFieldInstrumentRequest = z.object({ instrumentId: z.number().int().positive().nullable() });
 
@@ -95,6 +108,8 @@ export const UploadFieldPlan = z.object({
   instrumentId: z.number().int().positive().nullable().optional(),
   /** µm per pixel for a field whose files carry none (the files' own pixel size, when they have one, is kept; a sample sheet's pixel_size_um comes here) */
   pixelSizeUm: PixelSizeUm.optional(),
+  /** µm between z slices for a stack whose files state none (kept from the files when they do; a single plane has none, so it is not used there) */
+  zStepUm: ZStepUm.optional(),
 });
 export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
 export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;

@@ -8,7 +8,7 @@
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { useParams } from 'react-router';
 import { Button, Caution, ErrorNotice, Loading, PageHeader } from '@/components';
-import { FieldInstrument, PixelSizeEditor, useField } from '@/features/fields';
+import { FieldInstrument, PixelSizeEditor, ZStepEditor, useField } from '@/features/fields';
 import { useStudy } from '@/features/studies';
 import { useCells } from '@/features/workspace';
 import { useFieldPixels } from '@/features/fields';
@@ -212,7 +212,13 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           <>
             {`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''} · `}
             <PixelSizeEditor fieldId={fieldId} pixelSizeUm={field.pixelSizeUm} canEdit={canEdit} />
-            {`${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
+            {field.sizeZ > 1 && (
+              <>
+                {' · '}
+                <ZStepEditor fieldId={fieldId} zStepUm={field.zStepUm} canEdit={canEdit} />
+              </>
+            )}
+            {` · ${names[0]} and ${names[1]}`}
           </>
         }
         actions={

@@ -7,4 +7,4 @@ export { fieldPreviewUrl } from './api/fieldPreviewUrl';
 export { FieldInstrument } from './components/FieldInstrument';
 export { useSetFieldInstrument } from './api/useSetFieldInstrument';
 export { SampleSheetIntake } from './components/SampleSheetIntake';
-export { PixelSizeEditor } from './components/PixelSizeEditor';
+export { PixelSizeEditor, ZStepEditor } from './components/PixelSizeEditor';
