@@ -10,7 +10,7 @@
  *   PUT    /api/fields/:id/z-step        µm between slices of a stack by hand (edit_images, audited)
  *   GET    /api/fields/:id/preview.png       composite / single-channel preview (read)
  *   GET    /api/fields/:id/pixels?z=         raw pixels of one slice (or the projection) for the browser's pixel
- *          scatter (read), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
+ *          scatter (read), or ?section=xz|yz&at= an orthogonal section through every slice (the XZ / YZ views), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
  *          field's own sample type); header x-syntopy-z names the slice in words.
  */
 import crypto from 'node:crypto';
@@ -28,7 +28,8 @@ import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
 import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, SetFieldPixelSizeRequest, SetFieldZStepRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
-import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
+import { ingestField, inFlightShas, loadFieldPixels, loadFieldStack, type FieldRow } from '../images/intake.js';
+import { orthoSection } from '../images/projection.js';
 import { renderPreview } from '../images/preview.js';
 import { keyForSha } from '../images/store.js';
 
@@ -409,6 +410,22 @@ export default function fieldsRoutes(ctx: AppContext) {
     const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const q = parse(PixelsQuery, req.query);
+    if (q.section) {
+      // an orthogonal section: one row (xz) or column (yz) of every slice, a few hundred kB even for large stacks
+      const at = q.at!;
+      const limit = q.section === 'xz' ? field.height : field.width;
+      if (at >= limit) throw badRequest(`at=${at} is outside the field: the ${q.section === 'xz' ? 'rows' : 'columns'} run 0–${limit - 1}`);
+      const stack = await loadFieldStack(ctx, field);
+      const ch1 = orthoSection(stack.ch1, stack.width, stack.height, q.section, at);
+      const ch2 = orthoSection(stack.ch2, stack.width, stack.height, q.section, at);
+      const [w, h] = [q.section === 'xz' ? stack.width : stack.height, stack.sizeZ];
+      const body = encodePixels({ width: w, height: h, depth: 1, bitDepth: stack.bitDepth, sampleType: sampleTypeOf(ch1), ch1, ch2 });
+      res.setHeader('content-type', PIXELS_CONTENT_TYPE);
+      res.setHeader('x-syntopy-z', q.section === 'xz' ? `section through row y = ${at}, x across, slices 1 to ${stack.sizeZ} top to bottom` : `section through column x = ${at}, y across, slices 1 to ${stack.sizeZ} top to bottom`);
+      res.setHeader('access-control-expose-headers', 'x-syntopy-z');
+      res.end(body);
+      return;
+    }
     const px = await loadFieldPixels(ctx, field.id, { z: q.z });
     const body = encodePixels({ width: px.width, height: px.height, depth: px.depth, bitDepth: px.bitDepth, sampleType: sampleTypeOf(px.ch1), ch1: px.ch1, ch2: px.ch2 });
     res.setHeader('content-type', PIXELS_CONTENT_TYPE);

@@ -140,8 +140,25 @@ export const PreviewQuery = z.object({
 });
 export type PreviewQuery = z.infer<typeof PreviewQuery>;
 
-export const PixelsQuery = z.object({
-  z: z.union([z.literal('mip'), z.coerce.number().int().min(0)]).optional(),
-});
+/**
+ * GET /api/fields/:id/pixels: one slice (`z`, default the middle one), the projection (`z=mip`), or an
+ * orthogonal section through the whole stack (`section=xz&at=<row y>`: width × slices; `section=yz&at=<column
+ * x>`: height × slices; row k is slice k), which is what the workspace's XZ and YZ views fetch instead of the whole stack.
+ */
+export const PixelsQuery = z
+  .object({
+    z: z.union([z.literal('mip'), z.coerce.number().int().min(0)]).optional(),
+    section: z.enum(['xz', 'yz'], { error: (iss) => `section must be "xz" or "yz", got ${JSON.stringify(iss.input)}` }).optional(),
+    at: z.coerce
+      .number({ error: (iss) => `at must be a whole pixel position, got ${JSON.stringify(iss.input)}` })
+      .int({ error: (iss) => `at must be a whole pixel position, got ${JSON.stringify(iss.input)}` })
+      .min(0, { error: (iss) => `at must be 0 or more, got ${JSON.stringify(iss.input)}` })
+      .optional(),
+  })
+  .superRefine((q, ctx) => {
+    if (q.section && q.at === undefined) ctx.addIssue({ code: 'custom', path: ['at'], message: `a ${q.section} section needs "at": the ${q.section === 'xz' ? 'row y' : 'column x'} it passes through` });
+    if (q.section && q.z !== undefined) ctx.addIssue({ code: 'custom', path: ['z'], message: `a section runs through every slice; leave out z (got ${JSON.stringify(q.z)})` });
+    if (!q.section && q.at !== undefined) ctx.addIssue({ code: 'custom', path: ['at'], message: `"at" (got ${q.at}) belongs to a section; add section=xz or section=yz` });
+  });
 
 export const DeleteFieldResponse = z.object({ ok: z.literal(true), soft: z.boolean() });

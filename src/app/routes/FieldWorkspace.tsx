@@ -24,6 +24,7 @@ import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
+import { OrthoViews, SectionMarker } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -60,6 +61,27 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [notice, setNotice] = useState<string | null>(null);
   const [manual, setManual] = useState<{ t1: number; t2: number } | null>(null);
   const loaded = useRef(false);
+  // orthogonal views (stacks): the point they pass through, typed, picked on a view or following the cursor
+  const stack = field.sizeZ > 1;
+  const [point, setPoint] = useState<[number, number]>(() => [Math.floor(field.width / 2), Math.floor(field.height / 2)]);
+  const [follow, setFollow] = useState(false);
+  const cursorTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  const onCursor = useCallback(
+    (p: [number, number] | null) => {
+      if (!follow || !p) return;
+      const x = Math.floor(p[0]), y = Math.floor(p[1]);
+      if (x < 0 || y < 0 || x >= field.width || y >= field.height) return;
+      // at most one new pair of sections every 150 ms while the cursor moves
+      if (cursorTimer.current) clearTimeout(cursorTimer.current);
+      cursorTimer.current = setTimeout(() => setPoint((cur) => (cur[0] === x && cur[1] === y ? cur : [x, y])), 150);
+    },
+    [follow, field.width, field.height],
+  );
+  useEffect(() => () => void (cursorTimer.current && clearTimeout(cursorTimer.current)), []);
+  const orthoRanges = useMemo<[[number, number] | null, [number, number] | null]>(
+    () => [display.range1 ?? autoRanges?.[0] ?? null, display.range2 ?? autoRanges?.[1] ?? null],
+    [display.range1, display.range2, autoRanges],
+  );
 
   useEffect(() => {
     if (cells.data) {
@@ -274,13 +296,36 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onAutoRanges={setAutoRanges}
               onGesture={setGesture}
               command={command}
+              onCursor={stack ? onCursor : undefined}
               overlay={
-                shownSpots && (
-                  <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
-                )
+                <>
+                  {shownSpots && (
+                    <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
+                  )}
+                  {stack && <SectionMarker point={point} width={field.width} height={field.height} />}
+                </>
               }
             />
           </div>
+          {stack && (
+            <section aria-labelledby="ortho-heading" className="rounded-md border border-ink/10 bg-white/70 p-3">
+              <h2 id="ortho-heading" className="mb-2 text-base font-semibold">
+                Orthogonal views
+              </h2>
+              <OrthoViews
+                field={field}
+                display={display}
+                ranges={orthoRanges}
+                point={point}
+                onPoint={setPoint}
+                follow={follow}
+                onFollow={setFollow}
+                outlines={state.outlines}
+                selected={state.selected}
+                onSlice={(k) => setDisplay((d) => ({ ...d, z: k }))}
+              />
+            </section>
+          )}
           <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
             <section aria-label="Display" className="rounded-md border border-ink/10 bg-white/70 p-3">
               <h2 className="mb-2 text-sm font-semibold">Display</h2>

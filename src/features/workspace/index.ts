@@ -18,3 +18,4 @@ export type { DisplaySettings, Tool } from './components/Viewer';
 export { initialOutlineState, outlineReducer } from './lib/outlineState';
 export { useOutlineSync } from './lib/useOutlineSync';
 export { useScatter } from './lib/useScatter';
+export { OrthoViews, SectionMarker } from './components/OrthoViews';

@@ -49,13 +49,15 @@ export interface ViewerProps {
   command?: { kind: 'fit' | 'one' | 'in' | 'out'; n: number } | null;
   /** drawn over the outlines in image coordinates (pixels), e.g. the spot layer; takes no pointer events */
   overlay?: React.ReactNode;
+  /** where the cursor is over the image (the pointer, or the keyboard cursor when it moves last), null when it leaves */
+  onCursor?: (p: Point | null) => void;
 }
 
 const SELECT_COLOR = '#0f766e';
 const CELL_COLOR = '#f5f5f4';
 const BG_COLOR = '#f59e0b';
 
-export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay }: ViewerProps) {
+export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay, onCursor }: ViewerProps) {
   const box = useRef<HTMLDivElement>(null);
   const [size, setSize] = useState({ w: 800, h: 600 });
   const [view, setView] = useState<View | null>(null);
@@ -72,6 +74,9 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
   const pointers = useRef(new Map<number, { x: number; y: number }>());
   const pinch = useRef<{ d: number; mx: number; my: number; v: View } | null>(null);
   const W = field.width, H = field.height;
+  const cursorOut = useRef(onCursor);
+  cursorOut.current = onCursor;
+  useEffect(() => cursorOut.current?.(kc ?? hover), [kc, hover]);
 
   // container size
   useLayoutEffect(() => {
