@@ -38,7 +38,7 @@ describe('GET /api/fields/:id/pixels?section=', () => {
   for (const file of ['u16.xyzct.ome.tif', 'f32.xyczt.ome.tif']) {
     it(`${file}: XZ through a row and YZ through a column are those pixels of every slice`, async () => {
       const id = ids[file];
-      const slices = [];
+      const slices: ReturnType<typeof decodePixels>[] = [];
       for (let k = 0; k < 5; k++) slices.push(decodePixels((await get(`/api/fields/${id}/pixels?z=${k}`)).body));
       const { width: W, height: H } = slices[0];
       const y = 7, x = 13;

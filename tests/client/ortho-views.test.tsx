@@ -43,7 +43,7 @@ function stubPixels() {
     const axis = /section=(xz|yz)/.exec(url)?.[1];
     const across = axis === 'xz' ? W : H;
     const ch = Uint16Array.from({ length: across * Z }, (_, i) => i);
-    return new Response(encodePixels({ width: across, height: Z, depth: 1, bitDepth: 16, sampleType: 'uint16', ch1: ch, ch2: ch }), { status: 200, headers: { 'content-type': 'application/vnd.syntopy.pixels' } });
+    return new Response(encodePixels({ width: across, height: Z, depth: 1, bitDepth: 16, sampleType: 'uint16', ch1: ch, ch2: ch }) as Uint8Array<ArrayBuffer>, { status: 200, headers: { 'content-type': 'application/vnd.syntopy.pixels' } });
   }));
   return urls;
 }

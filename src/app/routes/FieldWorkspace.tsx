@@ -15,7 +15,7 @@ import { useFieldPixels } from '@/features/fields';
 import { useFieldResults } from '@/features/workspace';
 import { initialOutlineState, outlineReducer } from '@/features/workspace';
 import { useOutlineSync } from '@/features/workspace';
-import { useScatter } from '@/features/workspace';
+import { useScatter, ScatterOver, volumeFits, type VolumeSource } from '@/features/workspace';
 import { Viewer, isTyping, type DisplaySettings, type Tool } from '@/features/workspace';
 import { ToolBar, TOOLS, ShortcutHelp } from '@/features/workspace';
 import { CellsPanel } from '@/features/workspace';
@@ -95,13 +95,20 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   // pixels for the scatter and the live preview (the slice the display shows)
   const pixels = useFieldPixels(fieldId, display.z);
   const saturationLevel = field.sampleFormat === 'float' ? null : 2 ** field.bitDepth - 1;
-  const scatter = useScatter(pixels.data, saturationLevel);
+  const sliceScatter = useScatter(pixels.data, saturationLevel);
+  // on a stack the scatter and live preview cover every slice (as runs measure by default) when the volume fits the browser
+  const volumeOk = volumeFits(field);
+  const [over, setOver] = useState<'volume' | 'slice'>(volumeOk ? 'volume' : 'slice');
+  const inVolume = over === 'volume' && volumeOk;
+  const volumeSource = useMemo<VolumeSource | undefined>(() => (inVolume ? { kind: 'volume', fieldId, width: field.width, height: field.height, depth: field.sizeZ } : undefined), [inVolume, fieldId, field.width, field.height, field.sizeZ]);
+  const volumeScatter = useScatter(volumeSource, saturationLevel);
+  const scatter = inVolume ? volumeScatter : sliceScatter;
   const selectedOutline = state.outlines.find((o) => o.key === state.selected) ?? null;
   // the whole field's default thresholds are computed over the outlined cells (scatterBasis.ts): its key follows them
   const cellGeometries = useMemo(() => state.outlines.filter((o) => o.role === 'cell').map((o) => o.geometry), [state.outlines]);
   const cellsKey = useMemo(() => hashGeometry(cellGeometries), [cellGeometries]);
-  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : `field:${cellsKey}`;
-  const regionName = selectedOutline ? selectedOutline.name : 'the whole field';
+  const regionKey = `${inVolume ? 'volume' : 'slice'}:${selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : `field:${cellsKey}`}`;
+  const regionName = `${selectedOutline ? selectedOutline.name : 'the whole field'}${inVolume ? ' (every slice, 3D)' : ''}`;
   const geometry = selectedOutline?.geometry ?? null;
   useEffect(() => {
     if (!scatter.ready || gesture) return;
@@ -117,13 +124,13 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [spotToggles, setSpotToggles] = useState<SpotToggles>({ ch1: true, ch2: true, pairs: true });
   const [liveSpots, setLiveSpots] = useState<LiveSpotSettings>({ on: false, sigma: OBJECT_DEFAULTS.spotSigma, k: OBJECT_DEFAULTS.spotK });
   useEffect(() => {
-    if (!scatter.ready || !liveSpots.on || gesture) return;
-    scatter.requestSpots(regionKey, geometry, liveSpots.sigma, liveSpots.k);
+    if (!sliceScatter.ready || !liveSpots.on || gesture) return;
+    sliceScatter.requestSpots(regionKey, geometry, liveSpots.sigma, liveSpots.k);
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [scatter.ready, liveSpots, regionKey, gesture]);
+  }, [sliceScatter.ready, liveSpots, regionKey, gesture]);
   const stored = fieldSpots.data?.settings;
   const pairDistancePx = stored?.pairDistancePx ?? OBJECT_DEFAULTS.pairDistance;
-  const livePreviewSpots = liveSpots.on && scatter.spots && scatter.spots.regionKey === regionKey ? scatter.spots : null;
+  const livePreviewSpots = liveSpots.on && sliceScatter.spots && sliceScatter.spots.regionKey === regionKey ? sliceScatter.spots : null;
   const shownSpots = useMemo(() => {
     // per cell: spots and pairs within d (pairs never cross cells, as in the run)
     if (liveSpots.on) {
@@ -355,7 +362,8 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">
             <h2 className="mb-1 text-base font-semibold">Pixel scatter</h2>
-            {pixels.isError ? (
+            {stack && <ScatterOver field={field} over={inVolume ? 'volume' : 'slice'} onOver={setOver} progress={inVolume ? volumeScatter.progress : null} />}
+            {pixels.isError && !inVolume ? (
               <ErrorNotice error={pixels.error} />
             ) : scatter.error ? (
               <ErrorNotice error={scatter.error} />
@@ -372,13 +380,13 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             )}
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
-            {pixels.isError || scatter.error ? (
+            {(pixels.isError && !inVolume) || scatter.error ? (
               <section aria-label="Live coefficients (preview)" data-testid="live-preview">
                 <h3 className="mb-2 text-sm font-semibold">Coefficients of {regionName}</h3>
-                <ErrorNotice error={pixels.error ?? scatter.error} />
+                <ErrorNotice error={(inVolume ? null : pixels.error) ?? scatter.error} />
               </section>
             ) : (
-              <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
+              <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={(!inVolume && !!pixels.isPending) || !scatter.live} stale={liveStale} unit={inVolume ? 'voxel' : 'pixel'} />
             )}
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
@@ -389,7 +397,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               live={liveSpots}
               onLive={setLiveSpots}
               preview={livePreviewSpots && { count1: livePreviewSpots.spots1.length, count2: livePreviewSpots.spots2.length, paired1: shownSpots?.pairs.length ?? 0, ms: livePreviewSpots.ms, regionName }}
-              previewError={scatter.spotsError}
+              previewError={sliceScatter.spotsError}
               stored={fieldSpots.isSuccess ? stored : undefined}
               runId={runId}
               cell={spotCell}

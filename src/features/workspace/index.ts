@@ -19,3 +19,6 @@ export { initialOutlineState, outlineReducer } from './lib/outlineState';
 export { useOutlineSync } from './lib/useOutlineSync';
 export { useScatter } from './lib/useScatter';
 export { OrthoViews, SectionMarker } from './components/OrthoViews';
+export { ScatterOver } from './components/ScatterOver';
+export { volumeFits } from './lib/volumePreview';
+export type { VolumeSource } from './lib/useScatter';

@@ -7,12 +7,14 @@
 import { jointHistogram, type Histogram2D } from '@shared/analysis/histogram';
 import { measurePairs, collectPairs, prepare, type PreparedPairs, type RegionResult } from '@shared/analysis/index';
 import { defaultThresholds, saturatedMarks, type SaturatedMarks, type ThresholdBasis } from './scatterBasis';
-import { cellIndices, type CellGeometry } from '@shared/schemas/cells';
+import { cellIndices, cellVoxels, type CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 
 export interface ScatterInput {
   width: number;
   height: number;
+  /** slices held (1: one slice or the projection; more: the whole volume, slice after slice, as runs measure it) */
+  depth?: number;
   ch1: SampleArray;
   ch2: SampleArray;
   /** largest value the pixel type holds (2^bits − 1), null for float data: pixels at it count as saturated */
@@ -54,7 +56,7 @@ export interface ScatterResult {
  * cells: the whole field's default thresholds are computed over them (scatterBasis.ts).
  */
 export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, bins = 256, cells: readonly CellGeometry[] = []): Region {
-  const indices = geometry ? cellIndices(geometry, img.width, img.height) : null;
+  const indices = regionIndices(img, geometry);
   const p = prepare(collectPairs(img.ch1, img.ch2, indices ? { kind: 'indices', indices } : null));
   let max1 = 0, max2 = 0, min1 = Infinity, min2 = Infinity, sat1 = 0, sat2 = 0;
   const L = img.saturationLevel ?? Infinity;
@@ -77,6 +79,44 @@ export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, 
   const hist = jointHistogram(p.x, p.y, { binsX: bins, binsY: bins, rangeX: [lo1, Math.max(top1, lo1 + 1)], rangeY: [lo2, Math.max(top2, lo2 + 1)] }, p.n);
   const marks = saturatedMarks(p.x, p.y, p.n, img.saturationLevel ?? null, bins, hist.rangeX, hist.rangeY);
   return { indices, n: p.n, x: p.x, y: p.y, max1, max2, otsu: { t1: th.t1, t2: th.t2 }, basis: th.basis, pairs: p, hist, saturated, saturatedMarks: marks };
+}
+
+/**
+ * A whole volume put together from its slices as they arrive (in any order): slice z goes to voxels
+ * z·width·height …, the layout runs measure (server/images/projection.ts concatSlices). `image()` is null until
+ * every slice is in.
+ */
+export function volumeAssembly(width: number, height: number, depth: number, saturationLevel: number | null) {
+  const plane = width * height;
+  let ch1: SampleArray | null = null, ch2: SampleArray | null = null;
+  const received = new Set<number>();
+  const make = (a: SampleArray) => new (a.constructor as new (n: number) => SampleArray)(plane * depth);
+  return {
+    put(z: number, a: SampleArray, b: SampleArray) {
+      if (!(Number.isInteger(z) && z >= 0 && z < depth)) throw new RangeError(`slice ${z} is not one of 0–${depth - 1}`);
+      if (a.length !== plane || b.length !== plane) throw new RangeError(`slice ${z} has ${a.length} and ${b.length} samples, expected ${plane}`);
+      (ch1 ??= make(a)).set(a, z * plane);
+      (ch2 ??= make(b)).set(b, z * plane);
+      received.add(z);
+    },
+    get received() {
+      return received.size;
+    },
+    image(): ScatterInput | null {
+      return received.size === depth && ch1 && ch2 ? { width, height, depth, ch1, ch2, saturationLevel } : null;
+    },
+  };
+}
+
+/**
+ * A region's pixel (or voxel) indices: on one slice its outline's pixels; over a whole volume the voxels a run
+ * measures (`cellVoxels`: a drawn outline on every slice of its z range, a 3-D label cell exactly its voxels);
+ * null for the whole field.
+ */
+export function regionIndices(img: Pick<ScatterInput, 'width' | 'height' | 'depth'>, geometry: CellGeometry | null): Uint32Array | null {
+  if (!geometry) return null;
+  const depth = img.depth ?? 1;
+  return depth > 1 ? cellVoxels(geometry, img.width, img.height, 0, depth) : cellIndices(geometry, img.width, img.height);
 }
 
 /** Upper axis end: the 99.95th percentile (from a 4096-bin count over [0, max]) rounded up to its bin edge. */
