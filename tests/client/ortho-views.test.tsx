@@ -91,9 +91,9 @@ describe('OrthoViews', () => {
     fireEvent.click(box, { clientX: 55, clientY: 100 });
     expect(onPoint).toHaveBeenLastCalledWith([5, 5]);
     expect(onSlice).toHaveBeenLastCalledWith(3);
-    fireEvent.change(screen.getByLabelText('x'), { target: { value: '20' } });
-    expect(screen.getByRole('alert').textContent).toBe('x must be between 0 and 19, got "20"');
-    fireEvent.change(screen.getByLabelText('y'), { target: { value: '9' } });
+    fireEvent.change(screen.getByLabelText('Point x'), { target: { value: '20' } });
+    expect(screen.getByRole('alert').textContent).toBe('point x must be between 0 and 19, got "20"');
+    fireEvent.change(screen.getByLabelText('Point y'), { target: { value: '9' } });
     expect(onPoint).toHaveBeenLastCalledWith([12, 9]);
   });
 });

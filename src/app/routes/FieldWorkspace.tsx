@@ -24,7 +24,7 @@ import { PixelScatter } from '@/features/workspace';
 import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
-import { OrthoViews, SectionMarker } from '@/features/workspace';
+import { OrthoViews } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -304,13 +304,11 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onGesture={setGesture}
               command={command}
               onCursor={stack ? onCursor : undefined}
+              marker={stack ? point : null}
               overlay={
-                <>
-                  {shownSpots && (
-                    <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
-                  )}
-                  {stack && <SectionMarker point={point} width={field.width} height={field.height} />}
-                </>
+                shownSpots && (
+                  <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
+                )
               }
             />
           </div>
@@ -376,6 +374,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
                 onThresholdsDone={onThresholdsDone}
                 onReset={() => setManual(null)}
                 manual={!!manual}
+                unit={inVolume ? 'voxel' : 'pixel'}
               />
             )}
           </section>

@@ -18,7 +18,7 @@ export type { DisplaySettings, Tool } from './components/Viewer';
 export { initialOutlineState, outlineReducer } from './lib/outlineState';
 export { useOutlineSync } from './lib/useOutlineSync';
 export { useScatter } from './lib/useScatter';
-export { OrthoViews, SectionMarker } from './components/OrthoViews';
+export { OrthoViews } from './components/OrthoViews';
 export { ScatterOver } from './components/ScatterOver';
 export { volumeFits } from './lib/volumePreview';
 export type { VolumeSource } from './lib/useScatter';

@@ -16,7 +16,7 @@ export function PixelSizeEditor({ fieldId, pixelSizeUm, canEdit }: { fieldId: nu
     <ScaleValueEditor
       testId="pixel-size"
       value={pixelSizeUm}
-      shown={(v) => `${v} µm/px`}
+      shown={(v) => `${um(v)} µm/px`}
       unknown="no pixel size"
       setLabel="Set pixel size"
       group="Pixel size"
@@ -35,7 +35,7 @@ export function ZStepEditor({ fieldId, zStepUm, canEdit }: { fieldId: number; zS
     <ScaleValueEditor
       testId="z-step"
       value={zStepUm}
-      shown={(v) => `${v} µm between slices`}
+      shown={(v) => `${um(v)} µm between slices`}
       unknown="no z step"
       setLabel="Set z step"
       group="Z step"
@@ -46,6 +46,9 @@ export function ZStepEditor({ fieldId, zStepUm, canEdit }: { fieldId: number; zS
     />
   );
 }
+
+/** µm for people: at most four significant digits (a z step read from nm can carry float noise). */
+export const um = (v: number) => (Number.isInteger(v) ? String(v) : String(Number(v.toPrecision(4))));
 
 interface ScaleValueProps {
   testId: string;
@@ -73,7 +76,7 @@ function ScaleValueEditor({ testId, value, shown, unknown, setLabel, group, boxL
             variant="ghost"
             size="sm"
             onClick={() => {
-              setText(value ? String(value) : '');
+              setText(value ? um(value) : '');
               setProblem(null);
               mutation.reset();
               setEditing(true);

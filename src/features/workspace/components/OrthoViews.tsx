@@ -37,19 +37,19 @@ export interface OrthoViewsProps {
 
 export function OrthoViews({ field, display, ranges, point, onPoint, follow, onFollow, outlines, selected, onSlice }: OrthoViewsProps) {
   const zs = zScaleOf(field.pixelSizeUm, field.zStepUm);
-  const xBox = useNumberBox({ schema: NumberText('x', { min: 0, max: field.width - 1, integer: true }), value: point[0], onChange: (x) => onPoint([x, point[1]]) });
-  const yBox = useNumberBox({ schema: NumberText('y', { min: 0, max: field.height - 1, integer: true }), value: point[1], onChange: (y) => onPoint([point[0], y]) });
+  const xBox = useNumberBox({ schema: NumberText('point x', { min: 0, max: field.width - 1, integer: true }), value: point[0], onChange: (x) => onPoint([x, point[1]]) });
+  const yBox = useNumberBox({ schema: NumberText('point y', { min: 0, max: field.height - 1, integer: true }), value: point[1], onChange: (y) => onPoint([point[0], y]) });
   const shownZ = typeof display.z === 'number' ? display.z : display.z === undefined ? Math.floor((field.sizeZ - 1) / 2) : null;
   return (
     <div className="space-y-2 text-sm">
       <div className="flex flex-wrap items-center gap-3">
         <label className="inline-flex items-center gap-1">
-          <span>x</span>
-          <input className={cx(inputClass(!!xBox.error), 'w-20 py-0.5')} inputMode="numeric" {...xBox.input} />
+          <span>Point x</span>
+          <input className={cx(inputClass(!!xBox.error), 'py-0.5')} style={{ width: '5rem' }} inputMode="numeric" {...xBox.input} />
         </label>
         <label className="inline-flex items-center gap-1">
-          <span>y</span>
-          <input className={cx(inputClass(!!yBox.error), 'w-20 py-0.5')} inputMode="numeric" {...yBox.input} />
+          <span>Point y</span>
+          <input className={cx(inputClass(!!yBox.error), 'py-0.5')} style={{ width: '5rem' }} inputMode="numeric" {...yBox.input} />
         </label>
         <label className="inline-flex items-center gap-2">
           <input type="checkbox" checked={follow} onChange={(e) => onFollow(e.target.checked)} />
@@ -60,7 +60,7 @@ export function OrthoViews({ field, display, ranges, point, onPoint, follow, onF
       <BoxMessage box={yBox} className="text-xs text-danger" />
       <p className="text-xs text-ink-soft" data-testid="ortho-scale">
         {zs !== null
-          ? `Depth to scale: ${field.zStepUm} µm between slices over ${field.pixelSizeUm} µm per pixel, so each slice is drawn ${fmtScale(zs)} pixels tall.`
+          ? `Depth to scale: ${um(field.zStepUm!)} µm between slices over ${um(field.pixelSizeUm!)} µm per pixel, so each slice is drawn ${fmtScale(zs)} pixels tall.`
           : 'Depth is drawn one pixel per slice: the voxel size is not known (give the pixel size and the z step above to draw it to scale).'}
       </p>
       <SectionView axis="xz" at={point[1]} cross={point[0]} {...{ field, display, ranges, outlines, selected, zs, shownZ }} onPick={(u, k) => (onPoint([u, point[1]]), onSlice(k))} />
@@ -69,6 +69,8 @@ export function OrthoViews({ field, display, ranges, point, onPoint, follow, onF
   );
 }
 
+/** µm for people: at most four significant digits. */
+const um = (v: number) => (Number.isInteger(v) ? String(v) : String(Number(v.toPrecision(4))));
 const fmtScale = (v: number) => (v >= 10 ? v.toFixed(0) : v >= 1 ? v.toFixed(1) : v.toPrecision(2));
 
 interface SectionViewProps {
@@ -152,13 +154,3 @@ function SectionView({ axis, at, cross, field, display, ranges, outlines, select
   );
 }
 
-/** Where the orthogonal views pass through, drawn over the image (inside the viewer's image-space SVG): row y and column x. */
-export function SectionMarker({ point, width, height }: { point: [number, number]; width: number; height: number }) {
-  const [x, y] = point;
-  return (
-    <g data-testid="section-marker" pointerEvents="none">
-      <line x1={0} x2={width} y1={y + 0.5} y2={y + 0.5} stroke="#facc15" strokeWidth={1} strokeDasharray="4 4" vectorEffect="non-scaling-stroke" />
-      <line x1={x + 0.5} x2={x + 0.5} y1={0} y2={height} stroke="#facc15" strokeWidth={1} strokeDasharray="4 4" vectorEffect="non-scaling-stroke" />
-    </g>
-  );
-}
