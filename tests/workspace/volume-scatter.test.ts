@@ -15,7 +15,7 @@ import { label3dOf } from '../../server/routes/cells.js';
 import { labelRegions } from '../../shared/analysis/labels.js';
 import { collectPairs, computeThresholds, prepare } from '../../shared/analysis/index.js';
 import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
-import { livePreview, prepareRegion, volumeAssembly } from '../../src/features/workspace/lib/scatterCore';
+import { livePreview, prepareRegion, regionStream, volumeAssembly } from '../../src/features/workspace/lib/scatterCore';
 import { cellsVoxelMask } from '../../src/features/workspace/lib/scatterBasis';
 import { VOLUME_PREVIEW_MAX_BYTES, volumeBytes, volumeFits } from '../../src/features/workspace/lib/volumePreview';
 import type { SampleArray } from '../../shared/pixels/codec.js';
@@ -87,6 +87,40 @@ describe('whole-volume scatter and live preview', () => {
     const th = computeThresholds(prepare(collectPairs(img.ch1, img.ch2, { kind: 'indices', indices: Uint32Array.from([...union].sort((a, b) => a - b)) })), { method: 'otsu' });
     expect(r.otsu).toEqual({ t1: th.ch1, t2: th.ch2 });
     expect(r.n).toBe(W * H * Z);
+  });
+
+  it('beyond the size limit, one cell read slice by slice: only its slices, only its voxels, the same coefficients', async () => {
+    const a = await decodeChannel(dir + 'u16.ch1.tif', 1, { pages: 'slices' });
+    const b = await decodeChannel(dir + 'u16.ch2.tif', 1, { pages: 'slices' });
+    const labels = await decodeChannel(dir + 'labels3d.tif', 1, { pages: 'slices' });
+    const regions = labelRegions(concatSlices(labels.slices, 0, Z - 1));
+    const rois = JSON.parse(readFileSync(dir + 'rois.json', 'utf8')) as { name: string; points: [number, number][]; z?: [number, number] }[];
+    const cases: [string, CellGeometry, Ref][] = [
+      ...regions.map((reg): [string, CellGeometry, Ref] => [`label ${reg.label}`, label3dOf(reg.label, reg.indices, W * H), (u16.labels3d as Ref[]).find((r) => r.label === reg.label)!]),
+      ...rois.map((roi): [string, CellGeometry, Ref] => [roi.name, { kind: 'polygon', points: roi.points, ...(roi.z ? { z: roi.z } : {}) }, (u16.rois as Ref[]).find((r) => r.label === roi.name)!]),
+    ];
+    for (const [name, g, ref] of cases) {
+      const s = regionStream(W, H, Z, g, 65535);
+      const [lo, hi] = 'z' in g && g.z ? [g.z[0] - 1, g.z[1] - 1] : [0, Z - 1];
+      expect(s.slices, name).toEqual([lo, hi]);
+      // slices arrive last first
+      for (let z = hi; z >= lo; z--) {
+        expect(s.image()).toBeNull();
+        s.put(z, a.slices[z] as SampleArray, b.slices[z] as SampleArray);
+      }
+      const img = s.image()!;
+      expect(img.compact).toBe(true);
+      const r = prepareRegion(img, g);
+      expect(r.basis.over, name).toBe('region');
+      const result = livePreview(r, u16.t1, u16.t2);
+      expect(result.pixels, name).toBe(ref.pixels);
+      for (const k of ['pearson', 'spearman', 'kendallTauB', 'mandersM1', 'mandersM2', 'overlap', 'icq', 'distanceCorrelation']) near(result[k as 'pearson'], ref[k] as number | null, `${name} ${k}`);
+    }
+    // a slice outside the cell's range, and more voxel bytes than allowed, are refused with the figures quoted
+    const box = regionStream(W, H, Z, { kind: 'rect', x: 0, y: 0, width: 10, height: 10, z: [2, 3] }, 65535, 600);
+    expect(() => box.put(0, a.slices[0] as SampleArray, b.slices[0] as SampleArray)).toThrow("slice 0 is not one of the region's slices 1–2");
+    box.put(1, a.slices[1] as SampleArray, b.slices[1] as SampleArray);
+    expect(() => box.put(2, a.slices[2] as SampleArray, b.slices[2] as SampleArray)).toThrow("the cell's voxels take 800 bytes by slice 3, more than the 600 the browser preview keeps");
   });
 
   it('states the size limit: a 1024 × 1024 × 32 16-bit stack fits, one of 64 slices does not', () => {

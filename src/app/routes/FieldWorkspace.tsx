@@ -15,7 +15,7 @@ import { useFieldPixels } from '@/features/fields';
 import { useFieldResults } from '@/features/workspace';
 import { initialOutlineState, outlineReducer } from '@/features/workspace';
 import { useOutlineSync } from '@/features/workspace';
-import { useScatter, ScatterOver, volumeFits, type VolumeSource } from '@/features/workspace';
+import { useScatter, ScatterOver, volumeFits, VOLUME_PREVIEW_MAX_BYTES, type StreamSource, type VolumeSource } from '@/features/workspace';
 import { Viewer, isTyping, type DisplaySettings, type Tool } from '@/features/workspace';
 import { ToolBar, TOOLS, ShortcutHelp } from '@/features/workspace';
 import { CellsPanel } from '@/features/workspace';
@@ -96,14 +96,22 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const pixels = useFieldPixels(fieldId, display.z);
   const saturationLevel = field.sampleFormat === 'float' ? null : 2 ** field.bitDepth - 1;
   const sliceScatter = useScatter(pixels.data, saturationLevel);
-  // on a stack the scatter and live preview cover every slice (as runs measure by default) when the volume fits the browser
-  const volumeOk = volumeFits(field);
-  const [over, setOver] = useState<'volume' | 'slice'>(volumeOk ? 'volume' : 'slice');
-  const inVolume = over === 'volume' && volumeOk;
-  const volumeSource = useMemo<VolumeSource | undefined>(() => (inVolume ? { kind: 'volume', fieldId, width: field.width, height: field.height, depth: field.sizeZ } : undefined), [inVolume, fieldId, field.width, field.height, field.sizeZ]);
-  const volumeScatter = useScatter(volumeSource, saturationLevel);
-  const scatter = inVolume ? volumeScatter : sliceScatter;
   const selectedOutline = state.outlines.find((o) => o.key === state.selected) ?? null;
+  // on a stack the scatter and live preview cover every slice (as runs measure by default): the whole volume
+  // when it fits the browser (lib/volumePreview.ts), else the selected cell's voxels read slice by slice
+  const volumeOk = volumeFits(field);
+  const [over, setOver] = useState<'volume' | 'slice'>(stack && volumeOk ? 'volume' : 'slice');
+  const wantVolume = stack && over === 'volume';
+  const streamed = useRef<{ key: string; source: StreamSource } | null>(null);
+  if (wantVolume && !volumeOk && selectedOutline && !gesture) {
+    const key = `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}`;
+    if (streamed.current?.key !== key)
+      streamed.current = { key, source: { kind: 'stream', fieldId, width: field.width, height: field.height, depth: field.sizeZ, geometry: selectedOutline.geometry, maxBytes: VOLUME_PREVIEW_MAX_BYTES } };
+  } else if (!wantVolume || volumeOk || !selectedOutline) streamed.current = null;
+  const inVolume = wantVolume && (volumeOk || !!streamed.current);
+  const volumeSource = useMemo<VolumeSource | undefined>(() => (wantVolume && volumeOk ? { kind: 'volume', fieldId, width: field.width, height: field.height, depth: field.sizeZ } : undefined), [wantVolume, volumeOk, fieldId, field.width, field.height, field.sizeZ]);
+  const volumeScatter = useScatter(volumeSource ?? streamed.current?.source, saturationLevel);
+  const scatter = inVolume ? volumeScatter : sliceScatter;
   // the whole field's default thresholds are computed over the outlined cells (scatterBasis.ts): its key follows them
   const cellGeometries = useMemo(() => state.outlines.filter((o) => o.role === 'cell').map((o) => o.geometry), [state.outlines]);
   const cellsKey = useMemo(() => hashGeometry(cellGeometries), [cellGeometries]);
@@ -360,7 +368,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">
             <h2 className="mb-1 text-base font-semibold">Pixel scatter</h2>
-            {stack && <ScatterOver field={field} over={inVolume ? 'volume' : 'slice'} onOver={setOver} progress={inVolume ? volumeScatter.progress : null} />}
+            {stack && <ScatterOver field={field} over={wantVolume ? 'volume' : 'slice'} onOver={setOver} progress={inVolume ? volumeScatter.progress : null} cellChosen={!!selectedOutline} />}
             {pixels.isError && !inVolume ? (
               <ErrorNotice error={pixels.error} />
             ) : scatter.error ? (

@@ -7,7 +7,7 @@
 import { jointHistogram, type Histogram2D } from '@shared/analysis/histogram';
 import { measurePairs, collectPairs, prepare, type PreparedPairs, type RegionResult } from '@shared/analysis/index';
 import { defaultThresholds, saturatedMarks, type SaturatedMarks, type ThresholdBasis } from './scatterBasis';
-import { cellIndices, cellVoxels, type CellGeometry } from '@shared/schemas/cells';
+import { cellIndices, cellVoxels, zRangeOf, type CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 
 export interface ScatterInput {
@@ -15,6 +15,11 @@ export interface ScatterInput {
   height: number;
   /** slices held (1: one slice or the projection; more: the whole volume, slice after slice, as runs measure it) */
   depth?: number;
+  /**
+   * true when the arrays hold only one region's voxels (a stack too large to hold whole, read slice by slice for
+   * the selected cell: `regionStream`); every request then covers exactly those values
+   */
+  compact?: boolean;
   ch1: SampleArray;
   ch2: SampleArray;
   /** largest value the pixel type holds (2^bits − 1), null for float data: pixels at it count as saturated */
@@ -56,7 +61,7 @@ export interface ScatterResult {
  * cells: the whole field's default thresholds are computed over them (scatterBasis.ts).
  */
 export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, bins = 256, cells: readonly CellGeometry[] = []): Region {
-  const indices = regionIndices(img, geometry);
+  const indices = img.compact ? null : regionIndices(img, geometry);
   const p = prepare(collectPairs(img.ch1, img.ch2, indices ? { kind: 'indices', indices } : null));
   let max1 = 0, max2 = 0, min1 = Infinity, min2 = Infinity, sat1 = 0, sat2 = 0;
   const L = img.saturationLevel ?? Infinity;
@@ -70,7 +75,8 @@ export function prepareRegion(img: ScatterInput, geometry: CellGeometry | null, 
     if (b >= L) sat2++;
   }
   const saturated = img.saturationLevel == null || p.n === 0 ? { ch1: null, ch2: null } : { ch1: sat1 / p.n, ch2: sat2 / p.n };
-  const th = defaultThresholds(img, indices, cells);
+  const th = defaultThresholds(img, indices, img.compact ? [] : cells);
+  if (img.compact) th.basis = { ...th.basis, over: 'region' };
   // axes from the region's minimum (0 when it holds zeros or negatives) to just above the 99.95th percentile,
   // so a few saturated or hot pixels don't squash the cloud into a corner; pixels beyond are counted in
   // hist.outside (the quadrant counts stay exact over all pixels)
@@ -104,6 +110,51 @@ export function volumeAssembly(width: number, height: number, depth: number, sat
     },
     image(): ScatterInput | null {
       return received.size === depth && ch1 && ch2 ? { width, height, depth, ch1, ch2, saturationLevel } : null;
+    },
+  };
+}
+
+/**
+ * One region's voxels of a stack too large to hold whole, gathered slice by slice as the slices arrive: only
+ * the slices of the region's z range are needed (`slices`, 0-based inclusive), and of each only the region's
+ * voxels there (`cellVoxels` on that slice: the same voxels runs measure) are kept. `image()` is a compact
+ * input holding exactly those values once every needed slice is in; coefficients do not depend on the order
+ * of the voxels. `maxBytes` bounds what is kept (a RangeError quoting the size beyond it).
+ */
+export function regionStream(width: number, height: number, depth: number, geometry: CellGeometry, saturationLevel: number | null, maxBytes = Infinity) {
+  const [a, b] = zRangeOf(geometry, depth);
+  const slices: [number, number] = [a - 1, Math.min(b, depth) - 1];
+  const parts = new Map<number, [SampleArray, SampleArray]>();
+  let bytes = 0;
+  return {
+    slices,
+    put(z: number, ch1: SampleArray, ch2: SampleArray) {
+      if (!(Number.isInteger(z) && z >= slices[0] && z <= slices[1])) throw new RangeError(`slice ${z} is not one of the region's slices ${slices[0]}–${slices[1]}`);
+      const idx = cellVoxels(geometry, width, height, z, 1);
+      const take = (src: SampleArray) => {
+        const out = new (src.constructor as new (n: number) => SampleArray)(idx.length);
+        for (let k = 0; k < idx.length; k++) out[k] = src[idx[k]];
+        return out;
+      };
+      const part: [SampleArray, SampleArray] = [take(ch1), take(ch2)];
+      bytes += part[0].byteLength + part[1].byteLength;
+      if (bytes > maxBytes) throw new RangeError(`the cell's voxels take ${bytes} bytes by slice ${z + 1}, more than the ${maxBytes} the browser preview keeps; preview the slice shown instead`);
+      parts.set(z, part);
+    },
+    get received() {
+      return parts.size;
+    },
+    image(): ScatterInput | null {
+      if (parts.size !== slices[1] - slices[0] + 1) return null;
+      const ordered = [...parts.entries()].sort((x, y) => x[0] - y[0]).map(([, p]) => p);
+      const n = ordered.reduce((m, p) => m + p[0].length, 0);
+      const join = (c: 0 | 1) => {
+        const out = new (ordered[0][c].constructor as new (n: number) => SampleArray)(n);
+        let o = 0;
+        for (const p of ordered) out.set(p[c], o), (o += p[c].length);
+        return out;
+      };
+      return { width: Math.max(1, n), height: 1, depth: 1, compact: true, ch1: join(0), ch2: join(1), saturationLevel };
     },
   };
 }

@@ -4,7 +4,7 @@
  * is busy replaces any other waiting one).
  */
 import { useEffect, useRef, useState } from 'react';
-import type { CellGeometry } from '@shared/schemas/cells';
+import { zRangeOf, type CellGeometry } from '@shared/schemas/cells';
 import type { RegionResult } from '@shared/analysis/types';
 import type { PixelPlanes } from '@shared/pixels/codec';
 import type { ScatterReply, ScatterRequest } from './scatter.worker';
@@ -18,7 +18,21 @@ export interface VolumeSource {
   height: number;
   depth: number;
 }
-export type ScatterSource = PixelPlanes | VolumeSource;
+/**
+ * One cell's voxels of a stack too large to hold whole: the slices of its z range fetched one by one, of each
+ * only the cell's voxels kept in the worker (scatterCore.ts regionStream).
+ */
+export interface StreamSource {
+  kind: 'stream';
+  fieldId: number;
+  width: number;
+  height: number;
+  depth: number;
+  geometry: CellGeometry;
+  /** the most bytes of voxel values kept */
+  maxBytes: number;
+}
+export type ScatterSource = PixelPlanes | VolumeSource | StreamSource;
 
 type ScatterMessage = Extract<ScatterReply, { type: 'scatter' }>;
 export type ScatterView = ScatterMessage & { counts: Uint32Array; saturatedMarks: ScatterMessage['saturatedMarks'] & { marks: Uint8Array } };
@@ -60,15 +74,21 @@ export function useScatter(pixels: ScatterSource | undefined, saturationLevel: n
     if ('kind' in pixels) {
       // slice by slice: the browser never holds more than one slice besides the worker's volume
       const v = pixels;
-      setProgress({ done: 0, total: v.depth });
-      w.postMessage({ type: 'volume-begin', width: v.width, height: v.height, depth: v.depth, saturationLevel } satisfies ScatterRequest);
+      let [from, to] = [0, v.depth - 1];
+      if (v.kind === 'stream') {
+        [from, to] = zRangeOf(v.geometry, v.depth).map((k) => k - 1);
+        to = Math.min(to, v.depth - 1);
+        w.postMessage({ type: 'stream-begin', width: v.width, height: v.height, depth: v.depth, geometry: v.geometry, saturationLevel, maxBytes: v.maxBytes } satisfies ScatterRequest);
+      } else w.postMessage({ type: 'volume-begin', width: v.width, height: v.height, depth: v.depth, saturationLevel } satisfies ScatterRequest);
+      const total = to - from + 1;
+      setProgress({ done: 0, total });
       void (async () => {
-        for (let z = 0; z < v.depth; z++) {
+        for (let z = from; z <= to; z++) {
           const s = await fetchFieldPixels(v.fieldId, z, abort.signal);
           if (abort.signal.aborted) return;
           if (s.width !== v.width || s.height !== v.height) throw new Error(`slice ${z + 1} is ${s.width} × ${s.height} pixels, not ${v.width} × ${v.height}`);
           w.postMessage({ type: 'volume-slice', z, ch1: s.ch1, ch2: s.ch2 } satisfies ScatterRequest, [s.ch1.buffer, s.ch2.buffer]);
-          setProgress({ done: z + 1, total: v.depth });
+          setProgress({ done: z - from + 1, total });
         }
         setReady(true);
       })().catch((e: Error) => {
