@@ -1,6 +1,6 @@
 /**
  * µm between z slices for stacks whose files state none (issue 16): `PUT /api/fields/:id/z-step` and `zStepUm`
- * per field of the upload plan. Bad values are refused with the value quoted, a single plane has no z step,
+ * per field of the upload plan (and the sample sheet's `z_step_um` column, which fills it). Bad values are refused with the value quoted, a single plane has no z step,
  * a file's own z step is kept over the plan's; once set, a recipe whose 3D randomization blocks take their
  * depth from the axial point-spread width passes the pre-run check (it was blocked before) and runs, and the
  * change is audited.
@@ -12,6 +12,9 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { auditEvents } from '../../server/db/schema.js';
 import { FieldSummary, UploadResponse } from '../../shared/schemas/fields.js';
 import { RunCheckResponse } from '../../shared/schemas/runs.js';
+import { SampleSheetApplyResponse, SampleSheetCheckResponse } from '../../shared/schemas/sample-sheet.js';
+import crypto from 'node:crypto';
+import { readFileSync } from 'node:fs';
 import { syntheticPair, tiff16, waitForRun } from '../runs/helpers.js';
 
 const dir = fileURLToPath(new URL('../fixtures/volumes/', import.meta.url));
@@ -109,5 +112,23 @@ describe('PUT /api/fields/:id/z-step', () => {
     const ev = t.ctx.db.select().from(auditEvents).where(and(eq(auditEvents.action, 'field.z_step'), eq(auditEvents.entityId, field.id))).get();
     expect(ev?.details).toEqual({ from: null, to: 0.4 });
     expect(FieldSummary.parse((await mic.put(`/api/fields/${field.id}/z-step`).send({ zStepUm: null })).body).zStepUm).toBeNull();
+  });
+});
+
+describe('z_step_um in the sample sheet', () => {
+  it('is checked with the value quoted and carried into the upload plan, which gives the stack its z step', async () => {
+    const owner = await t.login('biologist');
+    const bad = SampleSheetCheckResponse.parse((await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/check`).send({ csv: 'file,condition,coverslip,z_step_um\ns.tif,control,CS1,-1\n' })).body);
+    expect(bad.problems).toEqual([{ line: 2, message: 'z_step_um must be a number of µm between slices above 0 (at most 1000), got "-1"' }]);
+    const bytes = readFileSync(dir + 'u16.stated.tif');
+    const files = [{ name: 'sheet-stack.tif', sha256: crypto.createHash('sha256').update(bytes).digest('hex') }];
+    const csv = 'file,condition,coverslip,name,z_step_um\nsheet-stack.tif,control,sheet slip,from the sheet,0.45\n';
+    const checked = SampleSheetCheckResponse.parse((await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/check`).send({ csv, files })).body);
+    expect(checked.rows[0].zStepUm).toBe(0.45);
+    const applied = SampleSheetApplyResponse.parse((await owner.post(`/api/studies/${t.world.studyA}/sample-sheet/apply`).send({ csv, files })).body);
+    const u = applied.uploads[0];
+    expect(u.plan[0].zStepUm).toBe(0.45);
+    const res = await owner.post(`/api/coverslips/${u.coverslipId}/fields`).attach('files', bytes, 'sheet-stack.tif').field('plan', JSON.stringify(u.plan));
+    expect(fieldOf(res).zStepUm).toBe(0.45);
   });
 });
