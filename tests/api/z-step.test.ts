@@ -2,8 +2,8 @@
  * µm between z slices for stacks whose files state none (issue 16): `PUT /api/fields/:id/z-step` and `zStepUm`
  * per field of the upload plan (and the sample sheet's `z_step_um` column, which fills it). Bad values are refused with the value quoted, a single plane has no z step,
  * a file's own z step is kept over the plan's; once set, a recipe whose 3D randomization blocks take their
- * depth from the axial point-spread width passes the pre-run check (it was blocked before) and runs, and the
- * change is audited.
+ * depth from the axial point-spread width passes the pre-run check (it was blocked before) and runs, a report's
+ * methods paragraph states the voxel size with it, and the change is audited.
  */
 import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -14,6 +14,7 @@ import { FieldSummary, UploadResponse } from '../../shared/schemas/fields.js';
 import { RunCheckResponse } from '../../shared/schemas/runs.js';
 import { SampleSheetApplyResponse, SampleSheetCheckResponse } from '../../shared/schemas/sample-sheet.js';
 import crypto from 'node:crypto';
+import { buildSnapshot } from '../../server/reports/snapshot.js';
 import { readFileSync } from 'node:fs';
 import { syntheticPair, tiff16, waitForRun } from '../runs/helpers.js';
 
@@ -109,6 +110,9 @@ describe('PUT /api/fields/:id/z-step', () => {
     expect(RunCheckResponse.parse((await mic.post('/api/runs/check').send(body)).body)).toEqual({ ready: [field.id], blocked: [] });
     const run = await mic.post('/api/runs').send(body);
     expect((await waitForRun(async () => (await mic.get(`/api/runs/${run.body.id}`)).body)).status).toBe('done');
+    // the methods paragraph of a report over the run states the voxel size with the z step given by hand
+    const snap = await buildSnapshot(t.ctx, t.world.studyA, { coefficients: ['pearson'], runId: run.body.id });
+    expect(snap.methods).toMatch(/voxel size [^)]*0\.1 × 0\.1 × 0\.4 µm/);
     const ev = t.ctx.db.select().from(auditEvents).where(and(eq(auditEvents.action, 'field.z_step'), eq(auditEvents.entityId, field.id))).get();
     expect(ev?.details).toEqual({ from: null, to: 0.4 });
     expect(FieldSummary.parse((await mic.put(`/api/fields/${field.id}/z-step`).send({ zStepUm: null })).body).zStepUm).toBeNull();
