@@ -130,6 +130,7 @@ export const OPERATIONS: Record<string, Operation> = {
   'GET /api/fields/:id': { summary: 'A field with its files and channel facts', query: null, body: null, response: N(fields, 'FieldDetail') },
   'DELETE /api/fields/:id': { summary: 'Delete a field', query: null, body: null, response: N(fields, 'DeleteFieldResponse') },
   'PUT /api/fields/:id/pixel-size': { summary: 'Set or clear the µm per pixel of a field whose files carry none', query: null, body: N(fields, 'SetFieldPixelSizeRequest'), response: N(fields, 'FieldSummary') },
+  'PUT /api/fields/:id/z-step': { summary: 'Set or clear the µm between the slices of a stack whose files state none', query: null, body: N(fields, 'SetFieldZStepRequest'), response: N(fields, 'FieldSummary') },
   'PUT /api/fields/:id/instrument': { summary: 'Set or clear the instrument a field was acquired on', query: null, body: N(fields, 'SetFieldInstrumentRequest'), response: N(fields, 'FieldSummary') },
   'GET /api/fields/:id/preview.png': { summary: 'A two-channel colour preview', query: N(fields, 'PreviewQuery'), body: null, response: { media: 'image/png', description: 'the preview picture' } },
   'GET /api/fields/:id/shift': { summary: "A field's channel shift with the cross-correlation curves around it (measured, not stored)", query: N(instruments, 'FieldShiftQuery'), body: null, response: N(instruments, 'FieldShift') },

@@ -71,6 +71,7 @@ export const ROUTE_RULES: Record<string, Rule> = {
   'DELETE /api/fields/:id': { study: 'edit_images' },
   'PUT /api/fields/:id/instrument': { study: 'edit_images' },
   'PUT /api/fields/:id/pixel-size': { study: 'edit_images' },
+  'PUT /api/fields/:id/z-step': { study: 'edit_images' },
   'GET /api/fields/:id/preview.png': { study: 'read' },
   'GET /api/fields/:id/pixels': { study: 'read' },
   'GET /api/fields/:id/shift': { study: 'read' },

@@ -8,10 +8,15 @@
  * (shared/analysis/outline-trace.ts): a Polygon with holes, or a MultiPolygon for a mask in several parts.
  *
  * Import (the reverse): `kind: "rect" | "ellipse"` with a valid `shape` is stored as that shape; a Polygon
- * with one ring as a polygon (`kind: "freehand"`: a trace) with its vertices kept; `kind: "label"`, a Polygon
+ * with one ring as a polygon (`kind: "freehand"`: a trace) with its vertices kept; `kind: "label" | "label3d"`, a Polygon
  * with holes or a MultiPolygon as the pixel mask its rings cover (even-odd per polygon, polygons joined; shared/analysis/
  * rasterize.ts fillRings), so holes are kept and export gives back the same outline. Every feature is checked
  * before anything is stored; the first fault is an error naming the feature (index and name) and what is wrong.
+ *
+ * Stacks: a drawn outline with a z range carries it as `properties.z` ([from, to], 1-based, inclusive) and
+ * comes back with it. A 3-D label cell is written as its footprint (the union of its slices) with the slices it
+ * spans in `z`; read back it becomes that footprint on every slice of the range, so the exact voxels of a cell
+ * whose shape changes from slice to slice travel in the label-stack TIFF instead.
  */
 import { HttpError } from '../http/errors.js';
 import { fillRings, maskToIndices, type Point } from '../../shared/analysis/rasterize.js';
@@ -19,6 +24,8 @@ import { traceOutline } from '../../shared/analysis/outline-trace.js';
 import { encodeRuns } from '../../shared/analysis/rle.js';
 import {
   EllipseGeometry,
+  ZRange,
+  checkZRange,
   MAX_CELL_NAME,
   MAX_VERTICES,
   PIXEL_CONVENTION,
@@ -36,7 +43,7 @@ const close = (ring: Point[]): [number, number][] => [...ring.map((p) => [p[0], 
 
 function featureOf(c: Cell, width: number, height: number): OutlineFeature {
   const g = c.geometry;
-  const props = { name: c.name, background: c.role === 'background', kind: g.kind, cellId: c.id, excluded: c.excluded };
+  const props = { name: c.name, background: c.role === 'background', kind: g.kind, cellId: c.id, excluded: c.excluded, ...('z' in g && g.z ? { z: [g.z[0], g.z[1]] as [number, number] } : {}) };
   const base = { type: 'Feature' as const, id: c.id };
   switch (g.kind) {
     case 'polygon':
@@ -90,8 +97,13 @@ const show = (v: Json) => {
   return t.length > 60 ? `${t.slice(0, 57)}...` : t;
 };
 
-/** Reads a parsed GeoJSON document into outlines for a width × height field, or throws a 400 naming the feature at fault. */
-export function readOutlines(doc: Json, width: number, height: number): ImportedOutline[] {
+/**
+ * Reads a parsed GeoJSON document into outlines for a width × height field of `sizeZ` slices, or throws a 400
+ * naming the feature at fault. A feature's `properties.z` ([from, to], 1-based) gives a drawn outline that z
+ * range, and makes a mask (a label, a polygon with holes, a multipolygon) a 3-D label cell with the mask on
+ * every slice of the range.
+ */
+export function readOutlines(doc: Json, width: number, height: number, sizeZ = 1): ImportedOutline[] {
   const fail = (message: string, path = '') => new HttpError(400, message, path ? { issues: [{ path, message }] } : undefined);
   if (!isObj(doc)) throw fail(`a GeoJSON file holds an object, received ${show(doc)}`);
   let features: Json[];
@@ -107,7 +119,7 @@ export function readOutlines(doc: Json, width: number, height: number): Imported
 
   const labelsTaken = new Set<number>();
   const out: ImportedOutline[] = [];
-  const pending: { i: number; polygons: Point[][][]; label: number | null; name: string; role: CellRole }[] = [];
+  const pending: { i: number; polygons: Point[][][]; label: number | null; name: string; role: CellRole; z: [number, number] | null }[] = [];
   features.forEach((f, i) => {
     const props = isObj(f) && isObj(f.properties) ? f.properties : {};
     const nameText = typeof props.name === 'string' && props.name.trim() ? ` ("${props.name.trim().slice(0, 40)}")` : '';
@@ -125,6 +137,18 @@ export function readOutlines(doc: Json, width: number, height: number): Imported
     }
     if (props.background !== undefined && typeof props.background !== 'boolean') throw bad(`background must be true or false, received ${show(props.background)}`, 'properties.background');
     const role: CellRole = props.background === true ? 'background' : 'cell';
+    let zr: [number, number] | null = null;
+    if (props.z !== undefined) {
+      const parsed = ZRange.safeParse(props.z);
+      if (!parsed.success) throw bad(`z must be [first slice, last slice], counted from 1, received ${show(props.z)} (${parsed.error.issues[0].message})`, 'properties.z');
+      zr = parsed.data;
+      try {
+        checkZRange({ kind: 'rect', x: 0, y: 0, width: 1, height: 1, z: zr }, sizeZ);
+      } catch (e) {
+        throw bad((e as Error).message, 'properties.z');
+      }
+    }
+    const zPart = zr ? { z: zr } : {};
     // geometry
     const g = f.geometry;
     if (!isObj(g)) throw bad(`has no geometry (received ${show(g)}); give a Polygon or MultiPolygon`, 'geometry');
@@ -153,16 +177,16 @@ export function readOutlines(doc: Json, width: number, height: number): Imported
     // stored form
     const kind = props.kind;
     if (kind === 'rect' || kind === 'ellipse') {
-      const parsed = (kind === 'rect' ? RectGeometry : EllipseGeometry).safeParse({ kind, ...(isObj(props.shape) ? props.shape : {}) });
+      const parsed = (kind === 'rect' ? RectGeometry : EllipseGeometry).safeParse({ kind, ...(isObj(props.shape) ? props.shape : {}), ...zPart });
       if (!parsed.success) throw bad(`kind "${kind}" needs its exact shape in properties.shape (${parsed.error.issues[0].path.join('.') || 'shape'}: ${parsed.error.issues[0].message})`, 'properties.shape');
       out[i] = { name, role, geometry: parsed.data, pixelCount: count(parsed.data, at) };
-    } else if (kind !== 'label' && polygons.length === 1 && polygons[0].length === 1) {
-      const geometry: CellGeometry = { kind: kind === 'freehand' ? 'freehand' : 'polygon', points: polygons[0][0] };
+    } else if (kind !== 'label' && kind !== 'label3d' && polygons.length === 1 && polygons[0].length === 1) {
+      const geometry: CellGeometry = { kind: kind === 'freehand' ? 'freehand' : 'polygon', points: polygons[0][0], ...zPart };
       out[i] = { name, role, geometry, pixelCount: count(geometry, at) };
     } else {
       const label = typeof props.label === 'number' && Number.isInteger(props.label) && props.label > 0 && !labelsTaken.has(props.label) ? props.label : null;
       if (label !== null) labelsTaken.add(label);
-      pending.push({ i, polygons, label, name, role });
+      pending.push({ i, polygons, label, name, role, z: zr });
     }
   });
   // masks: polygons with holes and multipolygons
@@ -185,7 +209,9 @@ export function readOutlines(doc: Json, width: number, height: number): Imported
       label = nextLabel;
       labelsTaken.add(label);
     }
-    out[p.i] = { name: p.name, role: p.role, geometry: { kind: 'label', label, rle: encodeRuns(indices, width * height) }, pixelCount: indices.length };
+    const rle = encodeRuns(indices, width * height);
+    const geometry: CellGeometry = p.z ? { kind: 'label3d', label, z: p.z, slices: Array.from({ length: p.z[1] - p.z[0] + 1 }, () => rle) } : { kind: 'label', label, rle };
+    out[p.i] = { name: p.name, role: p.role, geometry, pixelCount: indices.length };
   }
   return out;
 

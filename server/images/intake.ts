@@ -46,6 +46,8 @@ export interface IngestRequest {
   instrumentId?: number | null;
   /** µm per pixel when the files carry none (a pixel size in the files is kept; also a sample sheet's pixel_size_um) */
   pixelSizeUm?: number | null;
+  /** µm between z slices when the files carry none (kept from the files when they state it; ignored for a single plane) */
+  zStepUm?: number | null;
 }
 
 export interface IngestOptions {
@@ -146,7 +148,7 @@ export async function ingestField(ctx: AppContext, req: IngestRequest, opts: Ing
           bitDepth: stack.bitDepth,
           sampleFormat: stack.sampleFormat,
           pixelSizeUm: stack.info1.pixelSizeUm ?? stack.info2.pixelSizeUm ?? req.pixelSizeUm ?? null,
-          zStepUm: stack.sizeZ > 1 ? (stack.info1.zStepUm ?? stack.info2.zStepUm ?? null) : null,
+          zStepUm: stack.sizeZ > 1 ? (stack.info1.zStepUm ?? stack.info2.zStepUm ?? req.zStepUm ?? null) : null,
           facts,
           instrumentId: req.instrumentId ?? null,
           uploadedBy: req.userId ?? null,

@@ -33,3 +33,23 @@ export function concatSlices<T extends ArrayLike<number> & { set(a: ArrayLike<nu
   for (let k = from; k <= to; k++) out.set(slices[k], (k - from) * len);
   return out;
 }
+
+/**
+ * The orthogonal section of a stack through one row or column, for the workspace's XZ and YZ views: 'xz' at
+ * row y is `width` × `slices` and 'yz' at column x is `height` × `slices`; row k is slice k in both (z runs
+ * down, x or y across), in the slices' own sample type. `at` must lie inside the plane (callers check it and
+ * quote a bad value).
+ */
+export function orthoSection<T extends ArrayLike<number> & { [i: number]: number }>(slices: T[], width: number, height: number, axis: 'xz' | 'yz', at: number): T {
+  const Z = slices.length;
+  const Ctor = slices[0].constructor as new (n: number) => T;
+  const across = axis === 'xz' ? width : height;
+  const out = new Ctor(across * Z);
+  for (let k = 0; k < Z; k++) {
+    const s = slices[k];
+    const o = k * across;
+    if (axis === 'xz') for (let x = 0, row = at * width; x < width; x++) out[o + x] = s[row + x];
+    else for (let y = 0; y < height; y++) out[o + y] = s[y * width + at];
+  }
+  return out;
+}

@@ -8,6 +8,7 @@ import type { Db } from '../db/client.js';
 import { auditEvents, conditions, coverslips, fields, files, instruments } from '../db/schema.js';
 import { parseCsvRecords } from '../../shared/format/csv.js';
 import { SAMPLE_SHEET_COLUMNS, SAMPLE_SHEET_REQUIRED, type SampleSheetApplyResponse, type SampleSheetCheckRequest, type SampleSheetCheckResponse, type SampleSheetUpload, type SampleSheetProblem, type SampleSheetRow } from '../../shared/schemas/sample-sheet.js';
+import { ZStepUm } from '../../shared/schemas/fields.js';
 import { HttpError, badRequest } from '../http/errors.js';
 
 export function checkSampleSheet(
@@ -63,6 +64,13 @@ export function checkSampleSheet(
       if (!Number.isFinite(v) || v <= 0 || v > 1000) said.push(`pixel_size_um must be a number of µm above 0 (at most 1000), got ${JSON.stringify(px)}`);
       else pixelSizeUm = v;
     }
+    let zStepUm: number | null = null;
+    const zs = get('z_step_um');
+    if (zs !== '') {
+      const v = Number(zs);
+      if (!ZStepUm.safeParse(v).success) said.push(`z_step_um must be a number of µm between slices above 0 (at most 1000), got ${JSON.stringify(zs)}`);
+      else zStepUm = v;
+    }
     const instrument = get('instrument') || null;
     const instrumentId = instrument ? (instByName.get(instrument) ?? null) : null;
     if (instrument && instrumentId === null) said.push(`no instrument is named ${JSON.stringify(instrument)}`);
@@ -84,7 +92,7 @@ export function checkSampleSheet(
     if (first !== undefined) said.push(`it names the same field as line ${first}`);
     else names.set(fieldKey, line);
     if (said.length) problems.push({ line, message: said.join('; ') });
-    rows.push({ line, file, file2, ch1, ch2, condition, coverslip, name, pixelSizeUm, instrument, instrumentId, conditionId: cond?.id ?? null, coverslipId: slip?.id ?? null });
+    rows.push({ line, file, file2, ch1, ch2, condition, coverslip, name, pixelSizeUm, zStepUm, instrument, instrumentId, conditionId: cond?.id ?? null, coverslipId: slip?.id ?? null });
   }
 
   // files already stored: the sheet's file names whose SHA-256 (as the browser computed it) is in the store
@@ -176,6 +184,7 @@ export function applySampleSheet(
         // an empty instrument cell leaves it to the study's default instrument
         ...(r.instrumentId !== null ? { instrumentId: r.instrumentId } : {}),
         ...(r.pixelSizeUm !== null ? { pixelSizeUm: r.pixelSizeUm } : {}),
+        ...(r.zStepUm !== null ? { zStepUm: r.zStepUm } : {}),
       }));
       uploads.push({ coverslipId, files: names, plan, lines: part.map((r) => r.line) });
     }

@@ -292,7 +292,7 @@ export default function cellsRoutes(ctx: AppContext) {
   r.get('/fields/:id/cells/labels.tiff', (req, res) => {
     const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
-    const tiff = labelTiffOf(liveCells(fieldId, field.sizeZ), field.width, field.height);
+    const tiff = labelTiffOf(liveCells(fieldId, field.sizeZ), field.width, field.height, field.sizeZ);
     res.setHeader('content-type', 'image/tiff');
     res.setHeader('content-disposition', `attachment; filename="${fileSafe(field.name)}-labels.tif"`);
     res.end(tiff);
@@ -308,7 +308,7 @@ export default function cellsRoutes(ctx: AppContext) {
     } catch (e) {
       throw badRequest(`the file is not valid JSON: ${(e as Error).message}`);
     }
-    const outlines = readOutlines(doc, field.width, field.height);
+    const outlines = readOutlines(doc, field.width, field.height, field.sizeZ);
     const replace = req.query.replace === '1' || req.query.replace === 'true';
     const created = ctx.db.transaction((tx) => {
       if (replace) for (const c of tx.select().from(cells).where(and(eq(cells.fieldId, fieldId), eq(cells.source, 'geojson'), isNull(cells.deletedAt))).all()) removeCell(tx, c);

@@ -6,9 +6,11 @@
  *   GET    /api/studies/:studyId/fields      fields of a study (read)
  *   GET    /api/fields/:id                   FieldDetail (read)
  *   DELETE /api/fields/:id                   delete; soft delete while measurements refer to it (edit_images)
+ *   PUT    /api/fields/:id/pixel-size    µm per pixel by hand (edit_images, audited)
+ *   PUT    /api/fields/:id/z-step        µm between slices of a stack by hand (edit_images, audited)
  *   GET    /api/fields/:id/preview.png       composite / single-channel preview (read)
  *   GET    /api/fields/:id/pixels?z=         raw pixels of one slice (or the projection) for the browser's pixel
- *          scatter (read), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
+ *          scatter (read), or ?section=xz|yz&at= an orthogonal section through every slice (the XZ / YZ views), in the one pixel format of shared/pixels/codec.ts (header + both channels in the
  *          field's own sample type); header x-syntopy-z names the slice in words.
  *   GET    /api/fields/:id/shift?maxShift=    the field's channel shift and van Steensel curves (read; nothing stored)
  */
@@ -25,9 +27,10 @@ import { notFoundAsked, requireStudy, studyPermissions, type StudyAction } from 
 import type { SessionUser } from '../auth/session.js';
 import { badRequest, HttpError, parse, unauthorized } from '../http/errors.js';
 import { idParam } from '../http/params.js';
-import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, SetFieldPixelSizeRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
+import { FieldDetail, FieldSummary, PixelsQuery, PreviewQuery, SATURATION_FLAG_FRACTION, SetFieldInstrumentRequest, SetFieldPixelSizeRequest, SetFieldZStepRequest, UploadPlan, type UploadResult } from '../../shared/schemas/fields.js';
 import { encodePixels, PIXELS_CONTENT_TYPE, sampleTypeOf } from '../../shared/pixels/codec.js';
-import { ingestField, inFlightShas, loadFieldPixels, type FieldRow } from '../images/intake.js';
+import { ingestField, inFlightShas, loadFieldPixels, loadFieldStack, type FieldRow } from '../images/intake.js';
+import { orthoSection } from '../images/projection.js';
 import { renderPreview } from '../images/preview.js';
 import { keyForSha } from '../images/store.js';
 import { decodePoolOf } from '../images/decode-pool.js';
@@ -260,6 +263,7 @@ export default function fieldsRoutes(ctx: AppContext) {
                 name,
                 instrumentId: p.instrumentId === undefined ? studyDefault : p.instrumentId,
                 pixelSizeUm: p.pixelSizeUm ?? null,
+                zStepUm: p.zStepUm ?? null,
                 sources: [
                   { path: f1.path, originalName: f1.originalname, channel: p.ch1.channel, sha256: f1.sha256 },
                   { path: f2.path, originalName: f2.originalname, channel: p.ch2.channel, sha256: f2.sha256 },
@@ -372,6 +376,21 @@ export default function fieldsRoutes(ctx: AppContext) {
     res.json(toFieldSummary(next));
   });
 
+  /** µm between the slices of a stack whose files state none (or a correction); 3D block depths and the methods paragraph use it; audited. */
+  r.put('/fields/:id/z-step', (req, res) => {
+    const fieldId = idParam(req, 'id');
+    const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
+    if (field.status === 'deleted') throw notFoundAsked({ what: 'field', id: fieldId });
+    const { zStepUm } = parse(SetFieldZStepRequest, req.body);
+    if (zStepUm !== null && field.sizeZ <= 1) throw new HttpError(409, `field "${field.name}" is a single plane, so it has no z step to set (got ${zStepUm} µm)`);
+    const next = ctx.db.transaction((tx) => {
+      const row = tx.update(fields).set({ zStepUm }).where(eq(fields.id, fieldId)).returning().get();
+      tx.insert(auditEvents).values({ actorId: req.user!.id, action: 'field.z_step', entity: 'field', entityId: fieldId, studyId, details: { from: field.zStepUm, to: zStepUm } }).run();
+      return row;
+    });
+    res.json(toFieldSummary(next));
+  });
+
   r.delete('/fields/:id', async (req, res) => {
     const fieldId = idParam(req, 'id');
     const { field, studyId } = loadFieldFor(ctx, req.user, fieldId, 'edit_images');
@@ -398,6 +417,22 @@ export default function fieldsRoutes(ctx: AppContext) {
     const fieldId = idParam(req, 'id');
     const { field } = loadFieldFor(ctx, req.user, fieldId, 'read');
     const q = parse(PixelsQuery, req.query);
+    if (q.section) {
+      // an orthogonal section: one row (xz) or column (yz) of every slice, a few hundred kB even for large stacks
+      const at = q.at!;
+      const limit = q.section === 'xz' ? field.height : field.width;
+      if (at >= limit) throw badRequest(`at=${at} is outside the field: the ${q.section === 'xz' ? 'rows' : 'columns'} run 0–${limit - 1}`);
+      const stack = await loadFieldStack(ctx, field);
+      const ch1 = orthoSection(stack.ch1, stack.width, stack.height, q.section, at);
+      const ch2 = orthoSection(stack.ch2, stack.width, stack.height, q.section, at);
+      const [w, h] = [q.section === 'xz' ? stack.width : stack.height, stack.sizeZ];
+      const body = encodePixels({ width: w, height: h, depth: 1, bitDepth: stack.bitDepth, sampleType: sampleTypeOf(ch1), ch1, ch2 });
+      res.setHeader('content-type', PIXELS_CONTENT_TYPE);
+      res.setHeader('x-syntopy-z', q.section === 'xz' ? `section through row y = ${at}, x across, slices 1 to ${stack.sizeZ} top to bottom` : `section through column x = ${at}, y across, slices 1 to ${stack.sizeZ} top to bottom`);
+      res.setHeader('access-control-expose-headers', 'x-syntopy-z');
+      res.end(body);
+      return;
+    }
     const px = await loadFieldPixels(ctx, field.id, { z: q.z });
     const body = encodePixels({ width: px.width, height: px.height, depth: px.depth, bitDepth: px.bitDepth, sampleType: sampleTypeOf(px.ch1), ch1: px.ch1, ch2: px.ch2 });
     res.setHeader('content-type', PIXELS_CONTENT_TYPE);

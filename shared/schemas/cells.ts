@@ -265,6 +265,11 @@ export const OutlineProperties = z.object({
   shape: z.union([RectGeometry.omit({ kind: true }), EllipseGeometry.omit({ kind: true })]).optional(),
   /** the label number of a cell imported from a label image */
   label: z.number().int().positive().optional(),
+  /**
+   * the slices the outline covers in a stack, 1-based and inclusive (absent: every slice); a 3-D label cell gives
+   * its footprint with the slices it spans (its exact voxels travel in the label-stack TIFF)
+   */
+  z: ZRange.optional(),
   cellId: z.number().int(),
   excluded: z.boolean(),
 });

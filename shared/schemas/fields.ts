@@ -52,6 +52,19 @@ export const PixelSizeUm = z
 export const SetFieldPixelSizeRequest = z.object({ pixelSizeUm: PixelSizeUm.nullable() });
 export type SetFieldPixelSizeRequest = z.infer<typeof SetFieldPixelSizeRequest>;
 
+/**
+ * µm between z slices given by hand, for stacks whose files state none: a finite number above 0 and at most 1000
+ * (the recipes' bound for a z step); errors quote the value received.
+ */
+export const ZStepUm = z
+  .number({ error: (iss) => `the z step must be a number of µm between slices, got ${JSON.stringify(iss.input) ?? String(iss.input)}` })
+  .gt(0, { error: (iss) => `the z step must be above 0 µm between slices, got ${String(iss.input)}` })
+  .max(1000, { error: (iss) => `the z step must be at most 1000 µm between slices, got ${String(iss.input)}` });
+
+/** PUT /api/fields/:id/z-step: the stack's µm between slices (null: not known). */
+export const SetFieldZStepRequest = z.object({ zStepUm: ZStepUm.nullable() });
+export type SetFieldZStepRequest = z.infer<typeof SetFieldZStepRequest>;
+
 /** PUT /api/fields/:id/instrument: the instrument the field was recorded on, or null for none. */
 export const SetFieldInstrumentRequest = z.object({ instrumentId: z.number().int().positive().nullable() });
 
@@ -97,6 +110,8 @@ export const UploadFieldPlan = z.object({
   instrumentId: z.number().int().positive().nullable().optional(),
   /** µm per pixel for a field whose files carry none (the files' own pixel size, when they have one, is kept; a sample sheet's pixel_size_um comes here) */
   pixelSizeUm: PixelSizeUm.optional(),
+  /** µm between z slices for a stack whose files state none (kept from the files when they do; a single plane has none, so it is not used there) */
+  zStepUm: ZStepUm.optional(),
 });
 export const UploadPlan = z.array(UploadFieldPlan).min(1).max(1000);
 export type UploadFieldPlan = z.infer<typeof UploadFieldPlan>;
@@ -127,8 +142,25 @@ export const PreviewQuery = z.object({
 });
 export type PreviewQuery = z.infer<typeof PreviewQuery>;
 
-export const PixelsQuery = z.object({
-  z: z.union([z.literal('mip'), z.coerce.number().int().min(0)]).optional(),
-});
+/**
+ * GET /api/fields/:id/pixels: one slice (`z`, default the middle one), the projection (`z=mip`), or an
+ * orthogonal section through the whole stack (`section=xz&at=<row y>`: width × slices; `section=yz&at=<column
+ * x>`: height × slices; row k is slice k), which is what the workspace's XZ and YZ views fetch instead of the whole stack.
+ */
+export const PixelsQuery = z
+  .object({
+    z: z.union([z.literal('mip'), z.coerce.number().int().min(0)]).optional(),
+    section: z.enum(['xz', 'yz'], { error: (iss) => `section must be "xz" or "yz", got ${JSON.stringify(iss.input)}` }).optional(),
+    at: z.coerce
+      .number({ error: (iss) => `at must be a whole pixel position, got ${JSON.stringify(iss.input)}` })
+      .int({ error: (iss) => `at must be a whole pixel position, got ${JSON.stringify(iss.input)}` })
+      .min(0, { error: (iss) => `at must be 0 or more, got ${JSON.stringify(iss.input)}` })
+      .optional(),
+  })
+  .superRefine((q, ctx) => {
+    if (q.section && q.at === undefined) ctx.addIssue({ code: 'custom', path: ['at'], message: `a ${q.section} section needs "at": the ${q.section === 'xz' ? 'row y' : 'column x'} it passes through` });
+    if (q.section && q.z !== undefined) ctx.addIssue({ code: 'custom', path: ['z'], message: `a section runs through every slice; leave out z (got ${JSON.stringify(q.z)})` });
+    if (!q.section && q.at !== undefined) ctx.addIssue({ code: 'custom', path: ['at'], message: `"at" (got ${q.at}) belongs to a section; add section=xz or section=yz` });
+  });
 
 export const DeleteFieldResponse = z.object({ ok: z.literal(true), soft: z.boolean() });

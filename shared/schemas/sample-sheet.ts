@@ -5,13 +5,14 @@
  * Columns (header row, any order, case-insensitive): `file` (required), `file2` (the channel-2 file of a file
  * pair; empty: both channels from `file`), `condition` and `coverslip` (required), `ch1` and `ch2` (1-based
  * channel inside its file; default 1 and 2 for one file, 1 and 1 for a pair), `name` (the field's name;
- * default from the file name), `pixel_size_um` (µm per pixel, > 0; empty: from the file), `instrument` (an
- * instrument's name; empty: none).
+ * default from the file name), `pixel_size_um` (µm per pixel, > 0; empty: from the file), `z_step_um` (µm between
+ * the slices of a stack, > 0, at most 1000; used when the file states none; empty: from the file), `instrument`
+ * (an instrument's name; empty: none).
  */
 import { z } from 'zod';
 import { UploadFieldPlan } from './fields.js';
 
-export const SAMPLE_SHEET_COLUMNS = ['file', 'file2', 'condition', 'coverslip', 'ch1', 'ch2', 'name', 'pixel_size_um', 'instrument'] as const;
+export const SAMPLE_SHEET_COLUMNS = ['file', 'file2', 'condition', 'coverslip', 'ch1', 'ch2', 'name', 'pixel_size_um', 'z_step_um', 'instrument'] as const;
 export const SAMPLE_SHEET_REQUIRED = ['file', 'condition', 'coverslip'] as const;
 
 const Sha256 = z.string().regex(/^[0-9a-f]{64}$/, 'a SHA-256 is 64 lower-case hex digits');
@@ -34,6 +35,7 @@ export const SampleSheetRow = z.object({
   coverslip: z.string(),
   name: z.string().nullable(),
   pixelSizeUm: z.number().nullable(),
+  zStepUm: z.number().nullable(),
   instrument: z.string().nullable(),
   instrumentId: z.number().int().nullable(),
   /** the existing condition / coverslip of this study with that name, or null (created on upload) */

@@ -10,41 +10,11 @@
  * well. Screenshots: test-results/a11y-<role>-<screen>.png.
  * Rule levels are axe-core's own impact ratings (axe-core 4.14 documentation).
  */
-import { createRequire } from 'node:module';
-import fs from 'node:fs';
 import { expect, it } from 'vitest';
 import { apiSession, demoMeasured, serverAndBrowser, shot, signIn, type TrackedPage } from './harness.js';
+import { scan, type Found } from './axe.js';
 
 const e2e = serverAndBrowser();
-const axeSource = fs.readFileSync(createRequire(import.meta.url).resolve('axe-core/axe.min.js'), 'utf8');
-
-interface Found {
-  id: string;
-  impact: string | null;
-  help: string;
-  nodes: string[];
-}
-
-/** structure rules the issue named, which axe rates moderate or minor; held here too */
-const ALSO_HELD = new Set(['region', 'landmark-one-main', 'heading-order', 'empty-table-header', 'page-has-heading-one', 'landmark-unique']);
-
-/** runs axe on the page as it is; returns its serious and critical violations and those of ALSO_HELD */
-async function scan(page: TrackedPage): Promise<Found[]> {
-  // evaluated through the browser's debugging protocol, so the page's own script policy does not apply
-  if (!(await page.evaluate('typeof window.axe !== "undefined"'))) await page.evaluate(axeSource);
-  const result = (await page.evaluate(async () => {
-    const axe = (window as any).axe;
-    const r = await axe.run(document, { resultTypes: ['violations'] });
-    return r.violations.map((v: any) => ({
-      id: v.id,
-      impact: v.impact,
-      help: v.help,
-      nodes: v.nodes.slice(0, 6).map((n: any) => `${n.target.join(' ')} — ${(n.failureSummary ?? '').split('\n').slice(1).join(' ').slice(0, 160)}`),
-    }));
-  })) as Found[];
-  return result.filter((v) => v.impact === 'serious' || v.impact === 'critical' || ALSO_HELD.has(v.id));
-}
-
 /** waits until the screen has loaded its data */
 async function settled(page: TrackedPage) {
   await page.waitForLoadState('networkidle');

@@ -10,14 +10,14 @@
 import { useCallback, useEffect, useMemo, useReducer, useRef, useState } from 'react';
 import { useParams } from 'react-router';
 import { Button, Caution, ErrorNotice, Loading, PageHeader } from '@/components';
-import { FieldInstrument, PixelSizeEditor, useField } from '@/features/fields';
+import { FieldInstrument, PixelSizeEditor, ZStepEditor, useField } from '@/features/fields';
 import { useStudy } from '@/features/studies';
 import { useCells } from '@/features/workspace';
 import { useFieldPixels } from '@/features/fields';
 import { useFieldResults } from '@/features/workspace';
 import { initialOutlineState, outlineReducer } from '@/features/workspace';
 import { useOutlineSync } from '@/features/workspace';
-import { useScatter } from '@/features/workspace';
+import { useScatter, ScatterOver, volumeFits, VOLUME_PREVIEW_MAX_BYTES, type StreamSource, type VolumeSource } from '@/features/workspace';
 import { Viewer, isTyping, type DisplaySettings, type Tool } from '@/features/workspace';
 import { ToolBar, TOOLS, ShortcutHelp } from '@/features/workspace';
 import { CellsPanel } from '@/features/workspace';
@@ -27,6 +27,7 @@ import { LivePreview } from '@/features/workspace';
 import { ResultsTable } from '@/features/workspace';
 import { AutoOutlineDialog, ImportLabelsDialog, ImportOutlinesDialog } from '@/features/workspace';
 import { AlignmentPanel, useCompositeUrl } from '@/features/workspace';
+import { OrthoViews } from '@/features/workspace';
 import { SpotLayer, SpotsPanel, pairsWithin, useFieldSpots, type LiveSpotSettings, type SpotPair, type SpotToggles, type Xy } from '@/features/workspace';
 import { OBJECT_DEFAULTS } from '@shared/analysis/objects';
 import { cellIndices } from '@shared/schemas/cells';
@@ -63,6 +64,27 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [notice, setNotice] = useState<string | null>(null);
   const [manual, setManual] = useState<{ t1: number; t2: number } | null>(null);
   const loaded = useRef(false);
+  // orthogonal views (stacks): the point they pass through, typed, picked on a view or following the cursor
+  const stack = field.sizeZ > 1;
+  const [point, setPoint] = useState<[number, number]>(() => [Math.floor(field.width / 2), Math.floor(field.height / 2)]);
+  const [follow, setFollow] = useState(false);
+  const cursorTimer = useRef<ReturnType<typeof setTimeout> | null>(null);
+  const onCursor = useCallback(
+    (p: [number, number] | null) => {
+      if (!follow || !p) return;
+      const x = Math.floor(p[0]), y = Math.floor(p[1]);
+      if (x < 0 || y < 0 || x >= field.width || y >= field.height) return;
+      // at most one new pair of sections every 150 ms while the cursor moves
+      if (cursorTimer.current) clearTimeout(cursorTimer.current);
+      cursorTimer.current = setTimeout(() => setPoint((cur) => (cur[0] === x && cur[1] === y ? cur : [x, y])), 150);
+    },
+    [follow, field.width, field.height],
+  );
+  useEffect(() => () => void (cursorTimer.current && clearTimeout(cursorTimer.current)), []);
+  const orthoRanges = useMemo<[[number, number] | null, [number, number] | null]>(
+    () => [display.range1 ?? autoRanges?.[0] ?? null, display.range2 ?? autoRanges?.[1] ?? null],
+    [display.range1, display.range2, autoRanges],
+  );
 
   useEffect(() => {
     if (cells.data) {
@@ -76,13 +98,28 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   // pixels for the scatter and the live preview (the slice the display shows)
   const pixels = useFieldPixels(fieldId, display.z);
   const saturationLevel = field.sampleFormat === 'float' ? null : 2 ** field.bitDepth - 1;
-  const scatter = useScatter(pixels.data, saturationLevel);
+  const sliceScatter = useScatter(pixels.data, saturationLevel);
   const selectedOutline = state.outlines.find((o) => o.key === state.selected) ?? null;
+  // on a stack the scatter and live preview cover every slice (as runs measure by default): the whole volume
+  // when it fits the browser (lib/volumePreview.ts), else the selected cell's voxels read slice by slice
+  const volumeOk = volumeFits(field);
+  const [over, setOver] = useState<'volume' | 'slice'>(stack && volumeOk ? 'volume' : 'slice');
+  const wantVolume = stack && over === 'volume';
+  const streamed = useRef<{ key: string; source: StreamSource } | null>(null);
+  if (wantVolume && !volumeOk && selectedOutline && !gesture) {
+    const key = `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}`;
+    if (streamed.current?.key !== key)
+      streamed.current = { key, source: { kind: 'stream', fieldId, width: field.width, height: field.height, depth: field.sizeZ, geometry: selectedOutline.geometry, maxBytes: VOLUME_PREVIEW_MAX_BYTES } };
+  } else if (!wantVolume || volumeOk || !selectedOutline) streamed.current = null;
+  const inVolume = wantVolume && (volumeOk || !!streamed.current);
+  const volumeSource = useMemo<VolumeSource | undefined>(() => (wantVolume && volumeOk ? { kind: 'volume', fieldId, width: field.width, height: field.height, depth: field.sizeZ } : undefined), [wantVolume, volumeOk, fieldId, field.width, field.height, field.sizeZ]);
+  const volumeScatter = useScatter(volumeSource ?? streamed.current?.source, saturationLevel);
+  const scatter = inVolume ? volumeScatter : sliceScatter;
   // the whole field's default thresholds are computed over the outlined cells (scatterBasis.ts): its key follows them
   const cellGeometries = useMemo(() => state.outlines.filter((o) => o.role === 'cell').map((o) => o.geometry), [state.outlines]);
   const cellsKey = useMemo(() => hashGeometry(cellGeometries), [cellGeometries]);
-  const regionKey = selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : `field:${cellsKey}`;
-  const regionName = selectedOutline ? selectedOutline.name : 'the whole field';
+  const regionKey = `${inVolume ? 'volume' : 'slice'}:${selectedOutline ? `${selectedOutline.key}:${hashGeometry(selectedOutline.geometry)}` : `field:${cellsKey}`}`;
+  const regionName = `${selectedOutline ? selectedOutline.name : 'the whole field'}${inVolume ? ' (every slice, 3D)' : ''}`;
   const geometry = selectedOutline?.geometry ?? null;
   useEffect(() => {
     if (!scatter.ready || gesture) return;
@@ -110,13 +147,13 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const [spotToggles, setSpotToggles] = useState<SpotToggles>({ ch1: true, ch2: true, pairs: true });
   const [liveSpots, setLiveSpots] = useState<LiveSpotSettings>({ on: false, sigma: OBJECT_DEFAULTS.spotSigma, k: OBJECT_DEFAULTS.spotK });
   useEffect(() => {
-    if (!scatter.ready || !liveSpots.on || gesture) return;
-    scatter.requestSpots(regionKey, geometry, liveSpots.sigma, liveSpots.k);
+    if (!sliceScatter.ready || !liveSpots.on || gesture) return;
+    sliceScatter.requestSpots(regionKey, geometry, liveSpots.sigma, liveSpots.k);
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [scatter.ready, liveSpots, regionKey, gesture]);
+  }, [sliceScatter.ready, liveSpots, regionKey, gesture]);
   const stored = fieldSpots.data?.settings;
   const pairDistancePx = stored?.pairDistancePx ?? OBJECT_DEFAULTS.pairDistance;
-  const livePreviewSpots = liveSpots.on && scatter.spots && scatter.spots.regionKey === regionKey ? scatter.spots : null;
+  const livePreviewSpots = liveSpots.on && sliceScatter.spots && sliceScatter.spots.regionKey === regionKey ? sliceScatter.spots : null;
   const shownSpots = useMemo(() => {
     // per cell: spots and pairs within d (pairs never cross cells, as in the run)
     if (liveSpots.on) {
@@ -227,7 +264,13 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           <>
             {`${field.width} × ${field.height} px · ${field.bitDepth}-bit${field.sizeZ > 1 ? ` · ${field.sizeZ} z slices` : ''} · `}
             <PixelSizeEditor fieldId={fieldId} pixelSizeUm={field.pixelSizeUm} canEdit={canEdit} />
-            {`${field.zStepUm ? ` · ${field.zStepUm} µm between slices` : ''} · ${names[0]} and ${names[1]}`}
+            {field.sizeZ > 1 && (
+              <>
+                {' · '}
+                <ZStepEditor fieldId={fieldId} zStepUm={field.zStepUm} canEdit={canEdit} />
+              </>
+            )}
+            {` · ${names[0]} and ${names[1]}`}
             {!canEdit && <span data-testid="field-instrument-text">{` · ${field.instrumentName ? `recorded on ${field.instrumentName}` : 'instrument not given'}`}</span>}
           </>
         }
@@ -285,6 +328,8 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               onGesture={setGesture}
               command={command}
               imageOverride={alignMain ? alignedImage : null}
+              onCursor={stack ? onCursor : undefined}
+              marker={stack ? point : null}
               overlay={
                 shownSpots && (
                   <SpotLayer spots1={spotToggles.ch1 ? shownSpots.spots1 : null} spots2={spotToggles.ch2 ? shownSpots.spots2 : null} pairs={spotToggles.pairs ? shownSpots.pairs : null} radius={spotRadius} />
@@ -292,6 +337,25 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               }
             />
           </div>
+          {stack && (
+            <section aria-labelledby="ortho-heading" className="rounded-md border border-ink/10 bg-white/70 p-3">
+              <h2 id="ortho-heading" className="mb-2 text-base font-semibold">
+                Orthogonal views
+              </h2>
+              <OrthoViews
+                field={field}
+                display={display}
+                ranges={orthoRanges}
+                point={point}
+                onPoint={setPoint}
+                follow={follow}
+                onFollow={setFollow}
+                outlines={state.outlines}
+                selected={state.selected}
+                onSlice={(k) => setDisplay((d) => ({ ...d, z: k }))}
+              />
+            </section>
+          )}
           <div className="grid gap-4 lg:grid-cols-[18rem_minmax(0,1fr)]">
             <section aria-label="Display" className="rounded-md border border-ink/10 bg-white/70 p-3">
               <h2 className="mb-2 text-sm font-semibold">Display</h2>
@@ -321,7 +385,8 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">
             <h2 className="mb-1 text-base font-semibold">Pixel scatter</h2>
-            {pixels.isError ? (
+            {stack && <ScatterOver field={field} over={wantVolume ? 'volume' : 'slice'} onOver={setOver} progress={inVolume ? volumeScatter.progress : null} cellChosen={!!selectedOutline} />}
+            {pixels.isError && !inVolume ? (
               <ErrorNotice error={pixels.error} />
             ) : scatter.error ? (
               <ErrorNotice error={scatter.error} />
@@ -334,17 +399,18 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
                 onThresholdsDone={onThresholdsDone}
                 onReset={() => setManual(null)}
                 manual={!!manual}
+                unit={inVolume ? 'voxel' : 'pixel'}
               />
             )}
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
-            {pixels.isError || scatter.error ? (
+            {(pixels.isError && !inVolume) || scatter.error ? (
               <section aria-label="Live coefficients (preview)" data-testid="live-preview">
                 <h3 className="mb-2 text-sm font-semibold">Coefficients of {regionName}</h3>
-                <ErrorNotice error={pixels.error ?? scatter.error} />
+                <ErrorNotice error={(inVolume ? null : pixels.error) ?? scatter.error} />
               </section>
             ) : (
-              <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={!!pixels.isPending || !scatter.live} stale={liveStale} />
+              <LivePreview result={live?.result ?? null} regionName={regionName} t1={live?.t1 ?? 0} t2={live?.t2 ?? 0} ms={live?.ms ?? 0} pending={(!inVolume && !!pixels.isPending) || !scatter.live} stale={liveStale} unit={inVolume ? 'voxel' : 'pixel'} />
             )}
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3">
@@ -355,7 +421,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               live={liveSpots}
               onLive={setLiveSpots}
               preview={livePreviewSpots && { count1: livePreviewSpots.spots1.length, count2: livePreviewSpots.spots2.length, paired1: shownSpots?.pairs.length ?? 0, ms: livePreviewSpots.ms, regionName }}
-              previewError={scatter.spotsError}
+              previewError={sliceScatter.spotsError}
               stored={fieldSpots.isSuccess ? stored : undefined}
               runId={runId}
               cell={spotCell}

@@ -21,3 +21,7 @@ export { useScatter } from './lib/useScatter';
 export { AlignmentComposite, FieldComposite } from './components/AlignmentComposite';
 export { AlignmentPanel } from './components/AlignmentPanel';
 export { useCompositeUrl } from './lib/useCompositeUrl';
+export { OrthoViews } from './components/OrthoViews';
+export { ScatterOver } from './components/ScatterOver';
+export { VOLUME_PREVIEW_MAX_BYTES, volumeFits } from './lib/volumePreview';
+export type { StreamSource, VolumeSource } from './lib/useScatter';

@@ -12,5 +12,7 @@ export const fieldKeys = {
   detail: (fieldId: number) => ['fields', fieldId, 'detail'] as const,
   /** GET /api/fields/:id/pixels?z= (undefined z = the server's default slice) */
   pixels: (fieldId: number, z: number | 'mip' | undefined) => ['fields', fieldId, 'pixels', z ?? 'default'] as const,
+  /** GET /api/fields/:id/pixels?section=&at= (an orthogonal section through every slice) */
+  section: (fieldId: number, axis: 'xz' | 'yz', at: number) => ['fields', fieldId, 'section', axis, at] as const,
 };
 

@@ -1,4 +1,4 @@
-import { useQuery } from '@tanstack/react-query';
+import { keepPreviousData, useQuery } from '@tanstack/react-query';
 import { ApiError } from '@/lib/api';
 import { decodePixels, PixelCodecError, type PixelPlanes } from '@shared/pixels/codec';
 import { fieldKeys } from './keys';
@@ -13,7 +13,20 @@ export interface FieldPixels extends PixelPlanes {
  * follow the format is an error (status 422, not retried) that the workspace shows; it is never guessed at.
  */
 export async function fetchFieldPixels(fieldId: number, z: number | 'mip' | undefined, signal?: AbortSignal): Promise<FieldPixels> {
-  const res = await fetch(`/api/fields/${fieldId}/pixels${z === undefined ? '' : `?z=${z}`}`, { credentials: 'same-origin', signal });
+  return fetchPixels(`/api/fields/${fieldId}/pixels${z === undefined ? '' : `?z=${z}`}`, signal);
+}
+
+/**
+ * One orthogonal section through every slice (`axis` 'xz' at row `at`, 'yz' at column `at`): `across` × slices
+ * samples per channel, row k = slice k. A section of a 1024 × 1024 × 32 16-bit stack is 128 kB, where the
+ * whole stack would be 128 MB.
+ */
+export async function fetchFieldSection(fieldId: number, axis: 'xz' | 'yz', at: number, signal?: AbortSignal): Promise<FieldPixels> {
+  return fetchPixels(`/api/fields/${fieldId}/pixels?section=${axis}&at=${at}`, signal);
+}
+
+async function fetchPixels(url: string, signal?: AbortSignal): Promise<FieldPixels> {
+  const res = await fetch(url, { credentials: 'same-origin', signal });
   if (!res.ok) {
     const isJson = (res.headers.get('content-type') ?? '').includes('json');
     const body = isJson ? ((await res.json()) as { error?: string }) : {};
@@ -39,5 +52,18 @@ export function useFieldPixels(fieldId: number, z: number | 'mip' | undefined, e
     enabled: enabled && Number.isInteger(fieldId) && fieldId > 0,
     staleTime: Infinity,
     gcTime: 60_000,
+  });
+}
+
+/** An orthogonal section of a stack (see fetchFieldSection), for the workspace's XZ and YZ views. */
+export function useFieldSection(fieldId: number, axis: 'xz' | 'yz', at: number, enabled = true) {
+  return useQuery({
+    queryKey: fieldKeys.section(fieldId, axis, at),
+    queryFn: ({ signal }) => fetchFieldSection(fieldId, axis, at, signal),
+    enabled: enabled && Number.isInteger(fieldId) && fieldId > 0 && Number.isInteger(at) && at >= 0,
+    staleTime: Infinity,
+    gcTime: 30_000,
+    // keep the last section on screen while the next one loads (the point moves with the cursor)
+    placeholderData: keepPreviousData,
   });
 }

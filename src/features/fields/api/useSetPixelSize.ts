@@ -12,3 +12,4 @@ export function useSetPixelSize(fieldId: number) {
     onSuccess: () => void qc.invalidateQueries({ queryKey: fieldKeys.all }),
   });
 }
+

@@ -98,7 +98,7 @@ export function SampleSheetIntake({ studyId }: { studyId: number }) {
         open={open}
         onClose={() => !busy && setOpen(false)}
         title="Add fields by sample sheet"
-        description="A CSV with one row per field: file (and file2 for a pair), condition, coverslip, and optionally ch1, ch2, name, pixel_size_um, instrument."
+        description="A CSV with one row per field: file (and file2 for a pair), condition, coverslip, and optionally ch1, ch2, name, pixel_size_um, z_step_um, instrument."
         width="lg"
         footer={
           <>

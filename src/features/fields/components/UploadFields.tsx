@@ -9,7 +9,7 @@ import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
-import { PixelSizeUm, UploadChannelRef, type UploadFieldPlan } from '@shared/schemas/fields';
+import { PixelSizeUm, UploadChannelRef, ZStepUm, type UploadFieldPlan } from '@shared/schemas/fields';
 import { cx } from '@/lib/cx';
 import { NumberTextFor } from '@shared/schemas/common';
 import { BoxMessage, useNumberBox } from '@/components/NumberBox';
@@ -87,6 +87,8 @@ function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslip
   const [instrumentId, setInstrumentId] = useState<number | null>(defaultInstrumentId);
   /** µm per pixel for files that carry none (empty: none given) */
   const [pixelSize, setPixelSize] = useState('');
+  /** µm between slices for stacks whose files state none (empty: none given) */
+  const [zStep, setZStep] = useState('');
   const { state, upload, cancel, reset } = useUploadFields(coverslipId);
   const busy = state.phase === 'uploading' || state.phase === 'processing';
   const modeName = useId();
@@ -139,6 +141,12 @@ function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslip
       if (!px.success) return setFormError(`µm per pixel "${pixelSize}": ${px.error.issues[0]?.message ?? 'not a pixel size'}`);
       pixelSizeUm = px.data;
     }
+    let zStepUm: number | undefined;
+    if (zStep.trim() !== '') {
+      const zs = ZStepUm.safeParse(Number(zStep));
+      if (!zs.success) return setFormError(`µm between slices "${zStep}": ${zs.error.issues[0]?.message ?? 'not a z step'}`);
+      zStepUm = zs.data;
+    }
     if (mode === 'multi') {
       if (multi.length === 0) return setFormError('choose at least one file');
       for (const r of multi) {
@@ -154,7 +162,7 @@ function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslip
         plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 }, instrumentId });
       }
     }
-    await upload(files, pixelSizeUm === undefined ? plan : plan.map((p) => ({ ...p, pixelSizeUm })));
+    await upload(files, plan.map((p) => ({ ...p, ...(pixelSizeUm === undefined ? {} : { pixelSizeUm }), ...(zStepUm === undefined ? {} : { zStepUm }) })));
   };
 
   const startOver = () => {
@@ -227,6 +235,10 @@ function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslip
           <label className="flex flex-wrap items-center gap-2 text-sm">
             <span>µm per pixel, for files that carry none</span>
             <input className={cx(inputClass(false), 'w-28')} inputMode="decimal" value={pixelSize} onChange={(e) => setPixelSize(e.target.value)} disabled={busy} placeholder="optional" />
+          </label>
+          <label className="flex flex-wrap items-center gap-2 text-sm">
+            <span>µm between z slices, for stacks whose files state none</span>
+            <input className={cx(inputClass(false), 'w-28')} inputMode="decimal" value={zStep} onChange={(e) => setZStep(e.target.value)} disabled={busy} placeholder="optional" />
           </label>
 
           <p className="text-xs text-ink-soft">{dropping ? 'Drop the files to add them.' : 'Drop TIFF files anywhere on this dialog, or choose them below.'}</p>

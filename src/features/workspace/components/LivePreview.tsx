@@ -15,7 +15,7 @@ export const PREVIEW_COEFFICIENTS = PREVIEW_KEYS.map((k) => byKey(k)).filter(isP
 /** Three decimals; a value that rounds to zero is shown as 0.000, never "-0.000" (shared/format/number.ts). */
 export const fmtCoef = (v: number | null | undefined) => formatFixed(v, 3);
 
-export function LivePreview({ result, regionName, t1, t2, ms, pending, stale }: { result: RegionResult | null; regionName: string; t1: number; t2: number; ms: number; pending: boolean; stale: boolean }) {
+export function LivePreview({ result, regionName, t1, t2, ms, pending, stale, unit = 'pixel' }: { result: RegionResult | null; regionName: string; t1: number; t2: number; ms: number; pending: boolean; stale: boolean; unit?: 'pixel' | 'voxel' }) {
   return (
     <section aria-label="Live coefficients (preview)" data-testid="live-preview">
       <div className="flex items-center justify-between">
@@ -42,7 +42,7 @@ export function LivePreview({ result, regionName, t1, t2, ms, pending, stale }: 
           </table>
           {stale && <p className="mt-1 text-xs text-ink-soft">Updating for the new thresholds or outline…</p>}
           <p className="mt-1 text-xs text-ink-faint">
-            {plural(result.pixels, 'pixel')} · T1 {round(t1)}, T2 {round(t2)} · raw values, no background subtraction, no randomization test · {ms.toFixed(0)} ms in the browser.
+            {plural(result.pixels, unit)} · T1 {round(t1)}, T2 {round(t2)} · raw values, no background subtraction, no randomization test · {ms.toFixed(0)} ms in the browser.
             A run with an approved recipe gives the recorded numbers.
           </p>
         </>

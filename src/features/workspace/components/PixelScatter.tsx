@@ -43,6 +43,7 @@ export function PixelScatter({
   onThresholdsDone,
   onReset,
   manual,
+  unit = 'pixel',
 }: {
   data: ScatterView | null;
   names: [string, string];
@@ -53,6 +54,8 @@ export function PixelScatter({
   onThresholdsDone: (t1: number, t2: number) => void;
   onReset: () => void;
   manual: boolean;
+  /** what the scatter counts: pixels of one slice, or voxels of a whole volume */
+  unit?: 'pixel' | 'voxel';
 }) {
   const canvas = useRef<HTMLCanvasElement>(null);
   const [drag, setDrag] = useState<null | 'x' | 'y' | 'xy'>(null);
@@ -102,7 +105,7 @@ export function PixelScatter({
     <div>
       <div className="flex items-baseline justify-between text-xs text-ink-soft">
         <span>
-          {regionName} · {plural(data.n, 'pixel')}
+          {regionName} · {plural(data.n, unit)}
         </span>
         <span title="time for the last update in the worker">{data.ms.toFixed(0)} ms</span>
       </div>

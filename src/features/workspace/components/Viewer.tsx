@@ -52,13 +52,17 @@ export interface ViewerProps {
   overlay?: React.ReactNode;
   /** a picture drawn in the browser shown instead of the server's preview (the composite with channel 2 aligned) */
   imageOverride?: string | null;
+  /** where the cursor is over the image (the pointer, or the keyboard cursor when it moves last), null when it leaves */
+  onCursor?: (p: Point | null) => void;
+  /** the pixel the orthogonal views pass through: its row and column are marked across the image */
+  marker?: Point | null;
 }
 
 const SELECT_COLOR = '#0f766e';
 const CELL_COLOR = '#f5f5f4';
 const BG_COLOR = '#f59e0b';
 
-export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay, imageOverride }: ViewerProps) {
+export function Viewer({ field, display, outlines, selected, tool, canEdit, newRole, dispatch, onAutoRanges, onGesture, command, overlay, imageOverride, onCursor, marker }: ViewerProps) {
   const box = useRef<HTMLDivElement>(null);
   const [size, setSize] = useState({ w: 800, h: 600 });
   const [view, setView] = useState<View | null>(null);
@@ -75,6 +79,9 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
   const pointers = useRef(new Map<number, { x: number; y: number }>());
   const pinch = useRef<{ d: number; mx: number; my: number; v: View } | null>(null);
   const W = field.width, H = field.height;
+  const cursorOut = useRef(onCursor);
+  cursorOut.current = onCursor;
+  useEffect(() => cursorOut.current?.(kc ?? hover), [kc, hover]);
 
   // container size
   useLayoutEffect(() => {
@@ -474,6 +481,12 @@ export function Viewer({ field, display, outlines, selected, tool, canEdit, newR
             ),
           )}
           {overlay}
+          {marker && (
+            <g data-testid="section-marker" pointerEvents="none">
+              <line x1={0} x2={W} y1={marker[1] + 0.5} y2={marker[1] + 0.5} stroke="#facc15" strokeWidth={1 / v.scale} strokeDasharray={`${4 / v.scale} ${4 / v.scale}`} />
+              <line x1={marker[0] + 0.5} x2={marker[0] + 0.5} y1={0} y2={H} stroke="#facc15" strokeWidth={1 / v.scale} strokeDasharray={`${4 / v.scale} ${4 / v.scale}`} />
+            </g>
+          )}
           {sel && tool === 'select' && canEdit && handlesVisible(sel, v.scale) &&
             handlesOf(sel.geometry).map(([x, y], i) => (
               <circle key={i} data-handle={i} cx={x} cy={y} r={handleR} fill="#fff" stroke={SELECT_COLOR} strokeWidth={1.5} vectorEffect="non-scaling-stroke" style={{ cursor: 'pointer' }} />

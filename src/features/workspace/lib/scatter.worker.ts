@@ -3,7 +3,7 @@
  * Web Worker of the pixel scatter: keeps the field's pixels, prepares the selected region once, answers
  * threshold drags with a new histogram + quadrant counts, and computes the live coefficient preview.
  */
-import { livePreview, prepareRegion, scatter, type Region, type ScatterInput } from './scatterCore';
+import { livePreview, prepareRegion, regionStream, scatter, volumeAssembly, type Region, type ScatterInput } from './scatterCore';
 import { previewSpots } from './spotPreview';
 import type { Xy } from './spotView';
 import type { CellGeometry } from '@shared/schemas/cells';
@@ -13,6 +13,11 @@ import { displayRange, renderComposite } from './composite';
 
 export type ScatterRequest =
   | { type: 'pixels'; width: number; height: number; ch1: SampleArray; ch2: SampleArray; saturationLevel: number | null }
+  /** a whole volume arrives slice by slice (volume-begin, then one volume-slice per slice, in any order) */
+  | { type: 'volume-begin'; width: number; height: number; depth: number; saturationLevel: number | null }
+  | { type: 'volume-slice'; z: number; ch1: SampleArray; ch2: SampleArray }
+  /** a stack too large to hold whole: only one cell's voxels are kept from the slices that follow (volume-slice) */
+  | { type: 'stream-begin'; width: number; height: number; depth: number; geometry: CellGeometry; saturationLevel: number | null; maxBytes: number }
   | { type: 'update'; seq: number; regionKey: string; geometry: CellGeometry | null; t1: number | null; t2: number | null; measure: boolean; cells: CellGeometry[] }
   /** live spot detection at the sliders' σ and k (spotPreview.ts) */
   | { type: 'spots'; seq: number; regionKey: string; geometry: CellGeometry | null; sigma: number; k: number }
@@ -29,6 +34,8 @@ export type ScatterReply =
 let img: ScatterInput | null = null;
 let region: { key: string; r: Region } | null = null;
 let ranges: [[number, number], [number, number]] | null = null;
+/** a volume (or one cell's voxels of it) being assembled from its slices */
+let loading: ReturnType<typeof volumeAssembly> | ReturnType<typeof regionStream> | null = null;
 
 self.onmessage = (e: MessageEvent<ScatterRequest>) => {
   const m = e.data;
@@ -48,6 +55,32 @@ self.onmessage = (e: MessageEvent<ScatterRequest>) => {
     } catch (err) {
       (self as unknown as Worker).postMessage({ type: 'error', seq: m.seq, message: (err as Error).message, composite: m.slot } satisfies ScatterReply);
     }
+    return;
+  }
+  if (m.type === 'volume-begin') {
+    img = null;
+    region = null;
+    ranges = null;
+    loading = volumeAssembly(m.width, m.height, m.depth, m.saturationLevel);
+    return;
+  }
+  if (m.type === 'stream-begin') {
+    img = null;
+    region = null;
+    ranges = null;
+    loading = regionStream(m.width, m.height, m.depth, m.geometry, m.saturationLevel, m.maxBytes);
+    return;
+  }
+  if (m.type === 'volume-slice') {
+    if (!loading) return;
+    try {
+      loading.put(m.z, m.ch1, m.ch2);
+    } catch (err) {
+      (self as unknown as Worker).postMessage({ type: 'error', seq: 0, message: (err as Error).message } satisfies ScatterReply);
+      return;
+    }
+    img = loading.image();
+    if (img) loading = null;
     return;
   }
   if (m.type === 'spots') {

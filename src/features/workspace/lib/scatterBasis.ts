@@ -15,7 +15,7 @@
  * Pure functions on typed arrays; unit-tested in tests/workspace/scatter-basis.test.ts.
  */
 import { collectPairs, computeThresholds, prepare } from '@shared/analysis/index';
-import { cellsMask, type CellGeometry } from '@shared/schemas/cells';
+import { cellsMask, cellVoxels, type CellGeometry } from '@shared/schemas/cells';
 import { maskToIndices } from '@shared/analysis/rasterize';
 import type { SampleArray } from '@shared/pixels/codec';
 import { plural } from '@shared/format/plural';
@@ -23,6 +23,8 @@ import { plural } from '@shared/format/plural';
 export interface BasisImage {
   width: number;
   height: number;
+  /** slices held (a whole volume: the cells' voxels as runs measure them); 1 when absent */
+  depth?: number;
   ch1: SampleArray;
   ch2: SampleArray;
   /** largest value the pixel type holds (2^bits − 1), null for float data (nothing counts as saturated) */
@@ -54,16 +56,17 @@ const isSaturated = (ch1: SampleArray, ch2: SampleArray, i: number, level: numbe
  */
 export function defaultThresholds(img: BasisImage, region: Uint32Array | null, cells: readonly CellGeometry[]): DefaultThresholds {
   const { width, height, ch1, ch2 } = img;
+  const depth = img.depth ?? 1;
   const level = img.saturationLevel ?? null;
   let candidates: Uint32Array | null = region;
   let over: ThresholdBasis['over'] = 'region';
   if (!region) {
     if (cells.length > 0) {
       over = 'cells';
-      candidates = maskToIndices(cellsMask(cells, width, height));
+      candidates = maskToIndices(depth > 1 ? cellsVoxelMask(cells, width, height, depth) : cellsMask(cells, width, height));
     } else over = 'field';
   }
-  const total = candidates ? candidates.length : width * height;
+  const total = candidates ? candidates.length : width * height * depth;
   const kept = new Uint32Array(total);
   let k = 0, saturatedLeftOut = 0;
   for (let j = 0; j < total; j++) {
@@ -74,6 +77,13 @@ export function defaultThresholds(img: BasisImage, region: Uint32Array | null, c
   const p = prepare(collectPairs(ch1, ch2, { kind: 'indices', indices: kept.subarray(0, k) }));
   const th = computeThresholds(p, { method: 'otsu' });
   return { t1: th.ch1, t2: th.ch2, basis: { over, cells: over === 'cells' ? cells.length : 0, pixels: p.n, saturatedLeftOut } };
+}
+
+/** Mask (1 = in at least one cell) of the union of the cells' voxels in a width × height × depth volume. */
+export function cellsVoxelMask(geometries: readonly CellGeometry[], width: number, height: number, depth: number): Uint8Array {
+  const mask = new Uint8Array(width * height * depth);
+  for (const g of geometries) for (const v of cellVoxels(g, width, height, 0, depth)) mask[v] = 1;
+  return mask;
 }
 
 export interface SaturatedMarks {

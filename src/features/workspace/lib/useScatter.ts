@@ -1,12 +1,38 @@
 /**
- * The pixel scatter's Web Worker from React: sends the field's pixels once, then "latest request wins"
- * updates (a request sent while the worker is busy replaces any other waiting one).
+ * The pixel scatter's Web Worker from React: sends the field's pixels once (one slice, or a whole volume
+ * fetched slice by slice with progress), then "latest request wins" updates (a request sent while the worker
+ * is busy replaces any other waiting one).
  */
 import { useEffect, useRef, useState } from 'react';
-import type { CellGeometry } from '@shared/schemas/cells';
+import { zRangeOf, type CellGeometry } from '@shared/schemas/cells';
 import type { RegionResult } from '@shared/analysis/types';
 import type { PixelPlanes } from '@shared/pixels/codec';
 import type { ScatterReply, ScatterRequest } from './scatter.worker';
+import { fetchFieldPixels } from '@/features/fields';
+
+/** A whole stack for the scatter, fetched one slice at a time (GET /api/fields/:id/pixels?z=k) straight into the worker. */
+export interface VolumeSource {
+  kind: 'volume';
+  fieldId: number;
+  width: number;
+  height: number;
+  depth: number;
+}
+/**
+ * One cell's voxels of a stack too large to hold whole: the slices of its z range fetched one by one, of each
+ * only the cell's voxels kept in the worker (scatterCore.ts regionStream).
+ */
+export interface StreamSource {
+  kind: 'stream';
+  fieldId: number;
+  width: number;
+  height: number;
+  depth: number;
+  geometry: CellGeometry;
+  /** the most bytes of voxel values kept */
+  maxBytes: number;
+}
+export type ScatterSource = PixelPlanes | VolumeSource | StreamSource;
 
 type ScatterMessage = Extract<ScatterReply, { type: 'scatter' }>;
 export type ScatterView = ScatterMessage & { counts: Uint32Array; saturatedMarks: ScatterMessage['saturatedMarks'] & { marks: Uint8Array } };
@@ -22,7 +48,7 @@ export type SpotPreviewView = Extract<ScatterReply, { type: 'spots' }>;
 /** A composite drawn by the worker (composite.ts): channel 2 as recorded (shift null) or aligned. */
 export type CompositeView = Extract<ScatterReply, { type: 'composite' }>;
 
-export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: number | null) {
+export function useScatter(pixels: ScatterSource | undefined, saturationLevel: number | null) {
   const worker = useRef<Worker | null>(null);
   const busy = useRef(false);
   const waiting = useRef<Extract<ScatterRequest, { type: 'update' }> | null>(null);
@@ -33,6 +59,8 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
   const [live, setLive] = useState<LiveResult | null>(null);
   const [error, setError] = useState<string | null>(null);
   const [ready, setReady] = useState(false);
+  /** slices of a volume in the worker so far (null for one slice) */
+  const [progress, setProgress] = useState<{ done: number; total: number } | null>(null);
   // live spot detection: its own "latest request wins" slot, so slider moves never queue up
   const spotsBusy = useRef(false);
   const spotsWaiting = useRef<Extract<ScatterRequest, { type: 'spots' }> | null>(null);
@@ -48,9 +76,36 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     worker.current = w;
     countsByRegion.current.clear();
     setComposites({});
-    const ch1 = pixels.ch1.slice();
-    const ch2 = pixels.ch2.slice();
-    w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, ch1, ch2, saturationLevel } satisfies ScatterRequest, [ch1.buffer, ch2.buffer]);
+    const abort = new AbortController();
+    if ('kind' in pixels) {
+      // slice by slice: the browser never holds more than one slice besides the worker's volume
+      const v = pixels;
+      let [from, to] = [0, v.depth - 1];
+      if (v.kind === 'stream') {
+        [from, to] = zRangeOf(v.geometry, v.depth).map((k) => k - 1);
+        to = Math.min(to, v.depth - 1);
+        w.postMessage({ type: 'stream-begin', width: v.width, height: v.height, depth: v.depth, geometry: v.geometry, saturationLevel, maxBytes: v.maxBytes } satisfies ScatterRequest);
+      } else w.postMessage({ type: 'volume-begin', width: v.width, height: v.height, depth: v.depth, saturationLevel } satisfies ScatterRequest);
+      const total = to - from + 1;
+      setProgress({ done: 0, total });
+      void (async () => {
+        for (let z = from; z <= to; z++) {
+          const s = await fetchFieldPixels(v.fieldId, z, abort.signal);
+          if (abort.signal.aborted) return;
+          if (s.width !== v.width || s.height !== v.height) throw new Error(`slice ${z + 1} is ${s.width} × ${s.height} pixels, not ${v.width} × ${v.height}`);
+          w.postMessage({ type: 'volume-slice', z, ch1: s.ch1, ch2: s.ch2 } satisfies ScatterRequest, [s.ch1.buffer, s.ch2.buffer]);
+          setProgress({ done: z - from + 1, total });
+        }
+        setReady(true);
+      })().catch((e: Error) => {
+        if (!abort.signal.aborted) setError(`The slices could not be loaded: ${e.message}`);
+      });
+    } else {
+      const ch1 = pixels.ch1.slice();
+      const ch2 = pixels.ch2.slice();
+      w.postMessage({ type: 'pixels', width: pixels.width, height: pixels.height, ch1, ch2, saturationLevel } satisfies ScatterRequest, [ch1.buffer, ch2.buffer]);
+      setProgress(null);
+    }
     const pump = () => {
       const next = waiting.current;
       if (!next) return;
@@ -109,8 +164,9 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
       }
     };
     w.onerror = (e) => setError(e.message || 'the scatter worker failed');
-    setReady(true);
+    if (!('kind' in pixels)) setReady(true);
     return () => {
+      abort.abort();
       w.terminate();
       worker.current = null;
       busy.current = false;
@@ -166,5 +222,5 @@ export function useScatter(pixels: PixelPlanes | undefined, saturationLevel: num
     }
   };
 
-  return { ready, view, live, error, request, spots, spotsError, requestSpots, composites, compositeErrors, requestComposite, composite: composites.panel ?? null, compositeError: compositeErrors.panel ?? null };
+  return { ready, view, live, error, request, spots, spotsError, requestSpots, progress, composites, compositeErrors, requestComposite, composite: composites.panel ?? null, compositeError: compositeErrors.panel ?? null };
 }
