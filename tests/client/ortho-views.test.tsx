@@ -23,7 +23,7 @@ import './utils';
 const W = 20, H = 16, Z = 5;
 const field = (over: Partial<FieldDetail> = {}): FieldDetail => ({
   id: 4, coverslipId: 1, name: 'stack', width: W, height: H, sizeZ: Z, bitDepth: 16, sampleFormat: 'uint', channelNames: ['GFP', 'RFP'],
-  pixelSizeUm: 0.1, instrumentId: null, zStepUm: 0.3,
+  pixelSizeUm: 0.1, instrumentId: null, instrumentName: null, zStepUm: 0.3,
   facts: { ch1: { min: 0, max: 900, mean: 100, saturatedFraction: 0, plateauFraction: null }, ch2: { min: 0, max: 900, mean: 100, saturatedFraction: 0, plateauFraction: null } },
   saturated: false, status: 'ready', fileSize: 1, createdAt: '2026-12-03T00:00:00Z', studyId: 3, conditionId: 10,
   files: [{ sha256: 'a', originalName: 's.tif', size: 1, channel: 1 }, { sha256: 'a', originalName: 's.tif', size: 1, channel: 2 }], uploadedBy: null, canEdit: true,
