@@ -85,8 +85,9 @@ export function equipartition(sizes: ArrayLike<number>, groups: number, n: numbe
  * of rows. While h + s ≤ rowsize the test of `equipartition` cannot open a row (|h + s − rowsize| <
  * |h − rowsize| in floating point too, the two differing by s ≥ 1), so each row's end is found by bisection
  * on P and only the groups from there on are tested, exactly as `equipartition` does: O(rows · log groups).
+ * (Exported for its test against `equipartition`.)
  */
-function equipartitionPrefix(P: Int32Array, groups: number, n: number, rows: number, bounds: Int32Array): number {
+export function equipartitionPrefix(P: Int32Array, groups: number, n: number, rows: number, bounds: Int32Array): number {
   let rowsize = n / rows;
   let curr = 0;
   let g = 0;
