@@ -29,7 +29,7 @@
  * Exact shortcuts (the same values bit for bit as the plain programme): φ(v) = Σ f(v_r) − f(Σ v_r) ≤ 0 is
  * subadditive (N·entropy is concave and 1-homogeneous), so for s' < s a candidate W(s', j−1) + T(s', t) is at
  * most W(s, j) + T(s, t); the sweep over s stops for layer j once that bound is below the layer's best (with a
- * slack far above the rounding), which skips roughly half of the column pairs. Equipartitions are found by
+ * slack far above the rounding), which skips about 40 % of the column pairs. Equipartitions are found by
  * bisection on prefix sums, and when there are more clumps than ĉ the superclump boundaries are found by
  * looking only at the clumps next to each boundary, the row counts then summed in one pass over the levels.
  *
