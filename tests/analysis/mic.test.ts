@@ -9,7 +9,8 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { collectPairs, labelRegions, measureRegion, mic, pairsFromArrays, Xoshiro128, type ChannelArray } from '../../shared/analysis/index';
+import { collectPairs, equipartition, labelRegions, measureRegion, mic, pairsFromArrays, Xoshiro128, type ChannelArray } from '../../shared/analysis/index';
+import { equipartitionPrefix } from '../../shared/analysis/mic';
 import { naiveMicE } from './naive';
 
 const root = fileURLToPath(new URL('../fixtures/', import.meta.url));
@@ -45,6 +46,28 @@ describe('MICe / TICe against R minerva (mine, est = "mic_e", alpha 0.6, C 15)',
       expect(Math.abs(r.ticE! - c.ticE), `ticE ${r.ticE} vs ${c.ticE}`).toBeLessThanOrEqual(1e-6);
     });
   }
+});
+
+describe('equipartition by bisection on prefix sums (mic.ts, used for the rows and the superclumps)', () => {
+  it('gives the same rows as the group-by-group equipartition on random sizes, few or many ties', () => {
+    const g = new Xoshiro128(41);
+    for (let trial = 0; trial < 400; trial++) {
+      const groups = 1 + (g.nextUint32() % 300);
+      const big = trial % 3 === 0 ? 60 : trial % 3 === 1 ? 4 : 1;
+      const sizes = Int32Array.from({ length: groups }, () => 1 + (g.nextUint32() % big) * (g.nextFloat() < 0.1 ? 20 : 1));
+      const P = new Int32Array(groups + 1);
+      for (let k = 0; k < groups; k++) P[k + 1] = P[k] + sizes[k];
+      const n = P[groups];
+      const rows = 1 + (g.nextUint32() % Math.min(groups + 5, 200));
+      const want = new Int32Array(groups);
+      const q = equipartition(sizes, groups, n, rows, want);
+      const bounds = new Int32Array(groups + 2);
+      expect(equipartitionPrefix(P, groups, n, rows, bounds), `trial ${trial}`).toBe(q);
+      const got = new Int32Array(groups);
+      for (let r = 0; r < q; r++) got.fill(r, bounds[r], bounds[r + 1]);
+      expect(Array.from(got), `trial ${trial}: ${groups} groups into ${rows} rows`).toEqual(Array.from(want));
+    }
+  });
 });
 
 describe('MICe / TICe properties', () => {
