@@ -20,5 +20,5 @@ export { useOutlineSync } from './lib/useOutlineSync';
 export { useScatter } from './lib/useScatter';
 export { OrthoViews } from './components/OrthoViews';
 export { ScatterOver } from './components/ScatterOver';
-export { VOLUME_PREVIEW_MAX_BYTES, volumeFits } from './lib/volumePreview';
+export { VOLUME_PREVIEW_MAX_BYTES, volumeFits, wholeFieldIn3d } from './lib/volumePreview';
 export type { StreamSource, VolumeSource } from './lib/useScatter';
