@@ -9,7 +9,8 @@
  *   POST   /api/fields/:id/cells/auto       automatic outlines (shared/analysis/segment.ts)
  *   GET    /api/fields/:id/cells.geojson    outlines as GeoJSON in pixel coordinates (server/cells/geojson.ts)
  *   POST   /api/fields/:id/cells/geojson    import GeoJSON outlines (multipart field "file"), all or nothing
- *   GET    /api/fields/:id/cells/labels.tiff  the cells as a label-image TIFF (server/cells/label-tiff.ts)
+ *   GET    /api/fields/:id/cells/labels.tiff  the cells as a label-image TIFF (server/cells/label-tiff.ts); a label stack,
+ *                                           one page per slice, when a stack has 3-D cells or outlines with a z range
  * pixelCount is always computed here with the shared rasterizer (shared/schemas/cells.ts cellIndices).
  * Every change writes an audit event in the same transaction.
  */

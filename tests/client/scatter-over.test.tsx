@@ -2,7 +2,8 @@
 /**
  * The Pixel scatter's choice on a stack (issue 16): every slice (3D) or the slice shown; while slices arrive a
  * progress bar counts them; a stack beyond the browser's limit (250 MB) says its size and the limit and that the
- * selected cell is read slice by slice, asking for a cell until one is chosen.
+ * selected cell is read slice by slice, asking for a cell until one is chosen; the whole field of a stack with
+ * more than 8 million voxels stays on the slice shown, which is said.
  */
 import { describe, expect, it, vi } from 'vitest';
 import { fireEvent, render, screen } from '@testing-library/react';
@@ -23,6 +24,16 @@ describe('ScatterOver', () => {
     expect(screen.getByText('Reading slice 13 of 32…')).toBeTruthy();
     fireEvent.click(screen.getByRole('radio', { name: 'The slice shown' }));
     expect(onOver).toHaveBeenCalledWith('slice');
+  });
+  it('a large stack that fits: without a selected cell the whole field stays on the slice shown, and says why', () => {
+    const { rerender } = render(<ScatterOver field={field(32)} over="volume" onOver={() => {}} progress={null} cellChosen={false} />);
+    expect(screen.getByTestId('volume-whole-field').textContent).toBe(
+      'The whole field has 33.6 million voxels, more than the 8 million previewed at once: without a selected cell the scatter covers the slice shown; a selected cell covers every slice.',
+    );
+    rerender(<ScatterOver field={field(32)} over="volume" onOver={() => {}} progress={null} cellChosen />);
+    expect(screen.queryByTestId('volume-whole-field')).toBeNull();
+    rerender(<ScatterOver field={field(5, 512)} over="volume" onOver={() => {}} progress={null} cellChosen={false} />);
+    expect(screen.queryByTestId('volume-whole-field')).toBeNull();
   });
   it('no progress bar once every slice is in, or for the slice shown', () => {
     const { rerender } = render(<ScatterOver field={field(32)} over="volume" onOver={() => {}} progress={{ done: 32, total: 32 }} cellChosen />);

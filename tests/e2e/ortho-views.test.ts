@@ -3,7 +3,7 @@
  * 0.1 µm per pixel, 0.35 µm between slices) with 3-D label cells and an outline over slices 2–4. The
  * workspace shows the XZ and YZ planes through the chosen point, painted and to scale (3.5 px per slice),
  * with the cells' outlines on them; typing a point fetches only its two sections; clicking a plane shows the
- * clicked slice; the Pixel scatter and live preview cover every slice (1,980 voxels). The screen passes axe
+ * clicked slice; following the cursor moves the planes to the pixel under the pointer; the Pixel scatter and live preview cover every slice (1,980 voxels). The screen passes axe
  * (serious and critical rules plus the structure rules, as tests/e2e/accessibility.test.ts).
  * Screenshot: test-results/ortho-views-01-stack.png.
  */
@@ -67,6 +67,20 @@ it('shows the XZ and YZ planes of a stack with the cells on them, and the scatte
   await xz.locator('canvas').click({ position: { x: box!.width * 0.3, y: box!.height * (3.5 / 5) } });
   await expect.poll(() => page.getByLabel('Z slice').inputValue()).toBe('3');
   await expect.poll(() => ortho.getByLabel('Point x').inputValue()).toBe(String(Math.floor(0.3 * 22)));
+
+  // following the cursor: the planes pass through the pixel under the pointer
+  await ortho.getByLabel('Follow the cursor over the image').check();
+  await page.getByTestId('field-viewer').scrollIntoViewIfNeeded();
+  const viewer = await page.getByTestId('field-viewer').boundingBox();
+  await page.mouse.move(viewer!.x + viewer!.width / 2, viewer!.y + viewer!.height / 2);
+  await page.mouse.move(viewer!.x + viewer!.width / 2 + 1, viewer!.y + viewer!.height / 2 + 1);
+  await expect.poll(() => ortho.getByLabel('Point y').inputValue(), { timeout: 10_000 }).not.toBe('4');
+  const [fx, fy] = [await ortho.getByLabel('Point x').inputValue(), await ortho.getByLabel('Point y').inputValue()];
+  // the middle of the fitted image is the middle of the 22 × 18 field
+  expect([Math.abs(Number(fx) - 11) <= 1, Math.abs(Number(fy) - 9) <= 1]).toEqual([true, true]);
+  await xz.getByText(`XZ plane through row y = ${fy}`).waitFor();
+  await yz.getByText(`YZ plane through column x = ${fx}`).waitFor();
+  await ortho.getByLabel('Follow the cursor over the image').uncheck();
 
   // the scatter and live preview over every slice: 22 × 18 × 5 voxels
   await expect.poll(() => page.getByRole('radio', { name: 'Every slice (3D)' }).isChecked()).toBe(true);

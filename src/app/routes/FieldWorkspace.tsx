@@ -17,7 +17,7 @@ import { useFieldPixels } from '@/features/fields';
 import { useFieldResults } from '@/features/workspace';
 import { initialOutlineState, outlineReducer } from '@/features/workspace';
 import { useOutlineSync } from '@/features/workspace';
-import { useScatter, ScatterOver, volumeFits, VOLUME_PREVIEW_MAX_BYTES, type StreamSource, type VolumeSource } from '@/features/workspace';
+import { useScatter, ScatterOver, volumeFits, wholeFieldIn3d, VOLUME_PREVIEW_MAX_BYTES, type StreamSource, type VolumeSource } from '@/features/workspace';
 import { Viewer, isTyping, type DisplaySettings, type Tool } from '@/features/workspace';
 import { ToolBar, TOOLS, ShortcutHelp } from '@/features/workspace';
 import { CellsPanel } from '@/features/workspace';
@@ -111,7 +111,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
     if (streamed.current?.key !== key)
       streamed.current = { key, source: { kind: 'stream', fieldId, width: field.width, height: field.height, depth: field.sizeZ, geometry: selectedOutline.geometry, maxBytes: VOLUME_PREVIEW_MAX_BYTES } };
   } else if (!wantVolume || volumeOk || !selectedOutline) streamed.current = null;
-  const inVolume = wantVolume && (volumeOk || !!streamed.current);
+  const inVolume = wantVolume && (volumeOk ? !!selectedOutline || wholeFieldIn3d(field) : !!streamed.current);
   const volumeSource = useMemo<VolumeSource | undefined>(() => (wantVolume && volumeOk ? { kind: 'volume', fieldId, width: field.width, height: field.height, depth: field.sizeZ } : undefined), [wantVolume, volumeOk, fieldId, field.width, field.height, field.sizeZ]);
   const volumeScatter = useScatter(volumeSource ?? streamed.current?.source, saturationLevel);
   const scatter = inVolume ? volumeScatter : sliceScatter;
@@ -385,7 +385,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-label="Pixel scatter">
             <h2 className="mb-1 text-base font-semibold">Pixel scatter</h2>
-            {stack && <ScatterOver field={field} over={wantVolume ? 'volume' : 'slice'} onOver={setOver} progress={inVolume ? volumeScatter.progress : null} cellChosen={!!selectedOutline} />}
+            {stack && <ScatterOver field={field} over={wantVolume ? 'volume' : 'slice'} onOver={setOver} progress={wantVolume ? volumeScatter.progress : null} cellChosen={!!selectedOutline} />}
             {pixels.isError && !inVolume ? (
               <ErrorNotice error={pixels.error} />
             ) : scatter.error ? (

@@ -23,5 +23,5 @@ export { AlignmentPanel } from './components/AlignmentPanel';
 export { useCompositeUrl } from './lib/useCompositeUrl';
 export { OrthoViews } from './components/OrthoViews';
 export { ScatterOver } from './components/ScatterOver';
-export { VOLUME_PREVIEW_MAX_BYTES, volumeFits } from './lib/volumePreview';
+export { VOLUME_PREVIEW_MAX_BYTES, volumeFits, wholeFieldIn3d } from './lib/volumePreview';
 export type { StreamSource, VolumeSource } from './lib/useScatter';

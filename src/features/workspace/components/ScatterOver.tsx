@@ -6,7 +6,9 @@
  */
 import { useId } from 'react';
 import type { FieldDetail } from '@shared/schemas/fields';
-import { VOLUME_PREVIEW_MAX_BYTES, megabytes, volumeBytes, volumeFits } from '../lib/volumePreview';
+import { VOLUME_PREVIEW_MAX_BYTES, WHOLE_FIELD_3D_MAX_VOXELS, megabytes, volumeBytes, volumeFits, wholeFieldIn3d } from '../lib/volumePreview';
+
+const millions = (n: number) => `${Number((n / 1e6).toPrecision(3))} million`;
 
 export function ScatterOver({ field, over, onOver, progress, cellChosen }: { field: FieldDetail; over: 'volume' | 'slice'; onOver: (o: 'volume' | 'slice') => void; progress: { done: number; total: number } | null; cellChosen: boolean }) {
   const name = useId();
@@ -29,6 +31,11 @@ export function ScatterOver({ field, over, onOver, progress, cellChosen }: { fie
         <p className="text-xs text-ink-soft" data-testid="volume-limit">
           This stack is {megabytes(bytes)}, more than the {megabytes(VOLUME_PREVIEW_MAX_BYTES)} the browser holds at once, so over every slice the preview reads the selected cell&rsquo;s voxels slice by slice
           {over === 'volume' && !cellChosen ? '; select a cell (until then the slice shown is used).' : '.'}
+        </p>
+      )}
+      {fits && over === 'volume' && !cellChosen && !wholeFieldIn3d(field) && (
+        <p className="text-xs text-ink-soft" data-testid="volume-whole-field">
+          The whole field has {millions(field.width * field.height * field.sizeZ)} voxels, more than the {millions(WHOLE_FIELD_3D_MAX_VOXELS)} previewed at once: without a selected cell the scatter covers the slice shown; a selected cell covers every slice.
         </p>
       )}
       {over === 'volume' && progress && progress.done < progress.total && (

@@ -28,3 +28,14 @@ export function megabytes(bytes: number): string {
   const mb = bytes / 1e6;
   return `${mb >= 100 ? mb.toFixed(0) : mb.toFixed(1)} MB`;
 }
+
+/**
+ * Most voxels the whole field is previewed over in 3D (no cell selected): 8 M (e.g. 512 × 512 × 32). Above it
+ * the whole field's scatter takes seconds of the worker (33.5 M voxels ≈ 5 s of CPU,
+ * tests/bench/workspace-volume.bench.ts), so without a selected cell the slice shown is used; cells still get
+ * their whole volume.
+ */
+export const WHOLE_FIELD_3D_MAX_VOXELS = 8_000_000;
+
+/** Whether the whole field (no cell selected) is previewed over every slice. */
+export const wholeFieldIn3d = (f: { width: number; height: number; sizeZ: number }) => f.width * f.height * f.sizeZ <= WHOLE_FIELD_3D_MAX_VOXELS;
