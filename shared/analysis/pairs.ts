@@ -253,8 +253,9 @@ export function sortByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairA
   for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
   const wideX = L > 65536;
   const xByY: RankArray = wideX ? new Uint32Array(n) : new Uint16Array(n);
-  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array) {
-    // integer data counted by value: positions per y value, x levels by lookup (no per-item level arrays)
+  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array && n > yl.length) {
+    // integer data counted by value: positions per y value, x levels by lookup (no per-item level arrays;
+    // for fewer items than values the per-item levels are cheaper)
     const yPos = new Int32Array(yl.length);
     for (let v = 0; v < yl.length; v++) yPos[v] = yStart[yl[v]];
     for (let i = 0; i < n; i++) xByY[yPos[y[i]]++] = xl[x[i]];
@@ -306,8 +307,9 @@ export function distinctByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: P
     }
     out[g + 1] = w;
   }
-  // copies of the used part, so the item-sized arrays can go
-  return { start: out, yRank: yRank.slice(0, w), mult: mult.slice(0, w) };
+  // big regions: copies of the used part, so that the item-sized arrays can go
+  if (n >= 1 << 20) return { start: out, yRank: yRank.slice(0, w), mult: mult.slice(0, w) };
+  return { start: out, yRank: yRank.subarray(0, w), mult: mult.subarray(0, w) };
 }
 
 /**
