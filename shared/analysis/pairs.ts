@@ -253,8 +253,9 @@ export function sortByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairA
   for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
   const wideX = L > 65536;
   const xByY: RankArray = wideX ? new Uint32Array(n) : new Uint16Array(n);
-  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array) {
-    // integer data counted by value: positions per y value, x levels by lookup (no per-item level arrays)
+  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array && n > yl.length) {
+    // integer data counted by value: positions per y value, x levels by lookup (no per-item level arrays;
+    // for fewer items than values the per-item levels are cheaper)
     const yPos = new Int32Array(yl.length);
     for (let v = 0; v < yl.length; v++) yPos[v] = yStart[yl[v]];
     for (let i = 0; i < n; i++) xByY[yPos[y[i]]++] = xl[x[i]];
@@ -284,63 +285,31 @@ export interface DistinctPairs {
 }
 
 /**
- * Distinct pairs in (x, y) order, O(n + Lx + Ly): the x levels grouped by y (one counting pass), each y
- * group's distinct x levels counted in place, then only the distinct pairs placed in x order (y ascending
- * within each x level because the y groups are visited in ascending order).
+ * Distinct pairs in (x, y) order, O(n + Lx + Ly): the items sorted by sortByX (equal pairs adjacent), each
+ * run of equal pairs then kept once with its length.
  */
 export function distinctByX(lx: LevelIndex, ly: LevelIndex, x?: PairArray, y?: PairArray): DistinctPairs {
-  const { L } = lx;
-  const { L: Ly, counts: cy } = ly;
-  let n = 0;
-  for (let k = 0; k < L; k++) n += lx.counts[k];
-  const xl = lx.valueLevel, yl = ly.valueLevel;
-  const yStart = new Int32Array(Ly + 1);
-  for (let k = 0; k < Ly; k++) yStart[k + 1] = yStart[k] + cy[k];
-  const xByY: RankArray = L > 65536 ? new Uint32Array(n) : new Uint16Array(n);
-  if (xl && yl && x instanceof Uint16Array && y instanceof Uint16Array) {
-    const yPos = new Int32Array(yl.length);
-    for (let v = 0; v < yl.length; v++) yPos[v] = yStart[yl[v]];
-    for (let i = 0; i < n; i++) xByY[yPos[y[i]]++] = xl[x[i]];
-  } else {
-    const rx = lx.rank, ry = ly.rank;
-    const yPos = yStart.slice(0, Ly);
-    for (let i = 0; i < n; i++) xByY[yPos[ry[i]]++] = rx[i];
-  }
-  // each y group's distinct x levels, compacted to the front of the array with their counts
-  const seen = new Int32Array(L);
-  const cnt = new Int32Array(n);
-  const perX = new Int32Array(L + 1); // distinct pairs per x level
-  const dStart = new Int32Array(Ly + 1);
+  const { start, yRank } = sortByX(lx, ly, x, y);
+  const L = start.length - 1;
+  const n = yRank.length;
+  const mult = new Int32Array(n);
+  const out = new Int32Array(L + 1);
   let w = 0;
-  for (let k = 0; k < Ly; k++) {
-    const g0 = w;
-    for (let q = yStart[k], e = yStart[k + 1]; q < e; q++) {
-      const v = xByY[q];
-      const c = seen[v];
-      xByY[w] = v;
-      w += c === 0 ? 1 : 0;
-      seen[v] = c + 1;
+  for (let g = 0; g < L; g++) {
+    const b = start[g + 1];
+    for (let q = start[g]; q < b; ) {
+      const r = yRank[q];
+      let e = q + 1;
+      while (e < b && yRank[e] === r) e++;
+      yRank[w] = r;
+      mult[w++] = e - q;
+      q = e;
     }
-    for (let j = g0; j < w; j++) {
-      const v = xByY[j];
-      cnt[j] = seen[v];
-      seen[v] = 0;
-      perX[v + 1]++;
-    }
-    dStart[k + 1] = w;
+    out[g + 1] = w;
   }
-  const start = new Int32Array(L + 1);
-  for (let g = 0; g < L; g++) start[g + 1] = start[g] + perX[g + 1];
-  const pos = start.slice(0, L);
-  const yRank: RankArray = Ly > 65536 ? new Uint32Array(w) : new Uint16Array(w);
-  const mult = new Int32Array(w);
-  for (let k = 0; k < Ly; k++)
-    for (let j = dStart[k], e = dStart[k + 1]; j < e; j++) {
-      const q = pos[xByY[j]]++;
-      yRank[q] = k;
-      mult[q] = cnt[j];
-    }
-  return { start, yRank, mult };
+  // big regions: copies of the used part, so that the item-sized arrays can go
+  if (n >= 1 << 20) return { start: out, yRank: yRank.slice(0, w), mult: mult.slice(0, w) };
+  return { start: out, yRank: yRank.subarray(0, w), mult: mult.subarray(0, w) };
 }
 
 /**

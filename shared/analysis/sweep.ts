@@ -8,7 +8,8 @@
  * tree (Fenwick 1994, Softw. Pract. Exper. 24:327, doi:10.1002/spe.4380240306) over the y levels carrying
  * count, Σu, Σw, Σuw of the items seen (u, w the centred values). One tree over all y levels outgrows the
  * processor's cache on large images, so the y levels are cut into slabs (at most SLAB_LEVELS levels and about
- * an eighth of the items each; one slab below SLAB_MIN_PAIRS pairs) and each earlier item j of an item i is
+ * an eighth of the items each; one slab below SLAB_MIN_PAIRS pairs, where the tree is small and one slab
+ * gives the values of the single-tree sweep bit for bit) and each earlier item j of an item i is
  * counted where it lies:
  * - j in the same slab: by that slab's own sweep (`slabPartial`, a tree over the slab's levels only; the
  *   slabs are independent, so they can run on different threads);
@@ -29,7 +30,7 @@ import type { PreparedPairs, RankArray } from './pairs';
 /** At most this many y levels per slab (its tree, 32 bytes per level, stays within a core's cache). */
 export const SLAB_LEVELS = 4096;
 /** Below this many pairs the sweep is one slab. */
-export const SLAB_MIN_PAIRS = 1 << 16;
+export const SLAB_MIN_PAIRS = 1 << 20;
 
 /** What one slab's sweep reads: typed arrays only (copyable to, or shareable with, another thread). */
 export interface SweepInput {
