@@ -3,7 +3,9 @@
  * 0.1 µm per pixel, 0.35 µm between slices) with 3-D label cells and an outline over slices 2–4. The
  * workspace shows the XZ and YZ planes through the chosen point, painted and to scale (3.5 px per slice),
  * with the cells' outlines on them; typing a point fetches only its two sections; clicking a plane shows the
- * clicked slice; following the cursor moves the planes to the pixel under the pointer; the Pixel scatter and live preview cover every slice (1,980 voxels). The screen passes axe
+ * clicked slice; following the cursor moves the planes to the pixel under the pointer; the Pixel scatter and
+ * live preview cover every slice (1,980 voxels) while the alignment composite stays a picture of the slice
+ * shown. The screen passes axe
  * (serious and critical rules plus the structure rules, as tests/e2e/accessibility.test.ts).
  * Screenshot: test-results/ortho-views-01-stack.png.
  */
@@ -85,6 +87,22 @@ it('shows the XZ and YZ planes of a stack with the cells on them, and the scatte
   // the scatter and live preview over every slice: 22 × 18 × 5 voxels
   await expect.poll(() => page.getByRole('radio', { name: 'Every slice (3D)' }).isChecked()).toBe(true);
   await page.getByTestId('live-preview').getByText(/1,980 voxels/).waitFor({ timeout: 30_000 });
+  // the alignment composite stays a picture of the slice shown (22 × 18), drawn anew for another slice, while
+  // the scatter holds the whole volume
+  const composite = page.getByTestId('alignment-composite');
+  const drawn = () =>
+    composite.locator('canvas').evaluate((c: HTMLCanvasElement) => {
+      const d = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;
+      let sum = 0;
+      for (let i = 0; i < d.length; i++) sum = (sum * 31 + d[i]) % 1_000_003;
+      return { size: `${c.width}×${c.height}`, sum };
+    });
+  await expect.poll(async () => (await drawn()).size, { timeout: 20_000 }).toBe('22×18');
+  const onSlice4 = (await drawn()).sum;
+  await page.getByLabel('Z slice').selectOption('1');
+  await expect.poll(async () => { const d = await drawn(); return d.size === '22×18' && d.sum !== onSlice4; }, { timeout: 20_000 }).toBe(true);
+  expect(await composite.getByRole('alert').count()).toBe(0);
+  await expect.poll(() => page.getByRole('radio', { name: 'Every slice (3D)' }).isChecked()).toBe(true);
   await page.getByRole('heading', { name: 'Orthogonal views' }).scrollIntoViewIfNeeded();
   await shot(page, 'ortho-views-01-stack');
   expect(await scan(page)).toEqual([]);

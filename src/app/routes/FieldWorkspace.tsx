@@ -129,16 +129,18 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
   const onThresholds = useCallback((t1: number, t2: number) => scatter.request(regionKey, geometry, t1, t2, false, cellGeometries), [scatter, regionKey, geometry, cellGeometries]);
   const onThresholdsDone = useCallback((t1: number, t2: number) => setManual({ t1, t2 }), []);
 
-  // the main image with channel 2 aligned (the alignment panel's switch): drawn by the pixel worker at the shown intensities
+  // the main image with channel 2 aligned (the alignment panel's switch): drawn by the pixel worker at the shown
+  // intensities. Composites are 2-D views of the shown slice, so they always come from the slice's worker, even
+  // while the scatter covers the whole volume (that worker refuses them: lib/composite.ts compositePlane)
   const [viewerShift, setViewerShift] = useState<{ dx: number; dy: number } | null>(null);
   const r1 = display.range1 ?? autoRanges?.[0] ?? null;
   const r2 = display.range2 ?? autoRanges?.[1] ?? null;
   const alignMain = !!viewerShift && display.view === 'composite' && !!r1 && !!r2;
   useEffect(() => {
-    if (alignMain && scatter.ready) scatter.requestComposite(viewerShift, 'viewer', [r1!, r2!]);
+    if (alignMain && sliceScatter.ready) sliceScatter.requestComposite(viewerShift, 'viewer', [r1!, r2!]);
     // eslint-disable-next-line react-hooks/exhaustive-deps
-  }, [alignMain, scatter.ready, viewerShift?.dx, viewerShift?.dy, r1?.[0], r1?.[1], r2?.[0], r2?.[1]]);
-  const viewerComposite = scatter.composites.viewer;
+  }, [alignMain, sliceScatter.ready, viewerShift?.dx, viewerShift?.dy, r1?.[0], r1?.[1], r2?.[0], r2?.[1]]);
+  const viewerComposite = sliceScatter.composites.viewer;
   const alignedImage = useCompositeUrl(alignMain && viewerComposite && viewerComposite.shift?.dx === viewerShift?.dx && viewerComposite.shift?.dy === viewerShift?.dy ? viewerComposite : null);
 
   // spots: the latest run's (stored per cell), or live detection in the worker at the sliders' σ and k
@@ -432,7 +434,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
             <h2 id="field-alignment-heading" className="mb-1 text-base font-semibold">
               Channel alignment
             </h2>
-            {pixels.isError ? <ErrorNotice error={pixels.error} /> : <AlignmentPanel field={field} drawer={scatter} onMainImage={setViewerShift} mainImageComposite={display.view === 'composite'} />}
+            {pixels.isError ? <ErrorNotice error={pixels.error} /> : <AlignmentPanel field={field} drawer={sliceScatter} onMainImage={setViewerShift} mainImageComposite={display.view === 'composite'} />}
           </section>
           {canEdit && (
             <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-instrument-heading">

@@ -31,9 +31,22 @@ export function displayRange(a: SampleArray, lo = 0.1, hi = 99.9): [number, numb
   return h > l ? [l, h] : [l, l + 1];
 }
 
+/**
+ * The one slice a composite is drawn from. The alignment composite is a 2-D view of the slice shown; a worker
+ * holding a whole volume (`depth` > 1) or only one cell's voxels of a stack (`compact`) has no such picture,
+ * so it is refused with what it holds rather than drawn at a wrong size.
+ */
+export function compositePlane(img: CompositeInput & { depth?: number; compact?: boolean }): CompositeInput {
+  if (img.compact) throw new Error(`The composite is drawn from one slice, but this view holds only one cell's ${img.ch1.length} voxels of the stack.`);
+  if ((img.depth ?? 1) > 1) throw new Error(`The composite is drawn from one slice, but this view holds the whole volume (${img.depth} slices of ${img.width} × ${img.height} pixels).`);
+  return img;
+}
+
 /** RGBA bytes of the composite; `shift` null draws channel 2 as recorded. */
 export function renderComposite(px: CompositeInput, shift: { dx: number; dy: number } | null, ranges: [[number, number], [number, number]] = [displayRange(px.ch1), displayRange(px.ch2)]) {
   const { width, height } = px;
+  if (px.ch1.length !== width * height || px.ch2.length !== width * height)
+    throw new RangeError(`A composite of ${width} × ${height} pixels needs ${width * height} values per channel, not ${px.ch1.length} and ${px.ch2.length}.`);
   const ch2: ArrayLike<number> = shift ? alignChannel(px.ch2, width, height, shift.dx, shift.dy) : px.ch2;
   const step = Math.max(1, Math.ceil(Math.max(width, height) / COMPOSITE_MAX_SIDE));
   const w = Math.ceil(width / step), h = Math.ceil(height / step);

@@ -9,7 +9,7 @@ import type { Xy } from './spotView';
 import type { CellGeometry } from '@shared/schemas/cells';
 import type { SampleArray } from '@shared/pixels/codec';
 import type { SaturatedMarks, ThresholdBasis } from './scatterBasis';
-import { displayRange, renderComposite } from './composite';
+import { compositePlane, displayRange, renderComposite } from './composite';
 
 export type ScatterRequest =
   | { type: 'pixels'; width: number; height: number; ch1: SampleArray; ch2: SampleArray; saturationLevel: number | null }
@@ -49,8 +49,10 @@ self.onmessage = (e: MessageEvent<ScatterRequest>) => {
     try {
       if (!img) throw new Error('pixels not loaded yet');
       const t0 = performance.now();
-      ranges ??= [displayRange(img.ch1), displayRange(img.ch2)];
-      const c = renderComposite(img, m.shift, m.ranges ?? ranges);
+      // a 2-D view of one slice: refused when this worker holds a whole volume or one cell's voxels
+      const plane = compositePlane(img);
+      ranges ??= [displayRange(plane.ch1), displayRange(plane.ch2)];
+      const c = renderComposite(plane, m.shift, m.ranges ?? ranges);
       (self as unknown as Worker).postMessage({ type: 'composite', seq: m.seq, slot: m.slot, shift: m.shift, ...c, ms: performance.now() - t0 } satisfies ScatterReply, [c.rgba.buffer]);
     } catch (err) {
       (self as unknown as Worker).postMessage({ type: 'error', seq: m.seq, message: (err as Error).message, composite: m.slot } satisfies ScatterReply);

@@ -183,6 +183,8 @@ export function useScatter(pixels: ScatterSource | undefined, saturationLevel: n
   /**
    * Draw the composite with channel 2 as recorded (null) or aligned by the shift, into a slot (each slot's
    * latest request wins); `ranges` are the shown intensities per channel (default: the 0.1–99.9 percentiles).
+   * A composite is a 2-D view of one slice: a worker holding a whole volume or one cell's voxels answers with an
+   * error in the slot (composite.ts compositePlane), so ask the shown slice's worker.
    */
   const requestComposite = (shift: { dx: number; dy: number } | null, slot = 'panel', ranges?: [[number, number], [number, number]]) => {
     const w = worker.current;
