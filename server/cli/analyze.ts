@@ -35,7 +35,9 @@
  *    region. `--measure-bleed 1|2` (a control labelled in channel 1 or 2; after `--shift`, over the union of
  *    the regions or the whole image) adds `"bleed": { "a21" }` or `{ "a12" }`. `--bleed A21,A12` unmixes
  *    o1 = t1 + A12·t2, o2 = A21·t1 + t2 per pixel, negatives set to 0 (after `--shift`). Corrected values
- *    are floating point. `--objects` does not combine with `--shift` (spot detection keeps every pixel).
+ *    are floating point. `--objects` detects spots on the aligned and unmixed channels; pixels without a
+ *    value (dropped by `--shift`, or NaN in a float file) and the pixels within the spot filter's reach of
+ *    one (⌈4σ⌉ + 1 px) are not searched, in either channel, nor used for the chance placements.
  *  - Exit 0 on success; 2 with one `error:` line on stderr for bad input; 1 for an internal failure
  *    (also one line). Never a stack trace.
  */
@@ -335,8 +337,6 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
     if (mb !== '1' && mb !== '2') throw new UsageError(`--measure-bleed must be 1 or 2 (the labelled channel of the control), received ${JSON.stringify(mb)}`);
     out.measureBleed = mb === '1' ? 1 : 2;
   }
-  if (values.objects === true && out.shift)
-    throw new UsageError('--objects cannot be combined with --shift: spot detection measures every pixel, and aligned pixels at the border are not measured');
   if (values.objects === true) out.objects = parseObjectSettings(s);
   else {
     const given = OBJECT_FLAGS.filter((f) => s(f) !== undefined);
@@ -501,7 +501,9 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     const rest = o.mic ? { ...computed, micE, ticE } : computed;
     if (!o.objects) return { label: r.label, ...rest };
     // one measured plane here, so the region's indices are plane indices
-    const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
+    // on the aligned and unmixed channels; pixels without a value (dropped by --shift, NaN in a float
+    // file) and those within the filter's reach of one are not searched in either channel
+    const objects = measureObjects(ch1, ch2, width, height, r.indices, { ...o.objects, missing: 'exclude' });
     return { label: r.label, ...rest, objects };
   });
   return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };

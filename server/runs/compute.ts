@@ -167,7 +167,7 @@ export function blockPixels(s: RecipeSettings, fieldPixelSizeUm: number | null):
 }
 
 /** The objects section as the engine takes it (σ, d in pixels), or null when it is off. */
-export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null): Required<Omit<ObjectOptions, 'kRadii'>> | null {
+export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null): Required<Omit<ObjectOptions, 'kRadii' | 'missing'>> | null {
   const o = s.objects;
   if (!o.enabled) return null;
   try {
