@@ -26,7 +26,10 @@
  *    (shared/analysis/objects.ts) with exactly the keys of `OBJECT_RESULT_KEYS`; spot centres as [x, y] in
  *    the ROI coordinates above (a pixel's centre at +0.5). The settings used are echoed as `objectSettings`.
  *    `--seed` seeds the Monte Carlo placement test (the command runs no other randomized test). The spot
- *    options are an error without `--objects`; one measured plane only (spots are located in 2-D).
+ *    options are an error without `--objects`. A stack measured in 3D (`--z all|A-B`, more than one slice)
+ *    gets spots found in 3D (measureObjects3D), listed as [x, y, z] with z in slices of the stack (0-based,
+ *    a slice's centre at +0.5), distances in pixel widths with z scaled by the slice spacing: `--z-step R`
+ *    (z step / pixel size) or the file's OME voxel size, else an error; `objectSettings` then has `zStep`.
  *  - Calibration (order: read → measure shift → align → measure bleed → unmix → measure):
  *    `--measure-shift` adds a top-level `"shift": { "dx", "dy" }` of the measured slices (channel 2 is
  *    displaced by (dx, dy): ch2(x + dx, y + dy) ≈ ch1(x, y); x right, y down, px; the whole image, z slices
@@ -35,7 +38,9 @@
  *    region. `--measure-bleed 1|2` (a control labelled in channel 1 or 2; after `--shift`, over the union of
  *    the regions or the whole image) adds `"bleed": { "a21" }` or `{ "a12" }`. `--bleed A21,A12` unmixes
  *    o1 = t1 + A12·t2, o2 = A21·t1 + t2 per pixel, negatives set to 0 (after `--shift`). Corrected values
- *    are floating point. `--objects` does not combine with `--shift` (spot detection keeps every pixel).
+ *    are floating point. `--objects` detects spots on the aligned and unmixed channels; pixels without a
+ *    value (dropped by `--shift`, or NaN in a float file) and the pixels within the spot filter's reach of
+ *    one (⌈4σ⌉ + 1 px) are not searched, in either channel, nor used for the chance placements.
  *  - Exit 0 on success; 2 with one `error:` line on stderr for bad input; 1 for an internal failure
  *    (also one line). Never a stack trace.
  */
@@ -55,9 +60,11 @@ import {
   type ThresholdInfo,
   type ThresholdOptions,
   measureObjects,
+  measureObjects3D,
   OBJECT_DEFAULTS,
   MIC_DEFAULTS,
   type ObjectResult,
+  type Object3Result,
 } from '../../shared/analysis/index';
 import { alignAndUnmix, alignChannel, bleedThroughSlope, measureShift, unmixChannels } from '../../shared/analysis/index';
 import { COEFFICIENTS, isPixelEntry } from '../../shared/coefficients';
@@ -74,7 +81,7 @@ export const DEFAULT_THREADS = 2;
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--threads N] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S] [--z-step R]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--threads N] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -95,12 +102,16 @@ export const HELP = [
   `  --mic                       also compute MICe and TICe (Reshef et al. 2016; alpha ${MIC_DEFAULTS.alpha}, c ${MIC_DEFAULTS.c}),`,
   '                              up to about 0.5 s per 20,000 pixels; adds "micE" and "ticE" to each region',
   '  --objects                   also detect spots in each channel, pair them and test against chance;',
-  '                              the five options below need --objects',
+  '                              the six options below need --objects; on a stack measured in 3D spots are',
+  '                              found in 3D and listed as [x, y, z] (z in slices of the stack, 0-based, a',
+  '                              slice centre at +0.5); distances in pixel widths with z scaled by --z-step',
   `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma})`,
   `  --spot-k K                  keep spots whose filter response exceeds K × the noise (default ${OBJECT_DEFAULTS.spotK})`,
   `  --pair-distance PX          a spot is paired when its nearest partner is at most PX away (default ${OBJECT_DEFAULTS.pairDistance})`,
   `  --placements N              random placements of the channel-2 spots for the p-value, 1 to 1000000 (default ${OBJECT_DEFAULTS.placements})`,
   `  --seed S                    seed of the placement test, an integer 0 to 4294967295 (default ${OBJECT_DEFAULTS.seed})`,
+  '  --z-step R                  slice spacing in pixel widths (z step / pixel size) for spots in 3D;',
+  '                              default from the file\'s voxel size (OME-XML), required when it states none',
   '  --measure-shift             measure how far channel 2 is displaced from channel 1 (adds "shift": dx, dy in px)',
   '  --shift DX,DY               align first: sample channel 2 at (x + DX, y + DY); pixels that fall outside are dropped',
   '  --bleed A21,A12             remove bleed-through (after --shift): A21 of channel 1 seen in channel 2, A12 the reverse,',
@@ -154,6 +165,8 @@ export interface CliOptions {
   threshold: ThresholdOptions;
   /** the object settings when --objects was given, else null */
   objects: ObjectSettings | null;
+  /** --z-step: slice spacing in pixel widths for spots in 3D (null: from the file's voxel size) */
+  zStep?: number | null;
   /** --mic: MICe and TICe with the default parameters */
   mic: boolean;
   /** --measure-shift */
@@ -200,7 +213,7 @@ export function parseZ(v: string | undefined): ZChoice {
   return { projection: m[1] ? 'mip' : null, from, to };
 }
 
-const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed'] as const;
+const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed', 'z-step'] as const;
 
 /** Reads the --objects options; each bad value is a UsageError quoting what was received. */
 function parseObjectSettings(get: (k: string) => string | undefined): ObjectSettings {
@@ -261,6 +274,7 @@ const OPTIONS = {
   placements: { type: 'string' },
   seed: { type: 'string' },
   'measure-shift': { type: 'boolean' },
+  'z-step': { type: 'string' },
   shift: { type: 'string' },
   bleed: { type: 'string' },
   'measure-bleed': { type: 'string' },
@@ -348,10 +362,15 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
     if (!/^\d+$/.test(th.trim()) || Number(th) < 1 || Number(th) > 64) throw new UsageError(`--threads must be a whole number from 1 to 64, received ${JSON.stringify(th)}`);
     out.threads = Number(th);
   }
-  if (values.objects === true && out.shift)
-    throw new UsageError('--objects cannot be combined with --shift: spot detection measures every pixel, and aligned pixels at the border are not measured');
-  if (values.objects === true) out.objects = parseObjectSettings(s);
-  else {
+  if (values.objects === true) {
+    out.objects = parseObjectSettings(s);
+    const zs = s('z-step');
+    if (zs !== undefined) {
+      const v = parseNumber(zs, '--z-step');
+      if (!(v > 0 && v <= 1000)) throw new UsageError(`--z-step must be the slice spacing in pixel widths (z step / pixel size), a number in (0, 1000], received ${JSON.stringify(zs)}`);
+      out.zStep = v;
+    }
+  } else {
     const given = OBJECT_FLAGS.filter((f) => s(f) !== undefined);
     if (given.length > 0) throw new UsageError(`${given.map((f) => `--${f}`).join(', ')} ${given.length === 1 ? 'applies' : 'apply'} to --objects only; add --objects or leave ${given.length === 1 ? 'it' : 'them'} out`);
   }
@@ -399,13 +418,13 @@ export interface AnalyzeOutput {
   z: { from: number; to: number; projection: 'mip' | null };
   thresholds: ThresholdInfo;
   /** present with --objects: the settings every region's `objects` was measured with */
-  objectSettings?: ObjectSettings;
+  objectSettings?: ObjectSettings & { zStep?: number };
   /** present with --measure-shift: channel 2's displacement, ch2(x + dx, y + dy) ≈ ch1(x, y), in pixels */
   shift?: { dx: number | null; dy: number | null };
   /** present with --measure-bleed: the coefficient of the control's labelled channel */
   bleed?: { a21: number | null } | { a12: number | null };
   /** `micE` and `ticE` are present with --mic only */
-  regions: (Omit<RegionResult, 'thresholds' | 'micE' | 'ticE'> & Partial<Pick<RegionResult, 'micE' | 'ticE'>> & { label: number | string; objects?: ObjectResult })[];
+  regions: (Omit<RegionResult, 'thresholds' | 'micE' | 'ticE'> & Partial<Pick<RegionResult, 'micE' | 'ticE'>> & { label: number | string; objects?: ObjectResult | Object3Result })[];
 }
 
 /** The --z choice resolved against the image's slice count (1-based, inclusive). */
@@ -423,6 +442,8 @@ type Region = { label: number | string; indices: Uint32Array | null };
 
 export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
   let width: number, height: number, s1: PixelArray[], s2: PixelArray[];
+  /** the files' voxel size, when stated (OME-XML PhysicalSizeX / PhysicalSizeZ) */
+  let voxel: { pixelSizeUm: number | null; zStepUm: number | null } = { pixelSizeUm: null, zStepUm: null };
   if (o.image) {
     const path = o.image;
     await mustExist(path, '--image');
@@ -430,6 +451,7 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     ({ width, height } = d);
     s1 = d.ch1;
     s2 = d.ch2;
+    voxel = { pixelSizeUm: d.info.pixelSizeUm, zStepUm: d.info.zStepUm };
   } else {
     const p1 = o.ch1!, p2 = o.ch2!;
     await mustExist(p1, '--ch1');
@@ -443,6 +465,7 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     ({ width, height } = a);
     s1 = a.slices;
     s2 = b.slices;
+    voxel = { pixelSizeUm: a.info.pixelSizeUm, zStepUm: a.info.zStepUm };
   }
   const nz = s1.length;
   const z = resolveZ(o.z, nz);
@@ -464,8 +487,13 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
     // alignment and unmixing in one pass when nothing needs the aligned channel 2 on its own (--measure-bleed does)
     const fused = o.shift !== null && o.bleed !== null && o.measureBleed === null;
     if (o.shift && !fused) ch2 = alignChannel(ch2, width, height, o.shift.dx, o.shift.dy, depth);
-    if (o.objects && depth > 1)
-      throw new UsageError(`--objects needs single-plane images, received ${depth} z slices to measure in 3D; measure one slice (--z N) or a projection (--z mip)`);
+    // spots in 3D need the slice spacing in pixel widths: --z-step, or the files' voxel size
+    let zStep: number | null = null;
+    if (o.objects && depth > 1) {
+      zStep = o.zStep ?? (voxel.pixelSizeUm && voxel.zStepUm ? voxel.zStepUm / voxel.pixelSizeUm : null);
+      if (zStep === null)
+        throw new UsageError(`--objects in 3D (${depth} z slices) needs the slice spacing: give --z-step (z step / pixel size, e.g. 2.5 for 0.1 µm pixels and 0.25 µm steps), or a file that states its voxel size`);
+    }
     let regions: Region[] = [{ label: 0, indices: null }];
     if (o.mask) {
       const path = o.mask;
@@ -524,11 +552,20 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
         results.push({ label: r.label, ...rest });
         continue;
       }
+      // on the aligned and unmixed channels; pixels without a value (dropped by --shift, NaN in a float
+      // file) and those within the filter's reach of one are not searched in either channel
+      if (zStep !== null) {
+        // spots in the measured volume; z reported in slices of the stack (0-based, centre of slice at +0.5)
+        const v = measureObjects3D(ch1, ch2, width, height, depth, r.indices, { ...o.objects, zScale: zStep, missing: 'exclude' });
+        const shiftZ = (p: [number, number, number][]) => p.map(([x, y, zz]): [number, number, number] => [x, y, zz + z0]);
+        results.push({ label: r.label, ...rest, objects: { ...v, spots1: shiftZ(v.spots1), spots2: shiftZ(v.spots2) } });
+        continue;
+      }
       // one measured plane here, so the region's indices are plane indices
-      const objects = measureObjects(ch1, ch2, width, height, r.indices, o.objects);
+      const objects = measureObjects(ch1, ch2, width, height, r.indices, { ...o.objects, missing: 'exclude' });
       results.push({ label: r.label, ...rest, objects });
     }
-    return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: o.objects } : {}), ...measured, regions: results };
+    return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: zStep === null ? o.objects : { ...o.objects, zStep } } : {}), ...measured, regions: results };
   } finally {
     await threads?.close();
   }

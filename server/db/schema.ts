@@ -342,6 +342,8 @@ export const spots = sqliteTable('spots', {
   channel: integer('channel').notNull(),
   x: real('x').notNull(),
   y: real('y').notNull(),
+  /** slices of the field's stack (0-based, a slice's centre at +0.5) for spots found in 3D; null in 2D */
+  z: real('z'),
   peak: real('peak').notNull(),
   integrated: real('integrated').notNull(),
 }, (t) => [index('spots_run_field').on(t.runId, t.fieldId)]);

@@ -215,11 +215,13 @@ export default function runsRoutes(ctx: AppContext) {
     const inRun = ctx.db.select({ fieldId: runFields.fieldId }).from(runFields).where(and(eq(runFields.runId, id), eq(runFields.fieldId, fieldId))).get();
     if (!inRun) throw notFound(`run ${id} has no field with id ${fieldId}`);
     const rows = ctx.db
-      .select({ cellId: spots.cellId, channel: spots.channel, x: spots.x, y: spots.y, peak: spots.peak, integrated: spots.integrated })
+      .select({ cellId: spots.cellId, channel: spots.channel, x: spots.x, y: spots.y, z: spots.z, peak: spots.peak, integrated: spots.integrated })
       .from(spots)
       .where(and(eq(spots.runId, id), eq(spots.fieldId, fieldId)))
       .orderBy(spots.cellId, spots.channel, spots.id)
-      .all();
+      .all()
+      // z only for spots found in 3D
+      .map(({ z, ...rest }) => (z === null ? rest : { ...rest, z }));
     // the settings as applied are in every measurement's provenance (absent when the objects section was off)
     const m = ctx.db.select({ provenance: measurements.provenance }).from(measurements).where(and(eq(measurements.runId, id), eq(measurements.fieldId, fieldId))).limit(1).get();
     const settings = (m?.provenance as { objects?: unknown } | undefined)?.objects ?? null;

@@ -33,7 +33,9 @@
  *   a spot, and dropping pixels would punch holes into the filter's neighbourhoods). σ and d in µm are turned
  *   into pixels with the recipe's or the field's pixel size. A cell below minCellPixels gets every measure
  *   null, the object measures included, and no spots. A float field with NaN pixels fails with the count when
- *   spots are on (the filter reaches beyond the cell, so no pixel may lack a value).
+ *   spots are on (the filter reaches beyond the cell, so no pixel may lack a value). A field measured in 3D
+ *   (2026-12-03): `analyzeObjects3D` over the cell's voxels, σz = σ · pixel size / z step, distances in pixel
+ *   widths with z scaled (so µm settings convert with the pixel size as in 2D); needs the field's voxel size.
  * - calibration (recipe setting 'approved', 2026-12-02): channel 2 is aligned with the instrument's approved
  *   shift first (bilinear; pixels whose sample position is outside become NaN, so they are not measured and
  *   count in `nanPixels`), then background is subtracted, then bleed-through is unmixed (a missing
@@ -41,7 +43,7 @@
  *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
  *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, analyzeObjects3D, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ObjectResult, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { THREAD_MIN_PAIRS, type SweepThreads } from '../analysis/sweep-threads.js';
 import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
@@ -168,7 +170,7 @@ export function blockPixels(s: RecipeSettings, fieldPixelSizeUm: number | null):
 }
 
 /** The objects section as the engine takes it (σ, d in pixels), or null when it is off. */
-export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null): Required<Omit<ObjectOptions, 'kRadii'>> | null {
+export function objectOptions(s: RecipeSettings, fieldPixelSizeUm: number | null): Required<Omit<ObjectOptions, 'kRadii' | 'missing'>> | null {
   const o = s.objects;
   if (!o.enabled) return null;
   try {
@@ -221,8 +223,18 @@ export function checkFieldInputs(job: FieldInputs, depth = measuredDepth(job.set
   const block = blockPixels(s, job.pixelSizeUm);
   if (block != null && depth > 1) blockSlices(s, job.zStepUm ?? null, `field "${job.fieldName}"`);
   const objects = objectOptions(s, job.pixelSizeUm);
-  if (objects && depth > 1)
-    throw new FieldJobError(`spots are found in one plane, but field "${job.fieldName}" is measured in 3D (${depth} slices); measure one slice or a projection, or turn Spots off`, 'recipe');
+  if (objects && depth > 1) spotZScale(job, depth);
+}
+
+/**
+ * Spots of a field measured in 3D: the slice spacing in pixel widths (z step / pixel size), from the field's
+ * voxel size; a FieldJobError (fixed on the field) when it lacks either.
+ */
+export function spotZScale(job: Pick<FieldInputs, 'fieldName' | 'pixelSizeUm' | 'zStepUm'>, depth: number): number {
+  const lacking = [job.pixelSizeUm ? null : 'pixel size', job.zStepUm ? null : 'z step'].filter((x) => x !== null);
+  if (lacking.length)
+    throw new FieldJobError(`spots in 3D are located in µm, so they need the voxel size, but field "${job.fieldName}" (measured in 3D over ${depth} slices) has no ${lacking.join(' and no ')}; enter it on the field, measure one slice or a projection, or turn Spots off`, 'field');
+  return job.zStepUm! / job.pixelSizeUm!;
 }
 
 /** Every registry measure but the pixel count, null: the row of a cell too small to measure. */
@@ -425,7 +437,13 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
     // a measure is kept when its recipe choice was asked for; the randomization test's results always (the recipe switches the test itself)
     const values = Object.fromEntries(COEFFICIENTS.filter(isPixelEntry).map((c) => [c.key, c.recipeChoice === null || want.has(c.recipeChoice) ? r[c.key] : null])) as CoefficientValues;
     for (const k of OBJECT_KEYS) values[k] = null;
-    if (objects) {
+    if (objects && depth > 1) {
+      // in 3D: σz = σ · pixel size / z step, distances in pixel widths with z scaled; z in the stack's slices (every slice is measured)
+      const a = analyzeObjects3D(raw1, raw2, width, height, depth, valued, { ...objects, zScale: spotZScale(job, depth) });
+      Object.assign(values, objectMeasures(a.result as unknown as ObjectResult));
+      for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)
+        for (const sp of det?.spots ?? []) spots.push({ cellId: cell.id, channel, x: sp.x, y: sp.y, z: sp.z, peak: sp.peak, integrated: sp.integrated });
+    } else if (objects) {
       const a = analyzeObjects(raw1, raw2, width, height, valued, objects);
       Object.assign(values, objectMeasures(a.result));
       for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)

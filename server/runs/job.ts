@@ -57,6 +57,8 @@ export interface SpotValues {
   channel: 1 | 2;
   x: number;
   y: number;
+  /** slices of the field's stack (0-based, centre +0.5) when found in 3D */
+  z?: number | null;
   peak: number;
   integrated: number;
 }

@@ -16,7 +16,9 @@
  * half-sample mirror image (… c b a | a b c …), as SciPy's `mode='reflect'`; inside the image the filter
  * reads real pixels around the box, so the response on a box equals the response on the whole image.
  * The input is shifted by `offset` (subtracted before filtering) so that a flat input gives exactly 0.
- * Every input pixel read must be finite; otherwise a RangeError quotes the pixel.
+ * Every input pixel read must be finite; otherwise a RangeError quotes the pixel — unless `missing` is
+ * 'zero': a non-finite pixel is then read as `offset` (0 after the shift), and the caller keeps to the
+ * outputs whose neighbourhood holds no such pixel (missing.ts; spot detection does).
  *
  * Memory and order: rows are mirrored and filtered one at a time into a ring of 2R + 1 rows that the column
  * pass reads while it is still in cache; several taps are added per sweep over a row, in the same order per
@@ -94,7 +96,7 @@ class PaddedRows {
   private readonly at: number;
   private readonly float: boolean;
   /** columns sx0 ≤ x < sx1 of the image (a strip of the box), rows of the box from y0 */
-  constructor(private readonly data: ChannelArray, private readonly width: number, private readonly height: number, private readonly y0: number, private readonly sx0: number, sx1: number, private readonly R: number, pad: number, private readonly offset: number) {
+  constructor(private readonly data: ChannelArray, private readonly width: number, private readonly height: number, private readonly y0: number, private readonly sx0: number, sx1: number, private readonly R: number, pad: number, private readonly offset: number, private readonly zeroMissing = false) {
     this.tw = sx1 - sx0 + 2 * R;
     this.at = pad - R;
     this.buf = new Float32Array(sx1 - sx0 + 2 * pad);
@@ -110,7 +112,7 @@ class PaddedRows {
   load(j: number): Float32Array {
     const { data, buf, cols, i0, i1, offset, tw, at } = this;
     const row = reflect(this.y0 - this.R + j, this.height) * this.width;
-    if (this.float)
+    if (this.float && !this.zeroMissing)
       for (let i = 0; i < tw; i++) {
         const v = data[row + cols[i]];
         if (!Number.isFinite(v)) throw new RangeError(`spot filtering needs finite pixels; pixel ${row + cols[i]} is ${v}`);
@@ -118,6 +120,8 @@ class PaddedRows {
     for (let i = 0; i < i0; i++) buf[at + i] = data[row + cols[i]] - offset;
     for (let i = i0, p = row + this.sx0 - this.R + i0; i < i1; i++, p++) buf[at + i] = data[p] - offset;
     for (let i = i1; i < tw; i++) buf[at + i] = data[row + cols[i]] - offset;
+    if (this.float && this.zeroMissing)
+      for (let i = 0; i < tw; i++) if (!Number.isFinite(data[row + cols[i]])) buf[at + i] = 0;
     return buf;
   }
 }
@@ -235,7 +239,7 @@ function padKernel(k: Float64Array, radius: number): Float64Array {
  * The box is processed in strips of `FILTER_STRIP` columns; within a strip the row passes fill a ring of
  * 2R + 1 rows, which the column passes read while it is still in cache.
  */
-export function laplacianOfGaussian(data: ChannelArray, width: number, height: number, sigma: number, box: PixelBox, offset = 0): Float32Array {
+export function laplacianOfGaussian(data: ChannelArray, width: number, height: number, sigma: number, box: PixelBox, offset = 0, missing: 'refuse' | 'zero' = 'refuse'): Float32Array {
   checkBox(width, height, data.length, box);
   const { radius: R, g, d2 } = gaussianKernels(sigma);
   const fused = R <= FUSED_RADIUS;
@@ -253,7 +257,7 @@ export function laplacianOfGaussian(data: ChannelArray, width: number, height: n
   const scale = -sigma * sigma;
   for (let sx0 = box.x0; sx0 < box.x1; sx0 += S) {
     const sx1 = Math.min(box.x1, sx0 + S), w = sx1 - sx0;
-    const rows = new PaddedRows(data, width, height, box.y0, sx0, sx1, R, pad, offset);
+    const rows = new PaddedRows(data, width, height, box.y0, sx0, sx1, R, pad, offset, missing === 'zero');
     for (let j = 0; j < bh + 2 * R; j++) {
       if (fused) rowPassLoGFused(rows.load(j), G, D, (j % K) * w, w, gp, dp);
       else rowPassLoG(rows.load(j), pad, G, D, (j % K) * w, w, R, g, d2, sg, sd);

@@ -12,10 +12,13 @@
  *  - no spot in a channel (including a flat or all-saturated region, where the noise estimate is 0): that
  *    count is 0; the fractions, medians, p-value and chance fraction are null; mutualPairs is 0;
  *  - one spot in a channel: computed as for any count (a fraction is then 0 or 1; the Monte Carlo test is
- *    exact for any count, if coarse).
+ *    exact for any count, if coarse);
+ *  - pixels without a value, with `missing: 'exclude'`: the region shrinks to the pixels searched (above);
+ *    a region left empty or smaller than the window is the first case.
  */
 import { pairSpots, checkPairDistance } from './pairing';
-import { detectSpots, regionIndexList, type SpotDetection, type SpotOptions } from './spots';
+import { detectSpots, missingMargin, regionIndexList, type SpotDetection, type SpotOptions } from './spots';
+import { missingMask, nearMissing } from './missing';
 import { checkPlacements, spotPlacementTest, SPOT_TEST_DEFAULTS, type KEnvelope } from './spot-test';
 import type { ChannelArray, ObjectMeasureKey } from './types';
 
@@ -31,6 +34,12 @@ export interface ObjectOptions {
   seed?: number;
   /** radii for the cross-type Ripley's K envelope (analyzeObjects only; none by default) */
   kRadii?: number[];
+  /**
+   * pixels without a value in either channel (NaN, e.g. where an aligned channel fell outside): 'refuse'
+   * (default) throws; 'exclude' searches, in both channels, only the region's pixels more than R + 1 away
+   * from any of them (spots.ts `missingMargin`), and places the chance spots on those same pixels
+   */
+  missing?: 'refuse' | 'exclude';
 }
 
 export interface ObjectResult {
@@ -95,11 +104,19 @@ export function analyzeObjects(
   checkPairDistance(d);
   const placements = options.placements ?? OBJECT_DEFAULTS.placements;
   checkPlacements(placements);
-  const spotOpts: SpotOptions = { sigma: options.spotSigma ?? OBJECT_DEFAULTS.spotSigma, k: options.spotK ?? OBJECT_DEFAULTS.spotK, minSeparation: options.minSeparation };
-  const indices = regionIndexList(region, ch1.length);
+  const spotOpts: SpotOptions = { sigma: options.spotSigma ?? OBJECT_DEFAULTS.spotSigma, k: options.spotK ?? OBJECT_DEFAULTS.spotK, minSeparation: options.minSeparation, missing: options.missing };
+  let indices = regionIndexList(region, ch1.length);
+  let whole = region === null;
+  // one searched region for both channels: away from the pixels either channel lacks
+  const gaps = options.missing === 'exclude' ? missingMask([ch1, ch2], ch1.length) : null;
+  if (gaps) {
+    const near = nearMissing(gaps, width, height, missingMargin(spotOpts.sigma ?? OBJECT_DEFAULTS.spotSigma));
+    indices = indices.filter((i) => !near[i]);
+    whole = false;
+  }
   // the whole image goes to detection as null: no second copy and check of the index list
-  const det1 = detectSpots(ch1, width, height, region === null ? null : indices, spotOpts);
-  const det2 = detectSpots(ch2, width, height, region === null ? null : indices, spotOpts);
+  const det1 = detectSpots(ch1, width, height, whole ? null : indices, spotOpts);
+  const det2 = detectSpots(ch2, width, height, whole ? null : indices, spotOpts);
   const result = emptyResult();
   if (det1 === null || det2 === null) return { result, detection1: det1, detection2: det2, envelope: null };
   const x1 = det1.spots.map((s) => s.x), y1 = det1.spots.map((s) => s.y);

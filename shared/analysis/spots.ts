@@ -30,7 +30,8 @@
  * Degenerate cases: an empty region, or a region whose bounding box is narrower or shorter than the
  * window (2w + 1 pixels), gives null (nothing can be detected there).
  */
-import { laplacianOfGaussian, type PixelBox } from './gaussian';
+import { gaussianKernels, laplacianOfGaussian, type PixelBox } from './gaussian';
+import { missingMask, nearMissing } from './missing';
 import { PointGrid } from './pairing';
 import { medianAndMad } from './robust-scale';
 import type { ChannelArray } from './types';
@@ -46,6 +47,12 @@ export interface SpotOptions {
   k?: number;
   /** minimum centre-to-centre distance in pixels (default 2σ) */
   minSeparation?: number;
+  /**
+   * pixels without a value (non-finite): 'refuse' (default) throws at the first one the filter reads;
+   * 'exclude' leaves out of the region every pixel within R + 1 of one (R = ⌈4σ⌉, the filter's reach, plus
+   * the 3×3 maximum test), so no response, maximum or centroid used depends on a missing pixel
+   */
+  missing?: 'refuse' | 'exclude';
 }
 
 export interface Spot {
@@ -71,6 +78,11 @@ export interface SpotDetection {
   /** centroid window half-width w = ⌈2σ⌉ */
   window: number;
   regionPixels: number;
+}
+
+/** how far (Chebyshev, pixels) a searched pixel stays from a missing one: the filter's reach R = ⌈4σ⌉ plus 1 */
+export function missingMargin(sigma: number): number {
+  return gaussianKernels(sigma).radius + 1;
 }
 
 /** resolved, checked options */
@@ -132,8 +144,19 @@ export function detectSpots(
   const listed = region === null ? null : regionIndexList(region, N);
   // the whole image (null; or a list of every pixel, as the list is sorted and without repeats) needs no
   // index list: the filter box is then the image itself, and its pixels are the region's in order
-  const idx = listed !== null && listed.length === N ? null : listed;
+  let idx = listed !== null && listed.length === N ? null : listed;
   const w = Math.ceil(2 * sigma);
+  const gaps = options.missing === 'exclude' ? missingMask([data], N) : null;
+  if (gaps) {
+    const near = nearMissing(gaps, width, height, missingMargin(sigma));
+    const from = idx ?? regionIndexList(null, N);
+    let c = 0;
+    for (let t = 0; t < from.length; t++) if (!near[from[t]]) c++;
+    const kept = new Uint32Array(c);
+    c = 0;
+    for (let t = 0; t < from.length; t++) if (!near[from[t]]) kept[c++] = from[t];
+    idx = kept;
+  }
   const n = idx === null ? N : idx.length;
   if (n === 0) return null;
   let bx0 = width, by0 = height, bx1 = -1, by1 = -1;
@@ -166,7 +189,7 @@ export function detectSpots(
   // response on the bounding box plus one pixel (the 3×3 neighbours), clipped to the image
   const box: PixelBox = { x0: Math.max(0, bx0 - 1), y0: Math.max(0, by0 - 1), x1: Math.min(width, bx1 + 2), y1: Math.min(height, by1 + 2) };
   const bw = box.x1 - box.x0, bh = box.y1 - box.y0;
-  const resp = laplacianOfGaussian(data, width, height, sigma, box, low);
+  const resp = laplacianOfGaussian(data, width, height, sigma, box, low, gaps ? 'zero' : 'refuse');
   const at = (i: number) => {
     const x = i % width, y = (i - x) / width;
     return (y - box.y0) * bw + (x - box.x0);

@@ -128,12 +128,17 @@ export const MeasurementProvenance = z.object({
 export type MeasurementProvenance = z.infer<typeof MeasurementProvenance>;
 
 
-/** One detected spot: centre (x right, y down, pixels, origin the top-left corner of pixel (0, 0)), peak and integrated intensity. */
+/**
+ * One detected spot: centre (x right, y down, pixels, origin the top-left corner of pixel (0, 0); for a
+ * field measured in 3D also z, in slices of its stack, 0-based, a slice's centre at +0.5), peak and
+ * integrated intensity.
+ */
 export const SpotRow = z.object({
   cellId: z.number().int(),
   channel: z.union([z.literal(1), z.literal(2)]),
   x: z.number(),
   y: z.number(),
+  z: z.number().optional(),
   peak: z.number(),
   integrated: z.number(),
 });

@@ -11,7 +11,8 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { captureAnalyze } from './capture';
-import { REGION_RESULT_KEYS } from '../../shared/analysis/index';
+import { measureObjects3D, REGION_RESULT_KEYS } from '../../shared/analysis/index';
+import { writeTiffU16 } from '../images/tiffwrite';
 
 const dir = fileURLToPath(new URL('../fixtures/volumes/', import.meta.url));
 const fx = (f: string) => join(dir, f);
@@ -108,12 +109,16 @@ describe('analyze on z-stacks: values against SciPy / R energy / NumPy definitio
     const b = await run(...inputs('u8')[0][1], '--z', 'mip');
     expect(b.out.split('\n')[0]).toContain('maximum projection of slices 1-5');
   });
-  it('--objects works on one measured plane of a stack, and is refused in 3D', async () => {
+  it('--objects works on one measured plane of a stack, and in 3D given the slice spacing', async () => {
     const j = await json(...inputs('u16')[0][1], '--z', '3', '--objects', '--placements', '9');
     expect(j.regions[0].objects.count1).toBeGreaterThanOrEqual(0);
+    expect(j.objectSettings).not.toHaveProperty('zStep');
+    const v = await json(...inputs('u16')[0][1], '--objects', '--placements', '9', '--z-step', '2');
+    expect(v.objectSettings.zStep).toBe(2);
+    for (const p of [...v.regions[0].objects.spots1, ...v.regions[0].objects.spots2]) expect(p).toHaveLength(3);
     const r = await run(...inputs('u16')[0][1], '--objects');
     expect(r.code).toBe(2);
-    expect(r.err).toMatch(/^error: --objects needs single-plane images, received 5 z slices to measure in 3D; measure one slice \(--z N\) or a projection \(--z mip\)\n$/);
+    expect(r.err).toMatch(/^error: --objects in 3D \(5 z slices\) needs the slice spacing: give --z-step [^\n]*\n$/);
   });
 });
 
@@ -151,4 +156,52 @@ describe('analyze on z-stacks: bad input exits 2 with one error line quoting the
   it('a colour file as a per-channel stack', () =>
     bad(['--ch1', join(fileURLToPath(new URL('../fixtures/analysis/', import.meta.url)), 'u8_rgb_contig.tif'), '--ch2', fx('u8.ch2.tif')], /--ch1 .*u8_rgb_contig\.tif: page 1 holds 3 samples per pixel/));
   it('stacks with different slice counts', () => bad(['--ch1', fx('u8.ch1.tif'), '--ch2', fx('labels3d_4slices.tif')], /--ch2 .* has 4 z slices but --ch1 .* has 5/));
+});
+
+/**
+ * --objects on a stack measured in 3D: the planted 3D spot volume of tests/fixtures/spots/generate.py (σ 1.5
+ * px laterally, 0.75 slices axially, slice spacing 2 pixel widths; ground-truth centres) as channel 1, the
+ * same volume moved by one pixel in x as channel 2. Spots come back as [x, y, z], z in the stack's slices.
+ */
+describe('analyze --objects in 3D', () => {
+  const sdir = fileURLToPath(new URL('../fixtures/spots/', import.meta.url));
+  const spec = JSON.parse(readFileSync(join(sdir, 'expected.json'), 'utf8')).detection3d[0] as { file: string; width: number; height: number; depth: number; zScale: number; truth: [number, number, number][] };
+  const { width: W, height: H, depth: D } = spec;
+  const b = readFileSync(join(sdir, spec.file));
+  const v1 = new Uint16Array(b.buffer.slice(b.byteOffset, b.byteOffset + b.byteLength));
+  const v2 = Uint16Array.from(v1, (v, i) => (i % W === 0 ? v : v1[i - 1]));
+  const slices = (v: Uint16Array) => Array.from({ length: D }, (_, z) => v.subarray(z * W * H, (z + 1) * W * H));
+  const f1 = join(tmp, 'spots3d.ch1.tif'), f2 = join(tmp, 'spots3d.ch2.tif');
+  writeFileSync(f1, writeTiffU16(slices(v1), W, H));
+  writeFileSync(f2, writeTiffU16(slices(v2), W, H));
+  const opts = { spotSigma: 1.5, spotK: 5, pairDistance: 2, placements: 99, seed: 1 };
+
+  it('every slice in 3D: [x, y, z] spots equal the engine on the volume, at the planted centres, paired 1 px apart', async () => {
+    const j = await json('--ch1', f1, '--ch2', f2, '--objects', '--placements', '99', '--z-step', String(spec.zScale));
+    const o = j.regions[0].objects;
+    expect(o).toEqual(measureObjects3D(v1, v2, W, H, D, null, { ...opts, zScale: spec.zScale, missing: 'exclude' }));
+    // ground truth: each planted centre found within 1 pixel width (z scaled)
+    let hit = 0;
+    for (const [x, y, z] of spec.truth) if (o.spots1.some((p: number[]) => Math.hypot(p[0] - x, p[1] - y, (p[2] - z) * spec.zScale) <= 1)) hit++;
+    expect(hit / spec.truth.length).toBeGreaterThanOrEqual(0.95);
+    expect(o.paired1).toBeGreaterThanOrEqual(0.95);
+    expect(Math.abs(o.medianNearest1 - 1)).toBeLessThan(0.15);
+    expect(j.depth).toBe(D);
+  });
+
+  it('--z A-B: z counts slices of the stack (0-based, centre at +0.5), the engine run on the sub-volume', async () => {
+    const [A, B] = [5, 20];
+    const j = await json('--ch1', f1, '--ch2', f2, '--objects', '--placements', '99', '--z-step', String(spec.zScale), '--z', `${A}-${B}`);
+    const sub = (v: Uint16Array) => v.subarray((A - 1) * W * H, B * W * H);
+    const want = measureObjects3D(sub(v1), sub(v2), W, H, B - A + 1, null, { ...opts, zScale: spec.zScale, missing: 'exclude' });
+    const o = j.regions[0].objects;
+    expect(o.count1).toBe(want.count1);
+    // the sub-volume's z plus A − 1 (to the last bits: the offset is added after the centroid)
+    expect(o.spots1.length).toBe(want.spots1.length);
+    o.spots1.forEach((p: number[], k: number) => {
+      const [x, y, z] = want.spots1[k];
+      expect(Math.abs(p[0] - x) + Math.abs(p[1] - y) + Math.abs(p[2] - (z + A - 1))).toBeLessThan(1e-9);
+    });
+    for (const p of [...o.spots1, ...o.spots2]) expect(p[2] >= A - 1 && p[2] <= B).toBe(true);
+  });
 });

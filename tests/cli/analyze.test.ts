@@ -418,11 +418,16 @@ describe('analyze --objects', () => {
       await bad(['--seed', '3', '--placements', '9'], /--placements, --seed apply to --objects only/);
       await bad(['--spot-sigma', '2', '--pair-distance', '1', '--spot-k', '4'], /--spot-sigma, --spot-k, --pair-distance apply to --objects only/);
     });
-    it('--objects on a z-stack (spots are located in 2-D)', async () => {
+    it('--objects on a z-stack that states no voxel size, without --z-step', async () => {
       const r = await run('--image', join(root, 'tests/fixtures/images/ome_zstack.ome.tif'), '--channels', '1,2', '--objects');
       expect(r.code, r.err).toBe(2);
       expect(r.out).toBe('');
-      expect(r.err).toMatch(/^error: --objects needs single-plane images, received \d+ z slices[^\n]*\n$/);
+      expect(r.err).toMatch(/^error: --objects in 3D \(\d+ z slices\) needs the slice spacing: give --z-step[^\n]*\n$/);
+    });
+    it('--z-step', async () => {
+      await bad(['--objects', '--z-step', '0'], /--z-step must be the slice spacing in pixel widths .*received "0"/);
+      await bad(['--objects', '--z-step', 'deep'], /--z-step must be a number, received "deep"/);
+      await bad(['--z-step', '2'], /--z-step applies to --objects only/);
     });
   });
 

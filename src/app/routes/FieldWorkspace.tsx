@@ -171,10 +171,20 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
       if (!c) byCell.set(s.cellId, (c = { spots1: [], spots2: [] }));
       (s.channel === 1 ? c.spots1 : c.spots2).push([s.x, s.y]);
     }
+    // spots found in 3D (with z, in slices): the image shows those of the slice displayed (all on a projection),
+    // pairs drawn among them; the cell panel keeps every spot of the cell
+    const slice = typeof display.z === 'number' ? display.z : null;
+    const onSlice = new Map<number, { spots1: Xy[]; spots2: Xy[] }>();
+    for (const s of rows) {
+      if (s.z !== undefined && slice !== null && Math.floor(s.z) !== slice) continue;
+      let c = onSlice.get(s.cellId);
+      if (!c) onSlice.set(s.cellId, (c = { spots1: [], spots2: [] }));
+      (s.channel === 1 ? c.spots1 : c.spots2).push([s.x, s.y]);
+    }
     const pairs: SpotPair[] = [];
-    for (const c of byCell.values()) pairs.push(...pairsWithin(c.spots1, c.spots2, pairDistancePx).pairs);
-    return { spots1: [...byCell.values()].flatMap((c) => c.spots1), spots2: [...byCell.values()].flatMap((c) => c.spots2), pairs, byCell };
-  }, [liveSpots.on, livePreviewSpots, fieldSpots.data, pairDistancePx]);
+    for (const c of onSlice.values()) pairs.push(...pairsWithin(c.spots1, c.spots2, pairDistancePx).pairs);
+    return { spots1: [...onSlice.values()].flatMap((c) => c.spots1), spots2: [...onSlice.values()].flatMap((c) => c.spots2), pairs, byCell };
+  }, [liveSpots.on, livePreviewSpots, fieldSpots.data, pairDistancePx, display.z]);
   const spotRadius = 1.414 * (liveSpots.on ? liveSpots.sigma : (stored?.sigmaPx ?? OBJECT_DEFAULTS.spotSigma));
 
   // keyboard
