@@ -438,6 +438,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
               runId={runId}
               cell={spotCell}
               pairDistancePx={pairDistancePx}
+              pixelSizeUm={field.pixelSizeUm}
             />
           </section>
           <section className="rounded-md border border-ink/10 bg-white/70 p-3" aria-labelledby="field-alignment-heading">

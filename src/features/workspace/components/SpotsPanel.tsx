@@ -42,9 +42,11 @@ interface Props {
   cell: { name: string; row: GridRow | undefined; spots1: Xy[]; spots2: Xy[]; areaPx: number } | null;
   /** pair distance in pixels for the lines and the histogram */
   pairDistancePx: number;
+  /** the field's pixel size (µm), when known: distances are also given in µm */
+  pixelSizeUm?: number | null;
 }
 
-export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, previewError, stored, runId, cell, pairDistancePx }: Props) {
+export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, previewError, stored, runId, cell, pairDistancePx, pixelSizeUm = null }: Props) {
   const source = live.on
     ? 'live detection (preview)'
     : stored
@@ -104,7 +106,7 @@ export function SpotsPanel({ names, toggles, onToggles, live, onLive, preview, p
         )}
       </div>
 
-      {cell ? <CellSpots cell={cell} pairDistancePx={pairDistancePx} runId={runId} live={live.on} /> : <p className="text-sm text-ink-soft">Select a cell to see its spot measures and distances.</p>}
+      {cell ? <CellSpots cell={cell} pairDistancePx={pairDistancePx} runId={runId} live={live.on} pixelSizeUm={pixelSizeUm} /> : <p className="text-sm text-ink-soft">Select a cell to see its spot measures and distances.</p>}
     </section>
   );
 }
@@ -119,10 +121,13 @@ function Slider({ label, value, min, max, step, onChange }: { label: string; val
   );
 }
 
+/** measures that are distances in pixel widths (in 3D with z scaled by the z step, so µm = value × pixel size) */
+const DISTANCE_KEYS = new Set<string>(['spotMedianNearest1', 'spotMedianNearest2']);
+
 const HIST_W = 300;
 const HIST_H = 110;
 
-function CellSpots({ cell, pairDistancePx, runId, live }: { cell: NonNullable<Props['cell']>; pairDistancePx: number; runId: number | null; live: boolean }) {
+function CellSpots({ cell, pairDistancePx, runId, live, pixelSizeUm }: { cell: NonNullable<Props['cell']>; pairDistancePx: number; runId: number | null; live: boolean; pixelSizeUm: number | null }) {
   const d = pairDistancePx;
   const { nearest } = pairsWithin(cell.spots1, cell.spots2, d);
   // up to the longest distance (at least 4d, at most 64 px; longer ones go into the last bar)
@@ -148,6 +153,7 @@ function CellSpots({ cell, pairDistancePx, runId, live }: { cell: NonNullable<Pr
                 </th>
                 <td className="py-0.5 text-right font-mono" data-measure={k}>
                   {formatCoefficient(k, cell.row![k] as number | null)}
+                  {pixelSizeUm !== null && DISTANCE_KEYS.has(k) && typeof cell.row![k] === 'number' ? ` (${formatFixed((cell.row![k] as number) * pixelSizeUm, 3)} µm)` : ''}
                 </td>
               </tr>
             ))}
