@@ -18,7 +18,8 @@ let s: Seeded;
 let bio: Awaited<ReturnType<TestApp['login']>>;
 
 beforeAll(async () => {
-  t = await makeTestApp();
+  // every comparison in the threads (by default a study this small is computed on the web thread, by the same functions)
+  t = await makeTestApp({ COMPARE_INLINE_CELLS: '0' });
   s = seedMeasurements(t.ctx, {
     studyId: t.world.studyA,
     userId: t.world.users.biologist.id,
