@@ -9,7 +9,7 @@
 import os from 'node:os';
 import { isMainThread } from 'node:worker_threads';
 import { Piscina } from 'piscina';
-import { comparisonFrom, inputFromGrid, pointsJson, pointsOf, type CompareTask, type PointColumns } from './comparison.js';
+import { comparisonFrom, inputFromGrid, pointsFromGrid, pointsJson, type CompareTask, type PointColumns } from './comparison.js';
 import type { ComparisonHead } from '../../shared/schemas/compare.js';
 
 // On Linux this lowers this thread only (as the grid index reader does): requests keep the CPU first. Not when
@@ -30,7 +30,7 @@ export interface PointsResult {
 
 /** The points of a task, as columns and as JSON. */
 export function pointsPart(task: CompareTask): PointsResult {
-  const points = pointsOf(inputFromGrid(task));
+  const points = pointsFromGrid(task);
   return { json: pointsJson(points), points };
 }
 
