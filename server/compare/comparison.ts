@@ -492,12 +492,25 @@ export function pointsJson(p: PointColumns): Uint8Array {
   let at = 0;
   out[at++] = 91;
   const cols = [p.cellId, p.fieldId, p.coverslipId, p.conditionId];
+  // the bytes from ',"fieldId":' to '"value":' are the same for the cells of one field (rows come field by
+  // field): copied from the previous point's while the field stays the same
+  let segAt = -1, segLen = 0;
   for (let k = 0; k < n; k++) {
     if (k) out[at++] = 44;
-    for (let c = 0; c < 5; c++) {
-      const key = keys[c];
-      for (let i = 0; i < key.length; i++) out[at++] = key[i];
-      if (c < 4) at = writeInt(out, at, cols[c][k]);
+    for (let i = 0; i < keys[0].length; i++) out[at++] = keys[0][i];
+    at = writeInt(out, at, p.cellId[k]);
+    if (segAt >= 0 && p.fieldId[k] === p.fieldId[k - 1] && p.coverslipId[k] === p.coverslipId[k - 1] && p.conditionId[k] === p.conditionId[k - 1]) {
+      for (let i = 0; i < segLen; i++) out[at + i] = out[segAt + i];
+      segAt = at;
+      at += segLen;
+    } else {
+      segAt = at;
+      for (let c = 1; c < 5; c++) {
+        const key = keys[c];
+        for (let i = 0; i < key.length; i++) out[at++] = key[i];
+        if (c < 4) at = writeInt(out, at, cols[c][k]);
+      }
+      segLen = at - segAt;
     }
     const v = p.value[k];
     const text = Number.isInteger(v) && Math.abs(v) < 1e15 ? null : JSON.stringify(v);
