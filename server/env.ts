@@ -35,6 +35,11 @@ const EnvSchema = z.object({
   DECODE_HEAP_MB: z.coerce.number().int().min(16).max(65536).default(1024),
   DECODE_TIMEOUT_MS: z.coerce.number().int().min(1).max(3_600_000).default(120_000),
   WORKERS: z.coerce.number().int().min(1).max(64).default(() => defaultWorkers()),
+  /**
+   * Compare computes a study of at most this many cells on the web thread (a few milliseconds: no thread hop or
+   * thread start), larger ones in its threads (server/compare/compute.ts); 0 sends every comparison to them
+   */
+  COMPARE_INLINE_CELLS: z.coerce.number().int().min(0).max(100_000).default(2000),
   /** requests a minute each personal API token may make (server/auth/tokens.ts); beyond it 429 */
   TOKEN_REQUESTS_PER_MINUTE: z.coerce.number().int().min(1).max(1_000_000).default(600),
   SEED_DEMO: z.enum(['auto', 'never']).default('auto'),

@@ -3,15 +3,18 @@
  * the bootstrap nor serializing a million points runs on the thread that answers requests. A comparison is two
  * tasks run side by side on two threads: 'head' (every statistic) and 'points' (the points as columns and as
  * JSON). The grid index's columns arrive on shared memory (not copied); results move back without copying.
+ * A study of at most COMPARE_INLINE_CELLS cells is computed by the same functions on the web thread.
  * Only static imports in this graph: under `--import tsx` the thread loads it through the CommonJS hook.
  */
 import os from 'node:os';
+import { isMainThread } from 'node:worker_threads';
 import { Piscina } from 'piscina';
-import { comparisonFrom, inputFromGrid, pointsJson, pointsOf, type CompareTask, type PointColumns } from './comparison.js';
+import { comparisonFrom, inputFromGrid, pointsFromGrid, pointsJson, type CompareTask, type PointColumns } from './comparison.js';
 import type { ComparisonHead } from '../../shared/schemas/compare.js';
 
-// On Linux this lowers this thread only (as the grid index reader does): requests keep the CPU first.
-if (process.platform === 'linux') {
+// On Linux this lowers this thread only (as the grid index reader does): requests keep the CPU first. Not when
+// imported by the web thread (compute.ts runs small comparisons there with the same functions).
+if (process.platform === 'linux' && !isMainThread) {
   try {
     os.setPriority(Math.min(19, os.getPriority() + 5));
   } catch {
@@ -25,11 +28,16 @@ export interface PointsResult {
   points: PointColumns;
 }
 
+/** The points of a task, as columns and as JSON. */
+export function pointsPart(task: CompareTask): PointsResult {
+  const points = pointsFromGrid(task);
+  return { json: pointsJson(points), points };
+}
+
 export default function compareTask(job: CompareJob): ComparisonHead | unknown {
-  const input = inputFromGrid(job);
-  if (job.part === 'head') return comparisonFrom(input);
-  const points = pointsOf(input);
-  const result: PointsResult = { json: pointsJson(points), points };
+  if (job.part === 'head') return comparisonFrom(inputFromGrid(job));
+  const result = pointsPart(job);
+  const points = result.points;
   return Piscina.move({
     get [Piscina.transferableSymbol]() {
       return [result.json.buffer, ...Object.values(points).map((a) => a.buffer)];

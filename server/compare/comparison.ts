@@ -413,6 +413,37 @@ export function selectRows(input: CompareInput) {
   return { omitted, rowSlip, counts, usedRows };
 }
 
+/**
+ * The comparison's points straight from the grid's columns, in one pass: the rows `inputFromGrid` + `selectRows`
+ * use (measured, in a chosen condition, not excluded, value defined), without building the other columns.
+ */
+export function pointsFromGrid(task: CompareTask): PointColumns {
+  const g = task.grid;
+  const fisher = byKey(task.opts.coefficient).fisherZ;
+  const condIds = new Set(task.conds.map((c) => c.id));
+  const inCond = Uint8Array.from(g.conditionId, (id) => (condIds.has(id) ? 1 : 0));
+  const total = g.cellId.length;
+  const use = (r: number) => {
+    if (!g.measured[r] || !inCond[g.field[r]] || g.excluded[r]) return false;
+    const v = g.value[r];
+    return Number.isFinite(v) && !(fisher && Math.abs(v) > 1);
+  };
+  let m = 0;
+  for (let r = 0; r < total; r++) if (use(r)) m++;
+  const p: PointColumns = { cellId: new Int32Array(m), fieldId: new Int32Array(m), coverslipId: new Int32Array(m), conditionId: new Int32Array(m), value: new Float64Array(m) };
+  for (let r = 0, k = 0; r < total; r++) {
+    if (!use(r)) continue;
+    const f = g.field[r];
+    p.cellId[k] = g.cellId[r];
+    p.fieldId[k] = g.fieldId[f];
+    p.coverslipId[k] = g.coverslipId[f];
+    p.conditionId[k] = g.conditionId[f];
+    p.value[k] = g.value[r];
+    k++;
+  }
+  return p;
+}
+
 /** The comparison's points as columns (`Comparison.points`, in cell id order). */
 export function pointsOf(input: CompareInput): PointColumns {
   const { usedRows } = selectRows(input);
@@ -461,12 +492,25 @@ export function pointsJson(p: PointColumns): Uint8Array {
   let at = 0;
   out[at++] = 91;
   const cols = [p.cellId, p.fieldId, p.coverslipId, p.conditionId];
+  // the bytes from ',"fieldId":' to '"value":' are the same for the cells of one field (rows come field by
+  // field): copied from the previous point's while the field stays the same
+  let segAt = -1, segLen = 0;
   for (let k = 0; k < n; k++) {
     if (k) out[at++] = 44;
-    for (let c = 0; c < 5; c++) {
-      const key = keys[c];
-      for (let i = 0; i < key.length; i++) out[at++] = key[i];
-      if (c < 4) at = writeInt(out, at, cols[c][k]);
+    for (let i = 0; i < keys[0].length; i++) out[at++] = keys[0][i];
+    at = writeInt(out, at, p.cellId[k]);
+    if (segAt >= 0 && p.fieldId[k] === p.fieldId[k - 1] && p.coverslipId[k] === p.coverslipId[k - 1] && p.conditionId[k] === p.conditionId[k - 1]) {
+      for (let i = 0; i < segLen; i++) out[at + i] = out[segAt + i];
+      segAt = at;
+      at += segLen;
+    } else {
+      segAt = at;
+      for (let c = 1; c < 5; c++) {
+        const key = keys[c];
+        for (let i = 0; i < key.length; i++) out[at++] = key[i];
+        if (c < 4) at = writeInt(out, at, cols[c][k]);
+      }
+      segLen = at - segAt;
     }
     const v = p.value[k];
     const text = Number.isInteger(v) && Math.abs(v) < 1e15 ? null : JSON.stringify(v);

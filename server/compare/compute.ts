@@ -1,8 +1,8 @@
 /**
  * Compare's answers: the input gathered from the study's grid index (server/compare/grid-cache.ts, the same
  * in-memory columns as the Cell table, so a million cells are not read again from SQL), the computation
- * (server/compare/comparison.ts) run in a thread (compare-worker.ts) so the web thread keeps answering, and the
- * answer cached per data version: the key is the study, the source's runs, the options and the grid index's
+ * (server/compare/comparison.ts) and the points' JSON run in two threads (compare-worker.ts) so the web thread
+ * keeps answering, and the answer cached per data version: the key is the study, the source's runs, the options and the grid index's
  * stamp, which moves with every write through the API (an exclusion included) and every measurement a run adds.
  *
  * Used by GET /api/studies/:id/compare and its CSVs (server/routes/compare.ts) and by report snapshots.
@@ -17,7 +17,7 @@ import { gridCacheOf } from './grid-cache.js';
 import type { GridIndex } from './grid-index.js';
 import { resolveSource } from './source.js';
 import { comparisonJsonParts, pointList, type CompareTask, type PointColumns } from './comparison.js';
-import type { CompareJob, PointsResult } from './compare-worker.js';
+import compareTask, { pointsPart, type CompareJob, type PointsResult } from './compare-worker.js';
 
 export { MEAN_MEDIAN_GAP, BOOTSTRAP_BUDGET, NORMAL_ABOVE, meanMedianGaps, capitalize } from './comparison.js';
 
@@ -50,7 +50,10 @@ function cacheOf(ctx: AppContext): CompareCache {
   return c;
 }
 
-/** Reads what a comparison needs (validates the options, the study, the source, the conditions): the cache key, and the input (columns copied from the grid index) when it is computed. */
+/**
+ * Reads what a comparison needs (validates the options, the study, the source, the conditions): the cache key,
+ * and the threads' task (the grid index's columns, shared, not copied) for when it must be computed.
+ */
 export async function comparisonInput(ctx: AppContext, studyId: number, options: CompareOptions): Promise<{ input: () => CompareTask; key: string }> {
   const opts = CompareQuery.parse({ ...options, conditionIds: options.conditionIds?.join(',') || undefined });
   const db = ctx.db.$client;
@@ -115,11 +118,18 @@ export async function cachedComparison(ctx: AppContext, studyId: number, options
     cache.answers.set(key, p); // most recently used last
     return p;
   }
-  // two threads, one for the statistics and one for the points (the grid's columns are shared, not copied)
-  const pool = (cache.pool ??= new Piscina({ filename: COMPARE_WORKER_FILE, execArgv: ['--import', 'tsx'], minThreads: 0, maxThreads: 2, idleTimeout: 120_000 }));
   const task = input();
-  const run = <T>(part: CompareJob['part']) => pool.run({ ...task, part } satisfies CompareJob) as Promise<T>;
-  p = Promise.all([run<ComparisonHead>('head'), run<PointsResult>('points')]).then(([head, pts]) => {
+  let parts: Promise<[ComparisonHead, PointsResult]>;
+  if (task.grid.cellId.length <= ctx.env.COMPARE_INLINE_CELLS) {
+    // a small study: the same computation here, in milliseconds (no thread to start or hop to)
+    parts = Promise.resolve().then(() => [compareTask({ ...task, part: 'head' }) as ComparisonHead, pointsPart(task)]);
+  } else {
+    // two threads, one for the statistics and one for the points (the grid's columns are shared, not copied)
+    const pool = (cache.pool ??= new Piscina({ filename: COMPARE_WORKER_FILE, execArgv: ['--import', 'tsx'], minThreads: 0, maxThreads: 2, idleTimeout: 120_000 }));
+    const run = <T>(part: CompareJob['part']) => pool.run({ ...task, part } satisfies CompareJob) as Promise<T>;
+    parts = Promise.all([run<ComparisonHead>('head'), run<PointsResult>('points')]);
+  }
+  p = parts.then(([head, pts]) => {
     const json = comparisonJsonParts(head, pts.json);
     cache.bytes.set(key, pts.json.byteLength + pts.points.cellId.length * 24);
     return { json, head, points: pts.points };

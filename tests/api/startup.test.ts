@@ -4,7 +4,7 @@ import { spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { loadEnv, ConfigError } from '../../server/env.js';
+import { loadEnv, loadWorkerEnv, ConfigError } from '../../server/env.js';
 
 function start(env: Record<string, string>) {
   return spawnSync(process.execPath, ['--import', 'tsx', 'server/index.ts'], {
@@ -20,6 +20,14 @@ describe('configuration', () => {
     expect(() => loadEnv({ PORT: 'eighty', DATA_DIR: os.tmpdir() } as NodeJS.ProcessEnv)).toThrow(/PORT="eighty"/);
     expect(() => loadEnv({ QUEUE_URL: 'http://x', DATA_DIR: os.tmpdir() } as NodeJS.ProcessEnv)).toThrow(/QUEUE_URL/);
     expect(() => loadEnv({ SESSION_SECRET: 'short', DATA_DIR: os.tmpdir() } as NodeJS.ProcessEnv)).toThrow(/SESSION_SECRET.*32/);
+  });
+
+  it('a run worker: QUEUE_URL required, the job lock checked and quoted, defaults otherwise', () => {
+    expect(() => loadWorkerEnv({} as NodeJS.ProcessEnv)).toThrow(/QUEUE_URL=null: QUEUE_URL must be set to redis:\/\/host:port/);
+    expect(() => loadWorkerEnv({ QUEUE_URL: 'redis://q:6379', WORKER_LOCK_MS: '500' } as NodeJS.ProcessEnv)).toThrow(/WORKER_LOCK_MS="500"/);
+    expect(() => loadWorkerEnv({ QUEUE_URL: 'redis://q:6379', WORKER_LOCK_MS: 'soon' } as NodeJS.ProcessEnv)).toThrow(ConfigError);
+    expect(loadWorkerEnv({ QUEUE_URL: 'redis://q:6379' } as NodeJS.ProcessEnv)).toMatchObject({ WORKER_LOCK_MS: 300_000, WORKER_CONCURRENCY: 1, DATA_DIR: 'data' });
+    expect(loadWorkerEnv({ QUEUE_URL: 'redis://q:6379', WORKER_LOCK_MS: '5000' } as NodeJS.ProcessEnv).WORKER_LOCK_MS).toBe(5000);
   });
 
   it('generates a session secret once and keeps it under DATA_DIR', () => {

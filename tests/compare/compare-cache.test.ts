@@ -10,7 +10,7 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';
 import { Comparison, CompareQuery, type ComparisonHead } from '../../shared/schemas/compare.js';
 import { byKey } from '../../shared/coefficients.js';
-import { comparisonFrom, pointsOf, type CompareInput } from '../../server/compare/comparison.js';
+import { comparisonFrom, pointList, pointsJson, pointsOf, type CompareInput } from '../../server/compare/comparison.js';
 import { measurementJoin, resolveSource } from '../../server/compare/source.js';
 
 let t: TestApp;
@@ -18,7 +18,8 @@ let s: Seeded;
 let bio: Awaited<ReturnType<TestApp['login']>>;
 
 beforeAll(async () => {
-  t = await makeTestApp();
+  // every comparison in the threads (by default a study this small is computed on the web thread, by the same functions)
+  t = await makeTestApp({ COMPARE_INLINE_CELLS: '0' });
   s = seedMeasurements(t.ctx, {
     studyId: t.world.studyA,
     userId: t.world.users.biologist.id,
@@ -111,6 +112,23 @@ async function served(q: string) {
   delete c.generatedAt;
   return { c, at, text: res.text };
 }
+
+describe('the points JSON written byte by byte', () => {
+  it('is exactly JSON.stringify of the points (integers, −0, exponents, fields that repeat and change)', () => {
+    const value = [0.123, -0, 0, 1, -1, 1e-7, 123456.789, -0.5, 2.5e21, 0.1 + 0.2, 7, Number.MIN_VALUE];
+    const n = value.length;
+    const p = {
+      cellId: Int32Array.from({ length: n }, (_, i) => [1, 9, 10, 99, 100, 12345, 2147483647, 5, 6, 7, 8, 42][i]),
+      fieldId: Int32Array.from({ length: n }, (_, i) => (i < 4 ? 3 : i < 5 ? 70 : i < 9 ? 1000000 : 3)),
+      coverslipId: Int32Array.from({ length: n }, (_, i) => (i < 5 ? 2 : 11)),
+      conditionId: Int32Array.from({ length: n }, (_, i) => (i < 9 ? 1 : 2)),
+      value: Float64Array.from(value),
+    };
+    expect(new TextDecoder().decode(pointsJson(p))).toBe(JSON.stringify(pointList(p)));
+    const none = { cellId: new Int32Array(0), fieldId: new Int32Array(0), coverslipId: new Int32Array(0), conditionId: new Int32Array(0), value: new Float64Array(0) };
+    expect(new TextDecoder().decode(pointsJson(none))).toBe('[]');
+  });
+});
 
 describe('Compare off the web thread, cached per data version', () => {
   const queries = [
