@@ -151,6 +151,51 @@ describe('Study page', () => {
     expect(screen.queryByRole('button', { name: /Move|Delete|Rename|Edit|Add condition/ })).toBeNull();
   });
 
+  it('names the default instrument in the header: a plain name for members, a link to the instrument for facility managers', async () => {
+    const study = { ...makeStudy(['read']), defaultInstrument: { id: 4, name: 'Stand B' } };
+    mockApi(asUser(demoUser(['collaborator'])), on('GET', '/studies/3', () => ({ body: study })));
+    const first = renderRoutes(routes, '/studies/3');
+    const line = await waitFor(() => {
+      const el = document.querySelector('[data-slot="study-instrument"]');
+      if (!el) throw new Error('no instrument line yet');
+      return el as HTMLElement;
+    });
+    expect(line.textContent).toBe('Recorded on Stand B by default');
+    await waitFor(() => expect(first.qc.getQueryState(['auth', 'me'])?.status).toBe('success'));
+    expect(within(line).queryByRole('link')).toBeNull();
+    first.unmount();
+
+    mockApi(asUser(demoUser(['facility_manager'])), on('GET', '/studies/3', () => ({ body: study })));
+    renderRoutes(routes, '/studies/3');
+    const link = await screen.findByRole('link', { name: 'Stand B' });
+    expect(link.getAttribute('href')).toBe('/instruments/4');
+    expect(link.closest('[data-slot="study-instrument"]')?.textContent).toBe('Recorded on Stand B by default');
+  });
+
+  it('says when the study has no default instrument, and shows the new one after the edit dialog saves it', async () => {
+    const study = makeStudy();
+    const stand = { id: 4, name: 'Stand B', objective: '63×', channel1: 'GFP', channel2: 'mCherry', createdAt: '2026-12-01T10:00:00.000Z', approved: null };
+    const calls = mockApi(
+      asUser(demoUser(['facility_manager'])),
+      on('GET', '/studies/3', () => ({ body: study })),
+      on('GET', '/instruments', () => ({ body: { instruments: [stand] } })),
+      on('PATCH', '/studies/3', () => ({ body: { ...study, defaultInstrument: { id: 4, name: 'Stand B' } } })),
+    );
+    renderRoutes(routes, '/studies/3');
+    expect(await screen.findByText('No default instrument: each upload chooses its own.')).toBeTruthy();
+    const user = userEvent.setup();
+    await user.click(screen.getByRole('button', { name: 'Edit study' }));
+    const dialog = screen.getByRole('dialog', { name: 'Edit study' });
+    const picker = within(dialog).getByLabelText('Instrument new uploads are recorded on') as HTMLSelectElement;
+    await waitFor(() => expect(picker.disabled).toBe(false));
+    await user.selectOptions(picker, '4');
+    await user.click(within(dialog).getByRole('button', { name: 'Save' }));
+    await waitFor(() => expect(screen.queryByRole('dialog')).toBeNull());
+    expect(calls.find((c) => c.method === 'PATCH')?.body).toEqual({ name: 'Puncta sharing', description: 'Invented test study', defaultInstrumentId: 4 });
+    expect((await screen.findByRole('link', { name: 'Stand B' })).getAttribute('href')).toBe('/instruments/4');
+    expect(screen.queryByText('No default instrument: each upload chooses its own.')).toBeNull();
+  });
+
   it('answers a study the user may not see with the not-found page', async () => {
     mockApi(asUser(demoUser(['collaborator'])), on('GET', '/studies/9', () => ({ status: 404, body: { error: 'no study with id 9' } })));
     renderRoutes(routes, '/studies/9');

@@ -11,6 +11,8 @@ import { NameDialog } from '@/features/studies';
 import { EditStudyDialog } from '@/features/studies';
 import { DeleteStudyDialog } from '@/features/studies';
 import { StudyLinks } from '@/features/studies';
+import { StudyInstrument } from '@/features/studies';
+import { useMe } from '@/features/auth';
 import { moved, refocusMove } from '@/features/studies';
 import { Badge } from '@/components/Badge';
 import { Button } from '@/components/Button';
@@ -24,6 +26,7 @@ import { Component as NotFound } from './NotFound';
 export function Component() {
   const studyId = Number(useParams().studyId);
   const study = useStudy(studyId);
+  const me = useMe();
   const createCondition = useCreateCondition(studyId);
   const reorder = useReorder(studyId);
   const navigate = useNavigate();
@@ -71,6 +74,9 @@ export function Component() {
             {s.description && <span className="block whitespace-pre-line">{s.description}</span>}
             <span className="mt-1 block text-xs">
               {s.labName} · owner {s.ownerName} {s.isDemo && <Badge tone="warn">invented demo data</Badge>}
+            </span>
+            <span className="mt-1 block text-xs">
+              <StudyInstrument instrument={s.defaultInstrument} linked={!!me.data?.roles.includes('facility_manager')} />
             </span>
           </>
         }

@@ -10,4 +10,5 @@ export { EditStudyDialog } from './components/EditStudyDialog';
 export { moved, refocusMove } from './components/MoveButtons';
 export { NameDialog } from './components/NameDialog';
 export { StudyLinks } from './components/StudyLinks';
+export { StudyInstrument } from './components/StudyInstrument';
 export { StudyList } from './components/StudyList';
