@@ -325,6 +325,26 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     } else uncalibratedCells++;
   }
 
+  // ---- how the spots were found (provenance.objects; its `volume` since 2026-12-03, else the field's voxel size for rows measured in 3D)
+  const spotGroups = new Map<string, NonNullable<ReportSnapshot['spots3d']>['groups'][number]>();
+  let planeCells = 0;
+  for (const c of used) {
+    const p = latest.get(c.cellId)?.provenance as { z?: unknown; objects?: unknown } | undefined;
+    const o = MeasurementProvenance.shape.objects.safeParse(p?.objects);
+    if (!o.success || !o.data) continue;
+    const in3d = o.data.volume !== undefined || (typeof p?.z === 'string' && p.z.startsWith('3D'));
+    if (!in3d) {
+      planeCells++;
+      continue;
+    }
+    const f = fieldById.get(c.fieldId)!;
+    const v = o.data.volume ?? (f.pixelSizeUm && f.zStepUm ? { pixelSizeUm: f.pixelSizeUm, zStepUm: f.zStepUm, zScale: f.zStepUm / f.pixelSizeUm, sigmaZ: (o.data.sigmaPx * f.pixelSizeUm) / f.zStepUm } : null);
+    const g = { sigmaPx: o.data.sigmaPx, sigmaZ: v?.sigmaZ ?? null, zScale: v?.zScale ?? null, pixelSizeUm: v?.pixelSizeUm ?? null, zStepUm: v?.zStepUm ?? null, pairDistancePx: o.data.pairDistancePx, cells: 0 };
+    const key = JSON.stringify({ ...g, cells: 0 });
+    const have = spotGroups.get(key) ?? spotGroups.set(key, g).get(key)!;
+    have.cells++;
+  }
+
   const engineVersions = [...new Set(snapRuns.map((r) => r.engineVersion).filter((e): e is string => !!e))];
   const snap: ReportSnapshot = {
     schemaVersion: 1,
@@ -363,6 +383,7 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     saturation,
     nanPixels: { pixels: nanPixelCount, cells: nanCells },
     calibrations: { applied: [...applied.values()], uncalibratedCells },
+    spots3d: { groups: [...spotGroups.values()], planeCells },
     methods: '',
     cautions: [...CAUTIONS],
   };

@@ -36,6 +36,8 @@
  *   spots are on (the filter reaches beyond the cell, so no pixel may lack a value). A field measured in 3D
  *   (2026-12-03): `analyzeObjects3D` over the cell's voxels, σz = σ · pixel size / z step, distances in pixel
  *   widths with z scaled (so µm settings convert with the pixel size as in 2D); needs the field's voxel size.
+ *   The provenance's `objects.volume` records that voxel size, the slice spacing and σz in slices (the
+ *   methods paragraph states them).
  * - calibration (recipe setting 'approved', 2026-12-02): channel 2 is aligned with the instrument's approved
  *   shift first (bilinear; pixels whose sample position is outside become NaN, so they are not measured and
  *   count in `nanPixels`), then background is subtracted, then bleed-through is unmixed (a missing
@@ -43,7 +45,7 @@
  *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
  *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, analyzeObjects3D, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ObjectResult, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, analyzeObjects3D, spot3Options, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ObjectResult, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { THREAD_MIN_PAIRS, type SweepThreads } from '../analysis/sweep-threads.js';
 import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
@@ -336,6 +338,9 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
   const threshold = thresholdOptions(s.threshold);
   const z = describeZ(s.z, depth);
   const objects = objectOptions(s, job.pixelSizeUm);
+  // spots in 3D: the voxel size, slice spacing and axial σ recorded in the provenance (the methods paragraph states them)
+  const zScale = objects && depth > 1 ? spotZScale(job, depth) : null;
+  const volume = objects && zScale !== null ? { pixelSizeUm: job.pixelSizeUm!, zStepUm: job.zStepUm!, zScale, sigmaZ: spot3Options({ sigma: objects.spotSigma, zScale }).sigmaZ } : null;
   const spots: SpotValues[] = [];
   // the spot filter reaches beyond each cell, so every pixel it may read needs a value
   if (objects)
@@ -400,7 +405,7 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
       nanPixels,
       calibration: cal,
       ...(objects
-        ? { objects: { sigmaPx: objects.spotSigma, k: objects.spotK, minSeparationPx: objects.minSeparation, pairDistancePx: objects.pairDistance, placements: objects.placements, seed: objects.seed } }
+        ? { objects: { sigmaPx: objects.spotSigma, k: objects.spotK, minSeparationPx: objects.minSeparation, pairDistancePx: objects.pairDistance, placements: objects.placements, seed: objects.seed, ...(volume && { volume }) } }
         : {}),
       computedAt,
     };
@@ -439,7 +444,7 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
     for (const k of OBJECT_KEYS) values[k] = null;
     if (objects && depth > 1) {
       // in 3D: σz = σ · pixel size / z step, distances in pixel widths with z scaled; z in the stack's slices (every slice is measured)
-      const a = analyzeObjects3D(raw1, raw2, width, height, depth, valued, { ...objects, zScale: spotZScale(job, depth) });
+      const a = analyzeObjects3D(raw1, raw2, width, height, depth, valued, { ...objects, zScale: zScale! });
       Object.assign(values, objectMeasures(a.result as unknown as ObjectResult));
       for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)
         for (const sp of det?.spots ?? []) spots.push({ cellId: cell.id, channel, x: sp.x, y: sp.y, z: sp.z, peak: sp.peak, integrated: sp.integrated });

@@ -166,7 +166,7 @@ export { measureShift, tukeyWindow, SHIFT_TAPER, type ShiftResult, type ShiftOpt
 export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-correlation';
 export { alignChannel } from './align';
 export { laplacianOfGaussian3D, type VoxelBox } from './gaussian3d';
-export { detectSpots3D, type Spot3, type Spot3Detection, type Spot3Options } from './spots3d';
+export { detectSpots3D, spot3Options, type Spot3, type Spot3Detection, type Spot3Options } from './spots3d';
 export { PointGrid3, pairSpots3D } from './pairing3d';
 export { spotPlacementTest3D } from './spot-test3d';
 export { analyzeObjects3D, measureObjects3D, type Object3Result, type Object3Options, type Object3Analysis } from './objects3d';

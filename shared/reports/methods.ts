@@ -163,6 +163,8 @@ export function methodsParagraph(snap: ReportSnapshot): string {
     );
   }
   if (!snap.recipes.length) parts.push('No measurements were available when the report was made; no recipe was used.');
+  const spots3d = spots3dParagraph(snap);
+  if (spots3d) parts.push(spots3d);
 
   // 3. coefficients: each registry entry's methods phrase, once per distinct phrase, citations filled in
   const phrases = [...new Set(snap.coefficients.map((k) => byKey(k).methods).filter((m): m is string => m !== null))];
@@ -224,6 +226,29 @@ export function methodsParagraph(snap: ReportSnapshot): string {
 
   const refs = used.map((k, i) => `[${i + 1}] ${CITATIONS[k].text}`);
   return `${parts.join('\n\n')}\n\nReferences\n${refs.join('\n')}`;
+}
+
+/**
+ * Spots found in 3D (from the measurements' provenance, `snap.spots3d`): the lateral and axial filter widths
+ * (σz = σ · pixel size / z step, in slices and µm), and that distances are specimen distances with z scaled by
+ * the z step, in pixel widths and µm. '' when no reported cell had its spots found in 3D.
+ */
+function spots3dParagraph(snap: ReportSnapshot): string {
+  const sp = snap.spots3d;
+  if (!sp || !sp.groups.length) return '';
+  const n = (v: number) => String(Number(v.toPrecision(3)));
+  const one = (g: (typeof sp.groups)[number]) => {
+    const who = `for ${plural(g.cells, 'cell')} of z-stacks measured in 3D, spots were found in 3D over the cell's voxels with the Laplacian-of-Gaussian filter at σ = ${n(g.sigmaPx)} pixels across the plane`;
+    if (g.sigmaZ === null || g.zScale === null || g.pixelSizeUm === null || g.zStepUm === null)
+      return `${who} and σz = σ × pixel size / z step along the optical axis (the voxel size is not recorded, so its value is not stated here); nearest-neighbour distances, pairing within d = ${n(g.pairDistancePx)} pixels and the chance placements use distances in the specimen, z differences scaled by the z step, measured in pixel widths`;
+    return (
+      `${who} and σz = σ × pixel size / z step = ${n(g.sigmaZ)} slices along the optical axis (voxel ${n(g.pixelSizeUm)} × ${n(g.pixelSizeUm)} × ${n(g.zStepUm)} µm, so the filter is ${n(g.sigmaPx * g.pixelSizeUm)} µm wide in x, y and ${n(g.sigmaZ * g.zStepUm)} µm in z)` +
+      `; nearest-neighbour distances, pairing within d and the chance placements use distances in the specimen: a z difference counts ${n(g.zScale)} pixel widths per slice (the z step over the pixel size), so distances are in pixel widths of ${n(g.pixelSizeUm)} µm and d = ${n(g.pairDistancePx)} pixels is ${n(g.pairDistancePx * g.pixelSizeUm)} µm`
+    );
+  };
+  const rest = sp.planeCells > 0 ? ` The spots of the other ${plural(sp.planeCells, 'cell')} were found within one plane.` : '';
+  const text = sp.groups.map(one).join('; ');
+  return `Spots in 3D: ${text}.${rest}`;
 }
 
 /** "Pixel size: 0.065 µm (from the image files)." — or the sizes per field, or that none was recorded. */

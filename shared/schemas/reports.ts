@@ -253,6 +253,18 @@ export const ReportSnapshot = z.object({
       uncalibratedCells: z.number().int().nonnegative(),
     })
     .optional(),
+  /**
+   * how the reported cells' spots were found (provenance.objects, Spots on): one group per voxel size and filter
+   * width for cells of stacks whose spots were found in 3D (σz in slices, the slice spacing zScale in pixel
+   * widths; null when neither the row nor the field records the voxel size), and the count of cells whose
+   * spots were found in one plane; absent in older reports
+   */
+  spots3d: z
+    .object({
+      groups: z.array(z.object({ sigmaPx: z.number(), sigmaZ: Num, zScale: Num, pixelSizeUm: Num, zStepUm: Num, pairDistancePx: z.number(), cells: z.number().int().nonnegative() })),
+      planeCells: z.number().int().nonnegative(),
+    })
+    .optional(),
   methods: z.string(),
   cautions: z.array(z.string()),
 });

@@ -93,6 +93,12 @@ export const AppliedObjectSettings = z.object({
   pairDistancePx: z.number(),
   placements: z.number().int(),
   seed: z.number().int(),
+  /**
+   * present when the spots were found in 3D (a stack measured in 3D, 2026-12-03): the voxel size used, the
+   * slice spacing in pixel widths (zStepUm / pixelSizeUm, by which z differences are scaled for distances)
+   * and the axial filter width σz in slices (σ · pixel size / z step); absent in 2D and on older rows
+   */
+  volume: z.object({ pixelSizeUm: z.number().positive(), zStepUm: z.number().positive(), zScale: z.number().positive(), sigmaZ: z.number().positive() }).optional(),
 });
 export type AppliedObjectSettings = z.infer<typeof AppliedObjectSettings>;
 

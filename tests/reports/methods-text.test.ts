@@ -12,6 +12,8 @@ import { PROJECTION_CAUTION, RecipeSettings, type RecipeSettingsInput } from '..
 import type { ReportSnapshot } from '../../shared/schemas/reports.js';
 import type { CellOrigin, FoundWith } from '../../shared/schemas/cells.js';
 import { buildReportWorld, excludeCell, insertRun } from './fixtures.js';
+import { eq, inArray } from 'drizzle-orm';
+import { fields, measurements } from '../../server/db/schema.js';
 
 let t: TestApp;
 let base: ReportSnapshot;
@@ -188,5 +190,61 @@ describe('recipe settings in words', () => {
     expect(paragraphs.length).toBeGreaterThan(4);
     for (const p of paragraphs) expect(p, p.slice(0, 60)).toMatch(/^[A-Z].*\.$/s);
     expect(text.match(/.{60}\) \(.{40}/g)).toBeNull();
+  });
+});
+
+describe('spots found in 3D', () => {
+  const group = { sigmaPx: 1.5, sigmaZ: 0.75, zScale: 2, pixelSizeUm: 0.1, zStepUm: 0.2, pairDistancePx: 2, cells: 8 };
+  const with3d = (spots3d: ReportSnapshot['spots3d']) => methodsParagraph({ ...structuredClone(base), spots3d });
+
+  it('states that spots were found in 3D, σz in slices and µm, and that distances are specimen distances with z scaled by the z step, in µm', () => {
+    const text = with3d({ groups: [group], planeCells: 0 });
+    // voxel 0.1 × 0.1 × 0.2 µm: σz = 1.5 · 0.1 / 0.2 = 0.75 slices = 0.15 µm, as wide as σ = 1.5 px = 0.15 µm across; one slice = 2 pixel widths; d = 2 px = 0.2 µm
+    expect(text).toContain('Spots in 3D: for 8 cells of z-stacks measured in 3D, spots were found in 3D over the cell\'s voxels with the Laplacian-of-Gaussian filter at σ = 1.5 pixels across the plane and σz = σ × pixel size / z step = 0.75 slices along the optical axis (voxel 0.1 × 0.1 × 0.2 µm, so the filter is 0.15 µm wide in x, y and 0.15 µm in z)');
+    expect(text).toContain('nearest-neighbour distances, pairing within d and the chance placements use distances in the specimen: a z difference counts 2 pixel widths per slice (the z step over the pixel size), so distances are in pixel widths of 0.1 µm and d = 2 pixels is 0.2 µm.');
+    expect(text).not.toContain('found within one plane');
+    // no 3D spots (the base report, or an older report without the record): no such paragraph
+    expect(base.spots3d).toEqual({ groups: [], planeCells: 0 });
+    expect(base.methods).not.toContain('Spots in 3D');
+    expect(with3d(undefined)).not.toContain('Spots in 3D');
+  });
+
+  it('without a recorded voxel size the axial scale is named but no value or µm is invented; cells found within a plane are counted', () => {
+    const text = with3d({ groups: [{ ...group, sigmaZ: null, zScale: null, pixelSizeUm: null, zStepUm: null, cells: 5 }], planeCells: 3 });
+    expect(text).toContain('for 5 cells of z-stacks measured in 3D, spots were found in 3D over the cell\'s voxels with the Laplacian-of-Gaussian filter at σ = 1.5 pixels across the plane and σz = σ × pixel size / z step along the optical axis (the voxel size is not recorded, so its value is not stated here)');
+    expect(text).toContain('use distances in the specimen, z differences scaled by the z step, measured in pixel widths. The spots of the other 3 cells were found within one plane.');
+    const para = text.split('\n\n').find((p) => p.startsWith('Spots in 3D'))!;
+    expect(para).not.toContain('µm');
+    expect(para).toMatch(/^[A-Z].*\.$/s);
+  });
+
+  it('a report collects them from the measurements\' provenance (the field\'s voxel size for rows recorded before it), one group per voxel size', async () => {
+    const rows = t.ctx.db.select({ id: measurements.id, fieldId: measurements.fieldId, provenance: measurements.provenance }).from(measurements).all();
+    const fieldIds = [...new Set(rows.map((r) => r.fieldId))].sort((a, b) => a - b);
+    expect(fieldIds).toHaveLength(6);
+    // fields 3 and 4 carry voxel 0.1 × 0.1 × 0.3 µm, used for their rows that predate the record
+    t.ctx.db.update(fields).set({ pixelSizeUm: 0.1, zStepUm: 0.3, sizeZ: 5 }).where(inArray(fields.id, fieldIds.slice(2, 4))).run();
+    const applied = { sigmaPx: 1.5, k: 5, minSeparationPx: 3, pairDistancePx: 2, placements: 99, seed: 1 };
+    for (const r of rows) {
+      const i = fieldIds.indexOf(r.fieldId);
+      const objects = i < 2 ? { ...applied, volume: { pixelSizeUm: 0.1, zStepUm: 0.2, zScale: 2, sigmaZ: 0.75 } } : applied;
+      t.ctx.db.update(measurements).set({ provenance: { ...(r.provenance as object), objects, z: i < 4 ? '3D 0-4' : 'slice 2' } }).where(eq(measurements.id, r.id)).run();
+    }
+    const bio = await t.login('biologist');
+    const res = await bio.post(`/api/studies/${t.world.studyA}/reports`).send({ title: 'Spots in 3D', coefficients: ['pearson'] });
+    expect(res.status).toBe(201);
+    const snap = res.body.snapshot as ReportSnapshot;
+    // 24 cells, the first (field 1) excluded: 7 + 8 found in 3D, 8 within a plane
+    expect(snap.spots3d!.planeCells).toBe(8);
+    const [a, b] = snap.spots3d!.groups;
+    expect(snap.spots3d!.groups).toHaveLength(2);
+    expect(a).toEqual({ sigmaPx: 1.5, sigmaZ: 0.75, zScale: 2, pixelSizeUm: 0.1, zStepUm: 0.2, pairDistancePx: 2, cells: 7 });
+    expect(b).toMatchObject({ sigmaPx: 1.5, pixelSizeUm: 0.1, zStepUm: 0.3, pairDistancePx: 2, cells: 8 });
+    expect(b.zScale!).toBeCloseTo(3, 12);
+    expect(b.sigmaZ!).toBeCloseTo(0.5, 12);
+    expect(snap.methods).toContain('for 7 cells of z-stacks measured in 3D');
+    expect(snap.methods).toContain('for 8 cells of z-stacks measured in 3D, spots were found in 3D over the cell\'s voxels with the Laplacian-of-Gaussian filter at σ = 1.5 pixels across the plane and σz = σ × pixel size / z step = 0.5 slices along the optical axis (voxel 0.1 × 0.1 × 0.3 µm, so the filter is 0.15 µm wide in x, y and 0.15 µm in z)');
+    expect(snap.methods).toContain('a z difference counts 3 pixel widths per slice');
+    expect(snap.methods).toContain('The spots of the other 8 cells were found within one plane.');
   });
 });

@@ -75,6 +75,16 @@ describe('a run with Spots on over a field measured in 3D', () => {
     expect(left.spotPaired1).toBe(0.8);
   });
 
+  it('records the 3D path in each measurement\'s provenance: the voxel size, the slice spacing and σz in slices; a single slice records none', () => {
+    const { measurements } = computeFieldResult(job(spotsOn), px);
+    // σz = σ · pixel size / z step = 1.5 · 0.1 / Z_UM slices; the slice spacing Z_UM / 0.1 pixel widths
+    for (const m of measurements)
+      expect(m.provenance.objects).toEqual({ sigmaPx: 1.5, k: 5, minSeparationPx: 3, pairDistancePx: 2, placements: 99, seed: 1, volume: { pixelSizeUm: PIXEL_UM, zStepUm: Z_UM, zScale: Z_UM / PIXEL_UM, sigmaZ: 1.5 / (Z_UM / PIXEL_UM) } });
+    expect(measurements[0].provenance.z).toBe(`3D 0-${D - 1}`);
+    const flat = computeFieldResult(job({ ...spotsOn, z: { mode: 'slice', slice: 12 } }), { width: W, height: H, ch1: v1.subarray(12 * W * H, 13 * W * H), ch2: v2.subarray(12 * W * H, 13 * W * H) });
+    for (const m of flat.measurements) expect(m.provenance.objects).not.toHaveProperty('volume');
+  });
+
   it('a field without its voxel size is refused before any pixel is read, with what to enter on the field', () => {
     const inPixels = { ...spotsOn, objects: { ...spotsOn.objects, pairDistance: { kind: 'pixels' as const, pixels: 2 } } };
     for (const extra of [{ zStepUm: null }, { pixelSizeUm: null }]) {
