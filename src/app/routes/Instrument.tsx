@@ -6,13 +6,15 @@
 import { useParams, useSearchParams } from 'react-router';
 import { Button, Card, ErrorNotice, Loading, PageHeader } from '@/components';
 import { useMe } from '@/features/auth';
-import { CalibrationPanel, CalibrationVersions, useCreateCalibration, useInstrument, type CompositeSlot } from '@/features/instruments';
+import { CalibrationPanel, CalibrationVersions, useCreateCalibration, useInstrument, type CompositeSlot, type UploadSlot } from '@/features/instruments';
+import { UploadToStudy } from '@/features/studies';
 import { FieldComposite } from '@/features/workspace';
 import { ApiError } from '@/lib/api';
 import { Component as NotFound } from './NotFound';
 
 const trail = [{ to: '/instruments', label: 'Instruments' }];
 const composite: CompositeSlot = (fieldId, shift) => <FieldComposite key={fieldId} fieldId={fieldId} shift={shift} title="Bead field before and after alignment" />;
+const upload: UploadSlot = (studyId, instrumentId, onUploaded) => <UploadToStudy key={studyId} studyId={studyId} instrumentId={instrumentId} label="Upload a bead or control field…" onUploaded={(f) => onUploaded(f.map((x) => x.id))} />;
 
 export function Component() {
   const me = useMe();
@@ -55,7 +57,7 @@ export function Component() {
         <Card title="Versions">
           <CalibrationVersions versions={i.calibrations} selected={selected} onSelect={select} />
         </Card>
-        {selected !== null && <CalibrationPanel key={selected} calibrationId={selected} channels={i} composite={composite} />}
+        {selected !== null && <CalibrationPanel key={selected} calibrationId={selected} channels={i} composite={composite} upload={upload} />}
       </div>
     </div>
   );

@@ -16,3 +16,4 @@ export { useFieldShift } from './api/useFieldShift';
 export { useMeasureBleed, useMeasureShift } from './api/useMeasureCalibration';
 export { CrossCorrelationChart } from './components/CrossCorrelationChart';
 export type { CompositeSlot } from './components/CalibrationSourcesView';
+export type { UploadSlot } from './components/MeasureCalibration';

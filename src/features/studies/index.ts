@@ -11,4 +11,5 @@ export { moved, refocusMove } from './components/MoveButtons';
 export { NameDialog } from './components/NameDialog';
 export { StudyLinks } from './components/StudyLinks';
 export { StudyInstrument } from './components/StudyInstrument';
+export { UploadToStudy } from './components/UploadToStudy';
 export { StudyList } from './components/StudyList';

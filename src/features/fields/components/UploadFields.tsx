@@ -9,7 +9,7 @@ import { Button } from '@/components/Button';
 import { Dialog } from '@/components/Dialog';
 import { ErrorNotice } from '@/components/Caution';
 import { inputClass } from '@/components/TextField';
-import { PixelSizeUm, UploadChannelRef, ZStepUm, type UploadFieldPlan } from '@shared/schemas/fields';
+import { PixelSizeUm, UploadChannelRef, ZStepUm, type FieldSummary, type UploadFieldPlan } from '@shared/schemas/fields';
 import { cx } from '@/lib/cx';
 import { NumberTextFor } from '@shared/schemas/common';
 import { BoxMessage, useNumberBox } from '@/components/NumberBox';
@@ -64,22 +64,26 @@ function channelLabel(c: { index: number; name: string | null }) {
   return c.name ? `${c.index} · ${c.name}` : `channel ${c.index}`;
 }
 
-/** `defaultInstrumentId`: the study's default instrument, chosen beforehand (the person uploading may change it). */
-export function UploadFields({ coverslipId, defaultInstrumentId = null }: { coverslipId: number; defaultInstrumentId?: number | null }) {
+/**
+ * `defaultInstrumentId`: the study's default instrument, chosen beforehand (the person uploading may change it).
+ * `onUploaded` hears of the fields each upload added (the calibration screen picks the new bead field with it);
+ * `label` names the opening button.
+ */
+export function UploadFields({ coverslipId, defaultInstrumentId = null, onUploaded, label = 'Add fields…' }: { coverslipId: number; defaultInstrumentId?: number | null; onUploaded?: (fields: FieldSummary[]) => void; label?: string }) {
   const [open, setOpen] = useState(false);
   return (
     <>
       <div>
         <Button size="sm" variant="secondary" onClick={() => setOpen(true)}>
-          Add fields…
+          {label}
         </Button>
       </div>
-      {open && <UploadDialog coverslipId={coverslipId} defaultInstrumentId={defaultInstrumentId} onClose={() => setOpen(false)} />}
+      {open && <UploadDialog coverslipId={coverslipId} defaultInstrumentId={defaultInstrumentId} onUploaded={onUploaded} onClose={() => setOpen(false)} />}
     </>
   );
 }
 
-function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslipId: number; defaultInstrumentId: number | null; onClose: () => void }) {
+function UploadDialog({ coverslipId, defaultInstrumentId, onUploaded, onClose }: { coverslipId: number; defaultInstrumentId: number | null; onUploaded?: (fields: FieldSummary[]) => void; onClose: () => void }) {
   const [mode, setMode] = useState<Mode>('multi');
   const [multi, setMulti] = useState<MultiRow[]>([]);
   const [pairs, setPairs] = useState<PairRow[]>([{ id: nextId++, file1: null, file2: null, name: '' }]);
@@ -162,7 +166,9 @@ function UploadDialog({ coverslipId, defaultInstrumentId, onClose }: { coverslip
         plan.push({ name: r.name.trim() || undefined, ch1: { file: idx(r.file1), channel: 1 }, ch2: { file: idx(r.file2), channel: 1 }, instrumentId });
       }
     }
-    await upload(files, plan.map((p) => ({ ...p, ...(pixelSizeUm === undefined ? {} : { pixelSizeUm }), ...(zStepUm === undefined ? {} : { zStepUm }) })));
+    const results = await upload(files, plan.map((p) => ({ ...p, ...(pixelSizeUm === undefined ? {} : { pixelSizeUm }), ...(zStepUm === undefined ? {} : { zStepUm }) })));
+    const added = results.flatMap((r) => (r.ok ? [r.field] : []));
+    if (added.length) onUploaded?.(added);
   };
 
   const startOver = () => {

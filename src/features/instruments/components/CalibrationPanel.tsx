@@ -14,11 +14,11 @@ import type { ChannelNames } from '../lib/sentences';
 import { CalibrationReviewActions } from './CalibrationReviewActions';
 import { CalibrationValuesForm } from './CalibrationValuesForm';
 import { CalibrationSourcesView, type CompositeSlot } from './CalibrationSourcesView';
-import { MeasureCalibration } from './MeasureCalibration';
+import { MeasureCalibration, type UploadSlot } from './MeasureCalibration';
 
 const valuesOf = (c: CalibrationDetail): CalibrationValues => ({ dx: c.dx, dy: c.dy, a21: c.a21, a12: c.a12 });
 
-function Panel({ c, channels, composite }: { c: CalibrationDetail; channels: ChannelNames; composite?: CompositeSlot }) {
+function Panel({ c, channels, composite, upload }: { c: CalibrationDetail; channels: ChannelNames; composite?: CompositeSlot; upload?: UploadSlot }) {
   const editable = c.allowed.includes('edit');
   const [values, setValues] = useState<CalibrationValues>(valuesOf(c));
   const [note, setNote] = useState(c.note);
@@ -72,7 +72,7 @@ function Panel({ c, channels, composite }: { c: CalibrationDetail; channels: Cha
       </Card>
       {editable && (
         <Card title="Measure from stored fields">
-          <MeasureCalibration c={c} channels={channels} blocked={dirty ? 'Save or undo your changes above first: measuring replaces the values shown.' : null} />
+          <MeasureCalibration c={c} channels={channels} upload={upload} blocked={dirty ? 'Save or undo your changes above first: measuring replaces the values shown.' : null} />
         </Card>
       )}
       <Card title="Where the values come from">
@@ -97,10 +97,10 @@ function Panel({ c, channels, composite }: { c: CalibrationDetail; channels: Cha
   );
 }
 
-/** `composite` draws a field's composite before and after alignment (the route gives the workspace's). */
-export function CalibrationPanel({ calibrationId, channels, composite }: { calibrationId: number; channels: ChannelNames; composite?: CompositeSlot }) {
+/** `composite` draws a field's composite before and after alignment (the route gives the workspace's); `upload` adds a new bead or control field to a study (the route gives the studies feature's). */
+export function CalibrationPanel({ calibrationId, channels, composite, upload }: { calibrationId: number; channels: ChannelNames; composite?: CompositeSlot; upload?: UploadSlot }) {
   const q = useCalibration(calibrationId);
   if (q.isPending) return <Loading />;
   if (q.isError) return <ErrorNotice error={q.error} />;
-  return <Panel c={q.data} channels={channels} composite={composite} />;
+  return <Panel c={q.data} channels={channels} composite={composite} upload={upload} />;
 }

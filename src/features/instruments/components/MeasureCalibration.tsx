@@ -2,15 +2,21 @@
  * Measuring a draft calibration from stored fields: choose a study, then a bead field for the shift or
  * single-label control fields for a bleed-through coefficient; the server measures (off its web thread) and
  * writes the result into the draft, which stays a draft whose values can still be changed by hand.
- * A new bead or control field is uploaded to a study the usual way first, then chosen here.
+ * A new bead or control field can be uploaded from here into a coverslip of the chosen study (the page's
+ * `upload` slot: the usual upload dialog, recorded on this instrument); a new field becomes the bead field.
  */
-import { useId, useState } from 'react';
+import { useId, useState, type ReactNode } from 'react';
+import { useQueryClient } from '@tanstack/react-query';
 import { Button, ErrorNotice, cx, inputClass } from '@/components';
 import { plural } from '@shared/format/plural';
 import type { CalibrationDetail } from '@shared/schemas/instruments';
 import { useMeasureBleed, useMeasureShift } from '../api/useMeasureCalibration';
 import { usePickableFields, usePickableStudies } from '../api/usePickableFields';
 import type { ChannelNames } from '../lib/sentences';
+import { instrumentKeys } from '../api/keys';
+
+/** Draws the upload of a new field into the chosen study, recorded on the instrument; `onUploaded` gets the new fields' ids. */
+export type UploadSlot = (studyId: number, instrumentId: number, onUploaded: (fieldIds: number[]) => void) => ReactNode;
 
 function StudyChoice({ value, onChange }: { value: number | null; onChange: (id: number | null) => void }) {
   const studies = usePickableStudies();
@@ -33,7 +39,8 @@ function StudyChoice({ value, onChange }: { value: number | null; onChange: (id:
   );
 }
 
-export function MeasureCalibration({ c, channels, blocked }: { c: CalibrationDetail; channels: ChannelNames; blocked: string | null }) {
+export function MeasureCalibration({ c, channels, blocked, upload }: { c: CalibrationDetail; channels: ChannelNames; blocked: string | null; upload?: UploadSlot }) {
+  const qc = useQueryClient();
   const [studyId, setStudyId] = useState<number | null>(null);
   const fields = usePickableFields(studyId);
   const [beadField, setBeadField] = useState<number | null>(null);
@@ -49,13 +56,19 @@ export function MeasureCalibration({ c, channels, blocked }: { c: CalibrationDet
     setBeadField(null);
     setControls([]);
   };
+  // a field uploaded from here: the study's list is read again, and the first new field becomes the bead field
+  const uploaded = (ids: number[]) => {
+    if (studyId === null || !ids.length) return;
+    void qc.invalidateQueries({ queryKey: instrumentKeys.pickFields(studyId) }).then(() => setBeadField(ids[0]));
+  };
   return (
     <div className="space-y-4" data-testid="measure-calibration">
       <p className="text-sm text-ink-soft">
-        The server measures the chosen fields and fills in the draft; the values stay editable until the version is submitted. To measure a new bead or control sample, add its field to a study first, then choose it
-        here.
+        The server measures the chosen fields and fills in the draft; the values stay editable until the version is submitted. A new bead or control sample can be uploaded here into a coverslip of the chosen
+        study; it is recorded on this instrument and stays in that study.
       </p>
       <StudyChoice value={studyId} onChange={chooseStudy} />
+      {studyId !== null && upload?.(studyId, c.instrumentId, uploaded)}
       {blocked && <p className="text-sm text-danger">{blocked}</p>}
       <ErrorNotice error={fields.error} />
       {studyId !== null && fields.isSuccess && list.length === 0 && <p className="text-sm">This study has no fields yet.</p>}
