@@ -132,7 +132,7 @@ export async function cachedComparison(ctx: AppContext, studyId: number, options
   }
   p = parts.then(([head, pts]) => {
     // the answer names its sample; the head kept here (reports, the CSVs) goes with every point
-    const json = comparisonJsonParts({ ...head, pointsSample: pts.sampled ? { method: 'coverslip_quantiles', max: COMPARE_POINTS_MAX } : null }, pts.json);
+    const json = comparisonJsonParts({ ...head, pointsSample: pts.sampled ? { method: 'coverslip_even', max: COMPARE_POINTS_MAX } : null }, pts.json);
     cache.bytes.set(key, pts.json.byteLength + pts.points.cellId.length * 24);
     return { json, head, points: pts.points };
   });

@@ -171,10 +171,10 @@ export const Comparison = z.object({
   /** how many cells the comparison includes, the number every statistic uses (absent in reports made before
    * it was recorded: then `points.length`) */
   pointsTotal: z.number().int().optional(),
-  /** null when `points` lists every included cell; else how they were sampled: in each coverslip its share of
-   * `max` points (at least two, or all when fewer), taken evenly spaced in the order of value (ties by cell
-   * id), so each coverslip's lowest and highest cell and its quantiles are drawn. Absent in older reports. */
-  pointsSample: z.object({ method: z.literal('coverslip_quantiles'), max: z.number().int() }).nullable().optional(),
+  /** null when `points` lists every included cell; else how they were sampled (server/compare/comparison.ts
+   * `samplePoints`): each coverslip gets its share of `max` points (at least two, all when it has fewer): its
+   * lowest and highest value and the rest evenly spaced in cell id order. Absent in older reports. */
+  pointsSample: z.object({ method: z.literal('coverslip_even'), max: z.number().int() }).nullable().optional(),
   coverslips: z.array(CoverslipStats),
   conditions: z.array(ConditionStats),
   effects: z.array(Effect),
