@@ -92,7 +92,7 @@ describe("the answer's points", () => {
     const p: PointColumns = { cellId: new Int32Array(n), fieldId: new Int32Array(n), coverslipId: new Int32Array(n), conditionId: new Int32Array(n), value: new Float64Array(n) };
     let x = 12345;
     // cells of the coverslips interleaved in cell id order
-    const slipOf = (k: number) => {
+    const slipOf = () => {
       for (;;) {
         x = (x * 1103515245 + 12345) % 2147483648;
         const j = x % sizes.length;
@@ -101,7 +101,7 @@ describe("the answer's points", () => {
     };
     const counts = sizes.map(() => 0);
     for (let k = 0; k < n; k++) {
-      const j = slipOf(k);
+      const j = slipOf();
       counts[j]++;
       p.cellId[k] = 100 + 2 * k;
       p.coverslipId[k] = 50 + j;
