@@ -3,7 +3,8 @@
  * measured cells handed to it (a pure function: server/compare/compute.ts gathers the input from the grid
  * index and runs this in a thread, server/compare/compare-worker.ts).
  *
- * - Points: every included cell (not excluded, value defined), with its coverslip and condition.
+ * - Points: every included cell (not excluded, value defined), with its coverslip and condition
+ *   (`pointsFromGrid`); the answer's JSON lists at most COMPARE_POINTS_MAX of them (`samplePoints`).
  * - Coverslip summary: number of cells, mean (Fisher's z average for correlation coefficients, Fisher 1915
  *   Biometrika 10:507), median, SD.
  * - Condition summary: number of coverslips, mean of coverslip means, median of coverslip medians (shown
