@@ -9,8 +9,8 @@
 import os from 'node:os';
 import { isMainThread } from 'node:worker_threads';
 import { Piscina } from 'piscina';
-import { comparisonFrom, inputFromGrid, pointsFromGrid, pointsJson, type CompareTask, type PointColumns } from './comparison.js';
-import type { ComparisonHead } from '../../shared/schemas/compare.js';
+import { comparisonFrom, pointsFromGrid, pointsJson, samplePoints, type CompareTask, type PointColumns } from './comparison.js';
+import { COMPARE_POINTS_MAX, type ComparisonHead } from '../../shared/schemas/compare.js';
 
 // On Linux this lowers this thread only (as the grid index reader does): requests keep the CPU first. Not when
 // imported by the web thread (compute.ts runs small comparisons there with the same functions).
@@ -24,18 +24,23 @@ if (process.platform === 'linux' && !isMainThread) {
 
 export type CompareJob = CompareTask & { part: 'head' | 'points' };
 export interface PointsResult {
+  /** the JSON of the points the answer lists: every one, or at most COMPARE_POINTS_MAX (`samplePoints`) */
   json: Uint8Array;
+  /** whether `json` lists a sample */
+  sampled: boolean;
+  /** every point (the cells CSV, reports) */
   points: PointColumns;
 }
 
-/** The points of a task, as columns and as JSON. */
+/** The points of a task as columns, and the JSON of those the answer lists. */
 export function pointsPart(task: CompareTask): PointsResult {
   const points = pointsFromGrid(task);
-  return { json: pointsJson(points), points };
+  const listed = samplePoints(points, COMPARE_POINTS_MAX);
+  return { json: pointsJson(listed.points), sampled: listed.sampled, points };
 }
 
 export default function compareTask(job: CompareJob): ComparisonHead | unknown {
-  if (job.part === 'head') return comparisonFrom(inputFromGrid(job));
+  if (job.part === 'head') return comparisonFrom(job);
   const result = pointsPart(job);
   const points = result.points;
   return Piscina.move({

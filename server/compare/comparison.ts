@@ -3,7 +3,8 @@
  * measured cells handed to it (a pure function: server/compare/compute.ts gathers the input from the grid
  * index and runs this in a thread, server/compare/compare-worker.ts).
  *
- * - Points: every included cell (not excluded, value defined), with its coverslip and condition.
+ * - Points: every included cell (not excluded, value defined), with its coverslip and condition
+ *   (`pointsFromGrid`); the answer's JSON lists at most COMPARE_POINTS_MAX of them (`samplePoints`).
  * - Coverslip summary: number of cells, mean (Fisher's z average for correlation coefficients, Fisher 1915
  *   Biometrika 10:507), median, SD.
  * - Condition summary: number of coverslips, mean of coverslip means, median of coverslip medians (shown
@@ -39,7 +40,6 @@ import {
   equalEdges,
   fisherZ,
   hierarchicalBootstrap,
-  histogram,
   kruskalWallis,
   mannWhitneyU,
   mean,
@@ -80,30 +80,13 @@ const nn = (v: number | null | undefined) => (v === null || v === undefined || !
  */
 export const NORMAL_ABOVE = 1000;
 
-/** The measured cells of the chosen conditions (rows in cell id order) and what a comparison names. */
-export interface CompareInput {
+/** The grid index's rows of a study (cell id order) and what a comparison names. */
+export interface CompareTask {
   studyId: number;
   opts: CompareQuery;
   source: ComparisonHead['source'];
   conds: { id: number; name: string }[];
   slips: { id: number; name: string; replicate: number; conditionId: number }[];
-  cellId: Int32Array;
-  fieldId: Int32Array;
-  coverslipId: Int32Array;
-  conditionId: Int32Array;
-  /** the coefficient; NaN where undefined */
-  value: Float64Array;
-  mean1: Float64Array;
-  mean2: Float64Array;
-  excluded: Uint8Array;
-  provisional: Uint8Array;
-  saturated: Uint8Array;
-  /** calibration id of the measurement, NaN when none */
-  calibration: Float64Array;
-}
-
-/** The grid index's columns a comparison reads (rows of the grid; fieldId, coverslipId, conditionId per field). */
-export interface CompareTask extends Pick<CompareInput, 'studyId' | 'opts' | 'source' | 'conds' | 'slips'> {
   grid: {
     cellId: Int32Array;
     /** field index of each row */
@@ -124,51 +107,6 @@ export interface CompareTask extends Pick<CompareInput, 'studyId' | 'opts' | 'so
   };
 }
 
-/** The measured cells of the task's conditions, in the grid's (cell id) order. */
-export function inputFromGrid(task: CompareTask): CompareInput {
-  const g = task.grid;
-  const condIds = new Set(task.conds.map((c) => c.id));
-  const inCond = Uint8Array.from(g.conditionId, (id) => (condIds.has(id) ? 1 : 0));
-  const total = g.cellId.length;
-  let n = 0;
-  for (let r = 0; r < total; r++) if (g.measured[r] && inCond[g.field[r]]) n++;
-  const input: CompareInput = {
-    studyId: task.studyId,
-    opts: task.opts,
-    source: task.source,
-    conds: task.conds,
-    slips: task.slips,
-    cellId: new Int32Array(n),
-    fieldId: new Int32Array(n),
-    coverslipId: new Int32Array(n),
-    conditionId: new Int32Array(n),
-    value: new Float64Array(n),
-    mean1: new Float64Array(n),
-    mean2: new Float64Array(n),
-    excluded: new Uint8Array(n),
-    provisional: new Uint8Array(n),
-    saturated: new Uint8Array(n),
-    calibration: new Float64Array(n),
-  };
-  for (let r = 0, k = 0; r < total; r++) {
-    const f = g.field[r];
-    if (!g.measured[r] || !inCond[f]) continue;
-    input.cellId[k] = g.cellId[r];
-    input.fieldId[k] = g.fieldId[f];
-    input.coverslipId[k] = g.coverslipId[f];
-    input.conditionId[k] = g.conditionId[f];
-    input.value[k] = g.value[r];
-    input.mean1[k] = g.mean1[r];
-    input.mean2[k] = g.mean2[r];
-    input.excluded[k] = g.excluded[r];
-    input.provisional[k] = g.provisional[r] ? 1 : 0;
-    input.saturated[k] = g.saturated[r];
-    input.calibration[k] = g.calibration[r];
-    k++;
-  }
-  return input;
-}
-
 /** The points of a comparison as columns (what `Comparison.points` lists, one entry per index). */
 export interface PointColumns {
   cellId: Int32Array;
@@ -178,33 +116,144 @@ export interface PointColumns {
   value: Float64Array;
 }
 
-export function comparisonFrom(input: CompareInput): ComparisonHead {
-  const { opts, conds, slips, studyId } = input;
+/** The task's grid rows and fields, in a form the passes below read: the coverslip and condition position of
+ * each field (-1 for fields outside the chosen conditions). */
+function fieldPositions(task: CompareTask) {
+  const g = task.grid;
+  const condPos = denseIndex(task.conds.map((c) => c.id));
+  const slipPos = denseIndex(task.slips.map((s) => s.id));
+  const nf = g.fieldId.length;
+  const fieldSlip = new Int32Array(nf);
+  const fieldCond = new Int32Array(nf);
+  for (let f = 0; f < nf; f++) {
+    const c = condPos(g.conditionId[f]);
+    const s = c < 0 ? -1 : slipPos(g.coverslipId[f]);
+    fieldCond[f] = s < 0 ? -1 : c;
+    fieldSlip[f] = s;
+  }
+  return { fieldSlip, fieldCond };
+}
+
+/**
+ * The rows a comparison uses (measured, in a chosen condition, not excluded, value defined; for a coefficient
+ * averaged through Fisher's z also |value| ≤ 1), in the grid's (cell id) order, and what was left out.
+ */
+export function usedRowsOf(task: CompareTask) {
+  const g = task.grid;
+  const fisher = byKey(task.opts.coefficient).fisherZ;
+  const { fieldSlip, fieldCond } = fieldPositions(task);
+  const omitted = { excluded: 0, undefinedValue: 0, provisional: 0, saturated: 0 };
+  const total = g.cellId.length;
+  const rows = new Int32Array(total);
+  let n = 0;
+  for (let r = 0; r < total; r++) {
+    if (!g.measured[r] || fieldSlip[g.field[r]] < 0) continue;
+    if (g.excluded[r]) {
+      omitted.excluded++;
+      continue;
+    }
+    const v = g.value[r];
+    if (!Number.isFinite(v) || (fisher && Math.abs(v) > 1)) {
+      omitted.undefinedValue++;
+      continue;
+    }
+    if (g.provisional[r]) omitted.provisional++;
+    if (g.saturated[r]) omitted.saturated++;
+    rows[n++] = r;
+  }
+  return { rows: rows.subarray(0, n), omitted, fieldSlip, fieldCond };
+}
+
+/**
+ * Every statistic of a comparison, read straight from the grid's columns in a few passes over the used rows:
+ * the values of each coverslip in cell id order (and their Fisher z, computed once for the coverslip means and
+ * the bootstrap), the three histograms counted while those are gathered, the calibrations used. The same
+ * numbers as the per-row computation it replaced (tests/compare/reference-comparison.ts; checked in
+ * tests/compare/comparison-fast.test.ts).
+ */
+export function comparisonFrom(task: CompareTask): ComparisonHead {
+  const { opts, conds, slips, studyId } = task;
+  const g = task.grid;
   const coefficient = opts.coefficient;
   const entry = byKey(coefficient);
   const fisher = entry.fisherZ;
 
-  const condPos = denseIndex(conds.map((c) => c.id));
-  const { omitted, rowSlip, counts, usedRows } = selectRows(input);
+  const { rows: usedRows, omitted, fieldSlip, fieldCond } = usedRowsOf(task);
   const nUsed = usedRows.length;
 
-  // ---- coverslip level (values in cell id order)
-  const slipValues = slips.map((_, i) => new Float64Array(counts[i]));
-  counts.fill(0);
+  // ---- one pass: cells per coverslip, the histograms' ranges, the calibrations used
+  const counts = new Int32Array(slips.length);
+  const value = g.value;
+  const hists = [
+    { key: 'coefficient' as const, label: entry.label, column: value, range: entry.axis ? ([entry.axis[0], entry.axis[1]] as [number, number]) : null },
+    { key: 'mean1' as const, label: 'mean intensity, channel 1', column: g.mean1, range: null },
+    { key: 'mean2' as const, label: 'mean intensity, channel 2', column: g.mean2, range: null },
+  ].map((h) => ({ ...h, any: false, lo: h.range ? h.range[0] : Infinity, hi: h.range ? h.range[1] : -Infinity }));
+  const calibrationsUsed = new Set<number>();
+  let lastCalibration = NaN;
   for (let k = 0; k < nUsed; k++) {
     const r = usedRows[k];
-    const i = rowSlip[r];
-    slipValues[i][counts[i]++] = input.value[r];
+    counts[fieldSlip[g.field[r]]]++;
+    const id = g.calibration[r];
+    if (id !== lastCalibration) {
+      calibrationsUsed.add(Number.isNaN(id) ? 0 : id);
+      lastCalibration = id;
+    }
   }
+  for (const h of hists) {
+    const col = h.column;
+    if (h.range) {
+      for (let k = 0; k < nUsed && !h.any; k++) if (Number.isFinite(col[usedRows[k]])) h.any = true;
+      continue;
+    }
+    let lo = Infinity, hi = -Infinity, any = false;
+    for (let k = 0; k < nUsed; k++) {
+      const v = col[usedRows[k]];
+      if (!Number.isFinite(v)) continue;
+      any = true;
+      lo = v < lo ? v : lo;
+      hi = v > hi ? v : hi;
+    }
+    Object.assign(h, { lo, hi, any });
+  }
+
+  // ---- the second pass: each coverslip's values (and z) in cell id order; the histograms' counts
   /** analysis scale: z for correlation coefficients */
-  const fwd = (v: number) => (fisher ? fisherZ(v) : v);
   const back = (v: number) => (fisher ? Math.tanh(v) : v);
+  const slipValues = slips.map((_, i) => new Float64Array(counts[i]));
+  const slipZ = fisher ? slips.map((_, i) => new Float64Array(counts[i])) : slipValues;
+  const bins = hists.map((h) => {
+    if (!h.any) return null;
+    const edges = equalEdges(h.lo, h.hi, opts.bins);
+    // as `histogram` (shared/stats/histogram.ts) bins a value: the range and width from the edges
+    const nb = edges.length - 1;
+    const lo = edges[0], hi = edges[nb];
+    return { edges, nb, lo, hi, w: (hi - lo) / nb, counts: new Int32Array(conds.length * nb) };
+  });
+  counts.fill(0);
+  const [hv, h1, h2] = bins;
+  const m1 = g.mean1, m2 = g.mean2;
+  for (let k = 0; k < nUsed; k++) {
+    const r = usedRows[k];
+    const f = g.field[r];
+    const i = fieldSlip[f];
+    const v = value[r];
+    const at = counts[i]++;
+    slipValues[i][at] = v;
+    if (fisher) slipZ[i][at] = fisherZ(v);
+    const c = fieldCond[f];
+    if (hv) countBin(hv, c, v);
+    if (h1) countBin(h1, c, m1[r]);
+    if (h2) countBin(h2, c, m2[r]);
+  }
+
+  // ---- coverslip level
   const slipMeanZ = new Map<number, number>();
   const coverslips: CoverslipStats[] = slips.map((s, i) => {
     const vals = slipValues[i];
     let m: number | null = null;
     if (vals.length) {
-      const z = mean(vals.map(fwd));
+      const z = mean(slipZ[i]);
       slipMeanZ.set(s.id, z);
       m = back(z);
     }
@@ -212,14 +261,14 @@ export function comparisonFrom(input: CompareInput): ComparisonHead {
     return { id: s.id, name: s.name, replicate: s.replicate, conditionId: s.conditionId, colorIndex: i, nCells: vals.length, mean: nn(m), meanZ, median: vals.length ? nn(median(vals)) : null, sd: vals.length > 1 ? nn(sd(vals)) : null };
   });
 
-  // ---- bootstrap (coverslips, then cells)
-  const hierarchy = conds.map((c) => slips.flatMap((s, i) => (s.conditionId === c.id ? [slipValues[i]] : [])));
+  // ---- bootstrap (coverslips, then cells), on the z values computed above
+  const hierarchy = conds.map((c) => slips.flatMap((s, i) => (s.conditionId === c.id ? [slipZ[i]] : [])));
   // work budget: resamples × cells drawn one by one ≤ 5e7 (about half a second on one core), but never fewer
   // than 500 resamples; coverslips above NORMAL_ABOVE cost one draw a resample, not one per cell
   let nExact = 0;
   for (const v of slipValues) if (v.length <= NORMAL_ABOVE) nExact += v.length;
   const resamples = Math.max(Math.min(opts.resamples, 500), Math.min(opts.resamples, Math.floor(BOOTSTRAP_BUDGET / Math.max(1, nExact))));
-  const boot = hierarchicalBootstrap(hierarchy, { seed: opts.seed, resamples, confidence: opts.confidence, transform: fisher ? 'fisher_z' : 'identity', normalAbove: NORMAL_ABOVE });
+  const boot = hierarchicalBootstrap(hierarchy, { seed: opts.seed, resamples, confidence: opts.confidence, transform: fisher ? 'fisher_z' : 'identity', normalAbove: NORMAL_ABOVE, transformed: true });
 
   const slipMeansByCond = conds.map((c) => slips.filter((s) => s.conditionId === c.id && slipMeanZ.has(s.id)).map((s) => slipMeanZ.get(s.id)!));
   const conditions: ConditionStats[] = conds.map((c, i) => {
@@ -262,72 +311,40 @@ export function comparisonFrom(input: CompareInput): ComparisonHead {
     push(kruskalWallis(withData.map((g) => g.ms)));
   }
 
-  // ---- histograms
+  // ---- histograms (counted in the second pass)
   const histograms: HistogramSet[] = [];
-  const usedCond = new Int32Array(nUsed);
-  for (let k = 0; k < nUsed; k++) usedCond[k] = condPos(input.conditionId[usedRows[k]]);
-  const addHist = (key: HistogramSet['key'], label: string, column: Float64Array, range: [number, number] | null) => {
-    const col = new Float64Array(nUsed);
-    for (let k = 0; k < nUsed; k++) col[k] = column[usedRows[k]];
-    let any = false;
-    let [lo, hi] = range ?? [Infinity, -Infinity];
-    for (let k = 0; k < nUsed; k++) {
-      const v = col[k];
-      if (!Number.isFinite(v)) continue;
-      any = true;
-      if (!range) (lo = v < lo ? v : lo), (hi = v > hi ? v : hi);
-    }
-    if (!any) return;
-    const edges = equalEdges(lo, hi, opts.bins);
-    // each condition's values (NULL, i.e. NaN, left out as the SQL rows' nulls were), in cell id order
-    const perCond = new Int32Array(conds.length);
-    for (let k = 0; k < nUsed; k++) if (!Number.isNaN(col[k])) perCond[usedCond[k]]++;
-    const vals = conds.map((_, i) => new Float64Array(perCond[i]));
-    perCond.fill(0);
-    for (let k = 0; k < nUsed; k++) {
-      if (Number.isNaN(col[k])) continue;
-      const c = usedCond[k];
-      vals[c][perCond[c]++] = col[k];
-    }
-    const byCondition = conds.map((c, i) => ({ conditionId: c.id, counts: histogram(vals[i], edges).counts }));
+  hists.forEach((h, j) => {
+    const hb = bins[j];
+    if (!hb) return;
+    const { edges, nb } = hb;
+    const byCondition = conds.map((c, i) => ({ conditionId: c.id, counts: Array.from(hb.counts.subarray(i * nb, (i + 1) * nb)) }));
     const width = edges[1] - edges[0];
     const similarity = triangleSimilarity(edges.length - 1, QUADRATIC_CHI.similarityBins);
     const distances: HistogramSet['distances'] = [];
     for (let a = 0; a < conds.length; a++)
       for (let b = a + 1; b < conds.length; b++) {
-        const [ha, hb] = [byCondition[a].counts, byCondition[b].counts];
+        const [ha, hb2] = [byCondition[a].counts, byCondition[b].counts];
         distances.push({
           a: conds[a].id,
           b: conds[b].id,
-          chiSquared: nn(chiSquaredDistance(ha, hb)),
-          emd: nn(earthMoversDistance(ha, hb, width)),
-          quadraticChiS: nn(quadraticChiDistance(ha, hb, similarity, QUADRATIC_CHI.mS)),
-          quadraticChiN: nn(quadraticChiDistance(ha, hb, similarity, QUADRATIC_CHI.mN)),
+          chiSquared: nn(chiSquaredDistance(ha, hb2)),
+          emd: nn(earthMoversDistance(ha, hb2, width)),
+          quadraticChiS: nn(quadraticChiDistance(ha, hb2, similarity, QUADRATIC_CHI.mS)),
+          quadraticChiN: nn(quadraticChiDistance(ha, hb2, similarity, QUADRATIC_CHI.mN)),
         });
       }
-    histograms.push({ key, label, edges, byCondition, distances });
-  };
-  addHist('coefficient', entry.label, input.value, entry.axis ? [entry.axis[0], entry.axis[1]] : null);
-  addHist('mean1', 'mean intensity, channel 1', input.mean1, null);
-  addHist('mean2', 'mean intensity, channel 2', input.mean2, null);
+    histograms.push({ key: h.key, label: h.label, edges, byCondition, distances });
+  });
 
   // ---- warnings and the plain sentence
   const warnings: string[] = [];
-  if (input.source.recipeId === null) warnings.push('No measurements yet: run a recipe on this study\'s fields first.');
+  if (task.source.recipeId === null) warnings.push('No measurements yet: run a recipe on this study\'s fields first.');
   for (const c of conditions) {
     if (c.nCoverslips < 3) warnings.push(`${capitalize(c.name)} has ${plural(c.nCoverslips, 'coverslip')} with measured cells; at least 3 are needed for a replicate-level comparison to mean much.`);
   }
   if (omitted.undefinedValue) warnings.push(`${omitted.undefinedValue} cell${omitted.undefinedValue === 1 ? ' has' : 's have'} no defined ${entry.label} (for example no pixels above threshold or a constant channel) and are left out.`);
   if (omitted.excluded) warnings.push(`${omitted.excluded} excluded cell${omitted.excluded === 1 ? ' is' : 's are'} left out (reasons in the Cell table).`);
   if (omitted.provisional) warnings.push(`${omitted.provisional} cell values come from provisional measurements (a recipe not yet approved).`);
-  const calibrationsUsed = new Set<number>();
-  let lastCalibration = NaN;
-  for (let k = 0; k < nUsed; k++) {
-    const id = input.calibration[usedRows[k]];
-    if (id === lastCalibration) continue;
-    calibrationsUsed.add(Number.isNaN(id) ? 0 : id);
-    lastCalibration = id;
-  }
   if (calibrationsUsed.size > 1)
     warnings.push(
       `The measurements mix channel calibrations (${calibrationsUsed.size} different${calibrationsUsed.has(0) ? ', counting uncorrected cells as one' : ''}): shift and bleed-through corrections differ between cells, so differences may come from the calibration.`,
@@ -360,7 +377,7 @@ export function comparisonFrom(input: CompareInput): ComparisonHead {
     coefficient,
     label,
     averaging: fisher ? 'fisher_z' : 'arithmetic',
-    source: input.source,
+    source: task.source,
     scale: fisher ? 'fisher_z' : 'identity',
     bootstrap: { resamples: boot.resamples, seed: boot.seed, confidence: boot.confidence, normalAbove: boot.normalAbove, normalCoverslips: boot.normalCoverslips },
     coverslips,
@@ -368,6 +385,8 @@ export function comparisonFrom(input: CompareInput): ComparisonHead {
     effects,
     tests,
     histograms,
+    pointsTotal: nUsed,
+    pointsSample: null,
     omitted,
     warnings,
     summary,
@@ -376,89 +395,30 @@ export function comparisonFrom(input: CompareInput): ComparisonHead {
   return head;
 }
 
-/**
- * The cells a comparison uses (in the chosen conditions, not excluded, value defined; for a coefficient
- * averaged through Fisher's z also |value| ≤ 1) and what was left out, with each used row's coverslip
- * position in `slips` (-1 for rows not used).
- */
-export function selectRows(input: CompareInput) {
-  const fisher = byKey(input.opts.coefficient).fisherZ;
-  const condPos = denseIndex(input.conds.map((c) => c.id));
-  const slipPos = denseIndex(input.slips.map((s) => s.id));
-  const omitted = { excluded: 0, undefinedValue: 0, provisional: 0, saturated: 0 };
-  const n = input.cellId.length;
-  const rowSlip = new Int32Array(n).fill(-1);
-  const counts = new Int32Array(input.slips.length);
-  let nUsed = 0;
-  for (let r = 0; r < n; r++) {
-    if (condPos(input.conditionId[r]) < 0) continue;
-    if (input.excluded[r]) {
-      omitted.excluded++;
-      continue;
-    }
-    const v = input.value[r];
-    if (!Number.isFinite(v) || (fisher && Math.abs(v) > 1)) {
-      omitted.undefinedValue++;
-      continue;
-    }
-    if (input.provisional[r]) omitted.provisional++;
-    if (input.saturated[r]) omitted.saturated++;
-    const i = slipPos(input.coverslipId[r]);
-    rowSlip[r] = i;
-    counts[i]++;
-    nUsed++;
-  }
-  const usedRows = new Int32Array(nUsed);
-  for (let r = 0, k = 0; r < n; r++) if (rowSlip[r] >= 0) usedRows[k++] = r;
-  return { omitted, rowSlip, counts, usedRows };
-}
-
-/**
- * The comparison's points straight from the grid's columns, in one pass: the rows `inputFromGrid` + `selectRows`
- * use (measured, in a chosen condition, not excluded, value defined), without building the other columns.
- */
+/** The comparison's points (the rows `usedRowsOf` picks) straight from the grid's columns. */
 export function pointsFromGrid(task: CompareTask): PointColumns {
   const g = task.grid;
-  const fisher = byKey(task.opts.coefficient).fisherZ;
-  const condIds = new Set(task.conds.map((c) => c.id));
-  const inCond = Uint8Array.from(g.conditionId, (id) => (condIds.has(id) ? 1 : 0));
-  const total = g.cellId.length;
-  const use = (r: number) => {
-    if (!g.measured[r] || !inCond[g.field[r]] || g.excluded[r]) return false;
-    const v = g.value[r];
-    return Number.isFinite(v) && !(fisher && Math.abs(v) > 1);
-  };
-  let m = 0;
-  for (let r = 0; r < total; r++) if (use(r)) m++;
+  const { rows } = usedRowsOf(task);
+  const m = rows.length;
   const p: PointColumns = { cellId: new Int32Array(m), fieldId: new Int32Array(m), coverslipId: new Int32Array(m), conditionId: new Int32Array(m), value: new Float64Array(m) };
-  for (let r = 0, k = 0; r < total; r++) {
-    if (!use(r)) continue;
+  for (let k = 0; k < m; k++) {
+    const r = rows[k];
     const f = g.field[r];
     p.cellId[k] = g.cellId[r];
     p.fieldId[k] = g.fieldId[f];
     p.coverslipId[k] = g.coverslipId[f];
     p.conditionId[k] = g.conditionId[f];
     p.value[k] = g.value[r];
-    k++;
   }
   return p;
 }
 
-/** The comparison's points as columns (`Comparison.points`, in cell id order). */
-export function pointsOf(input: CompareInput): PointColumns {
-  const { usedRows } = selectRows(input);
-  const pick = <T extends Int32Array | Float64Array>(col: T, out: T): T => {
-    for (let k = 0; k < usedRows.length; k++) out[k] = col[usedRows[k]];
-    return out;
-  };
-  const m = usedRows.length;
-  return {
-    cellId: pick(input.cellId, new Int32Array(m)),
-    fieldId: pick(input.fieldId, new Int32Array(m)),
-    coverslipId: pick(input.coverslipId, new Int32Array(m)),
-    conditionId: pick(input.conditionId, new Int32Array(m)),
-    value: pick(input.value, new Float64Array(m)),
-  };
+/** Counts v in its condition's bin as `histogram` does: finite values within the edges only. */
+function countBin(h: { nb: number; lo: number; hi: number; w: number; counts: Int32Array }, cond: number, v: number) {
+  if (!Number.isFinite(v) || v < h.lo || v > h.hi) return;
+  let b = Math.floor((v - h.lo) / h.w);
+  if (b >= h.nb) b = h.nb - 1;
+  h.counts[cond * h.nb + b]++;
 }
 
 /** id → position in `ids` (-1 when absent): a table when the ids are small, else a map. */
@@ -471,6 +431,87 @@ function denseIndex(ids: number[]): (id: number) => number {
   }
   const m = new Map(ids.map((id, i) => [id, i]));
   return (id) => m.get(id) ?? -1;
+}
+
+/**
+ * At most `max` of the points (all when there are no more), stratified by coverslip: each coverslip gets its
+ * share q of `max` by largest remainders, at least two (all of its cells when it has fewer); of its n cells
+ * (in cell id order) it keeps the lowest and the highest value (the first cell on ties, so the plot's value
+ * axis is the one all points give) and q − 2 more at positions ⌊(t + ½)·n/(q − 2)⌋, t = 0 … q − 3 (evenly
+ * spaced; one fewer each time such a position is the lowest or highest cell). Deterministic (no seed); the
+ * result is in cell id order like the input. Our method.
+ */
+export function samplePoints(p: PointColumns, max: number): { points: PointColumns; sampled: boolean } {
+  const n = p.cellId.length;
+  if (n <= max) return { points: p, sampled: false };
+  // the rows of each coverslip, in cell id order
+  const slipOf = new Map<number, number>();
+  const slipRow = new Int32Array(n);
+  const counts: number[] = [];
+  for (let k = 0; k < n; k++) {
+    let j = slipOf.get(p.coverslipId[k]);
+    if (j === undefined) slipOf.set(p.coverslipId[k], (j = counts.push(0) - 1));
+    slipRow[k] = j;
+    counts[j]++;
+  }
+  const m = counts.length;
+  const starts = new Int32Array(m + 1);
+  for (let j = 0; j < m; j++) starts[j + 1] = starts[j] + counts[j];
+  const rows = new Int32Array(n);
+  const fill = starts.slice(0, m);
+  for (let k = 0; k < n; k++) rows[fill[slipRow[k]]++] = k;
+  // quotas: floors of the shares, the rest by largest remainder (first coverslip first on ties), then at least
+  // min(2, cells) each, taken from the largest quotas
+  const quota = counts.map((c) => Math.floor((max * c) / n));
+  const order = counts.map((_, j) => j).sort((a, b) => (max * counts[b]) % n - (max * counts[a]) % n || a - b);
+  for (let left = max - quota.reduce((s, q) => s + q, 0), i = 0; left > 0; left--, i++) quota[order[i % m]]++;
+  for (let j = 0; j < m; j++) {
+    const want = Math.min(2, counts[j]);
+    while (quota[j] < want) {
+      let big = 0;
+      for (let i = 1; i < m; i++) if (quota[i] > quota[big]) big = i;
+      if (quota[big] <= 2) break;
+      quota[big]--;
+      quota[j]++;
+    }
+  }
+  const picked = new Uint8Array(n);
+  for (let j = 0; j < m; j++) {
+    const c = counts[j];
+    const q = Math.min(quota[j], c);
+    if (q <= 0) continue;
+    const own = rows.subarray(starts[j], starts[j + 1]);
+    if (q >= c || q === 1) {
+      // all of them; or one, the middle cell (only when there are more coverslips than max / 2)
+      if (q === 1 && c > 1) picked[own[c >> 1]] = 1;
+      else for (let i = 0; i < c; i++) picked[own[i]] = 1;
+      continue;
+    }
+    // the lowest and highest value (the first cell on ties), then the rest evenly spaced in cell id order
+    let lo = 0, hi = 0;
+    for (let i = 1; i < c; i++) {
+      const v = p.value[own[i]];
+      if (v < p.value[own[lo]]) lo = i;
+      if (v > p.value[own[hi]]) hi = i;
+    }
+    picked[own[lo]] = 1;
+    picked[own[hi]] = 1;
+    const rest = q - (lo === hi ? 1 : 2);
+    for (let t = 0; t < rest; t++) picked[own[Math.floor(((t + 0.5) * c) / rest)]] = 1;
+  }
+  let total = 0;
+  for (let k = 0; k < n; k++) total += picked[k];
+  const out: PointColumns = { cellId: new Int32Array(total), fieldId: new Int32Array(total), coverslipId: new Int32Array(total), conditionId: new Int32Array(total), value: new Float64Array(total) };
+  for (let k = 0, i = 0; k < n; k++) {
+    if (!picked[k]) continue;
+    out.cellId[i] = p.cellId[k];
+    out.fieldId[i] = p.fieldId[k];
+    out.coverslipId[i] = p.coverslipId[k];
+    out.conditionId[i] = p.conditionId[k];
+    out.value[i] = p.value[k];
+    i++;
+  }
+  return { points: out, sampled: true };
 }
 
 /** The points as `Comparison.points` lists them. */

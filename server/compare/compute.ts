@@ -12,7 +12,7 @@ import { fileURLToPath } from 'node:url';
 import { Piscina } from 'piscina';
 import type { AppContext } from '../context.js';
 import { badRequest } from '../http/errors.js';
-import { CompareQuery, type CompareOptions, type Comparison, type ComparisonHead } from '../../shared/schemas/compare.js';
+import { COMPARE_POINTS_MAX, CompareQuery, type CompareOptions, type Comparison, type ComparisonHead } from '../../shared/schemas/compare.js';
 import { gridCacheOf } from './grid-cache.js';
 import type { GridIndex } from './grid-index.js';
 import { resolveSource } from './source.js';
@@ -23,7 +23,8 @@ export { MEAN_MEDIAN_GAP, BOOTSTRAP_BUDGET, NORMAL_ABOVE, meanMedianGaps, capita
 
 const COMPARE_WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'compare-worker.ts');
 
-/** A computed comparison: its JSON (the response body, in parts), its head and its points as columns. */
+/** A computed comparison: its JSON (the response body, in parts; points sampled above COMPARE_POINTS_MAX), its
+ * head and every point as columns. */
 export interface CachedComparison {
   json: Uint8Array[];
   head: ComparisonHead;
@@ -130,7 +131,8 @@ export async function cachedComparison(ctx: AppContext, studyId: number, options
     parts = Promise.all([run<ComparisonHead>('head'), run<PointsResult>('points')]);
   }
   p = parts.then(([head, pts]) => {
-    const json = comparisonJsonParts(head, pts.json);
+    // the answer names its sample; the head kept here (reports, the CSVs) goes with every point
+    const json = comparisonJsonParts({ ...head, pointsSample: pts.sampled ? { method: 'coverslip_even', max: COMPARE_POINTS_MAX } : null }, pts.json);
     cache.bytes.set(key, pts.json.byteLength + pts.points.cellId.length * 24);
     return { json, head, points: pts.points };
   });

@@ -38,6 +38,10 @@ export type CompareOptions = Partial<Omit<CompareQuery, 'coefficient'>> & { coef
 
 const Num = z.number().nullable();
 
+/** Most points GET …/compare lists (a stratified sample beyond; `Comparison.pointsSample`). Our choice: as many
+ * as the Compare page draws (MAX_DRAWN_POINTS). */
+export const COMPARE_POINTS_MAX = 20000;
+
 export const ComparePoint = z.object({
   cellId: z.number().int(),
   fieldId: z.number().int(),
@@ -161,7 +165,16 @@ export const Comparison = z.object({
     /** how many coverslips that was (absent in older reports) */
     normalCoverslips: z.number().int().optional(),
   }),
+  /** the included cells (not excluded, value defined), in cell id order: every one, or when `pointsSample` is
+   * set a sample of them (GET …/compare above COMPARE_POINTS_MAX cells; the cells CSV and reports list every one) */
   points: z.array(ComparePoint),
+  /** how many cells the comparison includes, the number every statistic uses (absent in reports made before
+   * it was recorded: then `points.length`) */
+  pointsTotal: z.number().int().optional(),
+  /** null when `points` lists every included cell; else how they were sampled (server/compare/comparison.ts
+   * `samplePoints`): each coverslip gets its share of `max` points (at least two, all when it has fewer): its
+   * lowest and highest value and the rest evenly spaced in cell id order. Absent in older reports. */
+  pointsSample: z.object({ method: z.literal('coverslip_even'), max: z.number().int() }).nullable().optional(),
   coverslips: z.array(CoverslipStats),
   conditions: z.array(ConditionStats),
   effects: z.array(Effect),

@@ -37,6 +37,10 @@ export interface HierarchicalBootstrapOptions {
   transform?: 'identity' | 'fisher_z';
   /** coverslips with more cells than this draw their cell-level resample from its normal limit (above) */
   normalAbove?: number;
+  /** the values are already on the transform's scale (z = fisherZ(r), computed by the caller, who needs them
+   * too): they are used as given (not copied), and estimates and intervals still come back on the r scale. The
+   * same numbers as passing the untransformed values. */
+  transformed?: boolean;
 }
 
 export interface Interval {
@@ -71,13 +75,17 @@ export function hierarchicalBootstrap(conditions: Hierarchy[], opts: Hierarchica
   if (!(conf > 0 && conf < 1)) throw new RangeError(`confidence must be in (0, 1), received ${conf}`);
   const normalAbove = opts.normalAbove ?? Infinity;
   if (!(normalAbove >= 1)) throw new RangeError(`normalAbove must be at least 1, received ${opts.normalAbove}`);
-  const fwd = transform === 'fisher_z' ? fisherZ : (v: number) => v;
+  const fwd = transform === 'fisher_z' && !opts.transformed ? fisherZ : (v: number) => v;
   const back = transform === 'fisher_z' ? Math.tanh : (v: number) => v;
 
   // transformed, non-empty coverslips per condition
   const data: Float64Array[][] = conditions.map((cond, ci) =>
     cond
       .map((cs, si) => {
+        if (opts.transformed && cs instanceof Float64Array) {
+          for (let i = 0; i < cs.length; i++) if (!Number.isFinite(cs[i])) throw new RangeError(`condition ${ci + 1}, coverslip ${si + 1}: value ${cs[i]} at index ${i} is not finite`);
+          return cs;
+        }
         const out = new Float64Array(cs.length);
         for (let i = 0; i < cs.length; i++) {
           const v = cs[i];

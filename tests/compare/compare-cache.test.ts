@@ -2,7 +2,7 @@
  * Compare computed in threads from the grid index and cached per data version (server/compare/compute.ts).
  * The reference is the comparison's definition as it was computed before the move: the cells of the SQL query
  * Compare ran on the web thread (every ready, undeleted cell of the study with its source measurement), handed
- * to the same pure computation (server/compare/comparison.ts) on this thread. The answer served from the
+ * to the computation as it was then (tests/compare/reference-comparison.ts) on this thread. The answer served from the
  * cache must equal a fresh one, and a write (an exclusion, a restore, a run's measurement) must move it.
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -10,7 +10,8 @@ import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements, type Seeded } from './seed.js';
 import { Comparison, CompareQuery, type ComparisonHead } from '../../shared/schemas/compare.js';
 import { byKey } from '../../shared/coefficients.js';
-import { comparisonFrom, pointList, pointsJson, pointsOf, type CompareInput } from '../../server/compare/comparison.js';
+import { pointList, pointsJson } from '../../server/compare/comparison.js';
+import { comparisonFrom, pointsOf, type CompareInput } from './reference-comparison.js';
 import { measurementJoin, resolveSource } from '../../server/compare/source.js';
 
 let t: TestApp;
@@ -100,7 +101,7 @@ function fresh(query: Record<string, unknown>) {
   delete head.generatedAt;
   const p = pointsOf(input);
   const points = Array.from(p.cellId, (cellId, k) => ({ cellId, fieldId: p.fieldId[k], coverslipId: p.coverslipId[k], conditionId: p.conditionId[k], value: p.value[k] }));
-  return { ...head, points };
+  return { ...head, points, pointsTotal: points.length, pointsSample: null };
 }
 
 const url = (q: string) => `/api/studies/${t.world.studyA}/compare?${q}`;

@@ -2,6 +2,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { makeTestApp, type TestApp } from '../utils/app.js';
 import { seedMeasurements } from './seed.js';
+import { COMPARE_POINTS_MAX } from '../../shared/schemas/compare.js';
 
 let t: TestApp;
 let bio: Awaited<ReturnType<TestApp['login']>>;
@@ -43,7 +44,11 @@ describe('cell table at 100,000 cells', () => {
     const res = await bio.get(`/api/studies/${t.world.studyA}/compare?coefficient=pearson`);
     const ms = performance.now() - t0;
     expect(res.status).toBe(200);
-    expect(res.body.points).toHaveLength(100000);
+    expect(res.body.pointsTotal).toBe(100000);
+    // the answer lists a stated sample of the points (the statistics and the cells CSV use every cell)
+    expect(res.body.points.length).toBeLessThanOrEqual(COMPARE_POINTS_MAX);
+    expect(res.body.points.length).toBeGreaterThan(COMPARE_POINTS_MAX - 20);
+    expect(res.body.pointsSample).toEqual({ method: 'coverslip_even', max: COMPARE_POINTS_MAX });
     console.log(`[compare 100k] ${Math.round(ms)} ms with ${res.body.bootstrap.resamples} resamples`);
   }, 60000);
 });

@@ -43,6 +43,14 @@ describe('SuperPlot', () => {
     expect(html).toContain(c.summary.replace(/'/g, '&#x27;').replace(/"/g, '&quot;').slice(0, 40));
   });
 
+  it('says when the answer lists a sample of the cells, counting every cell', () => {
+    expect(renderToStaticMarkup(<SuperPlot data={c} />)).not.toContain('drawing');
+    const sampled: Comparison = { ...c, pointsTotal: 1_234_567, pointsSample: { method: 'coverslip_even', max: 20000 } };
+    const html = renderToStaticMarkup(<SuperPlot data={sampled} />);
+    expect(html.split('data-layer="cells"')[1].split('</g>')[0].match(/<circle/g)?.length).toBe(33);
+    expect(html).toContain('drawing 33 of 1,234,567 cells (in each coverslip its share: lowest, highest and evenly spaced cells); statistics use all');
+  });
+
   it('places the higher condition mean higher on the page (SVG y grows downward)', () => {
     const html = renderToStaticMarkup(<SuperPlot data={c} />);
     // the mean bar is the condition group's only line with stroke-width 3

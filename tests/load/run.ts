@@ -173,8 +173,8 @@ async function main() {
   await gridTarget('grid: cursor (keyset) pages after deep pages', gridCursors);
 
   // ---- Compare (2,000-resample hierarchical bootstrap, every cell): computed in threads, cached per data version.
-  // The client is a separate process (a million points are ~80 MB of JSON it must not parse on the server's
-  // event loop). The first request starts the threads; later ones with a new seed are cold (nothing cached);
+  // The client is a separate process (reading the answers must not share the server's event loop; the answer
+  // lists at most COMPARE_POINTS_MAX points, ~1.6 MB). The first request starts the threads; later ones with a new seed are cold (nothing cached);
   // meanwhile /api/health is asked at 10 connections.
   {
     const client = `const http = require('node:http');

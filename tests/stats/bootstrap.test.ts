@@ -54,6 +54,17 @@ describe('hierarchicalBootstrap', () => {
     for (const c of r.conditions) expect(Math.abs(c.upper!)).toBeLessThanOrEqual(1);
   });
 
+  it('given values already on the z scale (`transformed`), gives exactly the result of the r values', () => {
+    const rng = new Xoshiro128(9);
+    // coverslips of 3 to 1,400 cells (above and below normalAbove), r in (−0.3, 0.99)
+    const conds = [[3, 1400, 60], [1200, 5], [700]].map((sizes) => sizes.map((n) => Array.from({ length: n }, () => Math.min(0.99, rng.nextFloat() * 1.3 - 0.3))));
+    const z = conds.map((c) => c.map((cs) => Float64Array.from(cs, (v) => Math.atanh(v))));
+    const opts = { seed: 5, resamples: 400, transform: 'fisher_z' as const, normalAbove: 1000 };
+    const fromR = hierarchicalBootstrap(conds, opts);
+    expect(hierarchicalBootstrap(z, { ...opts, transformed: true })).toEqual(fromR);
+    expect(fromR.normalCoverslips).toBe(2);
+  });
+
   it('covers the known difference at close to the nominal 95% on simulated hierarchical data', () => {
     // 300 simulated experiments: 8 coverslips × 20 cells per condition, coverslip sd 0.05, cell sd 0.15,
     // true difference 0.1. Saravanan et al. (2020) report the two-stage bootstrap as near-nominal to

@@ -83,7 +83,7 @@ export function Component() {
         <Loading label="Computing the comparison…" />
       ) : cmp.isError ? (
         <ErrorNotice error={cmp.error} />
-      ) : cmp.data.points.length === 0 ? (
+      ) : (cmp.data.pointsTotal ?? cmp.data.points.length) === 0 ? (
         <EmptyState title="No measured cells yet">Run a recipe on this study's fields; the comparison appears here once cells have measurements.</EmptyState>
       ) : (
         <ComparePanel data={cmp.data} fileBase={studyName.replace(/[^A-Za-z0-9_-]+/g, '-')} csvQuery={q.toString()} />

@@ -15,12 +15,14 @@ export function ComparePanel({ data, fileBase, csvQuery }: { data: Comparison; f
   const name = `${fileBase}-${data.coefficient}`;
   /** cells whose values come from a run with a recipe version that was not approved */
   const provisional = data.omitted.provisional;
+  /** every included cell (`points` may be a sample of them) */
+  const total = data.pointsTotal ?? data.points.length;
   return (
     <div className="space-y-6">
       {provisional > 0 && (
         <p className="flex max-w-4xl flex-wrap items-center gap-2 text-sm text-ink-soft" data-testid="compare-provisional">
           <ProvisionalBadge />
-          {provisional === data.points.length ? 'Every value here comes' : `${provisional.toLocaleString('en')} of ${data.points.length.toLocaleString('en')} values come`} from provisional
+          {provisional === total ? 'Every value here comes' : `${provisional.toLocaleString('en')} of ${total.toLocaleString('en')} values come`} from provisional
           measurements (a recipe version not yet approved); the numbers may change.
         </p>
       )}

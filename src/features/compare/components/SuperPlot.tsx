@@ -9,7 +9,7 @@ import { forwardRef, useMemo } from 'react';
 import { byKey } from '@shared/coefficients';
 import { plotDomain } from '../lib/plotDomain';
 import { scaleBand, scaleLinear, symbol, symbolCircle, symbolCross, symbolDiamond, symbolSquare, symbolStar, symbolTriangle, symbolWye, type SymbolType } from 'd3';
-import type { Comparison } from '@shared/schemas/compare';
+import { COMPARE_POINTS_MAX, type Comparison } from '@shared/schemas/compare';
 import { coverslipColor, coverslipMarker, type Marker } from '../lib/palette';
 import { plural } from '@shared/format/plural';
 import { formatMagnitude, formatTick } from '@shared/format/number';
@@ -25,8 +25,10 @@ const SYMBOLS: Record<Marker, SymbolType> = {
   wye: symbolWye,
 };
 
-/** Most points drawn; beyond this a fixed, even subsample per coverslip is drawn (statistics use all cells). */
-export const MAX_DRAWN_POINTS = 20000;
+/** Most points drawn; beyond this an even subsample is drawn (statistics use all cells). The Compare answer
+ * itself lists at most as many (COMPARE_POINTS_MAX, a sample stratified by coverslip); report snapshots list
+ * every cell. */
+export const MAX_DRAWN_POINTS = COMPARE_POINTS_MAX;
 
 /** Deterministic jitter in [−1, 1] from an id (integer hash; common practice). */
 function jitter(id: number) {
@@ -64,6 +66,8 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
     return { x, y, drawn, ticks: y.ticks(6) };
   }, [data, iw, ih]);
 
+  /** every included cell (the answer may list a sample of them) */
+  const total = data.pointsTotal ?? data.points.length;
   const slip = new Map(data.coverslips.map((s) => [s.id, s]));
   const slipsOf = (condId: number) => data.coverslips.filter((s) => s.conditionId === condId);
   const bw = x.bandwidth();
@@ -159,9 +163,9 @@ export const SuperPlot = forwardRef<SVGSVGElement, SuperPlotProps>(function Supe
           </g>
         ))}
       </g>
-      {drawn.length < data.points.length && (
+      {drawn.length < total && (
         <text x={width - m.right} y={height - 6} textAnchor="end" fontSize={10} fill="#5f6b74">
-          {`drawing ${drawn.length} of ${plural(data.points.length, 'cell')}; statistics use all`}
+          {`drawing ${drawn.length.toLocaleString('en')} of ${plural(total, 'cell')}${data.pointsSample ? ' (in each coverslip its share: lowest, highest and evenly spaced cells)' : ''}; statistics use all`}
         </text>
       )}
     </svg>
