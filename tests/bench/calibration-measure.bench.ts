@@ -12,26 +12,16 @@
 import { monitorEventLoopDelay, performance } from 'node:perf_hooks';
 import { makeTestApp } from '../utils/app';
 import { tiff16 } from '../runs/helpers';
-import { Xoshiro128 } from '../../shared/analysis/prng';
 import { measureFieldShift } from '../../server/images/calibration-measure';
+import { beadField } from './bead-field';
 import { fmt } from './timing';
 
 const S = Number(process.argv[2] ?? 2048);
 const N = Math.round((2000 * S * S) / (2048 * 2048));
 const DX = 2.37, DY = -1.62;
 
-function beads(dx: number, dy: number): Uint16Array {
-  const rng = new Xoshiro128(7);
-  const noise = new Xoshiro128(dx === 0 ? 1 : 2);
-  const f = new Float32Array(S * S);
-  for (let i = 0; i < f.length; i++) f[i] = 200 + 30 * (noise.nextFloat() + noise.nextFloat() + noise.nextFloat() - 1.5);
-  for (let k = 0; k < N; k++) {
-    const cx = 4 + rng.nextFloat() * (S - 8) + dx, cy = 4 + rng.nextFloat() * (S - 8) + dy, a = 300 + 900 * rng.nextFloat();
-    for (let y = Math.max(0, Math.floor(cy - 7)); y < Math.min(S, cy + 7); y++)
-      for (let x = Math.max(0, Math.floor(cx - 7)); x < Math.min(S, cx + 7); x++) f[y * S + x] += a * Math.exp(-((x - cx) ** 2 + (y - cy) ** 2) / 4.5);
-  }
-  return Uint16Array.from(f, (v) => Math.min(65535, Math.round(v)));
-}
+/** the bead field of tests/bench/bead-field.ts at this size */
+const beads = (dx: number, dy: number) => beadField(S, dx, dy);
 
 const t = await makeTestApp();
 try {

@@ -12,26 +12,16 @@
  * clock and CPU time of this process. Run: `npm run bench` (BENCH=calibration) or
  * `npx tsx tests/bench/calibration.bench.ts [size]`.
  */
-import { alignAndUnmix, alignChannel, crossCorrelationCurves, measureShift, unmixChannels, Xoshiro128 } from '../../shared/analysis/index';
+import { alignAndUnmix, alignChannel, crossCorrelationCurves, measureShift, unmixChannels } from '../../shared/analysis/index';
 import { complexFft2dColumns, inverseRealFft2dRows } from '../../shared/analysis/fft';
+import { beadField } from './bead-field';
 import { fmt, time } from './timing';
 
 
 const S = Number(process.argv[2] ?? 2048), N = Math.round((2000 * S * S) / (2048 * 2048));
 const DX = 2.37, DY = -1.62;
-/** A bead field: N Gaussian beads (σ 1.5 px) on a background with noise; channel 2's beads displaced by (DX, DY). */
-function field(dx: number, dy: number): Uint16Array {
-  const rng = new Xoshiro128(7);
-  const noise = new Xoshiro128(dx === 0 ? 1 : 2);
-  const f = new Float32Array(S * S);
-  for (let i = 0; i < f.length; i++) f[i] = 200 + 30 * (noise.nextFloat() + noise.nextFloat() + noise.nextFloat() - 1.5);
-  for (let k = 0; k < N; k++) {
-    const cx = 4 + rng.nextFloat() * (S - 8) + dx, cy = 4 + rng.nextFloat() * (S - 8) + dy, a = 300 + 900 * rng.nextFloat();
-    for (let y = Math.max(0, Math.floor(cy - 7)); y < Math.min(S, cy + 7); y++)
-      for (let x = Math.max(0, Math.floor(cx - 7)); x < Math.min(S, cx + 7); x++) f[y * S + x] += a * Math.exp(-((x - cx) ** 2 + (y - cy) ** 2) / 4.5);
-  }
-  return Uint16Array.from(f, (v) => Math.min(65535, Math.round(v)));
-}
+/** the bead field of tests/bench/bead-field.ts at this size */
+const field = (dx: number, dy: number) => beadField(S, dx, dy);
 const a = field(0, 0), b = field(DX, DY);
 
 let got = measureShift(a, b, S, S);
