@@ -200,6 +200,14 @@ export function pairSpots(x1: ArrayLike<number>, y1: ArrayLike<number>, x2: Arra
   const n1 = g1.size, n2 = g2.size;
   const nearest12 = nearestNeighbours(g2, x1, y1);
   const nearest21 = nearestNeighbours(g1, x2, y2);
+  return pairingMeasures(n1, n2, nearest12, nearest21, d);
+}
+
+/**
+ * The pairing measures from the nearest neighbours both ways (shared by the 2-D and 3-D pairings): a spot is
+ * paired when its nearest partner is at most d away; mutual pairs are each other's nearest and within d.
+ */
+export function pairingMeasures(n1: number, n2: number, nearest12: NearestResult, nearest21: NearestResult, d: number): PairingResult {
   let p1 = 0, p2 = 0, mutual = 0;
   for (let i = 0; i < n1; i++) {
     if (nearest12.distance[i] <= d) p1++;

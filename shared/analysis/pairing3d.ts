@@ -9,7 +9,7 @@
  * The measures and their definitions (≤ d is paired, ties to the lower index, medians, nulls) are those
  * of pairing.ts.
  */
-import { checkPairDistance, median, type NearestResult, type PairingResult } from './pairing';
+import { checkPairDistance, pairingMeasures, type NearestResult, type PairingResult } from './pairing';
 
 /** Uniform grid over fixed 3D points (already scaled), for nearest-neighbour and fixed-radius queries. */
 export class PointGrid3 {
@@ -164,23 +164,5 @@ export function pairSpots3D(
     return { index, distance };
   };
   const nearest12 = nn(g2, x1, y1, s1), nearest21 = nn(g1, x2, y2, s2);
-  let p1 = 0, p2 = 0, mutual = 0;
-  for (let i = 0; i < n1; i++) {
-    if (nearest12.distance[i] <= d) p1++;
-    const j = nearest12.index[i];
-    if (j >= 0 && nearest21.index[j] === i && nearest12.distance[i] <= d) mutual++;
-  }
-  for (let j = 0; j < n2; j++) if (nearest21.distance[j] <= d) p2++;
-  const both = n1 > 0 && n2 > 0;
-  return {
-    count1: n1,
-    count2: n2,
-    paired1: both ? p1 / n1 : null,
-    paired2: both ? p2 / n2 : null,
-    mutualPairs: both ? mutual : 0,
-    medianNearest1: both ? median(nearest12.distance) : null,
-    medianNearest2: both ? median(nearest21.distance) : null,
-    nearest12,
-    nearest21,
-  };
+  return pairingMeasures(n1, n2, nearest12, nearest21, d);
 }

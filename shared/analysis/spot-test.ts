@@ -52,6 +52,22 @@ export interface SpotTestResult {
   envelope: KEnvelope | null;
 }
 
+/**
+ * The score of one placement from each channel-1 spot's nearest channel-2 distance (Infinity when none is
+ * within reach): the paired count (≤ d) and the sum of the distances capped at d (the tie-break statistic).
+ * Shared by the 2-D and 3-D tests.
+ */
+export function pairedScore(best: Float64Array, n1: number, d: number): [number, number] {
+  let count = 0, s = 0;
+  for (let i = 0; i < n1; i++) {
+    if (best[i] <= d) {
+      count++;
+      s += best[i];
+    } else s += d;
+  }
+  return [count, s];
+}
+
 export function checkPlacements(n: number): void {
   if (!(Number.isInteger(n) && n >= 0 && n <= 1_000_000)) throw new RangeError(`placements must be an integer in [0, 1000000], received ${n}`);
 }
@@ -98,14 +114,7 @@ export function spotPlacementTest(
         if (dist < best[i]) best[i] = dist;
         for (let q = 0; q < m; q++) if (dist < radii[q]) kCounts[q]++;
       });
-    let count = 0, s = 0;
-    for (let i = 0; i < n1; i++) {
-      if (best[i] <= d) {
-        count++;
-        s += best[i];
-      } else s += d;
-    }
-    return [count, s];
+    return pairedScore(best, n1, d);
   };
   const [obsCount, obsS] = score(x2, y2);
   const kObs = Array.from(kCounts);

@@ -12,7 +12,7 @@
 import { checkPairDistance } from './pairing';
 import { checkZScale, PointGrid3 } from './pairing3d';
 import { Xoshiro128 } from './prng';
-import { checkPlacements, SPOT_TEST_DEFAULTS, type SpotTestResult } from './spot-test';
+import { checkPlacements, pairedScore, SPOT_TEST_DEFAULTS, type SpotTestResult } from './spot-test';
 
 export interface Points3 {
   x: ArrayLike<number>;
@@ -43,14 +43,7 @@ export function spotPlacementTest3D(p1: Points3, p2: Points3, region: ArrayLike<
       grid1.within(qx[j], qy[j], qz[j], d, (i, dist) => {
         if (dist < best[i]) best[i] = dist;
       });
-    let count = 0, s = 0;
-    for (let i = 0; i < n1; i++) {
-      if (best[i] <= d) {
-        count++;
-        s += best[i];
-      } else s += d;
-    }
-    return [count, s];
+    return pairedScore(best, n1, d);
   };
   const [obsCount, obsS] = score(p2.x, p2.y, Float64Array.from(p2.z, (z) => z * zScale));
   const rng = new Xoshiro128(seed);
