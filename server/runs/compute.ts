@@ -238,7 +238,10 @@ export function spotVolume(job: Pick<FieldInputs, 'fieldName' | 'pixelSizeUm' | 
   const zScale = spotZScale(job, depth);
   const a = job.settings.objects.axial;
   try {
-    const sigmaZ = spot3Options({ sigma: sigmaPx, zScale, sigmaZ: spotSigmaZSlices(job.settings.objects, sigmaPx, zScale, job.zStepUm ?? null) }).sigmaZ;
+    const given = spotSigmaZSlices(job.settings.objects, sigmaPx, zScale, job.zStepUm ?? null);
+    const from = a?.kind === 'psf' ? ` (from the axial point-spread width ${a.psfDepthUm} µm at ${a.zStepUm ?? job.zStepUm} µm between slices)` : a === null ? ` (σ ${sigmaPx} px over a slice spacing of ${zScale} pixel widths)` : '';
+    if (!(given > 0 && given <= 50)) throw new RangeError(`the spots' axial width σz must be in (0, 50] slices, received ${Number(given.toPrecision(6))}${from}`);
+    const sigmaZ = spot3Options({ sigma: sigmaPx, zScale, sigmaZ: given }).sigmaZ;
     return { pixelSizeUm: job.pixelSizeUm!, zStepUm: job.zStepUm!, zScale, sigmaZ, sigmaZFrom: a === null ? 'lateral' : a.kind, ...(a?.kind === 'psf' && { psfDepthUm: a.psfDepthUm }) };
   } catch (e) {
     throw new FieldJobError(`field "${job.fieldName}": ${(e as Error).message}`, 'recipe');
