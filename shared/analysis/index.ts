@@ -48,7 +48,7 @@ export { Xoshiro128 } from './prng';
  * Version of the numbers this engine produces; stored with every measurement. Bump it whenever a
  * coefficient, threshold or default changes its value for some input.
  */
-export const ENGINE_VERSION = 'syntopy-analysis/1.0.3';
+export const ENGINE_VERSION = 'syntopy-analysis/1.0.4';
 
 /** A region as accepted by measureRegion: a mask (Uint8Array, full size), pixel indices, a spec, or null. */
 export type RegionInput = Uint8Array | Uint32Array | Int32Array | number[] | RegionSpec;
