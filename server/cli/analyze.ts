@@ -30,6 +30,8 @@
  *    gets spots found in 3D (measureObjects3D), listed as [x, y, z] with z in slices of the stack (0-based,
  *    a slice's centre at +0.5), distances in pixel widths with z scaled by the slice spacing: `--z-step R`
  *    (z step / pixel size) or the file's OME voxel size, else an error; `objectSettings` then has `zStep`.
+ *    The axial filter width is σz = σ / zStep slices (one physical width) unless `--spot-sigma-z SLICES` gives
+ *    it (then echoed as `objectSettings.spotSigmaZ`; an error when the spots are not found in 3D).
  *  - Calibration (order: read → measure shift → align → measure bleed → unmix → measure):
  *    `--measure-shift` adds a top-level `"shift": { "dx", "dy" }` of the measured slices (channel 2 is
  *    displaced by (dx, dy): ch2(x + dx, y + dy) ≈ ch1(x, y); x right, y down, px; the whole image, z slices
@@ -81,7 +83,7 @@ export const DEFAULT_THREADS = 2;
 export class UsageError extends Error {}
 
 const USAGE =
-  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S] [--z-step R]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--threads N] [--json]';
+  'usage: npm run -s analyze -- (--ch1 A.tif --ch2 B.tif | --image X.tif --channels i,j) [--z all|N|A-B|mip|mip:A-B] [--mask LABELS.tif | --rois ROIS.json] [--threshold none|manual|otsu|costes] [--t1 N --t2 N] [--mic] [--objects [--spot-sigma PX] [--spot-k K] [--pair-distance PX] [--placements N] [--seed S] [--z-step R] [--spot-sigma-z SLICES]] [--measure-shift] [--shift DX,DY] [--bleed A21,A12] [--measure-bleed 1|2] [--threads N] [--json]';
 
 /** What `--help` / `-h` prints (stdout, exit 0). */
 export const HELP = [
@@ -102,7 +104,7 @@ export const HELP = [
   `  --mic                       also compute MICe and TICe (Reshef et al. 2016; alpha ${MIC_DEFAULTS.alpha}, c ${MIC_DEFAULTS.c}),`,
   '                              up to about 0.5 s per 20,000 pixels; adds "micE" and "ticE" to each region',
   '  --objects                   also detect spots in each channel, pair them and test against chance;',
-  '                              the six options below need --objects; on a stack measured in 3D spots are',
+  '                              the seven options below need --objects; on a stack measured in 3D spots are',
   '                              found in 3D and listed as [x, y, z] (z in slices of the stack, 0-based, a',
   '                              slice centre at +0.5); distances in pixel widths with z scaled by --z-step',
   `  --spot-sigma PX             spot scale σ in pixels, in (0, 50] (default ${OBJECT_DEFAULTS.spotSigma})`,
@@ -112,6 +114,8 @@ export const HELP = [
   `  --seed S                    seed of the placement test, an integer 0 to 4294967295 (default ${OBJECT_DEFAULTS.seed})`,
   '  --z-step R                  slice spacing in pixel widths (z step / pixel size) for spots in 3D;',
   '                              default from the file\'s voxel size (OME-XML), required when it states none',
+  '  --spot-sigma-z SLICES       axial spot scale σz in slices for spots in 3D, in (0, 50] (default σ / --z-step:',
+  '                              as wide along z as across the plane in the specimen)',
   '  --measure-shift             measure how far channel 2 is displaced from channel 1 (adds "shift": dx, dy in px)',
   '  --shift DX,DY               align first: sample channel 2 at (x + DX, y + DY); pixels that fall outside are dropped',
   '  --bleed A21,A12             remove bleed-through (after --shift): A21 of channel 1 seen in channel 2, A12 the reverse,',
@@ -167,6 +171,8 @@ export interface CliOptions {
   objects: ObjectSettings | null;
   /** --z-step: slice spacing in pixel widths for spots in 3D (null: from the file's voxel size) */
   zStep?: number | null;
+  /** --spot-sigma-z: axial spot scale in slices for spots in 3D (absent: σ / zStep) */
+  spotSigmaZ?: number;
   /** --mic: MICe and TICe with the default parameters */
   mic: boolean;
   /** --measure-shift */
@@ -213,7 +219,7 @@ export function parseZ(v: string | undefined): ZChoice {
   return { projection: m[1] ? 'mip' : null, from, to };
 }
 
-const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed', 'z-step'] as const;
+const OBJECT_FLAGS = ['spot-sigma', 'spot-k', 'pair-distance', 'placements', 'seed', 'z-step', 'spot-sigma-z'] as const;
 
 /** Reads the --objects options; each bad value is a UsageError quoting what was received. */
 function parseObjectSettings(get: (k: string) => string | undefined): ObjectSettings {
@@ -275,6 +281,7 @@ const OPTIONS = {
   seed: { type: 'string' },
   'measure-shift': { type: 'boolean' },
   'z-step': { type: 'string' },
+  'spot-sigma-z': { type: 'string' },
   shift: { type: 'string' },
   bleed: { type: 'string' },
   'measure-bleed': { type: 'string' },
@@ -370,6 +377,12 @@ export function parseCli(argv: string[]): CliOptions | 'help' {
       if (!(v > 0 && v <= 1000)) throw new UsageError(`--z-step must be the slice spacing in pixel widths (z step / pixel size), a number in (0, 1000], received ${JSON.stringify(zs)}`);
       out.zStep = v;
     }
+    const sz = s('spot-sigma-z');
+    if (sz !== undefined) {
+      const v = parseNumber(sz, '--spot-sigma-z');
+      if (!(v > 0 && v <= 50)) throw new UsageError(`--spot-sigma-z must be a number of slices in (0, 50], received ${JSON.stringify(sz)}`);
+      out.spotSigmaZ = v;
+    }
   } else {
     const given = OBJECT_FLAGS.filter((f) => s(f) !== undefined);
     if (given.length > 0) throw new UsageError(`${given.map((f) => `--${f}`).join(', ')} ${given.length === 1 ? 'applies' : 'apply'} to --objects only; add --objects or leave ${given.length === 1 ? 'it' : 'them'} out`);
@@ -418,7 +431,7 @@ export interface AnalyzeOutput {
   z: { from: number; to: number; projection: 'mip' | null };
   thresholds: ThresholdInfo;
   /** present with --objects: the settings every region's `objects` was measured with */
-  objectSettings?: ObjectSettings & { zStep?: number };
+  objectSettings?: ObjectSettings & { zStep?: number; spotSigmaZ?: number };
   /** present with --measure-shift: channel 2's displacement, ch2(x + dx, y + dy) ≈ ch1(x, y), in pixels */
   shift?: { dx: number | null; dy: number | null };
   /** present with --measure-bleed: the coefficient of the control's labelled channel */
@@ -494,6 +507,8 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       if (zStep === null)
         throw new UsageError(`--objects in 3D (${depth} z slices) needs the slice spacing: give --z-step (z step / pixel size, e.g. 2.5 for 0.1 µm pixels and 0.25 µm steps), or a file that states its voxel size`);
     }
+    if (o.spotSigmaZ !== undefined && zStep === null)
+      throw new UsageError(`--spot-sigma-z applies to spots found in 3D, but ${depth === 1 ? 'one plane is measured' : 'the spots are found in one plane'} here (received ${JSON.stringify(String(o.spotSigmaZ))}); measure several slices in 3D with --z or leave it out`);
     let regions: Region[] = [{ label: 0, indices: null }];
     if (o.mask) {
       const path = o.mask;
@@ -556,7 +571,7 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       // file) and those within the filter's reach of one are not searched in either channel
       if (zStep !== null) {
         // spots in the measured volume; z reported in slices of the stack (0-based, centre of slice at +0.5)
-        const v = measureObjects3D(ch1, ch2, width, height, depth, r.indices, { ...o.objects, zScale: zStep, missing: 'exclude' });
+        const v = measureObjects3D(ch1, ch2, width, height, depth, r.indices, { ...o.objects, zScale: zStep, spotSigmaZ: o.spotSigmaZ, missing: 'exclude' });
         const shiftZ = (p: [number, number, number][]) => p.map(([x, y, zz]): [number, number, number] => [x, y, zz + z0]);
         results.push({ label: r.label, ...rest, objects: { ...v, spots1: shiftZ(v.spots1), spots2: shiftZ(v.spots2) } });
         continue;
@@ -565,7 +580,7 @@ export async function analyze(o: CliOptions): Promise<AnalyzeOutput> {
       const objects = measureObjects(ch1, ch2, width, height, r.indices, { ...o.objects, missing: 'exclude' });
       results.push({ label: r.label, ...rest, objects });
     }
-    return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: zStep === null ? o.objects : { ...o.objects, zStep } } : {}), ...measured, regions: results };
+    return { engineVersion: ENGINE_VERSION, width, height, slices: nz, depth, z, thresholds, ...(o.objects ? { objectSettings: zStep === null ? o.objects : { ...o.objects, zStep, ...(o.spotSigmaZ !== undefined && { spotSigmaZ: o.spotSigmaZ }) } } : {}), ...measured, regions: results };
   } finally {
     await threads?.close();
   }

@@ -339,7 +339,8 @@ export async function buildSnapshot(ctx: AppContext, studyId: number, opts: Snap
     }
     const f = fieldById.get(c.fieldId)!;
     const v = o.data.volume ?? (f.pixelSizeUm && f.zStepUm ? { pixelSizeUm: f.pixelSizeUm, zStepUm: f.zStepUm, zScale: f.zStepUm / f.pixelSizeUm, sigmaZ: (o.data.sigmaPx * f.pixelSizeUm) / f.zStepUm } : null);
-    const g = { sigmaPx: o.data.sigmaPx, sigmaZ: v?.sigmaZ ?? null, zScale: v?.zScale ?? null, pixelSizeUm: v?.pixelSizeUm ?? null, zStepUm: v?.zStepUm ?? null, pairDistancePx: o.data.pairDistancePx, cells: 0 };
+    const vz = o.data.volume;
+    const g = { sigmaPx: o.data.sigmaPx, sigmaZ: v?.sigmaZ ?? null, sigmaZFrom: vz?.sigmaZFrom ?? ('lateral' as const), psfDepthUm: vz?.psfDepthUm ?? null, zScale: v?.zScale ?? null, pixelSizeUm: v?.pixelSizeUm ?? null, zStepUm: v?.zStepUm ?? null, pairDistancePx: o.data.pairDistancePx, cells: 0 };
     const key = JSON.stringify({ ...g, cells: 0 });
     const have = spotGroups.get(key) ?? spotGroups.set(key, g).get(key)!;
     have.cells++;

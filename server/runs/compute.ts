@@ -49,8 +49,9 @@ import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, 
 import { THREAD_MIN_PAIRS, type SweepThreads } from '../analysis/sweep-threads.js';
 import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
-import { pairDistancePx, spotSigmaPx, type RecipeSettings } from '../../shared/schemas/recipes.js';
+import { pairDistancePx, spotSigmaPx, spotSigmaZSlices, type RecipeSettings } from '../../shared/schemas/recipes.js';
 import type { FileStore } from '../services.js';
+import type { AppliedObjectSettings } from '../../shared/schemas/runs.js';
 import { decodeChannel } from '../images/decode.js';
 import { concatSlices, project } from '../images/projection.js';
 import type { FieldJob, FieldJobResult, MeasurementValues, SpotValues } from './job.js';
@@ -225,7 +226,26 @@ export function checkFieldInputs(job: FieldInputs, depth = measuredDepth(job.set
   const block = blockPixels(s, job.pixelSizeUm);
   if (block != null && depth > 1) blockSlices(s, job.zStepUm ?? null, `field "${job.fieldName}"`);
   const objects = objectOptions(s, job.pixelSizeUm);
-  if (objects && depth > 1) spotZScale(job, depth);
+  if (objects && depth > 1) spotVolume(job, objects.spotSigma, depth);
+}
+
+/**
+ * Spots of a field measured in 3D, as the provenance records them: the voxel size, the slice spacing in pixel
+ * widths and σz in slices (the recipe's axial width, else σ / zScale) with the rule it came from. A
+ * FieldJobError when the field lacks the voxel size or the axial width cannot be resolved.
+ */
+export function spotVolume(job: Pick<FieldInputs, 'fieldName' | 'pixelSizeUm' | 'zStepUm' | 'settings'>, sigmaPx: number, depth: number): NonNullable<AppliedObjectSettings['volume']> {
+  const zScale = spotZScale(job, depth);
+  const a = job.settings.objects.axial;
+  try {
+    const given = spotSigmaZSlices(job.settings.objects, sigmaPx, zScale, job.zStepUm ?? null);
+    const from = a?.kind === 'psf' ? ` (from the axial point-spread width ${a.psfDepthUm} µm at ${a.zStepUm ?? job.zStepUm} µm between slices)` : a === null ? ` (σ ${sigmaPx} px over a slice spacing of ${zScale} pixel widths)` : '';
+    if (!(given > 0 && given <= 50)) throw new RangeError(`the spots' axial width σz must be in (0, 50] slices, received ${Number(given.toPrecision(6))}${from}`);
+    const sigmaZ = spot3Options({ sigma: sigmaPx, zScale, sigmaZ: given }).sigmaZ;
+    return { pixelSizeUm: job.pixelSizeUm!, zStepUm: job.zStepUm!, zScale, sigmaZ, sigmaZFrom: a === null ? 'lateral' : a.kind, ...(a?.kind === 'psf' && { psfDepthUm: a.psfDepthUm }) };
+  } catch (e) {
+    throw new FieldJobError(`field "${job.fieldName}": ${(e as Error).message}`, 'recipe');
+  }
 }
 
 /**
@@ -339,8 +359,7 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
   const z = describeZ(s.z, depth);
   const objects = objectOptions(s, job.pixelSizeUm);
   // spots in 3D: the voxel size, slice spacing and axial σ recorded in the provenance (the methods paragraph states them)
-  const zScale = objects && depth > 1 ? spotZScale(job, depth) : null;
-  const volume = objects && zScale !== null ? { pixelSizeUm: job.pixelSizeUm!, zStepUm: job.zStepUm!, zScale, sigmaZ: spot3Options({ sigma: objects.spotSigma, zScale }).sigmaZ } : null;
+  const volume = objects && depth > 1 ? spotVolume(job, objects.spotSigma, depth) : null;
   const spots: SpotValues[] = [];
   // the spot filter reaches beyond each cell, so every pixel it may read needs a value
   if (objects)
@@ -443,8 +462,8 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
     const values = Object.fromEntries(COEFFICIENTS.filter(isPixelEntry).map((c) => [c.key, c.recipeChoice === null || want.has(c.recipeChoice) ? r[c.key] : null])) as CoefficientValues;
     for (const k of OBJECT_KEYS) values[k] = null;
     if (objects && depth > 1) {
-      // in 3D: σz = σ · pixel size / z step, distances in pixel widths with z scaled; z in the stack's slices (every slice is measured)
-      const a = analyzeObjects3D(raw1, raw2, width, height, depth, valued, { ...objects, zScale: zScale! });
+      // in 3D: σz from the recipe's axial width (else σ · pixel size / z step), distances in pixel widths with z scaled; z in the stack's slices (every slice is measured)
+      const a = analyzeObjects3D(raw1, raw2, width, height, depth, valued, { ...objects, zScale: volume!.zScale, spotSigmaZ: volume!.sigmaZ });
       Object.assign(values, objectMeasures(a.result as unknown as ObjectResult));
       for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)
         for (const sp of det?.spots ?? []) spots.push({ cellId: cell.id, channel, x: sp.x, y: sp.y, z: sp.z, peak: sp.peak, integrated: sp.integrated });

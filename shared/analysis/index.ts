@@ -48,7 +48,7 @@ export { Xoshiro128 } from './prng';
  * Version of the numbers this engine produces; stored with every measurement. Bump it whenever a
  * coefficient, threshold or default changes its value for some input.
  */
-export const ENGINE_VERSION = 'syntopy-analysis/1.0.3';
+export const ENGINE_VERSION = 'syntopy-analysis/1.0.4';
 
 /** A region as accepted by measureRegion: a mask (Uint8Array, full size), pixel indices, a spec, or null. */
 export type RegionInput = Uint8Array | Uint32Array | Int32Array | number[] | RegionSpec;
@@ -169,6 +169,7 @@ export { laplacianOfGaussian3D, type VoxelBox } from './gaussian3d';
 export { detectSpots3D, spot3Options, type Spot3, type Spot3Detection, type Spot3Options } from './spots3d';
 export { PointGrid3, pairSpots3D } from './pairing3d';
 export { spotPlacementTest3D } from './spot-test3d';
+export { crossK3D, lFromK3, type KWindow3 } from './ripley3d';
 export { analyzeObjects3D, measureObjects3D, type Object3Result, type Object3Options, type Object3Analysis } from './objects3d';
 export { medianAndMad } from './robust-scale';
 export { bleedThroughSlope, pooledBleedThroughSlope } from './bleed';

@@ -134,25 +134,31 @@ export function spotPlacementTest(
     if (c > obsCount || (c === obsCount && s <= obsS)) atLeast++;
     for (let q = 0; q < radii.length; q++) kRand[q][t] = kCounts[q];
   }
-  let envelope: KEnvelope | null = null;
-  if (radii.length) {
-    const scale = npix / (n1 * n2);
-    const lo: number[] = [], hi: number[] = [], mean: number[] = [], pv: number[] = [];
-    const qlo = Math.max(0, Math.ceil(0.025 * N) - 1), qhi = Math.min(N - 1, N - Math.ceil(0.025 * N));
-    for (let q = 0; q < radii.length; q++) {
-      const v = kRand[q].sort();
-      let s = 0, ge = 0;
-      for (let t = 0; t < N; t++) {
-        s += v[t];
-        if (v[t] >= kObs[q]) ge++;
-      }
-      lo.push(v[qlo] * scale);
-      hi.push(v[qhi] * scale);
-      mean.push((s / N) * scale);
-      pv.push((1 + ge) / (N + 1));
-    }
-    const observed = kObs.map((c) => c * scale);
-    envelope = { radii: [...radii], observed, L: observed.map((k) => Math.sqrt(k / Math.PI)), mean, lo, hi, pValue: pv };
-  }
+  const envelope = radii.length ? envelopeOf(radii, kObs, kRand, npix / (n1 * n2), (k) => Math.sqrt(k / Math.PI)) : null;
   return { pValue: (1 + atLeast) / (N + 1), chanceFraction1: sumFrac / N, observedPaired1: obsCount / n1, placements: N, envelope };
+}
+
+/**
+ * The K envelope from the observed and the N placements' pair counts per radius (`kRand[q]` is sorted in
+ * place): K = count × scale (the window's size over n₁n₂), the pointwise 2.5 % and 97.5 % order statistics,
+ * the mean, the add-one p per radius and L = lOf(K). Shared by the 2-D and 3-D tests.
+ */
+export function envelopeOf(radii: number[], kObs: number[], kRand: Float64Array[], scale: number, lOf: (k: number) => number): KEnvelope {
+  const N = kRand[0].length;
+  const lo: number[] = [], hi: number[] = [], mean: number[] = [], pv: number[] = [];
+  const qlo = Math.max(0, Math.ceil(0.025 * N) - 1), qhi = Math.min(N - 1, N - Math.ceil(0.025 * N));
+  for (let q = 0; q < radii.length; q++) {
+    const v = kRand[q].sort();
+    let s = 0, ge = 0;
+    for (let t = 0; t < N; t++) {
+      s += v[t];
+      if (v[t] >= kObs[q]) ge++;
+    }
+    lo.push(v[qlo] * scale);
+    hi.push(v[qhi] * scale);
+    mean.push((s / N) * scale);
+    pv.push((1 + ge) / (N + 1));
+  }
+  const observed = kObs.map((c) => c * scale);
+  return { radii: [...radii], observed, L: observed.map(lOf), mean, lo, hi, pValue: pv };
 }

@@ -19,8 +19,10 @@
  *    (0, 0, 0), so voxel (i, j, k) has its centre at (i + 0.5, j + 0.5, k + 0.5) — z in slices.
  * 5. Minimum separation: candidates in decreasing response; one closer than `minSeparation` (pixel widths,
  *    z scaled by zScale) to a kept spot is dropped.
- * Unlike the 2D detection, close spots are not refined against their neighbours' models (decided here: the
- * 3D windows are rarely shared at the densities of puncta in a cell; a close neighbour can pull a centre).
+ * 6. Close neighbours (as step 6 of spots.ts, 2026-12-03): spots within reach of each other's window are
+ *    refined again against the volume minus their neighbours' fitted Gaussian models (amplitude
+ *    A·exp(−(dx² + dy²)/2σ² − dz²/2σz²), A the least-squares amplitude of the last centroid step, σ and σz
+ *    taken as the spot's widths; see `deblend3D`), until no centre moves by 1e−4 (at most 20 rounds).
  * Pixels without a value: as spots.ts (`missing: 'exclude'` leaves out every voxel within R + 1 in x/y and
  * Rz + 1 in z of one).
  * Degenerate: an empty region, or one whose bounding box is smaller than the window (2w + 1 wide and high,
@@ -176,51 +178,117 @@ export function detectSpots3D(
       }
     }
   } else result.spots = found;
+  result.spots = deblend3D(data, width, height, depth, result.spots as Refined3[], sigma, sigmaZ, zScale, w, wz);
   return result;
 }
 
-/** Gaussian-mask centroid around peak voxel (px, py, pz); null without signal or when it leaves the 3×3×3 neighbourhood */
-function centroid3D(data: ChannelArray, width: number, height: number, depth: number, px: number, py: number, pz: number, sigma: number, sigmaZ: number, w: number, wz: number): Spot3 | null {
+/** a spot with what its refinement needs: the peak voxel, the window's background and the model amplitude */
+interface Refined3 extends Spot3 {
+  px: number;
+  py: number;
+  pz: number;
+  amplitude: number;
+}
+
+/**
+ * Spots whose windows reach each other's light (centres closer, z scaled, than the window's half-diagonal
+ * plus 4 widths) are refined again, each against the volume minus the Gaussian models of its neighbours at
+ * their previous estimates, for up to 20 rounds or until no centre moves by 1e−4. A spot left without light
+ * of its own once its neighbours' models are subtracted is dropped. Spots without a close neighbour keep
+ * their first centre, so isolated spots are as before.
+ */
+function deblend3D(data: ChannelArray, width: number, height: number, depth: number, spots: Refined3[], sigma: number, sigmaZ: number, zScale: number, w: number, wz: number): Spot3[] {
+  const reach = Math.hypot(w, w, wz * zScale) + 4 * Math.max(sigma, sigmaZ * zScale);
+  const grid = new PointGrid3(spots.map((s) => s.x), spots.map((s) => s.y), spots.map((s) => s.z * zScale), reach);
+  const near: number[][] = spots.map((s, a) => {
+    const out: number[] = [];
+    grid.within(s.x, s.y, s.z * zScale, reach, (b) => {
+      if (b !== a) out.push(b);
+    });
+    return out;
+  });
+  let cur: (Refined3 | null)[] = spots;
+  if (near.some((l) => l.length > 0))
+    for (let round = 0; round < 20; round++) {
+      let moved = 0;
+      const prev = cur;
+      cur = prev.map((s, a) => {
+        if (s === null || near[a].length === 0) return s;
+        const others = near[a].map((b) => prev[b]).filter((o): o is Refined3 => o !== null);
+        const r = centroid3D(data, width, height, depth, s.px, s.py, s.pz, sigma, sigmaZ, w, wz, others);
+        if (r === null) {
+          moved = Infinity;
+          return null;
+        }
+        r.response = s.response;
+        moved = Math.max(moved, Math.abs(r.x - s.x) + Math.abs(r.y - s.y) + Math.abs(r.z - s.z));
+        return r;
+      });
+      if (moved < 1e-4) break;
+    }
+  return cur.filter((s): s is Refined3 => s !== null).map((s) => ({ x: s.x, y: s.y, z: s.z, peak: s.peak, integrated: s.integrated, response: s.response }));
+}
+
+/**
+ * Gaussian-mask centroid around peak voxel (px, py, pz), with the models of `others` subtracted; null without
+ * signal or when it leaves the 3×3×3 neighbourhood
+ */
+function centroid3D(data: ChannelArray, width: number, height: number, depth: number, px: number, py: number, pz: number, sigma: number, sigmaZ: number, w: number, wz: number, others: Refined3[] | null = null): Refined3 | null {
   const x0 = Math.max(0, px - w), x1 = Math.min(width - 1, px + w);
   const y0 = Math.max(0, py - w), y1 = Math.min(height - 1, py + w);
   const z0 = Math.max(0, pz - wz), z1 = Math.min(depth - 1, pz + wz);
   const ww = x1 - x0 + 1, wh = y1 - y0 + 1, wd = z1 - z0 + 1;
   const plane = width * height;
   const vals = new Float64Array(ww * wh * wd);
+  for (let z = z0, t = 0; z <= z1; z++) for (let y = y0; y <= y1; y++) for (let x = x0; x <= x1; x++, t++) vals[t] = data[z * plane + y * width + x];
+  const inv = 1 / (2 * sigma * sigma), invz = 1 / (2 * sigmaZ * sigmaZ);
+  const ex = new Float64Array(ww), ey = new Float64Array(wh);
+  // neighbours' models, subtracted in turn; each Gaussian separable (one exp per window column, row and slice)
+  if (others)
+    for (const o of others) {
+      for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-((x + 0.5 - o.x) ** 2) * inv);
+      for (let y = y0; y <= y1; y++) ey[y - y0] = Math.exp(-((y + 0.5 - o.y) ** 2) * inv);
+      for (let z = z0, t = 0; z <= z1; z++) {
+        const ez = o.amplitude * Math.exp(-((z + 0.5 - o.z) ** 2) * invz);
+        for (let y = y0; y <= y1; y++) {
+          const eyz = ey[y - y0] * ez;
+          for (let x = x0; x <= x1; x++, t++) vals[t] -= ex[x - x0] * eyz;
+        }
+      }
+    }
+  // local background: median of the window's outer faces (of the raw voxels when no neighbours are modelled)
   const shell: number[] = [];
   for (let z = z0, t = 0; z <= z1; z++)
     for (let y = y0; y <= y1; y++)
-      for (let x = x0; x <= x1; x++, t++) {
-        const v = data[z * plane + y * width + x];
-        vals[t] = v;
-        if (x === x0 || x === x1 || y === y0 || y === y1 || z === z0 || z === z1) shell.push(v);
-      }
+      for (let x = x0; x <= x1; x++, t++) if (x === x0 || x === x1 || y === y0 || y === y1 || z === z0 || z === z1) shell.push(vals[t]);
   const ring = Float64Array.from(shell).sort();
   const m = ring.length;
   const b = m % 2 ? ring[(m - 1) / 2] : (ring[m / 2 - 1] + ring[m / 2]) / 2;
   let integrated = 0;
   for (let t = 0; t < vals.length; t++) integrated += vals[t] - b;
-  const inv = 1 / (2 * sigma * sigma), invz = 1 / (2 * sigmaZ * sigmaZ);
-  const ex = new Float64Array(ww), ey = new Float64Array(wh);
   let cx = px + 0.5, cy = py + 0.5, cz = pz + 0.5;
+  let amplitude = 0;
   for (let it = 0; it < 50; it++) {
     for (let x = x0; x <= x1; x++) ex[x - x0] = Math.exp(-(x + 0.5 - cx) * (x + 0.5 - cx) * inv);
     for (let y = y0; y <= y1; y++) ey[y - y0] = Math.exp(-(y + 0.5 - cy) * (y + 0.5 - cy) * inv);
-    let s = 0, sx = 0, sy = 0, sz = 0;
+    let s = 0, sx = 0, sy = 0, sz = 0, gg = 0;
     for (let z = z0, t = 0; z <= z1; z++) {
       const zc = z + 0.5, ez = Math.exp(-(zc - cz) * (zc - cz) * invz);
       for (let y = y0; y <= y1; y++) {
         const yc = y + 0.5, eyz = ey[y - y0] * ez;
         for (let x = x0; x <= x1; x++, t++) {
+          const g = ex[x - x0] * eyz;
           const wgt = (vals[t] - b) * ex[x - x0] * eyz;
           s += wgt;
           sx += wgt * (x + 0.5);
           sy += wgt * yc;
           sz += wgt * zc;
+          gg += g * g;
         }
       }
     }
     if (!(s > 0)) return null;
+    amplitude = s / gg;
     const nx = sx / s, ny = sy / s, nz = sz / s;
     const moved = Math.abs(nx - cx) + Math.abs(ny - cy) + Math.abs(nz - cz);
     cx = nx;
@@ -229,5 +297,5 @@ function centroid3D(data: ChannelArray, width: number, height: number, depth: nu
     if (Math.abs(cx - (px + 0.5)) > 1.5 || Math.abs(cy - (py + 0.5)) > 1.5 || Math.abs(cz - (pz + 0.5)) > 1.5) return null;
     if (moved < 1e-4) break;
   }
-  return { x: cx, y: cy, z: cz, peak: data[pz * plane + py * width + px], integrated, response: 0 };
+  return { x: cx, y: cy, z: cz, peak: data[pz * plane + py * width + px], integrated, response: 0, px, py, pz, amplitude };
 }

@@ -230,7 +230,7 @@ export function methodsParagraph(snap: ReportSnapshot): string {
 
 /**
  * Spots found in 3D (from the measurements' provenance, `snap.spots3d`): the lateral and axial filter widths
- * (σz = σ · pixel size / z step, in slices and µm), and that distances are specimen distances with z scaled by
+ * (σz by its rule — σ · pixel size / z step, the recipe's slices or its axial PSF width — in slices and µm), and that distances are specimen distances with z scaled by
  * the z step, in pixel widths and µm. '' when no reported cell had its spots found in 3D.
  */
 function spots3dParagraph(snap: ReportSnapshot): string {
@@ -239,10 +239,14 @@ function spots3dParagraph(snap: ReportSnapshot): string {
   const n = (v: number) => String(Number(v.toPrecision(3)));
   const one = (g: (typeof sp.groups)[number]) => {
     const who = `for ${plural(g.cells, 'cell')} of z-stacks measured in 3D, spots were found in 3D over the cell's voxels with the Laplacian-of-Gaussian filter at σ = ${n(g.sigmaPx)} pixels across the plane`;
+    const from = g.sigmaZFrom ?? 'lateral';
+    const rule =
+      from === 'slices' ? 'σz set in the recipe' : from === 'psf' && g.psfDepthUm != null ? `σz = axial point-spread width (FWHM ${n(g.psfDepthUm)} µm) / 2.355 / z step` : 'σz = σ × pixel size / z step';
+    const value = (v: number) => (from === 'slices' ? `σz = ${n(v)} slices (set in the recipe)` : `${rule} = ${n(v)} slices`);
     if (g.sigmaZ === null || g.zScale === null || g.pixelSizeUm === null || g.zStepUm === null)
-      return `${who} and σz = σ × pixel size / z step along the optical axis (the voxel size is not recorded, so its value is not stated here); nearest-neighbour distances, pairing within d = ${n(g.pairDistancePx)} pixels and the chance placements use distances in the specimen, z differences scaled by the z step, measured in pixel widths`;
+      return `${who} and ${rule} along the optical axis (the voxel size is not recorded, so its value is not stated here); nearest-neighbour distances, pairing within d = ${n(g.pairDistancePx)} pixels and the chance placements use distances in the specimen, z differences scaled by the z step, measured in pixel widths`;
     return (
-      `${who} and σz = σ × pixel size / z step = ${n(g.sigmaZ)} slices along the optical axis (voxel ${n(g.pixelSizeUm)} × ${n(g.pixelSizeUm)} × ${n(g.zStepUm)} µm, so the filter is ${n(g.sigmaPx * g.pixelSizeUm)} µm wide in x, y and ${n(g.sigmaZ * g.zStepUm)} µm in z)` +
+      `${who} and ${value(g.sigmaZ)} along the optical axis (voxel ${n(g.pixelSizeUm)} × ${n(g.pixelSizeUm)} × ${n(g.zStepUm)} µm, so the filter is ${n(g.sigmaPx * g.pixelSizeUm)} µm wide in x, y and ${n(g.sigmaZ * g.zStepUm)} µm in z)` +
       `; nearest-neighbour distances, pairing within d and the chance placements use distances in the specimen: a z difference counts ${n(g.zScale)} pixel widths per slice (the z step over the pixel size), so distances are in pixel widths of ${n(g.pixelSizeUm)} µm and d = ${n(g.pairDistancePx)} pixels is ${n(g.pairDistancePx * g.pixelSizeUm)} µm`
     );
   };

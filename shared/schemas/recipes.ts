@@ -112,10 +112,23 @@ export const PairDistanceSetting = z.discriminatedUnion('kind', [
 ]);
 export type PairDistanceSetting = z.infer<typeof PairDistanceSetting>;
 
+/**
+ * Axial spot filter width σz for stacks measured in 3D: in slices, or from the point-spread function's axial
+ * full width at half maximum: σz = FWHMz / (2√(2 ln 2)) / z step; z step from the recipe, or the field's when
+ * null. Absent (null) in a recipe: σz = σ × pixel size / z step, the lateral width in the specimen.
+ */
+export const SpotAxialSetting = z.discriminatedUnion('kind', [
+  z.object({ kind: z.literal('slices'), sigmaZ: z.number().positive().max(50) }),
+  z.object({ kind: z.literal('psf'), psfDepthUm: z.number().positive().max(1000), zStepUm: z.number().positive().max(1000).nullable().default(null) }),
+]);
+export type SpotAxialSetting = z.infer<typeof SpotAxialSetting>;
+
 /** Object-based co-localization: spots per channel, pairs within d, the chance placement test (shared/analysis/objects.ts). */
 export const ObjectsSetting = z.object({
   enabled: z.boolean().default(false),
   scale: SpotScaleSetting.default({ kind: 'pixels', sigmaPx: 1.5 }),
+  /** axial filter width in stacks measured in 3D; null = σ × pixel size / z step (one physical width) */
+  axial: SpotAxialSetting.nullable().default(null),
   /** a spot's filter response must exceed k × the robust noise estimate of the cell */
   k: z.number().positive().max(1000).default(5),
   /** smallest centre-to-centre distance of two spots of one channel, pixels; null = 2σ */
@@ -135,6 +148,20 @@ export function spotSigmaPx(o: ObjectsSetting, fieldPixelSizeUm: number | null):
   const px = o.scale.pixelSizeUm ?? fieldPixelSizeUm;
   if (!px) throw new RangeError('the spot scale comes from the point-spread width, but neither the recipe nor the field gives a pixel size');
   return o.scale.psfWidthUm / (2 * Math.sqrt(2 * Math.LN2)) / px;
+}
+
+/**
+ * σz of the spot filter in slices for a stack measured in 3D, given σ in pixels and the slice spacing zScale in
+ * pixel widths (z step / pixel size): the recipe's axial setting, else σ / zScale. Throws when the axial width
+ * is given in µm and neither the recipe nor the field gives the z step.
+ */
+export function spotSigmaZSlices(o: ObjectsSetting, sigmaPx: number, zScale: number, fieldZStepUm: number | null): number {
+  const a = o.axial;
+  if (a === null) return sigmaPx / zScale;
+  if (a.kind === 'slices') return a.sigmaZ;
+  const step = a.zStepUm ?? fieldZStepUm;
+  if (!step) throw new RangeError("the spots' axial width comes from the axial point-spread width, but neither the recipe nor the field gives the z step between slices");
+  return a.psfDepthUm / (2 * Math.sqrt(2 * Math.LN2)) / step;
 }
 
 /** Pair distance d in pixels (the field's pixel size is used when the recipe gives none). Throws when neither gives one. */
@@ -197,10 +224,11 @@ export const SETTING_LABELS: Record<SettingKey, string> = {
 const MIC_COST = 'They cost up to about half a second of one processor core per 20,000-pixel cell of 16-bit data (about 35 ms for 8-bit data with many ties)';
 
 /** The parts of the objects section, each with its own sentence (the editor shows them one by one). */
-export const OBJECT_SETTING_KEYS = ['scale', 'k', 'minSeparationPx', 'pairDistance', 'placements', 'seed'] as const;
+export const OBJECT_SETTING_KEYS = ['scale', 'axial', 'k', 'minSeparationPx', 'pairDistance', 'placements', 'seed'] as const;
 export type ObjectSettingKey = (typeof OBJECT_SETTING_KEYS)[number];
 export const OBJECT_SETTING_LABELS: Record<ObjectSettingKey, string> = {
   scale: 'Spot size',
+  axial: 'Spot depth in 3D',
   k: 'Detection strictness',
   minSeparationPx: 'Closest spots',
   pairDistance: 'Pairs within d',
@@ -220,6 +248,13 @@ export function describeObjectSetting(key: ObjectSettingKey, o: ObjectsSetting):
       return o.scale.kind === 'pixels'
         ? `Spots are found in each channel with a Laplacian-of-Gaussian filter (Lindeberg 1998) of width σ = ${fmt(o.scale.sigmaPx)} pixels, about the radius of one spot.`
         : `Spots are found in each channel with a Laplacian-of-Gaussian filter (Lindeberg 1998) as wide as the point-spread function: a full width at half maximum of ${fmt(o.scale.psfWidthUm)} µm gives ${sigmaText(o)} pixels.`;
+    case 'axial': {
+      const a = o.axial;
+      const where = 'In stacks measured in 3D the filter';
+      if (a === null) return `${where} is as wide along the optical axis as across the plane in the specimen: σz = σ × pixel size / z step slices.`;
+      if (a.kind === 'slices') return `${where} has the axial width σz = ${fmt(a.sigmaZ)} slices, whatever the z step.`;
+      return `${where} is as deep as the axial point-spread function: an axial full width at half maximum of ${fmt(a.psfDepthUm)} µm gives σz = ${fmt(a.psfDepthUm)} µm / 2.355 at ${a.zStepUm == null ? "the field's z step" : `${fmt(a.zStepUm)} µm between slices`}.`;
+    }
     case 'k':
       return `A local maximum counts as a spot when its filter response is more than ${fmt(o.k)} times the cell's noise level (1.4826 × the median absolute deviation of the response); a higher value finds fewer, brighter spots.`;
     case 'minSeparationPx':

@@ -261,7 +261,20 @@ export const ReportSnapshot = z.object({
    */
   spots3d: z
     .object({
-      groups: z.array(z.object({ sigmaPx: z.number(), sigmaZ: Num, zScale: Num, pixelSizeUm: Num, zStepUm: Num, pairDistancePx: z.number(), cells: z.number().int().nonnegative() })),
+      groups: z.array(
+        z.object({
+          sigmaPx: z.number(),
+          sigmaZ: Num,
+          /** how σz was set (provenance volume.sigmaZFrom; absent in older reports = 'lateral'), with the axial PSF FWHM for 'psf' */
+          sigmaZFrom: z.enum(['lateral', 'slices', 'psf']).optional(),
+          psfDepthUm: Num.optional(),
+          zScale: Num,
+          pixelSizeUm: Num,
+          zStepUm: Num,
+          pairDistancePx: z.number(),
+          cells: z.number().int().nonnegative(),
+        }),
+      ),
       planeCells: z.number().int().nonnegative(),
     })
     .optional(),

@@ -96,9 +96,20 @@ export const AppliedObjectSettings = z.object({
   /**
    * present when the spots were found in 3D (a stack measured in 3D, 2026-12-03): the voxel size used, the
    * slice spacing in pixel widths (zStepUm / pixelSizeUm, by which z differences are scaled for distances)
-   * and the axial filter width σz in slices (σ · pixel size / z step); absent in 2D and on older rows
+   * and the axial filter width σz in slices; absent in 2D and on older rows. `sigmaZFrom` (2026-12-03, absent on
+   * older rows = 'lateral'): 'lateral' σ · pixel size / z step, 'slices' the recipe's σz, 'psf' the recipe's axial
+   * point-spread FWHM `psfDepthUm` / 2.355 / z step
    */
-  volume: z.object({ pixelSizeUm: z.number().positive(), zStepUm: z.number().positive(), zScale: z.number().positive(), sigmaZ: z.number().positive() }).optional(),
+  volume: z
+    .object({
+      pixelSizeUm: z.number().positive(),
+      zStepUm: z.number().positive(),
+      zScale: z.number().positive(),
+      sigmaZ: z.number().positive(),
+      sigmaZFrom: z.enum(['lateral', 'slices', 'psf']).optional(),
+      psfDepthUm: z.number().positive().optional(),
+    })
+    .optional(),
 });
 export type AppliedObjectSettings = z.infer<typeof AppliedObjectSettings>;
 

@@ -120,6 +120,21 @@ describe('analyze on z-stacks: values against SciPy / R energy / NumPy definitio
     expect(r.code).toBe(2);
     expect(r.err).toMatch(/^error: --objects in 3D \(5 z slices\) needs the slice spacing: give --z-step [^\n]*\n$/);
   });
+  it('--spot-sigma-z sets the axial spot scale in slices (default σ / --z-step) and is echoed; it needs spots in 3D', async () => {
+    const args = [...inputs('u16')[0][1], '--objects', '--placements', '9', '--z-step', '2'];
+    const dflt = await json(...args);
+    // σ 1.5 px over 2 pixel widths per slice: σz 0.75 slices, the default rule given explicitly
+    const same = await json(...args, '--spot-sigma-z', '0.75');
+    expect(same.objectSettings).toEqual({ ...dflt.objectSettings, spotSigmaZ: 0.75 });
+    expect(same.regions).toEqual(dflt.regions);
+    expect(dflt.regions[0].objects.count1).not.toBeNull();
+    // σz 3 slices: a centroid window 2·⌈6⌉ + 1 = 13 slices deep, deeper than the 5 slices: every measure null
+    const deep = await json(...args, '--spot-sigma-z', '3');
+    expect(deep.regions[0].objects.count1).toBeNull();
+    const flat = await run(...inputs('u16')[0][1], '--z', '3', '--objects', '--spot-sigma-z', '1');
+    expect(flat.code).toBe(2);
+    expect(flat.err).toBe('error: --spot-sigma-z applies to spots found in 3D, but one plane is measured here (received "1"); measure several slices in 3D with --z or leave it out\n');
+  });
 });
 
 describe('analyze on z-stacks: bad input exits 2 with one error line quoting the value', () => {
@@ -134,6 +149,9 @@ describe('analyze on z-stacks: bad input exits 2 with one error line quoting the
   const u8 = inputs('u8')[0][1];
   for (const v of ['0', '3-2', 'mip:', 'mip:2', 'mip:0-3', 'abc', '2-', '1.5', '-1', ''])
     it(`--z ${JSON.stringify(v)}`, () => bad([...u8, '--z', v], new RegExp(`--z must be all, N, A-B, mip or mip:A-B .*received ${JSON.stringify(v).replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}`)));
+  for (const v of ['0', '-1', '51', 'x'])
+    it(`--spot-sigma-z ${JSON.stringify(v)}`, () => bad([...u8, '--objects', '--z-step', '2', '--spot-sigma-z', v], new RegExp(`^error: --spot-sigma-z must be a number(?: of slices in \\(0, 50\\])?, received "${v}"$`, 'm')));
+  it('--spot-sigma-z without --objects', () => bad([...u8, '--spot-sigma-z', '1'], /--spot-sigma-z applies to --objects only/));
   it('--z beyond the last slice', () => bad([...u8, '--z', '4-9'], /--z asks for slices 4-9, but the image has 5 z slices/));
   it('--z on a single plane', () => bad(['--ch1', fx('labels2d.tif'), '--ch2', fx('labels2d.tif'), '--z', '2'], /--z asks for slice 2, but the image has 1 z slice$/m));
   it('a label stack with another slice count', () => bad([...u8, '--mask', fx('labels3d_4slices.tif')], /labels3d_4slices\.tif has 4 slices but the image has 5; give a label stack with 5 slices or one plane/));

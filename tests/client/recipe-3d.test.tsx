@@ -62,3 +62,39 @@ describe('recipe editor: 3-D settings', () => {
     expect(RecipeSettings.safeParse(last).success).toBe(true);
   });
 });
+
+function SpotsHarness({ seen }: { seen: (s: RecipeSettings) => void }) {
+  const [s, setS] = useState<RecipeSettings>({ ...DEFAULT_RECIPE_SETTINGS, objects: { ...DEFAULT_RECIPE_SETTINGS.objects, enabled: true } });
+  return <SettingsEditor value={s} onChange={(n) => (seen(n), setS(n))} />;
+}
+
+describe('recipe editor: the axial width of spots in 3D', () => {
+  it('defaults to the lateral width in the specimen; σz in slices and the axial PSF width are checked against the shared bounds', async () => {
+    const seen = vi.fn();
+    render(<SpotsHarness seen={seen} />);
+    const user = userEvent.setup();
+    expect((screen.getByLabelText('As wide as across the plane') as HTMLInputElement).checked).toBe(true);
+    expect(screen.getByText(/σz = σ × pixel size \/ z step slices\./)).toBeTruthy();
+    await user.click(screen.getByLabelText('σz in slices'));
+    expect((seen.mock.calls.at(-1)![0] as RecipeSettings).objects.axial).toEqual({ kind: 'slices', sigmaZ: 1 });
+    const sz = screen.getByLabelText('σz (slices)');
+    await user.clear(sz);
+    await user.type(sz, '51');
+    expect(messageOf(sz)).toMatch(/^σz \(slices\) must be .*got "51"$/);
+    await user.clear(sz);
+    await user.type(sz, '1.5');
+    expect(messageOf(sz)).toBeNull();
+    expect((seen.mock.calls.at(-1)![0] as RecipeSettings).objects.axial).toEqual({ kind: 'slices', sigmaZ: 1.5 });
+    expect(screen.getByText(/σz = 1\.5 slices, whatever the z step\./)).toBeTruthy();
+    await user.click(screen.getByLabelText('From the axial point-spread width'));
+    const psf = screen.getByLabelText('Axial PSF width (µm)');
+    await user.clear(psf);
+    await user.type(psf, '0.6');
+    await user.type(screen.getByLabelText('Z step (µm, empty: from each field)'), '0.3');
+    const last = seen.mock.calls.at(-1)![0] as RecipeSettings;
+    expect(last.objects.axial).toEqual({ kind: 'psf', psfDepthUm: 0.6, zStepUm: 0.3 });
+    expect(RecipeSettings.safeParse(last).success).toBe(true);
+    await user.click(screen.getByLabelText('As wide as across the plane'));
+    expect((seen.mock.calls.at(-1)![0] as RecipeSettings).objects.axial).toBeNull();
+  });
+});

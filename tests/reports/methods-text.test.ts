@@ -165,6 +165,11 @@ describe('recipe settings in words', () => {
       'objects.scale.kind': [spotsOn, spots({ scale: { kind: 'psf', psfWidthUm: 0.3, pixelSizeUm: 0.1 } })],
       'objects.scale.sigmaPx': [spotsOn, spots({ scale: { kind: 'pixels', sigmaPx: 2 } })],
       'objects.seed': [spotsOn, spots({ seed: 12 })],
+      'objects.axial': [spotsOn, spots({ axial: { kind: 'slices', sigmaZ: 1.2 } })],
+      'objects.axial.kind': [spots({ axial: { kind: 'slices', sigmaZ: 1.2 } }), spots({ axial: { kind: 'psf', psfDepthUm: 0.7 } })],
+      'objects.axial.sigmaZ': [spots({ axial: { kind: 'slices', sigmaZ: 1.2 } }), spots({ axial: { kind: 'slices', sigmaZ: 1.3 } })],
+      'objects.axial.psfDepthUm': [spots({ axial: { kind: 'psf', psfDepthUm: 0.7 } }), spots({ axial: { kind: 'psf', psfDepthUm: 0.8 } })],
+      'objects.axial.zStepUm': [spots({ axial: { kind: 'psf', psfDepthUm: 0.7 } }), spots({ axial: { kind: 'psf', psfDepthUm: 0.7, zStepUm: 0.25 } })],
     };
     for (const [p, [on, v]] of Object.entries(onVariants)) {
       const text = stacked(v);
@@ -209,6 +214,15 @@ describe('spots found in 3D', () => {
     expect(with3d(undefined)).not.toContain('Spots in 3D');
   });
 
+  it("states the recipe's axial width by its rule: σz in slices as set, or from the axial point-spread width", () => {
+    const slices = with3d({ groups: [{ ...group, sigmaZ: 1.1, sigmaZFrom: 'slices', psfDepthUm: null }], planeCells: 0 });
+    expect(slices).toContain('at σ = 1.5 pixels across the plane and σz = 1.1 slices (set in the recipe) along the optical axis (voxel 0.1 × 0.1 × 0.2 µm, so the filter is 0.15 µm wide in x, y and 0.22 µm in z)');
+    const psf = with3d({ groups: [{ ...group, sigmaZ: 0.7 / 2.3548 / 0.2, sigmaZFrom: 'psf', psfDepthUm: 0.7 }], planeCells: 0 });
+    expect(psf).toContain('and σz = axial point-spread width (FWHM 0.7 µm) / 2.355 / z step = 1.49 slices along the optical axis (voxel 0.1 × 0.1 × 0.2 µm, so the filter is 0.15 µm wide in x, y and 0.297 µm in z)');
+    const unknown = with3d({ groups: [{ ...group, sigmaZ: null, zScale: null, pixelSizeUm: null, zStepUm: null, sigmaZFrom: 'slices', psfDepthUm: null }], planeCells: 0 });
+    expect(unknown).toContain('and σz set in the recipe along the optical axis (the voxel size is not recorded');
+  });
+
   it('without a recorded voxel size the axial scale is named but no value or µm is invented; cells found within a plane are counted', () => {
     const text = with3d({ groups: [{ ...group, sigmaZ: null, zScale: null, pixelSizeUm: null, zStepUm: null, cells: 5 }], planeCells: 3 });
     expect(text).toContain('for 5 cells of z-stacks measured in 3D, spots were found in 3D over the cell\'s voxels with the Laplacian-of-Gaussian filter at σ = 1.5 pixels across the plane and σz = σ × pixel size / z step along the optical axis (the voxel size is not recorded, so its value is not stated here)');
@@ -227,7 +241,7 @@ describe('spots found in 3D', () => {
     const applied = { sigmaPx: 1.5, k: 5, minSeparationPx: 3, pairDistancePx: 2, placements: 99, seed: 1 };
     for (const r of rows) {
       const i = fieldIds.indexOf(r.fieldId);
-      const objects = i < 2 ? { ...applied, volume: { pixelSizeUm: 0.1, zStepUm: 0.2, zScale: 2, sigmaZ: 0.75 } } : applied;
+      const objects = i === 0 ? { ...applied, volume: { pixelSizeUm: 0.1, zStepUm: 0.2, zScale: 2, sigmaZ: 0.75 } } : i === 1 ? { ...applied, volume: { pixelSizeUm: 0.1, zStepUm: 0.2, zScale: 2, sigmaZ: 0.75, sigmaZFrom: 'lateral' } } : applied;
       t.ctx.db.update(measurements).set({ provenance: { ...(r.provenance as object), objects, z: i < 4 ? '3D 0-4' : 'slice 2' } }).where(eq(measurements.id, r.id)).run();
     }
     const bio = await t.login('biologist');
@@ -238,7 +252,8 @@ describe('spots found in 3D', () => {
     expect(snap.spots3d!.planeCells).toBe(8);
     const [a, b] = snap.spots3d!.groups;
     expect(snap.spots3d!.groups).toHaveLength(2);
-    expect(a).toEqual({ sigmaPx: 1.5, sigmaZ: 0.75, zScale: 2, pixelSizeUm: 0.1, zStepUm: 0.2, pairDistancePx: 2, cells: 7 });
+    // rows recorded before sigmaZFrom (field 1) and after it (field 2) with today's rule form one group
+    expect(a).toEqual({ sigmaPx: 1.5, sigmaZ: 0.75, sigmaZFrom: 'lateral', psfDepthUm: null, zScale: 2, pixelSizeUm: 0.1, zStepUm: 0.2, pairDistancePx: 2, cells: 7 });
     expect(b).toMatchObject({ sigmaPx: 1.5, pixelSizeUm: 0.1, zStepUm: 0.3, pairDistancePx: 2, cells: 8 });
     expect(b.zScale!).toBeCloseTo(3, 12);
     expect(b.sigmaZ!).toBeCloseTo(0.5, 12);

@@ -79,10 +79,34 @@ describe('a run with Spots on over a field measured in 3D', () => {
     const { measurements } = computeFieldResult(job(spotsOn), px);
     // σz = σ · pixel size / z step = 1.5 · 0.1 / Z_UM slices; the slice spacing Z_UM / 0.1 pixel widths
     for (const m of measurements)
-      expect(m.provenance.objects).toEqual({ sigmaPx: 1.5, k: 5, minSeparationPx: 3, pairDistancePx: 2, placements: 99, seed: 1, volume: { pixelSizeUm: PIXEL_UM, zStepUm: Z_UM, zScale: Z_UM / PIXEL_UM, sigmaZ: 1.5 / (Z_UM / PIXEL_UM) } });
+      expect(m.provenance.objects).toEqual({ sigmaPx: 1.5, k: 5, minSeparationPx: 3, pairDistancePx: 2, placements: 99, seed: 1, volume: { pixelSizeUm: PIXEL_UM, zStepUm: Z_UM, zScale: Z_UM / PIXEL_UM, sigmaZ: 1.5 / (Z_UM / PIXEL_UM), sigmaZFrom: 'lateral' } });
     expect(measurements[0].provenance.z).toBe(`3D 0-${D - 1}`);
     const flat = computeFieldResult(job({ ...spotsOn, z: { mode: 'slice', slice: 12 } }), { width: W, height: H, ch1: v1.subarray(12 * W * H, 13 * W * H), ch2: v2.subarray(12 * W * H, 13 * W * H) });
     for (const m of flat.measurements) expect(m.provenance.objects).not.toHaveProperty('volume');
+  });
+
+  it("uses the recipe's axial width: σz in slices, or the axial PSF FWHM / 2.355 / z step, recorded with its rule", () => {
+    const slices = computeFieldResult(job({ ...spotsOn, objects: { ...spotsOn.objects, axial: { kind: 'slices', sigmaZ: 1.1 } } }), px);
+    const want = analyzeObjects3D(v1, v2, W, H, D, cellVoxels(cells[1].geometry, W, H, 0, D), { spotSigma: 1.5, spotK: 5, minSeparation: 3, pairDistance: 2, placements: 99, seed: 1, zScale: spec.zScale, spotSigmaZ: 1.1 });
+    expect(slices.spots.filter((s) => s.cellId === 8 && s.channel === 1).map((s) => [s.x, s.y, s.z])).toEqual(want.result.spots1);
+    const lateral = computeFieldResult(job(spotsOn), px);
+    // a different axial width moves the centres (the z weights of the centroid differ)
+    expect(slices.spots.map((s) => s.z)).not.toEqual(lateral.spots.map((s) => s.z));
+    expect(slices.measurements[0].provenance.objects!.volume).toEqual({ pixelSizeUm: PIXEL_UM, zStepUm: Z_UM, zScale: Z_UM / PIXEL_UM, sigmaZ: 1.1, sigmaZFrom: 'slices' });
+    const psf = computeFieldResult(job({ ...spotsOn, objects: { ...spotsOn.objects, axial: { kind: 'psf', psfDepthUm: 0.6 } } }), px);
+    const v = psf.measurements[0].provenance.objects!.volume!;
+    expect(v).toMatchObject({ sigmaZFrom: 'psf', psfDepthUm: 0.6 });
+    expect(v.sigmaZ).toBeCloseTo(0.6 / (2 * Math.sqrt(2 * Math.LN2)) / Z_UM, 12);
+    // a width the filter cannot take (above 50 slices) is refused before any pixel is read, fixed in the recipe
+    let err: unknown;
+    try {
+      checkFieldInputs(job({ ...spotsOn, objects: { ...spotsOn.objects, axial: { kind: 'psf', psfDepthUm: 900, zStepUm: 0.1 } } }), D);
+    } catch (e) {
+      err = e;
+    }
+    expect(err).toBeInstanceOf(FieldJobError);
+    expect((err as FieldJobError).message).toBe("field \"Stack\": the spots' axial width σz must be in (0, 50] slices, received 3821.95 (from the axial point-spread width 900 µm at 0.1 µm between slices)");
+    expect((err as FieldJobError).fix).toBe('recipe');
   });
 
   it('a field without its voxel size is refused before any pixel is read, with what to enter on the field', () => {

@@ -16,6 +16,7 @@ import {
   diffSettings,
   pairDistancePx,
   spotSigmaPx,
+  spotSigmaZSlices,
 } from '../../shared/schemas/recipes.js';
 import { computeFieldResult, objectOptions, FieldJobError } from '../../server/runs/compute.js';
 import type { FieldJob } from '../../server/runs/job.js';
@@ -34,10 +35,13 @@ describe('objects section schema', () => {
   it('is off by default with the engine defaults (σ 1.5 px, k 5, separation 2σ, d 2 px, 999 placements, seed 1)', () => {
     const s = RecipeSettings.parse({});
     expect(s.objects).toEqual(DEFAULT_OBJECTS_SETTING);
-    expect(s.objects).toEqual({ enabled: false, scale: { kind: 'pixels', sigmaPx: 1.5 }, k: 5, minSeparationPx: null, pairDistance: { kind: 'pixels', pixels: 2 }, placements: 999, seed: 1 });
+    expect(s.objects).toEqual({ enabled: false, scale: { kind: 'pixels', sigmaPx: 1.5 }, axial: null, k: 5, minSeparationPx: null, pairDistance: { kind: 'pixels', pixels: 2 }, placements: 999, seed: 1 });
     // a recipe stored before the section existed reads as "off"
     const old = RecipeSettings.parse({ threshold: { method: 'otsu' } });
     expect(old.objects.enabled).toBe(false);
+    // a Spots section stored before the axial width existed keeps today's rule (σz = σ × pixel size / z step)
+    const before = RecipeSettings.parse({ objects: { enabled: true, scale: { kind: 'pixels', sigmaPx: 2 }, k: 6, minSeparationPx: null, pairDistance: { kind: 'pixels', pixels: 2 }, placements: 99, seed: 3 } });
+    expect(before.objects.axial).toBeNull();
   });
 
   it.each([
@@ -52,6 +56,11 @@ describe('objects section schema', () => {
     [{ placements: 0 }, 'objects.placements'],
     [{ placements: 10.5 }, 'objects.placements'],
     [{ seed: -1 }, 'objects.seed'],
+    [{ axial: { kind: 'slices', sigmaZ: 0 } }, 'objects.axial.sigmaZ'],
+    [{ axial: { kind: 'slices', sigmaZ: 51 } }, 'objects.axial.sigmaZ'],
+    [{ axial: { kind: 'psf', psfDepthUm: -0.5 } }, 'objects.axial.psfDepthUm'],
+    [{ axial: { kind: 'psf', psfDepthUm: 0.7, zStepUm: 0 } }, 'objects.axial.zStepUm'],
+    [{ axial: { kind: 'microns', um: 1 } }, 'objects.axial.kind'],
   ])('refuses %j through the API with 400 naming %s', async (objects, path) => {
     const res = await mic.post('/api/recipes').send({ name: 'bad objects', settings: { objects: { enabled: true, ...objects } } });
     expect(res.status).toBe(400);
@@ -71,6 +80,16 @@ describe('objects section schema', () => {
     expect(objectOptions(RecipeSettings.parse({}), null)).toBeNull();
     expect(objectOptions(RecipeSettings.parse({ objects: { enabled: true } }), null)).toEqual({ spotSigma: 1.5, spotK: 5, minSeparation: 3, pairDistance: 2, placements: 999, seed: 1 });
     expect(() => objectOptions(RecipeSettings.parse({ objects: { ...psf, enabled: true } }), null)).toThrow(FieldJobError);
+  });
+
+  it('gives σz in slices: σ / zScale when unset, the recipe\'s slices, or the axial FWHM / 2.355 over the recipe\'s z step before the field\'s', () => {
+    // zScale 4 (0.4 µm steps, 0.1 µm pixels), σ = 2 px
+    expect(spotSigmaZSlices(ObjectsSetting.parse({}), 2, 4, 0.4)).toBe(0.5);
+    expect(spotSigmaZSlices(ObjectsSetting.parse({ axial: { kind: 'slices', sigmaZ: 1.25 } }), 2, 4, 0.4)).toBe(1.25);
+    const psf = ObjectsSetting.parse({ axial: { kind: 'psf', psfDepthUm: 0.7 } });
+    expect(spotSigmaZSlices(psf, 2, 4, 0.4)).toBeCloseTo(0.7 / 2.354820045 / 0.4, 8);
+    expect(spotSigmaZSlices(ObjectsSetting.parse({ axial: { kind: 'psf', psfDepthUm: 0.7, zStepUm: 0.2 } }), 2, 4, 0.4)).toBeCloseTo(0.7 / 2.354820045 / 0.2, 8);
+    expect(() => spotSigmaZSlices(psf, 2, 4, null)).toThrow(/z step/);
   });
 });
 
@@ -110,6 +129,11 @@ describe('objects section sentences', () => {
     expect(plc).toContain('499 times');
     expect(plc).toContain('cannot be below 0.002');
     expect(plc).toMatch(/time grows in proportion/);
+    const axial = (a: object | null) => describeObjectSettings(ObjectsSetting.parse({ enabled: true, axial: a })).find((x) => x.key === 'axial')!.sentence;
+    expect(axial(null)).toContain('σz = σ × pixel size / z step slices');
+    expect(axial({ kind: 'slices', sigmaZ: 1.25 })).toContain('σz = 1.25 slices');
+    expect(axial({ kind: 'psf', psfDepthUm: 0.7 })).toContain("0.7 µm gives σz = 0.7 µm / 2.355 at the field's z step");
+    expect(axial({ kind: 'psf', psfDepthUm: 0.7, zStepUm: 0.3 })).toContain('0.3 µm between slices');
     expect(describeSetting('objects', RecipeSettings.parse({}))).toBe('No spots are detected (object-based measures are off).');
     expect(describeSetting('objects', RecipeSettings.parse({ objects: o }))).toBe(d.map((x) => x.sentence).join(' '));
   });

@@ -172,8 +172,9 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
       (s.channel === 1 ? c.spots1 : c.spots2).push([s.x, s.y]);
     }
     // spots found in 3D (with z, in slices): the image shows those of the slice displayed (all on a projection),
-    // pairs drawn among them; the cell panel keeps every spot of the cell
-    const slice = typeof display.z === 'number' ? display.z : null;
+    // pairs drawn among them; the cell panel keeps every spot of the cell. No slice chosen yet: the middle
+    // slice, the one the image and the slice selector show (as OrthoViews)
+    const slice = typeof display.z === 'number' ? display.z : display.z === undefined ? Math.floor((field.sizeZ - 1) / 2) : null;
     const onSlice = new Map<number, { spots1: Xy[]; spots2: Xy[] }>();
     for (const s of rows) {
       if (s.z !== undefined && slice !== null && Math.floor(s.z) !== slice) continue;
@@ -184,7 +185,7 @@ function Workspace({ studyId, field }: { studyId: number; field: NonNullable<Ret
     const pairs: SpotPair[] = [];
     for (const c of onSlice.values()) pairs.push(...pairsWithin(c.spots1, c.spots2, pairDistancePx).pairs);
     return { spots1: [...onSlice.values()].flatMap((c) => c.spots1), spots2: [...onSlice.values()].flatMap((c) => c.spots2), pairs, byCell };
-  }, [liveSpots.on, livePreviewSpots, fieldSpots.data, pairDistancePx, display.z]);
+  }, [liveSpots.on, livePreviewSpots, fieldSpots.data, pairDistancePx, display.z, field.sizeZ]);
   const spotRadius = 1.414 * (liveSpots.on ? liveSpots.sigma : (stored?.sigmaPx ?? OBJECT_DEFAULTS.spotSigma));
 
   // keyboard

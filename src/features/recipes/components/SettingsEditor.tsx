@@ -101,6 +101,34 @@ function ObjectsControls({ value: o, onChange, disabled: d }: { value: ObjectsSe
         )}
       </div>
     ),
+    axial: (
+      <div className="flex flex-wrap items-center gap-4">
+        <Choice
+          name="spotAxial"
+          disabled={d}
+          value={o.axial === null ? 'lateral' : o.axial.kind}
+          options={[
+            ['lateral', 'As wide as across the plane'],
+            ['slices', 'σz in slices'],
+            ['psf', 'From the axial point-spread width'],
+          ]}
+          onChange={(k) => set({ axial: k === 'lateral' ? null : k === 'slices' ? { kind: 'slices', sigmaZ: 1 } : { kind: 'psf', psfDepthUm: 0.7, zStepUm: null } })}
+        />
+        {o.axial?.kind === 'slices' && (
+          <Num label="σz (slices)" disabled={d} min={0} minExclusive max={50} value={o.axial.sigmaZ} onChange={(n) => set({ axial: { kind: 'slices', sigmaZ: n } })} />
+        )}
+        {o.axial?.kind === 'psf' &&
+          (() => {
+            const a = o.axial;
+            return (
+              <>
+                <Num label="Axial PSF width (µm)" disabled={d} min={0} minExclusive max={1000} value={a.psfDepthUm} onChange={(n) => set({ axial: { ...a, psfDepthUm: n } })} />
+                <OptionalBox label="Z step (µm, empty: from each field)" schema={Z_STEP} disabled={d} value={a.zStepUm} onChange={(n) => set({ axial: { ...a, zStepUm: n } })} />
+              </>
+            );
+          })()}
+      </div>
+    ),
     k: <Num label="k" disabled={d} min={0} minExclusive max={1000} value={o.k} onChange={(n) => set({ k: n })} />,
     minSeparationPx: (
       <div className="flex flex-wrap items-center gap-4">
