@@ -5,6 +5,7 @@
  */
 import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../db/client.js';
+import { preparedInsert } from '../db/bulk.js';
 import type { RunQueue } from '../services.js';
 import { auditEvents, calibrations, cells, conditions, coverslips, fields, files, instruments, measurements, recipes, runFields, runs, spots, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
@@ -207,6 +208,9 @@ export function recordFieldResult(db: Db, result: FieldJobResult, onRunFinished?
  */
 export function recordFieldResults(db: Db, results: FieldJobResult[], onRunFinished?: (runId: number) => void): boolean[] {
   const touched = new Set<number>();
+  // one prepared statement per table, bound row by row inside this transaction (server/db/bulk.ts)
+  const insertMeasurements = preparedInsert(db, measurements, ['id', 'createdAt'], 'ignore');
+  const insertSpots = preparedInsert(db, spots, ['id']);
   const wrote = db.transaction((tx) => {
     const provisionalOf = new Map<number, boolean>();
     const at = new Date().toISOString();
@@ -221,15 +225,9 @@ export function recordFieldResults(db: Db, results: FieldJobResult[], onRunFinis
       const provisional = provisionalOf.get(result.runId)!;
       if (result.ok) {
         // cells deleted meanwhile keep their rows (their ids are still valid: the cell existed at compute time)
-        const chunk = 200;
-        for (let i = 0; i < result.measurements.length; i += chunk) {
-          const part = result.measurements.slice(i, i + chunk).map((m) => ({ ...m, runId: result.runId, fieldId: result.fieldId, provisional }));
-          if (part.length) tx.insert(measurements).values(part).onConflictDoNothing().run();
-        }
-        for (let i = 0; i < result.spots.length; i += chunk) {
-          const part = result.spots.slice(i, i + chunk).map((s) => ({ ...s, runId: result.runId, fieldId: result.fieldId }));
-          tx.insert(spots).values(part).run();
-        }
+        const ids = { runId: result.runId, fieldId: result.fieldId };
+        insertMeasurements(result.measurements, { ...ids, provisional });
+        insertSpots(result.spots, ids);
         tx.update(runFields).set({ status: 'done', error: null, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
       } else {
         tx.update(runFields).set({ status: 'failed', error: result.error, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
