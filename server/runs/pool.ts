@@ -33,8 +33,23 @@ export function storeSettingsOf(s: FileStoreSettings): FileStoreSettings {
   return { DATA_DIR: s.DATA_DIR, STORE_URL: s.STORE_URL, S3_ENDPOINT: s.S3_ENDPOINT };
 }
 
+/**
+ * Where a pool's time went since it was made, cumulative (`BENCH=runs npm run bench` prints the differences over
+ * a run): on this thread, building the batches' jobs and marking their fields running, and writing results; in
+ * the pool threads, reading + decoding and measuring the fields (as each field's result reports it).
+ */
+export interface PoolTimings {
+  batches: number;
+  fields: number;
+  prepareMs: number;
+  recordMs: number;
+  threadMs: number;
+  threadLoadMs: number;
+}
+
 export class PoolRunQueue implements RunQueue {
   readonly kind = 'pool' as const;
+  readonly timings: PoolTimings = { batches: 0, fields: 0, prepareMs: 0, recordMs: 0, threadMs: 0, threadLoadMs: 0 };
   private pool: Piscina;
   private pending: { runId: number; fieldId: number }[] = [];
   private inFlight = new Set<string>();
@@ -85,6 +100,7 @@ export class PoolRunQueue implements RunQueue {
 
   private pump() {
     while (!this.closed && this.batchesInFlight < this.workers * BATCHES_PER_THREAD && this.pending.length) {
+      const t0 = performance.now();
       const take = this.pending.splice(0, batchSize(this.pending.length, this.workers));
       const jobs: FieldJob[] = [];
       const refused: FieldJobResult[] = [];
@@ -101,6 +117,9 @@ export class PoolRunQueue implements RunQueue {
       const keys = jobs.map((j) => `${j.runId}:${j.fieldId}`);
       for (const k of keys) this.inFlight.add(k);
       this.batchesInFlight++;
+      this.timings.batches++;
+      this.timings.fields += jobs.length;
+      this.timings.prepareMs += performance.now() - t0;
       this.pool
         .run(jobs)
         .then(
@@ -120,8 +139,14 @@ export class PoolRunQueue implements RunQueue {
 
   private record(res: FieldJobResult[]) {
     if (this.closed) return;
+    const t0 = performance.now();
+    for (const r of res) {
+      this.timings.threadMs += r.ms;
+      if (r.ok) this.timings.threadLoadMs += r.loadMs ?? 0;
+    }
     try {
       recordFieldResults(this.db, res, this.onRunFinished);
+      this.timings.recordMs += performance.now() - t0;
     } catch (e) {
       // the database refused (e.g. closing); the fields stay running and resume() picks them up
       console.warn(`[runs] could not record ${res.length} field result(s) of run ${res[0]?.runId}: ${(e as Error).message}`);
