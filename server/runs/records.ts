@@ -122,11 +122,27 @@ export function checkRunInputs(db: Db, recipe: typeof recipes.$inferSelect, stud
   return { ready, blocked };
 }
 
-/** Everything a stateless worker needs for one field of a run. */
-export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
+/** What every job of one run shares (its row, recipe and settings snapshot), read once per batch. */
+type RunPart = { run: typeof runs.$inferSelect; recipe: typeof recipes.$inferSelect; settings: RecipeSettings };
+export type RunPartCache = Map<number, RunPart>;
+
+function runPart(db: Db, runId: number, cache?: RunPartCache): RunPart {
+  const hit = cache?.get(runId);
+  if (hit) return hit;
   const run = db.select().from(runs).where(eq(runs.id, runId)).get();
   if (!run) throw new Error(`run ${runId} vanished`);
   const recipe = db.select().from(recipes).where(eq(recipes.id, run.recipeId)).get()!;
+  const part = { run, recipe, settings: runSettings(db, run) };
+  cache?.set(runId, part);
+  return part;
+}
+
+/**
+ * Everything a stateless worker needs for one field of a run. `cache`: jobs built together (a batch) read each
+ * run's row, recipe and settings snapshot once; the jobs are the same with or without it.
+ */
+export function buildJob(db: Db, runId: number, fieldId: number, cache?: RunPartCache): FieldJob {
+  const { run, recipe, settings } = runPart(db, runId, cache);
   const f = db.select().from(fields).where(eq(fields.id, fieldId)).get();
   if (!f) throw new Error(`field ${fieldId} vanished`);
   const fileRows = db.select().from(files).where(inArray(files.sha256, [f.file1Sha, f.file2Sha])).all();
@@ -141,7 +157,6 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
     .where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt)))
     .orderBy(cells.id)
     .all();
-  const settings = runSettings(db, run);
   return {
     runId,
     fieldId,
