@@ -15,6 +15,8 @@ async function main() {
     throw e;
   }
   const ctx = await createContext(env);
+  // the run pool's threads start while the rest starts up, so the first run does not wait for them
+  ctx.runs.warm?.().catch((e: Error) => console.warn(`[runs] the pool threads could not start: ${e.message}`));
   await (await import('./recover.js')).recoverAfterCrash(ctx); // leftovers of an unclean stop
   if (env.SEED_DEMO === 'auto') {
     const { seedDemoIfNeeded } = await import('./db/seed/index.js');

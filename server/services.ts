@@ -42,6 +42,8 @@ export interface RunQueue {
   enqueue(runId: number): Promise<void>;
   /** Re-schedule runs left queued/running by a previous process. */
   resume(): Promise<void>;
+  /** Starts this process's computing threads now and keeps them (the server at start); resolves with the ms it took. */
+  warm?(): Promise<number>;
   /** Resolves when this process has nothing pending or in flight (tests; the BullMQ queue resolves when every active run is finished). */
   idle?(): Promise<void>;
   close(): Promise<void>;

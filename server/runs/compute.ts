@@ -492,8 +492,9 @@ export async function runFieldJob(store: FileStore, job: FieldJob, threads: Swee
   const t0 = performance.now();
   try {
     const px = await loadJobPixels(store, job);
+    const loadMs = performance.now() - t0;
     const { measurements, spots } = threads ? await computeFieldResultThreaded(job, px, threads) : computeFieldResult(job, px);
-    return { runId: job.runId, fieldId: job.fieldId, ok: true, measurements, spots, ms: performance.now() - t0 };
+    return { runId: job.runId, fieldId: job.fieldId, ok: true, measurements, spots, ms: performance.now() - t0, loadMs };
   } catch (e) {
     const msg = e instanceof Error ? e.message : String(e);
     return { runId: job.runId, fieldId: job.fieldId, ok: false, error: msg.split('\n')[0].slice(0, 500), ms: performance.now() - t0 };

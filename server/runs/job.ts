@@ -64,5 +64,6 @@ export interface SpotValues {
 }
 
 export type FieldJobResult =
-  | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; spots: SpotValues[]; ms: number }
+  /** `ms`: reading, decoding and measuring the field where it ran; `loadMs`: the reading and decoding part of it */
+  | { runId: number; fieldId: number; ok: true; measurements: MeasurementValues[]; spots: SpotValues[]; ms: number; loadMs?: number }
   | { runId: number; fieldId: number; ok: false; error: string; ms: number };

@@ -11,7 +11,7 @@ import { Piscina } from 'piscina';
 import type { Db } from '../db/client.js';
 import type { FileStoreSettings, RunQueue, RunQueueSettings } from '../services.js';
 import type { FieldJob, FieldJobResult } from './job.js';
-import { buildJob, fieldName, markFieldsStarted, queuedFieldsOf, recordFieldResults, refreshRun, unfinishedWork } from './records.js';
+import { buildJob, fieldName, markFieldsStarted, queuedFieldsOf, recordFieldResults, refreshRun, unfinishedWork, type RunPartCache } from './records.js';
 
 const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'pool-worker.ts');
 
@@ -33,9 +33,25 @@ export function storeSettingsOf(s: FileStoreSettings): FileStoreSettings {
   return { DATA_DIR: s.DATA_DIR, STORE_URL: s.STORE_URL, S3_ENDPOINT: s.S3_ENDPOINT };
 }
 
+/**
+ * Where a pool's time went since it was made, cumulative (`BENCH=runs npm run bench` prints the differences over
+ * a run): on this thread, building the batches' jobs and marking their fields running, and writing results; in
+ * the pool threads, reading + decoding and measuring the fields (as each field's result reports it).
+ */
+export interface PoolTimings {
+  batches: number;
+  fields: number;
+  prepareMs: number;
+  recordMs: number;
+  threadMs: number;
+  threadLoadMs: number;
+}
+
 export class PoolRunQueue implements RunQueue {
   readonly kind = 'pool' as const;
-  private pool: Piscina;
+  readonly timings: PoolTimings = { batches: 0, fields: 0, prepareMs: 0, recordMs: 0, threadMs: 0, threadLoadMs: 0 };
+  /** made at the first run (threads on demand, ending after 30 s idle) or by warm() (threads started at once and kept) */
+  private pool: Piscina | null = null;
   private pending: { runId: number; fieldId: number }[] = [];
   private inFlight = new Set<string>();
   private batchesInFlight = 0;
@@ -46,18 +62,36 @@ export class PoolRunQueue implements RunQueue {
 
   constructor(
     private db: Db,
-    settings: RunQueueSettings,
+    private settings: RunQueueSettings,
     private onRunFinished?: (runId: number) => void,
   ) {
     this.workers = settings.WORKERS;
-    this.pool = new Piscina({
+  }
+
+  private threads(keep = false): Piscina {
+    return (this.pool ??= new Piscina({
       filename: WORKER_FILE,
       execArgv: ['--import', 'tsx'],
-      minThreads: 0,
-      maxThreads: settings.WORKERS,
+      minThreads: keep ? this.workers : 0,
+      maxThreads: this.workers,
       idleTimeout: 30_000,
-      workerData: storeSettingsOf(settings),
-    });
+      workerData: storeSettingsOf(this.settings),
+    }));
+  }
+
+  /**
+   * Starts the pool's threads now and keeps them for the life of the queue (the server calls it at start), so a
+   * run does not wait for a thread to start and load the engine (about half a second) after the server started
+   * or after a quiet spell. Resolves with the milliseconds until every thread answered. Without it (tests, one-off
+   * scripts) threads start at the first run and end after 30 s idle. Has no effect once the pool exists.
+   */
+  async warm(): Promise<number> {
+    const t0 = performance.now();
+    if (this.pool) return 0;
+    const pool = this.threads(true);
+    // an empty batch per thread: each resolves once a thread has loaded the worker module
+    await Promise.all(Array.from({ length: this.workers }, () => pool.run([])));
+    return performance.now() - t0;
   }
 
   async enqueue(runId: number) {
@@ -85,12 +119,14 @@ export class PoolRunQueue implements RunQueue {
 
   private pump() {
     while (!this.closed && this.batchesInFlight < this.workers * BATCHES_PER_THREAD && this.pending.length) {
+      const t0 = performance.now();
       const take = this.pending.splice(0, batchSize(this.pending.length, this.workers));
       const jobs: FieldJob[] = [];
       const refused: FieldJobResult[] = [];
+      const runParts: RunPartCache = new Map();
       for (const w of take) {
         try {
-          jobs.push(buildJob(this.db, w.runId, w.fieldId));
+          jobs.push(buildJob(this.db, w.runId, w.fieldId, runParts));
         } catch (e) {
           refused.push({ runId: w.runId, fieldId: w.fieldId, ok: false, error: (e as Error).message, ms: 0 });
         }
@@ -101,7 +137,10 @@ export class PoolRunQueue implements RunQueue {
       const keys = jobs.map((j) => `${j.runId}:${j.fieldId}`);
       for (const k of keys) this.inFlight.add(k);
       this.batchesInFlight++;
-      this.pool
+      this.timings.batches++;
+      this.timings.fields += jobs.length;
+      this.timings.prepareMs += performance.now() - t0;
+      this.threads()
         .run(jobs)
         .then(
           (res: FieldJobResult[]) => this.record(res),
@@ -120,8 +159,14 @@ export class PoolRunQueue implements RunQueue {
 
   private record(res: FieldJobResult[]) {
     if (this.closed) return;
+    const t0 = performance.now();
+    for (const r of res) {
+      this.timings.threadMs += r.ms;
+      if (r.ok) this.timings.threadLoadMs += r.loadMs ?? 0;
+    }
     try {
       recordFieldResults(this.db, res, this.onRunFinished);
+      this.timings.recordMs += performance.now() - t0;
     } catch (e) {
       // the database refused (e.g. closing); the fields stay running and resume() picks them up
       console.warn(`[runs] could not record ${res.length} field result(s) of run ${res[0]?.runId}: ${(e as Error).message}`);
@@ -131,7 +176,7 @@ export class PoolRunQueue implements RunQueue {
   async close() {
     this.closed = true;
     this.pending = [];
-    await this.pool.destroy();
+    await this.pool?.destroy();
     for (const r of this.idleWaiters.splice(0)) r();
   }
 }

@@ -5,6 +5,7 @@
  */
 import { and, desc, eq, inArray, isNull, sql } from 'drizzle-orm';
 import type { Db, DbOrTx } from '../db/client.js';
+import { preparedInsert } from '../db/bulk.js';
 import type { RunQueue } from '../services.js';
 import { auditEvents, calibrations, cells, conditions, coverslips, fields, files, instruments, measurements, recipes, runFields, runs, spots, studies } from '../db/schema.js';
 import { RecipeSettings } from '../../shared/schemas/recipes.js';
@@ -121,11 +122,27 @@ export function checkRunInputs(db: Db, recipe: typeof recipes.$inferSelect, stud
   return { ready, blocked };
 }
 
-/** Everything a stateless worker needs for one field of a run. */
-export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
+/** What every job of one run shares (its row, recipe and settings snapshot), read once per batch. */
+type RunPart = { run: typeof runs.$inferSelect; recipe: typeof recipes.$inferSelect; settings: RecipeSettings };
+export type RunPartCache = Map<number, RunPart>;
+
+function runPart(db: Db, runId: number, cache?: RunPartCache): RunPart {
+  const hit = cache?.get(runId);
+  if (hit) return hit;
   const run = db.select().from(runs).where(eq(runs.id, runId)).get();
   if (!run) throw new Error(`run ${runId} vanished`);
   const recipe = db.select().from(recipes).where(eq(recipes.id, run.recipeId)).get()!;
+  const part = { run, recipe, settings: runSettings(db, run) };
+  cache?.set(runId, part);
+  return part;
+}
+
+/**
+ * Everything a stateless worker needs for one field of a run. `cache`: jobs built together (a batch) read each
+ * run's row, recipe and settings snapshot once; the jobs are the same with or without it.
+ */
+export function buildJob(db: Db, runId: number, fieldId: number, cache?: RunPartCache): FieldJob {
+  const { run, recipe, settings } = runPart(db, runId, cache);
   const f = db.select().from(fields).where(eq(fields.id, fieldId)).get();
   if (!f) throw new Error(`field ${fieldId} vanished`);
   const fileRows = db.select().from(files).where(inArray(files.sha256, [f.file1Sha, f.file2Sha])).all();
@@ -140,7 +157,6 @@ export function buildJob(db: Db, runId: number, fieldId: number): FieldJob {
     .where(and(eq(cells.fieldId, fieldId), isNull(cells.deletedAt)))
     .orderBy(cells.id)
     .all();
-  const settings = runSettings(db, run);
   return {
     runId,
     fieldId,
@@ -207,6 +223,9 @@ export function recordFieldResult(db: Db, result: FieldJobResult, onRunFinished?
  */
 export function recordFieldResults(db: Db, results: FieldJobResult[], onRunFinished?: (runId: number) => void): boolean[] {
   const touched = new Set<number>();
+  // one prepared statement per table, bound row by row inside this transaction (server/db/bulk.ts)
+  const insertMeasurements = preparedInsert(db, measurements, ['id', 'createdAt'], 'ignore');
+  const insertSpots = preparedInsert(db, spots, ['id']);
   const wrote = db.transaction((tx) => {
     const provisionalOf = new Map<number, boolean>();
     const at = new Date().toISOString();
@@ -221,15 +240,9 @@ export function recordFieldResults(db: Db, results: FieldJobResult[], onRunFinis
       const provisional = provisionalOf.get(result.runId)!;
       if (result.ok) {
         // cells deleted meanwhile keep their rows (their ids are still valid: the cell existed at compute time)
-        const chunk = 200;
-        for (let i = 0; i < result.measurements.length; i += chunk) {
-          const part = result.measurements.slice(i, i + chunk).map((m) => ({ ...m, runId: result.runId, fieldId: result.fieldId, provisional }));
-          if (part.length) tx.insert(measurements).values(part).onConflictDoNothing().run();
-        }
-        for (let i = 0; i < result.spots.length; i += chunk) {
-          const part = result.spots.slice(i, i + chunk).map((s) => ({ ...s, runId: result.runId, fieldId: result.fieldId }));
-          tx.insert(spots).values(part).run();
-        }
+        const ids = { runId: result.runId, fieldId: result.fieldId };
+        insertMeasurements(result.measurements, { ...ids, provisional });
+        insertSpots(result.spots, ids);
         tx.update(runFields).set({ status: 'done', error: null, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();
       } else {
         tx.update(runFields).set({ status: 'failed', error: result.error, finishedAt: at }).where(and(eq(runFields.runId, result.runId), eq(runFields.fieldId, result.fieldId))).run();

@@ -35,7 +35,7 @@ export { mic, micOptions, equipartition, MIC_DEFAULTS, type MicOptions, type Mic
 export { jointHistogram, histogram1d } from './histogram';
 export { chiSquaredDistance, earthMoversDistance1d } from './distances';
 export { quadraticChiDistance, triangleSimilarity } from './quadratic-chi';
-export { rasterize, fillPolygon, fillEllipse, maskToIndices, type Shape, type Point } from './rasterize';
+export { rasterize, fillPolygon, fillEllipse, maskToIndices, shapeIndices, type Shape, type Point } from './rasterize';
 export { labelRegions, type LabelRegion } from './labels';
 export { extrudeIndices } from './volume';
 export { pixelPass, type PixelPassResult } from './pixel-pass';

@@ -5,7 +5,7 @@
  * rule (shared/analysis/rasterize.ts is the one implementation).
  */
 import { z } from 'zod';
-import { rasterize, rasterizeInto, maskToIndices, type Shape } from '../analysis/rasterize';
+import { rasterizeInto, maskToIndices, shapeIndices, type Shape } from '../analysis/rasterize';
 import { checkRuns, decodeRuns } from '../analysis/rle';
 import { extrudeIndices } from '../analysis/volume';
 
@@ -337,7 +337,7 @@ export function cellsMask(geometries: readonly CellGeometry[], width: number, he
  */
 export function cellIndices(g: CellGeometry, width: number, height: number): Uint32Array {
   const shape = shapeOfGeometry(g);
-  if (shape) return maskToIndices(rasterize(shape, width, height));
+  if (shape) return shapeIndices(shape, width, height);
   if (g.kind === 'label') return decodeRuns(g.rle, width * height);
   return maskToIndices(cellsMask([g], width, height));
 }
