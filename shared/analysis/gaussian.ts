@@ -22,7 +22,7 @@
  *
  * Memory and order: rows are mirrored and filtered one at a time into a ring of rows that the column pass
  * reads while it is still in cache. For R ≤ FUSED_RADIUS (σ ≤ 1.5, the spot default) the ring rows are
- * Float64, the row pass makes four pixels from 16 loads and the column pass four output rows per sweep;
+ * Float64, the row pass makes four pixels from 16 loads and the column pass eight output rows per sweep;
  * each pixel's sum has one fixed order, so its value does not depend on the box, strip or sweep that
  * computed it. Larger radii take the plain two-pass loops (Float32 rows, double sums).
  */
@@ -139,7 +139,7 @@ export const FILTER_STRIP = 256;
  * the kernels padded with zero taps to this radius (x + 0·y = x, so the sums are those of the unpadded
  * kernels), instead of a sweep over the row per three taps with a Float64 accumulator row in between.
  * Measured on a 2048² 16-bit image at σ 1.5 (one core): 120 ms CPU with Float32 ring rows and one output
- * row per column sweep, 83 ms with the Float64 ring and four rows per sweep below.
+ * row per column sweep, 68 ms with the Float64 ring and eight rows per sweep below.
  */
 export const FUSED_RADIUS = 6;
 
@@ -196,15 +196,15 @@ function colPassLoG(G: Float32Array, D: Float32Array, out: Float32Array, o: numb
 }
 
 /**
- * Output rows per column sweep of the fused passes: four rows read 2R + 4 ring rows (8 loads a pixel
- * instead of 26 at R 6), and each loaded value goes into the four sums while it is in a register.
+ * Output rows per column sweep of the fused passes: eight rows read 2·6 + 8 ring rows of G and D (5 loads
+ * a pixel instead of 26), each loaded value serving up to eight sums.
  */
-export const FUSED_BLOCK = 4;
+export const FUSED_BLOCK = 8;
 /** ring rows of the fused passes: the 2·FUSED_RADIUS + 1 rows of one output row plus FUSED_BLOCK − 1 */
 const FUSED_RING = 2 * FUSED_RADIUS + FUSED_BLOCK;
 /**
- * Columns per strip of the fused passes: their ring rows are Float64 (no conversion on the 16 loads of a
- * column sweep), 2 × 17 rows × 128 × 8 bytes = 35 kB, within the first-level cache.
+ * Columns per strip of the fused passes: their ring rows are Float64 (no conversion on the loads of a
+ * column sweep), 2 × 21 rows × 128 × 8 bytes = 43 kB, within the first-level cache.
  */
 export const FUSED_STRIP = 128;
 
@@ -241,39 +241,37 @@ function rowPassLoGFused(t: Float32Array, G: Float64Array, D: Float64Array, q: n
 }
 
 /**
- * scale · Σ_b (G''(b − 6)·G_b + G(b − 6)·D_b) over ring rows b = 0..12 (offsets r[b]) for R ≤ FUSED_RADIUS:
- * FUSED_BLOCK output rows (o, o + bw, …) from ring rows r[0..15], output row m from r[m..m + 12]. Every
- * output adds its 13 terms from the top row down, as the single-row pass does, so a pixel's value does
- * not depend on which pass computed it (nor on the box).
+ * scale · (G''(y) ∗ G + G(y) ∗ D) for R ≤ FUSED_RADIUS: FUSED_BLOCK output rows (o, o + bw, …) from ring rows
+ * r[0..19], output row m centred on r[m + 6], symmetric rows added first, (G[c − k] + G[c + k])·G''(k). Each
+ * output is the same expression as in colPassLoGRow, so a pixel's value does not depend on the sweep (nor
+ * on the box or strip) that computed it.
  */
 function colPassLoGBlock(G: Float64Array, D: Float64Array, out: Float32Array, o: number, bw: number, w: number, g: Float64Array, d2: Float64Array, r: Int32Array, scale: number): void {
   const g0 = g[0], g1 = g[1], g2 = g[2], g3 = g[3], g4 = g[4], g5 = g[5], g6 = g[6];
   const e0 = d2[0], e1 = d2[1], e2 = d2[2], e3 = d2[3], e4 = d2[4], e5 = d2[5], e6 = d2[6];
-  const r0 = r[0], r1 = r[1], r2 = r[2], r3 = r[3], r4 = r[4], r5 = r[5], r6 = r[6], r7 = r[7];
-  const r8 = r[8], r9 = r[9], r10 = r[10], r11 = r[11], r12 = r[12], r13 = r[13], r14 = r[14], r15 = r[15];
-  const o1 = o + bw, o2 = o1 + bw, o3 = o2 + bw;
-  let x, y, a0, a1, a2, a3;
+  const r0 = r[0], r1 = r[1], r2 = r[2], r3 = r[3], r4 = r[4], r5 = r[5], r6 = r[6], r7 = r[7], r8 = r[8], r9 = r[9];
+  const r10 = r[10], r11 = r[11], r12 = r[12], r13 = r[13], r14 = r[14], r15 = r[15], r16 = r[16], r17 = r[17], r18 = r[18], r19 = r[19];
   for (let i = 0; i < w; i++) {
-    x = G[r0 + i]; y = D[r0 + i]; a0 = e6 * x + g6 * y;
-    x = G[r1 + i]; y = D[r1 + i]; a0 += e5 * x + g5 * y; a1 = e6 * x + g6 * y;
-    x = G[r2 + i]; y = D[r2 + i]; a0 += e4 * x + g4 * y; a1 += e5 * x + g5 * y; a2 = e6 * x + g6 * y;
-    x = G[r3 + i]; y = D[r3 + i]; a0 += e3 * x + g3 * y; a1 += e4 * x + g4 * y; a2 += e5 * x + g5 * y; a3 = e6 * x + g6 * y;
-    x = G[r4 + i]; y = D[r4 + i]; a0 += e2 * x + g2 * y; a1 += e3 * x + g3 * y; a2 += e4 * x + g4 * y; a3 += e5 * x + g5 * y;
-    x = G[r5 + i]; y = D[r5 + i]; a0 += e1 * x + g1 * y; a1 += e2 * x + g2 * y; a2 += e3 * x + g3 * y; a3 += e4 * x + g4 * y;
-    x = G[r6 + i]; y = D[r6 + i]; a0 += e0 * x + g0 * y; a1 += e1 * x + g1 * y; a2 += e2 * x + g2 * y; a3 += e3 * x + g3 * y;
-    x = G[r7 + i]; y = D[r7 + i]; a0 += e1 * x + g1 * y; a1 += e0 * x + g0 * y; a2 += e1 * x + g1 * y; a3 += e2 * x + g2 * y;
-    x = G[r8 + i]; y = D[r8 + i]; a0 += e2 * x + g2 * y; a1 += e1 * x + g1 * y; a2 += e0 * x + g0 * y; a3 += e1 * x + g1 * y;
-    x = G[r9 + i]; y = D[r9 + i]; a0 += e3 * x + g3 * y; a1 += e2 * x + g2 * y; a2 += e1 * x + g1 * y; a3 += e0 * x + g0 * y;
-    x = G[r10 + i]; y = D[r10 + i]; a0 += e4 * x + g4 * y; a1 += e3 * x + g3 * y; a2 += e2 * x + g2 * y; a3 += e1 * x + g1 * y;
-    x = G[r11 + i]; y = D[r11 + i]; a0 += e5 * x + g5 * y; a1 += e4 * x + g4 * y; a2 += e3 * x + g3 * y; a3 += e2 * x + g2 * y;
-    x = G[r12 + i]; y = D[r12 + i]; a0 += e6 * x + g6 * y; a1 += e5 * x + g5 * y; a2 += e4 * x + g4 * y; a3 += e3 * x + g3 * y;
-    x = G[r13 + i]; y = D[r13 + i]; a1 += e6 * x + g6 * y; a2 += e5 * x + g5 * y; a3 += e4 * x + g4 * y;
-    x = G[r14 + i]; y = D[r14 + i]; a2 += e6 * x + g6 * y; a3 += e5 * x + g5 * y;
-    x = G[r15 + i]; y = D[r15 + i]; a3 += e6 * x + g6 * y;
-    out[o + i] = scale * a0;
-    out[o1 + i] = scale * a1;
-    out[o2 + i] = scale * a2;
-    out[o3 + i] = scale * a3;
+    const x0 = G[r0 + i], x1 = G[r1 + i], x2 = G[r2 + i], x3 = G[r3 + i], x4 = G[r4 + i], x5 = G[r5 + i], x6 = G[r6 + i], x7 = G[r7 + i], x8 = G[r8 + i], x9 = G[r9 + i];
+    const x10 = G[r10 + i], x11 = G[r11 + i], x12 = G[r12 + i], x13 = G[r13 + i], x14 = G[r14 + i], x15 = G[r15 + i], x16 = G[r16 + i], x17 = G[r17 + i], x18 = G[r18 + i], x19 = G[r19 + i];
+    const y0 = D[r0 + i], y1 = D[r1 + i], y2 = D[r2 + i], y3 = D[r3 + i], y4 = D[r4 + i], y5 = D[r5 + i], y6 = D[r6 + i], y7 = D[r7 + i], y8 = D[r8 + i], y9 = D[r9 + i];
+    const y10 = D[r10 + i], y11 = D[r11 + i], y12 = D[r12 + i], y13 = D[r13 + i], y14 = D[r14 + i], y15 = D[r15 + i], y16 = D[r16 + i], y17 = D[r17 + i], y18 = D[r18 + i], y19 = D[r19 + i];
+    out[o + 0 * bw + i] = scale * (e0 * x6 + g0 * y6 + (e1 * (x5 + x7) + g1 * (y5 + y7)) + (e2 * (x4 + x8) + g2 * (y4 + y8)) + (e3 * (x3 + x9) + g3 * (y3 + y9))
+      + (e4 * (x2 + x10) + g4 * (y2 + y10)) + (e5 * (x1 + x11) + g5 * (y1 + y11)) + (e6 * (x0 + x12) + g6 * (y0 + y12)));
+    out[o + 1 * bw + i] = scale * (e0 * x7 + g0 * y7 + (e1 * (x6 + x8) + g1 * (y6 + y8)) + (e2 * (x5 + x9) + g2 * (y5 + y9)) + (e3 * (x4 + x10) + g3 * (y4 + y10))
+      + (e4 * (x3 + x11) + g4 * (y3 + y11)) + (e5 * (x2 + x12) + g5 * (y2 + y12)) + (e6 * (x1 + x13) + g6 * (y1 + y13)));
+    out[o + 2 * bw + i] = scale * (e0 * x8 + g0 * y8 + (e1 * (x7 + x9) + g1 * (y7 + y9)) + (e2 * (x6 + x10) + g2 * (y6 + y10)) + (e3 * (x5 + x11) + g3 * (y5 + y11))
+      + (e4 * (x4 + x12) + g4 * (y4 + y12)) + (e5 * (x3 + x13) + g5 * (y3 + y13)) + (e6 * (x2 + x14) + g6 * (y2 + y14)));
+    out[o + 3 * bw + i] = scale * (e0 * x9 + g0 * y9 + (e1 * (x8 + x10) + g1 * (y8 + y10)) + (e2 * (x7 + x11) + g2 * (y7 + y11)) + (e3 * (x6 + x12) + g3 * (y6 + y12))
+      + (e4 * (x5 + x13) + g4 * (y5 + y13)) + (e5 * (x4 + x14) + g5 * (y4 + y14)) + (e6 * (x3 + x15) + g6 * (y3 + y15)));
+    out[o + 4 * bw + i] = scale * (e0 * x10 + g0 * y10 + (e1 * (x9 + x11) + g1 * (y9 + y11)) + (e2 * (x8 + x12) + g2 * (y8 + y12)) + (e3 * (x7 + x13) + g3 * (y7 + y13))
+      + (e4 * (x6 + x14) + g4 * (y6 + y14)) + (e5 * (x5 + x15) + g5 * (y5 + y15)) + (e6 * (x4 + x16) + g6 * (y4 + y16)));
+    out[o + 5 * bw + i] = scale * (e0 * x11 + g0 * y11 + (e1 * (x10 + x12) + g1 * (y10 + y12)) + (e2 * (x9 + x13) + g2 * (y9 + y13)) + (e3 * (x8 + x14) + g3 * (y8 + y14))
+      + (e4 * (x7 + x15) + g4 * (y7 + y15)) + (e5 * (x6 + x16) + g5 * (y6 + y16)) + (e6 * (x5 + x17) + g6 * (y5 + y17)));
+    out[o + 6 * bw + i] = scale * (e0 * x12 + g0 * y12 + (e1 * (x11 + x13) + g1 * (y11 + y13)) + (e2 * (x10 + x14) + g2 * (y10 + y14)) + (e3 * (x9 + x15) + g3 * (y9 + y15))
+      + (e4 * (x8 + x16) + g4 * (y8 + y16)) + (e5 * (x7 + x17) + g5 * (y7 + y17)) + (e6 * (x6 + x18) + g6 * (y6 + y18)));
+    out[o + 7 * bw + i] = scale * (e0 * x13 + g0 * y13 + (e1 * (x12 + x14) + g1 * (y12 + y14)) + (e2 * (x11 + x15) + g2 * (y11 + y15)) + (e3 * (x10 + x16) + g3 * (y10 + y16))
+      + (e4 * (x9 + x17) + g4 * (y9 + y17)) + (e5 * (x8 + x18) + g5 * (y8 + y18)) + (e6 * (x7 + x19) + g6 * (y7 + y19)));
   }
 }
 
@@ -281,24 +279,15 @@ function colPassLoGBlock(G: Float64Array, D: Float64Array, out: Float32Array, o:
 function colPassLoGRow(G: Float64Array, D: Float64Array, out: Float32Array, o: number, w: number, g: Float64Array, d2: Float64Array, r: Int32Array, scale: number): void {
   const g0 = g[0], g1 = g[1], g2 = g[2], g3 = g[3], g4 = g[4], g5 = g[5], g6 = g[6];
   const e0 = d2[0], e1 = d2[1], e2 = d2[2], e3 = d2[3], e4 = d2[4], e5 = d2[5], e6 = d2[6];
-  const r0 = r[0], r1 = r[1], r2 = r[2], r3 = r[3], r4 = r[4], r5 = r[5], r6 = r[6], r7 = r[7];
-  const r8 = r[8], r9 = r[9], r10 = r[10], r11 = r[11], r12 = r[12];
-  let x, y, a;
+  const r0 = r[0], r1 = r[1], r2 = r[2], r3 = r[3], r4 = r[4], r5 = r[5], r6 = r[6], r7 = r[7], r8 = r[8], r9 = r[9];
+  const r10 = r[10], r11 = r[11], r12 = r[12];
   for (let i = 0; i < w; i++) {
-    x = G[r0 + i]; y = D[r0 + i]; a = e6 * x + g6 * y;
-    x = G[r1 + i]; y = D[r1 + i]; a += e5 * x + g5 * y;
-    x = G[r2 + i]; y = D[r2 + i]; a += e4 * x + g4 * y;
-    x = G[r3 + i]; y = D[r3 + i]; a += e3 * x + g3 * y;
-    x = G[r4 + i]; y = D[r4 + i]; a += e2 * x + g2 * y;
-    x = G[r5 + i]; y = D[r5 + i]; a += e1 * x + g1 * y;
-    x = G[r6 + i]; y = D[r6 + i]; a += e0 * x + g0 * y;
-    x = G[r7 + i]; y = D[r7 + i]; a += e1 * x + g1 * y;
-    x = G[r8 + i]; y = D[r8 + i]; a += e2 * x + g2 * y;
-    x = G[r9 + i]; y = D[r9 + i]; a += e3 * x + g3 * y;
-    x = G[r10 + i]; y = D[r10 + i]; a += e4 * x + g4 * y;
-    x = G[r11 + i]; y = D[r11 + i]; a += e5 * x + g5 * y;
-    x = G[r12 + i]; y = D[r12 + i]; a += e6 * x + g6 * y;
-    out[o + i] = scale * a;
+    const x0 = G[r0 + i], x1 = G[r1 + i], x2 = G[r2 + i], x3 = G[r3 + i], x4 = G[r4 + i], x5 = G[r5 + i], x6 = G[r6 + i], x7 = G[r7 + i], x8 = G[r8 + i], x9 = G[r9 + i];
+    const x10 = G[r10 + i], x11 = G[r11 + i], x12 = G[r12 + i];
+    const y0 = D[r0 + i], y1 = D[r1 + i], y2 = D[r2 + i], y3 = D[r3 + i], y4 = D[r4 + i], y5 = D[r5 + i], y6 = D[r6 + i], y7 = D[r7 + i], y8 = D[r8 + i], y9 = D[r9 + i];
+    const y10 = D[r10 + i], y11 = D[r11 + i], y12 = D[r12 + i];
+    out[o + i] = scale * (e0 * x6 + g0 * y6 + (e1 * (x5 + x7) + g1 * (y5 + y7)) + (e2 * (x4 + x8) + g2 * (y4 + y8)) + (e3 * (x3 + x9) + g3 * (y3 + y9))
+      + (e4 * (x2 + x10) + g4 * (y2 + y10)) + (e5 * (x1 + x11) + g5 * (y1 + y11)) + (e6 * (x0 + x12) + g6 * (y0 + y12)));
   }
 }
 

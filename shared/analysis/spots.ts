@@ -281,20 +281,28 @@ function deblend(data: ChannelArray, width: number, height: number, spots: Refin
   });
   // a spot with no light of its own once its neighbours' models are subtracted is dropped (null)
   let cur: (Refined | null)[] = spots;
+  // changed[b]: spot b's model (centre, amplitude, or being dropped) changed in the last round. A spot none
+  // of whose neighbours changed would be refined against the same models as in the last round, which gives
+  // the same result: it keeps it (the first round refines every spot that has neighbours)
+  let changed = new Uint8Array(spots.length).fill(1);
   if (near.some((l) => l.length > 0)) {
     for (let round = 0; round < 20; round++) {
       let moved = 0;
-      const prev = cur;
+      const prev = cur, was = changed;
+      changed = new Uint8Array(spots.length);
       cur = prev.map((s, a) => {
         if (s === null || near[a].length === 0) return s;
+        if (round > 0 && !near[a].some((b) => was[b])) return s;
         const others = near[a].map((b) => prev[b]).filter((o): o is Refined => o !== null);
         const r = refineSpot(data, width, height, s.px, s.py, sigma, w, others, scratch);
         if (r === null) {
           moved = Infinity;
+          changed[a] = 1;
           return null;
         }
         r.response = s.response;
         moved = Math.max(moved, Math.abs(r.x - s.x) + Math.abs(r.y - s.y));
+        if (r.x !== s.x || r.y !== s.y || r.amplitude !== s.amplitude) changed[a] = 1;
         return r;
       });
       if (moved < 1e-4) break;
