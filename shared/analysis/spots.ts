@@ -166,13 +166,7 @@ export function detectSpots(
     by0 = 0;
     bx1 = width - 1;
     by1 = height - 1;
-    // integer samples are always finite
-    const float = data instanceof Float32Array || data instanceof Float64Array;
-    for (let i = 0; i < N; i++) {
-      const v = data[i];
-      if (float && !Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
-      if (v < low) low = v;
-    }
+    low = lowestPixel(data);
   } else
     for (let t = 0; t < n; t++) {
       const i = idx[t];
@@ -220,11 +214,9 @@ export function detectSpots(
     }
     return true;
   };
-  const cand: number[] = [];
-  if (idx === null) {
-    for (let byi = 0, p = 0; byi < bh; byi++)
-      for (let bxi = 0; bxi < bw; bxi++, p++) if (resp[p] > threshold && isMax(p, bxi, byi)) cand.push(p);
-  } else
+  let cand: number[] = [];
+  if (idx === null) cand = boxMaxima(resp, bw, bh, threshold, isMax);
+  else
     for (let t = 0; t < n; t++) {
       const i = idx[t];
       const x = i % width, y = (i - x) / width;
@@ -260,6 +252,47 @@ export function detectSpots(
   }
   result.spots = deblend(data, width, height, kept, sigma, w);
   return result;
+}
+
+/** the lowest pixel of an image; a non-finite pixel of float data is refused, quoted (integer samples are always finite) */
+function lowestPixel(data: ChannelArray): number {
+  if (data instanceof Float32Array || data instanceof Float64Array) {
+    let low = Infinity;
+    for (let i = 0, n = data.length; i < n; i++) {
+      const v = data[i];
+      if (!Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
+      if (v < low) low = v;
+    }
+    return low;
+  }
+  // integers kept as integers, the length read once (each halves the time of the scan)
+  const n = data.length;
+  let low = data[0];
+  for (let i = 1; i < n; i++) {
+    const v = data[i];
+    low = v < low ? v : low;
+  }
+  return low;
+}
+
+/**
+ * Box pixels p (row-major, ascending) whose response is above `threshold` and strictly above each of its 8
+ * neighbours: most pixels fail the threshold, one compare; a pixel off the box edge compares its 8
+ * neighbours directly, one on the edge through `isMax` (neighbours beyond the box do not exist).
+ */
+function boxMaxima(resp: Float32Array, bw: number, bh: number, threshold: number, isMax: (p: number, bxi: number, byi: number) => boolean): number[] {
+  const cand: number[] = [];
+  for (let byi = 0, p = 0; byi < bh; byi++) {
+    const inner = byi > 0 && byi < bh - 1;
+    for (let bxi = 0; bxi < bw; bxi++, p++) {
+      const r = resp[p];
+      if (!(r > threshold)) continue;
+      if (inner && bxi > 0 && bxi < bw - 1) {
+        if (r > resp[p - bw - 1] && r > resp[p - bw] && r > resp[p - bw + 1] && r > resp[p - 1] && r > resp[p + 1] && r > resp[p + bw - 1] && r > resp[p + bw] && r > resp[p + bw + 1]) cand.push(p);
+      } else if (isMax(p, bxi, byi)) cand.push(p);
+    }
+  }
+  return cand;
 }
 
 /**

@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeObjects, detectSpots, gaussianFilter, gaussianKernels, laplacianOfGaussian, Xoshiro128 } from '../../shared/analysis/index';
-import { medianAndMad, medianOfFloat32Bits } from '../../shared/analysis/robust-scale';
+import { medianAndMad, medianOfFloat32Bits, selectRank } from '../../shared/analysis/robust-scale';
 
 function sortedMedian(a: Float32Array): number {
   const s = Float64Array.from(a).sort();
@@ -66,6 +66,41 @@ describe('exact median and MAD', () => {
         if (n >= 1001 && Math.abs(shift) <= scale) expect(r.madPath).toBe('bracket');
       }
     }
+  });
+
+  it('mixtures, heavy tails, values near 0 and a median about one MAD from 0 give the sorted definition', () => {
+    const gens: (() => number)[] = [
+      () => normal() / normal(),
+      () => (rng.nextFloat() < 0.7 ? 0.01 * normal() : 50 + 10 * normal()),
+      () => -Math.log(1 - rng.nextFloat()),
+      () => (rng.nextFloat() < 0.5 ? 1e-20 * normal() : normal()),
+      () => (rng.nextFloat() < 0.5 ? 1 + 0.1 * normal() : 0.01 * normal()),
+      () => (rng.nextFloat() < 0.01 ? Infinity : normal()),
+    ];
+    let bracketed = 0;
+    for (const g of gens)
+      for (const n of [100, 5000, 30001]) {
+        const a = Float32Array.from({ length: n }, g);
+        const r = medianAndMad(a);
+        expect(r.median).toBe(sortedMedian(a));
+        expect(r.mad).toBe(sortedMad(a));
+        if (r.madPath === 'bracket') bracketed++;
+      }
+    // the one-pass bracket takes most of them
+    expect(bracketed).toBeGreaterThan(9);
+  });
+
+  it('selectRank finds every rank of values with ties, and refuses a rank outside the values', () => {
+    for (const n of [1, 2, 3, 10, 257]) {
+      const a = Float64Array.from({ length: n }, () => rng.nextInt(Math.max(1, n >> 2)) - 0.5 * rng.nextInt(3));
+      const sorted = Float64Array.from(a).sort();
+      for (let k = 0; k < n; k++) {
+        const b = Float64Array.from(a);
+        expect(selectRank(b, k)).toBe(sorted[k]);
+        for (let i = 0; i < n; i++) expect(i < k ? b[i] <= b[k] : b[i] >= b[k]).toBe(true);
+      }
+    }
+    expect(() => selectRank(new Float64Array(3), 3)).toThrow(/rank 3 outside 0..2/);
   });
 
   it('many equal values, a flat region and two spikes take the counting path, with the same definition', () => {
