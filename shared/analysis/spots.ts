@@ -276,17 +276,24 @@ function lowestPixel(data: ChannelArray): number {
 }
 
 /**
- * Box pixels p (row-major, ascending) whose response is above `threshold` and strictly above each of its 8
- * neighbours: most pixels fail the threshold, one compare; a pixel off the box edge compares its 8
- * neighbours directly, one on the edge through `isMax` (neighbours beyond the box do not exist).
+ * Box pixels p (row-major, ascending) whose response is above `threshold` (> 0) and strictly above each of
+ * its 8 neighbours: most pixels fail the threshold, one integer compare of the Float32 bits (positive
+ * Float32 values order as their bits, negative ones have the sign bit: r > threshold ⟺ bits(r) > tb); a
+ * pixel off the box edge compares its 8 neighbours directly, one on the edge through `isMax` (neighbours
+ * beyond the box do not exist).
  */
 function boxMaxima(resp: Float32Array, bw: number, bh: number, threshold: number, isMax: (p: number, bxi: number, byi: number) => boolean): number[] {
   const cand: number[] = [];
+  const bits = new Int32Array(resp.buffer, resp.byteOffset, resp.length);
+  // the largest Float32 bits not above the threshold: fround rounds to the nearest, so a Float32 above
+  // the threshold is above fround(threshold), or equal to it when that rounded up
+  const t32 = new Float32Array([threshold]);
+  const tb = new Int32Array(t32.buffer)[0] - (t32[0] > threshold ? 1 : 0);
   for (let byi = 0, p = 0; byi < bh; byi++) {
     const inner = byi > 0 && byi < bh - 1;
     for (let bxi = 0; bxi < bw; bxi++, p++) {
+      if (bits[p] <= tb) continue;
       const r = resp[p];
-      if (!(r > threshold)) continue;
       if (inner && bxi > 0 && bxi < bw - 1) {
         if (r > resp[p - bw - 1] && r > resp[p - bw] && r > resp[p - bw + 1] && r > resp[p - 1] && r > resp[p + 1] && r > resp[p + bw - 1] && r > resp[p + bw] && r > resp[p + bw + 1]) cand.push(p);
       } else if (isMax(p, bxi, byi)) cand.push(p);
