@@ -129,9 +129,10 @@ class PaddedRows {
 }
 
 /**
- * Columns per strip: the ring of 2(2R + 1) filtered Float32 rows of a strip stays within the first-level
- * cache (26 rows × 256 × 4 bytes = 26 kB at σ 1.5), which makes the column pass about twice as fast as
- * over whole 2048-pixel rows. Each output pixel gets the same sums in the same order either way.
+ * Columns per strip of the plain passes (R > FUSED_RADIUS): the ring of 2(2R + 1) filtered Float32 rows of
+ * a strip stays within the first-level cache (26 rows × 256 × 4 bytes = 26 kB at R 6), which makes the
+ * column pass about twice as fast as over whole 2048-pixel rows. Each output pixel gets the same sums in
+ * the same order either way.
  */
 export const FILTER_STRIP = 256;
 /**
