@@ -8,22 +8,21 @@
  *
  * Method (counting by digits; Knuth, The Art of Computer Programming vol. 3, 1998, §5.2.5): the Float32
  * bits are mapped to keys that sort as the numbers do (sign bit set: all bits flipped; otherwise the sign
- * bit set). The median: one counting pass over the top 16 key bits finds the bucket of each middle rank,
- * a second over the low 16 bits of that bucket's keys the exact key. The MAD reuses the first pass's
- * counts: a bucket is an interval of values, so the number of values within [m − t, m + t] is bracketed
- * by whole buckets, which gives deviations tlo ≤ thi with at most the middle ranks' count below tlo and
- * at least it up to thi; one pass counts the deviations below tlo and keeps those in [tlo, thi] (about
- * one percent of them for noise-like values), which are sorted. When the bracket would keep more than
- * an eighth of the values (many equal values, e.g. a flat region), or does not hold the middle ranks,
- * the deviations are counted by digits as the median is (two more passes) — the same exact value either
- * way. No copy of the values or of the deviations is made in either case.
- */
+ * bit set). One counting pass over the top 16 key bits finds the bucket of each middle rank, so the median
+ * m lies in a known interval [mA, mB]. A bucket is an interval of values, so the number of values within t
+ * of m is bracketed by whole buckets for every m in [mA, mB]; this gives deviations tlo ≤ thi with at most
+ * the middle ranks' count below tlo and more than it up to thi, and two zones of buckets, around m − t and
+ * m + t, that hold every value whose deviation can lie between them. A second pass counts the low 16 key
+ * bits of the middle ranks' buckets (the exact median) and keeps the values of the zones (1–2 % of them for
+ * noise-like values); the deviations of the kept values give the MAD by selection (`selectRank`), the
+ * values between the zones being only counted. The result is checked against bounds on the deviations of
+ * the counted values (`madFromZones`); when the check fails, the zones would keep more than an eighth of
+ * the values (many equal values, e.g. a flat region) or the median's bucket edges are not finite, the
+ * deviations are counted by digits as the median is (two more passes) — the same exact value either way.
+ * No copy of all the values or of all the deviations is made in either case. */
 
 const F = new Float32Array(1);
 const I = new Int32Array(F.buffer);
-const SIGN_F64 = new Float64Array(1);
-/** the high word of SIGN_F64 (little-endian, as every platform these typed arrays run on) */
-const SIGN_HIGH = new Int32Array(SIGN_F64.buffer);
 
 /** sortable key of Float32 bits u: all bits flipped for a negative value, else the sign bit set */
 function keyOf(u: number): number {
@@ -145,8 +144,11 @@ export function medianAndMad(vals: Float32Array): MedianMad {
   if (n === 0) throw new RangeError('median of no values');
   const bits = new Int32Array(vals.buffer, vals.byteOffset, n);
   const hist = topCounts(bits);
-  const m = medianFromCounts(bits, hist);
   const { kLo, kHi } = middleRanks(n);
+  const [bLo, rLo] = bucketOfRank(hist, kLo);
+  const [bHi, rHi] = bucketOfRank(hist, kHi);
+  // the median lies in [mA, mB], the values of buckets bLo..bHi (NaN edges: no bracket, counted by digits)
+  const mA = keyToFloat(bLo << 16), mB = keyToFloat(((bHi << 16) | 0xffff) >>> 0);
   // prefix counts: P[b] = number of values in buckets below b
   const P = new Float64Array(65537);
   let first = -1, last = -1;
@@ -157,57 +159,173 @@ export function medianAndMad(vals: Float32Array): MedianMad {
       last = b;
     }
   }
-  // values within [m − t, m + t]: at most those of the buckets from bucketOf(m − t) − 1 to bucketOf(m + t) + 1,
-  // at least those strictly between bucketOf(m − t) and bucketOf(m + t)
-  const upper = (t: number) => P[Math.min(65535, bucketOf(m + t) + 1) + 1] - P[Math.max(0, bucketOf(m - t) - 1)];
-  const lower = (t: number) => {
-    const a = bucketOf(m - t) + 1, b = bucketOf(m + t) - 1;
-    return a <= b ? P[b + 1] - P[a] : 0;
-  };
-  const span = Math.max(Math.abs(keyToFloat(first << 16) - m), Math.abs(keyToFloat((last << 16) | 0xffff) - m));
-  // tlo: the largest t with at most kLo values within t; thi: the smallest with more than kHi (bisection)
-  let a = 0, b = span;
-  if (upper(0) > kLo) b = 0;
-  else
+  const count = (b0: number, b1: number) => (b0 <= b1 ? P[b1 + 1] - P[b0] : 0);
+  const clamp = (b: number) => Math.min(65535, Math.max(0, b));
+  // values within t of every possible median: at most those of the buckets from bucketOf(mA − t) − 1 to
+  // bucketOf(mB + t) + 1; at least those strictly between bucketOf(mB − t) and bucketOf(mA + t)
+  const upper = (t: number) => count(clamp(bucketOf(mA - t) - 1), clamp(bucketOf(mB + t) + 1));
+  const lower = (t: number) => count(bucketOf(mB - t) + 1, bucketOf(mA + t) - 1);
+  let zones: Zones | null = null;
+  if (Number.isFinite(mA) && Number.isFinite(mB)) {
+    const span = Math.max(Math.abs(keyToFloat(first << 16) - mA), Math.abs(keyToFloat(((last << 16) | 0xffff) >>> 0) - mB));
+    // tlo: the largest t with at most kLo values within t; thi: the smallest with more than kHi (bisection)
+    let a = 0, b = span;
+    if (upper(0) > kLo) b = 0;
+    else
+      for (let it = 0; it < 80; it++) {
+        const t = (a + b) / 2;
+        if (upper(t) <= kLo) a = t;
+        else b = t;
+      }
+    const tlo = a;
+    a = 0;
+    b = span * 2 + Number.MIN_VALUE;
     for (let it = 0; it < 80; it++) {
       const t = (a + b) / 2;
-      if (upper(t) <= kLo) a = t;
-      else b = t;
+      if (lower(t) > kHi) b = t;
+      else a = t;
     }
-  const tlo = a;
-  a = 0;
-  b = span * 2 + Number.MIN_VALUE;
-  for (let it = 0; it < 80; it++) {
-    const t = (a + b) / 2;
-    if (lower(t) > kHi) b = t;
-    else a = t;
+    const thi = b;
+    // the deviations in [tlo, thi] come from the buckets around m − t and m + t (zones, kept); the buckets
+    // between the zones hold smaller deviations, those beyond them larger ones (both only counted)
+    let l0 = clamp(bucketOf(mA - thi) - 1), l1 = clamp(bucketOf(mB - tlo) + 1);
+    let r0 = clamp(bucketOf(mA + tlo) - 1), r1 = clamp(bucketOf(mB + thi) + 1);
+    if (l1 + 1 >= r0) {
+      l1 = r1;
+      r0 = r1 + 1;
+    }
+    const kept = count(l0, l1) + count(r0, r1);
+    if (Number.isFinite(thi) && kept <= n / 8) zones = { l0, l1, r0, r1, kept };
   }
-  const thi = b;
-  const estimate = upper(thi) - lower(tlo);
-  if (estimate <= n / 8 && Number.isFinite(thi) && tlo <= thi) {
-    const keep = new Float64Array(Math.min(n, estimate + 1024));
-    let below = 0, c = 0, full = false;
-    const sign = SIGN_HIGH;
+  // one pass: the low 16 key bits of the middle ranks' buckets (the exact median), and the values of the zones
+  const lowLo = new Int32Array(65536), lowHi = bLo === bHi ? lowLo : new Int32Array(65536);
+  const keep = new Float32Array(zones ? zones.kept : 0);
+  if (zones) {
+    // what each bucket is: KEEP (a zone), LOW / HIGH (the middle ranks'); most are none, one load and test
+    const role = new Uint8Array(65536);
+    role.fill(KEEP, zones.l0, zones.l1 + 1);
+    if (zones.r0 <= zones.r1) role.fill(KEEP, zones.r0, zones.r1 + 1);
+    role[bLo] |= LOW;
+    if (bHi !== bLo) role[bHi] |= HIGH;
+    let c = 0;
     for (let i = 0; i < n; i++) {
-      const d = Math.fround(Math.abs(vals[i] - m));
-      // d < tlo counted without a branch (half the deviations are below, in no predictable order): the
-      // sign bit of d − tlo, which is exact for finite values (no difference of unequal values is 0)
-      SIGN_F64[0] = d - tlo;
-      below += sign[1] >>> 31;
-      // rarely true, so well predicted; the exact test follows
-      if ((d - tlo) * (thi - d) >= 0 && d >= tlo && d <= thi) {
-        if (c === keep.length) {
-          full = true;
-          break;
-        }
-        keep[c++] = d;
-      }
+      const u = bits[i];
+      const key = u ^ ((u >> 31) | -0x80000000);
+      const f = role[key >>> 16];
+      if (f === 0) continue;
+      if (f & KEEP) keep[c++] = vals[i];
+      if (f & LOW) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
+      else if (f & HIGH) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
     }
-    if (!full && below <= kLo && below + c > kHi) {
-      const s = keep.subarray(0, c).sort();
-      const hi = s[kHi - below];
-      return { median: m, mad: kLo === kHi ? hi : (s[kLo - below] + hi) / 2, madPath: 'bracket' };
+  } else
+    for (let i = 0; i < n; i++) {
+      const u = bits[i];
+      const key = u ^ ((u >> 31) | -0x80000000);
+      const b = key >>> 16;
+      if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
+      else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
     }
+  const hi = valueInBucket(bHi, lowHi, rHi);
+  const m = kLo === kHi ? hi : (valueInBucket(bLo, lowLo, rLo) + hi) / 2;
+  if (zones) {
+    const mad = madFromZones(keep, m, zones, count, kLo, kHi);
+    if (mad !== null) return { median: m, mad, madPath: 'bracket' };
   }
   return { median: m, mad: madByDigits(vals, m), madPath: 'digits' };
+}
+
+const KEEP = 1, LOW = 2, HIGH = 4;
+
+/** bucket ranges l0..l1 and r0..r1 (inclusive; r0 > r1 when empty) whose `kept` values are kept */
+interface Zones {
+  l0: number;
+  l1: number;
+  r0: number;
+  r1: number;
+  kept: number;
+}
+
+const deviation = (v: number, m: number) => Math.fround(Math.abs(v - m));
+
+/**
+ * The MAD from the kept values, or null when the zones do not bracket the middle ranks. The values between
+ * the zones (buckets l1 + 1 .. r0 − 1) are only counted; a value v ↦ fround(|v − m|) falls as v rises to
+ * m and rises after it (rounding is monotonic), so their deviations are at most those of the range's two
+ * end values, and the values beyond the zones' outer ends have at least the deviations of those ends. When
+ * the kLo-th and kHi-th smallest deviations, ranked as if every counted value between were below the kept
+ * ones, are at least the first bound and at most the second, they are the true ones.
+ */
+function madFromZones(keep: Float32Array, m: number, z: Zones, count: (b0: number, b1: number) => number, kLo: number, kHi: number): number | null {
+  const below = count(z.l1 + 1, z.r0 - 1);
+  const c = keep.length;
+  if (!(below <= kLo && below + c > kHi)) return null;
+  const d = new Float64Array(c);
+  for (let i = 0; i < c; i++) d[i] = deviation(keep[i], m);
+  const dLo = selectRank(d, kLo - below);
+  // the next rank: the least value above position kLo − below
+  let dHi = dLo;
+  if (kHi > kLo) {
+    dHi = Infinity;
+    for (let i = kLo - below + 1; i < c; i++) if (d[i] < dHi) dHi = d[i];
+  }
+  const insideMax = below === 0 ? -Infinity : Math.max(deviation(keyToFloat(((z.l1 + 1) << 16) >>> 0), m), deviation(keyToFloat((((z.r0 - 1) << 16) | 0xffff) >>> 0), m));
+  let outsideMin = Infinity;
+  if (z.l0 > 0) {
+    const edge = keyToFloat((((z.l0 - 1) << 16) | 0xffff) >>> 0);
+    if (!(edge <= m)) return null;
+    outsideMin = Math.min(outsideMin, deviation(edge, m));
+  }
+  const right = z.r0 <= z.r1 ? z.r1 : z.l1;
+  if (right < 65535) {
+    const edge = keyToFloat(((right + 1) << 16) >>> 0);
+    if (!(edge >= m)) return null;
+    outsideMin = Math.min(outsideMin, deviation(edge, m));
+  }
+  if (!(insideMax <= dLo && outsideMin >= dHi)) return null;
+  return kLo === kHi ? dHi : (dLo + dHi) / 2;
+}
+
+/**
+ * The k-th smallest of a (0-based), rearranging a so that a[i] ≤ a[k] ≤ a[j] for i < k < j: Hoare's
+ * selection (Hoare 1961, "Algorithm 65: FIND", Commun. ACM 4:321–322, doi:10.1145/366622.366647) with
+ * the median of three as pivot; after 2·log₂ n + 8 rounds the remaining range is sorted instead, so the
+ * time stays O(n log n) on any input.
+ */
+export function selectRank(a: Float64Array, k: number): number {
+  if (!(Number.isInteger(k) && k >= 0 && k < a.length)) throw new RangeError(`rank ${k} outside 0..${a.length - 1}`);
+  let lo = 0, hi = a.length - 1;
+  let rounds = 2 * Math.ceil(Math.log2(a.length + 1)) + 8;
+  while (hi > lo) {
+    if (rounds-- === 0) {
+      a.subarray(lo, hi + 1).sort();
+      return a[k];
+    }
+    const mid = (lo + hi) >>> 1;
+    // median of three to a[mid]
+    if (a[mid] < a[lo]) swap(a, mid, lo);
+    if (a[hi] < a[lo]) swap(a, hi, lo);
+    if (a[hi] < a[mid]) swap(a, hi, mid);
+    const pivot = a[mid];
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) i++;
+      while (a[j] > pivot) j--;
+      if (i <= j) {
+        swap(a, i, j);
+        i++;
+        j--;
+      }
+    }
+    // a[lo..j] ≤ pivot ≤ a[i..hi], and j < i; between them values equal to the pivot
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else return a[k];
+  }
+  return a[k];
+}
+
+function swap(a: Float64Array, i: number, j: number): void {
+  const t = a[i];
+  a[i] = a[j];
+  a[j] = t;
 }

@@ -166,13 +166,7 @@ export function detectSpots(
     by0 = 0;
     bx1 = width - 1;
     by1 = height - 1;
-    // integer samples are always finite
-    const float = data instanceof Float32Array || data instanceof Float64Array;
-    for (let i = 0; i < N; i++) {
-      const v = data[i];
-      if (float && !Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
-      if (v < low) low = v;
-    }
+    low = lowestPixel(data);
   } else
     for (let t = 0; t < n; t++) {
       const i = idx[t];
@@ -220,11 +214,9 @@ export function detectSpots(
     }
     return true;
   };
-  const cand: number[] = [];
-  if (idx === null) {
-    for (let byi = 0, p = 0; byi < bh; byi++)
-      for (let bxi = 0; bxi < bw; bxi++, p++) if (resp[p] > threshold && isMax(p, bxi, byi)) cand.push(p);
-  } else
+  let cand: number[] = [];
+  if (idx === null) cand = boxMaxima(resp, bw, bh, threshold, isMax);
+  else
     for (let t = 0; t < n; t++) {
       const i = idx[t];
       const x = i % width, y = (i - x) / width;
@@ -262,6 +254,54 @@ export function detectSpots(
   return result;
 }
 
+/** the lowest pixel of an image; a non-finite pixel of float data is refused, quoted (integer samples are always finite) */
+function lowestPixel(data: ChannelArray): number {
+  if (data instanceof Float32Array || data instanceof Float64Array) {
+    let low = Infinity;
+    for (let i = 0, n = data.length; i < n; i++) {
+      const v = data[i];
+      if (!Number.isFinite(v)) throw new RangeError(`spot detection needs finite pixels; pixel ${i} is ${v}`);
+      if (v < low) low = v;
+    }
+    return low;
+  }
+  // integers kept as integers, the length read once (each halves the time of the scan)
+  const n = data.length;
+  let low = data[0];
+  for (let i = 1; i < n; i++) {
+    const v = data[i];
+    low = v < low ? v : low;
+  }
+  return low;
+}
+
+/**
+ * Box pixels p (row-major, ascending) whose response is above `threshold` (> 0) and strictly above each of
+ * its 8 neighbours: most pixels fail the threshold, one integer compare of the Float32 bits (positive
+ * Float32 values order as their bits, negative ones have the sign bit: r > threshold ⟺ bits(r) > tb); a
+ * pixel off the box edge compares its 8 neighbours directly, one on the edge through `isMax` (neighbours
+ * beyond the box do not exist).
+ */
+function boxMaxima(resp: Float32Array, bw: number, bh: number, threshold: number, isMax: (p: number, bxi: number, byi: number) => boolean): number[] {
+  const cand: number[] = [];
+  const bits = new Int32Array(resp.buffer, resp.byteOffset, resp.length);
+  // the largest Float32 bits not above the threshold: fround rounds to the nearest, so a Float32 above
+  // the threshold is above fround(threshold), or equal to it when that rounded up
+  const t32 = new Float32Array([threshold]);
+  const tb = new Int32Array(t32.buffer)[0] - (t32[0] > threshold ? 1 : 0);
+  for (let byi = 0, p = 0; byi < bh; byi++) {
+    const inner = byi > 0 && byi < bh - 1;
+    for (let bxi = 0; bxi < bw; bxi++, p++) {
+      if (bits[p] <= tb) continue;
+      const r = resp[p];
+      if (inner && bxi > 0 && bxi < bw - 1) {
+        if (r > resp[p - bw - 1] && r > resp[p - bw] && r > resp[p - bw + 1] && r > resp[p - 1] && r > resp[p + 1] && r > resp[p + bw - 1] && r > resp[p + bw] && r > resp[p + bw + 1]) cand.push(p);
+      } else if (isMax(p, bxi, byi)) cand.push(p);
+    }
+  }
+  return cand;
+}
+
 /**
  * Spots whose windows reach each other's light are refined again, each against the image minus the
  * Gaussian models (amplitude A·exp(−r²/2σ²), σ taken as the spot's width) of its neighbours at their
@@ -281,20 +321,28 @@ function deblend(data: ChannelArray, width: number, height: number, spots: Refin
   });
   // a spot with no light of its own once its neighbours' models are subtracted is dropped (null)
   let cur: (Refined | null)[] = spots;
+  // changed[b]: spot b's model (centre, amplitude, or being dropped) changed in the last round. A spot none
+  // of whose neighbours changed would be refined against the same models as in the last round, which gives
+  // the same result: it keeps it (the first round refines every spot that has neighbours)
+  let changed = new Uint8Array(spots.length).fill(1);
   if (near.some((l) => l.length > 0)) {
     for (let round = 0; round < 20; round++) {
       let moved = 0;
-      const prev = cur;
+      const prev = cur, was = changed;
+      changed = new Uint8Array(spots.length);
       cur = prev.map((s, a) => {
         if (s === null || near[a].length === 0) return s;
+        if (round > 0 && !near[a].some((b) => was[b])) return s;
         const others = near[a].map((b) => prev[b]).filter((o): o is Refined => o !== null);
         const r = refineSpot(data, width, height, s.px, s.py, sigma, w, others, scratch);
         if (r === null) {
           moved = Infinity;
+          changed[a] = 1;
           return null;
         }
         r.response = s.response;
         moved = Math.max(moved, Math.abs(r.x - s.x) + Math.abs(r.y - s.y));
+        if (r.x !== s.x || r.y !== s.y || r.amplitude !== s.amplitude) changed[a] = 1;
         return r;
       });
       if (moved < 1e-4) break;

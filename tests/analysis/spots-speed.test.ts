@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeObjects, detectSpots, gaussianFilter, gaussianKernels, laplacianOfGaussian, Xoshiro128 } from '../../shared/analysis/index';
-import { medianAndMad, medianOfFloat32Bits } from '../../shared/analysis/robust-scale';
+import { medianAndMad, medianOfFloat32Bits, selectRank } from '../../shared/analysis/robust-scale';
 
 function sortedMedian(a: Float32Array): number {
   const s = Float64Array.from(a).sort();
@@ -66,6 +66,41 @@ describe('exact median and MAD', () => {
         if (n >= 1001 && Math.abs(shift) <= scale) expect(r.madPath).toBe('bracket');
       }
     }
+  });
+
+  it('mixtures, heavy tails, values near 0 and a median about one MAD from 0 give the sorted definition', () => {
+    const gens: (() => number)[] = [
+      () => normal() / normal(),
+      () => (rng.nextFloat() < 0.7 ? 0.01 * normal() : 50 + 10 * normal()),
+      () => -Math.log(1 - rng.nextFloat()),
+      () => (rng.nextFloat() < 0.5 ? 1e-20 * normal() : normal()),
+      () => (rng.nextFloat() < 0.5 ? 1 + 0.1 * normal() : 0.01 * normal()),
+      () => (rng.nextFloat() < 0.01 ? Infinity : normal()),
+    ];
+    let bracketed = 0;
+    for (const g of gens)
+      for (const n of [100, 5000, 30001]) {
+        const a = Float32Array.from({ length: n }, g);
+        const r = medianAndMad(a);
+        expect(r.median).toBe(sortedMedian(a));
+        expect(r.mad).toBe(sortedMad(a));
+        if (r.madPath === 'bracket') bracketed++;
+      }
+    // the one-pass bracket takes most of them
+    expect(bracketed).toBeGreaterThan(9);
+  });
+
+  it('selectRank finds every rank of values with ties, and refuses a rank outside the values', () => {
+    for (const n of [1, 2, 3, 10, 257]) {
+      const a = Float64Array.from({ length: n }, () => rng.nextInt(Math.max(1, n >> 2)) - 0.5 * rng.nextInt(3));
+      const sorted = Float64Array.from(a).sort();
+      for (let k = 0; k < n; k++) {
+        const b = Float64Array.from(a);
+        expect(selectRank(b, k)).toBe(sorted[k]);
+        for (let i = 0; i < n; i++) expect(i < k ? b[i] <= b[k] : b[i] >= b[k]).toBe(true);
+      }
+    }
+    expect(() => selectRank(new Float64Array(3), 3)).toThrow(/rank 3 outside 0..2/);
   });
 
   it('many equal values, a flat region and two spikes take the counting path, with the same definition', () => {
@@ -140,6 +175,23 @@ describe('streamed separable filters', () => {
         }
       }
     });
+
+  it('the fused LoG gives each pixel the same value whichever box, strip or column sweep computes it', () => {
+    // 300 columns: three strips; 61 rows: blocks of eight output rows and single tail rows, at several offsets
+    const rng = new Xoshiro128(3);
+    const w = 300, h = 61;
+    const img = Float32Array.from({ length: w * h }, () => rng.nextFloat() * 1000 - 100);
+    for (const sigma of [1.5, 1, 0.6]) {
+      const whole = laplacianOfGaussian(img, w, h, sigma, { x0: 0, y0: 0, x1: w, y1: h }, 3);
+      for (const b of [{ x0: 5, y0: 3, x1: 290, y1: 40 }, { x0: 130, y0: 0, x1: 131, y1: 61 }, { x0: 0, y0: 17, x1: 300, y1: 26 }, { x0: 77, y0: 50, x1: 211, y1: 61 }]) {
+        const part = laplacianOfGaussian(img, w, h, sigma, b, 3);
+        const bw = b.x1 - b.x0;
+        let differ = 0;
+        for (let y = b.y0; y < b.y1; y++) for (let x = b.x0; x < b.x1; x++) if (part[(y - b.y0) * bw + x - b.x0] !== whole[y * w + x]) differ++;
+        expect(differ, `σ ${sigma}, box ${JSON.stringify(b)}`).toBe(0);
+      }
+    }
+  });
 
   it('a non-finite pixel within reach of the box is refused; one beyond reach is not read', () => {
     const w = 40, img = new Float32Array(w * w).fill(10);
