@@ -1,6 +1,8 @@
 /**
  * Uploaded and imported files are checked and decoded in a separate thread (piscina) with a heap limit
- * (`DECODE_HEAP_MB`, V8 `resourceLimits`) and a time limit (`DECODE_TIMEOUT_MS`, counted from submission).
+ * (`DECODE_HEAP_MB`, V8 `resourceLimits`) and a time limit (`DECODE_TIMEOUT_MS`, counted from the moment a
+ * thread takes the task: tasks wait their turn here, THREADS at a time, so waiting behind other uploads or
+ * measurements on a loaded machine does not use up a task's time).
  * The bounded decoders and the decoded-bytes budget stop hostile files first; this is the second wall: if
  * the thread runs out of memory or time it is ended, the request gets a one-line 422 and the web server
  * keeps serving. Note that typed-array pixel buffers live outside the V8 heap; the decoded-bytes budget
@@ -20,8 +22,40 @@ const WORKER_FILE = path.join(path.dirname(fileURLToPath(import.meta.url)), 'dec
 /** Decoding threads at once; more uploads wait their turn (each may hold up to MAX_DECODED_BYTES). */
 const THREADS = 2;
 
+/**
+ * At most `slots` holders at once, the others waiting first come first served; a released slot is handed
+ * straight to the next waiter (so no newcomer can slip in between).
+ */
+export class SlotGate {
+  private held = 0;
+  private waiting: (() => void)[] = [];
+  constructor(readonly slots: number) {
+    if (!(Number.isInteger(slots) && slots >= 1)) throw new RangeError(`a gate needs a whole number of slots ≥ 1, received ${slots}`);
+  }
+  /** Resolves once the caller holds a slot. */
+  acquire(): Promise<void> {
+    if (this.held < this.slots) {
+      this.held++;
+      return Promise.resolve();
+    }
+    return new Promise<void>((r) => this.waiting.push(r));
+  }
+  release(): void {
+    const next = this.waiting.shift();
+    if (next) next();
+    else if (this.held > 0) this.held--;
+    else throw new Error('release() without a held slot');
+  }
+  /** slots held, callers waiting */
+  get state(): { held: number; waiting: number } {
+    return { held: this.held, waiting: this.waiting.length };
+  }
+}
+
 export class DecodePool {
   private pool: Piscina;
+  /** the tasks handed to the threads, THREADS at a time (the time limit starts when a task gets its slot) */
+  private gate = new SlotGate(THREADS);
   constructor(private env: Pick<AppContext['env'], 'DECODE_HEAP_MB' | 'DECODE_TIMEOUT_MS' | 'PIXEL_BUDGET' | 'MAX_DECODED_BYTES'>) {
     this.pool = new Piscina({
       filename: WORKER_FILE,
@@ -51,7 +85,13 @@ export class DecodePool {
           : task.kind === 'shift' || task.kind === 'bleed'
             ? [...new Set((task.kind === 'shift' ? [task.field] : task.fields).flatMap((f) => [f.bytes1.buffer, f.bytes2?.buffer]).filter((b) => b !== undefined))] as ArrayBuffer[]
             : undefined;
-      reply = await this.pool.run(task, { signal: AbortSignal.timeout(this.env.DECODE_TIMEOUT_MS), transferList });
+      await this.gate.acquire();
+      try {
+        // a thread is free: the time limit starts now
+        reply = await this.pool.run(task, { signal: AbortSignal.timeout(this.env.DECODE_TIMEOUT_MS), transferList });
+      } finally {
+        this.gate.release();
+      }
     } catch (e) {
       const err = e as { name?: string; code?: string; message?: string };
       if (err?.name === 'AbortError') {

@@ -45,7 +45,7 @@
  *   when a saturated pixel has weight in its interpolation. The calibration is recorded in the provenance;
  *   a field without an instrument or an approved calibration fails with the reason (never measured uncorrected).
  */
-import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, unmixChannels, analyzeObjects, analyzeObjects3D, spot3Options, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ObjectResult, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
+import { measureRegion, computeThresholds, collectPairs, prepare, alignChannel, alignedAt, alignAndUnmix, unmixChannels, analyzeObjects, analyzeObjects3D, spot3Options, objectMeasures, ENGINE_VERSION, type ChannelArray, type ObjectOptions, type ObjectResult, type PreparedPairs, type ThresholdInfo, type ThresholdOptions } from '../../shared/analysis/index.js';
 import { THREAD_MIN_PAIRS, type SweepThreads } from '../analysis/sweep-threads.js';
 import { cellVoxels, type CellGeometry } from '../../shared/schemas/cells.js';
 import { COEFFICIENTS, OBJECT_KEYS, isPixelEntry, type CoefficientValues } from '../../shared/coefficients.js';
@@ -317,10 +317,15 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
   // calibration: channel 2 aligned first (NaN where its sample position is outside: not measured)
   const cal = s.calibration === 'approved' ? job.calibration : null;
   const shifted = cal !== null && cal.dx !== null && cal.dy !== null && (cal.dx !== 0 || cal.dy !== 0);
+  const unmixing = cal !== null && (cal.a21 !== null || cal.a12 !== null);
+  // alignment, background subtraction and unmixing in one pass (alignAndUnmix, bit for bit the three steps)
+  // when the aligned channel 2 itself is not needed: spot detection reads the raw aligned channels
+  const fused = shifted && unmixing && !s.objects.enabled;
   const raw1 = px.ch1;
-  const raw2 = shifted ? alignChannel(px.ch2, width, height, cal.dx!, cal.dy!, depth) : px.ch2;
+  // the aligned channel 2; null when fused (never stored: a background region's values come from alignedAt)
+  const raw2: ChannelArray | null = fused ? null : shifted ? alignChannel(px.ch2, width, height, cal.dx!, cal.dy!, depth) : px.ch2;
   // saturation of channel 2 after alignment: any saturated pixel with weight in the interpolation
-  const sat2 = (i: number) => (shifted ? satAligned![i] > 0 : raw2[i] >= sat!);
+  const sat2 = (i: number) => (shifted ? satAligned![i] > 0 : raw2![i] >= sat!);
   let satAligned: Float64Array | null = null;
   if (shifted && sat != null) {
     const m = new Uint8Array(px.ch2.length);
@@ -340,16 +345,24 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
     const idx: number[] = [];
     for (const r of regions) for (const i of voxelsOf(r.geometry)) if (!seen[i]) (seen[i] = 1), idx.push(i);
     if (idx.length === 0) throw new FieldJobError(`the background region${regions.length === 1 ? '' : 's'} of field "${job.fieldName}" cover no pixel of the image`);
-    const valued = measurable(raw1, raw2, Uint32Array.from(idx));
-    if (valued.length === 0)
+    // fused: channel 2's aligned values at the region's pixels only, in the region's order (the same sums)
+    const r2: ChannelArray = raw2 ?? alignedAt(px.ch2, width, height, cal!.dx!, cal!.dy!, idx, depth);
+    const at = raw2 === null ? Uint32Array.from(idx, (_, k) => k) : Uint32Array.from(idx);
+    const kept = measurable(raw2 === null ? Float64Array.from(idx, (i) => raw1[i]) : raw1, r2, at);
+    if (kept.length === 0)
       throw new FieldJobError(`the background region${regions.length === 1 ? '' : 's'} of field "${job.fieldName}" (${idx.length} pixels) hold only NaN pixels, so there is no background level to subtract`);
+    const valued = raw2 === null ? Uint32Array.from(kept, (k) => idx[k]) : kept;
     bg1 = meanOver(raw1, valued);
-    bg2 = meanOver(raw2, valued);
+    bg2 = meanOver(r2, kept);
   }
-  let ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
-  let ch2 = bg2 == null ? raw2 : subtract(raw2, bg2);
-  // then bleed-through, on the background-subtracted channels
-  if (cal && (cal.a21 !== null || cal.a12 !== null)) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, cal.a21 ?? 0, cal.a12 ?? 0));
+  let ch1: ChannelArray, ch2: ChannelArray;
+  if (fused) ({ t1: ch1, t2: ch2 } = alignAndUnmix(raw1, px.ch2, width, height, cal!.dx!, cal!.dy!, cal!.a21 ?? 0, cal!.a12 ?? 0, depth, { background: [bg1, bg2] }));
+  else {
+    ch1 = bg1 == null ? raw1 : subtract(raw1, bg1);
+    ch2 = bg2 == null ? raw2! : subtract(raw2!, bg2);
+    // then bleed-through, on the background-subtracted channels
+    if (unmixing) ({ t1: ch1, t2: ch2 } = unmixChannels(ch1, ch2, cal!.a21 ?? 0, cal!.a12 ?? 0));
+  }
 
   const block = blockPixels(s, job.pixelSizeUm);
   const blockZ = block != null && depth > 1 ? blockSlices(s, job.zStepUm ?? null, `field "${job.fieldName}"`) : 1;
@@ -363,7 +376,7 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
   const spots: SpotValues[] = [];
   // the spot filter reaches beyond each cell, so every pixel it may read needs a value
   if (objects)
-    for (const [c, a] of [[1, raw1], [2, raw2]] as const) {
+    for (const [c, a] of [[1, raw1], [2, raw2!]] as const) {
       if (isIntegerArray(a)) continue;
       let nan = 0;
       for (let i = 0; i < a.length; i++) if (!Number.isFinite(a[i])) nan++;
@@ -463,12 +476,12 @@ function* fieldSteps(job: FieldJob, px: FieldPixels, computedAt: string, yieldBi
     for (const k of OBJECT_KEYS) values[k] = null;
     if (objects && depth > 1) {
       // in 3D: σz from the recipe's axial width (else σ · pixel size / z step), distances in pixel widths with z scaled; z in the stack's slices (every slice is measured)
-      const a = analyzeObjects3D(raw1, raw2, width, height, depth, valued, { ...objects, zScale: volume!.zScale, spotSigmaZ: volume!.sigmaZ });
+      const a = analyzeObjects3D(raw1, raw2!, width, height, depth, valued, { ...objects, zScale: volume!.zScale, spotSigmaZ: volume!.sigmaZ });
       Object.assign(values, objectMeasures(a.result as unknown as ObjectResult));
       for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)
         for (const sp of det?.spots ?? []) spots.push({ cellId: cell.id, channel, x: sp.x, y: sp.y, z: sp.z, peak: sp.peak, integrated: sp.integrated });
     } else if (objects) {
-      const a = analyzeObjects(raw1, raw2, width, height, valued, objects);
+      const a = analyzeObjects(raw1, raw2!, width, height, valued, objects);
       Object.assign(values, objectMeasures(a.result));
       for (const [channel, det] of [[1, a.detection1], [2, a.detection2]] as const)
         for (const sp of det?.spots ?? []) spots.push({ cellId: cell.id, channel, x: sp.x, y: sp.y, peak: sp.peak, integrated: sp.integrated });

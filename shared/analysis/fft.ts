@@ -124,29 +124,35 @@ export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: nu
 }
 
 /**
- * Receives the real rows y and y + 1 of an inverse transform (interleaved: row y in the even, row y + 1 in the
- * odd places of `z`, x = 0 … w−1); `two` is false for a last single row.
+ * Receives the real rows y and y + 1 of a transform of a Hermitian spectrum (interleaved: row y in the even,
+ * row y + 1 in the odd places of `z`, x = 0 … w−1); `two` is false for a last single row.
  */
 export type RealRowPairSink = (y: number, z: Float64Array, two: boolean) => void;
 
 /**
- * The inverse of a Hermitian half-plane spectrum (see `inverseRealFft2d`) handed out two rows at a time, without
- * storing the image. `work` (at least 2·(w/2 + 1)·h values) receives the column transforms (S is left as it
- * is); the rows are then gathered from it ROWS at a time (a blocked transposition) and inverted in pairs.
+ * The forward transform F(y, x) = Σ_k S(k) e^{−2πi (ky y / h + kx x / w)} of a Hermitian spectrum S given on
+ * the half plane (layout above), which is real, handed out two rows at a time without storing the image,
+ * unnormalised. With S = conj T it is w·h times the inverse transform of T (the inverse of a Hermitian
+ * spectrum is real, so it equals its own conjugate): inverses are computed this way, with forward transforms
+ * only (fft.js's inverse also divides every 1-D result by its size). `work` (at least 2·(w/2 + 1)·h values)
+ * receives the column transforms (S is left as it is); the rows are then gathered from it ROWS at a time (a
+ * blocked transposition) and transformed in pairs as one complex row G1 + i·G2, G(w − kx) = conj G(kx) (the
+ * column transforms of a Hermitian spectrum), whose transform is F1 + i·F2. The imaginary parts of the kx = 0
+ * and kx = w/2 columns, which a Hermitian spectrum has only from rounding, are ignored.
  */
-export function inverseRealFft2dRows(S: Float64Array, w: number, h: number, work: Float64Array, sink: RealRowPairSink): void {
+export function hermitianFft2dRows(S: Float64Array, w: number, h: number, work: Float64Array, sink: RealRowPairSink): void {
   checkSize(w, h);
   const hw = w / 2 + 1;
   if (S.length !== 2 * hw * h) throw new RangeError(`a half-plane spectrum of ${w}×${h} has ${2 * hw * h} values, received ${S.length}`);
   if (work.length < 2 * hw * h) throw new RangeError(`the work buffer needs ${2 * hw * h} values, received ${work.length}`);
   const fc = plan(h);
-  for (let kx = 0; kx < hw; kx++) fc.inverseTransform(work.subarray(2 * h * kx, 2 * h * (kx + 1)), S.subarray(2 * h * kx, 2 * h * (kx + 1)));
+  for (let kx = 0; kx < hw; kx++) fc.transform(work.subarray(2 * h * kx, 2 * h * (kx + 1)), S.subarray(2 * h * kx, 2 * h * (kx + 1)));
   const fr = plan(w);
-  const blk = new Float64Array(2 * hw * ROWS);
+  const blk = new Float64Array(2 * hw * (ROWS + 1));
   const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);
   for (let y0 = 0; y0 < h; y0 += ROWS) {
     const nr = Math.min(ROWS, h - y0);
-    // rows y0 … y0 + nr − 1 of the column transforms, row-major
+    // rows y0 … y0 + nr − 1 of the column transforms, row-major (then a row of zeros after an odd last row)
     for (let kx = 0; kx < hw; kx++) {
       let si = 2 * (kx * h + y0);
       let di = 2 * kx;
@@ -155,38 +161,43 @@ export function inverseRealFft2dRows(S: Float64Array, w: number, h: number, work
         blk[di + 1] = work[si + 1];
       }
     }
+    if (nr % 2 === 1) blk.fill(0, 2 * hw * nr, 2 * hw * (nr + 1));
     for (let r = 0; r < nr; r += 2) {
       const r1 = 2 * hw * r, r2 = 2 * hw * (r + 1);
-      const two = r + 1 < nr;
-      for (let kx = 0; kx < w; kx++) {
-        // H(kx) for kx ≤ w/2 as stored, conj H(w − kx) above
-        const src = kx < hw ? kx : w - kx, sg = kx < hw ? 1 : -1;
-        const edge = kx === 0 || kx === w / 2;
-        const h1r = blk[r1 + 2 * src], h1i = edge ? 0 : sg * blk[r1 + 2 * src + 1];
-        const h2r = two ? blk[r2 + 2 * src] : 0, h2i = two && !edge ? sg * blk[r2 + 2 * src + 1] : 0;
-        // Z = H1 + i·H2
-        zin[2 * kx] = h1r - h2i;
-        zin[2 * kx + 1] = h1i + h2r;
+      // Z = G1 + i·G2: the edge columns kx = 0 and w/2 real; G as stored for kx < w/2, conj G(w − kx) above
+      zin[0] = blk[r1];
+      zin[1] = blk[r2];
+      zin[w] = blk[r1 + w];
+      zin[w + 1] = blk[r2 + w];
+      for (let p = 2, m = 2 * w - 2; p < w; p += 2, m -= 2) {
+        const g1r = blk[r1 + p], g1i = blk[r1 + p + 1], g2r = blk[r2 + p], g2i = blk[r2 + p + 1];
+        zin[p] = g1r - g2i;
+        zin[p + 1] = g1i + g2r;
+        zin[m] = g1r + g2i;
+        zin[m + 1] = g2r - g1i;
       }
-      fr.inverseTransform(zout, zin);
-      sink(y0 + r, zout, two);
+      fr.transform(zout, zin);
+      sink(y0 + r, zout, r + 1 < nr);
     }
   }
 }
 
 /**
  * The real w × h image of a Hermitian spectrum given on the half plane (layout above, as from
- * `realFft2dPair`), normalised: c(y, x) = (1 / wh) Σ_k S(k) e^{+2πi (ky y / h + kx x / w)}. The imaginary
- * parts of the kx = 0 and kx = w/2 columns, which a Hermitian spectrum has only from rounding, are ignored.
+ * `realFft2dPair`), normalised: c(y, x) = (1 / wh) Σ_k S(k) e^{+2πi (ky y / h + kx x / w)}, computed as
+ * `hermitianFft2dRows` of conj S divided by w·h. The imaginary parts of the kx = 0 and kx = w/2 columns, which
+ * a Hermitian spectrum has only from rounding, are ignored.
  */
 export function inverseRealFft2d(S: Float64Array, w: number, h: number): Float64Array {
   const out = new Float64Array(w * h);
-  inverseRealFft2dRows(S, w, h, new Float64Array(S.length), (y, z, two) => {
+  const conj = Float64Array.from(S);
+  for (let i = 1; i < conj.length; i += 2) conj[i] = -conj[i];
+  const n = w * h;
+  hermitianFft2dRows(conj, w, h, new Float64Array(S.length), (y, z, two) => {
     for (let x = 0; x < w; x++) {
-      out[y * w + x] = z[2 * x];
-      if (two) out[(y + 1) * w + x] = z[2 * x + 1];
+      out[y * w + x] = z[2 * x] / n;
+      if (two) out[(y + 1) * w + x] = z[2 * x + 1] / n;
     }
   });
-  // fft.js divides each 1-D inverse by its size, so the two passes together divide by w·h
   return out;
 }

@@ -164,7 +164,7 @@ export { measureObjects, analyzeObjects, objectMeasures, OBJECT_DEFAULTS, OBJECT
 export { nextPowerOfTwo, realFft2dPair, inverseRealFft2d } from './fft';
 export { measureShift, tukeyWindow, SHIFT_TAPER, type ShiftResult, type ShiftOptions } from './phase-correlation';
 export { crossCorrelationCurves, type CrossCorrelationCurves } from './cross-correlation';
-export { alignChannel } from './align';
+export { alignChannel, alignedAt } from './align';
 export { laplacianOfGaussian3D, type VoxelBox } from './gaussian3d';
 export { detectSpots3D, spot3Options, type Spot3, type Spot3Detection, type Spot3Options } from './spots3d';
 export { PointGrid3, pairSpots3D } from './pairing3d';
@@ -174,4 +174,4 @@ export { analyzeObjects3D, measureObjects3D, type Object3Result, type Object3Opt
 export { medianAndMad } from './robust-scale';
 export { bleedThroughSlope, pooledBleedThroughSlope } from './bleed';
 export { unmixChannels, checkBleedCoefficient } from './unmix';
-export { alignAndUnmix } from './align-unmix';
+export { alignAndUnmix, type AlignUnmixOptions } from './align-unmix';

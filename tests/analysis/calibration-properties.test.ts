@@ -7,6 +7,7 @@ import { describe, expect, it } from 'vitest';
 import {
   alignAndUnmix,
   alignChannel,
+  alignedAt,
   bleedThroughSlope,
   pooledBleedThroughSlope,
   crossCorrelationCurves,
@@ -219,6 +220,48 @@ describe('alignAndUnmix (alignment and unmixing in one pass)', () => {
       for (let i = 0; i < o1.length; i++) if (!Object.is(one.t1[i], two.t1[i]) || !Object.is(one.t2[i], two.t2[i])) differ.push(i);
       expect(differ, `case ${t}: pixels that differ`).toEqual([]);
     }
+  });
+  it('with backgrounds and caller-owned outputs: equals align, subtract (v > b ? v − b : 0, NaN kept), unmix, bit for bit', () => {
+    const r = rng(22);
+    // the subtraction of a run (server/runs/compute.ts): a background of 0 leaves the channel as it is
+    const subtract = (a: ArrayLike<number>, b: number) => (b === 0 ? Float64Array.from(a) : Float64Array.from(a, (v) => (v > b ? v - b : v === v ? 0 : NaN)));
+    let out: { t1: Float64Array; t2: Float64Array } | null = null;
+    for (let t = 0; t < 30; t++) {
+      const w = 1 + Math.floor(r() * 25), h = 1 + Math.floor(r() * 25), z = 1 + Math.floor(r() * 2);
+      const dx = (r() - 0.5) * 12, dy = t % 3 === 0 ? Math.round((r() - 0.5) * 6) : (r() - 0.5) * 12;
+      const float = t % 2 === 0;
+      const o1 = float ? new Float32Array(w * h * z) : new Uint16Array(w * h * z), o2 = float ? new Float64Array(w * h * z) : new Uint16Array(w * h * z);
+      for (let i = 0; i < o1.length; i++) {
+        o1[i] = 1000 * r() - (float ? 100 : 0);
+        o2[i] = 1000 * r();
+        if (float && r() < 0.05) o2[i] = NaN;
+        if (float && r() < 0.05) o1[i] = NaN;
+      }
+      const b1 = t % 5 === 0 ? 0 : t % 2 ? Math.round(300 * r()) : 300 * r(), b2 = t % 7 === 0 ? null : 300 * r();
+      const a21 = 0.5 * r(), a12 = 0.5 * r();
+      const two = unmixChannels(subtract(o1, b1), subtract(alignChannel(o2, w, h, dx, dy, z), b2 ?? 0), a21, a12);
+      // the same output arrays for every case of one size (a run's fields of one size share them)
+      if (out === null || out.t1.length !== o1.length) out = { t1: new Float64Array(o1.length), t2: new Float64Array(o1.length) };
+      out.t1.fill(7);
+      const one = alignAndUnmix(o1, o2, w, h, dx, dy, a21, a12, z, { background: [b1, b2], out });
+      expect(one.t1).toBe(out.t1);
+      expect(one.t2).toBe(out.t2);
+      const differ = [];
+      for (let i = 0; i < o1.length; i++) if (!Object.is(one.t1[i], two.t1[i]) || !Object.is(one.t2[i], two.t2[i])) differ.push(i);
+      expect(differ, `case ${t}: pixels that differ`).toEqual([]);
+      // alignedAt: alignChannel's values at chosen pixels
+      const idx = Array.from({ length: Math.min(20, o2.length) }, () => Math.floor(r() * o2.length));
+      const whole = alignChannel(o2, w, h, dx, dy, z), at = alignedAt(o2, w, h, dx, dy, idx, z);
+      expect(idx.filter((p, k) => !Object.is(at[k], whole[p]))).toEqual([]);
+    }
+  });
+  it('refuses wrong-size or aliased output arrays and bad backgrounds, quoting them', () => {
+    const c = new Uint16Array(4), d = new Float64Array(4), e = new Float64Array(4);
+    expect(() => alignAndUnmix(c, c, 2, 2, 0.5, 0, 0, 0, 1, { out: { t1: new Float64Array(3), t2: e } })).toThrow(/4 values, received 3 and 4/);
+    expect(() => alignAndUnmix(c, d, 2, 2, 0.5, 0, 0, 0, 1, { out: { t1: e, t2: d } })).toThrow(/separate arrays/);
+    expect(() => alignAndUnmix(c, c, 2, 2, 0.5, 0, 0, 0, 1, { out: { t1: e, t2: e } })).toThrow(/separate arrays/);
+    expect(() => alignAndUnmix(c, c, 2, 2, 0.5, 0, 0, 0, 1, { background: [NaN, 0] })).toThrow(/channel 1 background .* received NaN/);
+    expect(() => alignedAt(c, 2, 2, 0.5, 0, [4])).toThrow(/index 4/);
   });
   it('refuses bad shifts, coefficients and sizes, quoting them', () => {
     const c = new Uint16Array(4);

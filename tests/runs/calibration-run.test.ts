@@ -39,10 +39,10 @@ beforeAll(async () => {
 });
 afterAll(() => t?.close());
 
-async function runWith(settings: Record<string, unknown>) {
+async function runWith(settings: Record<string, unknown>, field = fieldId) {
   const recipe = await mic.post('/api/recipes').send({ name: `calibrated ${Math.random()}`, settings: { threshold: { method: 'none' }, coefficients: ['pearson', 'spearman', 'manders'], ...settings } });
   expect(recipe.status, JSON.stringify(recipe.body)).toBe(201);
-  const run = await mic.post('/api/runs').send({ recipeId: recipe.body.id, scope: { kind: 'field', id: fieldId } });
+  const run = await mic.post('/api/runs').send({ recipeId: recipe.body.id, scope: { kind: 'field', id: field } });
   expect(run.status, JSON.stringify(run.body)).toBe(201);
   await waitForRun(async () => (await mic.get(`/api/runs/${run.body.id}`)).body);
   return (await mic.get(`/api/runs/${run.body.id}`)).body as { id: number; status: string; fields: { status: string; error: string | null }[] };
@@ -108,6 +108,35 @@ describe('runs with the approved calibration', () => {
     expect(methods).toContain('Guizar-Sicairos M, Thurman ST, Fienup JR (2008)');
     expect(methods).toContain('Zimmermann T, Rietdorf J, Pepperkok R (2003)');
     expect(methods).not.toMatch(/mix calibrations/);
+  });
+
+  it('with a background (region or constant) between alignment and unmixing: as align, subtract, unmix done independently', async () => {
+    // the run does the three steps in one pass (alignAndUnmix); the reference does them one after the other.
+    // The background region reaches the border, where channel 2's aligned pixels are not measured (NaN).
+    const region = { kind: 'rect' as const, x: 56, y: 0, width: 8, height: 48 };
+    const f = await addField(t.ctx, t.world.coverslipA, { name: 'beads bg', width: W, height: H, ch1: A, ch2: B, cells: [{ geometry }, { role: 'background', geometry: region }] });
+    expect((await mic.put(`/api/fields/${f.fieldId}/instrument`).send({ instrumentId })).status).toBe(200);
+    const aligned = alignChannel(B, W, H, 1.5, -0.75);
+    const sub = (a: ArrayLike<number>, b: number) => Float64Array.from(a, (v) => (v > b ? v - b : v === v ? 0 : NaN));
+    const inRegion = cellIndices(region, W, H).filter((i) => !Number.isNaN(aligned[i]));
+    expect(inRegion.length).toBeLessThan(cellIndices(region, W, H).length);
+    const mean = (a: ArrayLike<number>) => inRegion.reduce((s, i) => s + a[i], 0) / inRegion.length;
+    for (const [background, bg1, bg2] of [
+      [{ method: 'region' }, mean(A), mean(aligned)],
+      [{ method: 'constant', ch1: 120, ch2: 90.5 }, 120, 90.5],
+    ] as const) {
+      const run = await runWith({ calibration: 'approved', background }, f.fieldId);
+      expect(run.status, JSON.stringify(run)).toBe('done');
+      const row = t.ctx.db.select().from(measurements).where(eq(measurements.runId, run.id)).all().find((m) => m.cellId === f.cellIds[0])!;
+      const { t1, t2 } = unmixChannels(sub(A, bg1), sub(aligned, bg2), 0.1, 0.04);
+      const idx = Uint32Array.from(cellIndices(geometry, W, H).filter((i) => !Number.isNaN(t2[i])));
+      const ref = measureRegion(t1, t2, idx, { width: W, height: H, threshold: { method: 'none' } });
+      expect(MeasurementProvenance.parse(row.provenance).background).toEqual([bg1, bg2]);
+      expect(row.pixels).toBe(ref.pixels);
+      expect(row.pearson).toBe(ref.pearson);
+      expect(row.spearman).toBe(ref.spearman);
+      expect(row.mandersM1).toBe(ref.mandersM1);
+    }
   });
 
   it('a recipe without the setting measures the channels as recorded (no calibration in the provenance)', async () => {
