@@ -172,6 +172,7 @@ export { spotPlacementTest3D } from './spot-test3d';
 export { crossK3D, lFromK3, type KWindow3 } from './ripley3d';
 export { analyzeObjects3D, measureObjects3D, type Object3Result, type Object3Options, type Object3Analysis } from './objects3d';
 export { medianAndMad } from './robust-scale';
+export { selectRank } from './select';
 export { bleedThroughSlope, pooledBleedThroughSlope } from './bleed';
 export { unmixChannels, checkBleedCoefficient } from './unmix';
 export { alignAndUnmix, type AlignUnmixOptions } from './align-unmix';

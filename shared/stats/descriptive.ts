@@ -4,6 +4,7 @@
  * order statistics; Am. Stat. 50:361, doi:10.1080/00031305.1996.10473566), the default of R and NumPy.
  */
 import { neumaierSum } from '../analysis/numeric';
+import { selectRank } from '../analysis/select';
 
 export interface Summary {
   n: number;
@@ -63,7 +64,7 @@ export function median(x: ArrayLike<number>): number {
   for (let i = 0; i < n; i++) if (Number.isNaN(a[i])) return quantileSorted(a.sort(), 0.5);
   const h = (n - 1) * 0.5;
   const lo = Math.floor(h);
-  select(a, lo);
+  selectRank(a, lo);
   if (h === lo) return a[lo];
   // the next order statistic is the smallest value right of lo after the partition
   let next = a[lo + 1];
@@ -71,39 +72,6 @@ export function median(x: ArrayLike<number>): number {
   return a[lo] + (h - lo) * (next - a[lo]);
 }
 
-/** Partially orders `a` so that a[k] is its k-th smallest, a[< k] ≤ a[k] ≤ a[> k] (no NaN). */
-function select(a: Float64Array, k: number) {
-  let left = 0;
-  let right = a.length - 1;
-  while (right > left) {
-    // median of three as the pivot
-    const mid = (left + right) >>> 1;
-    if (a[mid] < a[left]) swap(a, mid, left);
-    if (a[right] < a[left]) swap(a, right, left);
-    if (a[right] < a[mid]) swap(a, right, mid);
-    const pivot = a[mid];
-    let i = left;
-    let j = right;
-    while (i <= j) {
-      while (a[i] < pivot) i++;
-      while (a[j] > pivot) j--;
-      if (i <= j) {
-        swap(a, i, j);
-        i++;
-        j--;
-      }
-    }
-    if (k <= j) right = j;
-    else if (k >= i) left = i;
-    else return;
-  }
-}
-
-function swap(a: Float64Array, i: number, j: number) {
-  const t = a[i];
-  a[i] = a[j];
-  a[j] = t;
-}
 
 const nn = (v: number) => (Number.isFinite(v) ? v : null);
 

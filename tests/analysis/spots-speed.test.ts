@@ -6,7 +6,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { analyzeObjects, detectSpots, gaussianFilter, gaussianKernels, laplacianOfGaussian, Xoshiro128 } from '../../shared/analysis/index';
-import { medianAndMad, medianOfFloat32Bits, selectRank } from '../../shared/analysis/robust-scale';
+import { medianAndMad, medianOfFloat32Bits } from '../../shared/analysis/robust-scale';
+import { selectRank } from '../../shared/analysis/select';
 
 function sortedMedian(a: Float32Array): number {
   const s = Float64Array.from(a).sort();
