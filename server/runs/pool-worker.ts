@@ -9,7 +9,7 @@ import os from 'node:os';
 import { workerData } from 'node:worker_threads';
 import type { FileStore, FileStoreSettings } from '../services.js';
 import { createFileStore } from '../images/store.js';
-import { runFieldJob } from './compute.js';
+import { dropSpareBuffers, runFieldJob } from './compute.js';
 import { SweepThreads } from '../analysis/sweep-threads.js';
 import type { FieldJob, FieldJobResult } from './job.js';
 
@@ -30,6 +30,11 @@ if (process.platform === 'linux') {
 export default async function computeFieldBatch(jobs: FieldJob[]): Promise<FieldJobResult[]> {
   store ??= createFileStore(workerData as FileStoreSettings);
   const out: FieldJobResult[] = [];
-  for (const job of jobs) out.push(await runFieldJob(store, job, threads));
+  try {
+    for (const job of jobs) out.push(await runFieldJob(store, job, threads));
+  } finally {
+    // the fields of a batch share the unmixing arrays; an idle thread keeps none
+    dropSpareBuffers();
+  }
   return out;
 }

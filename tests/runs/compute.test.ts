@@ -3,7 +3,7 @@
  * on independently prepared inputs (identity checks), and hand-computed values (common practice, no source).
  */
 import { describe, expect, it } from 'vitest';
-import { computeField, blockPixels, project, zRange, FieldJobError } from '../../server/runs/compute.js';
+import { computeField, blockPixels, dropSpareBuffers, project, zRange, FieldJobError } from '../../server/runs/compute.js';
 import { selectZ } from '../../server/images/intake.js';
 import type { FieldJob } from '../../server/runs/job.js';
 import { RecipeSettings, describeSetting, type RecipeSettingsInput } from '../../shared/schemas/recipes.js';
@@ -185,6 +185,27 @@ describe('computeField with a calibration (recipe setting "approved")', () => {
     const [m] = computeField(job({ threshold: { method: 'none' } }, [{ id: 1, role: 'cell', geometry: g }], { calibration: cal }), { width: W, height: H, ch1: A, ch2: B });
     expect(m.pixels).toBe(cellIndices(g, W, H).length);
     expect(m.provenance.calibration).toBeNull();
+  });
+  it('fields measured one after another in a thread (the one-pass arrays reused) equal each field measured alone', () => {
+    // different shifts, so the NaN border moves: a stale value from the previous field would show
+    const cal2 = { ...cal, id: 8, dx: -2.5, dy: 1.75, a21: 0.02, a12: 0.2 };
+    const [C, D] = syntheticPair(W, H, 78);
+    const measure = (c: typeof cal, ch1: Uint16Array, ch2: Uint16Array) =>
+      computeField(job({ threshold: { method: 'none' }, calibration: 'approved' }, [{ id: 1, role: 'cell', geometry: rect(0, 0, W, H) }], { calibration: c }), { width: W, height: H, ch1, ch2 })[0];
+    dropSpareBuffers();
+    const alone2 = measure(cal2, C, D);
+    dropSpareBuffers();
+    const alone1 = measure(cal, A, B);
+    // now in sequence, each taking the arrays the other gave back
+    const again2 = measure(cal2, C, D);
+    const again1 = measure(cal, A, B);
+    for (const [x, y] of [[again1, alone1], [again2, alone2]] as const) {
+      expect(x.pixels).toBe(y.pixels);
+      for (const k of ['pearson', 'spearman', 'kendallTauB', 'mandersM1', 'mandersM2', 'overlap', 'icq', 'distanceCorrelation'] as const) expect(x[k], k).toBe(y[k]);
+    }
+    expect(again1.pixels).not.toBe(again2.pixels);
+    // pixels dropped by the shift: exactly the uncovered border of each field (W·H minus the covered rectangle)
+    expect(again2.provenance.nanPixels).toBe(W * H - (W - 3) * (H - 2));
   });
   it('a field without an approved calibration fails with the reason instead of being measured uncorrected', () => {
     const j = job({ calibration: 'approved' }, [{ id: 1, role: 'cell', geometry: g }], { calibrationProblem: 'instrument Scope of field F has no approved calibration' });
