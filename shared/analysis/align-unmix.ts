@@ -22,7 +22,7 @@
  * no branch per pixel; they stay per column (i + dx rounds differently for each i, and SciPy's weights are
  * those of each rounded position).
  */
-import { bilinearTaps, checkShift } from './align';
+import { bilinearTaps, checkAlignInput } from './align';
 import type { ChannelArray } from './types';
 import { checkBleedCoefficient } from './unmix';
 
@@ -49,14 +49,9 @@ export function alignAndUnmix(
   slices = 1,
   options: AlignUnmixOptions = {},
 ): { t1: Float64Array; t2: Float64Array } {
-  checkShift(dx, 'dx');
-  checkShift(dy, 'dy');
+  const plane = checkAlignInput(ch2, width, height, dx, dy, slices);
   checkBleedCoefficient(a21, 'a21');
   checkBleedCoefficient(a12, 'a12');
-  if (!(Number.isInteger(width) && width >= 1 && Number.isInteger(height) && height >= 1 && Number.isInteger(slices) && slices >= 1))
-    throw new RangeError(`image size must be positive whole numbers, received ${width}×${height}×${slices}`);
-  const plane = width * height;
-  if (ch2.length !== plane * slices) throw new RangeError(`channel has ${ch2.length} values, ${width}×${height}×${slices} needs ${plane * slices}`);
   if (ch1.length !== ch2.length) throw new RangeError(`channels differ in size: ${ch1.length} vs ${ch2.length} pixels`);
   const [b1, b2] = options.background ?? [null, null];
   for (const [name, b] of [['channel 1', b1], ['channel 2', b2]] as const)

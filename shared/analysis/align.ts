@@ -43,16 +43,25 @@ export function bilinearTaps(d: number, n: number): { i0: Int32Array; i1: Int32A
 }
 
 /**
- * Channel `ch` (width × height × slices, row-major, slice after slice) sampled at (x + dx, y + dy);
- * Float64, NaN where the position is outside the image.
+ * Checks a channel and shift for alignment (quoting the value received) and returns the plane size:
+ * finite shifts, positive whole dimensions, and width × height × slices values.
  */
-export function alignChannel(ch: ChannelArray, width: number, height: number, dx: number, dy: number, slices = 1): Float64Array {
+export function checkAlignInput(ch: ArrayLike<number>, width: number, height: number, dx: number, dy: number, slices: number): number {
   checkShift(dx, 'dx');
   checkShift(dy, 'dy');
   if (!(Number.isInteger(width) && width >= 1 && Number.isInteger(height) && height >= 1 && Number.isInteger(slices) && slices >= 1))
     throw new RangeError(`image size must be positive whole numbers, received ${width}×${height}×${slices}`);
   const plane = width * height;
   if (ch.length !== plane * slices) throw new RangeError(`channel has ${ch.length} values, ${width}×${height}×${slices} needs ${plane * slices}`);
+  return plane;
+}
+
+/**
+ * Channel `ch` (width × height × slices, row-major, slice after slice) sampled at (x + dx, y + dy);
+ * Float64, NaN where the position is outside the image.
+ */
+export function alignChannel(ch: ChannelArray, width: number, height: number, dx: number, dy: number, slices = 1): Float64Array {
+  const plane = checkAlignInput(ch, width, height, dx, dy, slices);
   const out = new Float64Array(ch.length);
   const cx = bilinearTaps(dx, width), cy = bilinearTaps(dy, height);
   for (let z = 0; z < slices; z++) {
@@ -88,12 +97,7 @@ export function alignChannel(ch: ChannelArray, width: number, height: number, dx
  * the aligned channel itself is never stored (a run's one-pass alignment and unmixing, align-unmix.ts).
  */
 export function alignedAt(ch: ChannelArray, width: number, height: number, dx: number, dy: number, indices: ArrayLike<number>, slices = 1): Float64Array {
-  checkShift(dx, 'dx');
-  checkShift(dy, 'dy');
-  if (!(Number.isInteger(width) && width >= 1 && Number.isInteger(height) && height >= 1 && Number.isInteger(slices) && slices >= 1))
-    throw new RangeError(`image size must be positive whole numbers, received ${width}×${height}×${slices}`);
-  const plane = width * height;
-  if (ch.length !== plane * slices) throw new RangeError(`channel has ${ch.length} values, ${width}×${height}×${slices} needs ${plane * slices}`);
+  const plane = checkAlignInput(ch, width, height, dx, dy, slices);
   const cx = bilinearTaps(dx, width), cy = bilinearTaps(dy, height);
   const out = new Float64Array(indices.length);
   for (let k = 0; k < indices.length; k++) {

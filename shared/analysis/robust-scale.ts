@@ -83,20 +83,29 @@ function valueInBucket(bucket: number, low: Int32Array, r: number): number {
 }
 
 function medianFromCounts(bits: Int32Array, hist: Int32Array): number {
-  const n = bits.length;
-  const { kLo, kHi } = middleRanks(n);
+  const { kLo, kHi } = middleRanks(bits.length);
   const [bLo, rLo] = bucketOfRank(hist, kLo);
   const [bHi, rHi] = bucketOfRank(hist, kHi);
   const lowLo = new Int32Array(65536), lowHi = bLo === bHi ? lowLo : new Int32Array(65536);
-  for (let i = 0; i < n; i++) {
+  countLowBits(bits, bLo, bHi, lowLo, lowHi);
+  return medianFromLow(bLo, rLo, lowLo, bHi, rHi, lowHi, kLo === kHi);
+}
+
+/** counts of the low 16 key bits of the values in bucket bLo (into lowLo) and bucket bHi (into lowHi) */
+function countLowBits(bits: Int32Array, bLo: number, bHi: number, lowLo: Int32Array, lowHi: Int32Array): void {
+  for (let i = 0; i < bits.length; i++) {
     const u = bits[i];
     const key = u ^ ((u >> 31) | -0x80000000);
     const b = key >>> 16;
     if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
     else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
   }
+}
+
+/** the median from the middle ranks' buckets, their ranks within them and their low-bit counts */
+function medianFromLow(bLo: number, rLo: number, lowLo: Int32Array, bHi: number, rHi: number, lowHi: Int32Array, oneMiddle: boolean): number {
   const hi = valueInBucket(bHi, lowHi, rHi);
-  return kLo === kHi ? hi : (valueInBucket(bLo, lowLo, rLo) + hi) / 2;
+  return oneMiddle ? hi : (valueInBucket(bLo, lowLo, rLo) + hi) / 2;
 }
 
 /**
@@ -219,16 +228,8 @@ export function medianAndMad(vals: Float32Array): MedianMad {
       if (f & LOW) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
       else if (f & HIGH) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
     }
-  } else
-    for (let i = 0; i < n; i++) {
-      const u = bits[i];
-      const key = u ^ ((u >> 31) | -0x80000000);
-      const b = key >>> 16;
-      if (b === bLo) lowLo[key & 0xffff] = (lowLo[key & 0xffff] + 1) | 0;
-      else if (b === bHi) lowHi[key & 0xffff] = (lowHi[key & 0xffff] + 1) | 0;
-    }
-  const hi = valueInBucket(bHi, lowHi, rHi);
-  const m = kLo === kHi ? hi : (valueInBucket(bLo, lowLo, rLo) + hi) / 2;
+  } else countLowBits(bits, bLo, bHi, lowLo, lowHi);
+  const m = medianFromLow(bLo, rLo, lowLo, bHi, rHi, lowHi, kLo === kHi);
   if (zones) {
     const mad = madFromZones(keep, m, zones, count, kLo, kHi);
     if (mad !== null) return { median: m, mad, madPath: 'bracket' };
