@@ -127,69 +127,106 @@ function taperedRow(a: Tapered, b: Tapered, width: number, height: number, W: nu
  * (the same products and sums, to the last bit, as from P).
  */
 function refine(Q: Float64Array, W: number, H: number, cu: number, cv: number, step: number, m: number): { u: number; v: number; c: number } {
-  const hw = W / 2 + 1, n = 2 * m + 1;
+  const hw = W / 2 + 1, n = 2 * m + 1, h2 = H / 2;
   // row kernels e^{2πi fy u_i / H} (fy in numpy's fftfreq order) with u_i = cu + d·step, d = i − m: the
-  // centre E = e^{2πi fy cu / H} (interleaved cos, sin) and, for d = 1 … m, cos and sin of 2π fy d·step / H
-  // (interleaved, kernel d at 2·(d − 1)·H), so that e^{2πi fy u_i / H} = E·(cos ± i sin) for i = m ± d
-  const E = new Float64Array(2 * H), D = new Float64Array(2 * Math.max(1, m) * H);
-  for (let ky = 0; ky < H; ky++) {
-    const f = (2 * Math.PI * (ky < H / 2 ? ky : ky - H)) / H;
+  // centre E = e^{2πi fy cu / H} and, for d = 1 … m, cos and sin of 2π fy d·step / H, so that
+  // e^{2πi fy u_i / H} = E·(cos ± i sin) for i = m ± d. Only ky = 0 … H/2 are tabulated: ky and H − ky
+  // (fy and −fy) share them (conjugate E, the same cos, sin of opposite sign).
+  // E: interleaved (cos, sin) per ky; D: groups of three d (d past m repeat the last one, their sums dropped),
+  // group g at 6·g·(h2 + 1), six values (c, s for d = 3g + 1 … 3g + 3) per ky
+  const groups = Math.ceil(Math.max(1, m) / 3);
+  const E = new Float64Array(2 * (h2 + 1)), D = new Float64Array(6 * groups * (h2 + 1));
+  for (let ky = 0; ky <= h2; ky++) {
+    const f = (2 * Math.PI * (ky < h2 ? ky : ky - H)) / H;
     E[2 * ky] = Math.cos(f * cu);
     E[2 * ky + 1] = Math.sin(f * cu);
-    for (let d = 1; d <= m; d++) {
-      D[2 * ((d - 1) * H + ky)] = Math.cos(f * d * step);
-      D[2 * ((d - 1) * H + ky) + 1] = Math.sin(f * d * step);
-    }
+    for (let g = 0; g < groups; g++)
+      for (let e = 0; e < 3; e++) {
+        const d = Math.max(1, Math.min(3 * g + e + 1, m));
+        D[6 * (g * (h2 + 1) + ky) + 2 * e] = Math.cos(f * d * step);
+        D[6 * (g * (h2 + 1) + ky) + 2 * e + 1] = Math.sin(f * d * step);
+      }
   }
   // T(kx, i) = Σ_ky P(kx, ky) · kernel(i, ky). With x = P·E: T(m ± d) = C_d ± i·S_d, C_d = Σ x cos, S_d = Σ x sin
   // (complex sums, real factors): a pair of kernels costs one complex × real product each instead of two
-  // complex products. P is stored column by column (fft.ts), so each sum runs over contiguous memory; three
-  // d at a time share each load of P (d past m repeat the last one, their sums dropped).
+  // complex products. ky and H − ky together: with x1 = P(ky)·E, x2 = P(H − ky)·conj E, s = x1 + x2 and
+  // t = x1 − x2 they add s·cos to C_d and t·sin to S_d (half the products again); ky = 0 (E = 1, cos = 1,
+  // sin = 0) and ky = H/2 (its own partner) alone. P is stored column by column (fft.ts), so each sum runs over
+  // contiguous memory (from both ends); three d at a time share each load of P.
   const tr = new Float64Array(hw * n), ti = new Float64Array(hw * n);
+  const cs = new Float64Array(12);
   for (let kx = 0; kx < hw; kx++) {
     const col = 2 * H * kx, t = kx * n + m;
-    for (let d = 1; d <= Math.max(1, m); d += 3) {
-      const o1 = 2 * Math.max(0, Math.min(d, m) - 1) * H, o2 = 2 * Math.max(0, Math.min(d + 1, m) - 1) * H, o3 = 2 * Math.max(0, Math.min(d + 2, m) - 1) * H;
-      const first = d === 1;
-      let x0r = 0, x0i = 0;
-      let c1r = 0, c1i = 0, s1r = 0, s1i = 0, c2r = 0, c2i = 0, s2r = 0, s2i = 0, c3r = 0, c3i = 0, s3r = 0, s3i = 0;
-      for (let ky = 0; ky < H; ky++) {
-        const q = 2 * ky;
-        // Q = conj P = (pr, qi), P = (pr, −qi): x = P·E
-        const pr = Q[col + q], qi = Q[col + q + 1], er = E[q], ei = E[q + 1];
+    for (let g = 0; g < groups; g++) {
+      const o = 6 * g * (h2 + 1);
+      // ky = 0: x = P(0)
+      const x0r = Q[col], x0i = -Q[col + 1];
+      let sxr = x0r, sxi = x0i;
+      let c1r = x0r, c1i = x0i, s1r = 0, s1i = 0, c2r = x0r, c2i = x0i, s2r = 0, s2i = 0, c3r = x0r, c3i = x0i, s3r = 0, s3i = 0;
+      for (let ky = 1, k2 = H - 1; ky < h2; ky++, k2--) {
+        // Q = conj P = (pr, qi), P = (pr, −qi)
+        const q = 2 * ky, p1 = col + q, p2 = col + 2 * k2;
+        const ar = Q[p1], ai = Q[p1 + 1], br = Q[p2], bi = Q[p2 + 1];
+        const er = E[q], ei = E[q + 1];
+        const pp = ar + br, pm = ar - br, qp = ai + bi, qm = ai - bi;
+        // s = P1·E + P2·conj E, t = P1·E − P2·conj E
+        const sr = pp * er + qm * ei, si = pm * ei - qp * er;
+        const tr_ = pm * er + qp * ei, ti_ = pp * ei - qm * er;
+        sxr += sr;
+        sxi += si;
+        const z = o + 6 * ky;
+        let c = D[z], sn = D[z + 1];
+        c1r += sr * c;
+        c1i += si * c;
+        s1r += tr_ * sn;
+        s1i += ti_ * sn;
+        c = D[z + 2];
+        sn = D[z + 3];
+        c2r += sr * c;
+        c2i += si * c;
+        s2r += tr_ * sn;
+        s2i += ti_ * sn;
+        c = D[z + 4];
+        sn = D[z + 5];
+        c3r += sr * c;
+        c3i += si * c;
+        s3r += tr_ * sn;
+        s3i += ti_ * sn;
+      }
+      {
+        // ky = H/2 (H ≥ 2)
+        const q = 2 * h2, pr = Q[col + q], qi = Q[col + q + 1], er = E[q], ei = E[q + 1];
         const xr = pr * er + qi * ei, xi = pr * ei - qi * er;
-        x0r += xr;
-        x0i += xi;
-        let c = D[o1 + q], sn = D[o1 + q + 1];
-        c1r += xr * c;
-        c1i += xi * c;
-        s1r += xr * sn;
-        s1i += xi * sn;
-        c = D[o2 + q];
-        sn = D[o2 + q + 1];
-        c2r += xr * c;
-        c2i += xi * c;
-        s2r += xr * sn;
-        s2i += xi * sn;
-        c = D[o3 + q];
-        sn = D[o3 + q + 1];
-        c3r += xr * c;
-        c3i += xi * c;
-        s3r += xr * sn;
-        s3i += xi * sn;
+        sxr += xr;
+        sxi += xi;
+        const z = o + 6 * h2;
+        c1r += xr * D[z];
+        c1i += xi * D[z];
+        s1r += xr * D[z + 1];
+        s1i += xi * D[z + 1];
+        c2r += xr * D[z + 2];
+        c2i += xi * D[z + 2];
+        s2r += xr * D[z + 3];
+        s2i += xi * D[z + 3];
+        c3r += xr * D[z + 4];
+        c3i += xi * D[z + 4];
+        s3r += xr * D[z + 5];
+        s3i += xi * D[z + 5];
       }
-      if (first) {
-        tr[t] = x0r;
-        ti[t] = x0i;
+      if (g === 0) {
+        tr[t] = sxr;
+        ti[t] = sxi;
       }
-      const cs = [c1r, c1i, s1r, s1i, c2r, c2i, s2r, s2i, c3r, c3i, s3r, s3i];
-      for (let e = 0; e < 3 && d + e <= m; e++) {
+      cs[0] = c1r; cs[1] = c1i; cs[2] = s1r; cs[3] = s1i;
+      cs[4] = c2r; cs[5] = c2i; cs[6] = s2r; cs[7] = s2i;
+      cs[8] = c3r; cs[9] = c3i; cs[10] = s3r; cs[11] = s3i;
+      for (let e = 0, d = 3 * g + 1; e < 3 && d <= m; e++, d++) {
         const cr = cs[4 * e], ci = cs[4 * e + 1], sr = cs[4 * e + 2], si = cs[4 * e + 3];
         // m + d: C + i·S; m − d: C − i·S
-        tr[t + d + e] = cr - si;
-        ti[t + d + e] = ci + sr;
-        tr[t - d - e] = cr + si;
-        ti[t - d - e] = ci - sr;
+        tr[t + d] = cr - si;
+        ti[t + d] = ci + sr;
+        tr[t - d] = cr + si;
+        ti[t - d] = ci - sr;
       }
     }
   }
