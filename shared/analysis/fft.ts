@@ -58,12 +58,12 @@ const ROWS = 16;
 export type ComplexRowSource = (y: number, out: Float64Array) => boolean;
 
 /**
- * The full complex 2-D spectrum of an h × w complex image given row by row, stored column by column
- * (column kx at 2·kx·h, ky = 0 … h−1 contiguous) in `zt` (2·w·h values). The rows are transformed ROWS at a
- * time and written straight into their columns (a blocked transposition, no row-major copy of the image),
- * then each column is transformed in place. Rows reported all zero (padding) skip their transform.
+ * The rows of an h × w complex image given row by row, each transformed and written straight into its place
+ * in the columns (column x at 2·x·h, y = 0 … h−1 contiguous) of `zt` (2·w·h values): ROWS rows at a time (a
+ * blocked transposition, no row-major copy of the image). Rows reported all zero (padding) skip their
+ * transform. The columns are not transformed (`complexFft2dColumns` does that; `fft1d` one column).
  */
-export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
+export function complexRowsToColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
   const fr = plan(w);
   const tin = new Float64Array(2 * w);
   const blk = new Float64Array(2 * w * ROWS);
@@ -83,7 +83,21 @@ export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource,
       }
     }
   }
+}
+
+/**
+ * The full complex 2-D spectrum of an h × w complex image given row by row, stored column by column
+ * (column kx at 2·kx·h, ky = 0 … h−1 contiguous) in `zt` (2·w·h values): `complexRowsToColumns`, then each
+ * column transformed in place.
+ */
+export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
+  complexRowsToColumns(w, h, row, zt);
   rowTransforms(zt, w, h, false);
+}
+
+/** The forward transform of the n complex values at `src[so …]` into `dst[dOff …]` (ranges must not overlap). */
+export function fft1d(n: number, src: Float64Array, so: number, dst: Float64Array, dOff: number): void {
+  plan(n).transform(dst.subarray(dOff, dOff + 2 * n), src.subarray(so, so + 2 * n));
 }
 
 /**
@@ -145,8 +159,25 @@ export function hermitianFft2dRows(S: Float64Array, w: number, h: number, work: 
   const hw = w / 2 + 1;
   if (S.length !== 2 * hw * h) throw new RangeError(`a half-plane spectrum of ${w}×${h} has ${2 * hw * h} values, received ${S.length}`);
   if (work.length < 2 * hw * h) throw new RangeError(`the work buffer needs ${2 * hw * h} values, received ${work.length}`);
-  const fc = plan(h);
-  for (let kx = 0; kx < hw; kx++) fc.transform(work.subarray(2 * h * kx, 2 * h * (kx + 1)), S.subarray(2 * h * kx, 2 * h * (kx + 1)));
+  const columns = new Int32Array(hw);
+  for (let kx = 0; kx < hw; kx++) {
+    columns[kx] = 2 * h * kx;
+    fft1d(h, S, 2 * h * kx, work, 2 * h * kx);
+  }
+  hermitianRowPairs(work, columns, w, h, sink);
+}
+
+/**
+ * The second half of `hermitianFft2dRows`: from the column transforms G of a Hermitian half-plane spectrum
+ * (column kx, h complex values, at `G[columns[kx] …]`, kx = 0 … w/2, anywhere in G), the real rows of its
+ * transform, two at a time (gathered ROWS rows at a time, transformed in pairs as described there).
+ */
+export function hermitianRowPairs(G: Float64Array, columns: Int32Array, w: number, h: number, sink: RealRowPairSink): void {
+  checkSize(w, h);
+  const hw = w / 2 + 1;
+  if (columns.length !== hw) throw new RangeError(`a half plane of width ${w} has ${hw} columns, received ${columns.length} column offsets`);
+  for (let kx = 0; kx < hw; kx++)
+    if (!(columns[kx] >= 0 && columns[kx] + 2 * h <= G.length)) throw new RangeError(`column ${kx} at ${columns[kx]} does not lie within the ${G.length} values given`);
   const fr = plan(w);
   const blk = new Float64Array(2 * hw * (ROWS + 1));
   const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);
@@ -154,11 +185,11 @@ export function hermitianFft2dRows(S: Float64Array, w: number, h: number, work: 
     const nr = Math.min(ROWS, h - y0);
     // rows y0 … y0 + nr − 1 of the column transforms, row-major (then a row of zeros after an odd last row)
     for (let kx = 0; kx < hw; kx++) {
-      let si = 2 * (kx * h + y0);
+      let si = columns[kx] + 2 * y0;
       let di = 2 * kx;
       for (let r = 0; r < nr; r++, si += 2, di += 2 * hw) {
-        blk[di] = work[si];
-        blk[di + 1] = work[si + 1];
+        blk[di] = G[si];
+        blk[di + 1] = G[si + 1];
       }
     }
     if (nr % 2 === 1) blk.fill(0, 2 * hw * nr, 2 * hw * (nr + 1));

@@ -32,7 +32,7 @@
  * ±Infinity is rejected with a RangeError.
  */
 import type { ChannelArray } from './types';
-import { complexFft2dColumns, hermitianFft2dRows, nextPowerOfTwo } from './fft';
+import { complexRowsToColumns, fft1d, hermitianRowPairs, nextPowerOfTwo } from './fft';
 
 export interface ShiftResult {
   /** channel 2's displacement along x (right) in pixels; null when undefined */
@@ -252,6 +252,21 @@ function refine(Q: Float64Array, W: number, H: number, cu: number, cv: number, s
 }
 
 /**
+ * conj P(k) for one k into `out[o]`, `out[o + 1]`: P = B·conj(A) / |B·conj(A)| (0 where the product is 0), from
+ * Z(k) at `z[p]` and Z(−k) at `zm[q]` (interleaved re, im), A = (Z(k) + conj Z(−k)) / 2,
+ * B = (Z(k) − conj Z(−k)) / (2i).
+ */
+function crossPower(z: Float64Array, p: number, zm: Float64Array, q: number, out: Float64Array, o: number): void {
+  const zr = z[p], zi = z[p + 1], mr = zm[q], mi = zm[q + 1];
+  const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
+  const br = (zi + mi) / 2, bi = (mr - zr) / 2;
+  const re = br * ar - bi * ai, im = br * ai + bi * ar;
+  const mag = Math.sqrt(re * re + im * im);
+  out[o] = mag > 0 ? re / mag : 0;
+  out[o + 1] = mag > 0 ? -(im / mag) : 0;
+}
+
+/**
  * Channel 2's displacement relative to channel 1 (see the module comment). `ch1`, `ch2`: width × height,
  * row-major, one plane.
  */
@@ -265,53 +280,43 @@ export function measureShift(ch1: ChannelArray, ch2: ChannelArray, width: number
   const a = tapered(ch1, width, height, 'channel 1');
   const b = tapered(ch2, width, height, 'channel 2');
   if (a === null || b === null) return { dx: null, dy: null, peak: null };
-  // the spectra of both channels at once: Z = FFT(a + i·b), column by column (fft.ts), in a buffer with room
-  // for two half planes (W/2 + 1 columns each): the cross-power spectrum replaces Z in the first, the
-  // inverse's column transforms go to the second
+  // the spectra of both channels at once: Z = FFT(a + i·b) (fft.ts), its rows transformed into the columns of a
+  // buffer with room for W + 2 columns; each column pair kx, W − kx is then transformed, the cross-power
+  // spectrum P(kx) written into column kx and the column transform of conj P(kx) (the inverse's first half)
+  // where Z(W − kx) was; kx = 0 and W/2, their own mirror, put theirs in the two spare columns W and W + 1.
+  // Each column is thus read from memory once while its transforms and P are formed.
   const hw = W / 2 + 1;
   const buf = new Float64Array(4 * hw * H);
-  complexFft2dColumns(W, H, (y, out) => taperedRow(a, b, width, height, W, y, out), buf);
+  complexRowsToColumns(W, H, (y, out) => taperedRow(a, b, width, height, W, y, out), buf);
   // P = B·conj(A) / |B·conj(A)| on the half plane, with A(k) = (Z(k) + conj Z(−k)) / 2 and
-  // B(k) = (Z(k) − conj Z(−k)) / (2i) (the Hermitian symmetry of real images; fft.ts). P(kx) overwrites Z(kx);
-  // Z(−k) lies in column W − kx > W/2, never overwritten, except for the columns kx = 0 and W/2, which are
-  // their own mirror: there ky and H − ky are done together.
+  // B(k) = (Z(k) − conj Z(−k)) / (2i) (the Hermitian symmetry of real images; fft.ts), stored as conj P
   const P = buf.subarray(0, 2 * hw * H);
-  const cross = (p: number, q: number) => {
-    const zr = buf[p], zi = buf[p + 1], mr = buf[q], mi = buf[q + 1];
-    const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
-    const br = (zi + mi) / 2, bi = (mr - zr) / 2;
-    const re = br * ar - bi * ai, im = br * ai + bi * ar;
-    const mag = Math.sqrt(re * re + im * im);
-    return mag > 0 ? [re / mag, -(im / mag)] : [0, 0];
-  };
-  for (const kx of [0, W / 2])
-    for (let ky = 0; ky <= H / 2; ky++) {
-      const my = (H - ky) % H;
-      const p = 2 * (kx * H + ky), q = 2 * (kx * H + my);
-      const u = cross(p, q), v = cross(q, p);
-      P[p] = u[0];
-      P[p + 1] = u[1];
-      P[q] = v[0];
-      P[q + 1] = v[1];
+  const columns = new Int32Array(hw);
+  const z1 = new Float64Array(2 * H), z2 = new Float64Array(2 * H);
+  for (let kx = 0; kx < hw; kx++) {
+    const c1 = 2 * H * kx;
+    fft1d(H, buf, c1, z1, 0);
+    if (kx === 0 || kx === W / 2) {
+      // Z(−k) in the same column: ky and H − ky together
+      for (let ky = 0; ky <= H / 2; ky++) {
+        const my = ky === 0 ? 0 : H - ky;
+        const p = 2 * ky, q = 2 * my;
+        crossPower(z1, p, z1, q, P, c1 + p);
+        crossPower(z1, q, z1, p, P, c1 + q);
+      }
+      columns[kx] = 2 * H * (kx === 0 ? W : W + 1);
+    } else {
+      fft1d(H, buf, 2 * H * (W - kx), z2, 0);
+      crossPower(z1, 0, z2, 0, P, c1);
+      for (let ky = 1; ky < H; ky++) crossPower(z1, 2 * ky, z2, 2 * (H - ky), P, c1 + 2 * ky);
+      columns[kx] = 2 * H * (W - kx);
     }
-  for (let kx = 1; kx < W / 2; kx++) {
-    const mx = W - kx;
-    for (let ky = 0; ky < H; ky++) {
-      const my = (H - ky) % H;
-      const p = 2 * (kx * H + ky), q = 2 * (mx * H + my);
-      const zr = buf[p], zi = buf[p + 1], mr = buf[q], mi = buf[q + 1];
-      const ar = (zr + mr) / 2, ai = -((zi - mi) / 2);
-      const br = (zi + mi) / 2, bi = (mr - zr) / 2;
-      const re = br * ar - bi * ai, im = br * ai + bi * ar;
-      const mag = Math.sqrt(re * re + im * im);
-      P[p] = mag > 0 ? re / mag : 0;
-      P[p + 1] = mag > 0 ? -(im / mag) : 0;
-    }
+    fft1d(H, P, c1, buf, columns[kx]);
   }
   // its inverse c(y, x) as the forward transform of conj P (real; fft.ts), W·H·c, scanned for the largest
   // value row by row (the image is not kept)
   let best = -Infinity, k = 0;
-  hermitianFft2dRows(P, W, H, buf.subarray(2 * hw * H), (y, z, two) => {
+  hermitianRowPairs(buf, columns, W, H, (y, z, two) => {
     const o = y * W;
     for (let x = 0; x < W; x++)
       if (z[2 * x] > best) {
