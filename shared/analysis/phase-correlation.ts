@@ -317,18 +317,28 @@ export function measureShift(ch1: ChannelArray, ch2: ChannelArray, width: number
   // value row by row (the image is not kept)
   let best = -Infinity, k = 0;
   hermitianRowPairs(buf, columns, W, H, (y, z, two) => {
-    const o = y * W;
-    for (let x = 0; x < W; x++)
-      if (z[2 * x] > best) {
-        best = z[2 * x];
-        k = o + x;
+    // both rows in one pass (their largest values apart: the first largest in row-major order wins, as
+    // scanning row y, then row y + 1, would find)
+    let b1 = -Infinity, b2 = -Infinity, x1 = 0, x2 = 0;
+    for (let x = 0, i = 0; x < W; x++, i += 2) {
+      const v1 = z[i], v2 = z[i + 1];
+      if (v1 > b1) {
+        b1 = v1;
+        x1 = x;
       }
-    if (two)
-      for (let x = 0; x < W; x++)
-        if (z[2 * x + 1] > best) {
-          best = z[2 * x + 1];
-          k = o + W + x;
-        }
+      if (v2 > b2) {
+        b2 = v2;
+        x2 = x;
+      }
+    }
+    if (b1 > best) {
+      best = b1;
+      k = y * W + x1;
+    }
+    if (two && b2 > best) {
+      best = b2;
+      k = (y + 1) * W + x2;
+    }
   });
   const iy = Math.floor(k / W), ix = k % W;
   let u = iy > H / 2 ? iy - H : iy, v = ix > W / 2 ? ix - W : ix;
