@@ -139,7 +139,7 @@ export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: nu
 
 /**
  * Receives the real rows y and y + 1 of a transform of a Hermitian spectrum (interleaved: row y in the even,
- * row y + 1 in the odd places of `z`, x = 0 … w−1); `two` is false for a last single row.
+ * row y + 1 in the odd places of `z`, x = 0 … w−1); `two` says row y + 1 exists (always, h being a power of two).
  */
 export type RealRowPairSink = (y: number, z: Float64Array, two: boolean) => void;
 
@@ -170,7 +170,8 @@ export function hermitianFft2dRows(S: Float64Array, w: number, h: number, work: 
 /**
  * The second half of `hermitianFft2dRows`: from the column transforms G of a Hermitian half-plane spectrum
  * (column kx, h complex values, at `G[columns[kx] …]`, kx = 0 … w/2, anywhere in G), the real rows of its
- * transform, two at a time (gathered ROWS rows at a time, transformed in pairs as described there).
+ * transform, two at a time (ROWS rows at a time gathered straight into the complex rows G1 + i·G2 of their
+ * pairs, transformed as described there).
  */
 export function hermitianRowPairs(G: Float64Array, columns: Int32Array, w: number, h: number, sink: RealRowPairSink): void {
   checkSize(w, h);
@@ -179,36 +180,32 @@ export function hermitianRowPairs(G: Float64Array, columns: Int32Array, w: numbe
   for (let kx = 0; kx < hw; kx++)
     if (!(columns[kx] >= 0 && columns[kx] + 2 * h <= G.length)) throw new RangeError(`column ${kx} at ${columns[kx]} does not lie within the ${G.length} values given`);
   const fr = plan(w);
-  const blk = new Float64Array(2 * hw * (ROWS + 1));
-  const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);
-  for (let y0 = 0; y0 < h; y0 += ROWS) {
-    const nr = Math.min(ROWS, h - y0);
-    // rows y0 … y0 + nr − 1 of the column transforms, row-major (then a row of zeros after an odd last row)
+  // h and ROWS are powers of two ≥ 2, so every block has an even number of rows: ROWS / 2 row pairs, each
+  // gathered straight into the complex row it is transformed as
+  const pairs = Math.min(ROWS, h) / 2;
+  const zin = new Float64Array(2 * w * pairs), zout = new Float64Array(2 * w);
+  for (let y0 = 0; y0 < h; y0 += 2 * pairs) {
+    // rows y0 … y0 + 2·pairs − 1 of the column transforms, as the rows Z = G1 + i·G2 of each pair (y, y + 1):
+    // the edge columns kx = 0 and w/2 real; G as stored for kx < w/2, conj G(w − kx) above
     for (let kx = 0; kx < hw; kx++) {
-      let si = columns[kx] + 2 * y0;
-      let di = 2 * kx;
-      for (let r = 0; r < nr; r++, si += 2, di += 2 * hw) {
-        blk[di] = G[si];
-        blk[di + 1] = G[si + 1];
-      }
+      const si = columns[kx] + 2 * y0;
+      if (kx === 0 || kx === w / 2)
+        for (let j = 0, q = si, z = 2 * kx; j < pairs; j++, q += 4, z += 2 * w) {
+          zin[z] = G[q];
+          zin[z + 1] = G[q + 2];
+        }
+      else
+        for (let j = 0, q = si, p = 2 * kx, m = 2 * w - 2 * kx; j < pairs; j++, q += 4, p += 2 * w, m += 2 * w) {
+          const g1r = G[q], g1i = G[q + 1], g2r = G[q + 2], g2i = G[q + 3];
+          zin[p] = g1r - g2i;
+          zin[p + 1] = g1i + g2r;
+          zin[m] = g1r + g2i;
+          zin[m + 1] = g2r - g1i;
+        }
     }
-    if (nr % 2 === 1) blk.fill(0, 2 * hw * nr, 2 * hw * (nr + 1));
-    for (let r = 0; r < nr; r += 2) {
-      const r1 = 2 * hw * r, r2 = 2 * hw * (r + 1);
-      // Z = G1 + i·G2: the edge columns kx = 0 and w/2 real; G as stored for kx < w/2, conj G(w − kx) above
-      zin[0] = blk[r1];
-      zin[1] = blk[r2];
-      zin[w] = blk[r1 + w];
-      zin[w + 1] = blk[r2 + w];
-      for (let p = 2, m = 2 * w - 2; p < w; p += 2, m -= 2) {
-        const g1r = blk[r1 + p], g1i = blk[r1 + p + 1], g2r = blk[r2 + p], g2i = blk[r2 + p + 1];
-        zin[p] = g1r - g2i;
-        zin[p + 1] = g1i + g2r;
-        zin[m] = g1r + g2i;
-        zin[m + 1] = g2r - g1i;
-      }
-      fr.transform(zout, zin);
-      sink(y0 + r, zout, r + 1 < nr);
+    for (let j = 0; j < pairs; j++) {
+      fr.transform(zout, zin.subarray(2 * w * j, 2 * w * (j + 1)));
+      sink(y0 + 2 * j, zout, true);
     }
   }
 }
