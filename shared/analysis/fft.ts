@@ -1,6 +1,6 @@
 /**
  * Two-dimensional discrete Fourier transforms of real images on a power-of-two grid, built on the radix-4
- * FFT of the npm package `fft.js` (pinned in package.json).
+ * FFT of radix4-fft.ts (bit for bit that of the npm package `fft.js` 4.0.4, which it replaced).
  *
  * Real input costs half a complex transform: two real images a, b are transformed together as one complex
  * image z = a + i·b, and separated with the Hermitian symmetry of real data,
@@ -14,7 +14,7 @@
  * (rows are transformed a block at a time and written straight into their columns, instead of gathering
  * every column).
  */
-import FFT from 'fft.js';
+import { Radix4Fft } from './radix4-fft';
 
 /** The smallest power of two ≥ n (n ≥ 1). */
 export function nextPowerOfTwo(n: number): number {
@@ -29,21 +29,20 @@ function checkSize(w: number, h: number): void {
     if (!(Number.isInteger(v) && v >= 2 && (v & (v - 1)) === 0)) throw new RangeError(`transform ${name} must be a power of two ≥ 2, received ${v}`);
 }
 
-const plans = new Map<number, InstanceType<typeof FFT>>();
-function plan(n: number): InstanceType<typeof FFT> {
+const plans = new Map<number, Radix4Fft>();
+function plan(n: number): Radix4Fft {
   let p = plans.get(n);
-  if (!p) plans.set(n, (p = new FFT(n)));
+  if (!p) plans.set(n, (p = new Radix4Fft(n)));
   return p;
 }
 
-/** Complex FFT of each of `count` contiguous rows of n values, in place (inverse when `inverse`). */
-function rowTransforms(z: Float64Array, count: number, n: number, inverse: boolean): void {
+/** Complex FFT of each of `count` contiguous rows of n values, in place. */
+function rowTransforms(z: Float64Array, count: number, n: number): void {
   const f = plan(n);
   const tmp = new Float64Array(2 * n);
   for (let r = 0; r < count; r++) {
     const row = z.subarray(2 * n * r, 2 * n * (r + 1));
-    if (inverse) f.inverseTransform(tmp, row);
-    else f.transform(tmp, row);
+    f.transform(tmp, row);
     row.set(tmp);
   }
 }
@@ -92,7 +91,7 @@ export function complexRowsToColumns(w: number, h: number, row: ComplexRowSource
  */
 export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
   complexRowsToColumns(w, h, row, zt);
-  rowTransforms(zt, w, h, false);
+  rowTransforms(zt, w, h);
 }
 
 /** The forward transform of the n complex values at `src[so …]` into `dst[dOff …]` (ranges must not overlap). */
@@ -148,7 +147,7 @@ export type RealRowPairSink = (y: number, z: Float64Array, two: boolean) => void
  * the half plane (layout above), which is real, handed out two rows at a time without storing the image,
  * unnormalised. With S = conj T it is w·h times the inverse transform of T (the inverse of a Hermitian
  * spectrum is real, so it equals its own conjugate): inverses are computed this way, with forward transforms
- * only (fft.js's inverse also divides every 1-D result by its size). `work` (at least 2·(w/2 + 1)·h values)
+ * only (an inverse 1-D transform would also divide every result by its size). `work` (at least 2·(w/2 + 1)·h values)
  * receives the column transforms (S is left as it is); the rows are then gathered from it ROWS at a time (a
  * blocked transposition) and transformed in pairs as one complex row G1 + i·G2, G(w − kx) = conj G(kx) (the
  * column transforms of a Hermitian spectrum), whose transform is F1 + i·F2. The imaginary parts of the kx = 0
