@@ -1,6 +1,6 @@
 /**
  * Two-dimensional discrete Fourier transforms of real images on a power-of-two grid, built on the radix-4
- * FFT of the npm package `fft.js` (pinned in package.json).
+ * FFT of radix4-fft.ts (bit for bit that of the npm package `fft.js` 4.0.4, which it replaced).
  *
  * Real input costs half a complex transform: two real images a, b are transformed together as one complex
  * image z = a + i·b, and separated with the Hermitian symmetry of real data,
@@ -14,7 +14,7 @@
  * (rows are transformed a block at a time and written straight into their columns, instead of gathering
  * every column).
  */
-import FFT from 'fft.js';
+import { Radix4Fft } from './radix4-fft';
 
 /** The smallest power of two ≥ n (n ≥ 1). */
 export function nextPowerOfTwo(n: number): number {
@@ -29,21 +29,20 @@ function checkSize(w: number, h: number): void {
     if (!(Number.isInteger(v) && v >= 2 && (v & (v - 1)) === 0)) throw new RangeError(`transform ${name} must be a power of two ≥ 2, received ${v}`);
 }
 
-const plans = new Map<number, InstanceType<typeof FFT>>();
-function plan(n: number): InstanceType<typeof FFT> {
+const plans = new Map<number, Radix4Fft>();
+function plan(n: number): Radix4Fft {
   let p = plans.get(n);
-  if (!p) plans.set(n, (p = new FFT(n)));
+  if (!p) plans.set(n, (p = new Radix4Fft(n)));
   return p;
 }
 
-/** Complex FFT of each of `count` contiguous rows of n values, in place (inverse when `inverse`). */
-function rowTransforms(z: Float64Array, count: number, n: number, inverse: boolean): void {
+/** Complex FFT of each of `count` contiguous rows of n values, in place. */
+function rowTransforms(z: Float64Array, count: number, n: number): void {
   const f = plan(n);
   const tmp = new Float64Array(2 * n);
   for (let r = 0; r < count; r++) {
     const row = z.subarray(2 * n * r, 2 * n * (r + 1));
-    if (inverse) f.inverseTransform(tmp, row);
-    else f.transform(tmp, row);
+    f.transform(tmp, row);
     row.set(tmp);
   }
 }
@@ -58,12 +57,12 @@ const ROWS = 16;
 export type ComplexRowSource = (y: number, out: Float64Array) => boolean;
 
 /**
- * The full complex 2-D spectrum of an h × w complex image given row by row, stored column by column
- * (column kx at 2·kx·h, ky = 0 … h−1 contiguous) in `zt` (2·w·h values). The rows are transformed ROWS at a
- * time and written straight into their columns (a blocked transposition, no row-major copy of the image),
- * then each column is transformed in place. Rows reported all zero (padding) skip their transform.
+ * The rows of an h × w complex image given row by row, each transformed and written straight into its place
+ * in the columns (column x at 2·x·h, y = 0 … h−1 contiguous) of `zt` (2·w·h values): ROWS rows at a time (a
+ * blocked transposition, no row-major copy of the image). Rows reported all zero (padding) skip their
+ * transform. The columns are not transformed (`complexFft2dColumns` does that; `fft1d` one column).
  */
-export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
+export function complexRowsToColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
   const fr = plan(w);
   const tin = new Float64Array(2 * w);
   const blk = new Float64Array(2 * w * ROWS);
@@ -83,7 +82,21 @@ export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource,
       }
     }
   }
-  rowTransforms(zt, w, h, false);
+}
+
+/**
+ * The full complex 2-D spectrum of an h × w complex image given row by row, stored column by column
+ * (column kx at 2·kx·h, ky = 0 … h−1 contiguous) in `zt` (2·w·h values): `complexRowsToColumns`, then each
+ * column transformed in place.
+ */
+export function complexFft2dColumns(w: number, h: number, row: ComplexRowSource, zt: Float64Array): void {
+  complexRowsToColumns(w, h, row, zt);
+  rowTransforms(zt, w, h);
+}
+
+/** The forward transform of the n complex values at `src[so …]` into `dst[dOff …]` (ranges must not overlap). */
+export function fft1d(n: number, src: Float64Array, so: number, dst: Float64Array, dOff: number): void {
+  plan(n).transform(dst.subarray(dOff, dOff + 2 * n), src.subarray(so, so + 2 * n));
 }
 
 /**
@@ -125,7 +138,7 @@ export function realFft2dPair(a: Float64Array, b: Float64Array, w: number, h: nu
 
 /**
  * Receives the real rows y and y + 1 of a transform of a Hermitian spectrum (interleaved: row y in the even,
- * row y + 1 in the odd places of `z`, x = 0 … w−1); `two` is false for a last single row.
+ * row y + 1 in the odd places of `z`, x = 0 … w−1); `two` says row y + 1 exists (always, h being a power of two).
  */
 export type RealRowPairSink = (y: number, z: Float64Array, two: boolean) => void;
 
@@ -134,7 +147,7 @@ export type RealRowPairSink = (y: number, z: Float64Array, two: boolean) => void
  * the half plane (layout above), which is real, handed out two rows at a time without storing the image,
  * unnormalised. With S = conj T it is w·h times the inverse transform of T (the inverse of a Hermitian
  * spectrum is real, so it equals its own conjugate): inverses are computed this way, with forward transforms
- * only (fft.js's inverse also divides every 1-D result by its size). `work` (at least 2·(w/2 + 1)·h values)
+ * only (an inverse 1-D transform would also divide every result by its size). `work` (at least 2·(w/2 + 1)·h values)
  * receives the column transforms (S is left as it is); the rows are then gathered from it ROWS at a time (a
  * blocked transposition) and transformed in pairs as one complex row G1 + i·G2, G(w − kx) = conj G(kx) (the
  * column transforms of a Hermitian spectrum), whose transform is F1 + i·F2. The imaginary parts of the kx = 0
@@ -145,39 +158,53 @@ export function hermitianFft2dRows(S: Float64Array, w: number, h: number, work: 
   const hw = w / 2 + 1;
   if (S.length !== 2 * hw * h) throw new RangeError(`a half-plane spectrum of ${w}×${h} has ${2 * hw * h} values, received ${S.length}`);
   if (work.length < 2 * hw * h) throw new RangeError(`the work buffer needs ${2 * hw * h} values, received ${work.length}`);
-  const fc = plan(h);
-  for (let kx = 0; kx < hw; kx++) fc.transform(work.subarray(2 * h * kx, 2 * h * (kx + 1)), S.subarray(2 * h * kx, 2 * h * (kx + 1)));
+  const columns = new Int32Array(hw);
+  for (let kx = 0; kx < hw; kx++) {
+    columns[kx] = 2 * h * kx;
+    fft1d(h, S, 2 * h * kx, work, 2 * h * kx);
+  }
+  hermitianRowPairs(work, columns, w, h, sink);
+}
+
+/**
+ * The second half of `hermitianFft2dRows`: from the column transforms G of a Hermitian half-plane spectrum
+ * (column kx, h complex values, at `G[columns[kx] …]`, kx = 0 … w/2, anywhere in G), the real rows of its
+ * transform, two at a time (ROWS rows at a time gathered straight into the complex rows G1 + i·G2 of their
+ * pairs, transformed as described there).
+ */
+export function hermitianRowPairs(G: Float64Array, columns: Int32Array, w: number, h: number, sink: RealRowPairSink): void {
+  checkSize(w, h);
+  const hw = w / 2 + 1;
+  if (columns.length !== hw) throw new RangeError(`a half plane of width ${w} has ${hw} columns, received ${columns.length} column offsets`);
+  for (let kx = 0; kx < hw; kx++)
+    if (!(columns[kx] >= 0 && columns[kx] + 2 * h <= G.length)) throw new RangeError(`column ${kx} at ${columns[kx]} does not lie within the ${G.length} values given`);
   const fr = plan(w);
-  const blk = new Float64Array(2 * hw * (ROWS + 1));
-  const zin = new Float64Array(2 * w), zout = new Float64Array(2 * w);
-  for (let y0 = 0; y0 < h; y0 += ROWS) {
-    const nr = Math.min(ROWS, h - y0);
-    // rows y0 … y0 + nr − 1 of the column transforms, row-major (then a row of zeros after an odd last row)
+  // h and ROWS are powers of two ≥ 2, so every block has an even number of rows: ROWS / 2 row pairs, each
+  // gathered straight into the complex row it is transformed as
+  const pairs = Math.min(ROWS, h) / 2;
+  const zin = new Float64Array(2 * w * pairs), zout = new Float64Array(2 * w);
+  for (let y0 = 0; y0 < h; y0 += 2 * pairs) {
+    // rows y0 … y0 + 2·pairs − 1 of the column transforms, as the rows Z = G1 + i·G2 of each pair (y, y + 1):
+    // the edge columns kx = 0 and w/2 real; G as stored for kx < w/2, conj G(w − kx) above
     for (let kx = 0; kx < hw; kx++) {
-      let si = 2 * (kx * h + y0);
-      let di = 2 * kx;
-      for (let r = 0; r < nr; r++, si += 2, di += 2 * hw) {
-        blk[di] = work[si];
-        blk[di + 1] = work[si + 1];
-      }
+      const si = columns[kx] + 2 * y0;
+      if (kx === 0 || kx === w / 2)
+        for (let j = 0, q = si, z = 2 * kx; j < pairs; j++, q += 4, z += 2 * w) {
+          zin[z] = G[q];
+          zin[z + 1] = G[q + 2];
+        }
+      else
+        for (let j = 0, q = si, p = 2 * kx, m = 2 * w - 2 * kx; j < pairs; j++, q += 4, p += 2 * w, m += 2 * w) {
+          const g1r = G[q], g1i = G[q + 1], g2r = G[q + 2], g2i = G[q + 3];
+          zin[p] = g1r - g2i;
+          zin[p + 1] = g1i + g2r;
+          zin[m] = g1r + g2i;
+          zin[m + 1] = g2r - g1i;
+        }
     }
-    if (nr % 2 === 1) blk.fill(0, 2 * hw * nr, 2 * hw * (nr + 1));
-    for (let r = 0; r < nr; r += 2) {
-      const r1 = 2 * hw * r, r2 = 2 * hw * (r + 1);
-      // Z = G1 + i·G2: the edge columns kx = 0 and w/2 real; G as stored for kx < w/2, conj G(w − kx) above
-      zin[0] = blk[r1];
-      zin[1] = blk[r2];
-      zin[w] = blk[r1 + w];
-      zin[w + 1] = blk[r2 + w];
-      for (let p = 2, m = 2 * w - 2; p < w; p += 2, m -= 2) {
-        const g1r = blk[r1 + p], g1i = blk[r1 + p + 1], g2r = blk[r2 + p], g2i = blk[r2 + p + 1];
-        zin[p] = g1r - g2i;
-        zin[p + 1] = g1i + g2r;
-        zin[m] = g1r + g2i;
-        zin[m + 1] = g2r - g1i;
-      }
-      fr.transform(zout, zin);
-      sink(y0 + r, zout, r + 1 < nr);
+    for (let j = 0; j < pairs; j++) {
+      fr.transform(zout, zin.subarray(2 * w * j, 2 * w * (j + 1)));
+      sink(y0 + 2 * j, zout, true);
     }
   }
 }

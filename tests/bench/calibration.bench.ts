@@ -10,12 +10,15 @@
  *      and allocating them on every call; also the two-step form (alignChannel, then unmixChannels) and the
  *      cost of merely allocating and filling the two output images (the floor of any version that returns
  *      new arrays).
- * Also: the van Steensel curves within ±8 px (a diagnostic). Times are the best of several repeats, wall
+ * Also: the engine's 1-D FFT (radix4-fft.ts) against fft.js 4.0.4, whose results it repeats bit for bit; the
+ * van Steensel curves within ±8 px (a diagnostic). Times are the best of several repeats, wall
  * clock and CPU time of this process. Run: `npm run bench` (BENCH=calibration) or
  * `npx tsx tests/bench/calibration.bench.ts [size]`.
  */
 import { alignAndUnmix, alignChannel, crossCorrelationCurves, measureShift, unmixChannels } from '../../shared/analysis/index';
+import FFT from 'fft.js';
 import { complexFft2dColumns, hermitianFft2dRows } from '../../shared/analysis/fft';
+import { Radix4Fft } from '../../shared/analysis/radix4-fft';
 import { beadField } from './bead-field';
 import { fmt, time } from './timing';
 
@@ -30,13 +33,22 @@ let got = measureShift(a, b, S, S);
 const shift = time(() => (got = measureShift(a, b, S, S)), 3);
 console.log(`${S}×${S}, ${N} beads, channel 2 displaced by (${DX}, ${DY}) px: measured (${got.dx}, ${got.dy}), peak ${got.peak?.toFixed(3)}`);
 console.log(`shift measurement: ${fmt(shift)} (target ≤ 400 ms)`);
-// the share of the transforms: the same forward and inverse 2-D FFTs with nothing else (fft.js, 6,145 transforms of 2,048)
+// the share of the transforms: the same forward and inverse 2-D FFTs with nothing else (radix4-fft.ts, 6,145 transforms of 2,048)
 const transforms = time(() => {
   const zt = new Float64Array(2 * S * S), row = new Float64Array(2 * S).fill(1);
   complexFft2dColumns(S, S, (_y, out) => (out.set(row), true), zt);
   hermitianFft2dRows(zt.subarray(0, 2 * (S / 2 + 1) * S), S, S, new Float64Array(2 * (S / 2 + 1) * S), () => {});
 }, 3);
 console.log(`  the forward and inverse 2-D transforms alone: ${fmt(transforms)} (${((100 * transforms.cpu) / shift.cpu).toFixed(0)} % of the shift measurement)`);
+// the engine's 1-D FFT against fft.js 4.0.4, whose results it gives bit for bit: 6,145 transforms of S points each
+{
+  const ref = new FFT(S), own = new Radix4Fft(S);
+  const x = Float64Array.from({ length: 2 * S }, (_, i) => Math.sin(i * 0.37)), y = new Float64Array(2 * S);
+  const T = 6145;
+  const tRef = time(() => { for (let i = 0; i < T; i++) ref.transform(y, x); }, 3);
+  const tOwn = time(() => { for (let i = 0; i < T; i++) own.transform(y, x); }, 3);
+  console.log(`  ${T} 1-D transforms of ${S}: radix4-fft.ts ${fmt(tOwn)}; baseline fft.js ${fmt(tRef)}; ratio ${(tRef.cpu / tOwn.cpu).toFixed(2)}× (CPU)`);
+}
 
 const M = 8;
 const direct = time(() => {
