@@ -40,7 +40,9 @@ export const WARM_UP_ROUNDS = 3;
 /** No round starts once the warm-up has taken this long (a loaded machine does fewer rounds). */
 export const WARM_UP_BUDGET_MS = 250;
 
+/** the fields' edge in pixels; the layout below is drawn for 128 and scaled by S */
 const SIZE = 128;
+const S = SIZE / 128;
 
 /** The warm-up cells: four polygons (12-gons around ellipses), an ellipse and a rectangle, none touching. */
 const CELLS: CellGeometry[] = [
@@ -48,11 +50,11 @@ const CELLS: CellGeometry[] = [
     kind: 'polygon',
     points: Array.from({ length: 12 }, (_, i) => {
       const a = (2 * Math.PI * i) / 12 + 0.2 * k;
-      return [cx + (18 + (i % 3)) * Math.cos(a), cy + (14 + (i % 2)) * Math.sin(a)] as [number, number];
+      return [S * (cx + (18 + (i % 3)) * Math.cos(a)), S * (cy + (14 + (i % 2)) * Math.sin(a))] as [number, number];
     }),
   })),
-  { kind: 'ellipse', cx: 64, cy: 64, rx: 10, ry: 8 },
-  { kind: 'rect', x: 52, y: 2, width: 24, height: 16 },
+  { kind: 'ellipse', cx: 64 * S, cy: 64 * S, rx: 10 * S, ry: 8 * S },
+  { kind: 'rect', x: 52 * S, y: 2 * S, width: 24 * S, height: 16 * S },
 ];
 
 /** Two channels: background ~100 with noise, cytoplasm inside the cells, seeded Gaussian puncta (40 % in both). */
@@ -64,9 +66,9 @@ function warmUpPixels(seed: number): [Uint16Array, Uint16Array] {
     for (let j = Math.max(0, Math.floor(y - 6)); j < Math.min(SIZE, y + 6); j++)
       for (let i = Math.max(0, Math.floor(x - 6)); i < Math.min(SIZE, x + 6); i++) e[j * SIZE + i] += amp * Math.exp(-((i + 0.5 - x) ** 2 + (j + 0.5 - y) ** 2) / (2 * 1.6 ** 2));
   };
-  for (const [cx, cy, r] of [[30, 30, 15], [98, 30, 15], [30, 98, 15], [98, 98, 15], [64, 64, 8], [64, 10, 7]]) {
+  for (const [cx, cy, r] of [[30, 30, 15], [98, 30, 15], [30, 98, 15], [98, 98, 15], [64, 64, 8], [64, 10, 7]].map((c) => c.map((v) => v * S))) {
     for (let j = cy - r; j < cy + r; j++) for (let i = cx - r; i < cx + r; i++) ((e1[j * SIZE + i] += 150), (e2[j * SIZE + i] += 130));
-    for (let k = 0; k < 8; k++) {
+    for (let k = 0; k < 8 * S * S; k++) {
       const x = cx + (rng.nextFloat() - 0.5) * 1.6 * r, y = cy + (rng.nextFloat() - 0.5) * 1.6 * r;
       const u = rng.nextFloat();
       // both channels below 0.4, channel 1 only up to 0.7, channel 2 only above
@@ -74,8 +76,8 @@ function warmUpPixels(seed: number): [Uint16Array, Uint16Array] {
       if (u < 0.4 || u >= 0.7) spot(e2, x + 0.3 * (rng.nextFloat() - 0.5), y, 700 + 2000 * rng.nextFloat());
     }
   }
-  spot(e1, 8, 120, 90000);
-  spot(e2, 8, 120, 90000);
+  spot(e1, 8 * S, 120 * S, 90000);
+  spot(e2, 8 * S, 120 * S, 90000);
   const out = (e: Float64Array) => Uint16Array.from(e, (v) => Math.min(65535, Math.round(v + 12 * (rng.nextFloat() - 0.5) * Math.sqrt(v / 10))));
   return [out(e1), out(e2)];
 }
