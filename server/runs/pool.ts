@@ -111,8 +111,8 @@ export class PoolRunQueue implements RunQueue {
 
   /**
    * Starts the pool's threads now and keeps them for the life of the queue (the server calls it at start), so a
-   * run does not wait for a thread to start, load the engine and warm it up (about 0.7 s) after the server
-   * started or after a quiet spell. Resolves with the milliseconds until every thread answered and reported its
+   * run does not wait for a thread to start, load the engine and warm it up (0.7–0.9 s at load 2–4, the warm-up
+   * ~0.3 s of it) after the server started or after a quiet spell. Resolves with the milliseconds until every thread answered and reported its
    * warm-up (each report is in `warmUps`). Without it (tests, one-off scripts) threads start at the first run,
    * warm up then (that run waits for it) and end after 30 s idle. Has no effect once the pool exists.
    */
