@@ -93,7 +93,7 @@ export function zRange(z: RecipeSettings['z'], sizeZ: number): [number, number] 
 export const describeZ = (z: RecipeSettings['z'], depth = 1) => (z.mode === 'volume' ? (depth > 1 ? `3D 0-${depth - 1}` : 'slice 0') : z.mode === 'slice' ? `slice ${z.slice}` : z.mode === 'range' ? `mip ${z.from}-${z.to}` : 'mip all');
 
 /** Reads and decodes both channels of a job's field from the file store, applying the z handling. */
-export async function loadJobPixels(store: FileStore, job: FieldJob): Promise<FieldPixels> {
+export async function loadJobPixels(store: Pick<FileStore, 'get'>, job: FieldJob): Promise<FieldPixels> {
   const [from, to] = zRange(job.settings.z, job.sizeZ);
   const bufs = new Map<string, Buffer>();
   const out: ChannelArray[] = [];
@@ -525,7 +525,7 @@ export function dropSpareBuffers(): void {
 }
 
 /** Load + compute, never throwing: a failure becomes `{ ok: false, error }` with a one-line message. */
-export async function runFieldJob(store: FileStore, job: FieldJob, threads: SweepThreads | null = null): Promise<FieldJobResult> {
+export async function runFieldJob(store: Pick<FileStore, 'get'>, job: FieldJob, threads: SweepThreads | null = null): Promise<FieldJobResult> {
   const t0 = performance.now();
   try {
     const px = await loadJobPixels(store, job);

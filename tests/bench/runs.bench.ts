@@ -3,10 +3,12 @@
  * writes, bookkeeping) against the decode + engine time of the same fields measured in this process, one field
  * after another (loadJobPixels + computeField, the two steps a pool thread runs). Printed as a ratio; the target
  * is ≤ 1.3×. Two cases: the demo study (12 small fields), and one 2048² field with 60 cells. The pool's thread is
- * started as the server starts it (`warm()` right after the context is made; its start time is printed), so
- * "cold" is the first run on a thread whose JIT has not seen the engine yet, and "warm" the best of the next three
- * runs. WORKERS=1, so the run does the same work on one thread as the baseline does here; the baseline is the
- * best of three passes after a first one (warm JIT, as the pool thread is by then). Each case also prints this
+ * started as the server starts it (`warm()` right after the context is made), and as it starts it warms its code
+ * on small synthetic fields (server/runs/warm-up.ts); that warm-up is part of server start, not of any run, and is
+ * printed with it: the thread's start time, and the warm-up's own time and fields within it. "Cold" is the first
+ * run of a case on that thread (its JIT has seen only the warm-up's fields, and for the 2048² case the demo's), and
+ * "warm" the best of the next three runs. WORKERS=1, so the run does the same work on one thread as the baseline
+ * does here; the baseline is the best of three passes after a first one (warm JIT, as the pool thread is by then). Each case also prints this
  * process's CPU time (all threads) for the run against the baseline's, which the machine's load moves less, and
  * where the run's time went (the pool's timings: job building, writes, the thread's decode and engine, the rest).
  *
@@ -38,8 +40,16 @@ async function main() {
   const env = loadEnv({ ...process.env, DATA_DIR: dataDir, SEED_DEMO: 'never', WORKERS: '1' } as NodeJS.ProcessEnv);
   const ctx = await createContext(env);
   try {
+    const c0 = process.cpuUsage();
     const threadStart = (await ctx.runs.warm?.()) ?? 0;
-    console.log(`pool thread started in ${threadStart.toFixed(0)} ms (at server start, before any run)`);
+    const startCpu = process.cpuUsage(c0);
+    // the thread's warm-up is in its start time (warm() resolves once the thread has warmed up)
+    const warmUps = (ctx.runs as { warmUps?: { ms: number; fields: number; error: string | null }[] }).warmUps ?? [];
+    console.log(
+      `server start: pool thread started in ${threadStart.toFixed(0)} ms wall, ${((startCpu.user + startCpu.system) / 1000).toFixed(0)} ms CPU of this process (before any run); ` +
+        (warmUps.length ? `of it, its warm-up: ${warmUps.map((w) => `${w.ms.toFixed(0)} ms, ${w.fields} synthetic field(s)${w.error ? `, stopped: ${w.error}` : ''}`).join('; ')}` : 'no warm-up reported') +
+        `; load ${os.loadavg()[0].toFixed(2)}`,
+    );
     await seedDemo(ctx, {});
     const study = ctx.db.select().from(studies).where(eq(studies.name, DEMO_STUDY)).get()!;
     const recipe = ctx.db.select().from(recipes).where(and(eq(recipes.name, DEMO_RECIPE), eq(recipes.status, 'approved'))).get()!;
