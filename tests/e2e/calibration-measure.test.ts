@@ -11,7 +11,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { expect, it } from 'vitest';
-import { apiSession, DEMO_PASSWORD, serverAndBrowser, shot, signIn } from './harness.js';
+import { apiSession, DEMO_PASSWORD, measureShiftOnScreen, serverAndBrowser, shot, signIn } from './harness.js';
 
 const e2e = serverAndBrowser();
 const FIXTURE = path.join(import.meta.dirname, '..', 'fixtures', 'calibration');
@@ -45,12 +45,7 @@ it('a facility manager measures a new calibration on a bead field and sees the c
   await expect.poll(() => studyBox.locator('option').count(), { timeout: 10_000 }).toBeGreaterThan(1);
   await studyBox.selectOption({ label: study.name });
   await page.getByLabel('Bead field').selectOption({ label: 'beads-shift1 (256 × 256)' });
-  await page.getByRole('button', { name: 'Measure shift' }).click();
-  await page.getByTestId('source-shift').waitFor({ timeout: 60_000 });
-  // the boxes take the measured values (the version is stored first, then the form follows it)
-  await expect.poll(() => page.getByLabel('Channel shift, y (px)').inputValue(), { timeout: 10_000 }).not.toBe('');
-  const dx = Number(await page.getByLabel('Channel shift, x (px)').inputValue());
-  const dy = Number(await page.getByLabel('Channel shift, y (px)').inputValue());
+  const { dx, dy } = await measureShiftOnScreen(page);
   expect(Math.abs(dx - truth.dx)).toBeLessThan(0.05);
   expect(Math.abs(dy - truth.dy)).toBeLessThan(0.05);
   expect(await page.getByTestId('source-shift').innerText()).toMatch(/^Shift \(-7\.\d\d, 5\.\d\d\) px measured on the bead field beads-shift1 \(single plane; correlation peak 0\.\d{3}\)/);

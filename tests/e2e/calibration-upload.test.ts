@@ -10,7 +10,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { expect, it } from 'vitest';
-import { apiSession, serverAndBrowser, shot, signIn } from './harness.js';
+import { apiSession, measureShiftOnScreen, serverAndBrowser, shot, signIn } from './harness.js';
 
 const e2e = serverAndBrowser();
 const FIXTURE = path.join(import.meta.dirname, '..', 'fixtures', 'calibration');
@@ -57,11 +57,7 @@ it('a facility manager uploads a bead field from the calibration card and measur
   const added = fields.find((f) => f.name === 'beads-upload')!;
   expect(added).toMatchObject({ coverslipId: slip.id, instrumentId: inst.body.id });
   await expect.poll(() => page.getByLabel('Bead field').inputValue(), { timeout: 10_000 }).toBe(String(added.id));
-  await page.getByRole('button', { name: 'Measure shift' }).click();
-  await page.getByTestId('source-shift').waitFor({ timeout: 60_000 });
-  await expect.poll(() => page.getByLabel('Channel shift, y (px)').inputValue(), { timeout: 10_000 }).not.toBe('');
-  const dx = Number(await page.getByLabel('Channel shift, x (px)').inputValue());
-  const dy = Number(await page.getByLabel('Channel shift, y (px)').inputValue());
+  const { dx, dy } = await measureShiftOnScreen(page);
   expect(Math.abs(dx - truth.dx)).toBeLessThan(0.05);
   expect(Math.abs(dy - truth.dy)).toBeLessThan(0.05);
   expect(await page.getByTestId('source-shift').innerText()).toMatch(/measured on the bead field beads-upload/);

@@ -13,7 +13,7 @@ import fs from 'node:fs';
 import net from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import { afterAll, beforeAll, inject } from 'vitest';
+import { afterAll, beforeAll, expect, inject } from 'vitest';
 import { chromium, type Browser, type Page } from 'playwright-core';
 
 export const DEMO_PASSWORD = 'syntopy-demo';
@@ -171,6 +171,19 @@ export async function signIn(page: Page, srv: RunningServer, email: string, pass
   await page.getByLabel(/password/i).fill(password);
   await page.getByRole('button', { name: /sign in/i }).click();
   await page.waitForURL((u) => !u.pathname.startsWith('/signin'));
+}
+
+/**
+ * On a calibration version's screen with its bead field chosen: presses "Measure shift", waits until the
+ * measurement is stored and the value boxes follow it (the version is stored first, then the form), and returns
+ * the boxes' dx, dy.
+ */
+export async function measureShiftOnScreen(page: Page): Promise<{ dx: number; dy: number }> {
+  await page.getByRole('button', { name: 'Measure shift' }).click();
+  await page.getByTestId('source-shift').waitFor({ timeout: 60_000 });
+  const boxY = page.getByLabel('Channel shift, y (px)');
+  await expect.poll(() => boxY.inputValue(), { timeout: 10_000 }).not.toBe('');
+  return { dx: Number(await page.getByLabel('Channel shift, x (px)').inputValue()), dy: Number(await boxY.inputValue()) };
 }
 
 export async function shot(page: Page, name: string) {
